@@ -57,6 +57,8 @@ export interface FluidGiven {
   volumeMl: number;
   start: string;
   end: string;
+  /** MedicationAdministration.status: 'completed' or 'in-progress' (others are not kept). */
+  status: string;
   ageMinutes: number;
 }
 
@@ -98,7 +100,9 @@ export interface DraftOrder {
   resource: Record<string, unknown>;
 }
 
-export type ExclusionReason = 'unknown-code' | 'unknown-unit' | 'incompatible-unit' | 'impossible-value' | 'future-time' | 'entered-in-error' | 'cancelled' | 'no-value' | 'no-time' | 'unknown-answer';
+export type ExclusionReason =
+  | 'unknown-code' | 'unknown-unit' | 'incompatible-unit' | 'impossible-value' | 'future-time' | 'entered-in-error'
+  | 'cancelled' | 'no-value' | 'censored-value' | 'no-time' | 'unknown-answer' | 'other-patient' | 'malformed';
 
 export interface Exclusion {
   ref: FhirRef;

@@ -1,0 +1,19 @@
+/** Helpers shared by the audit adapters. */
+import { createHash } from 'node:crypto';
+import type { AdviceRecord, AdviceSummary, FeedbackRow } from './types.js';
+
+export function summarize(r: AdviceRecord & { seq: number }, feedback: Map<string, { accepted: number; overridden: number }>): AdviceSummary {
+  return {
+    id: r.id, seq: r.seq, recordedAt: r.recordedAt, service: r.service, hook: r.hook, hookInstance: r.hookInstance,
+    ...(r.patientId ? { patientId: r.patientId } : {}), ...(r.encounterId ? { encounterId: r.encounterId } : {}),
+    outcome: r.outcome, rulesVersion: r.rulesVersion, cardCount: r.cards.length, indicators: r.cards.map((c) => c.indicator),
+    latencyMs: Math.round(r.timings.totalMs * 10) / 10, feedback: feedback.get(r.id) ?? { accepted: 0, overridden: 0 },
+  };
+}
+
+/** Idempotency key: the same card, outcome, timestamp and content is the same feedback, however often sent. */
+export function feedbackKey(f: FeedbackRow): string {
+  return createHash('sha256')
+    .update(JSON.stringify([f.cardUuid, f.outcome, f.outcomeTimestamp, [...f.acceptedSuggestions].sort(), f.overrideReason?.code ?? null, f.userComment ?? null]))
+    .digest('hex');
+}

@@ -1,0 +1,230 @@
+/**
+ * SQLite audit store (embedded default): better-sqlite3, WAL journal, synchronous=FULL so that a committed
+ * record survives a process kill or power loss. Writes are synchronous inside a transaction; the async
+ * interface wraps them so the PostgreSQL adapter fits beside it.
+ */
+import { mkdirSync } from 'node:fs';
+import { dirname } from 'node:path';
+import Database from 'better-sqlite3';
+import { chainHash, GENESIS } from './chain.js';
+import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
+import { summarize, feedbackKey } from './shared.js';
+
+const SCHEMA = `
+CREATE TABLE IF NOT EXISTS advice (
+  seq INTEGER PRIMARY KEY AUTOINCREMENT,
+  id TEXT NOT NULL UNIQUE,
+  recorded_at TEXT NOT NULL,
+  service TEXT NOT NULL,
+  hook TEXT NOT NULL,
+  hook_instance TEXT NOT NULL,
+  patient_id TEXT,
+  encounter_id TEXT,
+  outcome TEXT NOT NULL,
+  rules_version TEXT NOT NULL,
+  record TEXT NOT NULL,
+  prev_hash TEXT NOT NULL,
+  hash TEXT NOT NULL
+);
+CREATE INDEX IF NOT EXISTS advice_patient_time ON advice (patient_id, recorded_at);
+CREATE INDEX IF NOT EXISTS advice_time ON advice (recorded_at);
+CREATE TABLE IF NOT EXISTS advice_card (
+  card_uuid TEXT PRIMARY KEY,
+  advice_id TEXT NOT NULL REFERENCES advice(id),
+  card_kind TEXT NOT NULL,
+  service TEXT NOT NULL
+);
+CREATE TABLE IF NOT EXISTS feedback (
+  feedback_key TEXT PRIMARY KEY,
+  card_uuid TEXT NOT NULL REFERENCES advice_card(card_uuid),
+  outcome TEXT NOT NULL,
+  accepted_suggestions TEXT NOT NULL,
+  reason_system TEXT,
+  reason_code TEXT,
+  reason_display TEXT,
+  user_comment TEXT,
+  outcome_timestamp TEXT NOT NULL,
+  received_at TEXT NOT NULL,
+  service TEXT NOT NULL
+);
+CREATE INDEX IF NOT EXISTS feedback_card ON feedback (card_uuid);
+`;
+
+interface AdviceRow { seq: number; record: string; prev_hash: string; hash: string }
+
+export class SqliteAuditStore implements AuditStore {
+  readonly kind = 'sqlite';
+  private db: Database.Database;
+
+  constructor(readonly path: string) {
+    if (path !== ':memory:') mkdirSync(dirname(path), { recursive: true });
+    this.db = new Database(path);
+    this.db.pragma('journal_mode = WAL');
+    this.db.pragma('synchronous = FULL');
+    this.db.pragma('foreign_keys = ON');
+    this.db.pragma('busy_timeout = 5000');
+  }
+
+  async init(): Promise<void> {
+    this.db.exec(SCHEMA);
+    const check = this.db.pragma('quick_check', { simple: true });
+    if (check !== 'ok') throw new Error(`audit database ${this.path} failed its integrity check: ${String(check)}`);
+  }
+
+  async append(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
+    const tx = this.db.transaction((r: AdviceRecord) => {
+      const last = this.db.prepare('SELECT hash FROM advice ORDER BY seq DESC LIMIT 1').get() as { hash: string } | undefined;
+      const prev = last?.hash ?? GENESIS;
+      const hash = chainHash(prev, r);
+      const info = this.db
+        .prepare(
+          `INSERT INTO advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash)
+           VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+        )
+        .run(r.id, r.recordedAt, r.service, r.hook, r.hookInstance, r.patientId ?? null, r.encounterId ?? null, r.outcome, r.rulesVersion, JSON.stringify(r), prev, hash);
+      const card = this.db.prepare('INSERT INTO advice_card (card_uuid, advice_id, card_kind, service) VALUES (?, ?, ?, ?)');
+      for (const [uuid, kind] of Object.entries(r.cardKinds)) card.run(uuid, r.id, kind, r.service);
+      return { seq: Number(info.lastInsertRowid), hash };
+    });
+    return tx.immediate(rec);
+  }
+
+  async get(id: string): Promise<StoredAdvice | undefined> {
+    const row = this.db.prepare('SELECT seq, record, prev_hash, hash FROM advice WHERE id = ?').get(id) as AdviceRow | undefined;
+    return row ? { ...(JSON.parse(row.record) as AdviceRecord), seq: row.seq, prevHash: row.prev_hash, hash: row.hash } : undefined;
+  }
+
+  async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
+    const where: string[] = [];
+    const args: Array<string | number> = [];
+    if (q.patientId) (where.push('patient_id = ?'), args.push(q.patientId));
+    if (q.service) (where.push('service = ?'), args.push(q.service));
+    if (q.from) (where.push('recorded_at >= ?'), args.push(q.from));
+    if (q.to) (where.push('recorded_at <= ?'), args.push(q.to));
+    if (q.cursor) (where.push('seq < ?'), args.push(Number(q.cursor)));
+    const rows = this.db
+      .prepare(`SELECT seq, record, prev_hash, hash FROM advice ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY seq DESC LIMIT ?`)
+      .all(...args, q.limit + 1) as AdviceRow[];
+    const page = rows.slice(0, q.limit);
+    const counts = this.feedbackCounts(page.map((r) => (JSON.parse(r.record) as AdviceRecord).id));
+    const items = page.map((r) => summarize({ ...(JSON.parse(r.record) as AdviceRecord), seq: r.seq }, counts));
+    const last = page[page.length - 1];
+    return rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
+  }
+
+  private feedbackCounts(adviceIds: string[]): Map<string, { accepted: number; overridden: number }> {
+    const out = new Map<string, { accepted: number; overridden: number }>();
+    if (!adviceIds.length) return out;
+    const rows = this.db
+      .prepare(
+        `SELECT c.advice_id AS advice_id, f.outcome AS outcome, COUNT(*) AS n FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid
+         WHERE c.advice_id IN (${adviceIds.map(() => '?').join(',')}) GROUP BY c.advice_id, f.outcome`,
+      )
+      .all(...adviceIds) as Array<{ advice_id: string; outcome: string; n: number }>;
+    for (const r of rows) {
+      const c = out.get(r.advice_id) ?? { accepted: 0, overridden: 0 };
+      if (r.outcome === 'accepted') c.accepted += r.n;
+      else c.overridden += r.n;
+      out.set(r.advice_id, c);
+    }
+    return out;
+  }
+
+  async cardOwner(cardUuid: string): Promise<CardOwner | undefined> {
+    const r = this.db.prepare('SELECT advice_id, card_kind, service FROM advice_card WHERE card_uuid = ?').get(cardUuid) as
+      | { advice_id: string; card_kind: string; service: string }
+      | undefined;
+    return r ? { adviceId: r.advice_id, cardKind: r.card_kind, service: r.service } : undefined;
+  }
+
+  async addFeedback(rows: FeedbackRow[]): Promise<{ stored: number; duplicates: number }> {
+    const ins = this.db.prepare(
+      `INSERT OR IGNORE INTO feedback (feedback_key, card_uuid, outcome, accepted_suggestions, reason_system, reason_code, reason_display, user_comment, outcome_timestamp, received_at, service)
+       VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+    );
+    const tx = this.db.transaction((all: FeedbackRow[]) => {
+      let stored = 0;
+      for (const f of all) {
+        const info = ins.run(
+          feedbackKey(f), f.cardUuid, f.outcome, JSON.stringify(f.acceptedSuggestions), f.overrideReason?.system ?? null, f.overrideReason?.code ?? null,
+          f.overrideReason?.display ?? null, f.userComment ?? null, f.outcomeTimestamp, f.receivedAt, f.service,
+        );
+        stored += info.changes;
+      }
+      return { stored, duplicates: all.length - stored };
+    });
+    return tx.immediate(rows);
+  }
+
+  async feedbackFor(adviceId: string): Promise<FeedbackRow[]> {
+    const rows = this.db
+      .prepare(`SELECT f.* FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid WHERE c.advice_id = ? ORDER BY f.outcome_timestamp`)
+      .all(adviceId) as Array<Record<string, string | null>>;
+    return rows.map(rowToFeedback);
+  }
+
+  async feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats> {
+    const where: string[] = [];
+    const args: string[] = [];
+    if (q.service) (where.push('c.service = ?'), args.push(q.service));
+    if (q.from) (where.push('a.recorded_at >= ?'), args.push(q.from));
+    if (q.to) (where.push('a.recorded_at <= ?'), args.push(q.to));
+    const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
+    const kinds = this.db
+      .prepare(
+        `SELECT c.card_kind AS kind, COUNT(DISTINCT c.card_uuid) AS cards,
+           COUNT(DISTINCT CASE WHEN f.outcome = 'accepted' THEN f.card_uuid END) AS accepted,
+           COUNT(DISTINCT CASE WHEN f.outcome = 'overridden' THEN f.card_uuid END) AS overridden
+         FROM advice_card c JOIN advice a ON a.id = c.advice_id LEFT JOIN feedback f ON f.card_uuid = c.card_uuid ${w}
+         GROUP BY c.card_kind ORDER BY c.card_kind`,
+      )
+      .all(...args) as Array<{ kind: string; cards: number; accepted: number; overridden: number }>;
+    const reasons = this.db
+      .prepare(
+        `SELECT c.card_kind AS kind, f.reason_code AS code, MAX(f.reason_display) AS display, COUNT(DISTINCT f.card_uuid) AS n
+         FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid JOIN advice a ON a.id = c.advice_id
+         ${w ? `${w} AND` : 'WHERE'} f.outcome = 'overridden' GROUP BY c.card_kind, f.reason_code ORDER BY n DESC`,
+      )
+      .all(...args) as Array<{ kind: string; code: string | null; display: string | null; n: number }>;
+    return {
+      byKind: kinds.map((k) => ({
+        cardKind: k.kind, cards: k.cards, accepted: k.accepted, overridden: k.overridden,
+        overrideRate: k.accepted + k.overridden ? Math.round((k.overridden / (k.accepted + k.overridden)) * 1000) / 1000 : 0,
+      })),
+      byReason: reasons.map((r) => ({ cardKind: r.kind, reasonCode: r.code ?? '(comment only)', reasonDisplay: r.display ?? '', count: r.n })),
+    };
+  }
+
+  async verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }> {
+    let prev = GENESIS;
+    let checked = 0;
+    for (const row of this.db.prepare('SELECT seq, record, prev_hash, hash FROM advice ORDER BY seq').iterate() as IterableIterator<AdviceRow>) {
+      checked += 1;
+      if (row.prev_hash !== prev || chainHash(prev, JSON.parse(row.record) as AdviceRecord) !== row.hash) return { ok: false, checked, firstBadSeq: row.seq };
+      prev = row.hash;
+    }
+    return { ok: true, checked };
+  }
+
+  async ping(): Promise<void> {
+    this.db.prepare('SELECT 1').get();
+  }
+
+  async close(): Promise<void> {
+    if (this.db.open) this.db.close();
+  }
+}
+
+function rowToFeedback(r: Record<string, string | null>): FeedbackRow {
+  const reason = r['reason_code'] || r['reason_system'] || r['reason_display']
+    ? { ...(r['reason_system'] ? { system: r['reason_system'] } : {}), ...(r['reason_code'] ? { code: r['reason_code'] } : {}), ...(r['reason_display'] ? { display: r['reason_display'] } : {}) }
+    : undefined;
+  return {
+    cardUuid: String(r['card_uuid']), outcome: r['outcome'] === 'accepted' ? 'accepted' : 'overridden',
+    acceptedSuggestions: JSON.parse(String(r['accepted_suggestions'] ?? '[]')) as string[],
+    ...(reason ? { overrideReason: reason } : {}), ...(r['user_comment'] ? { userComment: r['user_comment'] } : {}),
+    outcomeTimestamp: String(r['outcome_timestamp']), receivedAt: String(r['received_at']), service: String(r['service']),
+  };
+}
+
+export { rowToFeedback };

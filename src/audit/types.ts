@@ -1,0 +1,107 @@
+/**
+ * The audit store interface. Asynchronous so that the SQLite (embedded default) and PostgreSQL (shared by
+ * several replicas) adapters fit the same shape. A record is committed before the response is sent.
+ * Records form a hash chain (each hash covers the previous hash and the record), so that a changed or
+ * removed record shows when the chain is verified.
+ */
+import type { Advice, Finding } from '../assess/types.js';
+import type { GatherOutcome } from '../fhir/gather.js';
+import type { Card } from '../hooks/schemas.js';
+import type { PatientSnapshot } from '../snapshot/types.js';
+
+export type AdviceOutcome = 'answered' | 'precondition-failed';
+
+export interface AdviceRecord {
+  id: string;
+  recordedAt: string;
+  service: string;
+  hook: string;
+  hookInstance: string;
+  userId?: string;
+  patientId?: string;
+  encounterId?: string;
+  outcome: AdviceOutcome;
+  rulesVersion: string;
+  snapshot?: PatientSnapshot;
+  findings: Finding[];
+  advice?: Advice;
+  cards: Card[];
+  /** Card uuid → card kind, for joining feedback. */
+  cardKinds: Record<string, string>;
+  gathering: GatherOutcome[];
+  timings: { totalMs: number; gatherMs: number; fhirWaitMs: number; assessMs: number };
+  /** Who called: the verified issuer (never the token). */
+  client?: { issuer?: string; tenant?: string; jti?: string };
+}
+
+export interface StoredAdvice extends AdviceRecord {
+  seq: number;
+  hash: string;
+  prevHash: string;
+}
+
+export interface AdviceSummary {
+  id: string;
+  seq: number;
+  recordedAt: string;
+  service: string;
+  hook: string;
+  hookInstance: string;
+  patientId?: string;
+  encounterId?: string;
+  outcome: AdviceOutcome;
+  rulesVersion: string;
+  cardCount: number;
+  indicators: string[];
+  latencyMs: number;
+  feedback: { accepted: number; overridden: number };
+}
+
+export interface AdviceQuery {
+  patientId?: string;
+  service?: string;
+  from?: string;
+  to?: string;
+  limit: number;
+  /** Opaque cursor from a previous page (the last seq seen). */
+  cursor?: string;
+}
+
+export interface FeedbackRow {
+  cardUuid: string;
+  outcome: 'accepted' | 'overridden';
+  acceptedSuggestions: string[];
+  overrideReason?: { system?: string; code?: string; display?: string };
+  userComment?: string;
+  outcomeTimestamp: string;
+  receivedAt: string;
+  service: string;
+}
+
+export interface CardOwner {
+  adviceId: string;
+  cardKind: string;
+  service: string;
+}
+
+export interface FeedbackStats {
+  byKind: Array<{ cardKind: string; cards: number; accepted: number; overridden: number; overrideRate: number }>;
+  byReason: Array<{ cardKind: string; reasonCode: string; reasonDisplay: string; count: number }>;
+}
+
+export interface AuditStore {
+  readonly kind: string;
+  init(): Promise<void>;
+  append(rec: AdviceRecord): Promise<{ seq: number; hash: string }>;
+  get(id: string): Promise<StoredAdvice | undefined>;
+  list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }>;
+  cardOwner(cardUuid: string): Promise<CardOwner | undefined>;
+  /** Stores feedback idempotently: a repeat of the same card, outcome and timestamp is a duplicate. */
+  addFeedback(rows: FeedbackRow[]): Promise<{ stored: number; duplicates: number }>;
+  feedbackFor(adviceId: string): Promise<FeedbackRow[]>;
+  feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats>;
+  /** Recomputes the hash chain; reports the first record that does not match. */
+  verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }>;
+  ping(): Promise<void>;
+  close(): Promise<void>;
+}

@@ -1,0 +1,34 @@
+/** `npm start`: runs the service on the configured port (embedded SQLite audit by default). */
+import { loadConfig, ConfigError } from '../config/config.js';
+import { buildService } from '../service.js';
+
+async function main(): Promise<void> {
+  let cfg;
+  try {
+    cfg = loadConfig();
+  } catch (e) {
+    process.stderr.write(`${(e as Error).message}\n`);
+    process.exit(2);
+  }
+  try {
+    const svc = await buildService(cfg);
+    const server = svc.app.listen(cfg.PORT, cfg.HOST, () => {
+      const addr = server.address();
+      const port = typeof addr === 'object' && addr ? addr.port : cfg.PORT;
+      svc.log.info({ port, auditStore: svc.store.kind, rulesVersion: svc.rulesVersion }, `Tidemark listening on http://localhost:${port}/cds-services`);
+    });
+    server.requestTimeout = 30_000;
+    const stop = (signal: string) => {
+      svc.log.info({ signal }, 'shutting down');
+      server.close(() => void svc.close().then(() => process.exit(0)));
+      setTimeout(() => process.exit(0), 5000).unref();
+    };
+    process.on('SIGTERM', () => stop('SIGTERM'));
+    process.on('SIGINT', () => stop('SIGINT'));
+  } catch (e) {
+    process.stderr.write(`${e instanceof ConfigError ? '' : 'start-up failed: '}${(e as Error).message}\n`);
+    process.exit(e instanceof ConfigError ? 2 : 1);
+  }
+}
+
+void main();

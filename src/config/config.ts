@@ -1,0 +1,82 @@
+/**
+ * Configuration: environment variables, plus an optional JSON file (TIDEMARK_CONFIG_FILE) for what does
+ * not fit in a variable (site thresholds, trusted issuers). Validated with zod at start; a bad value stops
+ * start-up with a message that names the variable.
+ */
+import { readFileSync } from 'node:fs';
+import { z } from 'zod';
+
+const intFrom = (min: number, max: number) => z.coerce.number().int().min(min).max(max);
+const boolFrom = z.enum(['true', 'false', '1', '0', 'yes', 'no']).transform((v) => v === 'true' || v === '1' || v === 'yes');
+
+/** Environment variables and what they mean; docs/configuration.md lists the same. */
+export const envSchema = z.object({
+  PORT: intFrom(0, 65535).default(8080),
+  HOST: z.string().min(1).default('0.0.0.0'),
+  /** Public base URL of this service as CDS clients call it (JWT aud, card links). */
+  TIDEMARK_PUBLIC_URL: z.url().optional(),
+  TIDEMARK_AUDIT_STORE: z.enum(['sqlite', 'postgres']).default('sqlite'),
+  TIDEMARK_SQLITE_PATH: z.string().min(1).default('data/tidemark-audit.sqlite'),
+  TIDEMARK_PG_URL: z.string().min(1).optional(),
+  /** Time budget for all FHIR queries of one call, ms (default 2 s). */
+  TIDEMARK_FHIR_BUDGET_MS: intFrom(50, 30_000).default(2000),
+  /** At most this many pages followed per searchset. */
+  TIDEMARK_FHIR_MAX_PAGES: intFrom(1, 50).default(5),
+  /** At most this many FHIR queries in flight per call. */
+  TIDEMARK_FHIR_CONCURRENCY: intFrom(1, 32).default(8),
+  TIDEMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  TIDEMARK_CONFIG_FILE: z.string().min(1).optional(),
+  /** Local trial mode: accept calls without a verified client JWT. Never in production. */
+  TIDEMARK_TRIAL_MODE: boolFrom.default(false),
+  /** Bearer token for the audit API (alternative to an audit-scoped JWT). */
+  TIDEMARK_AUDIT_TOKEN: z.string().min(16).optional(),
+  /** Largest accepted request body. */
+  TIDEMARK_BODY_LIMIT: z.string().regex(/^\d+(kb|mb)$/i).default('2mb'),
+});
+
+/** The optional JSON file: site threshold overrides and trusted CDS clients. */
+export const fileSchema = z
+  .object({
+    thresholds: z.record(z.string(), z.unknown()).optional(),
+    issuers: z.array(z.unknown()).optional(),
+    corsOrigins: z.array(z.string()).optional(),
+  })
+  .strict();
+
+export type EnvConfig = z.infer<typeof envSchema>;
+export type FileConfig = z.infer<typeof fileSchema>;
+export interface AppConfig extends EnvConfig {
+  file: FileConfig;
+}
+
+export class ConfigError extends Error {
+  override name = 'ConfigError';
+}
+
+function describe(issues: z.core.$ZodIssue[], prefix: string): string {
+  return issues.map((i) => `${prefix}${i.path.join('.') || '(root)'}: ${i.message}`).join('; ');
+}
+
+/** Reads and validates configuration. Throws ConfigError naming the variable at fault. */
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
+  const picked = Object.fromEntries(Object.keys(envSchema.shape).filter((k) => env[k] !== undefined && env[k] !== '').map((k) => [k, env[k]]));
+  const parsed = envSchema.safeParse(picked);
+  if (!parsed.success) throw new ConfigError(`invalid configuration: ${describe(parsed.error.issues, '')}`);
+  const cfg = parsed.data;
+  if (cfg.TIDEMARK_AUDIT_STORE === 'postgres' && !cfg.TIDEMARK_PG_URL) {
+    throw new ConfigError('invalid configuration: TIDEMARK_PG_URL is required when TIDEMARK_AUDIT_STORE=postgres');
+  }
+  let file: FileConfig = {};
+  if (cfg.TIDEMARK_CONFIG_FILE) {
+    let raw: unknown;
+    try {
+      raw = JSON.parse(readFileSync(cfg.TIDEMARK_CONFIG_FILE, 'utf8'));
+    } catch (e) {
+      throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE (${cfg.TIDEMARK_CONFIG_FILE}) could not be read as JSON: ${(e as Error).message}`);
+    }
+    const f = fileSchema.safeParse(raw);
+    if (!f.success) throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE ${describe(f.error.issues, '')}`);
+    file = f.data;
+  }
+  return { ...cfg, file };
+}

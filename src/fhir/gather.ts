@@ -1,0 +1,219 @@
+/**
+ * Data gathering (an edge: does I/O). Prefetch first; what is missing is queried from fhirServer with
+ * fhir-kit-client and the fhirAuthorization bearer token, in parallel, inside one time budget. Every
+ * failure becomes a GatherOutcome ("missing data" with its reason), never an exception.
+ *
+ * Prefetch cases (CDS Hooks 2.0 §Prefetch, cds-hooks/docs#366 and PR #600):
+ * - key absent: the client did not or could not fill it → query fhirServer ourselves;
+ * - null: the client has no data → no data, no query;
+ * - OperationOutcome: the client hit an error → query ourselves;
+ * - searchset Bundle: use it, following link[next] (bounded) when it is paged.
+ */
+import { Client } from 'fhir-kit-client';
+import type { FhirResource, Bundle, OperationOutcome } from 'fhir/r4.js';
+import type { HookRequest } from '../hooks/schemas.js';
+import { resolvePrefetchTemplate } from '../hooks/prefetch-tokens.js';
+import type { ServiceDefinition } from '../hooks/services.js';
+
+export type GatherStatus = 'ok' | 'no-data' | 'not-applicable' | 'unavailable' | 'http-error' | 'timeout' | 'network-error' | 'not-fhir' | 'truncated';
+
+export interface GatherOutcome {
+  key: string;
+  source: 'prefetch' | 'fhir-server' | 'none';
+  status: GatherStatus;
+  /** Resources kept from this key. */
+  count: number;
+  pages?: number;
+  ms?: number;
+  httpStatus?: number;
+  detail?: string;
+}
+
+export interface Gathered {
+  /** All resources, de-duplicated by type/id (the first copy wins). */
+  resources: FhirResource[];
+  outcomes: GatherOutcome[];
+  /** Required keys that neither prefetch nor a FHIR server could supply (→ 412). */
+  unobtainableRequired: string[];
+  /** Wall time of the gathering step, ms; fhirWaitMs = the longest single query. */
+  ms: number;
+  fhirWaitMs: number;
+}
+
+export interface GatherOptions {
+  budgetMs: number;
+  maxPages: number;
+  concurrency: number;
+  /** For tests: a fixed clock for timings. */
+  clock?: () => number;
+}
+
+type Fetcher = (url: string, signal: AbortSignal) => Promise<unknown>;
+
+/** A fhir-kit-client fetcher bound to one call's server and token. The token is used for this call only. */
+export function fhirFetcher(baseUrl: string, accessToken?: string): Fetcher {
+  const client = new Client({ baseUrl, ...(accessToken ? { bearerToken: accessToken } : {}) });
+  return (url, signal) => client.request(url, { options: { signal, headers: { accept: 'application/fhir+json' } } });
+}
+
+export async function gather(request: HookRequest, service: ServiceDefinition, opts: GatherOptions, makeFetcher = fhirFetcher): Promise<Gathered> {
+  const clock = opts.clock ?? (() => performance.now());
+  const t0 = clock();
+  const deadline = AbortSignal.timeout(opts.budgetMs);
+  const fetcher = request.fhirServer ? makeFetcher(request.fhirServer, request.fhirAuthorization?.access_token) : undefined;
+  const limit = semaphore(opts.concurrency);
+  const context = request.context;
+  const hook = service.hook;
+
+  const jobs = Object.entries(service.prefetch).map(async ([key, q]): Promise<{ outcome: GatherOutcome; resources: FhirResource[] }> => {
+    const resolved = resolvePrefetchTemplate(q.template, hook, context);
+    if (!resolved.ok) return { outcome: { key, source: 'none', status: 'not-applicable', count: 0, detail: resolved.reason }, resources: [] };
+    const has = request.prefetch !== undefined && Object.hasOwn(request.prefetch, key);
+    const given = has ? request.prefetch?.[key] : undefined;
+    if (has && given === null) return { outcome: { key, source: 'prefetch', status: 'no-data', count: 0, detail: 'the client sent null: no data' }, resources: [] };
+    let clientProblem: string | undefined;
+    if (given && given.resourceType !== 'OperationOutcome') {
+      const first = readAnswer(given, q.resourceTypes);
+      if (first.kind === 'resources') {
+        const next = first.next;
+        if (!next) return { outcome: { key, source: 'prefetch', status: first.resources.length ? 'ok' : 'no-data', count: first.resources.length }, resources: first.resources };
+        if (!fetcher) {
+          return { outcome: { key, source: 'prefetch', status: 'truncated', count: first.resources.length, detail: 'prefetch Bundle is paged but no fhirServer was given to follow link[next]' }, resources: first.resources };
+        }
+        return limit(() => follow(key, 'prefetch', fetcher, request.fhirServer as string, first.resources, next, 1, q.resourceTypes, opts, deadline, clock));
+      }
+      clientProblem = `prefetch value unusable: ${first.detail}`;
+    } else if (given) {
+      clientProblem = `the client reported an error: ${outcomeText(given as unknown as OperationOutcome)}`;
+    }
+    if (!fetcher) {
+      return { outcome: { key, source: 'none', status: 'unavailable', count: 0, detail: clientProblem ?? 'not prefetched and no fhirServer given' }, resources: [] };
+    }
+    return limit(async () => {
+      const started = clock();
+      try {
+        const body = await fetcher(resolved.value, deadline);
+        const ans = readAnswer(body, q.resourceTypes);
+        if (ans.kind === 'problem') return { outcome: { key, source: 'fhir-server', status: 'not-fhir', count: 0, ms: clock() - started, detail: ans.detail }, resources: [] };
+        if (!ans.next) {
+          return { outcome: { key, source: 'fhir-server', status: ans.resources.length ? 'ok' : 'no-data', count: ans.resources.length, pages: 1, ms: clock() - started }, resources: ans.resources };
+        }
+        return await follow(key, 'fhir-server', fetcher, request.fhirServer as string, ans.resources, ans.next, 1, q.resourceTypes, opts, deadline, clock, started);
+      } catch (e) {
+        return { outcome: { key, source: 'fhir-server', ms: clock() - started, count: 0, ...classify(e) }, resources: [] };
+      }
+    });
+  });
+
+  const results = await Promise.all(jobs);
+  const seen = new Set<string>();
+  const resources: FhirResource[] = [];
+  for (const r of results) {
+    for (const res of r.resources) {
+      const id = `${res.resourceType}/${res.id ?? ''}`;
+      if (res.id && seen.has(id)) continue;
+      seen.add(id);
+      resources.push(res);
+    }
+  }
+  const outcomes = results.map((r) => r.outcome);
+  const unobtainableRequired = service.required.filter((k) => {
+    const o = outcomes.find((x) => x.key === k);
+    return !o || o.status === 'unavailable' || o.status === 'not-applicable';
+  });
+  return {
+    resources,
+    outcomes,
+    unobtainableRequired,
+    ms: clock() - t0,
+    fhirWaitMs: Math.max(0, ...outcomes.filter((o) => o.source === 'fhir-server').map((o) => o.ms ?? 0)),
+  };
+}
+
+async function follow(
+  key: string, source: 'prefetch' | 'fhir-server', fetcher: Fetcher, base: string, acc: FhirResource[], next: string, pages: number,
+  types: readonly string[], opts: GatherOptions, deadline: AbortSignal, clock: () => number, started = clock(),
+): Promise<{ outcome: GatherOutcome; resources: FhirResource[] }> {
+  let url: string | undefined = next;
+  let n = pages;
+  const out = [...acc];
+  while (url) {
+    if (n >= opts.maxPages) {
+      return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: `stopped after ${opts.maxPages} pages` }, resources: out };
+    }
+    if (!sameOrigin(url, base)) {
+      return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: 'link[next] points outside fhirServer: not followed' }, resources: out };
+    }
+    try {
+      const ans = readAnswer(await fetcher(url, deadline), types);
+      n += 1;
+      if (ans.kind === 'problem') return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: `page ${n}: ${ans.detail}` }, resources: out };
+      out.push(...ans.resources);
+      url = ans.next;
+    } catch (e) {
+      const c = classify(e);
+      return { outcome: { key, source, count: out.length, pages: n, ms: clock() - started, ...c, status: 'truncated', detail: `page ${n + 1}: ${c.status}${c.detail ? `: ${c.detail}` : ''}` }, resources: out };
+    }
+  }
+  return { outcome: { key, source, status: out.length ? 'ok' : 'no-data', count: out.length, pages: n, ms: clock() - started }, resources: out };
+}
+
+type Answer = { kind: 'resources'; resources: FhirResource[]; next?: string } | { kind: 'problem'; detail: string };
+
+/** A read answer (one resource) or a searchset Bundle → resources of the expected types. */
+function readAnswer(body: unknown, types: readonly string[]): Answer {
+  if (!body || typeof body !== 'object' || Array.isArray(body)) return { kind: 'problem', detail: 'body is not a FHIR resource' };
+  const r = body as { resourceType?: unknown };
+  if (r.resourceType === 'Bundle') {
+    const b = body as Bundle;
+    if (b.entry !== undefined && !Array.isArray(b.entry)) return { kind: 'problem', detail: 'Bundle.entry is not an array' };
+    const resources = (b.entry ?? [])
+      .map((e) => e?.resource)
+      .filter((x): x is FhirResource => !!x && typeof x === 'object' && types.includes((x as FhirResource).resourceType));
+    const next = Array.isArray(b.link) ? b.link.find((l) => l?.relation === 'next')?.url : undefined;
+    return next ? { kind: 'resources', resources, next } : { kind: 'resources', resources };
+  }
+  if (typeof r.resourceType === 'string' && types.includes(r.resourceType)) return { kind: 'resources', resources: [body as FhirResource] };
+  if (r.resourceType === 'OperationOutcome') return { kind: 'problem', detail: `OperationOutcome: ${outcomeText(body as OperationOutcome)}` };
+  return { kind: 'problem', detail: typeof r.resourceType === 'string' ? `unexpected ${r.resourceType}` : 'body is not a FHIR resource' };
+}
+
+function outcomeText(o: OperationOutcome): string {
+  const t = (o.issue ?? []).map((i) => i.details?.text ?? i.diagnostics ?? i.code).filter(Boolean).join('; ');
+  return (t || 'no details').slice(0, 300);
+}
+
+function classify(e: unknown): { status: GatherStatus; httpStatus?: number; detail?: string } {
+  const err = e as { name?: string; message?: string; response?: { status?: number; data?: unknown }; cause?: { code?: string; name?: string } };
+  if (err?.name === 'TimeoutError' || err?.name === 'AbortError' || err?.cause?.name === 'TimeoutError') return { status: 'timeout', detail: 'time budget for FHIR queries ran out' };
+  const status = err?.response?.status;
+  if (typeof status === 'number') {
+    if (status >= 200 && status < 300) return { status: 'not-fhir', httpStatus: status, detail: 'body is not JSON' };
+    return { status: 'http-error', httpStatus: status, detail: `FHIR server answered ${status}` };
+  }
+  const code = err?.cause?.code;
+  return { status: 'network-error', detail: code ? `connection failed (${code})` : 'connection failed' };
+}
+
+function sameOrigin(url: string, base: string): boolean {
+  try {
+    return new URL(url, base).origin === new URL(base).origin;
+  } catch {
+    return false;
+  }
+}
+
+function semaphore(n: number) {
+  let active = 0;
+  const queue: Array<() => void> = [];
+  return async <T>(fn: () => Promise<T>): Promise<T> => {
+    if (active >= n) await new Promise<void>((r) => queue.push(r));
+    active += 1;
+    try {
+      return await fn();
+    } finally {
+      active -= 1;
+      queue.shift()?.();
+    }
+  };
+}

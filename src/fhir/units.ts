@@ -1,0 +1,76 @@
+/**
+ * Units: every measurement is converted to the canonical UCUM unit of its kind with @lhncbc/ucum-lhc
+ * (the UCUM reference library from the U.S. National Library of Medicine).
+ */
+import ucum from '@lhncbc/ucum-lhc';
+import { KIND_UNITS, type NumericKind } from './codes.js';
+
+const utils = ucum.UcumLhcUtils.getInstance();
+
+/**
+ * Molar masses for mass ↔ molar conversion.
+ * Lactate 90.08 g/mol (Sepsis-3: lactate > 2 mmol/L ≈ > 18 mg/dL; Singer et al., JAMA 2016).
+ * Creatinine 113.12 g/mol (gives the familiar 1 mg/dL = 88.4 µmol/L; common practice).
+ * Albumin ≈ 66,500 g/mol (human serum albumin; from memory), for the rare molar report (LOINC 54347-0).
+ */
+const MOLAR_MASS: Partial<Record<NumericKind, number>> = { lactate: 90.08, creatinine: 113.12, albumin: 66_500 };
+
+/**
+ * Spellings that are common in device and lab feeds but are not UCUM, mapped to their UCUM code (common practice).
+ * Anything not here must already be valid UCUM.
+ */
+const ALIASES: Record<string, string> = {
+  mmhg: 'mm[Hg]', 'mm hg': 'mm[Hg]', cmh2o: 'cm[H2O]', 'cm h2o': 'cm[H2O]',
+  bpm: '/min', 'beats/min': '/min', 'breaths/min': '/min', '/minute': '/min', 'per min': '/min',
+  lb: '[lb_av]', lbs: '[lb_av]', sec: 's', secs: 's', seconds: 's', ml: 'mL', l: 'L', 'l/min': 'L/min', 'ml/kg': 'mL/kg',
+  'mg/dl': 'mg/dL', 'g/dl': 'g/dL', 'g/l': 'g/L', 'mmol/l': 'mmol/L', 'umol/l': 'umol/L', 'µmol/l': 'umol/L', 'μmol/l': 'umol/L',
+  'in': '[in_i]', inch: '[in_i]', inches: '[in_i]', ratio: '1', fraction: '1',
+};
+
+export type Conversion = { ok: true; value: number; unit: string } | { ok: false; reason: 'unknown-unit' | 'incompatible-unit'; detail: string };
+
+/** The UCUM code for a unit as sent (Quantity.code when system is UCUM, else Quantity.unit), or undefined if unknown. */
+export function toUcum(unit: string): string | undefined {
+  const trimmed = unit.trim();
+  const alias = ALIASES[trimmed.toLowerCase()];
+  if (alias) return alias;
+  if (trimmed === '') return undefined;
+  const v = utils.validateUnitString(trimmed, false);
+  return v.status === 'valid' ? (v.ucumCode ?? trimmed) : undefined;
+}
+
+const cache = new Map<string, number | null>();
+
+/** Converts `value` in `unit` to the canonical unit of `kind`. Linear factors are cached; UCUM decides compatibility. */
+export function toCanonical(kind: NumericKind, value: number, unit: string | undefined): Conversion {
+  const target = KIND_UNITS[kind];
+  // Counts and grades: an annotation-only unit ({grade}), "1" or no unit at all are the same dimensionless unit.
+  if (target.startsWith('{')) {
+    if (unit === undefined || unit.trim() === '' || unit.trim() === '1' || /^\{[^}]*\}$/.test(unit.trim())) return { ok: true, value, unit: target };
+    return { ok: false, reason: 'incompatible-unit', detail: `"${unit}" is not a count or grade` };
+  }
+  if (unit === undefined || unit.trim() === '') return { ok: false, reason: 'unknown-unit', detail: `no unit given (expected ${target})` };
+  const from = toUcum(unit);
+  if (!from) return { ok: false, reason: 'unknown-unit', detail: `"${unit}" is not a UCUM unit` };
+  if (from === target) return { ok: true, value, unit: target };
+  const key = `${kind}|${from}`;
+  let factor = cache.get(key);
+  if (factor === undefined) {
+    const mw = MOLAR_MASS[kind];
+    const r = utils.convertUnitTo(from, 1, target, mw ? { molecularWeight: mw } : undefined);
+    factor = r.status === 'succeeded' && typeof r.toVal === 'number' && Number.isFinite(r.toVal) ? r.toVal : null;
+    cache.set(key, factor);
+  }
+  if (factor === null) return { ok: false, reason: 'incompatible-unit', detail: `"${unit}" cannot be converted to ${target}` };
+  return { ok: true, value: value * factor, unit: target };
+}
+
+/** Converts between two arbitrary UCUM units (used for volumes and rates of orders and administrations). */
+export function convert(value: number, unit: string | undefined, target: string): number | undefined {
+  if (unit === undefined) return undefined;
+  const from = toUcum(unit);
+  if (!from) return undefined;
+  if (from === target) return value;
+  const r = utils.convertUnitTo(from, value, target);
+  return r.status === 'succeeded' && typeof r.toVal === 'number' && Number.isFinite(r.toVal) ? r.toVal : undefined;
+}

@@ -1,0 +1,174 @@
+/**
+ * The express app factory (no listen). Routes parse, call one function, serialise; errors become an
+ * OperationOutcome and a status in exactly one place (the error handler at the bottom).
+ */
+import { readFile } from 'node:fs/promises';
+import { fileURLToPath } from 'node:url';
+import express, { type NextFunction, type Request, type RequestHandler, type Response } from 'express';
+import { z } from 'zod';
+import type { AuditStore } from '../audit/types.js';
+import { evaluateHook, type EvaluateDeps } from '../hooks/evaluate.js';
+import { recordFeedback } from '../hooks/feedback.js';
+import { discoveryDocument, findService } from '../hooks/services.js';
+import { HttpError, operationOutcome, zodIssues } from './errors.js';
+
+export interface AppDeps extends EvaluateDeps {
+  store: AuditStore;
+  bodyLimit: string;
+  /** Verifies the CDS client (JWT); pass-through when absent. */
+  cdsClientAuth?: RequestHandler;
+  /** Guards the audit API; pass-through when absent. */
+  auditAuth?: RequestHandler;
+  /** Extra readiness warnings (e.g. trial mode). */
+  readinessWarnings?: string[];
+  /** Extra routes mounted before the error handler (metrics). */
+  extraRoutes?: (app: express.Express) => void;
+  /** Wraps each request for metrics: called with route label and status when the response finishes. */
+  onResponse?: (route: string, service: string, status: number, seconds: number) => void;
+}
+
+const DOCS_DIR = fileURLToPath(new URL('../../docs/', import.meta.url));
+const pass: RequestHandler = (_req, _res, next) => next();
+
+const auditQuerySchema = z.object({
+  patient: z.string().regex(/^[A-Za-z0-9\-.]{1,64}$/).optional(),
+  service: z.string().min(1).max(64).optional(),
+  from: z.iso.datetime({ offset: true }).or(z.iso.date()).optional(),
+  to: z.iso.datetime({ offset: true }).or(z.iso.date()).optional(),
+  limit: z.coerce.number().int().min(1).max(200).default(50),
+  cursor: z.string().regex(/^\d+$/).optional(),
+});
+
+export function createApp(deps: AppDeps): express.Express {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', false);
+  const cds = deps.cdsClientAuth ?? pass;
+  const audit = deps.auditAuth ?? pass;
+  const json = express.json({ limit: deps.bodyLimit, type: ['application/json', 'application/fhir+json', 'application/*+json'] });
+
+  app.use((req, res, next) => {
+    res.setHeader('X-Content-Type-Options', 'nosniff');
+    res.setHeader('Cache-Control', 'no-store');
+    res.setHeader('Referrer-Policy', 'no-referrer');
+    res.setHeader('Content-Security-Policy', "default-src 'none'; frame-ancestors 'none'");
+    if (deps.onResponse) {
+      const t = process.hrtime.bigint();
+      res.on('finish', () => {
+        const route = (req.route?.path as string | undefined) ?? 'unmatched';
+        deps.onResponse?.(route, String(req.params?.['id'] ?? ''), res.statusCode, Number(process.hrtime.bigint() - t) / 1e9);
+      });
+    }
+    next();
+  });
+
+  app.get('/healthz', (_req, res) => {
+    res.json({ status: 'alive' });
+  });
+  app.get('/readyz', async (_req, res) => {
+    try {
+      await deps.store.ping();
+      res.json({ status: 'ready', auditStore: deps.store.kind, rulesVersion: deps.rulesVersion, ...(deps.readinessWarnings?.length ? { warnings: deps.readinessWarnings } : {}) });
+    } catch (e) {
+      res.status(503).json(operationOutcome('transient', `audit store not reachable: ${(e as Error).message}`.slice(0, 200)));
+    }
+  });
+
+  app.get('/cds-services', cds, (_req, res) => {
+    res.json(discoveryDocument());
+  });
+
+  app.post('/cds-services/:id', cds, json, async (req: Request, res: Response) => {
+    const service = findService(String(req.params['id']));
+    if (!service) throw new HttpError(404, 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
+    const result = await evaluateHook(service, req.body, deps, res.locals['client'] as never);
+    res.status(result.status).json(result.body);
+  });
+
+  app.post('/cds-services/:id/feedback', cds, json, async (req: Request, res: Response) => {
+    const service = findService(String(req.params['id']));
+    if (!service) throw new HttpError(404, 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
+    const result = await recordFeedback(service, req.body, deps.store, () => new Date());
+    res.status(200).json(result);
+  });
+
+  app.get('/audit/advice', audit, async (req: Request, res: Response) => {
+    const q = auditQuerySchema.safeParse(req.query);
+    if (!q.success) throw new HttpError(400, 'invalid', 'invalid audit query', zodIssues(q.error.issues, 'query'));
+    const { patient, service, from, to, limit, cursor } = q.data;
+    const page = await deps.store.list({
+      limit, ...(patient ? { patientId: patient } : {}), ...(service ? { service } : {}),
+      ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}), ...(cursor ? { cursor } : {}),
+    });
+    res.json({
+      items: page.items,
+      ...(page.nextCursor ? { next: `/audit/advice?${new URLSearchParams({ ...stringsOf(req.query), cursor: page.nextCursor }).toString()}` } : {}),
+    });
+  });
+  app.get('/audit/advice/:id', audit, async (req: Request, res: Response) => {
+    const rec = await deps.store.get(String(req.params['id']));
+    if (!rec) throw new HttpError(404, 'not-found', 'no advice record with that id');
+    res.json({ ...rec, feedback: await deps.store.feedbackFor(rec.id) });
+  });
+  app.get('/audit/feedback-stats', audit, async (req: Request, res: Response) => {
+    const q = auditQuerySchema.pick({ service: true, from: true, to: true }).safeParse(req.query);
+    if (!q.success) throw new HttpError(400, 'invalid', 'invalid audit query', zodIssues(q.error.issues, 'query'));
+    res.json(await deps.store.feedbackStats({
+      ...(q.data.service ? { service: q.data.service } : {}), ...(q.data.from ? { from: toInstant(q.data.from) } : {}), ...(q.data.to ? { to: toInstant(q.data.to, true) } : {}),
+    }));
+  });
+  app.get('/audit/verify', audit, async (_req, res) => {
+    res.json(await deps.store.verifyChain());
+  });
+
+  app.get('/docs/:page', async (req, res) => {
+    const page = String(req.params['page']);
+    if (!/^[a-z0-9-]+\.md$/.test(page)) throw new HttpError(404, 'not-found', 'no such page');
+    try {
+      res.type('text/markdown; charset=utf-8').send(await readFile(`${DOCS_DIR}${page}`, 'utf8'));
+    } catch {
+      throw new HttpError(404, 'not-found', 'no such page');
+    }
+  });
+
+  deps.extraRoutes?.(app);
+
+  app.use((_req, _res, next) => next(new HttpError(404, 'not-found', 'no such route')));
+  // The one place errors become a status and an OperationOutcome.
+  app.use((err: unknown, req: Request, res: Response, _next: NextFunction) => {
+    const e = err as { type?: string; status?: number; message?: string };
+    let status = 500;
+    let body;
+    if (err instanceof HttpError) {
+      status = err.status;
+      body = operationOutcome(err.code, err.message, err.diagnostics, status >= 500 ? 'fatal' : 'error');
+    } else if (e?.type === 'entity.parse.failed') {
+      status = 400;
+      body = operationOutcome('structure', 'the body is not valid JSON');
+    } else if (e?.type === 'entity.too.large') {
+      status = 413;
+      body = operationOutcome('too-costly', `the body is larger than ${deps.bodyLimit}`);
+    } else if (e?.type === 'charset.unsupported' || e?.type === 'encoding.unsupported') {
+      status = 415;
+      body = operationOutcome('not-supported', 'unsupported body encoding');
+    } else if (typeof e?.status === 'number' && e.status >= 400 && e.status < 500) {
+      status = e.status;
+      body = operationOutcome('invalid', 'the request could not be read');
+    } else {
+      deps.log.error({ err: e?.message?.slice(0, 300), path: req.path }, 'unexpected error');
+      body = operationOutcome('exception', 'internal error', [], 'fatal');
+    }
+    if (status >= 500) deps.log.error({ status, path: req.path }, 'request failed');
+    res.status(status).type('application/json').json(body);
+  });
+  return app;
+}
+
+function toInstant(v: string, endOfDay = false): string {
+  if (/^\d{4}-\d{2}-\d{2}$/.test(v)) return `${v}T${endOfDay ? '23:59:59.999' : '00:00:00.000'}Z`;
+  return new Date(v).toISOString();
+}
+
+function stringsOf(q: Request['query']): Record<string, string> {
+  return Object.fromEntries(Object.entries(q).filter(([k, v]) => typeof v === 'string' && k !== 'cursor') as Array<[string, string]>);
+}

@@ -1,0 +1,57 @@
+/**
+ * Wiring: configuration → audit store, catalogue, thresholds, logger → the express app. No listen here,
+ * so tests and the demo can run the very same app on a port of their choosing.
+ */
+import type { Logger } from 'pino';
+import { resolveThresholds } from './assess/thresholds.js';
+import { rulesVersion } from './assess/rules-version.js';
+import { SqliteAuditStore } from './audit/sqlite-store.js';
+import type { AuditStore } from './audit/types.js';
+import { loadCatalogue } from './cards/catalogue.js';
+import { ConfigError, type AppConfig } from './config/config.js';
+import { fhirFetcher } from './fhir/gather.js';
+import { createApp } from './http/app.js';
+import { createLogger } from './log.js';
+
+export interface Service {
+  app: ReturnType<typeof createApp>;
+  store: AuditStore;
+  log: Logger;
+  rulesVersion: string;
+  close(): Promise<void>;
+}
+
+export interface ServiceOptions {
+  /** Injected clock (tests and replay); defaults to the system clock. */
+  now?: () => Date;
+  store?: AuditStore;
+  log?: Logger;
+  makeFetcher?: typeof fhirFetcher;
+}
+
+export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): Promise<Service> {
+  const log = opts.log ?? createLogger(cfg.TIDEMARK_LOG_LEVEL);
+  let thresholds;
+  try {
+    thresholds = resolveThresholds(cfg.file.thresholds ?? {});
+  } catch (e) {
+    throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE thresholds: ${(e as Error).message}`);
+  }
+  const { catalogue, digest } = loadCatalogue();
+  const version = rulesVersion(digest, thresholds);
+  const store = opts.store ?? openStore(cfg);
+  await store.init();
+  const publicUrl = cfg.TIDEMARK_PUBLIC_URL ?? `http://localhost:${cfg.PORT}`;
+  const app = createApp({
+    store, catalogue, thresholds, rulesVersion: version, publicUrl, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
+    gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY },
+    now: opts.now ?? (() => new Date()),
+    ...(opts.makeFetcher ? { makeFetcher: opts.makeFetcher } : {}),
+  });
+  return { app, store, log, rulesVersion: version, close: () => store.close() };
+}
+
+function openStore(cfg: AppConfig): AuditStore {
+  if (cfg.TIDEMARK_AUDIT_STORE === 'postgres') throw new ConfigError('TIDEMARK_AUDIT_STORE=postgres is not wired yet');
+  return new SqliteAuditStore(cfg.TIDEMARK_SQLITE_PATH);
+}

@@ -1,0 +1,319 @@
+/**
+ * FHIR R4 resources → one PatientSnapshot. Pure: the clock is passed in.
+ * Every measurement gets its canonical unit, original value/unit, time, age and source reference.
+ * Unknown codes are ignored quietly only when they are not ours to read; everything we do read but cannot
+ * use (bad unit, impossible value, future time, entered-in-error…) is listed in `excluded` with a reason.
+ */
+import type {
+  Condition, Encounter, FhirResource, MedicationAdministration, MedicationRequest, Observation, ObservationComponent, Patient, Quantity, ServiceRequest,
+} from 'fhir/r4.js';
+import {
+  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, SNOMED, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
+  type DynamicMeasured, type NumericKind,
+} from '../fhir/codes.js';
+import { classifyFluid, classifyVasoactive, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
+import { convert, toCanonical } from '../fhir/units.js';
+import type {
+  CodedMeasurement, ConditionEntry, DraftOrder, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
+} from './types.js';
+
+/** A time this far past `now` is taken as clock skew between systems, not as a future time (common practice). */
+const FUTURE_SKEW_MS = 5 * 60_000;
+
+export interface SnapshotContext {
+  patientId: string;
+  encounterId?: string;
+  /** order-select `selections` (Type/id); absent means every draft order is in focus (order-sign). */
+  selections?: readonly string[];
+  draftOrders?: { entry?: Array<{ resource?: unknown }> };
+}
+
+/** Canonical unit of each dynamic-test measured variable. */
+const MEASURED_UNITS: Record<DynamicMeasured, string> = {
+  cardiacOutput: 'L/min', cardiacIndex: 'L/min/m2', strokeVolume: 'mL', pulsePressure: 'mm[Hg]', vti: 'cm', ppv: '%', svv: '%',
+};
+
+/** SNOMED CT answers some feeds use for rhythm (from memory; verify): 49436004 atrial fibrillation. */
+const SNOMED_RHYTHM: Record<string, string> = { '49436004': 'atrial-fibrillation' };
+
+export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotContext, now: Date): PatientSnapshot {
+  const nowMs = now.getTime();
+  const patientRef = `Patient/${ctx.patientId}`;
+  const excluded: Exclusion[] = [];
+  const measurements: Measurement[] = [];
+  const coded: CodedMeasurement[] = [];
+  const dynamicTests: DynamicTestResult[] = [];
+  const fluids: FluidGiven[] = [];
+  const vasoactives: VasoactiveDrug[] = [];
+  const conditions: ConditionEntry[] = [];
+  let patient: PatientSnapshot['patient'] = { ref: patientRef, sex: 'unknown' };
+  let encounter: PatientSnapshot['encounter'];
+
+  const age = (iso: string) => Math.round((nowMs - Date.parse(iso)) / 60_000);
+  const exclude = (ref: string, reason: Exclusion['reason'], detail: string, kind?: string) =>
+    excluded.push(kind ? { ref, reason, detail, kind } : { ref, reason, detail });
+  /** Checks a time: returns the UTC ISO instant, or undefined after recording why it is unusable. */
+  const checkTime = (ref: string, raw: string | undefined, kind?: string): string | undefined => {
+    if (!raw) return void exclude(ref, 'no-time', 'no effective time', kind);
+    const ms = Date.parse(raw);
+    if (Number.isNaN(ms)) return void exclude(ref, 'no-time', `"${raw}" is not a date-time`, kind);
+    if (ms > nowMs + FUTURE_SKEW_MS) return void exclude(ref, 'future-time', `${raw} is in the future`, kind);
+    return new Date(ms).toISOString();
+  };
+  const belongs = (ref: string, subject: { reference?: string | undefined } | undefined): boolean => {
+    if (subject?.reference === patientRef || subject?.reference?.endsWith(`/${patientRef}`)) return true;
+    exclude(ref, 'other-patient', `subject ${subject?.reference ?? '(none)'} is not ${patientRef}`);
+    return false;
+  };
+
+  for (const r of resources) {
+    if (!r || typeof r !== 'object') continue;
+    const ref = `${r.resourceType}/${r.id ?? '(no id)'}`;
+    try {
+      switch (r.resourceType) {
+        case 'Patient':
+          if (r.id === ctx.patientId) patient = readPatient(r, patientRef, now);
+          break;
+        case 'Encounter':
+          if (!ctx.encounterId || r.id === ctx.encounterId) encounter = readEncounter(r, ref);
+          break;
+        case 'Observation':
+          if (belongs(ref, r.subject)) readObservation(r, ref);
+          break;
+        case 'Condition':
+          if (belongs(ref, r.subject)) readCondition(r, ref);
+          break;
+        case 'MedicationAdministration':
+          if (belongs(ref, r.subject)) readAdministration(r, ref);
+          break;
+        case 'MedicationRequest':
+          if (belongs(ref, r.subject)) readActiveRequest(r, ref);
+          break;
+        default:
+          break;
+      }
+    } catch (e) {
+      exclude(ref, 'malformed', `could not be read: ${(e as Error).message}`.slice(0, 200));
+    }
+  }
+
+  function readObservation(o: Observation, ref: string): void {
+    const codings = o.code?.coding ?? [];
+    const numericKind = OBSERVATION_CODES.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind;
+    const codedKind = CODED_OBSERVATION_CODES.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind;
+    const dynamicKind = DYNAMIC_TEST_CODES.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind;
+    const componentKinds = (o.component ?? []).map((c) => ({ c, kind: OBSERVATION_CODES.find((k) => (c.code?.coding ?? []).some((x) => x.system === k.system && x.code === k.code))?.kind }));
+    const readable = numericKind || codedKind || dynamicKind || componentKinds.some((x) => x.kind);
+    if (!readable) return; // not one of ours: ignored (a search may return more than we asked)
+    const kindName = numericKind ?? codedKind ?? dynamicKind ?? 'panel';
+    if (o.status === 'entered-in-error') return void exclude(ref, 'entered-in-error', 'status is entered-in-error', kindName);
+    if (o.status === 'cancelled') return void exclude(ref, 'cancelled', 'status is cancelled', kindName);
+    if (o.status !== 'final' && o.status !== 'amended' && o.status !== 'corrected' && o.status !== 'preliminary') {
+      return void exclude(ref, 'no-value', `status ${String(o.status)} has no usable result`, kindName);
+    }
+    const effective = checkTime(ref, o.effectiveDateTime ?? o.effectiveInstant ?? o.effectivePeriod?.end ?? o.effectivePeriod?.start, kindName);
+    if (!effective) return;
+    const periodStart = o.effectivePeriod?.start && o.effectivePeriod.end ? new Date(Date.parse(o.effectivePeriod.start)).toISOString() : undefined;
+
+    if (dynamicKind) return readDynamic(o, ref, dynamicKind, effective);
+    if (codedKind) {
+      const cc = o.valueCodeableConcept?.coding ?? [];
+      const ours = cc.find((c) => c.system === TIDEMARK_ANSWERS && c.code && CODED_ANSWERS[codedKind].includes(c.code));
+      const snomed = codedKind === 'heartRhythm' ? cc.find((c) => c.system === SNOMED && c.code && SNOMED_RHYTHM[c.code]) : undefined;
+      const answer = ours?.code ?? (snomed?.code ? SNOMED_RHYTHM[snomed.code] : undefined);
+      const orig = ours ?? snomed ?? cc[0];
+      if (!answer || !orig) return void exclude(ref, 'unknown-answer', `answer ${cc.map((c) => `${c.system}|${c.code}`).join(', ') || '(none)'} is not one Tidemark reads`, codedKind);
+      coded.push({ kind: codedKind, answer, original: { system: orig.system ?? '', code: orig.code ?? '', ...(orig.display ? { display: orig.display } : {}) }, effective, ageMinutes: age(effective), ref });
+      return;
+    }
+    if (numericKind && o.valueQuantity) addQuantity(numericKind, o.valueQuantity, ref, effective, periodStart);
+    else if (numericKind && !componentKinds.some((x) => x.kind)) {
+      exclude(ref, 'no-value', o.dataAbsentReason ? `no value: ${conceptText(o.dataAbsentReason) || 'data absent'}` : 'no valueQuantity', numericKind);
+    }
+    for (const { c, kind } of componentKinds) {
+      if (!kind) continue;
+      if (c.valueQuantity) addQuantity(kind, c.valueQuantity, ref, effective, periodStart);
+      else exclude(ref, 'no-value', 'component has no valueQuantity', kind);
+    }
+  }
+
+  function addQuantity(kind: NumericKind, q: Quantity, ref: string, effective: string, periodStart: string | undefined): void {
+    if (typeof q.value !== 'number' || !Number.isFinite(q.value)) return void exclude(ref, 'no-value', 'value is not a number', kind);
+    if (q.comparator) return void exclude(ref, 'censored-value', `value is ${q.comparator}${q.value}: a limit, not a measurement`, kind);
+    const unit = q.system === 'http://unitsofmeasure.org' && q.code ? q.code : (q.unit ?? q.code);
+    const conv = toCanonical(kind, q.value, unit);
+    if (!conv.ok) return void exclude(ref, conv.reason, conv.detail, kind);
+    const [lo, hi] = KIND_BOUNDS[kind];
+    if (conv.value < lo || conv.value > hi) return void exclude(ref, 'impossible-value', `${round(conv.value)} ${conv.unit} is outside ${lo}–${hi}`, kind);
+    const code = OBSERVATION_CODES.find((c) => c.kind === kind);
+    measurements.push({
+      kind, value: conv.value, unit: conv.unit,
+      original: { value: q.value, unit: unit ?? '', code: code?.code ?? '', system: code?.system ?? '' },
+      effective, ...(periodStart ? { periodStart } : {}), ageMinutes: age(effective), ref,
+    });
+  }
+
+  function readDynamic(o: Observation, ref: string, kind: DynamicTestResult['kind'], effective: string): void {
+    const comp = (code: string): ObservationComponent | undefined =>
+      (o.component ?? []).find((c) => (c.code?.coding ?? []).some((x) => x.system === TIDEMARK_MARKERS && x.code === code));
+    const measuredCode = comp(DYNAMIC_COMPONENT.measured)?.valueCodeableConcept?.coding?.find((c) => c.system === TIDEMARK_ANSWERS)?.code;
+    const measured = DYNAMIC_MEASURED.find((m) => m === measuredCode);
+    if (!measured) return void exclude(ref, 'unknown-answer', `measured-variable ${measuredCode ?? '(none)'} is not one Tidemark reads`, kind);
+    const unit = MEASURED_UNITS[measured];
+    const values: number[] = [];
+    for (const code of [DYNAMIC_COMPONENT.before, DYNAMIC_COMPONENT.after]) {
+      const q = comp(code)?.valueQuantity;
+      if (!q || typeof q.value !== 'number' || !Number.isFinite(q.value)) return void exclude(ref, 'no-value', `component ${code} has no value`, kind);
+      const v = convert(q.value, q.system === 'http://unitsofmeasure.org' && q.code ? q.code : (q.unit ?? q.code), unit);
+      if (v === undefined) return void exclude(ref, 'incompatible-unit', `component ${code} unit "${q.unit ?? q.code ?? ''}" cannot be converted to ${unit}`, kind);
+      if (v < 0 || v > 1000) return void exclude(ref, 'impossible-value', `component ${code} value ${v} ${unit} is impossible`, kind);
+      values.push(v);
+    }
+    dynamicTests.push({ kind, measured, before: values[0] as number, after: values[1] as number, unit, effective, ageMinutes: age(effective), ref });
+  }
+
+  function readCondition(c: Condition, ref: string): void {
+    const verification = c.verificationStatus?.coding?.[0]?.code;
+    if (verification === 'entered-in-error') return void exclude(ref, 'entered-in-error', 'verificationStatus is entered-in-error');
+    if (verification === 'refuted') return void exclude(ref, 'cancelled', 'verificationStatus is refuted');
+    const clinicalStatus = c.clinicalStatus?.coding?.[0]?.code ?? 'unknown';
+    const codings = (c.code?.coding ?? []).filter((x) => x.system && x.code).map((x) => ({ system: x.system as string, code: x.code as string, ...(x.display ? { display: x.display } : {}) }));
+    conditions.push({ ref, codings, ...(c.code?.text ? { text: c.code.text } : {}), clinicalStatus, ...(c.onsetDateTime ? { onset: c.onsetDateTime } : {}) });
+  }
+
+  function readAdministration(m: MedicationAdministration, ref: string): void {
+    const fluidClass = classifyFluid(m.medicationCodeableConcept);
+    const vaso = fluidClass ? undefined : classifyVasoactive(m.medicationCodeableConcept);
+    if (!fluidClass && !vaso) return;
+    if (m.status === 'entered-in-error') return void exclude(ref, 'entered-in-error', 'status is entered-in-error', fluidClass ? 'fluid' : 'vasoactive');
+    if (m.status === 'not-done' || m.status === 'stopped' && !fluidClass) return void exclude(ref, 'cancelled', `status is ${m.status}`, fluidClass ? 'fluid' : 'vasoactive');
+    const startRaw = m.effectivePeriod?.start ?? m.effectiveDateTime;
+    const start = checkTime(ref, startRaw, fluidClass ? 'fluid' : 'vasoactive');
+    if (!start) return;
+    const endRaw = m.effectivePeriod?.end ?? m.effectiveDateTime;
+    const end = endRaw ? checkTime(ref, endRaw) : undefined;
+    if (vaso) {
+      const rate = m.dosage?.rateQuantity;
+      vasoactives.push({
+        ref, drug: vaso, start, ...(end && m.effectivePeriod?.end ? { end } : {}), status: m.status ?? 'unknown',
+        ...(rate && typeof rate.value === 'number' ? { rate: { value: rate.value, unit: rate.unit ?? rate.code ?? '' } } : {}),
+      });
+      return;
+    }
+    if (m.status !== 'completed' && m.status !== 'in-progress' && m.status !== 'stopped') return void exclude(ref, 'no-value', `status ${String(m.status)}`, 'fluid');
+    let volumeMl = convert(m.dosage?.dose?.value ?? NaN, m.dosage?.dose?.code ?? m.dosage?.dose?.unit, 'mL');
+    if ((volumeMl === undefined || Number.isNaN(volumeMl)) && m.dosage?.rateQuantity && end && m.effectivePeriod?.end) {
+      const perMin = convert(m.dosage.rateQuantity.value ?? NaN, m.dosage.rateQuantity.code ?? m.dosage.rateQuantity.unit, 'mL/min');
+      if (perMin !== undefined) volumeMl = perMin * ((Date.parse(end) - Date.parse(start)) / 60_000);
+    }
+    if (volumeMl === undefined || !Number.isFinite(volumeMl)) return void exclude(ref, 'no-value', 'no volume (dosage.dose in mL, or rate over a period)', 'fluid');
+    if (volumeMl <= 0 || volumeMl > 10_000) return void exclude(ref, 'impossible-value', `${round(volumeMl)} mL is not a plausible single administration`, 'fluid');
+    fluids.push({
+      ref, fluidClass: fluidClass as NonNullable<typeof fluidClass>, display: conceptText(m.medicationCodeableConcept) || 'IV fluid', volumeMl,
+      start, end: end ?? start, status: m.status, ageMinutes: age(end ?? start),
+    });
+  }
+
+  function readActiveRequest(m: MedicationRequest, ref: string): void {
+    if (m.status !== 'active') return;
+    const vaso = classifyVasoactive(m.medicationCodeableConcept);
+    if (!vaso) return;
+    const start = m.authoredOn ? checkTime(ref, m.authoredOn, 'vasoactive') : undefined;
+    const rate = m.dosageInstruction?.[0]?.doseAndRate?.[0]?.rateQuantity;
+    vasoactives.push({
+      ref, drug: vaso, start: start ?? now.toISOString(), status: 'active',
+      ...(rate && typeof rate.value === 'number' ? { rate: { value: rate.value, unit: rate.unit ?? rate.code ?? '' } } : {}),
+    });
+  }
+
+  measurements.sort((a, b) => (a.kind === b.kind ? Date.parse(b.effective) - Date.parse(a.effective) : a.kind < b.kind ? -1 : 1));
+  coded.sort((a, b) => Date.parse(b.effective) - Date.parse(a.effective));
+  dynamicTests.sort((a, b) => Date.parse(b.effective) - Date.parse(a.effective));
+  fluids.sort((a, b) => Date.parse(b.end) - Date.parse(a.end));
+
+  return {
+    patient, ...(encounter ? { encounter } : {}), now: now.toISOString(),
+    measurements, coded, dynamicTests, fluids, vasoactives, conditions,
+    draftOrders: readDraftOrders(ctx, excluded),
+    excluded,
+  };
+}
+
+function readPatient(p: Patient, ref: string, now: Date): PatientSnapshot['patient'] {
+  const sex = p.gender === 'male' || p.gender === 'female' || p.gender === 'other' ? p.gender : 'unknown';
+  const out: PatientSnapshot['patient'] = { ref, sex };
+  if (p.birthDate && /^\d{4}(-\d{2}(-\d{2})?)?$/.test(p.birthDate)) {
+    out.birthDate = p.birthDate;
+    const b = new Date(`${p.birthDate.length === 4 ? `${p.birthDate}-07-01` : p.birthDate.length === 7 ? `${p.birthDate}-15` : p.birthDate}T00:00:00Z`);
+    let years = now.getUTCFullYear() - b.getUTCFullYear();
+    if (now.getUTCMonth() < b.getUTCMonth() || (now.getUTCMonth() === b.getUTCMonth() && now.getUTCDate() < b.getUTCDate())) years -= 1;
+    if (years >= 0 && years < 130) out.ageYears = years;
+  }
+  return out;
+}
+
+function readEncounter(e: Encounter, ref: string): PatientSnapshot['encounter'] {
+  const start = e.period?.start && !Number.isNaN(Date.parse(e.period.start)) ? new Date(Date.parse(e.period.start)).toISOString() : undefined;
+  return { ref, ...(start ? { start } : {}), ...(e.status ? { status: e.status } : {}) };
+}
+
+/** Reads the draft orders of order-select / order-sign. Non-fluid orders are kept (isFluid false) so the caller can tell. */
+function readDraftOrders(ctx: SnapshotContext, excluded: Exclusion[]): DraftOrder[] {
+  const out: DraftOrder[] = [];
+  for (const e of ctx.draftOrders?.entry ?? []) {
+    const r = e?.resource as (MedicationRequest | ServiceRequest | { resourceType?: string; id?: string }) | undefined;
+    if (!r || typeof r !== 'object' || typeof r.resourceType !== 'string') continue;
+    const id = typeof r.id === 'string' ? r.id : '';
+    const ref = `${r.resourceType}/${id || '(no id)'}`;
+    const selected = ctx.selections ? ctx.selections.includes(`${r.resourceType}/${id}`) : true;
+    const base: DraftOrder = { ref, resourceType: r.resourceType, id, selected, isFluid: false, resource: r as Record<string, unknown> };
+    try {
+      if (r.resourceType === 'MedicationRequest') out.push(readFluidRequest(r as MedicationRequest, base));
+      else if (r.resourceType === 'ServiceRequest') out.push(readFluidService(r as ServiceRequest, base));
+      else out.push(base);
+    } catch (err) {
+      excluded.push({ ref, reason: 'malformed', detail: `draft order could not be read: ${(err as Error).message}`.slice(0, 200) });
+      out.push(base);
+    }
+  }
+  return out;
+}
+
+function readFluidRequest(m: MedicationRequest, base: DraftOrder): DraftOrder {
+  const fluidClass = classifyFluid(m.medicationCodeableConcept);
+  const dose = m.dosageInstruction?.[0];
+  const iv = isIntravenous(dose?.route);
+  if (!fluidClass || iv === false) return base;
+  const order: DraftOrder = { ...base, isFluid: true, fluidClass, display: conceptText(m.medicationCodeableConcept) || 'IV fluid' };
+  const dr = dose?.doseAndRate?.[0];
+  const durationMin = durationMinutes(dose?.timing?.repeat?.duration, dose?.timing?.repeat?.durationUnit);
+  if (durationMin !== undefined) order.durationMin = durationMin;
+  const doseMl = dr?.doseQuantity ? convert(dr.doseQuantity.value ?? NaN, dr.doseQuantity.code ?? dr.doseQuantity.unit, 'mL') : undefined;
+  if (doseMl !== undefined && Number.isFinite(doseMl) && doseMl > 0) return { ...order, volumeMl: doseMl };
+  const rate = dr?.rateQuantity ? convert(dr.rateQuantity.value ?? NaN, dr.rateQuantity.code ?? dr.rateQuantity.unit, 'mL/min') : undefined;
+  if (rate !== undefined && Number.isFinite(rate) && durationMin !== undefined) return { ...order, volumeMl: rate * durationMin };
+  if (rate !== undefined) return { ...order, volumeProblem: 'a rate with no duration: a continuous infusion, not a bolus volume' };
+  return { ...order, volumeProblem: 'no volume in dosageInstruction (doseQuantity in mL, or rate and duration)' };
+}
+
+function readFluidService(s: ServiceRequest, base: DraftOrder): DraftOrder {
+  const text = [conceptText(s.code), ...(s.orderDetail ?? []).map(conceptText)].join(' ');
+  const fluidClass = fluidClassFromText(text);
+  if (!fluidClass) return base;
+  const order: DraftOrder = { ...base, isFluid: true, fluidClass, display: conceptText(s.code) || 'IV fluid' };
+  const q = s.quantityQuantity;
+  const ml = q ? convert(q.value ?? NaN, q.code ?? q.unit, 'mL') : undefined;
+  if (ml !== undefined && Number.isFinite(ml) && ml > 0) return { ...order, volumeMl: ml };
+  return { ...order, volumeProblem: 'no volume in ServiceRequest.quantityQuantity (mL)' };
+}
+
+function durationMinutes(value: number | undefined, unit: string | undefined): number | undefined {
+  if (typeof value !== 'number' || !Number.isFinite(value) || value <= 0) return undefined;
+  const per: Record<string, number> = { s: 1 / 60, min: 1, h: 60, d: 1440 };
+  const f = unit ? per[unit] : undefined;
+  return f === undefined ? undefined : value * f;
+}
+
+function round(v: number): number {
+  return Math.round(v * 100) / 100;
+}
