@@ -158,7 +158,7 @@ export class SqliteAuditStore implements AuditStore {
 
   async feedbackFor(adviceId: string): Promise<FeedbackRow[]> {
     const rows = this.db
-      .prepare(`SELECT f.* FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid WHERE c.advice_id = ? ORDER BY f.outcome_timestamp`)
+      .prepare(`SELECT f.* FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid WHERE c.advice_id = ? ORDER BY f.outcome_timestamp, f.rowid`)
       .all(adviceId) as Array<Record<string, string | null>>;
     return rows.map(rowToFeedback);
   }
@@ -183,7 +183,7 @@ export class SqliteAuditStore implements AuditStore {
       .prepare(
         `SELECT c.card_kind AS kind, f.reason_code AS code, MAX(f.reason_display) AS display, COUNT(DISTINCT f.card_uuid) AS n
          FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid JOIN advice a ON a.id = c.advice_id
-         ${w ? `${w} AND` : 'WHERE'} f.outcome = 'overridden' GROUP BY c.card_kind, f.reason_code ORDER BY n DESC`,
+         ${w ? `${w} AND` : 'WHERE'} f.outcome = 'overridden' GROUP BY c.card_kind, f.reason_code ORDER BY n DESC, kind, code NULLS LAST`,
       )
       .all(...args) as Array<{ kind: string; code: string | null; display: string | null; n: number }>;
     return {
@@ -200,7 +200,7 @@ export class SqliteAuditStore implements AuditStore {
     let checked = 0;
     for (const row of this.db.prepare('SELECT seq, record, prev_hash, hash FROM advice ORDER BY seq').iterate() as IterableIterator<AdviceRow>) {
       checked += 1;
-      if (row.prev_hash !== prev || chainHash(prev, JSON.parse(row.record) as AdviceRecord) !== row.hash) return { ok: false, checked, firstBadSeq: row.seq };
+      if (row.prev_hash !== prev || recomputed(prev, row.record) !== row.hash) return { ok: false, checked, firstBadSeq: row.seq };
       prev = row.hash;
     }
     return { ok: true, checked };
@@ -212,6 +212,15 @@ export class SqliteAuditStore implements AuditStore {
 
   async close(): Promise<void> {
     if (this.db.open) this.db.close();
+  }
+}
+
+/** The hash a stored record text gives; a text that no longer parses gives none (it cannot match). */
+function recomputed(prev: string, recordText: string): string | undefined {
+  try {
+    return chainHash(prev, JSON.parse(recordText) as AdviceRecord);
+  } catch {
+    return undefined;
   }
 }
 

@@ -56,6 +56,19 @@ export function fhirFetcher(baseUrl: string, accessToken?: string): Fetcher {
   return (url, signal) => client.request(url, { options: { signal, headers: { accept: 'application/fhir+json' } } });
 }
 
+/** Settles when `p` does or when the budget runs out, whichever is first, even if the fetcher ignores the signal. */
+function withinBudget<T>(p: Promise<T>, signal: AbortSignal): Promise<T> {
+  if (signal.aborted) return Promise.reject(signal.reason as Error);
+  return new Promise<T>((resolve, reject) => {
+    const onAbort = () => reject(signal.reason as Error);
+    signal.addEventListener('abort', onAbort, { once: true });
+    p.then(
+      (v) => (signal.removeEventListener('abort', onAbort), resolve(v)),
+      (e: unknown) => (signal.removeEventListener('abort', onAbort), reject(e as Error)),
+    );
+  });
+}
+
 export async function gather(request: HookRequest, service: ServiceDefinition, opts: GatherOptions, makeFetcher = fhirFetcher): Promise<Gathered> {
   const clock = opts.clock ?? (() => performance.now());
   const t0 = clock();
@@ -92,7 +105,7 @@ export async function gather(request: HookRequest, service: ServiceDefinition, o
     return limit(async () => {
       const started = clock();
       try {
-        const body = await fetcher(resolved.value, deadline);
+        const body = await withinBudget(fetcher(resolved.value, deadline), deadline);
         const ans = readAnswer(body, q.resourceTypes);
         if (ans.kind === 'problem') return { outcome: { key, source: 'fhir-server', status: 'not-fhir', count: 0, ms: clock() - started, detail: ans.detail }, resources: [] };
         if (!ans.next) {
@@ -145,7 +158,7 @@ async function follow(
       return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: 'link[next] points outside fhirServer: not followed' }, resources: out };
     }
     try {
-      const ans = readAnswer(await fetcher(url, deadline), types);
+      const ans = readAnswer(await withinBudget(fetcher(url, deadline), deadline), types);
       n += 1;
       if (ans.kind === 'problem') return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: `page ${n}: ${ans.detail}` }, resources: out };
       out.push(...ans.resources);

@@ -209,7 +209,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     if (volumeMl === undefined || !Number.isFinite(volumeMl)) return void exclude(ref, 'no-value', 'no volume (dosage.dose in mL, or rate over a period)', 'fluid');
     if (volumeMl <= 0 || volumeMl > 10_000) return void exclude(ref, 'impossible-value', `${round(volumeMl)} mL is not a plausible single administration`, 'fluid');
     fluids.push({
-      ref, fluidClass: fluidClass as NonNullable<typeof fluidClass>, display: conceptText(m.medicationCodeableConcept) || 'IV fluid', volumeMl,
+      ref, fluidClass: fluidClass as NonNullable<typeof fluidClass>, display: conceptText(m.medicationCodeableConcept) || 'IV fluid', volumeMl: roundMl(volumeMl),
       start, end: end ?? start, status: m.status, ageMinutes: age(end ?? start),
     });
   }
@@ -289,9 +289,9 @@ function readFluidRequest(m: MedicationRequest, base: DraftOrder): DraftOrder {
   const durationMin = durationMinutes(dose?.timing?.repeat?.duration, dose?.timing?.repeat?.durationUnit);
   if (durationMin !== undefined) order.durationMin = durationMin;
   const doseMl = dr?.doseQuantity ? convert(dr.doseQuantity.value ?? NaN, dr.doseQuantity.code ?? dr.doseQuantity.unit, 'mL') : undefined;
-  if (doseMl !== undefined && Number.isFinite(doseMl) && doseMl > 0) return { ...order, volumeMl: doseMl };
+  if (doseMl !== undefined && Number.isFinite(doseMl) && doseMl > 0) return { ...order, volumeMl: roundMl(doseMl) };
   const rate = dr?.rateQuantity ? convert(dr.rateQuantity.value ?? NaN, dr.rateQuantity.code ?? dr.rateQuantity.unit, 'mL/min') : undefined;
-  if (rate !== undefined && Number.isFinite(rate) && durationMin !== undefined) return { ...order, volumeMl: rate * durationMin };
+  if (rate !== undefined && Number.isFinite(rate) && durationMin !== undefined) return { ...order, volumeMl: roundMl(rate * durationMin) };
   if (rate !== undefined) return { ...order, volumeProblem: 'a rate with no duration: a continuous infusion, not a bolus volume' };
   return { ...order, volumeProblem: 'no volume in dosageInstruction (doseQuantity in mL, or rate and duration)' };
 }
@@ -303,7 +303,7 @@ function readFluidService(s: ServiceRequest, base: DraftOrder): DraftOrder {
   const order: DraftOrder = { ...base, isFluid: true, fluidClass, display: conceptText(s.code) || 'IV fluid' };
   const q = s.quantityQuantity;
   const ml = q ? convert(q.value ?? NaN, q.code ?? q.unit, 'mL') : undefined;
-  if (ml !== undefined && Number.isFinite(ml) && ml > 0) return { ...order, volumeMl: ml };
+  if (ml !== undefined && Number.isFinite(ml) && ml > 0) return { ...order, volumeMl: roundMl(ml) };
   return { ...order, volumeProblem: 'no volume in ServiceRequest.quantityQuantity (mL)' };
 }
 
@@ -312,6 +312,11 @@ function durationMinutes(value: number | undefined, unit: string | undefined): n
   const per: Record<string, number> = { s: 1 / 60, min: 1, h: 60, d: 1440 };
   const f = unit ? per[unit] : undefined;
   return f === undefined ? undefined : value * f;
+}
+
+/** Volumes to 0.1 mL: unit conversion leaves binary fractions (249.99999…) that mean nothing clinically. */
+function roundMl(v: number): number {
+  return Math.round(v * 10) / 10;
 }
 
 function round(v: number): number {

@@ -24,7 +24,8 @@ export function staleText(ageMin: number, windowMin: number): string {
 export interface AssessedArgs {
   ruleId: string;
   topic?: FindingTopic;
-  direction: 'for' | 'against' | 'neutral';
+  /** Omitted for perfusion context, which says nothing about responsiveness by itself. */
+  direction?: 'for' | 'against' | 'neutral';
   weight: 'dynamic' | 'static-extreme' | 'static' | 'context';
   text: string;
   evidence: Evidence[];
@@ -34,7 +35,7 @@ export interface AssessedArgs {
 
 export function assessed(a: AssessedArgs): Finding {
   return {
-    ruleId: a.ruleId, topic: a.topic ?? 'responsiveness', status: 'assessed', direction: a.direction, weight: a.weight,
+    ruleId: a.ruleId, topic: a.topic ?? 'responsiveness', status: 'assessed', ...(a.direction ? { direction: a.direction } : {}), weight: a.weight,
     text: a.text, values: { freshness: 'fresh', ...a.values }, evidence: sortEvidence(a.evidence), source: a.source,
   };
 }
@@ -56,18 +57,18 @@ export function notAssessed(a: NotAssessedArgs): Finding {
   };
 }
 
+export type UnusableSelection<T> = Exclude<Selection<T>, { state: 'fresh' }>;
+
 /**
- * The not-assessed finding for a selection that is missing, stale or invalid; undefined when it is fresh.
+ * The not-assessed finding for a selection that is missing, stale or invalid.
  * `label` names the marker ("PPV"), `evidenceOf` turns the seen item into evidence.
  */
 export function unusableFinding<T>(
-  sel: Selection<T>,
+  sel: UnusableSelection<T>,
   args: { ruleId: string; topic?: FindingTopic; label: string; source: string; evidenceOf: (item: T) => Evidence },
-): Finding | undefined {
+): Finding {
   const base = { ruleId: args.ruleId, source: args.source, ...(args.topic ? { topic: args.topic } : {}) };
   switch (sel.state) {
-    case 'fresh':
-      return undefined;
     case 'missing':
       return notAssessed({
         ...base, text: `${args.label}: not assessed (none recorded)`, reason: `no ${args.label} recorded`,

@@ -4,10 +4,11 @@
  * the pressure of abdominal compartment syndrome) severe, since volume raises IAP further. Abdominal
  * perfusion pressure (MAP − IAP) and filtration gradient (MAP − 2·IAP) are given when a MAP is at hand.
  *
- * MAP: the measured mean pressure nearest the IAP; otherwise DBP + (SBP − DBP)/3 computed here (the
- * conventional approximation) until the shared mean-arterial-pressure formula is available.
+ * MAP: the measured mean pressure nearest the IAP; otherwise estimated from SBP and DBP charted together
+ * (physiology/mean-arterial-pressure.ts, the conventional approximation).
  */
 import type { Measurement, PatientSnapshot } from '../../snapshot/types.js';
+import { meanArterialPressureMmHg } from '../../physiology/mean-arterial-pressure.js';
 import { abdominalPerfusionPressure, filtrationGradient, iahGrade, iahGradeLabel } from '../../physiology/intra-abdominal-pressure.js';
 import type { Evidence, Finding } from '../types.js';
 import { assessed, notAssessed } from './finding.js';
@@ -34,8 +35,8 @@ function mapNear(snapshot: PatientSnapshot, now: Date, atMs: number, withinMs: n
   const sbp = nearest(seriesOf(snapshot, 'systolicBp', now).items, atMs, withinMs);
   if (!sbp) return undefined;
   const dbp = nearest(seriesOf(snapshot, 'diastolicBp', now).items, timeMs(sbp.effective), 5 * 60_000);
-  if (!dbp) return undefined;
-  return { mapMmHg: dbp.value + (sbp.value - dbp.value) / 3, measured: false, evidence: [evidenceOf(sbp, now), evidenceOf(dbp, now)] };
+  if (!dbp || sbp.value < dbp.value) return undefined;
+  return { mapMmHg: meanArterialPressureMmHg(sbp.value, dbp.value), measured: false, evidence: [evidenceOf(sbp, now), evidenceOf(dbp, now)] };
 }
 
 export function abdominalPressureRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {

@@ -101,6 +101,8 @@ export const toleranceThresholdsSchema = z
     // ── Kidneys ──────────────────────────────────────────────────────────────────────────────────
     /** The latest urine record must end this recently for the urine criterion (common practice: hourly charting). */
     urineRecencyMinutes: minutes(180),
+    /** A urine amount charted without a period covers the time since the previous urine record, if that is at most this long (common practice: charting every 1–4 h). */
+    urinePointMaxGapMinutes: minutes(240),
     /** A KDIGO window counts only when charting covers at least this fraction of it (common practice). */
     urineCoverageFraction: z.number().gt(0).max(1).default(0.9),
     /** Creatinine freshness (common practice: daily chemistry). */

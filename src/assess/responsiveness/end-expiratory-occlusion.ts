@@ -1,0 +1,31 @@
+/**
+ * Rule 'responsiveness.end-expiratory-occlusion': 15-s end-expiratory hold. CI, CO or SV rise > 5 % (dynamic);
+ * by echo, VTI rise ≥ 9 % (dynamic); by pulse pressure > 5 % (weak, weighed as static).
+ */
+import type { ResponsivenessRule } from './context.js';
+import { assessDynamicTest, type ReadOut } from './dynamic-test.js';
+
+export const END_EXPIRATORY_OCCLUSION_RULE_ID = 'responsiveness.end-expiratory-occlusion';
+const SOURCE = 'End-expiratory occlusion, CI rise > 5 %: Monnet X et al., Crit Care Med 2009;37:951–956 (from memory)';
+
+export const endExpiratoryOcclusionRule: ResponsivenessRule = {
+  id: END_EXPIRATORY_OCCLUSION_RULE_ID,
+  run: (ctx) => {
+    const flow: ReadOut = { compare: 'relative', threshold: ctx.t.eeoFlowRisePercent, strict: true, weight: 'dynamic', source: SOURCE };
+    return assessDynamicTest(ctx, {
+      ruleId: END_EXPIRATORY_OCCLUSION_RULE_ID, kind: 'endExpiratoryOcclusion', label: 'End-expiratory occlusion', source: SOURCE,
+      readOuts: {
+        cardiacIndex: flow, cardiacOutput: flow, strokeVolume: flow,
+        vti: {
+          compare: 'relative', threshold: ctx.t.eeoVtiRisePercent, strict: false, weight: 'dynamic',
+          source: 'End-expiratory occlusion by echo, VTI rise ≥ 9 %: echocardiographic study, Crit Care 2018 (PMC5804059; authors from memory: Georges D et al.)',
+        },
+        pulsePressure: {
+          compare: 'relative', threshold: ctx.t.eeoPulsePressureRisePercent, strict: true, weight: 'static',
+          note: 'judged by pulse pressure only: weak evidence, weighed as static',
+          source: 'End-expiratory occlusion, pulse pressure rise > 5 %: Monnet X et al., Crit Care Med 2009 (from memory)',
+        },
+      },
+    });
+  },
+};

@@ -1,0 +1,27 @@
+/**
+ * Rule 'responsiveness.plr': passive leg raising. Flow read-out (CO, CI, SV, VTI) rise ≥ 10 %: dynamic.
+ * Judged by pulse pressure alone it is weak (sens 0.56, spec 0.83, AUC 0.77 in Monnet 2016): weighed as static.
+ */
+import type { ResponsivenessRule } from './context.js';
+import { assessDynamicTest, type ReadOut } from './dynamic-test.js';
+
+export const PLR_RULE_ID = 'responsiveness.plr';
+const FLOW_SOURCE = 'PLR-induced rise in cardiac output ≥ 10 %: Monnet, Marik, Teboul, Intensive Care Med 2016;42:1935–1947';
+
+export const plrRule: ResponsivenessRule = {
+  id: PLR_RULE_ID,
+  run: (ctx) => {
+    const flow: ReadOut = { compare: 'relative', threshold: ctx.t.plrFlowRisePercent, strict: false, weight: 'dynamic', source: FLOW_SOURCE };
+    return assessDynamicTest(ctx, {
+      ruleId: PLR_RULE_ID, kind: 'plr', label: 'Passive leg raising', source: FLOW_SOURCE,
+      readOuts: {
+        cardiacOutput: flow, cardiacIndex: flow, strokeVolume: flow, vti: flow,
+        pulsePressure: {
+          compare: 'relative', threshold: ctx.t.plrPulsePressureRisePercent, strict: false, weight: 'static',
+          note: 'judged by pulse pressure only: weak evidence, weighed as static; PLR needs real-time cardiac output monitoring',
+          source: 'PLR by pulse pressure is a poor surrogate (AUC 0.77): Monnet, Marik, Teboul, Intensive Care Med 2016; pulse pressure rise ≥ 12 %: Monnet et al., Crit Care Med 2006;34:1402 (from memory)',
+        },
+      },
+    });
+  },
+};

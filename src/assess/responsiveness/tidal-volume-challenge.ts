@@ -1,0 +1,27 @@
+/**
+ * Rule 'responsiveness.tidal-volume-challenge': Vt 6 → 8 mL/kg PBW for 1 min; absolute PPV rise ≥ 3.5 points
+ * (SVV ≥ 2.5 points). Made for low tidal volume, so the Vt condition does not apply; the result still needs
+ * controlled ventilation without spontaneous effort and sinus rhythm (the PPV reading itself needs them).
+ */
+import type { ResponsivenessRule } from './context.js';
+import { assessDynamicTest } from './dynamic-test.js';
+import { checkRhythm, checkVentilation } from './heart-lung-validity.js';
+
+export const TIDAL_VOLUME_CHALLENGE_RULE_ID = 'responsiveness.tidal-volume-challenge';
+const SOURCE = 'Tidal volume challenge, absolute ΔPPV ≥ 3.5 points: Myatra SN et al., Crit Care Med 2017;45:415–421';
+
+export const tidalVolumeChallengeRule: ResponsivenessRule = {
+  id: TIDAL_VOLUME_CHALLENGE_RULE_ID,
+  run: (ctx) =>
+    assessDynamicTest(ctx, {
+      ruleId: TIDAL_VOLUME_CHALLENGE_RULE_ID, kind: 'tidalVolumeChallenge', label: 'Tidal volume challenge', source: SOURCE,
+      gate: (c) => [checkVentilation(c), checkRhythm(c)],
+      readOuts: {
+        ppv: { compare: 'absolute', threshold: ctx.t.tidalVolumeChallengePpvRisePoints, strict: false, weight: 'dynamic', source: SOURCE },
+        svv: {
+          compare: 'absolute', threshold: ctx.t.tidalVolumeChallengeSvvRisePoints, strict: false, weight: 'dynamic',
+          source: 'Tidal volume challenge, absolute ΔSVV ≥ 2.5 points: Myatra SN et al., Crit Care Med 2017 (from memory)',
+        },
+      },
+    }),
+};

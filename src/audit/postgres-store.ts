@@ -1,0 +1,323 @@
+/**
+ * PostgreSQL audit store: the shared store when several service replicas run behind a load balancer.
+ * Same tables and the same answers as the SQLite adapter (sqlite-store.ts), in one schema of our own.
+ *
+ * Why it is built this way:
+ * - The hash chain must stay linear however many replicas append at once, so each append takes a
+ *   transaction-scoped advisory lock keyed on the schema, reads the last hash, inserts, and commits
+ *   (the lock is released at commit). seq is an identity column taken under that lock, so seq order is chain order.
+ * - The record is kept as the JSON text it was hashed from (a text column, not jsonb, which would reorder
+ *   keys and normalise numbers), so verifyChain recomputes the same hash.
+ * - Text that is compared or sorted (recorded_at, card_kind, reason_code, outcome_timestamp) uses the "C"
+ *   collation: byte order, as SQLite's BINARY, whatever the database's default collation is.
+ */
+import { createHash } from 'node:crypto';
+import pg from 'pg';
+import type { PoolClient } from 'pg';
+import { chainHash, GENESIS } from './chain.js';
+import { rowToFeedback } from './sqlite-store.js';
+import { feedbackKey, summarize } from './shared.js';
+import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
+
+export interface PostgresAuditStoreOptions {
+  /** Schema that holds the tables (default `tidemark`). Letters, digits and underscores only. */
+  schema?: string;
+  /** Connections in this replica's pool (default 10). */
+  poolSize?: number;
+  /** Called when an idle pooled connection fails (e.g. the server restarted); the pool replaces it. */
+  onError?: (err: Error) => void;
+}
+
+const SCHEMA_NAME = /^[A-Za-z_][A-Za-z0-9_]{0,62}$/;
+const VERIFY_PAGE = 500;
+
+/** A signed 64-bit advisory lock key from a purpose and the schema name: the same in every replica. */
+function lockKey(purpose: string, schema: string): string {
+  return createHash('sha256').update(`tidemark-audit:${purpose}:${schema}`).digest().readBigInt64BE(0).toString();
+}
+
+function ddl(s: string): string[] {
+  return [
+    `CREATE TABLE IF NOT EXISTS ${s}.advice (
+      seq BIGINT GENERATED ALWAYS AS IDENTITY PRIMARY KEY,
+      id TEXT NOT NULL UNIQUE,
+      recorded_at TEXT COLLATE "C" NOT NULL,
+      service TEXT NOT NULL,
+      hook TEXT NOT NULL,
+      hook_instance TEXT NOT NULL,
+      patient_id TEXT,
+      encounter_id TEXT,
+      outcome TEXT NOT NULL,
+      rules_version TEXT NOT NULL,
+      record TEXT NOT NULL,
+      prev_hash TEXT NOT NULL,
+      hash TEXT NOT NULL
+    )`,
+    `CREATE INDEX IF NOT EXISTS advice_patient_time ON ${s}.advice (patient_id, recorded_at)`,
+    `CREATE INDEX IF NOT EXISTS advice_time ON ${s}.advice (recorded_at)`,
+    `CREATE TABLE IF NOT EXISTS ${s}.advice_card (
+      card_uuid TEXT PRIMARY KEY,
+      advice_id TEXT NOT NULL REFERENCES ${s}.advice(id),
+      card_kind TEXT COLLATE "C" NOT NULL,
+      service TEXT NOT NULL
+    )`,
+    `CREATE INDEX IF NOT EXISTS advice_card_advice ON ${s}.advice_card (advice_id)`,
+    `CREATE TABLE IF NOT EXISTS ${s}.feedback (
+      feedback_key TEXT PRIMARY KEY,
+      card_uuid TEXT NOT NULL REFERENCES ${s}.advice_card(card_uuid),
+      outcome TEXT NOT NULL,
+      accepted_suggestions TEXT NOT NULL,
+      reason_system TEXT,
+      reason_code TEXT COLLATE "C",
+      reason_display TEXT,
+      user_comment TEXT,
+      outcome_timestamp TEXT COLLATE "C" NOT NULL,
+      received_at TEXT NOT NULL,
+      service TEXT NOT NULL,
+      arrival BIGINT GENERATED ALWAYS AS IDENTITY
+    )`,
+    `CREATE INDEX IF NOT EXISTS feedback_card ON ${s}.feedback (card_uuid)`,
+  ];
+}
+
+/** Every table and index ddl() makes. */
+const RELATIONS = ['advice', 'advice_patient_time', 'advice_time', 'advice_card', 'advice_card_advice', 'feedback', 'feedback_card'];
+
+interface AdviceRow { seq: string; record: string; prev_hash: string; hash: string }
+
+export class PostgresAuditStore implements AuditStore {
+  readonly kind = 'postgres';
+  readonly schema: string;
+  private readonly pool: pg.Pool;
+  /** Quoted schema identifier for SQL text. */
+  private readonly s: string;
+  private readonly chainLock: string;
+  private readonly initLock: string;
+  private closed = false;
+
+  constructor(connectionString: string, opts: PostgresAuditStoreOptions = {}) {
+    const schema = opts.schema ?? 'tidemark';
+    if (!SCHEMA_NAME.test(schema)) throw new Error(`audit schema name ${JSON.stringify(schema)} must be letters, digits and underscores (at most 63)`);
+    this.schema = schema;
+    this.s = `"${schema}"`;
+    this.chainLock = lockKey('chain', schema);
+    this.initLock = lockKey('init', schema);
+    this.pool = new pg.Pool({ connectionString, max: opts.poolSize ?? 10, application_name: 'tidemark-audit' });
+    // Without a listener an idle connection's error would crash the process; the next query reports it instead.
+    this.pool.on('error', (err) => opts.onError?.(err));
+  }
+
+  private async tx<T>(fn: (c: PoolClient) => Promise<T>): Promise<T> {
+    const c = await this.pool.connect();
+    try {
+      await c.query('BEGIN');
+      const out = await fn(c);
+      await c.query('COMMIT');
+      c.release();
+      return out;
+    } catch (e) {
+      try {
+        await c.query('ROLLBACK');
+        c.release();
+      } catch (rollbackError) {
+        c.release(rollbackError as Error); // a broken connection is dropped, not returned to the pool
+      }
+      throw e;
+    }
+  }
+
+  async init(): Promise<void> {
+    await this.tx(async (c) => {
+      // Serialises two replicas starting at once: CREATE ... IF NOT EXISTS alone can still race.
+      await c.query('SELECT pg_advisory_xact_lock($1::bigint)', [this.initLock]);
+      const found = await c.query('SELECT 1 FROM pg_namespace WHERE nspname = $1', [this.schema]);
+      // Only create the schema when it is absent, so a pre-created schema needs no CREATE right on the database.
+      if (!found.rowCount) await c.query(`CREATE SCHEMA ${this.s}`);
+      // Likewise the DDL runs only when a table or index is missing, so a role with no CREATE right on the
+      // schema (only SELECT and INSERT on the tables: append-only) can start against tables made beforehand.
+      const have = await c.query<{ n: number }>(
+        'SELECT COUNT(*)::int AS n FROM pg_class r JOIN pg_namespace s ON s.oid = r.relnamespace WHERE s.nspname = $1 AND r.relname = ANY($2::text[])',
+        [this.schema, RELATIONS],
+      );
+      if ((have.rows[0]?.n ?? 0) < RELATIONS.length) for (const stmt of ddl(this.s)) await c.query(stmt);
+    });
+  }
+
+  async append(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
+    const json = JSON.stringify(rec);
+    return this.tx(async (c) => {
+      await c.query('SELECT pg_advisory_xact_lock($1::bigint)', [this.chainLock]);
+      // A new statement, so its snapshot is taken after the lock: it sees the last committed append.
+      const last = await c.query<{ hash: string }>(`SELECT hash FROM ${this.s}.advice ORDER BY seq DESC LIMIT 1`);
+      const prev = last.rows[0]?.hash ?? GENESIS;
+      // Hash what is stored, so verification recomputes exactly this value.
+      const hash = chainHash(prev, JSON.parse(json) as AdviceRecord);
+      const ins = await c.query<{ seq: string }>(
+        `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash)
+         VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12) RETURNING seq`,
+        [rec.id, rec.recordedAt, rec.service, rec.hook, rec.hookInstance, rec.patientId ?? null, rec.encounterId ?? null, rec.outcome, rec.rulesVersion, json, prev, hash],
+      );
+      for (const [uuid, kind] of Object.entries(rec.cardKinds)) {
+        await c.query(`INSERT INTO ${this.s}.advice_card (card_uuid, advice_id, card_kind, service) VALUES ($1, $2, $3, $4)`, [uuid, rec.id, kind, rec.service]);
+      }
+      return { seq: Number(ins.rows[0]?.seq), hash };
+    });
+  }
+
+  async get(id: string): Promise<StoredAdvice | undefined> {
+    const r = await this.pool.query<AdviceRow>(`SELECT seq, record, prev_hash, hash FROM ${this.s}.advice WHERE id = $1`, [id]);
+    const row = r.rows[0];
+    return row ? { ...(JSON.parse(row.record) as AdviceRecord), seq: Number(row.seq), prevHash: row.prev_hash, hash: row.hash } : undefined;
+  }
+
+  async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
+    const where: string[] = [];
+    const args: Array<string | number> = [];
+    const add = (cond: (p: string) => string, v: string | number): void => {
+      args.push(v);
+      where.push(cond(`$${args.length}`));
+    };
+    if (q.patientId) add((p) => `patient_id = ${p}`, q.patientId);
+    if (q.service) add((p) => `service = ${p}`, q.service);
+    if (q.from) add((p) => `recorded_at >= ${p}`, q.from);
+    if (q.to) add((p) => `recorded_at <= ${p}`, q.to);
+    if (q.cursor) {
+      const n = Number(q.cursor);
+      // As in SQLite, a cursor that is not a number matches nothing (PostgreSQL would rank NaN above every seq).
+      if (Number.isNaN(n)) return { items: [] };
+      add((p) => `seq < ${p}::float8`, String(n));
+    }
+    args.push(q.limit + 1);
+    const r = await this.pool.query<AdviceRow>(
+      `SELECT seq, record, prev_hash, hash FROM ${this.s}.advice ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY seq DESC LIMIT $${args.length}`,
+      args,
+    );
+    const page = r.rows.slice(0, q.limit).map((row) => ({ ...(JSON.parse(row.record) as AdviceRecord), seq: Number(row.seq) }));
+    const counts = await this.feedbackCounts(page.map((p) => p.id));
+    const items = page.map((p) => summarize(p, counts));
+    const last = page[page.length - 1];
+    return r.rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
+  }
+
+  private async feedbackCounts(adviceIds: string[]): Promise<Map<string, { accepted: number; overridden: number }>> {
+    const out = new Map<string, { accepted: number; overridden: number }>();
+    if (!adviceIds.length) return out;
+    const r = await this.pool.query<{ advice_id: string; outcome: string; n: number }>(
+      `SELECT c.advice_id, f.outcome, COUNT(*)::int AS n FROM ${this.s}.feedback f JOIN ${this.s}.advice_card c ON c.card_uuid = f.card_uuid
+       WHERE c.advice_id = ANY($1::text[]) GROUP BY c.advice_id, f.outcome`,
+      [adviceIds],
+    );
+    for (const row of r.rows) {
+      const c = out.get(row.advice_id) ?? { accepted: 0, overridden: 0 };
+      if (row.outcome === 'accepted') c.accepted += row.n;
+      else c.overridden += row.n;
+      out.set(row.advice_id, c);
+    }
+    return out;
+  }
+
+  async cardOwner(cardUuid: string): Promise<CardOwner | undefined> {
+    const r = await this.pool.query<{ advice_id: string; card_kind: string; service: string }>(
+      `SELECT advice_id, card_kind, service FROM ${this.s}.advice_card WHERE card_uuid = $1`,
+      [cardUuid],
+    );
+    const row = r.rows[0];
+    return row ? { adviceId: row.advice_id, cardKind: row.card_kind, service: row.service } : undefined;
+  }
+
+  async addFeedback(rows: FeedbackRow[]): Promise<{ stored: number; duplicates: number }> {
+    return this.tx(async (c) => {
+      let stored = 0;
+      for (const f of rows) {
+        const r = await c.query(
+          `INSERT INTO ${this.s}.feedback (feedback_key, card_uuid, outcome, accepted_suggestions, reason_system, reason_code, reason_display, user_comment, outcome_timestamp, received_at, service)
+           VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11) ON CONFLICT (feedback_key) DO NOTHING`,
+          [
+            feedbackKey(f), f.cardUuid, f.outcome, JSON.stringify(f.acceptedSuggestions), f.overrideReason?.system ?? null, f.overrideReason?.code ?? null,
+            f.overrideReason?.display ?? null, f.userComment ?? null, f.outcomeTimestamp, f.receivedAt, f.service,
+          ],
+        );
+        stored += r.rowCount ?? 0;
+      }
+      return { stored, duplicates: rows.length - stored };
+    });
+  }
+
+  async feedbackFor(adviceId: string): Promise<FeedbackRow[]> {
+    const r = await this.pool.query<Record<string, string | null>>(
+      `SELECT f.card_uuid, f.outcome, f.accepted_suggestions, f.reason_system, f.reason_code, f.reason_display, f.user_comment, f.outcome_timestamp, f.received_at, f.service
+       FROM ${this.s}.feedback f JOIN ${this.s}.advice_card c ON c.card_uuid = f.card_uuid WHERE c.advice_id = $1 ORDER BY f.outcome_timestamp, f.arrival`,
+      [adviceId],
+    );
+    return r.rows.map(rowToFeedback);
+  }
+
+  async feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats> {
+    const where: string[] = [];
+    const args: string[] = [];
+    if (q.service) (args.push(q.service), where.push(`c.service = $${args.length}`));
+    if (q.from) (args.push(q.from), where.push(`a.recorded_at >= $${args.length}`));
+    if (q.to) (args.push(q.to), where.push(`a.recorded_at <= $${args.length}`));
+    const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
+    const kinds = await this.pool.query<{ kind: string; cards: number; accepted: number; overridden: number }>(
+      `SELECT c.card_kind AS kind, COUNT(DISTINCT c.card_uuid)::int AS cards,
+         COUNT(DISTINCT CASE WHEN f.outcome = 'accepted' THEN f.card_uuid END)::int AS accepted,
+         COUNT(DISTINCT CASE WHEN f.outcome = 'overridden' THEN f.card_uuid END)::int AS overridden
+       FROM ${this.s}.advice_card c JOIN ${this.s}.advice a ON a.id = c.advice_id LEFT JOIN ${this.s}.feedback f ON f.card_uuid = c.card_uuid ${w}
+       GROUP BY c.card_kind ORDER BY c.card_kind`,
+      args,
+    );
+    const reasons = await this.pool.query<{ kind: string; code: string | null; display: string | null; n: number }>(
+      `SELECT c.card_kind AS kind, f.reason_code AS code, MAX(f.reason_display) AS display, COUNT(DISTINCT f.card_uuid)::int AS n
+       FROM ${this.s}.feedback f JOIN ${this.s}.advice_card c ON c.card_uuid = f.card_uuid JOIN ${this.s}.advice a ON a.id = c.advice_id
+       ${w ? `${w} AND` : 'WHERE'} f.outcome = 'overridden' GROUP BY c.card_kind, f.reason_code ORDER BY n DESC, kind, code NULLS LAST`,
+      args,
+    );
+    return {
+      byKind: kinds.rows.map((k) => ({
+        cardKind: k.kind, cards: k.cards, accepted: k.accepted, overridden: k.overridden,
+        overrideRate: k.accepted + k.overridden ? Math.round((k.overridden / (k.accepted + k.overridden)) * 1000) / 1000 : 0,
+      })),
+      byReason: reasons.rows.map((r) => ({ cardKind: r.kind, reasonCode: r.code ?? '(comment only)', reasonDisplay: r.display ?? '', count: r.n })),
+    };
+  }
+
+  async verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }> {
+    let prev = GENESIS;
+    let checked = 0;
+    let after = '0';
+    // Pages by seq so a long chain is not held in memory at once.
+    for (;;) {
+      const r = await this.pool.query<AdviceRow>(
+        `SELECT seq, record, prev_hash, hash FROM ${this.s}.advice WHERE seq > $1::bigint ORDER BY seq LIMIT ${VERIFY_PAGE}`,
+        [after],
+      );
+      for (const row of r.rows) {
+        checked += 1;
+        if (row.prev_hash !== prev || recomputed(prev, row.record) !== row.hash) return { ok: false, checked, firstBadSeq: Number(row.seq) };
+        prev = row.hash;
+        after = row.seq;
+      }
+      if (r.rows.length < VERIFY_PAGE) return { ok: true, checked };
+    }
+  }
+
+  async ping(): Promise<void> {
+    await this.pool.query('SELECT 1');
+  }
+
+  async close(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    await this.pool.end();
+  }
+}
+
+/** The hash a stored record text gives; a text that no longer parses gives none (it cannot match). */
+function recomputed(prev: string, recordText: string): string | undefined {
+  try {
+    return chainHash(prev, JSON.parse(recordText) as AdviceRecord);
+  } catch {
+    return undefined;
+  }
+}

@@ -1,0 +1,565 @@
+/**
+ * One contract for both audit adapters: the same cases run against a real SQLite file and a real
+ * PostgreSQL schema. PostgreSQL must be reachable (CI starts it): if it is not, these tests fail.
+ * Connection: TIDEMARK_TEST_PG_URL, default postgres://postgres@127.0.0.1:5432/test.
+ * All ids, patients and texts below are invented.
+ */
+import { randomUUID } from 'node:crypto';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import Database from 'better-sqlite3';
+import pg from 'pg';
+import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
+import { chainHash, GENESIS } from '../../src/audit/chain.js';
+import { openAuditStore } from '../../src/audit/open-store.js';
+import { PostgresAuditStore } from '../../src/audit/postgres-store.js';
+import { SqliteAuditStore } from '../../src/audit/sqlite-store.js';
+import type { AdviceRecord, AuditStore, FeedbackRow } from '../../src/audit/types.js';
+
+const PG_URL = process.env['TIDEMARK_TEST_PG_URL'] ?? 'postgres://postgres@127.0.0.1:5432/test';
+/** Unique per test file run, so parallel files and earlier crashed runs never collide. */
+const RUN = `tm_audit_${process.pid}_${randomUUID().slice(0, 8)}`;
+
+// ---------------------------------------------------------------- fixtures
+
+const T0 = Date.parse('2031-03-04T05:06:07.000Z');
+const at = (minutes: number): string => new Date(T0 + minutes * 60_000).toISOString();
+
+interface AdviceOpts {
+  at?: number;
+  patientId?: string | null;
+  service?: string;
+  /** Card kinds; one card (with a fresh uuid) per entry. */
+  kinds?: string[];
+  totalMs?: number;
+}
+
+/** An invented advice record with one card per kind. */
+function adviceRecord(o: AdviceOpts = {}): AdviceRecord {
+  const kinds = o.kinds ?? ['volume-ok'];
+  const cards = kinds.map((k, i) => ({
+    uuid: randomUUID(),
+    summary: `Invented card ${i + 1} — réponse probable, Δ 12 %`,
+    indicator: i === 0 ? ('warning' as const) : ('info' as const),
+    source: { label: 'Tidemark test catalogue' },
+    detail: `Kind **${k}**.\nLine two with "quotes" and a tab\t.`,
+  }));
+  const patientId = o.patientId === undefined ? 'pt-alder' : o.patientId;
+  return {
+    id: randomUUID(),
+    recordedAt: at(o.at ?? 0),
+    service: o.service ?? 'bolus-select',
+    hook: 'order-select',
+    hookInstance: randomUUID(),
+    userId: 'Practitioner/inv-clinician-7',
+    ...(patientId !== null ? { patientId, encounterId: `enc-${patientId}` } : {}),
+    outcome: 'answered',
+    rulesVersion: '0.1.0+cards.ab12cd34',
+    findings: [
+      {
+        ruleId: 'perfusion.map', topic: 'perfusion', status: 'assessed', direction: 'for', weight: 'static',
+        text: 'MAP 58 mmHg, below target 65 mmHg', values: { mapMmHg: 58.333333333333336, belowTarget: true, tiny: 1e-7 },
+        evidence: [{ ref: 'Observation/inv-bp-1', kind: 'meanArterialPressure', value: 58.333333333333336, unit: 'mm[Hg]', effective: at(-5), ageMinutes: 5 }],
+      },
+    ],
+    cards,
+    cardKinds: Object.fromEntries(cards.map((c, i) => [c.uuid, kinds[i] ?? 'volume-ok'])),
+    gathering: [{ key: 'vitals', source: 'prefetch', status: 'ok', count: 3 }],
+    timings: { totalMs: o.totalMs ?? 41.26, gatherMs: 20.5, fhirWaitMs: 0, assessMs: 3.75 },
+    client: { issuer: 'https://ehr.invented.example', jti: randomUUID() },
+  };
+}
+
+function cardsOf(r: AdviceRecord): string[] {
+  return r.cards.map((c) => c.uuid ?? '');
+}
+
+function feedbackRow(cardUuid: string, over: Partial<FeedbackRow> = {}): FeedbackRow {
+  return {
+    cardUuid, outcome: 'accepted', acceptedSuggestions: [], outcomeTimestamp: at(30), receivedAt: at(31), service: 'bolus-select', ...over,
+  };
+}
+
+// ---------------------------------------------------------------- harnesses
+
+/** Opens adapters over one backing database, and touches stored rows directly (as an attacker would). */
+interface Harness {
+  name: string;
+  setup(): Promise<void>;
+  teardown(): Promise<void>;
+  /** A new store, initialised, over empty tables. */
+  fresh(): Promise<AuditStore>;
+  recordText(seq: number): Promise<string>;
+  setRecordText(seq: number, text: string): Promise<void>;
+  /** Deletes an advice row and its cards (and their feedback). */
+  deleteAdvice(seq: number): Promise<void>;
+}
+
+function sqliteHarness(): Harness {
+  let dir = '';
+  let path = '';
+  let n = 0;
+  const raw = <T>(fn: (db: Database.Database) => T): T => {
+    const db = new Database(path);
+    try {
+      return fn(db);
+    } finally {
+      db.close();
+    }
+  };
+  return {
+    name: 'sqlite',
+    async setup() {
+      dir = mkdtempSync(join(tmpdir(), 'tidemark-audit-'));
+    },
+    async teardown() {
+      rmSync(dir, { recursive: true, force: true });
+    },
+    async fresh() {
+      n += 1;
+      path = join(dir, `audit-${n}.sqlite`);
+      const s = new SqliteAuditStore(path);
+      await s.init();
+      return s;
+    },
+    async recordText(seq) {
+      return raw((db) => (db.prepare('SELECT record FROM advice WHERE seq = ?').get(seq) as { record: string }).record);
+    },
+    async setRecordText(seq, text) {
+      raw((db) => db.prepare('UPDATE advice SET record = ? WHERE seq = ?').run(text, seq));
+    },
+    async deleteAdvice(seq) {
+      raw((db) => {
+        const id = (db.prepare('SELECT id FROM advice WHERE seq = ?').get(seq) as { id: string }).id;
+        db.prepare('DELETE FROM feedback WHERE card_uuid IN (SELECT card_uuid FROM advice_card WHERE advice_id = ?)').run(id);
+        db.prepare('DELETE FROM advice_card WHERE advice_id = ?').run(id);
+        db.prepare('DELETE FROM advice WHERE id = ?').run(id);
+      });
+    },
+  };
+}
+
+/** An admin connection that fails loudly (not a skip) when PostgreSQL is not there. */
+async function connectAdmin(): Promise<pg.Client> {
+  const c = new pg.Client({ connectionString: PG_URL, connectionTimeoutMillis: 5000 });
+  try {
+    await c.connect();
+  } catch (e) {
+    throw new Error(
+      `PostgreSQL is required for the audit contract tests and could not be reached at ${PG_URL} (${(e as Error).message}). ` +
+        'Start PostgreSQL or set TIDEMARK_TEST_PG_URL.',
+    );
+  }
+  return c;
+}
+
+function postgresHarness(): Harness {
+  const schema = `${RUN}_contract`;
+  let admin: pg.Client | undefined;
+  const q = async (text: string, values: unknown[] = []): Promise<pg.QueryResult> => {
+    if (!admin) throw new Error('postgres harness not set up');
+    return admin.query(text, values);
+  };
+  return {
+    name: 'postgres',
+    async setup() {
+      admin = await connectAdmin();
+    },
+    async teardown() {
+      if (!admin) return;
+      await admin.query(`DROP SCHEMA IF EXISTS "${schema}" CASCADE`);
+      await admin.end();
+    },
+    async fresh() {
+      await q(`DROP SCHEMA IF EXISTS "${schema}" CASCADE`);
+      const s = new PostgresAuditStore(PG_URL, { schema, poolSize: 4 });
+      await s.init();
+      return s;
+    },
+    async recordText(seq) {
+      return String((await q(`SELECT record FROM "${schema}".advice WHERE seq = $1`, [seq])).rows[0]?.record);
+    },
+    async setRecordText(seq, text) {
+      await q(`UPDATE "${schema}".advice SET record = $1 WHERE seq = $2`, [text, seq]);
+    },
+    async deleteAdvice(seq) {
+      const id = String((await q(`SELECT id FROM "${schema}".advice WHERE seq = $1`, [seq])).rows[0]?.id);
+      await q(`DELETE FROM "${schema}".feedback WHERE card_uuid IN (SELECT card_uuid FROM "${schema}".advice_card WHERE advice_id = $1)`, [id]);
+      await q(`DELETE FROM "${schema}".advice_card WHERE advice_id = $1`, [id]);
+      await q(`DELETE FROM "${schema}".advice WHERE id = $1`, [id]);
+    },
+  };
+}
+
+// ---------------------------------------------------------------- the contract
+
+describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name', (h) => {
+  let store: AuditStore;
+  const opened: AuditStore[] = [];
+  const open = async (): Promise<void> => {
+    store = await h.fresh();
+    opened.push(store);
+  };
+
+  beforeAll(() => h.setup());
+  afterEach(async () => {
+    for (const s of opened.splice(0)) await s.close();
+  });
+  afterAll(() => h.teardown());
+
+  async function appendAll(recs: AdviceRecord[]): Promise<number[]> {
+    const seqs: number[] = [];
+    for (const r of recs) seqs.push((await store.append(r)).seq);
+    return seqs;
+  }
+
+  it('reports its kind, answers ping, and init is idempotent', async () => {
+    await open();
+    expect(store.kind).toBe(h.name);
+    await store.ping();
+    await store.init();
+    await store.init();
+  });
+
+  it('append then get round-trips the record, with seq, hash and prevHash', async () => {
+    await open();
+    const r1 = adviceRecord({ at: 1 });
+    const r2 = adviceRecord({ at: 2, patientId: null });
+    const a1 = await store.append(r1);
+    const a2 = await store.append(r2);
+    expect(a2.seq).toBeGreaterThan(a1.seq);
+    // The chain is the one chain.ts defines, so both adapters give the same hashes for the same records.
+    expect(a1.hash).toBe(chainHash(GENESIS, r1));
+    expect(a2.hash).toBe(chainHash(a1.hash, r2));
+    expect(await store.get(r1.id)).toEqual({ ...r1, seq: a1.seq, hash: a1.hash, prevHash: GENESIS });
+    expect(await store.get(r2.id)).toEqual({ ...r2, seq: a2.seq, hash: a2.hash, prevHash: a1.hash });
+    // The stored text is exactly the JSON that was hashed.
+    expect(await h.recordText(a1.seq)).toBe(JSON.stringify(r1));
+    expect(await store.get('no-such-advice')).toBeUndefined();
+  });
+
+  it('refuses a duplicate advice id or a reused card uuid, keeping nothing of the refused record', async () => {
+    await open();
+    const r1 = adviceRecord();
+    await store.append(r1);
+    await expect(store.append({ ...adviceRecord(), id: r1.id })).rejects.toThrow();
+    const reuse = adviceRecord();
+    const reused = cardsOf(r1)[0] ?? '';
+    await expect(store.append({ ...reuse, cardKinds: { [reused]: 'data-gap' } })).rejects.toThrow();
+    expect(await store.get(reuse.id)).toBeUndefined();
+    expect(await store.cardOwner(reused)).toEqual({ adviceId: r1.id, cardKind: 'volume-ok', service: 'bolus-select' });
+    const r2 = adviceRecord();
+    await store.append(r2);
+    expect(await store.verifyChain()).toEqual({ ok: true, checked: 2 });
+  });
+
+  it('verifies an intact chain and names the first record whose text was changed', async () => {
+    await open();
+    expect(await store.verifyChain()).toEqual({ ok: true, checked: 0 });
+    const seqs = await appendAll([0, 1, 2, 3, 4].map((i) => adviceRecord({ at: i })));
+    expect(await store.verifyChain()).toEqual({ ok: true, checked: 5 });
+    const target = seqs[2] ?? -1;
+    const text = await h.recordText(target);
+    expect(text).toContain('"mapMmHg":58.333333333333336');
+    await h.setRecordText(target, text.replace('"mapMmHg":58.333333333333336', '"mapMmHg":68.333333333333336'));
+    expect(await store.verifyChain()).toEqual({ ok: false, checked: 3, firstBadSeq: target });
+  });
+
+  it('reports (does not throw on) a record whose text is no longer JSON', async () => {
+    await open();
+    const seqs = await appendAll([adviceRecord(), adviceRecord(), adviceRecord()]);
+    await h.setRecordText(seqs[1] ?? -1, '{"truncated":');
+    expect(await store.verifyChain()).toEqual({ ok: false, checked: 2, firstBadSeq: seqs[1] });
+  });
+
+  it('shows a removed record at the record after it', async () => {
+    await open();
+    const seqs = await appendAll([adviceRecord(), adviceRecord(), adviceRecord()]);
+    await h.deleteAdvice(seqs[1] ?? -1);
+    expect(await store.verifyChain()).toEqual({ ok: false, checked: 2, firstBadSeq: seqs[2] });
+  });
+
+  it('lists newest first and filters by patient, service and recorded time (inclusive bounds)', async () => {
+    await open();
+    const recs = [
+      adviceRecord({ at: 0, patientId: 'pt-alder', service: 'bolus-select' }),
+      adviceRecord({ at: 1, patientId: 'pt-birch', service: 'bolus-select' }),
+      adviceRecord({ at: 2, patientId: 'pt-alder', service: 'fluid-overview' }),
+      adviceRecord({ at: 3, patientId: 'pt-alder', service: 'bolus-select' }),
+      adviceRecord({ at: 4, patientId: null, service: 'fluid-overview', totalMs: 123.456 }),
+    ];
+    const seqs = await appendAll(recs);
+    const ids = async (q: Parameters<AuditStore['list']>[0]): Promise<string[]> => (await store.list(q)).items.map((i) => i.id);
+    const id = (i: number): string => recs[i]?.id ?? '';
+
+    expect(await ids({ limit: 10 })).toEqual([id(4), id(3), id(2), id(1), id(0)]);
+    expect(await ids({ limit: 10, patientId: 'pt-alder' })).toEqual([id(3), id(2), id(0)]);
+    expect(await ids({ limit: 10, service: 'fluid-overview' })).toEqual([id(4), id(2)]);
+    expect(await ids({ limit: 10, from: at(1), to: at(3) })).toEqual([id(3), id(2), id(1)]);
+    expect(await ids({ limit: 10, to: at(0) })).toEqual([id(0)]);
+    expect(await ids({ limit: 10, from: at(4) })).toEqual([id(4)]);
+    expect(await ids({ limit: 10, patientId: 'pt-alder', service: 'bolus-select', from: at(1) })).toEqual([id(3)]);
+    expect(await ids({ limit: 10, patientId: 'pt-nobody' })).toEqual([]);
+
+    const page = await store.list({ limit: 1 });
+    const r4 = recs[4];
+    if (!r4) throw new Error('fixture');
+    expect(page.items).toEqual([
+      {
+        id: r4.id, seq: seqs[4], recordedAt: r4.recordedAt, service: 'fluid-overview', hook: 'order-select', hookInstance: r4.hookInstance,
+        outcome: 'answered', rulesVersion: r4.rulesVersion, cardCount: 1, indicators: ['warning'], latencyMs: 123.5, feedback: { accepted: 0, overridden: 0 },
+      },
+    ]);
+    expect(page.nextCursor).toBe(String(seqs[4]));
+  });
+
+  it('pages with a cursor: newest first, no duplicates or gaps, and no cursor after the last page', async () => {
+    await open();
+    const seqs = await appendAll(Array.from({ length: 23 }, (_, i) => adviceRecord({ at: i, patientId: i % 2 ? 'pt-cedar' : 'pt-alder' })));
+    const walk = async (q: { limit: number; patientId?: string }): Promise<{ seqs: number[]; pages: number[] }> => {
+      const seen: number[] = [];
+      const pages: number[] = [];
+      let cursor: string | undefined;
+      for (;;) {
+        const res = await store.list({ ...q, ...(cursor ? { cursor } : {}) });
+        seen.push(...res.items.map((i) => i.seq));
+        pages.push(res.items.length);
+        if (!res.nextCursor) return { seqs: seen, pages };
+        cursor = res.nextCursor;
+      }
+    };
+    const all = await walk({ limit: 5 });
+    expect(all.pages).toEqual([5, 5, 5, 5, 3]);
+    expect(all.seqs).toEqual([...seqs].reverse());
+
+    // Twelve records match, so a limit of 6 ends exactly at a page boundary: limit+1 shows there is no third page.
+    const alder = await walk({ limit: 6, patientId: 'pt-alder' });
+    expect(alder.pages).toEqual([6, 6]);
+    expect(alder.seqs).toEqual(seqs.filter((_, i) => i % 2 === 0).reverse());
+  });
+
+  it('finds the advice and kind of a card', async () => {
+    await open();
+    const r = adviceRecord({ kinds: ['volume-ok', 'data-gap'], service: 'bolus-sign' });
+    await store.append(r);
+    const [c1, c2] = cardsOf(r);
+    expect(await store.cardOwner(c1 ?? '')).toEqual({ adviceId: r.id, cardKind: 'volume-ok', service: 'bolus-sign' });
+    expect(await store.cardOwner(c2 ?? '')).toEqual({ adviceId: r.id, cardKind: 'data-gap', service: 'bolus-sign' });
+    expect(await store.cardOwner(randomUUID())).toBeUndefined();
+  });
+
+  it('stores feedback idempotently and counts duplicates', async () => {
+    await open();
+    const r = adviceRecord({ kinds: ['volume-ok', 'data-gap'] });
+    await store.append(r);
+    const [c1, c2] = cardsOf(r) as [string, string];
+    const f1 = feedbackRow(c1, { acceptedSuggestions: ['sugg-b', 'sugg-a'], outcomeTimestamp: at(10) });
+    const f2 = feedbackRow(c2, {
+      outcome: 'overridden', outcomeTimestamp: at(11),
+      overrideReason: { system: 'https://tidemark.invented.example/override', code: 'already-given', display: 'Bolus already given' },
+      userComment: 'given in theatre',
+    });
+    expect(await store.addFeedback([f1, f2])).toEqual({ stored: 2, duplicates: 0 });
+    expect(await store.addFeedback([f1, f2])).toEqual({ stored: 0, duplicates: 2 });
+    // The same feedback received again later, suggestions in another order: still a duplicate.
+    expect(await store.addFeedback([{ ...f1, receivedAt: at(50), acceptedSuggestions: ['sugg-a', 'sugg-b'] }])).toEqual({ stored: 0, duplicates: 1 });
+    // A repeat inside one batch is stored once.
+    const f3 = feedbackRow(c1, { outcomeTimestamp: at(12) });
+    expect(await store.addFeedback([f3, f3])).toEqual({ stored: 1, duplicates: 1 });
+    expect(await store.feedbackFor(r.id)).toEqual([f1, f2, f3]);
+    const listed = await store.list({ limit: 1 });
+    expect(listed.items[0]?.feedback).toEqual({ accepted: 2, overridden: 1 });
+  });
+
+  it('refuses a feedback batch naming an unknown card, storing none of it', async () => {
+    await open();
+    const r = adviceRecord();
+    await store.append(r);
+    const good = feedbackRow(cardsOf(r)[0] ?? '');
+    await expect(store.addFeedback([good, feedbackRow(randomUUID())])).rejects.toThrow();
+    expect(await store.feedbackFor(r.id)).toEqual([]);
+    expect(await store.addFeedback([good])).toEqual({ stored: 1, duplicates: 0 });
+  });
+
+  it('returns feedback for one advice ordered by outcome time, then arrival', async () => {
+    await open();
+    const r = adviceRecord({ kinds: ['volume-ok', 'tolerance-limit', 'tolerance-limit'] });
+    const other = adviceRecord();
+    await appendAll([r, other]);
+    const [c1, c2, c3] = cardsOf(r) as [string, string, string];
+    const late1 = feedbackRow(c3, { outcome: 'overridden', outcomeTimestamp: at(20), overrideReason: { code: 'fluid-restricted' } });
+    const late2 = feedbackRow(c2, { outcome: 'overridden', outcomeTimestamp: at(20), userComment: 'discussed on rounds' });
+    const early = feedbackRow(c1, { outcomeTimestamp: at(15) });
+    await store.addFeedback([late1, early, feedbackRow(cardsOf(other)[0] ?? '')]);
+    await store.addFeedback([late2]);
+    expect(await store.feedbackFor(r.id)).toEqual([early, late1, late2]);
+    expect(await store.feedbackFor('no-such-advice')).toEqual([]);
+  });
+
+  it('computes feedback statistics per card kind and override reason, with filters', async () => {
+    await open();
+    const a1 = adviceRecord({ at: 0, service: 'bolus-select', kinds: ['volume-ok', 'data-gap'] });
+    const a2 = adviceRecord({ at: 1, service: 'bolus-select', kinds: ['volume-ok', 'perfusion-note'] });
+    const a3 = adviceRecord({ at: 2, service: 'bolus-sign', kinds: ['volume-ok', 'tolerance-limit', 'tolerance-limit'] });
+    await appendAll([a1, a2, a3]);
+    const [a1c1, a1c2] = cardsOf(a1) as [string, string];
+    const [a2c1] = cardsOf(a2) as [string];
+    const [a3c1, a3c2, a3c3] = cardsOf(a3) as [string, string, string];
+    const given = { system: 'https://tidemark.invented.example/override', code: 'already-given', display: 'Bolus already given' };
+    await store.addFeedback([
+      feedbackRow(a1c1, { outcomeTimestamp: at(5) }),
+      feedbackRow(a1c1, { outcomeTimestamp: at(6) }), // the same card accepted twice still counts one card
+      feedbackRow(a1c2, { outcome: 'overridden', overrideReason: { code: 'other-plan', display: 'Another plan' } }),
+      feedbackRow(a2c1, { outcome: 'overridden', overrideReason: given }),
+      feedbackRow(a3c1, { outcome: 'overridden', overrideReason: given, service: 'bolus-sign' }),
+      feedbackRow(a3c2, { outcome: 'overridden', userComment: 'discussed on rounds', service: 'bolus-sign' }),
+      feedbackRow(a3c3, { outcome: 'overridden', overrideReason: { code: 'fluid-restricted', display: 'Fluid restricted' }, service: 'bolus-sign' }),
+    ]);
+
+    expect(await store.feedbackStats({})).toEqual({
+      byKind: [
+        { cardKind: 'data-gap', cards: 1, accepted: 0, overridden: 1, overrideRate: 1 },
+        { cardKind: 'perfusion-note', cards: 1, accepted: 0, overridden: 0, overrideRate: 0 },
+        { cardKind: 'tolerance-limit', cards: 2, accepted: 0, overridden: 2, overrideRate: 1 },
+        { cardKind: 'volume-ok', cards: 3, accepted: 1, overridden: 2, overrideRate: 0.667 },
+      ],
+      byReason: [
+        { cardKind: 'volume-ok', reasonCode: 'already-given', reasonDisplay: 'Bolus already given', count: 2 },
+        { cardKind: 'data-gap', reasonCode: 'other-plan', reasonDisplay: 'Another plan', count: 1 },
+        { cardKind: 'tolerance-limit', reasonCode: 'fluid-restricted', reasonDisplay: 'Fluid restricted', count: 1 },
+        { cardKind: 'tolerance-limit', reasonCode: '(comment only)', reasonDisplay: '', count: 1 },
+      ],
+    });
+
+    expect(await store.feedbackStats({ service: 'bolus-select' })).toEqual({
+      byKind: [
+        { cardKind: 'data-gap', cards: 1, accepted: 0, overridden: 1, overrideRate: 1 },
+        { cardKind: 'perfusion-note', cards: 1, accepted: 0, overridden: 0, overrideRate: 0 },
+        { cardKind: 'volume-ok', cards: 2, accepted: 1, overridden: 1, overrideRate: 0.5 },
+      ],
+      byReason: [
+        { cardKind: 'data-gap', reasonCode: 'other-plan', reasonDisplay: 'Another plan', count: 1 },
+        { cardKind: 'volume-ok', reasonCode: 'already-given', reasonDisplay: 'Bolus already given', count: 1 },
+      ],
+    });
+
+    // from/to select by the advice's recorded time, inclusive.
+    expect(await store.feedbackStats({ from: at(1), to: at(1) })).toEqual({
+      byKind: [
+        { cardKind: 'perfusion-note', cards: 1, accepted: 0, overridden: 0, overrideRate: 0 },
+        { cardKind: 'volume-ok', cards: 1, accepted: 0, overridden: 1, overrideRate: 1 },
+      ],
+      byReason: [{ cardKind: 'volume-ok', reasonCode: 'already-given', reasonDisplay: 'Bolus already given', count: 1 }],
+    });
+    expect((await store.feedbackStats({ from: at(2) })).byKind.map((k) => k.cardKind)).toEqual(['tolerance-limit', 'volume-ok']);
+    expect(await store.feedbackStats({ to: at(-1) })).toEqual({ byKind: [], byReason: [] });
+  });
+
+  it('closes cleanly, twice', async () => {
+    await open();
+    await store.close();
+    await store.close();
+  });
+});
+
+// ---------------------------------------------------------------- PostgreSQL: several replicas
+
+describe('PostgreSQL audit store shared by several replicas', () => {
+  let admin: pg.Client;
+  const schemas: string[] = [];
+  const stores: AuditStore[] = [];
+  const newSchema = (label: string): string => {
+    const s = `${RUN}_${label}`;
+    schemas.push(s);
+    return s;
+  };
+
+  beforeAll(async () => {
+    admin = await connectAdmin();
+  });
+  afterEach(async () => {
+    await Promise.all(stores.splice(0).map((s) => s.close()));
+  });
+  afterAll(async () => {
+    for (const s of schemas) await admin.query(`DROP SCHEMA IF EXISTS "${s}" CASCADE`);
+    await admin.end();
+  });
+
+  const replicas = (schema: string, n: number): PostgresAuditStore[] => {
+    const out = Array.from({ length: n }, () => new PostgresAuditStore(PG_URL, { schema, poolSize: 5 }));
+    stores.push(...out);
+    return out;
+  };
+
+  it('four replicas starting at once all initialise the same schema', async () => {
+    const schema = newSchema('init');
+    await Promise.all(replicas(schema, 4).map((s) => s.init()));
+    const t = await admin.query(`SELECT table_name FROM information_schema.tables WHERE table_schema = $1 ORDER BY table_name`, [schema]);
+    expect(t.rows.map((r: { table_name: string }) => r.table_name)).toEqual(['advice', 'advice_card', 'feedback']);
+  });
+
+  it('four replicas appending 50 records each in parallel keep one linear chain', async () => {
+    const schema = newSchema('concurrent');
+    const rs = replicas(schema, 4);
+    await rs[0]?.init();
+    await Promise.all(rs.map((s) => s.init()));
+    const results = await Promise.all(
+      rs.flatMap((s, replica) =>
+        Array.from({ length: 50 }, (_, i) => s.append(adviceRecord({ at: i, patientId: `pt-replica-${replica}`, kinds: ['volume-ok', 'data-gap'] }))),
+      ),
+    );
+    expect(results).toHaveLength(200);
+    expect(new Set(results.map((r) => r.seq)).size).toBe(200);
+    expect(new Set(results.map((r) => r.hash)).size).toBe(200);
+    const verifier = replicas(schema, 1)[0];
+    expect(await verifier?.verifyChain()).toEqual({ ok: true, checked: 200 });
+
+    // No fork: each record points at the one before it in seq order.
+    const rows = (await admin.query(`SELECT seq, prev_hash, hash FROM "${schema}".advice ORDER BY seq`)).rows as Array<{ prev_hash: string; hash: string }>;
+    expect(rows).toHaveLength(200);
+    rows.forEach((row, i) => expect(row.prev_hash).toBe(i === 0 ? GENESIS : rows[i - 1]?.hash));
+    const cards = await admin.query(`SELECT COUNT(*)::int AS n FROM "${schema}".advice_card`);
+    expect(cards.rows[0]).toEqual({ n: 400 });
+  });
+
+  it('keeps the chains of two schemas apart', async () => {
+    const [a] = replicas(newSchema('apart_a'), 1);
+    const [b] = replicas(newSchema('apart_b'), 1);
+    if (!a || !b) throw new Error('fixture');
+    await Promise.all([a.init(), b.init()]);
+    const ra = adviceRecord();
+    await a.append(ra);
+    const rb = adviceRecord();
+    expect((await b.append(rb)).hash).toBe(chainHash(GENESIS, rb));
+    expect(await b.get(ra.id)).toBeUndefined();
+  });
+
+  it('refuses a schema name that is not a plain identifier', () => {
+    expect(() => new PostgresAuditStore(PG_URL, { schema: 'x"; DROP TABLE y; --' })).toThrow(/schema name/);
+  });
+});
+
+// ---------------------------------------------------------------- choosing the adapter
+
+describe('openAuditStore', () => {
+  it('opens the adapter the configuration names', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'tidemark-open-'));
+    try {
+      const s = openAuditStore({ TIDEMARK_AUDIT_STORE: 'sqlite', TIDEMARK_SQLITE_PATH: join(dir, 'a.sqlite') });
+      expect(s).toBeInstanceOf(SqliteAuditStore);
+      await s.close();
+      const p = openAuditStore({ TIDEMARK_AUDIT_STORE: 'postgres', TIDEMARK_SQLITE_PATH: 'unused', TIDEMARK_PG_URL: PG_URL });
+      expect(p).toBeInstanceOf(PostgresAuditStore);
+      expect(p.kind).toBe('postgres');
+      await p.ping();
+      await p.close();
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
+  it('needs a PostgreSQL URL for the postgres adapter', () => {
+    expect(() => openAuditStore({ TIDEMARK_AUDIT_STORE: 'postgres', TIDEMARK_SQLITE_PATH: 'unused', TIDEMARK_PG_URL: undefined })).toThrow(/TIDEMARK_PG_URL/);
+  });
+});

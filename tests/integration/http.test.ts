@@ -1,0 +1,202 @@
+// The whole path over real HTTP: discovery, each hook, the error statuses and an audit row in a real SQLite
+// file for each answered call. Status rules from CDS Hooks 2.0 (§Discovery, §Calling a CDS Service: 412).
+import Database from 'better-sqlite3';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { cardSchema, discoveryResponseSchema, hookResponseSchema } from '../../src/hooks/schemas.js';
+import { basicResources, NOW, orderSelectRequest, orderSignRequest, patientViewRequest, prefetchOf, PID } from '../helpers/hook-fixtures.js';
+import * as b from '../../examples/lib/fhir-builders.js';
+import { get, post, startService, type Running } from '../helpers/server.js';
+
+let s: Running;
+beforeAll(async () => {
+  s = await startService({}, { now: () => NOW });
+});
+afterAll(async () => s.stop());
+
+const rows = () => {
+  const db = new Database(s.dbPath, { readonly: true });
+  try {
+    return db.prepare('SELECT id, service, hook, hook_instance, patient_id, outcome, record FROM advice ORDER BY seq').all() as Array<{ id: string; service: string; hook: string; outcome: string; patient_id: string; record: string }>;
+  } finally {
+    db.close();
+  }
+};
+
+describe('discovery', () => {
+  it('lists the three services, generated from the registry, valid against the 2.0 discovery shape', async () => {
+    const r = await get(`${s.url}/cds-services`);
+    expect(r.status).toBe(200);
+    const d = discoveryResponseSchema.parse(r.body);
+    expect(d.services.map((x) => [x.id, x.hook])).toEqual([
+      ['bolus-review-select', 'order-select'], ['bolus-review-sign', 'order-sign'], ['fluid-overview', 'patient-view'],
+    ]);
+    expect(Object.keys(d.services[0]?.prefetch ?? {})).toContain('vitals');
+  });
+});
+
+describe('hook calls', () => {
+  it('order-select with full prefetch: 200, one valid card, one audit row with snapshot and findings', async () => {
+    const before = rows().length;
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }));
+    expect(r.status).toBe(200);
+    const body = hookResponseSchema.parse(r.body);
+    expect(body.cards).toHaveLength(1);
+    const card = cardSchema.parse(body.cards[0]);
+    expect(card.summary.length).toBeLessThan(140);
+    expect(card.uuid).toBeTruthy();
+    expect(card.source.label).toBeTruthy();
+    expect(card.detail).toContain('Observation/map-1');
+    expect(card.detail).toContain('Advisory only');
+    const after = rows();
+    expect(after).toHaveLength(before + 1);
+    const last = after[after.length - 1]!;
+    expect(last).toMatchObject({ service: 'bolus-review-select', hook: 'order-select', outcome: 'answered', patient_id: PID });
+    const rec = JSON.parse(last.record);
+    expect(rec.cards[0].uuid).toBe(card.uuid);
+    expect(rec.snapshot.measurements.length).toBeGreaterThan(0);
+    expect(rec.findings.some((f: { ruleId: string }) => f.ruleId === 'perfusion.map')).toBe(true);
+    expect(rec.gathering).toHaveLength(11);
+    expect(rec.rulesVersion).toBe(s.svc.rulesVersion);
+  });
+
+  it('order-sign answers and is audited', async () => {
+    const n = rows().length;
+    const r = await post(`${s.url}/cds-services/bolus-review-sign`, orderSignRequest(prefetchOf(basicResources())));
+    expect(r.status).toBe(200);
+    expect(hookResponseSchema.parse(r.body).cards).toHaveLength(1);
+    expect(rows()).toHaveLength(n + 1);
+  });
+
+  it('patient-view answers with the overview card and is audited', async () => {
+    const n = rows().length;
+    const r = await post(`${s.url}/cds-services/fluid-overview`, patientViewRequest(prefetchOf(basicResources())));
+    expect(r.status).toBe(200);
+    const cards = hookResponseSchema.parse(r.body).cards;
+    expect(cards[0]?.summary).toMatch(/^Fluid overview/);
+    expect(rows()).toHaveLength(n + 1);
+  });
+
+  it('a non-fluid order gets no fluid card (200, cards: []) and is still audited', async () => {
+    const n = rows().length;
+    const draft = [b.otherOrder('draft-para', PID, 'Paracetamol 1 g IV', b.minutesAgo(NOW, 1))];
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()), draft }));
+    expect(r.status).toBe(200);
+    expect(r.body).toEqual({ cards: [] });
+    expect(rows()).toHaveLength(n + 1);
+  });
+});
+
+describe('errors are OperationOutcomes', () => {
+  const expectOutcome = (body: any, text: RegExp) => {
+    expect(body.resourceType).toBe('OperationOutcome');
+    expect(body.issue[0].details.text).toMatch(text);
+  };
+
+  it('404 for an unknown service', async () => {
+    const r = await post(`${s.url}/cds-services/no-such-service`, orderSelectRequest({}));
+    expect(r.status).toBe(404);
+    expectOutcome(r.body, /no CDS service/);
+  });
+
+  it('400 for malformed JSON', async () => {
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, '{"hook": ');
+    expect(r.status).toBe(400);
+    expectOutcome(r.body, /not valid JSON/);
+  });
+
+  it('400 naming the field for a body that is not a CDS Hooks request', async () => {
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, { hook: 'order-select', context: {} });
+    expect(r.status).toBe(400);
+    expectOutcome(r.body, /not a valid CDS Hooks 2.0 request/);
+    expect(JSON.stringify(r.body)).toContain('hookInstance');
+  });
+
+  it('400 when the hook does not match the service', async () => {
+    const r = await post(`${s.url}/cds-services/fluid-overview`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }));
+    expect(r.status).toBe(400);
+    expectOutcome(r.body, /answers the patient-view hook, not order-select/);
+  });
+
+  it('400 for a context missing draftOrders', async () => {
+    const req = orderSelectRequest({ prefetch: prefetchOf(basicResources()) }) as any;
+    delete req.context.draftOrders;
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, req);
+    expect(r.status).toBe(400);
+    expect(JSON.stringify(r.body)).toContain('context.draftOrders');
+  });
+
+  it('412 when required data comes neither from prefetch nor a FHIR server; the call is audited', async () => {
+    const n = rows().length;
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({}));
+    expect(r.status).toBe(412);
+    expectOutcome(r.body, /vitals/);
+    const all = rows();
+    expect(all).toHaveLength(n + 1);
+    expect(all[all.length - 1]?.outcome).toBe('precondition-failed');
+  });
+
+  it('a FHIR server that cannot be reached gives 200 with an info card saying what could not be assessed', async () => {
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ fhirServer: 'http://127.0.0.1:1/fhir', token: 'x' }));
+    expect(r.status).toBe(200);
+    const card = cardSchema.parse(r.body.cards[0]);
+    expect(card.indicator).toBe('info');
+    expect(card.summary).toMatch(/^Fluid advice not available: the FHIR server could not be reached/);
+    expect(card.detail).toContain('vital signs');
+  });
+});
+
+describe('audit API', () => {
+  it('lists records newest first, filtered by patient and service, paged', async () => {
+    const all = await get(`${s.url}/audit/advice?patient=${PID}&limit=2`);
+    expect(all.status).toBe(200);
+    expect(all.body.items).toHaveLength(2);
+    expect(all.body.items[0].seq).toBeGreaterThan(all.body.items[1].seq);
+    expect(all.body.next).toMatch(/cursor=/);
+    const page2 = await get(`${s.url}${all.body.next}`);
+    expect(page2.body.items[0].seq).toBeLessThan(all.body.items[1].seq);
+    const sign = await get(`${s.url}/audit/advice?service=bolus-review-sign`);
+    expect(sign.body.items.every((i: { service: string }) => i.service === 'bolus-review-sign')).toBe(true);
+    const none = await get(`${s.url}/audit/advice?to=2000-01-01`);
+    expect(none.body.items).toEqual([]);
+  });
+  it('400 for a bad query', async () => {
+    const r = await get(`${s.url}/audit/advice?from=yesterday`);
+    expect(r.status).toBe(400);
+    expect(r.body.resourceType).toBe('OperationOutcome');
+  });
+  it('one record in full, and the chain verifies', async () => {
+    const list = await get(`${s.url}/audit/advice?limit=1`);
+    const one = await get(`${s.url}/audit/advice/${list.body.items[0].id}`);
+    expect(one.body.hash).toMatch(/^[0-9a-f]{64}$/);
+    expect((await get(`${s.url}/audit/verify`)).body).toMatchObject({ ok: true });
+  });
+});
+
+describe('health', () => {
+  it('/healthz and /readyz', async () => {
+    expect((await get(`${s.url}/healthz`)).status).toBe(200);
+    const r = await get(`${s.url}/readyz`);
+    expect(r.body).toMatchObject({ status: 'ready', auditStore: 'sqlite' });
+  });
+});
+
+describe('no advice without an audit record', () => {
+  it('a failing audit write gives a 500 OperationOutcome, not unaudited cards', async () => {
+    const broken = await startService({}, {
+      now: () => NOW,
+      store: Object.assign(Object.create(null), {
+        kind: 'broken', init: async () => {}, ping: async () => {}, close: async () => {},
+        append: async () => { throw new Error('disk full'); },
+      }),
+    });
+    try {
+      const r = await post(`${broken.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }));
+      expect(r.status).toBe(500);
+      expect(r.body.resourceType).toBe('OperationOutcome');
+      expect(r.body.issue[0].details.text).toMatch(/could not be stored for audit/);
+      expect(r.body.cards).toBeUndefined();
+    } finally {
+      await broken.stop();
+    }
+  });
+});
