@@ -5,13 +5,14 @@
 import type { Logger } from 'pino';
 import { resolveThresholds } from './assess/thresholds.js';
 import { rulesVersion } from './assess/rules-version.js';
-import { SqliteAuditStore } from './audit/sqlite-store.js';
+import { openAuditStore } from './audit/open-store.js';
 import type { AuditStore } from './audit/types.js';
 import { loadCatalogue } from './cards/catalogue.js';
 import { ConfigError, type AppConfig } from './config/config.js';
 import { fhirFetcher } from './fhir/gather.js';
 import { createApp } from './http/app.js';
 import { createLogger } from './log.js';
+import { createMetrics } from './http/metrics.js';
 
 export interface Service {
   app: ReturnType<typeof createApp>;
@@ -39,19 +40,22 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
   }
   const { catalogue, digest } = loadCatalogue();
   const version = rulesVersion(digest, thresholds);
-  const store = opts.store ?? openStore(cfg);
+  const store = opts.store ?? openAuditStore(cfg, { onError: (e) => log.error({ err: e.message }, 'audit store connection error') });
   await store.init();
   const publicUrl = cfg.TIDEMARK_PUBLIC_URL ?? `http://localhost:${cfg.PORT}`;
+  const metrics = createMetrics();
   const app = createApp({
+    metrics,
+    onResponse: metrics.onResponse,
+    extraRoutes: (a) => {
+      a.get('/metrics', async (_req, res) => {
+        res.type(metrics.registry.contentType).send(await metrics.registry.metrics());
+      });
+    },
     store, catalogue, thresholds, rulesVersion: version, publicUrl, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
     gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY },
     now: opts.now ?? (() => new Date()),
     ...(opts.makeFetcher ? { makeFetcher: opts.makeFetcher } : {}),
   });
   return { app, store, log, rulesVersion: version, close: () => store.close() };
-}
-
-function openStore(cfg: AppConfig): AuditStore {
-  if (cfg.TIDEMARK_AUDIT_STORE === 'postgres') throw new ConfigError('TIDEMARK_AUDIT_STORE=postgres is not wired yet');
-  return new SqliteAuditStore(cfg.TIDEMARK_SQLITE_PATH);
 }

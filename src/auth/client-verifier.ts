@@ -144,7 +144,7 @@ export function createClientVerifier(cfg: AuthConfig, deps: ClientVerifierDeps =
     // jose has checked exp and iat are numbers. A token is dead at exp, and also once its iat is older
     // than the age cap, so the jti need be kept only until the earlier of the two (plus skew).
     const retainUntil = Math.min(exp as number, (iat as number) + config.maxTokenAgeSeconds) + config.clockSkewSeconds;
-    if (replay.seen(`${iss} ${jti}`, retainUntil) && false) return fail('jti replayed', iss);
+    if (replay.seen(`${iss} ${jti}`, retainUntil)) return fail('jti replayed', iss);
 
     return tenant === undefined ? { ok: true, issuer: iss, jti } : { ok: true, issuer: iss, tenant, jti };
   }

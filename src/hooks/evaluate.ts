@@ -10,7 +10,7 @@ import type { AuditStore, AdviceRecord } from '../audit/types.js';
 import type { Catalogue } from '../cards/catalogue.js';
 import { composeCards } from '../cards/compose.js';
 import { renderCard } from '../cards/render.js';
-import { gather, fhirFetcher, type GatherOptions } from '../fhir/gather.js';
+import { gather, fhirFetcher, type GatherOptions, type GatherOutcome } from '../fhir/gather.js';
 import { HttpError, zodIssues } from '../http/errors.js';
 import { buildSnapshot } from '../snapshot/normalize.js';
 import { HOOK_CONTEXT_SCHEMAS, hookRequestSchema, type Card, type HookName, type HookResponse } from './schemas.js';
@@ -26,6 +26,7 @@ export interface EvaluateDeps {
   now: () => Date;
   makeFetcher?: typeof fhirFetcher;
   log: { info(o: object, m?: string): void; warn(o: object, m?: string): void; error(o: object, m?: string): void };
+  metrics?: { observeGather(o: GatherOutcome[]): void; observeAuditWrite(seconds: number, ok: boolean): void };
 }
 
 export interface EvaluateResult {
@@ -57,6 +58,7 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
 
   const now = deps.now();
   const gathered = await gather(req, service, deps.gatherOptions, deps.makeFetcher);
+  deps.metrics?.observeGather(gathered.outcomes);
   const adviceId = randomUUID();
   const base = {
     id: adviceId, recordedAt: new Date().toISOString(), service: service.id, hook, hookInstance: req.hookInstance,
@@ -105,9 +107,12 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
 }
 
 async function appendOrFail(deps: EvaluateDeps, rec: AdviceRecord): Promise<void> {
+  const t = performance.now();
   try {
     await deps.store.append(rec);
+    deps.metrics?.observeAuditWrite((performance.now() - t) / 1000, true);
   } catch (e) {
+    deps.metrics?.observeAuditWrite((performance.now() - t) / 1000, false);
     deps.log.error({ hookInstance: rec.hookInstance, adviceId: rec.id, err: (e as Error).message }, 'audit write failed: no advice sent');
     throw new AuditWriteError(e);
   }

@@ -10,7 +10,7 @@ import { absoluteChange, relativeChangePercent } from '../../physiology/dynamic-
 import type { DynamicTestResult } from '../../snapshot/types.js';
 import type { Finding } from '../types.js';
 import type { RuleContext } from './context.js';
-import { assessed, fmt, notAssessed, signed, unusableFinding } from './finding.js';
+import { assessed, displayUnit, fmt, notAssessed, signed, unusableFinding } from './finding.js';
 import { summarizeValidity, type Condition } from './heart-lung-validity.js';
 import { ageMinutes, dynamicTestsOf, evidenceOfDynamicTest, type Selection } from './select.js';
 
@@ -88,7 +88,7 @@ export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Find
   if (readOut.compare === 'relative') {
     if (!(d.before > 0)) {
       return notAssessed({
-        ruleId: spec.ruleId, text: `${spec.label}: not assessed, invalid baseline ${mLabel} ${fmt(d.before, 2)} ${d.unit}`,
+        ruleId: spec.ruleId, text: `${spec.label}: not assessed, invalid baseline ${mLabel} ${fmt(d.before, 2)} ${displayUnit(d.unit)}`,
         reason: `${spec.label} invalid: baseline must be positive`, evidence: ev, source: readOut.source, values: { ...baseValues, freshness: 'invalid' },
       });
     }
@@ -106,7 +106,7 @@ export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Find
   const unitText = readOut.compare === 'relative' ? ' %' : ' points';
   const changeKey = readOut.compare === 'relative' ? 'changePercent' : 'changePoints';
   const thrText = `${readOut.strict ? '>' : '≥'} ${fmt(readOut.threshold)}${unitText}`;
-  const text = `${spec.label}: ${mLabel} ${fmt(d.before, 2)} → ${fmt(d.after, 2)} ${d.unit} (${signed(change)}${unitText}; threshold ${thrText}): `
+  const text = `${spec.label}: ${mLabel} ${fmt(d.before, 2)} → ${fmt(d.after, 2)} ${displayUnit(d.unit)} (${signed(change)}${unitText}; threshold ${thrText}): `
     + `${positive ? 'points to' : 'points against'} fluid responsiveness${readOut.note ? `; ${readOut.note}` : ''}`;
   return assessed({
     ruleId: spec.ruleId, direction: positive ? 'for' : 'against', weight: readOut.weight, text, evidence: ev, source: readOut.source,

@@ -17,6 +17,16 @@ export function signed(v: number, digits = 1): string {
   return v > 0 && s !== '0' ? `+${s}` : s;
 }
 
+/** UCUM unit as a prescriber reads it ("mm[Hg]" → "mmHg"). */
+export function displayUnit(ucum: string): string {
+  return ucum.replace('mm[Hg]', 'mmHg').replace('cm[H2O]', 'cmH2O').replace(/m2$/, 'm²');
+}
+
+/** A label inside a sentence: "Mini fluid challenge" → "mini fluid challenge"; acronyms stay ("PPV"). */
+export function inSentence(label: string): string {
+  return label.length > 1 && label[1] === label[1]?.toLowerCase() ? `${label[0]?.toLowerCase()}${label.slice(1)}` : label;
+}
+
 export function staleText(ageMin: number, windowMin: number): string {
   return `stale (age ${Math.round(ageMin)} min, window ${windowMin} min)`;
 }
@@ -71,7 +81,7 @@ export function unusableFinding<T>(
   switch (sel.state) {
     case 'missing':
       return notAssessed({
-        ...base, text: `${args.label}: not assessed (none recorded)`, reason: `no ${args.label} recorded`,
+        ...base, text: `${args.label}: not assessed (none recorded)`, reason: `no ${inSentence(args.label)} recorded`,
         values: { freshness: 'missing', windowMin: sel.windowMin },
       });
     case 'stale': {

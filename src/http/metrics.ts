@@ -1,0 +1,45 @@
+/** Prometheus metrics (prom-client): requests by service and status, latency, FHIR fetch errors by kind, audit write latency. */
+import { Counter, Histogram, Registry, collectDefaultMetrics } from 'prom-client';
+import type { GatherOutcome } from '../fhir/gather.js';
+
+export interface Metrics {
+  registry: Registry;
+  onResponse(route: string, service: string, status: number, seconds: number): void;
+  observeGather(outcomes: GatherOutcome[]): void;
+  observeAuditWrite(seconds: number, ok: boolean): void;
+}
+
+export function createMetrics(): Metrics {
+  const registry = new Registry();
+  collectDefaultMetrics({ register: registry, prefix: 'tidemark_process_' });
+  const requests = new Counter({ name: 'tidemark_http_requests_total', help: 'HTTP requests by route, service and status', labelNames: ['route', 'service', 'status'], registers: [registry] });
+  const latency = new Histogram({
+    name: 'tidemark_http_request_duration_seconds', help: 'HTTP request latency', labelNames: ['route', 'service'],
+    buckets: [0.002, 0.005, 0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1, 2, 5], registers: [registry],
+  });
+  const fhirErrors = new Counter({ name: 'tidemark_fhir_fetch_errors_total', help: 'FHIR gathering failures by kind', labelNames: ['kind'], registers: [registry] });
+  const fhirFetches = new Counter({ name: 'tidemark_fhir_fetches_total', help: 'Prefetch keys by source (prefetch or fhir-server)', labelNames: ['source'], registers: [registry] });
+  const audit = new Histogram({
+    name: 'tidemark_audit_write_duration_seconds', help: 'Audit record write latency', labelNames: ['ok'],
+    buckets: [0.0005, 0.001, 0.002, 0.005, 0.01, 0.02, 0.05, 0.1, 0.5], registers: [registry],
+  });
+  const known = new Set(['bolus-review-select', 'bolus-review-sign', 'fluid-overview']);
+  return {
+    registry,
+    onResponse(route, service, status, seconds) {
+      // Only known service ids become label values: an attacker must not grow the label set.
+      const svc = known.has(service) ? service : service ? 'unknown' : '';
+      requests.inc({ route, service: svc, status: String(status) });
+      latency.observe({ route, service: svc }, seconds);
+    },
+    observeGather(outcomes) {
+      for (const o of outcomes) {
+        if (o.source !== 'none') fhirFetches.inc({ source: o.source });
+        if (['http-error', 'timeout', 'network-error', 'not-fhir', 'truncated'].includes(o.status)) fhirErrors.inc({ kind: o.status });
+      }
+    },
+    observeAuditWrite(seconds, ok) {
+      audit.observe({ ok: String(ok) }, seconds);
+    },
+  };
+}

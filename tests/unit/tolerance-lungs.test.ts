@@ -1,0 +1,136 @@
+/** Truth tables: SpO2/FiO2 and its trend, oxygen need, lung ultrasound, EVLWI. */
+import { describe, expect, it } from 'vitest';
+import { spo2Fio2Rule, spo2Fio2TrendRule } from '../../src/assess/tolerance/spo2-fio2.js';
+import { oxygenNeedRule } from '../../src/assess/tolerance/oxygen-need.js';
+import { lungUltrasoundRule } from '../../src/assess/tolerance/lung-ultrasound.js';
+import { evlwiRule } from '../../src/assess/tolerance/evlwi.js';
+import { isCongestionSign } from '../../src/assess/tolerance/finding.js';
+import type { Measurement } from '../../src/snapshot/types.js';
+import { limit, m, NOW, snapshot, T } from '../helpers/tolerance-fixtures.js';
+
+const s = (...ms: Measurement[]) => snapshot({ measurements: ms });
+
+describe('tolerance.spo2-fio2', () => {
+  it('present: 92 % on 50 % → 184, below 235 → moderate', () => {
+    const f = spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 20)), NOW, T)[0]!;
+    expect(f.values!['spo2Fio2Ratio']).toBe(184);
+    expect(limit(f)).toBe('moderate');
+  });
+  it('boundary: exactly 235 is not low', () => {
+    expect(limit(spo2Fio2Rule(s(m('spo2', 94, 10), m('fio2', 40, 10)), NOW, T)[0]!)).toBe('none');
+  });
+  it('SpO2 above 97 % with a low ratio is not interpretable (context only)', () => {
+    const f = spo2Fio2Rule(s(m('spo2', 99, 10), m('fio2', 60, 10)), NOW, T)[0]!;
+    expect(f.direction).toBe('neutral');
+    expect(limit(f)).toBe('none');
+    expect(f.text).toContain('not interpretable');
+  });
+  it('SpO2 above 97 % with a ratio ≥ 235 shows good oxygenation', () => {
+    expect(spo2Fio2Rule(s(m('spo2', 99, 10), m('fio2', 30, 10)), NOW, T)[0]!.direction).toBe('for');
+  });
+  it('absent FiO2 → not assessed (room air is not assumed)', () => {
+    expect(spo2Fio2Rule(s(m('spo2', 92, 10)), NOW, T)[0]!.reason).toBe('no FiO2 recorded');
+  });
+  it('FiO2 charted more than 60 min from the SpO2 is not paired', () => {
+    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 80)), NOW, T)[0]!.status).toBe('not-assessed');
+    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 70)), NOW, T)[0]!.status).toBe('assessed');
+  });
+  it('stale: SpO2 3 h old does not count', () => {
+    expect(spo2Fio2Rule(s(m('spo2', 92, 180), m('fio2', 50, 180)), NOW, T)[0]!.reason).toMatch(/3 h old/);
+  });
+  it('wrong unit: FiO2 sent as a fraction with unit 1 is not used', () => {
+    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 0.5, 10, { unit: '1' })), NOW, T)[0]!.reason).toContain("unit '1'");
+  });
+});
+
+describe('tolerance.spo2-fio2-trend', () => {
+  it('falling by ≥ 20 %: moderate and a congestion sign', () => {
+    const f = spo2Fio2TrendRule(s(m('spo2', 96, 240), m('fio2', 30, 240), m('spo2', 92, 10), m('fio2', 40, 10)), NOW, T)[0]!;
+    // 320 → 230: −28 %.
+    expect(f.values).toMatchObject({ earlierRatio: 320, latestRatio: 230, falling: true });
+    expect(limit(f)).toBe('moderate');
+    expect(isCongestionSign(f)).toBe(true);
+  });
+  it('boundary: a fall of exactly 20 % is falling; 19 % is not', () => {
+    const at20 = spo2Fio2TrendRule(s(m('spo2', 95, 240), m('fio2', 30, 240), m('spo2', 95, 10), m('fio2', 37.5, 10)), NOW, T)[0]!;
+    expect(at20.values!['falling']).toBe(true);
+    const at19 = spo2Fio2TrendRule(s(m('spo2', 95, 240), m('fio2', 30, 240), m('spo2', 95, 10), m('fio2', 37, 10)), NOW, T)[0]!;
+    expect(at19.values!['falling']).toBe(false);
+    expect(isCongestionSign(at19)).toBe(false);
+  });
+  it('a fall to a ratio on the plateau (SpO2 > 97 %) is not called a fall', () => {
+    const f = spo2Fio2TrendRule(s(m('spo2', 96, 240), m('fio2', 21, 240), m('spo2', 98, 10), m('fio2', 40, 10)), NOW, T)[0]!;
+    expect(f.values!['falling']).toBe(false);
+  });
+  it('absent: no earlier pair in the window → not assessed', () => {
+    expect(spo2Fio2TrendRule(s(m('spo2', 92, 10), m('fio2', 40, 10)), NOW, T)[0]!.status).toBe('not-assessed');
+  });
+  it('stale: an earlier pair older than 6 h is outside the window', () => {
+    expect(spo2Fio2TrendRule(s(m('spo2', 99, 400), m('fio2', 21, 400), m('spo2', 90, 10), m('fio2', 60, 10)), NOW, T)[0]!.status).toBe('not-assessed');
+  });
+  it('an earlier pair less than 60 min before is too close to be a trend', () => {
+    expect(spo2Fio2TrendRule(s(m('spo2', 99, 50), m('fio2', 21, 50), m('spo2', 90, 10), m('fio2', 60, 10)), NOW, T)[0]!.status).toBe('not-assessed');
+  });
+});
+
+describe('tolerance.oxygen-need', () => {
+  it('FiO2 up 10 points over the last hours → rising, moderate', () => {
+    const f = oxygenNeedRule(s(m('fio2', 30, 300), m('fio2', 40, 10)), NOW, T)[0]!;
+    expect(f.values).toMatchObject({ fio2Rising: true, rising: true });
+    expect(limit(f)).toBe('moderate');
+  });
+  it('boundary: FiO2 up 9 points is not rising; PEEP up 2 is', () => {
+    expect(oxygenNeedRule(s(m('fio2', 30, 300), m('fio2', 39, 10)), NOW, T)[0]!.values!['rising']).toBe(false);
+    expect(oxygenNeedRule(s(m('peep', 8, 300), m('peep', 10, 10)), NOW, T)[0]!.values!['rising']).toBe(true);
+    expect(oxygenNeedRule(s(m('peep', 8, 300), m('peep', 9.5, 10)), NOW, T)[0]!.values!['rising']).toBe(false);
+  });
+  it('compares with the lowest earlier value in the window', () => {
+    expect(oxygenNeedRule(s(m('fio2', 35, 300), m('fio2', 25, 200), m('fio2', 40, 100), m('fio2', 36, 10)), NOW, T)[0]!.values!['fio2RisePoints']).toBe(11);
+  });
+  it('absent: single values or nothing → not assessed', () => {
+    expect(oxygenNeedRule(s(m('fio2', 40, 10)), NOW, T)[0]!.status).toBe('not-assessed');
+    expect(oxygenNeedRule(s(), NOW, T)[0]!.status).toBe('not-assessed');
+  });
+  it('stale: a latest FiO2 3 h old does not count; an earlier value beyond 6 h is not compared', () => {
+    expect(oxygenNeedRule(s(m('fio2', 30, 400), m('fio2', 60, 180)), NOW, T)[0]!.status).toBe('not-assessed');
+    expect(oxygenNeedRule(s(m('fio2', 21, 420), m('fio2', 60, 10)), NOW, T)[0]!.status).toBe('not-assessed');
+  });
+});
+
+describe('tolerance.lung-ultrasound', () => {
+  const run = (n?: number, ago = 60, unit?: string) => lungUltrasoundRule(s(...(n === undefined ? [] : [m('bLineRegions', n, ago, unit ? { unit } : {})])), NOW, T)[0]!;
+  it.each([[0, 'none', false], [1, 'none', false], [2, 'moderate', false], [3, 'moderate', false], [4, 'severe', true], [8, 'severe', true]])(
+    '%s regions → %s (congestion sign %s)', (n, l, sign) => {
+      const f = run(n);
+      expect(limit(f)).toBe(l);
+      expect(isCongestionSign(f)).toBe(sign);
+    });
+  it('absent and stale (7 h) → not assessed', () => {
+    expect(run().status).toBe('not-assessed');
+    expect(run(6, 7 * 60).status).toBe('not-assessed');
+  });
+  it('wrong unit → not assessed', () => {
+    expect(run(6, 60, '%').status).toBe('not-assessed');
+  });
+});
+
+describe('tolerance.evlwi', () => {
+  const run = (v?: number, ago = 60) => evlwiRule(s(...(v === undefined ? [] : [m('evlwi', v, ago)])), NOW, T)[0]!;
+  it('11.4 mL/kg → pulmonary oedema: severe, congestion sign', () => {
+    const f = run(11.4);
+    expect(limit(f)).toBe('severe');
+    expect(isCongestionSign(f)).toBe(true);
+  });
+  it('boundary: 10 is oedema, 9.9 is not', () => {
+    expect(limit(run(10))).toBe('severe');
+    expect(limit(run(9.9))).toBe('none');
+    expect(run(9.9).direction).toBe('for');
+  });
+  it('absent → not assessed; stale (13 h) → not assessed', () => {
+    expect(run().status).toBe('not-assessed');
+    expect(run(14, 13 * 60).status).toBe('not-assessed');
+  });
+  it('wrong unit: an EVLW in mL (not indexed) is not used', () => {
+    expect(evlwiRule(s(m('evlwi', 800, 60, { unit: 'mL' })), NOW, T)[0]!.status).toBe('not-assessed');
+  });
+});
