@@ -13,6 +13,9 @@ import { fhirFetcher } from './fhir/gather.js';
 import { createApp } from './http/app.js';
 import { createLogger } from './log.js';
 import { createMetrics } from './http/metrics.js';
+import { authConfigSchema } from './auth/issuer-config.js';
+import { createClientVerifier } from './auth/client-verifier.js';
+import { requireAuditAccess, requireCdsClient } from './auth/middleware.js';
 
 export interface Service {
   app: ReturnType<typeof createApp>;
@@ -43,10 +46,24 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
   const store = opts.store ?? openAuditStore(cfg, { onError: (e) => log.error({ err: e.message }, 'audit store connection error') });
   await store.init();
   const publicUrl = cfg.TIDEMARK_PUBLIC_URL ?? `http://localhost:${cfg.PORT}`;
+  const auth = authConfigSchema.safeParse({ issuers: cfg.file.issuers ?? [] });
+  if (!auth.success) {
+    throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE issuers: ${auth.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
+  }
+  const verifier = createClientVerifier(auth.data);
+  const warnings: string[] = [];
+  if (cfg.TIDEMARK_TRIAL_MODE) {
+    warnings.push('local trial mode: CDS calls are accepted without a verified client JWT; never use with real patients');
+    log.warn({}, warnings[0] as string);
+  }
+  if (!cfg.TIDEMARK_TRIAL_MODE && auth.data.issuers.length === 0) warnings.push('no trusted issuers configured: every CDS call is refused');
   const metrics = createMetrics();
   const app = createApp({
     metrics,
     onResponse: metrics.onResponse,
+    cdsClientAuth: requireCdsClient({ verifier, publicUrl, trialMode: cfg.TIDEMARK_TRIAL_MODE, log }),
+    auditAuth: requireAuditAccess({ ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), verifier, publicUrl, log }),
+    readinessWarnings: warnings,
     extraRoutes: (a) => {
       a.get('/metrics', async (_req, res) => {
         res.type(metrics.registry.contentType).send(await metrics.registry.metrics());

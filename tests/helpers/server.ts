@@ -9,6 +9,10 @@ import { loadConfig } from '../../src/config/config.js';
 import { createLogger } from '../../src/log.js';
 import { buildService, type Service, type ServiceOptions } from '../../src/service.js';
 
+/** The audit API token the test service is configured with. */
+export const TEST_AUDIT_TOKEN = 'test-audit-token-0123456789';
+export const AUDIT_HEADERS = { authorization: `Bearer ${TEST_AUDIT_TOKEN}` };
+
 export interface Running {
   url: string;
   svc: Service;
@@ -22,7 +26,7 @@ export async function startService(env: Record<string, string> = {}, opts: Servi
   const dbPath = join(dir, 'audit.sqlite');
   const logLines: string[] = [];
   const sink = new Writable({ write(chunk, _enc, cb) { logLines.push(...String(chunk).split('\n').filter(Boolean)); cb(); } });
-  const cfg = loadConfig({ TIDEMARK_SQLITE_PATH: dbPath, TIDEMARK_LOG_LEVEL: 'info', TIDEMARK_TRIAL_MODE: 'true', ...env });
+  const cfg = loadConfig({ TIDEMARK_SQLITE_PATH: dbPath, TIDEMARK_LOG_LEVEL: 'info', TIDEMARK_TRIAL_MODE: 'true', TIDEMARK_AUDIT_TOKEN: TEST_AUDIT_TOKEN, ...env });
   const svc = await buildService(cfg, { log: createLogger('info', sink), ...opts });
   const server: Server = await new Promise((resolve) => {
     const s = svc.app.listen(0, '127.0.0.1', () => resolve(s));
