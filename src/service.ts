@@ -64,6 +64,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     cdsClientAuth: requireCdsClient({ verifier, publicUrl, trialMode: cfg.TIDEMARK_TRIAL_MODE, log }),
     auditAuth: requireAuditAccess({ ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), verifier, publicUrl, log }),
     readinessWarnings: warnings,
+    ...(cfg.file.corsOrigins ? { corsOrigins: cfg.file.corsOrigins } : {}),
     extraRoutes: (a) => {
       a.get('/metrics', async (_req, res) => {
         res.type(metrics.registry.contentType).send(await metrics.registry.metrics());

@@ -19,6 +19,8 @@ export interface AppDeps extends EvaluateDeps {
   cdsClientAuth?: RequestHandler;
   /** Guards the audit API; pass-through when absent. */
   auditAuth?: RequestHandler;
+  /** Origins allowed to call from a browser (CORS); none by default. */
+  corsOrigins?: readonly string[];
   /** Extra readiness warnings (e.g. trial mode). */
   readinessWarnings?: string[];
   /** Extra routes mounted before the error handler (metrics). */
@@ -58,6 +60,24 @@ export function createApp(deps: AppDeps): express.Express {
         const route = (req.route?.path as string | undefined) ?? 'unmatched';
         deps.onResponse?.(route, String(req.params?.['id'] ?? ''), res.statusCode, Number(process.hrtime.bigint() - t) / 1e9);
       });
+    }
+    next();
+  });
+
+  // CORS for browser-based CDS clients: allowlisted origins only (CDS Hooks 2.0 defers to OWASP).
+  const origins = new Set(deps.corsOrigins ?? []);
+  app.use((req, res, next) => {
+    const origin = req.headers.origin;
+    if (origin && origins.has(origin)) {
+      res.setHeader('Access-Control-Allow-Origin', origin);
+      res.setHeader('Vary', 'Origin');
+      res.setHeader('Access-Control-Allow-Headers', 'Authorization, Content-Type');
+      res.setHeader('Access-Control-Allow-Methods', 'GET, POST, OPTIONS');
+      res.setHeader('Access-Control-Max-Age', '600');
+    }
+    if (req.method === 'OPTIONS') {
+      res.status(origin && origins.has(origin) ? 204 : 403).end();
+      return;
     }
     next();
   });

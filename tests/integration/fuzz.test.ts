@@ -1,0 +1,113 @@
+// Fuzzing the hook and feedback endpoints over real HTTP with fast-check: 10,000 generated bodies in all.
+// Never a crash, never a 5xx: always a clear 400-class OperationOutcome or a valid CDS Hooks response
+// (checked with our CDS Hooks 2.0 response check, src/hooks/conformance.ts).
+import fc from 'fast-check';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { checkCdsResponse } from '../../src/hooks/conformance.js';
+import { basicResources, NOW, orderSelectRequest, prefetchOf } from '../helpers/hook-fixtures.js';
+import { post, startService, type Running } from '../helpers/server.js';
+
+let s: Running;
+beforeAll(async () => {
+  s = await startService({ TIDEMARK_LOG_LEVEL: 'silent', TIDEMARK_BODY_LIMIT: '256kb' }, { now: () => NOW });
+});
+afterAll(async () => s.stop());
+
+let sent = 0;
+async function check(path: string, body: unknown): Promise<void> {
+  sent += 1;
+  const r = await post(`${s.url}${path}`, body);
+  expect(r.status, JSON.stringify(r.body).slice(0, 300)).toBeLessThan(500);
+  if (r.status === 200 && path.endsWith('/feedback')) return;
+  if (r.status === 200) {
+    expect(checkCdsResponse(r.body)).toEqual([]);
+  } else {
+    expect(r.body?.resourceType).toBe('OperationOutcome');
+    expect(typeof r.body.issue?.[0]?.details?.text).toBe('string');
+  }
+}
+
+const valid = orderSelectRequest({ prefetch: prefetchOf(basicResources()) });
+const oddString = fc.oneof(fc.string({ unit: 'grapheme', maxLength: 40 }), fc.string({ unit: 'binary', maxLength: 40 }), fc.constantFrom('', '\u0000', '\uFEFF', '💧'.repeat(50), 'a'.repeat(70_000), '../../etc', '{{context.patientId}}'));
+const absurd = fc.oneof(
+  oddString, fc.double({ noNaN: true, noDefaultInfinity: true }), fc.integer(), fc.boolean(), fc.constant(null),
+  fc.constantFrom(1e308, -1e308, 5e-324, -0, 2 ** 53 + 1), fc.array(fc.jsonValue({ maxDepth: 2 }), { maxLength: 5 }),
+  fc.dictionary(oddString, fc.jsonValue({ maxDepth: 2 }), { maxKeys: 4 }),
+);
+
+/** Every path into a JSON value, so a mutation can hit anything from the hook name to an observation unit. */
+function paths(v: unknown, prefix: Array<string | number> = [], out: Array<Array<string | number>> = []): Array<Array<string | number>> {
+  out.push(prefix);
+  if (Array.isArray(v)) v.forEach((x, i) => paths(x, [...prefix, i], out));
+  else if (v && typeof v === 'object') for (const [k, x] of Object.entries(v)) paths(x, [...prefix, k], out);
+  return out;
+}
+const validPaths = paths(valid).filter((p) => p.length > 0);
+
+function mutate(base: unknown, path: Array<string | number>, value: unknown, remove: boolean): unknown {
+  const copy = structuredClone(base) as Record<string | number, unknown>;
+  let cur: Record<string | number, unknown> = copy;
+  for (const k of path.slice(0, -1)) cur = cur[k] as Record<string | number, unknown>;
+  const last = path[path.length - 1] as string | number;
+  if (remove) delete cur[last];
+  else cur[last] = value;
+  return copy;
+}
+
+/** A valid request text with `n` levels of nesting in an extension, built as text (no recursion on our side). */
+function deepText(n: number): string {
+  const head = JSON.stringify(valid).slice(0, -1);
+  return `${head},"extension":{"org.example.deep":${'{"a":['.repeat(n)}"x"${']}'.repeat(n)}}}`;
+}
+
+describe('fuzz (10,000 bodies)', () => {
+  it('arbitrary JSON values as the hook body (2,000)', async () => {
+    await fc.assert(fc.asyncProperty(fc.jsonValue({ maxDepth: 4 }), (v) => check('/cds-services/bolus-review-select', v)), { numRuns: 2_000 });
+  });
+
+  it('malformed JSON text (1,000)', async () => {
+    await fc.assert(
+      fc.asyncProperty(fc.oneof(fc.string({ maxLength: 200 }), fc.constantFrom('{', '{"hook":', '[1,2', '{"a":1}}', '\u0000', 'null', 'true', '"x"')), (t) =>
+        check('/cds-services/bolus-review-select', t),
+      ),
+      { numRuns: 1_000 },
+    );
+  });
+
+  it('a valid request with one field replaced or removed, anywhere (5,000)', async () => {
+    await fc.assert(
+      fc.asyncProperty(fc.constantFrom(...validPaths), absurd, fc.boolean(), fc.constantFrom('bolus-review-select', 'bolus-review-sign', 'fluid-overview'), (p, v, remove, id) =>
+        check(`/cds-services/${id}`, mutate(valid, p, v, remove)),
+      ),
+      { numRuns: 5_000 },
+    );
+  });
+
+  it('deep nesting and oversized bodies (100)', async () => {
+    await fc.assert(
+      fc.asyncProperty(fc.integer({ min: 50, max: 20_000 }), fc.boolean(), (n, big) =>
+        check('/cds-services/bolus-review-select', big ? { ...valid, extension: { 'org.example.pad': 'y'.repeat(300_000 + n) } } : deepText(n)),
+      ),
+      { numRuns: 100 },
+    );
+  });
+
+  it('feedback bodies (1,900)', async () => {
+    const card = fc.oneof(fc.uuid(), oddString);
+    const item = fc.record(
+      {
+        card,
+        outcome: fc.oneof(fc.constantFrom('accepted', 'overridden'), oddString),
+        acceptedSuggestions: fc.oneof(fc.array(fc.record({ id: fc.uuid() }), { maxLength: 3 }), absurd),
+        overrideReason: fc.oneof(fc.record({ reason: fc.record({ code: oddString, system: oddString, display: oddString }), userComment: oddString }), fc.record({ code: oddString, system: oddString }), absurd),
+        outcomeTimestamp: fc.oneof(fc.date({ noInvalidDate: true }).map((d) => d.toISOString()), oddString),
+      },
+      { requiredKeys: [] },
+    );
+    await fc.assert(
+      fc.asyncProperty(fc.oneof(fc.record({ feedback: fc.array(item, { maxLength: 4 }) }), fc.jsonValue({ maxDepth: 3 })), (body) => check('/cds-services/bolus-review-select/feedback', body)),
+      { numRuns: 1_900 },
+    );
+    expect(sent).toBeGreaterThanOrEqual(10_000);
+  });
+});
