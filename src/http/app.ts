@@ -141,9 +141,10 @@ export function createApp(deps: AppDeps): express.Express {
     res.json(await deps.store.verifyChain());
   });
 
-  app.get('/docs/:page', async (req, res) => {
-    const page = String(req.params['page']);
-    if (!/^[a-z0-9-]+\.md$/.test(page)) throw new HttpError(404, 'not-found', 'no such page');
+  app.get(['/docs/:page', '/docs/:folder/:page'], async (req, res) => {
+    const folder = req.params['folder'] === undefined ? '' : `${String(req.params['folder'])}/`;
+    const page = `${folder}${String(req.params['page'])}`;
+    if (!/^([a-z0-9-]+\/)?[a-z0-9-]+\.md$/.test(page)) throw new HttpError(404, 'not-found', 'no such page');
     try {
       res.type('text/markdown; charset=utf-8').send(await readFile(`${DOCS_DIR}${page}`, 'utf8'));
     } catch {

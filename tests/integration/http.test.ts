@@ -179,6 +179,23 @@ describe('audit API access', () => {
   });
 });
 
+describe('docs pages linked from cards', () => {
+  it('serves docs as Markdown and nothing outside docs/', async () => {
+    const r = await get(`${s.url}/docs/clinical-logic.md`);
+    expect(r.status).toBe(200);
+    expect(String(r.body)).toContain('# Clinical logic');
+    expect((await get(`${s.url}/docs/..%2Fpackage.json`)).status).toBe(404);
+    expect((await get(`${s.url}/docs/nope.md`)).status).toBe(404);
+  });
+  it('every card links to a page that exists', async () => {
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }));
+    for (const link of r.body.cards[0].links) {
+      const path = new URL(link.url).pathname;
+      expect((await get(`${s.url}${path}`)).status).toBe(200);
+    }
+  });
+});
+
 describe('health', () => {
   it('/healthz and /readyz', async () => {
     expect((await get(`${s.url}/healthz`)).status).toBe(200);
