@@ -1,5 +1,6 @@
 /** Findings and advice: what the pure rules return. Plain JSON, stored in the audit record. */
 import type { FhirRef } from '../snapshot/types.js';
+import type { OrderRecommendation } from './advice/types.js';
 
 export type Freshness = 'fresh' | 'stale' | 'missing';
 
@@ -56,6 +57,8 @@ export interface Advice {
   findings: Finding[];
   responsiveness?: Verdict<Responsiveness>;
   tolerance?: Verdict<Tolerance>;
+  /** For order hooks with a fluid bolus selected: what the advice matrix recommends. */
+  recommendation?: OrderRecommendation;
   /** Errors raised by single rules; the other findings still count (conventions §6). */
   ruleErrors: Array<{ ruleId: string; message: string }>;
 }

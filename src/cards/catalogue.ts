@@ -38,6 +38,13 @@ export const catalogueSchema = z
       )
       .min(1),
     overrideReasons: z.array(z.object({ code: z.string().regex(/^[a-z][a-z0-9-]*$/), display: text })),
+    /** Card headlines per advice cell ("likely/limited"), congestion ("congestion/likely") or unknown tolerance. */
+    headlines: z.record(z.string().regex(/^[a-z-]+\/[a-z]+$/), text.max(120)),
+    /** Suggestion wording per suggestion kind: label, action description, text of the FHIR resource. */
+    suggestions: z.record(
+      z.enum(['smaller-aliquot', 'reassess-after-bolus', 'passive-leg-raise', 'mini-fluid-challenge', 'bedside-ultrasound', 'withdraw-bolus']),
+      z.object({ label: text.max(120), description: text, text }),
+    ),
     overrideReasonSystem: z.url(),
     sectionTitles: z.record(z.string(), text),
   })

@@ -1,16 +1,29 @@
 /**
  * What to say: Advice + snapshot + gathering outcomes → card models (rendered by render.ts with the catalogue).
- * Decides which card kinds apply; never branches on clinical thresholds (those are in assess/).
+ * Decides which card kinds apply and which suggestions to offer from the advice's action; never looks at
+ * clinical thresholds (those live in assess/), never branches on card ids.
  */
 import type { Advice, Finding } from '../assess/types.js';
 import type { GatherOutcome } from '../fhir/gather.js';
-import type { HookName } from '../hooks/schemas.js';
-import type { PatientSnapshot } from '../snapshot/types.js';
+import type { HookName, Suggestion } from '../hooks/schemas.js';
+import type { DraftOrder, PatientSnapshot } from '../snapshot/types.js';
 import type { Catalogue } from './catalogue.js';
 import type { CardModel } from './render.js';
 import { kindLabel } from './render.js';
+import { requestTest, smallerAliquot, withdrawDraft, type SuggestionContext, type TestKind } from './suggestions.js';
 
 const GATHER_PROBLEM = new Set(['unavailable', 'http-error', 'timeout', 'network-error', 'not-fhir', 'truncated']);
+
+/**
+ * A smaller aliquot: 250 mL when 500 mL or more was ordered, else half the order, never below 100 mL, rounded
+ * to 50 mL (common practice: fluid given in small aliquots with reassessment in between).
+ */
+export function aliquotMl(orderedMl: number): number | undefined {
+  const v = orderedMl >= 500 ? 250 : Math.max(100, Math.round(orderedMl / 2 / 50) * 50);
+  return v < orderedMl ? v : undefined;
+}
+/** Reassess this long after a bolus ends (common practice: response is judged within minutes of the bolus). */
+const REASSESS_MIN = 15;
 
 /** Why a gathering key failed, in a prescriber's words. */
 function gatherWhy(o: GatherOutcome): string {
@@ -32,26 +45,96 @@ export interface ComposeInput {
   gathering: GatherOutcome[];
   purposes: Record<string, string>;
   catalogue: Catalogue;
+  context: SuggestionContext;
 }
+
+/** Strips a rule's own "X: not assessed (…)" suffix so the gap line reads "X: reason". */
+function gapWhat(f: Finding): string {
+  return f.text.replace(/:?\s*not assessed.*$/i, '').trim() || f.ruleId;
+}
+
+/** A reason that only says the marker was never recorded (as opposed to stale, invalid or confounded). */
+const NOT_RECORDED = /^(no .*recorded|missing\b)/i;
 
 export function gapsOf(advice: Advice, snapshot: PatientSnapshot, gathering: GatherOutcome[], purposes: Record<string, string>): CardModel['gaps'] {
   const gaps: CardModel['gaps'] = [];
   for (const o of gathering) if (GATHER_PROBLEM.has(o.status)) gaps.push({ what: `Data: ${purposes[o.key] ?? o.key}`, why: gatherWhy(o) });
-  for (const f of advice.findings) if (f.status === 'not-assessed') gaps.push({ what: f.text.replace(/: not assessed.*$/, ''), why: f.reason ?? 'not assessed' });
+  // Stale, invalid or confounded markers one by one (they explain why a value on the chart was not used) …
+  const absent: string[] = [];
+  for (const f of advice.findings) {
+    if (f.status !== 'not-assessed') continue;
+    if (NOT_RECORDED.test(f.reason ?? '')) {
+      if (!absent.includes(gapWhat(f))) absent.push(gapWhat(f));
+    } else gaps.push({ what: gapWhat(f), why: f.reason ?? 'not assessed' });
+  }
+  // … and markers never recorded on one line, so the card stays readable.
+  if (absent.length) gaps.push({ what: 'Not recorded', why: absent.join(', ') });
   for (const e of snapshot.excluded) gaps.push({ what: `${e.kind ? kindLabel(e.kind) : 'Resource'} (${e.ref})`, why: `left out: ${e.detail}` });
   for (const e of advice.ruleErrors) gaps.push({ what: `Rule ${e.ruleId}`, why: 'failed on this data and was skipped' });
   return gaps;
 }
 
-function evidenceOf(findings: Finding[]): CardModel['evidence'] {
+function evidenceRows(findings: Finding[]): CardModel['evidence'] {
   return findings.filter((f) => f.status === 'assessed' && f.evidence.length).map((f) => ({ finding: f.text, evidence: f.evidence }));
 }
 
 /** True when the data the advice depends on could not be gathered at all. */
 function nothingToGoOn(advice: Advice, gathering: GatherOutcome[]): GatherOutcome | undefined {
-  const assessed = advice.findings.some((f) => f.status === 'assessed');
-  if (assessed) return undefined;
+  if (advice.findings.some((f) => f.status === 'assessed' && f.topic !== 'order')) return undefined;
   return gathering.find((o) => GATHER_PROBLEM.has(o.status));
+}
+
+function capital(s: string): string {
+  return s ? `${s[0]?.toUpperCase()}${s.slice(1)}` : s;
+}
+
+function headlineKey(advice: Advice): string | undefined {
+  const rec = advice.recommendation;
+  if (!rec) return undefined;
+  const r = rec.cell.split('/')[0] ?? 'indeterminate';
+  if (rec.indicator === 'critical') return `congestion/${r}`;
+  if (!rec.toleranceAssessed) return `tolerance-unknown/${r}`;
+  return rec.cell;
+}
+
+function testFor(nextTest: string | undefined): TestKind {
+  if (nextTest && /mini fluid|vti/i.test(nextTest) && !/leg rais/i.test(nextTest)) return 'mini-fluid-challenge';
+  if (nextTest && /ultrasound|echo|ivc/i.test(nextTest) && !/leg rais/i.test(nextTest)) return 'bedside-ultrasound';
+  return 'passive-leg-raise';
+}
+
+function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Catalogue, ctx: SuggestionContext, now: string): Suggestion[] {
+  const rec = advice.recommendation;
+  if (!rec || !order) return [];
+  const T = cat.suggestions;
+  const orderedMl = order.volumeMl;
+  const aliquot = orderedMl !== undefined ? aliquotMl(orderedMl) : undefined;
+  const vars = { aliquotMl: String(aliquot ?? ''), orderedMl: String(Math.round(orderedMl ?? 0)), reassessMin: String(REASSESS_MIN) };
+  const out: Array<Suggestion | undefined> = [];
+  const reassess = () => requestTest('reassess-after-bolus', ctx, T['reassess-after-bolus'], vars, now);
+  const test = (k: TestKind) => requestTest(k, ctx, T[k], vars, now);
+  switch (rec.action) {
+    case 'proceed-and-reassess':
+      out.push({ ...reassess(), isRecommended: true });
+      break;
+    case 'smaller-aliquot': {
+      const s = aliquot !== undefined ? smallerAliquot(order, aliquot, T['smaller-aliquot'], vars) : undefined;
+      out.push(s ? { ...s, isRecommended: true } : undefined, reassess());
+      if (rec.indicator === 'critical') out.push(withdrawDraft(order, T['withdraw-bolus'], vars));
+      break;
+    }
+    case 'question-bolus':
+      out.push(test('bedside-ultrasound'), withdrawDraft(order, T['withdraw-bolus'], vars));
+      break;
+    case 'test-first': {
+      const kind = testFor(rec.nextTest ?? advice.responsiveness?.nextTest);
+      out.push({ ...test(kind), isRecommended: true });
+      if (kind !== 'bedside-ultrasound') out.push(test('bedside-ultrasound'));
+      out.push(withdrawDraft(order, T['withdraw-bolus'], vars));
+      break;
+    }
+  }
+  return out.filter((s): s is Suggestion => !!s);
 }
 
 export function composeCards(input: ComposeInput): CardModel[] {
@@ -63,39 +146,53 @@ export function composeCards(input: ComposeInput): CardModel[] {
 
   const gaps = gapsOf(advice, snapshot, gathering, purposes);
   const failed = nothingToGoOn(advice, gathering);
-  if (failed) {
-    return [{ kind: 'assessment-gap', vars: { gapReason: gatherWhy(failed) }, conclusion: [], evidence: [], gaps, order: [], suggestions: [] }];
-  }
+  if (failed) return [{ kind: 'assessment-gap', vars: { gapReason: gatherWhy(failed) }, conclusion: [], evidence: [], gaps, order: [], suggestions: [] }];
 
   const r = advice.responsiveness?.value ?? 'unassessed';
   const t = advice.tolerance?.value ?? 'unassessed';
+  const rec = advice.recommendation;
   const responsivenessPhrase = ph.responsiveness[r];
   const tolerancePhrase = ph.tolerance[t];
   const conclusion: string[] = [];
   if (advice.responsiveness) conclusion.push(`${responsivenessPhrase}: ${advice.responsiveness.rationale}`);
-  if (advice.tolerance) conclusion.push(`${tolerancePhrase[0]?.toUpperCase()}${tolerancePhrase.slice(1)}: ${advice.tolerance.rationale}`);
-  if (advice.responsiveness?.nextTest) conclusion.push(`What would settle it: ${advice.responsiveness.nextTest}`);
-  for (const f of advice.findings) if (f.status === 'assessed' && f.topic === 'perfusion') conclusion.push(f.text);
+  if (advice.tolerance) conclusion.push(`${capital(tolerancePhrase)}: ${advice.tolerance.rationale}`);
+  else conclusion.push(`${capital(tolerancePhrase)}: no marker of fluid tolerance could be assessed`);
+  const nextTest = rec?.nextTest ?? advice.responsiveness?.nextTest;
+  if (advice.responsiveness?.value === 'indeterminate' && nextTest) conclusion.push(`What would settle it: ${nextTest}`);
+  const options = (rec?.alternatives ?? []).filter((a) => a !== nextTest);
+  if (options.length) conclusion.push(`Options to weigh (choice and dose with the treating team): ${options.join('; ')}`);
 
+  const key = headlineKey(advice);
+  const headline = (key && catalogue.headlines[key]) ?? rec?.headline ?? 'review the evidence below before more volume';
+  const balance = advice.findings.find((f) => f.ruleId === 'tolerance.fluid-overload' && f.status === 'assessed') ??
+    advice.findings.find((f) => f.ruleId === 'tolerance.balance-cumulative' && f.status === 'assessed');
+  const balancePhrase = balance
+    ? typeof balance.values?.['fluidOverloadPercent'] === 'number'
+      ? `, overload ${Number(balance.values['fluidOverloadPercent']).toFixed(1)} %`
+      : typeof balance.values?.['balanceMl'] === 'number'
+        ? `, balance ${Number(balance.values['balanceMl']) >= 0 ? '+' : '−'}${Math.abs(Math.round(Number(balance.values['balanceMl'])))} mL`
+        : ''
+    : '';
   const vars: Record<string, string> = {
-    responsivenessPhrase,
-    responsivenessPhraseLower: responsivenessPhrase.toLowerCase(),
-    tolerancePhrase,
-    tolerance: t,
-    responsiveness: r,
-    headline: 'review the evidence below before more volume',
-    balancePhrase: '',
-    indicator: 'info',
+    responsivenessPhrase, responsivenessPhraseLower: responsivenessPhrase.toLowerCase(), tolerancePhrase,
+    tolerance: t, responsiveness: r, headline, balancePhrase, indicator: rec?.indicator ?? 'info',
   };
+  const clinical = advice.findings.filter((f) => f.topic !== 'order');
+  const orderLines = [
+    ...fluidOrders.filter((o) => o.volumeProblem).map((o) => `${o.display ?? 'IV fluid'}: ${o.volumeProblem}`),
+    ...advice.findings.filter((f) => f.topic === 'order' && f.status === 'assessed').map((f) => f.text),
+  ];
+  const suggestions = orderHook ? suggestionsFor(advice, fluidOrders[0], catalogue, input.context, snapshot.now) : [];
   return [
     {
       kind: orderHook ? 'bolus-review' : 'fluid-overview',
       vars,
       conclusion,
-      evidence: evidenceOf(advice.findings),
+      evidence: evidenceRows(clinical),
       gaps,
-      order: fluidOrders.map((o) => `${o.display ?? 'IV fluid'}${o.volumeMl ? `, ${Math.round(o.volumeMl)} mL` : ''}${o.volumeProblem ? ` (${o.volumeProblem})` : ''}`),
-      suggestions: [],
+      order: orderLines,
+      suggestions,
+      selectionBehavior: 'at-most-one',
     },
   ];
 }

@@ -88,7 +88,10 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
   const advice = assess(snapshot, now, deps.thresholds, deps.rulesVersion);
   for (const e of advice.ruleErrors) deps.log.error({ hookInstance: req.hookInstance, ruleId: e.ruleId }, 'a rule failed; its findings are left out');
   const purposes = Object.fromEntries(Object.entries(service.prefetch).map(([k, q]) => [k, q.purpose]));
-  const models = composeCards({ hook, advice, snapshot, gathering: gathered.outcomes, purposes, catalogue: deps.catalogue });
+  const models = composeCards({
+    hook, advice, snapshot, gathering: gathered.outcomes, purposes, catalogue: deps.catalogue,
+    context: { patientId: ctx.patientId, userId: ctx.userId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}) },
+  });
   const cards: Card[] = [];
   const cardKinds: Record<string, string> = {};
   for (const m of models) {

@@ -54,7 +54,9 @@ describe('hook calls', () => {
     const rec = JSON.parse(last.record);
     expect(rec.cards[0].uuid).toBe(card.uuid);
     expect(rec.snapshot.measurements.length).toBeGreaterThan(0);
-    expect(rec.findings.some((f: { ruleId: string }) => f.ruleId === 'perfusion.map')).toBe(true);
+    expect(rec.findings.some((f: { ruleId: string }) => f.ruleId === 'responsiveness.map')).toBe(true);
+    expect(rec.advice.responsiveness.value).toMatch(/^(likely|unlikely|indeterminate)$/);
+    expect(rec.advice.recommendation.action).toBeTruthy();
     expect(rec.gathering).toHaveLength(11);
     expect(rec.rulesVersion).toBe(s.svc.rulesVersion);
   });

@@ -25,8 +25,8 @@ describe('loadConfig', () => {
   it('reads the JSON file and refuses unknown keys and bad JSON, naming the file variable', () => {
     const dir = mkdtempSync(join(tmpdir(), 'tm-cfg-'));
     const good = join(dir, 'good.json');
-    writeFileSync(good, JSON.stringify({ thresholds: { perfusion: { mapTargetMmHg: 70 } } }));
-    expect(loadConfig({ TIDEMARK_CONFIG_FILE: good }).file.thresholds).toEqual({ perfusion: { mapTargetMmHg: 70 } });
+    writeFileSync(good, JSON.stringify({ thresholds: { responsiveness: { mapTargetMmHg: 70 } } }));
+    expect(loadConfig({ TIDEMARK_CONFIG_FILE: good }).file.thresholds).toEqual({ responsiveness: { mapTargetMmHg: 70 } });
     const unknown = join(dir, 'unknown.json');
     writeFileSync(unknown, JSON.stringify({ colour: 'blue' }));
     expect(() => loadConfig({ TIDEMARK_CONFIG_FILE: unknown })).toThrow(/TIDEMARK_CONFIG_FILE/);
@@ -38,9 +38,9 @@ describe('loadConfig', () => {
 
 describe('site thresholds', () => {
   it('override the defaults, and a bad one is refused with its path', () => {
-    expect(resolveThresholds({ perfusion: { mapTargetMmHg: 70 } }).perfusion.mapTargetMmHg).toBe(70);
-    expect(resolveThresholds({}).perfusion.mapTargetMmHg).toBe(65);
-    expect(() => resolveThresholds({ perfusion: { mapTargetMmHg: 500 } })).toThrow(/mapTargetMmHg/);
-    expect(() => resolveThresholds({ perfusoin: {} })).toThrow();
+    expect(resolveThresholds({ responsiveness: { mapTargetMmHg: 70 } }).responsiveness.mapTargetMmHg).toBe(70);
+    expect(resolveThresholds({}).responsiveness.mapTargetMmHg).toBe(65);
+    expect(() => resolveThresholds({ responsiveness: { mapTargetMmHg: 500 } })).toThrow(/mapTargetMmHg/);
+    expect(() => resolveThresholds({ responsivness: {} })).toThrow();
   });
 });

@@ -74,12 +74,14 @@ export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Find
       reason: `${spec.label} read by ${mLabel} has no validated threshold`, evidence: ev, source: spec.source, values: baseValues,
     });
   }
-  if (spec.gate) {
-    const validity = summarizeValidity(spec.gate(ctx));
+  const validity = spec.gate ? summarizeValidity(spec.gate(ctx)) : undefined;
+  if (validity) {
+    // The conditions the gate relied on are evidence of the result too, met or not.
+    ev.push(...validity.evidence);
     if (validity.state !== 'met') {
       return notAssessed({
         ruleId: spec.ruleId, text: `${spec.label}: result shown but not used (${validity.failed.length ? 'outside validity' : 'validity could not be checked'})`,
-        reason: validity.reason, evidence: [...ev, ...validity.evidence], source: readOut.source,
+        reason: validity.reason, evidence: ev, source: readOut.source,
         values: { ...baseValues, ...validity.values, validity: validity.state },
       });
     }
@@ -110,6 +112,9 @@ export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Find
     + `${positive ? 'points to' : 'points against'} fluid responsiveness${readOut.note ? `; ${readOut.note}` : ''}`;
   return assessed({
     ruleId: spec.ruleId, direction: positive ? 'for' : 'against', weight: readOut.weight, text, evidence: ev, source: readOut.source,
-    values: { ...baseValues, [changeKey]: Math.round(change * 100) / 100, threshold: readOut.threshold, ...(readOut.weight === 'static' ? { weak: true } : {}) },
+    values: {
+      ...baseValues, ...validity?.values, [changeKey]: Math.round(change * 100) / 100, threshold: readOut.threshold,
+      ...(validity ? { validity: validity.state } : {}), ...(readOut.weight === 'static' ? { weak: true } : {}),
+    },
   });
 }

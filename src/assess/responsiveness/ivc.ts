@@ -25,11 +25,8 @@ const SOURCE = `${SOURCE_SPONT}; ${SOURCE_VENT}`;
 
 interface Pair { dMax: Measurement; dMin: Measurement }
 
-/** The newest Dmax with a Dmin within the pairing tolerance (closest in time, ties by the total order). */
-export function newestIvcPair(ctx: RuleContext): Pair | undefined {
-  const tolMs = ctx.t.ivcPairToleranceMin * 60_000;
-  const mins = measurementsOf(ctx.snapshot, 'ivcDiameterMin', ctx.now).items;
-  for (const dMax of measurementsOf(ctx.snapshot, 'ivcDiameterMax', ctx.now).items) {
+function pairIn(maxes: readonly Measurement[], mins: readonly Measurement[], tolMs: number): Pair | undefined {
+  for (const dMax of maxes) {
     const t = timeMs(dMax.effective);
     let best: Measurement | undefined;
     let bestGap = Infinity;
@@ -40,6 +37,19 @@ export function newestIvcPair(ctx: RuleContext): Pair | undefined {
     if (best) return { dMax, dMin: best };
   }
   return undefined;
+}
+
+/**
+ * The newest Dmax with a Dmin within the pairing tolerance (closest in time, ties by the total order). Fresh
+ * readings are paired among themselves first, so that a stale reading never displaces a fresh pair; only when no
+ * fresh pair exists is the newest pair of any age returned (to report it as stale).
+ */
+export function newestIvcPair(ctx: RuleContext): Pair | undefined {
+  const tolMs = ctx.t.ivcPairToleranceMin * 60_000;
+  const fresh = (m: Measurement) => ageMinutes(m.effective, ctx.now) <= ctx.t.ivcMaxAgeMin;
+  const maxes = measurementsOf(ctx.snapshot, 'ivcDiameterMax', ctx.now).items;
+  const mins = measurementsOf(ctx.snapshot, 'ivcDiameterMin', ctx.now).items;
+  return pairIn(maxes.filter(fresh), mins.filter(fresh), tolMs) ?? pairIn(maxes, mins, tolMs);
 }
 
 export const ivcRule: ResponsivenessRule = {

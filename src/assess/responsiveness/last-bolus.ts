@@ -18,7 +18,7 @@ import { assessed, fmt, notAssessed, signed, type Values } from './finding.js';
 import {
   ageMinutes, compareText, evidenceOfFluid, evidenceOfMeasurement, evidenceOfVasoactive, measurementsOf, timeMs, usableTime,
 } from './select.js';
-import { vasoactiveChangesBetween } from './vasoactive-changes.js';
+import { vasoactiveChangesBetween, vasoactivesAround } from './vasoactive-changes.js';
 
 export const LAST_BOLUS_RULE_ID = 'responsiveness.last-bolus';
 const SOURCE = 'Response to a fluid bolus, MAP rise about 5–10 mmHg with falling heart rate: common practice';
@@ -121,7 +121,7 @@ export const lastBolusRule: ResponsivenessRule = {
       ...[...mapPre, ...mapPost].flatMap((p: MapPoint) => mapPointEvidence(p, now)),
       ...[...hrPre, ...hrPost].map((m) => evidenceOfMeasurement(m, now)),
     ];
-    const head = `Last bolus ${fmt(bolus.volumeMl, 0)} mL ${bolus.display} (ended ${Math.round(ageMinutes(bolus.end, now))} min ago)`;
+    const head = `Last bolus ${fmt(bolus.volumeMl, 0)} mL${bolus.display ? ` ${bolus.display}` : ''} (ended ${Math.round(ageMinutes(bolus.end, now))} min ago)`;
     const values: Values = { bolusVolumeMl: bolus.volumeMl, bolusEndedMinAgo: Math.round(ageMinutes(bolus.end, now)) };
 
     const need = t.bolusMinPointsPerWindow;
@@ -140,11 +140,12 @@ export const lastBolusRule: ResponsivenessRule = {
     }
 
     const changes = vasoactiveChangesBetween(ctx.snapshot.vasoactives, pre.fromMs, post.toMs);
+    // Every vasoactive the check looked at is cited, changed or not ("running unchanged" is evidence too).
+    evidence.push(...vasoactivesAround(ctx.snapshot.vasoactives, pre.fromMs, post.toMs).map((v) => evidenceOfVasoactive(v, now)));
     if (changes.length || short.length) {
       const reasons: string[] = [];
       if (changes.length) {
         reasons.push(`confounded: ${changes.map((c) => `${c.drug.drug} ${c.kind} at ${c.at}`).join('; ')} between the windows`);
-        evidence.push(...changes.map((c) => evidenceOfVasoactive(c.drug, now)));
       }
       if (short.length) reasons.push(`too few readings (${short.join('; ')}; windows ${t.bolusPreWindowMin} min before the start and ${t.bolusPostWindowMin} min after the end)`);
       return notAssessed({

@@ -2,7 +2,7 @@
 import { shockIndex } from '../../physiology/shock-index.js';
 import type { ResponsivenessRule } from './context.js';
 import { assessed, fmt, notAssessed, unusableFinding } from './finding.js';
-import { evidenceOfMeasurement, latestMeasurement } from './select.js';
+import { evidenceOfMeasurement, latestMeasurement, sortEvidence } from './select.js';
 
 export const SHOCK_INDEX_RULE_ID = 'responsiveness.shock-index';
 const SOURCE = 'Shock index HR/SBP (Allgöwer & Burri 1967, from memory); > 1.0: Koch E et al., Open Access Emerg Med 2019;11:179';
@@ -15,7 +15,10 @@ export const shockIndexRule: ResponsivenessRule = {
     const sbp = latestMeasurement(ctx.snapshot, 'systolicBp', ctx.now, w);
     const args = { ruleId: SHOCK_INDEX_RULE_ID, topic: 'perfusion' as const, source: SOURCE, evidenceOf: (m: Parameters<typeof evidenceOfMeasurement>[0]) => evidenceOfMeasurement(m, ctx.now) };
     if (hr.state !== 'fresh') return unusableFinding(hr, { ...args, label: 'Shock index: heart rate' });
-    if (sbp.state !== 'fresh') return unusableFinding(sbp, { ...args, label: 'Shock index: systolic pressure' });
+    if (sbp.state !== 'fresh') {
+      const f = unusableFinding(sbp, { ...args, label: 'Shock index: systolic pressure' });
+      return { ...f, evidence: sortEvidence([...f.evidence, evidenceOfMeasurement(hr.item, ctx.now)]) };
+    }
     const ev = [evidenceOfMeasurement(hr.item, ctx.now), evidenceOfMeasurement(sbp.item, ctx.now)];
     if (!(sbp.item.value > 0)) {
       return notAssessed({ ...args, text: 'Shock index: not assessed, systolic pressure 0', reason: 'Shock index invalid: systolic pressure must be positive', evidence: ev, values: { freshness: 'invalid' } });

@@ -26,6 +26,21 @@ function sameDrug(a: VasoactiveDrug, b: VasoactiveDrug): boolean {
   return a.drug.trim().toLowerCase() === b.drug.trim().toLowerCase();
 }
 
+/**
+ * Entries that a change check over [fromMs, toMs] looks at: every entry overlapping the span widened by the
+ * abutting tolerance (running through it, starting or ending in it). They are the evidence of "no change" too.
+ */
+export function vasoactivesAround(all: readonly VasoactiveDrug[], fromMs: number, toMs: number): VasoactiveDrug[] {
+  return all
+    .filter((v) => {
+      if (IGNORED_STATUS.has(v.status)) return false;
+      const s = timeMs(v.start);
+      const e = v.end === undefined ? Infinity : timeMs(v.end);
+      return Number.isFinite(s) && s <= toMs + ABUT_MS && e >= fromMs - ABUT_MS;
+    })
+    .sort((a, b) => timeMs(a.start) - timeMs(b.start) || compareText(a.ref, b.ref));
+}
+
 /** Changes with fromMs ≤ time ≤ toMs, in time order (ties by reference). */
 export function vasoactiveChangesBetween(all: readonly VasoactiveDrug[], fromMs: number, toMs: number): DoseChange[] {
   const drugs = all.filter((v) => !IGNORED_STATUS.has(v.status) && Number.isFinite(timeMs(v.start)));

@@ -45,7 +45,7 @@ interface Rec extends VolumeRecord {
   evidence: Evidence;
 }
 
-function measurementRecords(snapshot: PatientSnapshot, kind: NumericKind, now: Date): { kept: Rec[]; dropped: number } {
+function measurementRecords(snapshot: PatientSnapshot, kind: NumericKind, now: Date): { kept: Rec[]; dropped: Rec[] } {
   const recs = seriesOf(snapshot, kind, now).items.map((m: Measurement): Rec => {
     const endMs = timeMs(m.effective);
     let startMs = m.periodStart !== undefined ? timeMs(m.periodStart) : endMs;
@@ -53,8 +53,7 @@ function measurementRecords(snapshot: PatientSnapshot, kind: NumericKind, now: D
     if (kind === 'fluidBalance' && m.periodStart === undefined) startMs = endMs - BALANCE_DEFAULT_PERIOD_MS;
     return { id: m.ref, volumeMl: m.value, startMs, endMs, evidence: evidenceOf(m, now) };
   });
-  const { kept, dropped } = withoutOverlaps(recs);
-  return { kept, dropped: dropped.length };
+  return withoutOverlaps(recs);
 }
 
 function administrationRecords(snapshot: PatientSnapshot, now: Date): Rec[] {
@@ -108,10 +107,12 @@ export function balanceOver(snapshot: PatientSnapshot, now: Date, fromMs: number
   const urineW = inWindow(urineObs.kept, fromMs, toMs);
   const balanceW = inWindow(balanceObs.kept, fromMs, toMs);
 
-  const intake = intakeW.length > 0 ? { recs: intakeW, source: 'intake-observations' as const, dropped: intakeObs.dropped }
+  // Overlapping records are reported only when they fall in the window (older ones do not concern it).
+  const droppedIn = (d: Rec[]) => inWindow(d, fromMs, toMs).length;
+  const intake = intakeW.length > 0 ? { recs: intakeW, source: 'intake-observations' as const, dropped: droppedIn(intakeObs.dropped) }
     : adminW.length > 0 ? { recs: adminW, source: 'administrations' as const, dropped: 0 } : undefined;
-  const output = outputW.length > 0 ? { recs: outputW, source: 'output-observations' as const, dropped: outputObs.dropped }
-    : urineW.length > 0 ? { recs: urineW, source: 'urine-observations' as const, dropped: urineObs.dropped } : undefined;
+  const output = outputW.length > 0 ? { recs: outputW, source: 'output-observations' as const, dropped: droppedIn(outputObs.dropped) }
+    : urineW.length > 0 ? { recs: urineW, source: 'urine-observations' as const, dropped: droppedIn(urineObs.dropped) } : undefined;
 
   let result: BalanceWindowResult | undefined;
   if (intake && output) {
@@ -130,7 +131,7 @@ export function balanceOver(snapshot: PatientSnapshot, now: Date, fromMs: number
     result = {
       fromMs, toMs, balanceMl: volumeInWindowMl(balanceW, fromMs, toMs),
       source: 'charted 24-h balances', outputSource: 'balance-observations', urineOnly: false,
-      droppedOverlapping: balanceObs.dropped,
+      droppedOverlapping: droppedIn(balanceObs.dropped),
       latestEndMs: Math.max(...balanceW.map((r) => r.endMs)),
       evidence: balanceW.map((r) => r.evidence),
     };
