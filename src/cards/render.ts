@@ -4,7 +4,7 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { Card, Suggestion } from '../hooks/schemas.js';
-import { formatAge } from '../assess/select.js';
+import { formatAge } from './format.js';
 import type { Evidence } from '../assess/types.js';
 import { findKind, type Catalogue } from './catalogue.js';
 import { fill, md, table } from './markdown.js';
