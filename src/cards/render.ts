@@ -35,7 +35,13 @@ const KIND_LABEL: Record<string, string> = {
   renalVeinPattern: 'Intrarenal venous Doppler', lvFunction: 'LV function (echo)', chestStatus: 'Chest', plr: 'Passive leg raise',
   miniFluidChallenge: 'Mini fluid challenge', endExpiratoryOcclusion: 'End-expiratory occlusion', tidalVolumeChallenge: 'Tidal volume challenge',
 };
-export const kindLabel = (k: string): string => KIND_LABEL[k] ?? k;
+const MEASURED_LABEL: Record<string, string> = { pulsePressure: 'pulse pressure', vti: 'VTI', cardiacOutput: 'cardiac output', cardiacIndex: 'cardiac index', strokeVolume: 'stroke volume', ppv: 'PPV', svv: 'SVV' };
+/** "heartRate" → "Heart rate"; "plr:cardiacOutput" (a dynamic test and what it measured) → "Passive leg raise (cardiac output)". */
+export function kindLabel(k: string): string {
+  const [test, measured] = k.split(':');
+  if (measured && test) return `${KIND_LABEL[test] ?? test} (${MEASURED_LABEL[measured] ?? KIND_LABEL[measured]?.toLowerCase() ?? measured})`;
+  return KIND_LABEL[k] ?? k;
+}
 
 /** "2026-12-01 18:05Z" */
 export function shortTime(iso: string): string {

@@ -1,0 +1,125 @@
+// Cards a prescriber can act on. Every card the service makes here passes our CDS Hooks 2.0 response check
+// (schema + invariants, src/hooks/conformance.ts); every FHIR resource in a suggestion passes the registry's
+// FHIR R4 validator (@medplum/core against the base StructureDefinitions) plus the status bindings it skips.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { checkCdsResponse } from '../../src/hooks/conformance.js';
+import { statusCodeCount, validateFhir } from '../../src/fhir/validator.js';
+import { loadCatalogue } from '../../src/cards/catalogue.js';
+import { ADVICE_CASES, type AdviceCase } from '../helpers/advice-fixtures.js';
+import { NOW, orderSelectRequest, orderSignRequest, patientViewRequest, prefetchOf } from '../helpers/hook-fixtures.js';
+import { AUDIT_HEADERS, get, post, startService, type Running } from '../helpers/server.js';
+
+let s: Running;
+beforeAll(async () => {
+  s = await startService({}, { now: () => NOW });
+});
+afterAll(async () => s.stop());
+
+const cases = Object.keys(ADVICE_CASES) as AdviceCase[];
+const expected: Record<AdviceCase, { action: string; indicator: string; firstLabel: RegExp; types: string[] }> = {
+  'test-first': { action: 'test-first', indicator: 'info', firstLabel: /passive leg raise/i, types: ['create', 'create', 'delete'] },
+  proceed: { action: 'proceed-and-reassess', indicator: 'info', firstLabel: /reassessment/i, types: ['create'] },
+  'smaller-aliquot': { action: 'smaller-aliquot', indicator: 'warning', firstLabel: /Give 250 mL now instead of 500 mL/, types: ['update', 'create'] },
+  critical: { action: 'smaller-aliquot', indicator: 'critical', firstLabel: /Give 250 mL/, types: ['update', 'create', 'delete'] },
+  question: { action: 'question-bolus', indicator: 'warning', firstLabel: /ultrasound/i, types: ['create', 'delete'] },
+};
+
+async function call(c: AdviceCase) {
+  const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES[c]) }));
+  expect(r.status).toBe(200);
+  const list = await get(`${s.url}/audit/advice?limit=1`, AUDIT_HEADERS);
+  const rec = (await get(`${s.url}/audit/advice/${list.body.items[0].id}`, AUDIT_HEADERS)).body;
+  return { body: r.body, rec };
+}
+
+describe('each advice cell gives a conformant card with real FHIR suggestions', () => {
+  it('the status-binding check has the R4 code lists (so it can fail)', () => {
+    expect(statusCodeCount('ServiceRequest')).toBe(7);
+    expect(statusCodeCount('MedicationRequest')).toBe(8);
+  });
+
+  it.each(cases)('%s', async (c) => {
+    const { body, rec } = await call(c);
+    expect(checkCdsResponse(body)).toEqual([]);
+    const card = body.cards[0];
+    const want = expected[c];
+    expect(rec.advice.recommendation.action).toBe(want.action);
+    expect(card.indicator).toBe(want.indicator);
+    expect(card.summary.length).toBeLessThan(140);
+    expect(card.selectionBehavior).toBe('at-most-one');
+    expect(card.suggestions.map((x: any) => x.actions[0].type)).toEqual(want.types);
+    expect(card.suggestions[0].label).toMatch(want.firstLabel);
+    expect(card.suggestions.filter((x: any) => x.isRecommended).length).toBeLessThanOrEqual(1);
+    for (const sug of card.suggestions) {
+      for (const a of sug.actions) {
+        if (a.type === 'delete') {
+          expect(a.resourceId).toBe('MedicationRequest/draft-bolus-1');
+          expect(a.resource).toBeUndefined();
+        } else {
+          expect(validateFhir(a.resource)).toEqual([]);
+        }
+        if (a.type === 'update') {
+          expect(a.resource.id).toBe('draft-bolus-1');
+          expect(a.resource.dosageInstruction[0].doseAndRate[0].doseQuantity).toEqual({ value: 250, unit: 'mL', system: 'http://unitsofmeasure.org', code: 'mL' });
+          expect(a.resource.note.at(-1).text).toMatch(/Reassess/);
+        }
+      }
+    }
+    // Override reasons come from the catalogue, each with a display.
+    const cat = loadCatalogue().catalogue;
+    expect(card.overrideReasons.map((o: any) => o.code)).toEqual(cat.kinds.find((k) => k.id === 'bolus-review')?.overrideReasons);
+  });
+
+  it('a suggestion that would break validation is caught by the validator (the check bites)', async () => {
+    const { body } = await call('smaller-aliquot');
+    const res = structuredClone(body.cards[0].suggestions[0].actions[0].resource);
+    res.status = 'pending';
+    expect(validateFhir(res).join(' ')).toMatch(/status "pending"/);
+    delete res.intent;
+    expect(validateFhir(res).join(' ')).toMatch(/intent/);
+  });
+});
+
+describe('the detail reads the reasoning', () => {
+  it('names each marker used (with value, time and reference) and each one missing', async () => {
+    const { body, rec } = await call('critical');
+    const detail: string = body.cards[0].detail;
+    expect(detail).toContain('| Passive leg raise (cardiac output) | 4 → 4.6 L/min |');
+    expect(detail).toContain('Observation/plr-pos');
+    expect(detail).toContain('| EVLWI | 14 mL/kg |');
+    expect(detail).toMatch(/Not recorded: .*PPV/);
+    expect(detail).toMatch(/Not recorded: .*VExUS/);
+    expect(detail).toContain('**The ordered bolus**');
+    expect(detail).toMatch(/500 mL/);
+    expect(detail).toMatch(/stays in the vessels/);
+    expect(detail).toContain('Advisory only');
+    expect(detail).toContain('local protocol prevails');
+    expect(detail).not.toMatch(/<[a-z]/i);
+    // Every assessed finding with evidence is in the table; every not-assessed one is named in the gaps.
+    for (const f of rec.advice.findings.filter((x: any) => x.status === 'assessed' && x.topic !== 'order')) {
+      for (const e of f.evidence) expect(detail).toContain(e.ref);
+    }
+  });
+
+  it('escapes values from FHIR so they cannot inject Markdown or HTML', async () => {
+    const p = prefetchOf(ADVICE_CASES['test-first']);
+    const req = orderSelectRequest({ prefetch: p });
+    (req.context.draftOrders.entry[0]!.resource as any).medicationCodeableConcept.text = "Lactated Ringer's <img src=x onerror=alert(1)> **bold** [link](http://x)";
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, req);
+    const detail: string = r.body.cards[0].detail;
+    expect(detail).not.toContain('<img');
+    expect(detail).not.toContain('**bold**');
+    expect(checkCdsResponse(r.body)).toEqual([]);
+  });
+});
+
+describe('order-sign and patient-view cards are conformant too', () => {
+  it.each(cases)('%s', async (c) => {
+    const sign = await post(`${s.url}/cds-services/bolus-review-sign`, orderSignRequest(prefetchOf(ADVICE_CASES[c])));
+    expect(checkCdsResponse(sign.body)).toEqual([]);
+    const view = await post(`${s.url}/cds-services/fluid-overview`, patientViewRequest(prefetchOf(ADVICE_CASES[c])));
+    expect(checkCdsResponse(view.body)).toEqual([]);
+    expect(view.body.cards[0].summary).toMatch(/^Fluid overview/);
+    expect(view.body.cards[0].suggestions).toBeUndefined();
+  });
+});
