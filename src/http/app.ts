@@ -9,6 +9,7 @@ import { z } from 'zod';
 import type { AuditStore } from '../audit/types.js';
 import { evaluateHook, type EvaluateDeps } from '../hooks/evaluate.js';
 import { recordFeedback } from '../hooks/feedback.js';
+import { replay } from '../audit/replay.js';
 import { discoveryDocument, findService } from '../hooks/services.js';
 import { HttpError, operationOutcome, zodIssues } from './errors.js';
 
@@ -129,6 +130,13 @@ export function createApp(deps: AppDeps): express.Express {
     const rec = await deps.store.get(String(req.params['id']));
     if (!rec) throw new HttpError(404, 'not-found', 'no advice record with that id');
     res.json({ ...rec, feedback: await deps.store.feedbackFor(rec.id) });
+  });
+  app.get('/audit/advice/:id/replay', audit, async (req: Request, res: Response) => {
+    const rec = await deps.store.get(String(req.params['id']));
+    if (!rec) throw new HttpError(404, 'not-found', 'no advice record with that id');
+    const diff = replay(rec, deps.thresholds, deps.rulesVersion);
+    if (!diff) throw new HttpError(422, 'not-supported', 'this record has no snapshot to replay (a 412 answer)');
+    res.json(diff);
   });
   app.get('/audit/feedback-stats', audit, async (req: Request, res: Response) => {
     const q = auditQuerySchema.pick({ service: true, from: true, to: true }).safeParse(req.query);

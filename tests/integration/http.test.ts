@@ -226,3 +226,23 @@ describe('no advice without an audit record', () => {
     }
   });
 });
+
+describe('replay under other rules', () => {
+  it('same rules: no change; a site threshold change shows which verdicts and findings moved', async () => {
+    const { ADVICE_CASES } = await import('../helpers/advice-fixtures.js');
+    await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['smaller-aliquot']) }));
+    const id = (await get(`${s.url}/audit/advice?limit=1`, AUDIT_HEADERS)).body.items[0].id;
+    const same = await get(`${s.url}/audit/advice/${id}/replay`, AUDIT_HEADERS);
+    expect(same.status).toBe(200);
+    expect(same.body).toMatchObject({ changed: false, action: { then: 'smaller-aliquot', now: 'smaller-aliquot' } });
+    // The albumin 22 g/L limited tolerance under the default (< 30 g/L, ALBIOS); a site that lowers the band to 20 g/L sees the change.
+    const { replay } = await import('../../src/audit/replay.js');
+    const { resolveThresholds } = await import('../../src/assess/thresholds.js');
+    const rec = await s.svc.store.get(id);
+    const diff = replay(rec!, resolveThresholds({ tolerance: { albuminLowGPerL: 20, albuminSevereLowGPerL: 15 } }), 'site-variant');
+    expect(diff?.changed).toBe(true);
+    expect(diff?.tolerance.then).toBe('limited');
+    expect(diff?.tolerance.now).toBe('adequate');
+    expect(diff?.findings.changed.map((c) => c.ruleId)).toContain('tolerance.albumin');
+  });
+});
