@@ -49,27 +49,29 @@ export const PREFETCH: Record<string, PrefetchQuery> = {
   },
   hemodynamics: {
     template: obs(
-      [
-        codes(['cardiacOutput', 'cardiacIndex', 'strokeVolume', 'strokeVolumeIndex', 'ppv', 'svv', 'ivcDiameterMax', 'ivcDiameterMin', 'intraAbdominalPressure', 'evlwi', 'portalPulsatility', 'edemaGrade', 'bLineRegions']),
-        DYNAMIC_TEST_CODES.map((c) => `${c.system}|${c.code}`).join(','),
-      ].join(','),
+      [codes(['cardiacOutput', 'cardiacIndex', 'strokeVolume', 'strokeVolumeIndex', 'ppv', 'svv', 'ivcDiameterMax', 'ivcDiameterMin']), DYNAMIC_TEST_CODES.map((c) => `${c.system}|${c.code}`).join(',')].join(','),
       100,
     ),
-    purpose: 'monitor and ultrasound markers and dynamic tests',
+    purpose: 'monitor and ultrasound flow markers and dynamic tests',
     resourceTypes: ['Observation'],
   },
-  ventilation: {
-    template: obs([codes(['tidalVolume', 'peep', 'fio2']), CODED_OBSERVATION_CODES.map((c) => `${c.system}|${c.code}`).join(',')].join(','), 100),
-    purpose: 'ventilation, rhythm and echo impressions',
+  ventilation: { template: obs(codes(['tidalVolume', 'peep', 'fio2']), 100), purpose: 'tidal volume, PEEP and FiO2', resourceTypes: ['Observation'] },
+  // Rarely charted states get a key of their own, so minute-level device data cannot push them off the first page.
+  assessments: {
+    template: obs(
+      [codes(['intraAbdominalPressure', 'evlwi', 'portalPulsatility', 'edemaGrade', 'bLineRegions']), CODED_OBSERVATION_CODES.map((c) => `${c.system}|${c.code}`).join(',')].join(','),
+      50,
+    ),
+    purpose: 'ventilation state, rhythm, chest, echo and Doppler impressions, IAP, lung water and oedema',
     resourceTypes: ['Observation'],
   },
-  conditions: { template: `Condition?patient=${patientRef}&clinical-status=active`, purpose: 'conditions that lower tolerance', resourceTypes: ['Condition'] },
+  conditions: { template: `Condition?patient=${patientRef}&clinical-status=active&_count=50`, purpose: 'conditions that lower tolerance', resourceTypes: ['Condition'] },
   fluidsGiven: {
     template: `MedicationAdministration?patient=${patientRef}&_sort=-effective-time&_count=100`,
     purpose: 'fluid and vasopressor administrations',
     resourceTypes: ['MedicationAdministration'],
   },
-  medications: { template: `MedicationRequest?patient=${patientRef}&status=active`, purpose: 'active vasopressor orders', resourceTypes: ['MedicationRequest'] },
+  medications: { template: `MedicationRequest?patient=${patientRef}&status=active&_count=50`, purpose: 'active vasopressor orders', resourceTypes: ['MedicationRequest'] },
 };
 
 const all = PREFETCH;

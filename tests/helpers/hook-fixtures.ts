@@ -27,6 +27,7 @@ export function basicResources(now = NOW): Record<string, FhirResource[]> {
     balance: [],
     hemodynamics: [],
     ventilation: [],
+    assessments: [],
     conditions: [],
     fluidsGiven: [],
     medications: [],

@@ -57,7 +57,7 @@ describe('hook calls', () => {
     expect(rec.findings.some((f: { ruleId: string }) => f.ruleId === 'responsiveness.map')).toBe(true);
     expect(rec.advice.responsiveness.value).toMatch(/^(likely|unlikely|indeterminate)$/);
     expect(rec.advice.recommendation.action).toBeTruthy();
-    expect(rec.gathering).toHaveLength(11);
+    expect(rec.gathering).toHaveLength(12);
     expect(rec.rulesVersion).toBe(s.svc.rulesVersion);
   });
 
