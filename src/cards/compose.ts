@@ -10,6 +10,7 @@ import type { DraftOrder, PatientSnapshot } from '../snapshot/types.js';
 import type { Catalogue } from './catalogue.js';
 import type { CardModel } from './render.js';
 import { kindLabel } from './render.js';
+import { formatAge } from './format.js';
 import { requestTest, smallerAliquot, withdrawDraft, type SuggestionContext, type TestKind } from './suggestions.js';
 
 const GATHER_PROBLEM = new Set(['unavailable', 'http-error', 'timeout', 'network-error', 'not-fhir', 'truncated']);
@@ -159,6 +160,12 @@ export function composeCards(input: ComposeInput): CardModel[] {
   else conclusion.push(`${capital(tolerancePhrase)}: no marker of fluid tolerance could be assessed`);
   const nextTest = rec?.nextTest ?? advice.responsiveness?.nextTest;
   if (advice.responsiveness?.value === 'indeterminate' && nextTest) conclusion.push(`What would settle it: ${nextTest}`);
+  if (!orderHook) {
+    // The overview names the newest evidence behind the responsiveness verdict and its age.
+    const deciding = advice.findings.filter((f) => f.status === 'assessed' && advice.responsiveness?.decidingRules.includes(f.ruleId));
+    const newest = deciding.flatMap((f) => f.evidence.map((e) => ({ f, e }))).sort((a, b) => a.e.ageMinutes - b.e.ageMinutes)[0];
+    if (newest) conclusion.push(`Latest responsiveness evidence: ${newest.f.text} (${formatAge(newest.e.ageMinutes)} ago)`);
+  }
   const options = (rec?.alternatives ?? []).filter((a) => a !== nextTest);
   if (options.length) conclusion.push(`Options to weigh (choice and dose with the treating team): ${options.join('; ')}`);
 

@@ -123,3 +123,26 @@ describe('order-sign and patient-view cards are conformant too', () => {
     expect(view.body.cards[0].suggestions).toBeUndefined();
   });
 });
+
+describe('patient-view overview', () => {
+  it('gives balance and % overload, the tolerance verdict with its limits, and the latest responsiveness evidence with its age', async () => {
+    const { basicResources } = await import('../helpers/hook-fixtures.js');
+    const b = await import('../../examples/lib/fhir-builders.js');
+    const r0 = basicResources();
+    const P = 'tm-pat-ward4-017';
+    const t = (m: number) => b.minutesAgo(NOW, m);
+    // 12 L in, 4 L out since admission at 70 kg: Goldstein 2001 %FO = (12 − 4) / 70 × 100 = 11.4 %.
+    r0['body'] = [b.numeric('wt-adm', P, 'bodyWeight', 70, t(25 * 60))];
+    r0['balance'] = [
+      b.numeric('in-1', P, 'fluidIntake', 12_000, t(30), { periodStart: t(25 * 60) }),
+      b.numeric('out-1', P, 'fluidOutput', 4_000, t(30), { periodStart: t(25 * 60) }),
+    ];
+    r0['hemodynamics'] = [b.dynamicTest('plr-ov', P, 'plr', 'cardiacOutput', 4.0, 4.6, t(25))];
+    const view = await post(`${s.url}/cds-services/fluid-overview`, patientViewRequest(prefetchOf(r0)));
+    const card = view.body.cards[0];
+    expect(checkCdsResponse(view.body)).toEqual([]);
+    expect(card.summary).toMatch(/^Fluid overview: tolerance limited, overload 11\.4 %; likely fluid responsive$/);
+    expect(card.detail).toMatch(/Fluid overload 11\.4 %/);
+    expect(card.detail).toMatch(/Latest responsiveness evidence: .*Passive leg rais.* \(25 min ago\)/);
+  });
+});
