@@ -4,7 +4,7 @@
  */
 import type { Logger } from 'pino';
 import { resolveThresholds } from './assess/thresholds.js';
-import { rulesVersion } from './assess/rules-version.js';
+import { rulesVersion } from './config/rules-version.js';
 import { openAuditStore } from './audit/open-store.js';
 import type { AuditStore } from './audit/types.js';
 import { loadCatalogue } from './cards/catalogue.js';
