@@ -12,6 +12,8 @@ async function main(): Promise<void> {
   }
   try {
     const svc = await buildService(cfg);
+    // A stray rejection must not take the service down mid-shift: log it (ids only) and keep serving.
+    process.on('unhandledRejection', (e) => svc.log.error({ err: String((e as Error)?.message ?? e).slice(0, 200) }, 'unhandled rejection'));
     const server = svc.app.listen(cfg.PORT, cfg.HOST, () => {
       const addr = server.address();
       const port = typeof addr === 'object' && addr ? addr.port : cfg.PORT;

@@ -58,6 +58,7 @@ export function fhirFetcher(baseUrl: string, accessToken?: string): Fetcher {
 
 /** Settles when `p` does or when the budget runs out, whichever is first, even if the fetcher ignores the signal. */
 function withinBudget<T>(p: Promise<T>, signal: AbortSignal): Promise<T> {
+  p.catch(() => undefined); // a late failure after the budget has run out is already accounted for
   if (signal.aborted) return Promise.reject(signal.reason as Error);
   return new Promise<T>((resolve, reject) => {
     const onAbort = () => reject(signal.reason as Error);
