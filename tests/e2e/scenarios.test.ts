@@ -14,6 +14,7 @@ import type { BuiltScenario, Scenario } from '../../examples/scenarios/types.js'
 import { nonUtcTimes, startEmbeddedFhir, type EmbeddedFhir } from '../../src/devserver/embedded-fhir.js';
 import { resolvePrefetchTemplate } from '../../src/hooks/prefetch-tokens.js';
 import { cardSchema } from '../../src/hooks/schemas.js';
+import { checkCdsResponse } from '../../src/hooks/conformance.js';
 import { PREFETCH } from '../../src/hooks/services.js';
 import { validateFhir } from '../../src/fhir/validator.js';
 import { get, startService, type Running } from '../helpers/server.js';
@@ -203,6 +204,8 @@ describe.each(ROUTES.map((r) => [r] as const))('Tidemark via %s', (route) => {
     expect(run.serviceId).toBe(serviceIdFor(chart(s).hook));
     const cards = run.body.cards ?? [];
     for (const c of cards) expect(cardSchema.safeParse(c).error?.issues ?? []).toEqual([]);
+    expect(checkCdsResponse(run.body)).toEqual([]);
+    for (const c of cards) for (const sug of c.suggestions ?? []) for (const a of sug.actions ?? []) if (a.resource) expect(validateFhir(a.resource)).toEqual([]);
     if (s.expect.indicator === 'no-card') expect(cards).toEqual([]);
     else expect(cards.length).toBeGreaterThanOrEqual(1);
     expect(run.record?.['outcome']).toBe('answered');

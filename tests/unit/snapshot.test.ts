@@ -105,3 +105,20 @@ describe('buildSnapshot', () => {
     expect(s.encounter).toMatchObject({ ref: 'Encounter/e1', start: '2026-11-19T08:00:00.000Z' });
   });
 });
+
+describe('fluid ordered as a ServiceRequest', () => {
+  it('reads the fluid class from the text and the volume from quantityQuantity', () => {
+    const sr = b.serviceOrder('sr-1', P, 'Fluid bolus: compound sodium lactate', t(1));
+    (sr as any).quantityQuantity = { value: 0.5, unit: 'L', system: 'http://unitsofmeasure.org', code: 'L' };
+    const s = snap([], { draftOrders: { entry: [{ resource: sr }, { resource: b.serviceOrder('sr-2', P, 'Chest X-ray', t(1)) }] } });
+    expect(s.draftOrders.map((o) => [o.ref, o.isFluid, o.fluidClass, o.volumeMl])).toEqual([
+      ['ServiceRequest/sr-1', true, 'balanced-crystalloid', 500],
+      ['ServiceRequest/sr-2', false, undefined, undefined],
+    ]);
+  });
+  it('an oral or subcutaneous route is not an IV bolus', () => {
+    const mr = b.bolusOrder('mr-po', P, b.FLUIDS.saline, 500, 30, t(1));
+    mr.dosageInstruction![0]!.route = { text: 'oral' };
+    expect(snap([], { draftOrders: { entry: [{ resource: mr }] } }).draftOrders[0]?.isFluid).toBe(false);
+  });
+});
