@@ -205,7 +205,9 @@ describe.each(ROUTES.map((r) => [r] as const))('Tidemark via %s', (route) => {
     const cards = run.body.cards ?? [];
     for (const c of cards) expect(cardSchema.safeParse(c).error?.issues ?? []).toEqual([]);
     expect(checkCdsResponse(run.body)).toEqual([]);
-    for (const c of cards) for (const sug of c.suggestions ?? []) for (const a of sug.actions ?? []) if (a.resource) expect(validateFhir(a.resource)).toEqual([]);
+    for (const c of cards as Array<{ suggestions?: Array<{ actions?: Array<{ resource?: unknown }> }> }>) {
+      for (const sug of c.suggestions ?? []) for (const a of sug.actions ?? []) if (a.resource) expect(validateFhir(a.resource)).toEqual([]);
+    }
     if (s.expect.indicator === 'no-card') expect(cards).toEqual([]);
     else expect(cards.length).toBeGreaterThanOrEqual(1);
     expect(run.record?.['outcome']).toBe('answered');

@@ -14,12 +14,12 @@ const ISS = 'https://records.harbourside.example.org/cds-client';
 const PUBLIC = 'https://cds.harbourside.example.org/tidemark';
 let secure: Running;
 let locked: Running;
-let privateKey: CryptoKey;
+let privateKey: Awaited<ReturnType<typeof generateKeyPair>>['privateKey'];
 let kid = '';
 
 beforeAll(async () => {
   const pair = await generateKeyPair('ES384', { extractable: true });
-  privateKey = pair.privateKey as CryptoKey;
+  privateKey = pair.privateKey;
   const jwk = { ...(await exportJWK(pair.publicKey)), alg: 'ES384', use: 'sig' };
   kid = await calculateJwkThumbprint(jwk);
   const dir = mkdtempSync(join(tmpdir(), 'tm-auth-'));
