@@ -57,6 +57,16 @@ function gapWhat(f: Finding): string {
 /** A reason that only says the marker was never recorded (as opposed to stale, invalid or confounded). */
 const NOT_RECORDED = /^(no .*recorded|missing\b)/i;
 
+/** One gap line without saying the same thing twice ("PPV: PPV stale …" → "PPV stale …"). */
+function gapLine(what: string, why: string): CardModel['gaps'][number] {
+  const w = what.toLowerCase();
+  const y = why.toLowerCase();
+  if (y.startsWith(w)) return { what: why, why: '' };
+  const lead = y.split(/[\s:(]+/).filter(Boolean).slice(0, 2).join(' ');
+  if (lead && w.includes(lead)) return { what, why: '' };
+  return { what, why };
+}
+
 export function gapsOf(advice: Advice, snapshot: PatientSnapshot, gathering: GatherOutcome[], purposes: Record<string, string>): CardModel['gaps'] {
   const gaps: CardModel['gaps'] = [];
   for (const o of gathering) if (GATHER_PROBLEM.has(o.status)) gaps.push({ what: `Data: ${purposes[o.key] ?? o.key}`, why: gatherWhy(o) });
@@ -66,7 +76,7 @@ export function gapsOf(advice: Advice, snapshot: PatientSnapshot, gathering: Gat
     if (f.status !== 'not-assessed') continue;
     if (NOT_RECORDED.test(f.reason ?? '')) {
       if (!absent.includes(gapWhat(f))) absent.push(gapWhat(f));
-    } else gaps.push({ what: gapWhat(f), why: f.reason ?? 'not assessed' });
+    } else gaps.push(gapLine(gapWhat(f), f.reason ?? 'not assessed'));
   }
   // … and markers never recorded on one line, so the card stays readable.
   if (absent.length) gaps.push({ what: 'Not recorded', why: absent.join(', ') });
@@ -89,9 +99,16 @@ function capital(s: string): string {
   return s ? `${s[0]?.toUpperCase()}${s.slice(1)}` : s;
 }
 
+/** Nothing current to go on: no clinical finding assessed, and at least one marker set aside as stale. */
+function onlyStaleData(advice: Advice): boolean {
+  const clinical = advice.findings.filter((f) => f.topic !== 'order');
+  return !clinical.some((f) => f.status === 'assessed') && clinical.some((f) => /\bstale\b/i.test(f.reason ?? ''));
+}
+
 function headlineKey(advice: Advice): string | undefined {
   const rec = advice.recommendation;
   if (!rec) return undefined;
+  if (onlyStaleData(advice)) return 'stale-data/any';
   const r = rec.cell.split('/')[0] ?? 'indeterminate';
   if (rec.indicator === 'critical') return `congestion/${r}`;
   if (!rec.toleranceAssessed) return `tolerance-unknown/${r}`;

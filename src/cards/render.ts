@@ -71,7 +71,7 @@ export function renderCard(model: CardModel, cat: Catalogue, ctx: RenderContext)
       const unique = rows.filter((r) => (seen.has(r.join('|')) ? false : (seen.add(r.join('|')), true)));
       if (unique.length) parts.push(`**${title}**\n\n${table(['Marker', 'Value', 'Time (age)', 'Source'], unique)}`);
     }
-    if (section === 'gaps' && model.gaps.length) parts.push(`**${title}**\n\n${model.gaps.map((g) => `- ${md(g.what)}: ${md(g.why)}`).join('\n')}`);
+    if (section === 'gaps' && model.gaps.length) parts.push(`**${title}**\n\n${model.gaps.map((g) => `- ${md(g.what)}${g.why ? `: ${md(g.why)}` : ''}`).join('\n')}`);
     if (section === 'order' && model.order.length) parts.push(`**${title}**\n\n${model.order.map((c) => `- ${md(c)}`).join('\n')}`);
     if (section === 'cautions') parts.push(`**${title}**\n\n${cat.cautions.map((c) => `- ${md(c)}`).join('\n')}`);
   }

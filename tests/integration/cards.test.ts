@@ -146,3 +146,19 @@ describe('patient-view overview', () => {
     expect(card.detail).toMatch(/Latest responsiveness evidence: .*Passive leg rais.* \(25 min ago\)/);
   });
 });
+
+describe('stale data only', () => {
+  it('says so in the summary instead of giving a verdict-based headline, and lists each stale marker with its age', async () => {
+    const late = await startService({}, { now: () => new Date(NOW.getTime() + 8 * 3600_000) });
+    try {
+      const r = await post(`${late.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['test-first']) }));
+      const card = r.body.cards[0];
+      expect(checkCdsResponse(r.body)).toEqual([]);
+      expect(card.summary).toBe('No current data on the chart: re-examine and re-measure before deciding on this bolus');
+      expect(card.detail).toMatch(/- MAP stale \(age 490 min, window 60 min\)/);
+      expect(card.detail).not.toMatch(/MAP: MAP stale/);
+    } finally {
+      await late.stop();
+    }
+  });
+});
