@@ -40,6 +40,11 @@ export function conceptText(cc: CodeableConcept | undefined): string {
   return [cc.text, ...(cc.coding ?? []).map((c) => c.display)].filter(Boolean).join(' ');
 }
 
+/** What to show a person: the text, else the first coding's display. */
+export function conceptLabel(cc: CodeableConcept | undefined): string {
+  return cc?.text ?? cc?.coding?.find((c) => c.display)?.display ?? '';
+}
+
 export function classifyFluid(cc: CodeableConcept | undefined): FluidClass | undefined {
   for (const c of cc?.coding ?? []) {
     if (c.system === RXNORM && c.code && RXNORM_FLUIDS[c.code]) return RXNORM_FLUIDS[c.code];
