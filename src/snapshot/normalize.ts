@@ -11,7 +11,7 @@ import {
   CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, SNOMED, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
   type DynamicMeasured, type NumericKind,
 } from '../fhir/codes.js';
-import { classifyFluid, classifyVasoactive, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
+import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
 import { convert, toCanonical } from '../fhir/units.js';
 import type {
   CodedMeasurement, ConditionEntry, DraftOrder, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
@@ -209,7 +209,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     if (volumeMl === undefined || !Number.isFinite(volumeMl)) return void exclude(ref, 'no-value', 'no volume (dosage.dose in mL, or rate over a period)', 'fluid');
     if (volumeMl <= 0 || volumeMl > 10_000) return void exclude(ref, 'impossible-value', `${round(volumeMl)} mL is not a plausible single administration`, 'fluid');
     fluids.push({
-      ref, fluidClass: fluidClass as NonNullable<typeof fluidClass>, display: conceptText(m.medicationCodeableConcept) || 'IV fluid', volumeMl: roundMl(volumeMl),
+      ref, fluidClass: fluidClass as NonNullable<typeof fluidClass>, display: conceptLabel(m.medicationCodeableConcept) || 'IV fluid', volumeMl: roundMl(volumeMl),
       start, end: end ?? start, status: m.status, ageMinutes: age(end ?? start),
     });
   }
@@ -284,7 +284,7 @@ function readFluidRequest(m: MedicationRequest, base: DraftOrder): DraftOrder {
   const dose = m.dosageInstruction?.[0];
   const iv = isIntravenous(dose?.route);
   if (!fluidClass || iv === false) return base;
-  const order: DraftOrder = { ...base, isFluid: true, fluidClass, display: conceptText(m.medicationCodeableConcept) || 'IV fluid' };
+  const order: DraftOrder = { ...base, isFluid: true, fluidClass, display: conceptLabel(m.medicationCodeableConcept) || 'IV fluid' };
   const dr = dose?.doseAndRate?.[0];
   const durationMin = durationMinutes(dose?.timing?.repeat?.duration, dose?.timing?.repeat?.durationUnit);
   if (durationMin !== undefined) order.durationMin = durationMin;
@@ -300,7 +300,7 @@ function readFluidService(s: ServiceRequest, base: DraftOrder): DraftOrder {
   const text = [conceptText(s.code), ...(s.orderDetail ?? []).map(conceptText)].join(' ');
   const fluidClass = fluidClassFromText(text);
   if (!fluidClass) return base;
-  const order: DraftOrder = { ...base, isFluid: true, fluidClass, display: conceptText(s.code) || 'IV fluid' };
+  const order: DraftOrder = { ...base, isFluid: true, fluidClass, display: conceptLabel(s.code) || 'IV fluid' };
   const q = s.quantityQuantity;
   const ml = q ? convert(q.value ?? NaN, q.code ?? q.unit, 'mL') : undefined;
   if (ml !== undefined && Number.isFinite(ml) && ml > 0) return { ...order, volumeMl: roundMl(ml) };
