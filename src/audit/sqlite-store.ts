@@ -1,12 +1,17 @@
 /**
  * SQLite audit store (embedded default): better-sqlite3, WAL journal, synchronous=FULL so that a committed
- * record survives a process kill or power loss. Writes are synchronous inside a transaction; the async
- * interface wraps them so the PostgreSQL adapter fits beside it.
+ * record survives a process kill or power loss. Appends go to a writer thread with a connection of its own
+ * (src/audit/sqlite-writer.ts), which commits them in groups; each append settles only after its record has
+ * committed. Reads, feedback and the integrity check use this thread's connection. An in-memory database
+ * (':memory:', which a second connection could not see) appends on this thread, with the same group commit.
  */
 import { mkdirSync } from 'node:fs';
 import { dirname } from 'node:path';
-import Database from 'better-sqlite3';
+import { Worker } from 'node:worker_threads';
+import type Database from 'better-sqlite3';
 import { chainHash, GENESIS } from './chain.js';
+import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type AppendResult, type PreparedRecord } from './sqlite-append.js';
+import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
 import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
 import { summarize, feedbackKey } from './shared.js';
 
@@ -52,41 +57,146 @@ CREATE INDEX IF NOT EXISTS feedback_card ON feedback (card_uuid);
 
 interface AdviceRow { seq: number; record: string; prev_hash: string; hash: string }
 
+interface Waiter {
+  resolve: (v: { seq: number; hash: string }) => void;
+  reject: (e: unknown) => void;
+}
+
+/** An error from the writer thread, as the caller would have seen it on this thread (message, name, code). */
+function writerError(e: WriterError): Error {
+  const err = new Error(e.message) as Error & { code?: string };
+  if (e.name) err.name = e.name;
+  if (e.code) err.code = e.code;
+  return err;
+}
+
 export class SqliteAuditStore implements AuditStore {
   readonly kind = 'sqlite';
   private db: Database.Database;
 
   constructor(readonly path: string) {
     if (path !== ':memory:') mkdirSync(dirname(path), { recursive: true });
-    this.db = new Database(path);
-    this.db.pragma('journal_mode = WAL');
-    this.db.pragma('synchronous = FULL');
-    this.db.pragma('foreign_keys = ON');
-    this.db.pragma('busy_timeout = 5000');
+    this.db = openAuditDb(path);
   }
 
   async init(): Promise<void> {
     this.db.exec(SCHEMA);
     const check = this.db.pragma('quick_check', { simple: true });
     if (check !== 'ok') throw new Error(`audit database ${this.path} failed its integrity check: ${String(check)}`);
+    if (this.path !== ':memory:') this.startWriter();
   }
 
-  async append(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
-    const tx = this.db.transaction((r: AdviceRecord) => {
-      const last = this.db.prepare('SELECT hash FROM advice ORDER BY seq DESC LIMIT 1').get() as { hash: string } | undefined;
-      const prev = last?.hash ?? GENESIS;
-      const hash = chainHash(prev, r);
-      const info = this.db
-        .prepare(
-          `INSERT INTO advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash)
-           VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-        )
-        .run(r.id, r.recordedAt, r.service, r.hook, r.hookInstance, r.patientId ?? null, r.encounterId ?? null, r.outcome, r.rulesVersion, JSON.stringify(r), prev, hash);
-      const card = this.db.prepare('INSERT INTO advice_card (card_uuid, advice_id, card_kind, service) VALUES (?, ?, ?, ?)');
-      for (const [uuid, kind] of Object.entries(r.cardKinds)) card.run(uuid, r.id, kind, r.service);
-      return { seq: Number(info.lastInsertRowid), hash };
+  // ------------------------------------------------------------ appends on the writer thread (file databases)
+
+  private writer: Worker | undefined;
+  private nextId = 0;
+  private readonly waiting = new Map<number, Waiter>();
+  private drained: (() => void) | undefined;
+  private closing = false;
+
+  private startWriter(): Worker {
+    const w = new Worker(new URL('./sqlite-writer.mjs', import.meta.url), { workerData: { path: this.path } });
+    w.on('message', (m: WriterOut) => {
+      if (m.type === 'done') {
+        for (const r of m.results) {
+          const waiter = this.waiting.get(r.id);
+          if (!waiter) continue;
+          this.waiting.delete(r.id);
+          if (r.ok) waiter.resolve({ seq: r.seq, hash: r.hash });
+          else waiter.reject(writerError(r.error));
+        }
+        this.settled();
+      } else if (m.type === 'fatal') {
+        this.failAll(writerError(m.error));
+      }
     });
-    return tx.immediate(rec);
+    w.on('error', (e) => this.failAll(e));
+    w.on('exit', () => {
+      if (this.writer === w) this.writer = undefined;
+      // Whatever was in flight has no acknowledgement: it may or may not have committed, so no advice is given.
+      this.failAll(new Error('the audit writer thread stopped'));
+    });
+    w.unref(); // an idle writer does not keep the process alive; it is ref'd while appends wait (see append)
+    this.writer = w;
+    return w;
+  }
+
+  private failAll(e: unknown): void {
+    for (const [id, waiter] of this.waiting) (this.waiting.delete(id), waiter.reject(e));
+    this.settled();
+  }
+
+  private settled(): void {
+    if (this.waiting.size) return;
+    this.writer?.unref();
+    const drained = this.drained;
+    this.drained = undefined;
+    drained?.();
+  }
+
+  /**
+   * Group commit: the writer thread commits the records that arrive while it is busy in one IMMEDIATE
+   * transaction (one WAL fsync), each chained to the one before it. The promise settles only after the
+   * transaction holding this record has committed, so a record is durable before its caller answers.
+   */
+  async append(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
+    if (this.closing || !this.db.open) throw new TypeError('The database connection is not open');
+    if (this.path === ':memory:') return this.appendHere(rec);
+    const w = this.writer ?? this.startWriter();
+    const id = (this.nextId += 1);
+    let message: WriterIn = { type: 'append', id, rec };
+    return new Promise((resolve, reject) => {
+      try {
+        try {
+          w.postMessage(message);
+        } catch (e) {
+          // A record the structured clone cannot copy (a function, a class instance) is made into its texts here.
+          if ((e as Error)?.name !== 'DataCloneError') throw e;
+          const prepared = prepareRecord(rec);
+          message = { type: 'append-prepared', id, prepared };
+          w.postMessage(message);
+        }
+      } catch (e) {
+        reject(e);
+        return;
+      }
+      this.waiting.set(id, { resolve, reject });
+      w.ref();
+    });
+  }
+
+  // ------------------------------------------------------------ appends on this thread (':memory:')
+
+  private pending: Array<{ prepared: PreparedRecord } & Waiter> = [];
+  private appendBatch?: (batch: readonly PreparedRecord[]) => AppendResult[];
+
+  private appendHere(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
+    const prepared = prepareRecord(rec);
+    return new Promise((resolve, reject) => {
+      this.pending.push({ prepared, resolve, reject });
+      if (this.pending.length === 1) setImmediate(() => this.flushHere());
+    });
+  }
+
+  /** Writes and commits what is pending (synchronously), then settles each caller's promise. */
+  private flushHere(): void {
+    while (this.pending.length) {
+      const batch = this.pending.splice(0, MAX_BATCH);
+      let done: AppendResult[];
+      try {
+        this.appendBatch ??= createBatchAppender(this.db);
+        done = this.appendBatch(batch.map((p) => p.prepared));
+      } catch (e) {
+        // BEGIN or COMMIT failed: nothing of this batch was stored.
+        for (const p of batch) p.reject(e);
+        continue;
+      }
+      batch.forEach((p, i) => {
+        const r = done[i];
+        if (r?.ok) p.resolve({ seq: r.seq, hash: r.hash });
+        else p.reject(r ? r.error : new Error('audit append lost'));
+      });
+    }
   }
 
   async get(id: string): Promise<StoredAdvice | undefined> {
@@ -211,7 +321,22 @@ export class SqliteAuditStore implements AuditStore {
   }
 
   async close(): Promise<void> {
-    if (this.db.open) this.db.close();
+    this.closing = true;
+    const w = this.writer;
+    if (w) {
+      // Appends already handed to the writer are committed (and answered) first.
+      if (this.waiting.size) await new Promise<void>((r) => (this.drained = r));
+      this.writer = undefined;
+      await new Promise<void>((resolve) => {
+        const kill = setTimeout(() => void w.terminate(), 5000);
+        w.once('exit', () => (clearTimeout(kill), resolve()));
+        w.postMessage({ type: 'close' } satisfies WriterIn);
+      });
+    }
+    if (this.db.open) {
+      this.flushHere(); // in-memory appends still waiting for their group commit are written first
+      this.db.close();
+    }
   }
 }
 

@@ -8,12 +8,13 @@
 import { KIND_UNITS, type CodedKind, type DynamicTestKind, type NumericKind } from '../../fhir/codes.js';
 import type { CodedMeasurement, DynamicTestResult, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug } from '../../snapshot/types.js';
 import type { Evidence } from '../types.js';
+import { parseTimeMs } from '../time.js';
 
 /** A time up to this far after `now` is clock skew and counts as age 0 (common practice). */
 export const CLOCK_SKEW_MIN = 5;
 
 export function timeMs(iso: string | undefined): number {
-  return iso === undefined ? Number.NaN : Date.parse(iso);
+  return iso === undefined ? Number.NaN : parseTimeMs(iso);
 }
 
 /** Minutes from `iso` to `now` (never negative: clock skew within CLOCK_SKEW_MIN counts as 0). */

@@ -6,12 +6,13 @@
 import { KIND_UNITS, type CodedKind, type NumericKind } from '../../fhir/codes.js';
 import type { CodedMeasurement, Measurement, PatientSnapshot } from '../../snapshot/types.js';
 import type { Evidence } from '../types.js';
+import { parseTimeMs } from '../time.js';
 
 /** A time this far after `now` is clock skew, not a future value (common practice). */
 const SKEW_MINUTES = 5;
 
 export function timeMs(iso: string | undefined): number {
-  return iso === undefined ? Number.NaN : Date.parse(iso);
+  return iso === undefined ? Number.NaN : parseTimeMs(iso);
 }
 
 export function ageMinutesAt(effective: string, now: Date): number {
@@ -109,7 +110,15 @@ export function round(value: number, decimals: number): number {
   return Math.round(value * f) / f;
 }
 
+/** One formatter per number of decimals: Number.toLocaleString builds a new Intl.NumberFormat on every call. */
+const numberFormats = new Map<number, Intl.NumberFormat>();
+
 /** Number for text with thousands separators, e.g. 2,100. */
 export function fmt(value: number, decimals = 0): string {
-  return round(value, decimals).toLocaleString('en-US', { maximumFractionDigits: decimals, minimumFractionDigits: 0 });
+  let nf = numberFormats.get(decimals);
+  if (!nf) {
+    nf = new Intl.NumberFormat('en-US', { maximumFractionDigits: decimals, minimumFractionDigits: 0 });
+    numberFormats.set(decimals, nf);
+  }
+  return nf.format(round(value, decimals));
 }
