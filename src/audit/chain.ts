@@ -1,4 +1,14 @@
-/** The audit hash chain: hash_n = sha256(hash_{n-1} + canonical JSON of record n). */
+/**
+ * The audit hash chain: hash_n = sha256(hash_{n-1} + the stored JSON text of record n, UTF-8).
+ *
+ * Both stores keep a record's text exactly as written (SQLite TEXT, PostgreSQL text, never jsonb), so the text
+ * itself is hashed: any changed byte shows, and a verifier needs nothing but sha256. Records written before
+ * this rule (Tidemark 0.1.0) were hashed over canonicalJson of the record (keys sorted); verification still
+ * accepts that hash for them (storedHashMatches), so an existing audit database keeps verifying.
+ *
+ * The stored text (recordText) leaves out one copy of the findings: the record carries them at its top level
+ * and, inside the advice, again. parseRecordText puts them back, so a record reads back as it was given.
+ */
 import { createHash } from 'node:crypto';
 import type { AdviceRecord } from './types.js';
 
@@ -79,30 +89,39 @@ function canonical(v: unknown): string {
   return `${s}}`;
 }
 
+/** The stored JSON text of a record: JSON.stringify, with `advice.findings` left out when it is the record's own `findings`. */
+export function recordText(rec: AdviceRecord): string {
+  const advice = rec.advice;
+  if (advice && advice.findings === rec.findings) return JSON.stringify({ ...rec, advice: { ...advice, findings: undefined } });
+  return JSON.stringify(rec);
+}
+
+/** A stored record text read back: `advice.findings` restored from the record's findings when the text left it out. */
+export function parseRecordText(text: string): AdviceRecord {
+  const rec = JSON.parse(text) as AdviceRecord;
+  if (rec.advice && rec.advice.findings === undefined && Array.isArray(rec.findings)) rec.advice.findings = rec.findings;
+  return rec;
+}
+
+/** The chain hash of a record from the previous hash and the record's stored text. */
+export function chainHashOfText(prevHash: string, text: string): string {
+  return createHash('sha256').update(prevHash, 'utf8').update(text, 'utf8').digest('hex');
+}
+
 /**
- * canonicalJson of a plain object, as parts whose concatenation is that text: `{"key":` and each value's
- * canonical JSON, keys sorted. For the hash of a large record: one string over 128 KB (a record with any
- * character beyond Latin-1 is stored two bytes a character) is a large heap object, and allocating one costs
- * more than building the text (about 1 ms on the benchmark machine); the parts stay small.
+ * Whether a stored record's hash is the one its text gives: the hash of the text itself, or, for a record written
+ * by Tidemark 0.1.0, the hash of canonicalJson of the parsed text. A text that no longer parses can match only the first.
  */
-export function canonicalJsonParts(o: Record<string, unknown>): string[] {
-  const parts: string[] = [];
-  for (const k of Object.keys(o).sort()) {
-    const x = o[k];
-    if (x === undefined) continue;
-    parts.push(`${parts.length ? ',' : '{'}${JSON.stringify(k)}:`, canonicalJson(x));
+export function storedHashMatches(prevHash: string, text: string, hash: string): boolean {
+  if (chainHashOfText(prevHash, text) === hash) return true;
+  try {
+    return chainHash(prevHash, JSON.parse(text) as AdviceRecord) === hash;
+  } catch {
+    return false;
   }
-  parts.push(parts.length ? '}' : '{}');
-  return parts;
 }
 
-/** The chain hash from the previous hash and a record's canonical JSON given in parts (canonicalJsonParts). */
-export function chainHashOfParts(prevHash: string, parts: readonly string[]): string {
-  const h = createHash('sha256').update(prevHash);
-  for (const p of parts) h.update(p);
-  return h.digest('hex');
-}
-
+/** The hash rule of Tidemark 0.1.0: sha256(hash_{n-1} + canonicalJson(record_n)). Kept to verify records it wrote. */
 export function chainHash(prevHash: string, rec: AdviceRecord): string {
   return createHash('sha256').update(prevHash).update(canonicalJson(rec)).digest('hex');
 }

@@ -6,15 +6,15 @@
  * - The hash chain must stay linear however many replicas append at once, so each append takes a
  *   transaction-scoped advisory lock keyed on the schema, reads the last hash, inserts, and commits
  *   (the lock is released at commit). seq is an identity column taken under that lock, so seq order is chain order.
- * - The record is kept as the JSON text it was hashed from (a text column, not jsonb, which would reorder
- *   keys and normalise numbers), so verifyChain recomputes the same hash.
+ * - The record is kept as the JSON text that was hashed (a text column, not jsonb, which would reorder
+ *   keys and normalise numbers), so verifyChain recomputes the same hash from the same bytes.
  * - Text that is compared or sorted (recorded_at, card_kind, reason_code, outcome_timestamp) uses the "C"
  *   collation: byte order, as SQLite's BINARY, whatever the database's default collation is.
  */
 import { createHash } from 'node:crypto';
 import pg from 'pg';
 import type { PoolClient } from 'pg';
-import { chainHash, GENESIS } from './chain.js';
+import { chainHashOfText, GENESIS, parseRecordText, recordText, storedHashMatches } from './chain.js';
 import { rowToFeedback } from './sqlite-store.js';
 import { feedbackKey, summarize } from './shared.js';
 import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
@@ -144,14 +144,14 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async append(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
-    const json = JSON.stringify(rec);
+    const json = recordText(rec);
     return this.tx(async (c) => {
       await c.query('SELECT pg_advisory_xact_lock($1::bigint)', [this.chainLock]);
       // A new statement, so its snapshot is taken after the lock: it sees the last committed append.
       const last = await c.query<{ hash: string }>(`SELECT hash FROM ${this.s}.advice ORDER BY seq DESC LIMIT 1`);
       const prev = last.rows[0]?.hash ?? GENESIS;
-      // Hash what is stored, so verification recomputes exactly this value.
-      const hash = chainHash(prev, JSON.parse(json) as AdviceRecord);
+      // The hash covers exactly the text stored (src/audit/chain.ts).
+      const hash = chainHashOfText(prev, json);
       const ins = await c.query<{ seq: string }>(
         `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash)
          VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12) RETURNING seq`,
@@ -167,7 +167,7 @@ export class PostgresAuditStore implements AuditStore {
   async get(id: string): Promise<StoredAdvice | undefined> {
     const r = await this.pool.query<AdviceRow>(`SELECT seq, record, prev_hash, hash FROM ${this.s}.advice WHERE id = $1`, [id]);
     const row = r.rows[0];
-    return row ? { ...(JSON.parse(row.record) as AdviceRecord), seq: Number(row.seq), prevHash: row.prev_hash, hash: row.hash } : undefined;
+    return row ? { ...parseRecordText(row.record), seq: Number(row.seq), prevHash: row.prev_hash, hash: row.hash } : undefined;
   }
 
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
@@ -192,7 +192,7 @@ export class PostgresAuditStore implements AuditStore {
       `SELECT seq, record, prev_hash, hash FROM ${this.s}.advice ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY seq DESC LIMIT $${args.length}`,
       args,
     );
-    const page = r.rows.slice(0, q.limit).map((row) => ({ ...(JSON.parse(row.record) as AdviceRecord), seq: Number(row.seq) }));
+    const page = r.rows.slice(0, q.limit).map((row) => ({ ...parseRecordText(row.record), seq: Number(row.seq) }));
     const counts = await this.feedbackCounts(page.map((p) => p.id));
     const items = page.map((p) => summarize(p, counts));
     const last = page[page.length - 1];
@@ -294,7 +294,7 @@ export class PostgresAuditStore implements AuditStore {
       );
       for (const row of r.rows) {
         checked += 1;
-        if (row.prev_hash !== prev || recomputed(prev, row.record) !== row.hash) return { ok: false, checked, firstBadSeq: Number(row.seq) };
+        if (row.prev_hash !== prev || !storedHashMatches(prev, row.record, row.hash)) return { ok: false, checked, firstBadSeq: Number(row.seq) };
         prev = row.hash;
         after = row.seq;
       }
@@ -313,11 +313,3 @@ export class PostgresAuditStore implements AuditStore {
   }
 }
 
-/** The hash a stored record text gives; a text that no longer parses gives none (it cannot match). */
-function recomputed(prev: string, recordText: string): string | undefined {
-  try {
-    return chainHash(prev, JSON.parse(recordText) as AdviceRecord);
-  } catch {
-    return undefined;
-  }
-}

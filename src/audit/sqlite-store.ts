@@ -9,7 +9,7 @@ import { mkdirSync } from 'node:fs';
 import { dirname } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import type Database from 'better-sqlite3';
-import { chainHash, GENESIS } from './chain.js';
+import { GENESIS, parseRecordText, storedHashMatches } from './chain.js';
 import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type AppendResult, type PreparedRecord } from './sqlite-append.js';
 import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
 import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
@@ -144,18 +144,10 @@ export class SqliteAuditStore implements AuditStore {
     if (this.path === ':memory:') return this.appendHere(rec);
     const w = this.writer ?? this.startWriter();
     const id = (this.nextId += 1);
-    let message: WriterIn = { type: 'append', id, rec };
+    const prepared = prepareRecord(rec);
     return new Promise((resolve, reject) => {
       try {
-        try {
-          w.postMessage(message);
-        } catch (e) {
-          // A record the structured clone cannot copy (a function, a class instance) is made into its texts here.
-          if ((e as Error)?.name !== 'DataCloneError') throw e;
-          const prepared = prepareRecord(rec);
-          message = { type: 'append-prepared', id, prepared };
-          w.postMessage(message);
-        }
+        w.postMessage({ type: 'append', id, prepared } satisfies WriterIn);
       } catch (e) {
         reject(e);
         return;
@@ -201,7 +193,7 @@ export class SqliteAuditStore implements AuditStore {
 
   async get(id: string): Promise<StoredAdvice | undefined> {
     const row = this.db.prepare('SELECT seq, record, prev_hash, hash FROM advice WHERE id = ?').get(id) as AdviceRow | undefined;
-    return row ? { ...(JSON.parse(row.record) as AdviceRecord), seq: row.seq, prevHash: row.prev_hash, hash: row.hash } : undefined;
+    return row ? { ...parseRecordText(row.record), seq: row.seq, prevHash: row.prev_hash, hash: row.hash } : undefined;
   }
 
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
@@ -216,8 +208,9 @@ export class SqliteAuditStore implements AuditStore {
       .prepare(`SELECT seq, record, prev_hash, hash FROM advice ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY seq DESC LIMIT ?`)
       .all(...args, q.limit + 1) as AdviceRow[];
     const page = rows.slice(0, q.limit);
-    const counts = this.feedbackCounts(page.map((r) => (JSON.parse(r.record) as AdviceRecord).id));
-    const items = page.map((r) => summarize({ ...(JSON.parse(r.record) as AdviceRecord), seq: r.seq }, counts));
+    const records = page.map((r) => ({ ...parseRecordText(r.record), seq: r.seq }));
+    const counts = this.feedbackCounts(records.map((r) => r.id));
+    const items = records.map((r) => summarize(r, counts));
     const last = page[page.length - 1];
     return rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
   }
@@ -310,7 +303,7 @@ export class SqliteAuditStore implements AuditStore {
     let checked = 0;
     for (const row of this.db.prepare('SELECT seq, record, prev_hash, hash FROM advice ORDER BY seq').iterate() as IterableIterator<AdviceRow>) {
       checked += 1;
-      if (row.prev_hash !== prev || recomputed(prev, row.record) !== row.hash) return { ok: false, checked, firstBadSeq: row.seq };
+      if (row.prev_hash !== prev || !storedHashMatches(prev, row.record, row.hash)) return { ok: false, checked, firstBadSeq: row.seq };
       prev = row.hash;
     }
     return { ok: true, checked };
@@ -340,14 +333,6 @@ export class SqliteAuditStore implements AuditStore {
   }
 }
 
-/** The hash a stored record text gives; a text that no longer parses gives none (it cannot match). */
-function recomputed(prev: string, recordText: string): string | undefined {
-  try {
-    return chainHash(prev, JSON.parse(recordText) as AdviceRecord);
-  } catch {
-    return undefined;
-  }
-}
 
 function rowToFeedback(r: Record<string, string | null>): FeedbackRow {
   const reason = r['reason_code'] || r['reason_system'] || r['reason_display']

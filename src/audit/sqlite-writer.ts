@@ -4,20 +4,18 @@
  * that answers CDS calls. A record is acknowledged only after its transaction has committed; records that
  * arrive while a commit is under way are committed together in the next one (group commit).
  *
- * Messages in:  { type: 'append', id, rec } | { type: 'append-prepared', id, prepared } | { type: 'close' }
+ * Messages in:  { type: 'append', id, prepared } (the record's columns and stored text, made on the main thread) | { type: 'close' }
  * Messages out: { type: 'ready' } | { type: 'done', results: [{ id, ok, seq, hash } | { id, ok: false, error }] }
  *               | { type: 'fatal', error } | { type: 'closed' }
  * Started through sqlite-writer.mjs (which makes TypeScript loadable in a worker).
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import type { AdviceRecord } from './types.js';
-import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type PreparedRecord } from './sqlite-append.js';
+import { createBatchAppender, MAX_BATCH, openAuditDb, type PreparedRecord } from './sqlite-append.js';
 
 export interface WriterError { message: string; name?: string; code?: string }
 
 export type WriterIn =
-  | { type: 'append'; id: number; rec: AdviceRecord }
-  | { type: 'append-prepared'; id: number; prepared: PreparedRecord }
+  | { type: 'append'; id: number; prepared: PreparedRecord }
   | { type: 'close' };
 
 export type WriterOut =
@@ -89,7 +87,7 @@ function flush(): void {
         return r?.ok ? { id: p.id, ok: true as const, seq: r.seq, hash: r.hash } : { id: p.id, ok: false as const, error: errorOf(r ? r.error : new Error('audit append lost')) };
       }),
     });
-    for (const p of batch) sinceCheckpoint += p.prepared.text.byteLength;
+    for (const p of batch) sinceCheckpoint += p.prepared.text.length; // characters: close enough to bytes for pacing checkpoints
   }
   checkpointIfDue();
 }
@@ -102,15 +100,7 @@ port.on('message', (m: WriterIn) => {
     port.close();
     return;
   }
-  let prepared: PreparedRecord;
-  try {
-    if (m.type === 'append') prepared = prepareRecord(m.rec);
-    else prepared = { ...m.prepared, text: Buffer.from(m.prepared.text.buffer, m.prepared.text.byteOffset, m.prepared.text.byteLength) };
-  } catch (e) {
-    post({ type: 'done', results: [{ id: m.id, ok: false, error: errorOf(e) }] });
-    return;
-  }
-  pending.push({ id: m.id, prepared });
+  pending.push({ id: m.id, prepared: m.prepared });
   if (!scheduled) {
     scheduled = true;
     setImmediate(flush);

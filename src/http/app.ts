@@ -46,6 +46,9 @@ export function createApp(deps: AppDeps): express.Express {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', false);
+  // No ETag: every answer is computed for one call and sent with Cache-Control: no-store, so a hash of the body
+  // (express hashes every JSON answer for it) would buy nothing.
+  app.set('etag', false);
   const cds = deps.cdsClientAuth ?? pass;
   const audit = deps.auditAuth ?? pass;
   const json = express.json({ limit: deps.bodyLimit, type: ['application/json', 'application/fhir+json', 'application/*+json'] });

@@ -4,7 +4,7 @@
  * Connection: TIDEMARK_TEST_PG_URL, default postgres://postgres@127.0.0.1:5432/test.
  * All ids, patients and texts below are invented.
  */
-import { randomUUID } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -71,6 +71,8 @@ function adviceRecord(o: AdviceOpts = {}): AdviceRecord {
   };
 }
 
+const sha256Hex = (s: string): string => createHash('sha256').update(s, 'utf8').digest('hex');
+
 function cardsOf(r: AdviceRecord): string[] {
   return r.cards.map((c) => c.uuid ?? '');
 }
@@ -92,6 +94,8 @@ interface Harness {
   fresh(): Promise<AuditStore>;
   recordText(seq: number): Promise<string>;
   setRecordText(seq: number, text: string): Promise<void>;
+  /** Overwrites a row's prev_hash and hash. */
+  setChain(seq: number, prevHash: string, hash: string): Promise<void>;
   /** Deletes an advice row and its cards (and their feedback). */
   deleteAdvice(seq: number): Promise<void>;
 }
@@ -128,6 +132,9 @@ function sqliteHarness(): Harness {
     },
     async setRecordText(seq, text) {
       raw((db) => db.prepare('UPDATE advice SET record = ? WHERE seq = ?').run(text, seq));
+    },
+    async setChain(seq, prevHash, hash) {
+      raw((db) => db.prepare('UPDATE advice SET prev_hash = ?, hash = ? WHERE seq = ?').run(prevHash, hash, seq));
     },
     async deleteAdvice(seq) {
       raw((db) => {
@@ -183,6 +190,9 @@ function postgresHarness(): Harness {
     async setRecordText(seq, text) {
       await q(`UPDATE "${schema}".advice SET record = $1 WHERE seq = $2`, [text, seq]);
     },
+    async setChain(seq, prevHash, hash) {
+      await q(`UPDATE "${schema}".advice SET prev_hash = $1, hash = $2 WHERE seq = $3`, [prevHash, hash, seq]);
+    },
     async deleteAdvice(seq) {
       const id = String((await q(`SELECT id FROM "${schema}".advice WHERE seq = $1`, [seq])).rows[0]?.id);
       await q(`DELETE FROM "${schema}".feedback WHERE card_uuid IN (SELECT card_uuid FROM "${schema}".advice_card WHERE advice_id = $1)`, [id]);
@@ -229,13 +239,15 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const a1 = await store.append(r1);
     const a2 = await store.append(r2);
     expect(a2.seq).toBeGreaterThan(a1.seq);
-    // The chain is the one chain.ts defines, so both adapters give the same hashes for the same records.
-    expect(a1.hash).toBe(chainHash(GENESIS, r1));
-    expect(a2.hash).toBe(chainHash(a1.hash, r2));
+    // The stored text is the record's JSON, and the chain is sha256(previous hash + that text) as docs/audit.md
+    // states it, recomputed here with node:crypto alone: both adapters give the same hashes for the same records.
+    const t1 = await h.recordText(a1.seq);
+    const t2 = await h.recordText(a2.seq);
+    expect(t1).toBe(JSON.stringify(r1));
+    expect(a1.hash).toBe(sha256Hex(GENESIS + t1));
+    expect(a2.hash).toBe(sha256Hex(a1.hash + t2));
     expect(await store.get(r1.id)).toEqual({ ...r1, seq: a1.seq, hash: a1.hash, prevHash: GENESIS });
     expect(await store.get(r2.id)).toEqual({ ...r2, seq: a2.seq, hash: a2.hash, prevHash: a1.hash });
-    // The stored text is exactly the JSON that was hashed.
-    expect(await h.recordText(a1.seq)).toBe(JSON.stringify(r1));
     expect(await store.get('no-such-advice')).toBeUndefined();
   });
 
@@ -252,6 +264,48 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const r2 = adviceRecord();
     await store.append(r2);
     expect(await store.verifyChain()).toEqual({ ok: true, checked: 2 });
+  });
+
+  it('stores the findings once when the advice carries the same list, and reads the record back whole', async () => {
+    await open();
+    const base = adviceRecord();
+    const rec: AdviceRecord = {
+      ...base,
+      advice: { rulesVersion: base.rulesVersion, now: at(0), findings: base.findings, ruleErrors: [] },
+    };
+    const a = await store.append(rec);
+    const text = await h.recordText(a.seq);
+    expect(text.split('"ruleId":"perfusion.map"')).toHaveLength(2); // one copy of the finding, not two
+    expect(JSON.parse(text).advice).toEqual({ rulesVersion: base.rulesVersion, now: at(0), ruleErrors: [] });
+    expect(a.hash).toBe(sha256Hex(GENESIS + text));
+    const back = await store.get(rec.id);
+    expect(back?.advice?.findings).toEqual(base.findings);
+    expect(back).toEqual({ ...rec, seq: a.seq, hash: a.hash, prevHash: GENESIS });
+    // A record whose advice holds other findings than its own list is stored as given.
+    const other: AdviceRecord = { ...adviceRecord(), advice: { rulesVersion: 'r', now: at(0), findings: [], ruleErrors: [] } };
+    await store.append(other);
+    expect((await store.get(other.id))?.advice?.findings).toEqual([]);
+    expect(await store.verifyChain()).toEqual({ ok: true, checked: 2 });
+  });
+
+  it('still verifies records written under the 0.1.0 rule (hash over canonical JSON), and a changed byte in a new one', async () => {
+    await open();
+    const recs = [adviceRecord({ at: 0 }), adviceRecord({ at: 1 }), adviceRecord({ at: 2 })];
+    const seqs = await appendAll(recs);
+    // Rewrite the first two as 0.1.0 wrote them: hash_n = sha256(hash_n-1 + canonicalJson(record_n)).
+    let prev = GENESIS;
+    for (const [i, r] of recs.slice(0, 2).entries()) {
+      const hash = chainHash(prev, r);
+      await h.setChain(seqs[i] ?? -1, prev, hash);
+      prev = hash;
+    }
+    // The third, written under today's rule, now follows the second's legacy hash.
+    const t3 = await h.recordText(seqs[2] ?? -1);
+    await h.setChain(seqs[2] ?? -1, prev, sha256Hex(prev + t3));
+    expect(await store.verifyChain()).toEqual({ ok: true, checked: 3 });
+    // Whitespace changes no meaning but does change the text that the new rule hashed: it shows.
+    await h.setRecordText(seqs[2] ?? -1, t3.replace('{', '{ '));
+    expect(await store.verifyChain()).toEqual({ ok: false, checked: 3, firstBadSeq: seqs[2] });
   });
 
   it('verifies an intact chain and names the first record whose text was changed', async () => {
@@ -531,7 +585,7 @@ describe('PostgreSQL audit store shared by several replicas', () => {
     const ra = adviceRecord();
     await a.append(ra);
     const rb = adviceRecord();
-    expect((await b.append(rb)).hash).toBe(chainHash(GENESIS, rb));
+    expect((await b.append(rb)).hash).toBe(sha256Hex(GENESIS + JSON.stringify(rb)));
     expect(await b.get(ra.id)).toBeUndefined();
   });
 
