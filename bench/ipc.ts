@@ -2,16 +2,26 @@
 export type ChildMessage =
   | { type: 'ready'; url: string }
   | { type: 'rss'; rss: number; heapUsed: number; at: number }
+  /** process.cpuUsage() of the whole child (every thread), in microseconds, when the parent asked. */
+  | { type: 'usage'; userUs: number; systemUs: number }
   | { type: 'error'; message: string };
 
-export type ParentMessage = { type: 'stop' } | { type: 'load'; bundle: unknown };
+export type ParentMessage = { type: 'stop' } | { type: 'load'; bundle: unknown } | { type: 'usage' };
 
 export function send(m: ChildMessage): void {
   process.send?.(m);
 }
 
-/** Starts reporting RSS to the parent every second (unref'd: it never keeps the child alive). */
+/**
+ * Starts reporting RSS to the parent every second (unref'd: it never keeps the child alive), and answers the
+ * parent's 'usage' question with the CPU time this process has used so far.
+ */
 export function reportRss(): void {
+  process.on('message', (m: ParentMessage) => {
+    if (m?.type !== 'usage') return;
+    const u = process.cpuUsage();
+    send({ type: 'usage', userUs: u.user, systemUs: u.system });
+  });
   const tick = () => {
     const m = process.memoryUsage();
     send({ type: 'rss', rss: m.rss, heapUsed: m.heapUsed, at: Date.now() });

@@ -118,12 +118,29 @@ async function startService(label: string, store: 'sqlite' | 'noop', extraEnv: R
 
 // ---------------------------------------------------------------- measuring
 
-interface Run { closed: LoadResult; rate: LoadResult }
+/** A load run and the CPU time (user + system, every thread of the process under load) it cost per 2xx answer. */
+type Measured = LoadResult & { cpuMsPerAnswer: number };
+interface Run { closed: Measured; rate: Measured }
 
-async function measure(url: string, body: string, rate: number): Promise<Run> {
+async function cpuUsedMs(child: Child): Promise<number> {
+  const answer = child.next('usage', 5000);
+  child.send({ type: 'usage' });
+  const m = await answer;
+  return m.type === 'usage' ? (m.userUs + m.systemUs) / 1000 : Number.NaN;
+}
+
+/** runLoad, with the CPU the child used meanwhile (read over IPC just before and just after). */
+async function loadWithCpu(child: Child, o: Parameters<typeof runLoad>[0]): Promise<Measured> {
+  const before = await cpuUsedMs(child);
+  const r = await runLoad(o);
+  const after = await cpuUsedMs(child);
+  return { ...r, cpuMsPerAnswer: r.ok ? (after - before) / r.ok : Number.NaN };
+}
+
+async function measure(child: Child, url: string, body: string, rate: number): Promise<Run> {
   await runLoad({ url, body, connections: opts.connections, durationSec: opts.warmup });
-  const closed = await runLoad({ url, body, connections: opts.connections, durationSec: opts.duration });
-  const fixed = await runLoad({ url, body, connections: Math.min(opts.rateConnections, rate), durationSec: opts.duration, rate, shape: opts.rateShape });
+  const closed = await loadWithCpu(child, { url, body, connections: opts.connections, durationSec: opts.duration });
+  const fixed = await loadWithCpu(child, { url, body, connections: Math.min(opts.rateConnections, rate), durationSec: opts.duration, rate, shape: opts.rateShape });
   return { closed, rate: fixed };
 }
 
@@ -210,6 +227,11 @@ function printCase(title: string, t: Run, c: Run | undefined, rate = opts.rate):
   out(`  ${rateLabel(rate)}, ${opts.duration} s`);
   out(row('Tidemark', t.rate));
   if (c) (out(row('ceiling', c.rate)), out(ratioRow(t.rate, c.rate)));
+  const cpu = (label: string, a: Measured, b: Measured | undefined) =>
+    out(`    CPU per answer, ${label}: Tidemark ${f2(a.cpuMsPerAnswer)} ms${b ? `, ceiling ${f2(b.cpuMsPerAnswer)} ms: ${(a.cpuMsPerAnswer / b.cpuMsPerAnswer).toFixed(2)}×` : ''}`);
+  out('  (CPU: user + system time of the whole process, every thread, over the run, divided by its 2xx answers)');
+  cpu('closed loop', t.closed, c?.closed);
+  cpu('fixed rate', t.rate, c?.rate);
   if (t.rate.late > 0.01 * (t.rate.ok + t.rate.late)) {
     out(`    (Tidemark did not keep up with ${rate} req/s: ${t.rate.late} requests went out late, and their wait to be sent is not in the latency)`);
   }
@@ -265,7 +287,7 @@ async function main(): Promise<void> {
   const ceilingFor = async (key: 'select' | 'fhir' | 'view', rate = opts.rate): Promise<Run> => {
     const have = ceilingRuns.get(key);
     if (have) return have;
-    const run = await measure(`${ceiling.url}/cds-services/bolus-review-select`, bodies[key], rate);
+    const run = await measure(ceiling, `${ceiling.url}/cds-services/bolus-review-select`, bodies[key], rate);
     ceilingRuns.set(key, run);
     return run;
   };
@@ -279,10 +301,10 @@ async function main(): Promise<void> {
     await runLoad({ url, body: bodies[key], connections: opts.connections, durationSec: opts.warmup });
     const a0 = await auditWriteStats(svc.child.url);
     const seqA = store === 'sqlite' ? maxSeq(svc.dbPath) : 0;
-    const closed = await runLoad({ url, body: bodies[key], connections: opts.connections, durationSec: opts.duration });
+    const closed = await loadWithCpu(svc.child, { url, body: bodies[key], connections: opts.connections, durationSec: opts.duration });
     const a1 = await auditWriteStats(svc.child.url);
     const seqB = store === 'sqlite' ? maxSeq(svc.dbPath) : 0;
-    const rate = await runLoad({ url, body: bodies[key], connections: Math.min(opts.rateConnections, rateValue), durationSec: opts.duration, rate: rateValue, shape: opts.rateShape });
+    const rate = await loadWithCpu(svc.child, { url, body: bodies[key], connections: Math.min(opts.rateConnections, rateValue), durationSec: opts.duration, rate: rateValue, shape: opts.rateShape });
     const a2 = await auditWriteStats(svc.child.url);
     const timings = store === 'sqlite' ? { closed: recordTimings(svc.dbPath, seqA, seqB), rate: recordTimings(svc.dbPath, seqB) } : undefined;
     const dbBytes = store === 'sqlite' ? statSync(svc.dbPath).size : 0;
@@ -341,6 +363,7 @@ async function main(): Promise<void> {
         out(row('no-op store', n));
         const perReq = mode === 'closed' ? `per request ${f2(1000 / s.rps - 1000 / n.rps)} ms more service time (1/throughput), ` : '';
         out(`    ${'difference'.padEnd(22)}${perReq}p50 ${f2(s.p50 - n.p50)} ms, p99 ${f2(s.p99 - n.p99)} ms`);
+        out(`    ${'CPU per answer'.padEnd(22)}SQLite store ${f2(s.cpuMsPerAnswer)} ms, no-op store ${f2(n.cpuMsPerAnswer)} ms: the audit write costs ${f2(s.cpuMsPerAnswer - n.cpuMsPerAnswer)} ms of CPU (all threads)`);
       }
       out();
     }
