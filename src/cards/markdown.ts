@@ -1,8 +1,13 @@
 /** Markdown helpers. Values from FHIR data are escaped so that they cannot inject markup or raw HTML. */
 
+const NEEDS_ESCAPE = /[\r\n&<>\\`*_[\]|~]/;
+
 /** Escapes the characters that start inline Markdown (emphasis, code, links, tables, strike) and HTML. Values only ever stand inside our own lines. */
 export function md(value: unknown): string {
-  return String(value)
+  const s = String(value);
+  // Most values (numbers, units, plain words) hold none of these characters: returned as they are, without five passes.
+  if (!NEEDS_ESCAPE.test(s)) return s;
+  return s
     .replace(/[\r\n]+/g, ' ')
     .replace(/&/g, '&amp;')
     .replace(/</g, '&lt;')

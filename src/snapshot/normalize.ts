@@ -13,6 +13,7 @@ import {
 } from '../fhir/codes.js';
 import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
 import { convert, toCanonical } from '../fhir/units.js';
+import { isoInstant, parseTimeMs } from './time.js';
 import type {
   CodedMeasurement, ConditionEntry, DraftOrder, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
 } from './types.js';
@@ -33,6 +34,41 @@ const MEASURED_UNITS: Record<DynamicMeasured, string> = {
   cardiacOutput: 'L/min', cardiacIndex: 'L/min/m2', strokeVolume: 'mL', pulsePressure: 'mm[Hg]', vti: 'cm', ppv: '%', svv: '%',
 };
 
+/** A period start as an ISO instant; an unreadable one throws as `new Date(NaN).toISOString()` does (the resource is then excluded as malformed). */
+function periodStartIso(raw: string): string {
+  const t = isoInstant(raw);
+  if (!t) throw new RangeError('Invalid time value');
+  return t.iso;
+}
+
+/**
+ * The kind of the first entry of `list` (in list order) that any of the codings names: the same answer as
+ * `list.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind`, by map lookups
+ * instead of a scan of every code for every coding of every Observation.
+ */
+export function kindLookup<K extends string>(list: ReadonlyArray<{ system: string; code: string; kind: K }>): (codings: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>) => K | undefined {
+  const at = new Map<string, number>();
+  list.forEach((c, i) => {
+    const key = `${c.system}|${c.code}`;
+    if (!at.has(key)) at.set(key, i);
+  });
+  return (codings) => {
+    let best = -1;
+    for (const x of codings) {
+      if (x.system === undefined || x.code === undefined) continue;
+      const i = at.get(`${x.system}|${x.code}`);
+      if (i !== undefined && (best < 0 || i < best)) best = i;
+    }
+    return best < 0 ? undefined : list[best]?.kind;
+  };
+}
+const NUMERIC_KIND_OF = kindLookup(OBSERVATION_CODES);
+const CODED_KIND_OF = kindLookup(CODED_OBSERVATION_CODES);
+const DYNAMIC_KIND_OF = kindLookup(DYNAMIC_TEST_CODES);
+/** The first code listed for each numeric kind (the code a measurement's `original` names). */
+const CODE_OF_KIND = new Map<string, (typeof OBSERVATION_CODES)[number]>();
+for (const c of OBSERVATION_CODES) if (!CODE_OF_KIND.has(c.kind)) CODE_OF_KIND.set(c.kind, c);
+
 /** SNOMED CT answers some feeds use for rhythm (from memory; verify): 49436004 atrial fibrillation. */
 const SNOMED_RHYTHM: Record<string, string> = { '49436004': 'atrial-fibrillation' };
 
@@ -49,16 +85,16 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
   let patient: PatientSnapshot['patient'] = { ref: patientRef, sex: 'unknown' };
   let encounter: PatientSnapshot['encounter'];
 
-  const age = (iso: string) => Math.round((nowMs - Date.parse(iso)) / 60_000);
+  const age = (iso: string) => Math.round((nowMs - parseTimeMs(iso)) / 60_000);
   const exclude = (ref: string, reason: Exclusion['reason'], detail: string, kind?: string) =>
     excluded.push(kind ? { ref, reason, detail, kind } : { ref, reason, detail });
   /** Checks a time: returns the UTC ISO instant, or undefined after recording why it is unusable. */
   const checkTime = (ref: string, raw: string | undefined, kind?: string): string | undefined => {
     if (!raw) return void exclude(ref, 'no-time', 'no effective time', kind);
-    const ms = Date.parse(raw);
-    if (Number.isNaN(ms)) return void exclude(ref, 'no-time', `"${raw}" is not a date-time`, kind);
-    if (ms > nowMs + FUTURE_SKEW_MS) return void exclude(ref, 'future-time', `${raw} is in the future`, kind);
-    return new Date(ms).toISOString();
+    const t = isoInstant(raw);
+    if (!t) return void exclude(ref, 'no-time', `"${raw}" is not a date-time`, kind);
+    if (t.ms > nowMs + FUTURE_SKEW_MS) return void exclude(ref, 'future-time', `${raw} is in the future`, kind);
+    return t.iso;
   };
   const belongs = (ref: string, subject: { reference?: string | undefined } | undefined): boolean => {
     if (subject?.reference === patientRef || subject?.reference?.endsWith(`/${patientRef}`)) return true;
@@ -99,10 +135,10 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
 
   function readObservation(o: Observation, ref: string): void {
     const codings = o.code?.coding ?? [];
-    const numericKind = OBSERVATION_CODES.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind;
-    const codedKind = CODED_OBSERVATION_CODES.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind;
-    const dynamicKind = DYNAMIC_TEST_CODES.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind;
-    const componentKinds = (o.component ?? []).map((c) => ({ c, kind: OBSERVATION_CODES.find((k) => (c.code?.coding ?? []).some((x) => x.system === k.system && x.code === k.code))?.kind }));
+    const numericKind = NUMERIC_KIND_OF(codings);
+    const codedKind = CODED_KIND_OF(codings);
+    const dynamicKind = DYNAMIC_KIND_OF(codings);
+    const componentKinds = (o.component ?? []).map((c) => ({ c, kind: NUMERIC_KIND_OF(c.code?.coding ?? []) }));
     const readable = numericKind || codedKind || dynamicKind || componentKinds.some((x) => x.kind);
     if (!readable) return; // not one of ours: ignored (a search may return more than we asked)
     const kindName = numericKind ?? codedKind ?? dynamicKind ?? 'panel';
@@ -113,7 +149,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     }
     const effective = checkTime(ref, o.effectiveDateTime ?? o.effectiveInstant ?? o.effectivePeriod?.end ?? o.effectivePeriod?.start, kindName);
     if (!effective) return;
-    const periodStart = o.effectivePeriod?.start && o.effectivePeriod.end ? new Date(Date.parse(o.effectivePeriod.start)).toISOString() : undefined;
+    const periodStart = o.effectivePeriod?.start && o.effectivePeriod.end ? periodStartIso(o.effectivePeriod.start) : undefined;
 
     if (dynamicKind) return readDynamic(o, ref, dynamicKind, effective);
     if (codedKind) {
@@ -145,7 +181,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     if (!conv.ok) return void exclude(ref, conv.reason, conv.detail, kind);
     const [lo, hi] = KIND_BOUNDS[kind];
     if (conv.value < lo || conv.value > hi) return void exclude(ref, 'impossible-value', `${round(conv.value)} ${conv.unit} is outside ${lo}–${hi}`, kind);
-    const code = OBSERVATION_CODES.find((c) => c.kind === kind);
+    const code = CODE_OF_KIND.get(kind);
     measurements.push({
       kind, value: conv.value, unit: conv.unit,
       original: { value: q.value, unit: unit ?? '', code: code?.code ?? '', system: code?.system ?? '' },
@@ -226,10 +262,10 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     });
   }
 
-  measurements.sort((a, b) => (a.kind === b.kind ? Date.parse(b.effective) - Date.parse(a.effective) : a.kind < b.kind ? -1 : 1));
-  coded.sort((a, b) => Date.parse(b.effective) - Date.parse(a.effective));
-  dynamicTests.sort((a, b) => Date.parse(b.effective) - Date.parse(a.effective));
-  fluids.sort((a, b) => Date.parse(b.end) - Date.parse(a.end));
+  measurements.sort((a, b) => (a.kind === b.kind ? parseTimeMs(b.effective) - parseTimeMs(a.effective) : a.kind < b.kind ? -1 : 1));
+  coded.sort((a, b) => parseTimeMs(b.effective) - parseTimeMs(a.effective));
+  dynamicTests.sort((a, b) => parseTimeMs(b.effective) - parseTimeMs(a.effective));
+  fluids.sort((a, b) => parseTimeMs(b.end) - parseTimeMs(a.end));
 
   return {
     patient, ...(encounter ? { encounter } : {}), now: now.toISOString(),

@@ -8,7 +8,7 @@
 import { KIND_UNITS, type CodedKind, type DynamicTestKind, type NumericKind } from '../../fhir/codes.js';
 import type { CodedMeasurement, DynamicTestResult, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug } from '../../snapshot/types.js';
 import type { Evidence } from '../types.js';
-import { parseTimeMs } from '../time.js';
+import { parseTimeMs } from '../../snapshot/time.js';
 
 /** A time up to this far after `now` is clock skew and counts as age 0 (common practice). */
 export const CLOCK_SKEW_MIN = 5;

@@ -6,7 +6,7 @@
 import { KIND_UNITS, type CodedKind, type NumericKind } from '../../fhir/codes.js';
 import type { CodedMeasurement, Measurement, PatientSnapshot } from '../../snapshot/types.js';
 import type { Evidence } from '../types.js';
-import { parseTimeMs } from '../time.js';
+import { parseTimeMs } from '../../snapshot/time.js';
 
 /** A time this far after `now` is clock skew, not a future value (common practice). */
 const SKEW_MINUTES = 5;
@@ -120,5 +120,13 @@ export function fmt(value: number, decimals = 0): string {
     nf = new Intl.NumberFormat('en-US', { maximumFractionDigits: decimals, minimumFractionDigits: 0 });
     numberFormats.set(decimals, nf);
   }
-  return nf.format(round(value, decimals));
+  const r = round(value, decimals);
+  // Below 1,000 there is no separator to place: the shortest decimal form of r is what the formatter prints, when
+  // it has no more than `decimals` decimals and no exponent (checked, else the formatter decides). -0 prints "-0".
+  if (r > -1000 && r < 1000 && !Object.is(r, -0)) {
+    const s = String(r);
+    const dot = s.indexOf('.');
+    if (!s.includes('e') && (dot < 0 || s.length - dot - 1 <= decimals)) return s;
+  }
+  return nf.format(r);
 }
