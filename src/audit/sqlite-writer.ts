@@ -43,8 +43,10 @@ try {
   db = openAuditDb((workerData as { path: string }).path);
   // Checkpoints (WAL → database file, about 13 ms for SQLite's default 1000 pages here) are run by this thread
   // after it has acknowledged a batch, not inside the commit of whichever record crosses the threshold; the
-  // automatic one stays as a backstop far above it. Durability is the WAL's fsync at commit, as before.
-  db.pragma('wal_autocheckpoint = 10000');
+  // automatic one stays as a backstop far above it (about 40 MB of WAL, in pages of this file's size). Durability is
+  // the WAL's fsync at commit, as before.
+  const pageSize = Number(db.pragma('page_size', { simple: true })) || 4096;
+  db.pragma(`wal_autocheckpoint = ${Math.max(1000, Math.round((40 * 1024 * 1024) / pageSize))}`);
   appendBatch = createBatchAppender(db);
 } catch (e) {
   post({ type: 'fatal', error: errorOf(e) });
@@ -53,7 +55,7 @@ try {
 
 const pending: Array<{ id: number; prepared: PreparedRecord }> = [];
 let scheduled = false;
-/** Record bytes committed since the last checkpoint, and the amount (≈ 1000 pages of 4 KB) that calls for one. */
+/** Record bytes committed since the last checkpoint, and the amount (about 4 MB of WAL) that calls for one. */
 let sinceCheckpoint = 0;
 const CHECKPOINT_BYTES = 4 * 1024 * 1024;
 
