@@ -10,10 +10,10 @@ import type { AuditStore, AdviceRecord } from '../audit/types.js';
 import type { Catalogue } from '../cards/catalogue.js';
 import { composeCards } from '../cards/compose.js';
 import { renderCard } from '../cards/render.js';
-import { gather, fhirFetcher, type GatherOptions, type GatherOutcome } from '../fhir/gather.js';
+import { gather, fhirFetcher, type Gathered, type GatherOptions, type GatherOutcome } from '../fhir/gather.js';
 import { HttpError, zodIssues } from '../http/errors.js';
 import { buildSnapshot } from '../snapshot/normalize.js';
-import { HOOK_CONTEXT_SCHEMAS, hookRequestSchema, type Card, type HookName, type HookResponse } from './schemas.js';
+import { HOOK_CONTEXT_SCHEMAS, hookRequestSchema, type Card, type HookName, type HookRequest, type HookResponse } from './schemas.js';
 import type { ServiceDefinition } from './services.js';
 
 export interface EvaluateDeps {
@@ -43,6 +43,23 @@ export class AuditWriteError extends HttpError {
 
 export async function evaluateHook(service: ServiceDefinition, body: unknown, deps: EvaluateDeps, client?: AdviceRecord['client']): Promise<EvaluateResult> {
   const t0 = performance.now();
+  // The request is parsed, gathered, assessed and its record handed to the store in adviseAndStore, so that
+  // nothing of the request, the snapshot or the record is held here while the commit is awaited: on a loaded
+  // service (one call in flight per connection) the garbage collector need not copy them meanwhile.
+  const started = adviseAndStore(service, body, deps, client, t0);
+  body = undefined;
+  const made = await started;
+  await awaitAppend(deps, made.stored, made.hookInstance, made.adviceId);
+  if (made.status === 412) {
+    deps.log.info({ hookInstance: made.hookInstance, service: service.id, adviceId: made.adviceId, missing: made.missing }, 'required data could not be obtained from prefetch or the FHIR server');
+    return { status: 412, body: made.outcome, adviceId: made.adviceId };
+  }
+  deps.log.info({ hookInstance: made.hookInstance, service: service.id, adviceId: made.adviceId, cards: made.cards.length, ms: Math.round(made.totalMs) }, 'advice given');
+  return { status: 200, body: { cards: made.cards }, adviceId: made.adviceId };
+}
+
+/** Checks the request, gathers its data, then makes the advice and its record and begins the store's append. */
+async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: EvaluateDeps, client: AdviceRecord['client'] | undefined, t0: number): Promise<Made> {
   const parsed = hookRequestSchema.safeParse(body);
   if (!parsed.success) throw new HttpError(400, 'invalid', 'the request is not a valid CDS Hooks 2.0 request', zodIssues(parsed.error.issues));
   const req = parsed.data;
@@ -50,16 +67,31 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
   const hook: HookName = service.hook;
   const ctxParsed = HOOK_CONTEXT_SCHEMAS[hook].safeParse(req.context);
   if (!ctxParsed.success) throw new HttpError(400, 'invalid', `context is not a valid ${hook} context`, zodIssues(ctxParsed.error.issues, 'context'));
-  const ctx = ctxParsed.data as { userId: string; patientId: string; encounterId?: string; selections?: string[]; draftOrders?: { entry?: Array<{ resource?: unknown }> } };
+  const ctx = ctxParsed.data as HookCtx;
   if (req.prefetch) {
     const unknown = Object.keys(req.prefetch).filter((k) => !(k in service.prefetch));
     if (unknown.length) deps.log.info({ hookInstance: req.hookInstance, keys: unknown }, 'ignoring prefetch keys this service did not ask for');
   }
-
   const now = deps.now();
   const gathered = await gather(req, service, deps.gatherOptions, deps.makeFetcher);
   deps.metrics?.observeGather(gathered.outcomes);
-  const adviceId = randomUUID();
+  return adviseAndRecord(service, req, ctx, gathered, now, randomUUID(), t0, deps, client);
+}
+
+type HookCtx = { userId: string; patientId: string; encounterId?: string; selections?: string[]; draftOrders?: { entry?: Array<{ resource?: unknown }> } };
+
+/** What the answer needs once the record is stored: never the request, snapshot or record themselves. */
+type Made = { stored: Stored; hookInstance: string; adviceId: string } & (
+  | { status: 412; outcome: Record<string, unknown>; missing: string[] }
+  | { status: 200; cards: Card[]; totalMs: number }
+);
+
+/** The advice (or the 412 outcome), its audit record, and the store's append of it, begun. Synchronous up to the append. */
+function adviseAndRecord(
+  service: ServiceDefinition, req: HookRequest, ctx: HookCtx, gathered: Gathered, now: Date, adviceId: string, t0: number,
+  deps: EvaluateDeps, client: AdviceRecord['client'] | undefined,
+): Made {
+  const hook: HookName = service.hook;
   const base = {
     id: adviceId, recordedAt: new Date().toISOString(), service: service.id, hook, hookInstance: req.hookInstance,
     userId: ctx.userId, patientId: ctx.patientId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}),
@@ -67,17 +99,15 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
   };
 
   if (gathered.unobtainableRequired.length) {
-    const text = `required data could not be obtained from prefetch or the FHIR server: ${gathered.unobtainableRequired.join(', ')}`;
+    const missing = gathered.unobtainableRequired;
     const outcome = {
       resourceType: 'OperationOutcome',
       issue: gathered.outcomes
-        .filter((o) => gathered.unobtainableRequired.includes(o.key))
+        .filter((o) => missing.includes(o.key))
         .map((o) => ({ severity: 'error', code: 'incomplete', details: { text: `${o.key}: ${o.detail ?? o.status}` } })),
     };
     const rec: AdviceRecord = { ...base, outcome: 'precondition-failed', findings: [], cards: [], cardKinds: {}, timings: { totalMs: performance.now() - t0, gatherMs: gathered.ms, fhirWaitMs: gathered.fhirWaitMs, assessMs: 0 } };
-    await appendOrFail(deps, rec);
-    deps.log.info({ hookInstance: req.hookInstance, service: service.id, adviceId, missing: gathered.unobtainableRequired }, text);
-    return { status: 412, body: outcome, adviceId };
+    return { status: 412, stored: startAppend(deps, rec), hookInstance: req.hookInstance, adviceId, outcome, missing };
   }
 
   const tA = performance.now();
@@ -100,23 +130,37 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
     if (card.uuid) cardKinds[card.uuid] = m.kind;
   }
   const assessMs = performance.now() - tA;
+  const totalMs = performance.now() - t0;
   const rec: AdviceRecord = {
     ...base, outcome: 'answered', snapshot, findings: advice.findings, advice, cards, cardKinds,
-    timings: { totalMs: performance.now() - t0, gatherMs: gathered.ms, fhirWaitMs: gathered.fhirWaitMs, assessMs },
+    timings: { totalMs, gatherMs: gathered.ms, fhirWaitMs: gathered.fhirWaitMs, assessMs },
   };
-  await appendOrFail(deps, rec);
-  deps.log.info({ hookInstance: req.hookInstance, service: service.id, adviceId, cards: cards.length, ms: Math.round(rec.timings.totalMs) }, 'advice given');
-  return { status: 200, body: { cards }, adviceId };
+  return { status: 200, stored: startAppend(deps, rec), hookInstance: req.hookInstance, adviceId, cards, totalMs };
 }
 
-async function appendOrFail(deps: EvaluateDeps, rec: AdviceRecord): Promise<void> {
-  const t = performance.now();
+interface Stored { done: Promise<unknown>; startedAt: number }
+
+/** The store's append of a record, begun now (its text is made here); a store that throws at once gives a rejection. */
+function startAppend(deps: EvaluateDeps, rec: AdviceRecord): Stored {
+  const startedAt = performance.now();
+  let done: Promise<unknown>;
   try {
-    await deps.store.append(rec);
+    done = deps.store.append(rec);
+  } catch (e) {
+    done = Promise.reject(e);
+  }
+  done.catch(() => undefined); // handled in awaitAppend, a few microtasks later
+  return { done, startedAt };
+}
+
+async function awaitAppend(deps: EvaluateDeps, stored: Stored, hookInstance: string, adviceId: string): Promise<void> {
+  const t = stored.startedAt;
+  try {
+    await stored.done;
     deps.metrics?.observeAuditWrite((performance.now() - t) / 1000, true);
   } catch (e) {
     deps.metrics?.observeAuditWrite((performance.now() - t) / 1000, false);
-    deps.log.error({ hookInstance: rec.hookInstance, adviceId: rec.id, err: (e as Error).message }, 'audit write failed: no advice sent');
+    deps.log.error({ hookInstance, adviceId, err: (e as Error).message }, 'audit write failed: no advice sent');
     throw new AuditWriteError(e);
   }
 }
