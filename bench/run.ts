@@ -97,7 +97,7 @@ const FHIR_TOKEN = 'bench-fhir-token-7f3a9c';
 const children: Child[] = [];
 let serviceCount = 0;
 
-async function startService(label: string, store: 'sqlite' | 'noop', extraEnv: Record<string, string> = {}): Promise<{ child: Child; dbPath: string; profDir: string }> {
+async function startService(label: string, store: 'sqlite' | 'noop', extraEnv: Record<string, string> = {}, extraArgv: string[] = []): Promise<{ child: Child; dbPath: string; profDir: string }> {
   serviceCount += 1;
   const dbPath = join(dir, `${serviceCount}-${label}.sqlite`);
   const profDir = join(dir, `${serviceCount}-${label}-prof`);
@@ -110,7 +110,7 @@ async function startService(label: string, store: 'sqlite' | 'noop', extraEnv: R
       ...(store === 'noop' ? { BENCH_STORE: 'noop' } : {}),
       ...extraEnv,
     },
-    execArgv: opts.cpuProf ? ['--cpu-prof', `--cpu-prof-dir=${profDir}`] : [],
+    execArgv: [...(opts.cpuProf ? ['--cpu-prof', `--cpu-prof-dir=${profDir}`] : []), ...extraArgv],
   });
   children.push(child);
   return { child, dbPath, profDir };
@@ -370,15 +370,26 @@ async function main(): Promise<void> {
   }
 
   if (opts.only.has('soak')) {
-    const svc = await startService('soak', 'sqlite');
+    // --expose-gc only lets the benchmark ask for a full collection at the two ends of the soak; it changes nothing else.
+    const svc = await startService('soak', 'sqlite', {}, ['--expose-gc']);
+    const collected = async () => {
+      const answer = svc.child.next('collected', 10_000);
+      svc.child.send({ type: 'collect' });
+      const m = await answer;
+      return m.type === 'collected' && m.ran ? m : undefined;
+    };
     const url = `${svc.child.url}/cds-services/bolus-review-select`;
     const soakWarm = Math.min(30, Math.max(2, Math.round(opts.soakSeconds / 10)));
     await runLoad({ url, body: bodies.select, connections: opts.rateConnections, durationSec: soakWarm, rate: opts.soakRate, shape: opts.rateShape });
+    const heldStart = await collected();
     await new Promise((r) => setTimeout(r, 1100));
     const t0 = Date.now();
     const r = await runLoad({ url, body: bodies.select, connections: opts.rateConnections, durationSec: opts.soakSeconds, rate: opts.soakRate, shape: opts.rateShape });
     await new Promise((res) => setTimeout(res, 1100));
     const t1 = Date.now();
+    // Held memory at the two ends: RSS after a full collection, once after the warm-up and once after the soak
+    // (taken outside the sampled span, so the collections do not show in the saw-tooth below).
+    const heldEnd = await collected();
     const samples = svc.child.rss.filter((s) => s.at >= t0 - 1000 && s.at <= t1);
     const first = samples[0];
     const last = samples[samples.length - 1];
@@ -409,6 +420,10 @@ async function main(): Promise<void> {
       out(`    lowest RSS in the first half ${mb(low1)}, in the second half ${mb(low2)}; peak ${mb(peak)}; single samples first ${mb(first.rss)}, last ${mb(last.rss)}`);
       const marks = [0.2, 0.4, 0.6, 0.8].map((q) => samples[Math.floor(q * (samples.length - 1))]).filter((s): s is NonNullable<typeof s> => !!s);
       out(`    RSS along the soak: ${[first, ...marks, last].map((s) => `${Math.round((s.at - first.at) / 1000)} s ${mb(s.rss)}`).join(', ')}; V8 heap used ${mb(first.heapUsed)} → ${mb(last.heapUsed)}`);
+      if (heldStart && heldEnd) {
+        const g = ((heldEnd.rss - heldStart.rss) / heldStart.rss) * 100;
+        out(`    after a full garbage collection: RSS ${mb(heldStart.rss)} at the start, ${mb(heldEnd.rss)} at the end: ${g >= 0 ? '+' : ''}${g.toFixed(1)} %; V8 heap used ${mb(heldStart.heapUsed)} → ${mb(heldEnd.heapUsed)}`);
+      } else out('    (no reading after a full garbage collection: the child could not run one)');
       if (opts.keep) writeFileSync(join(dir, 'soak-rss.csv'), `seconds,rss_bytes,heap_used_bytes\n${samples.map((s) => `${((s.at - t0) / 1000).toFixed(0)},${s.rss},${s.heapUsed}`).join('\n')}\n`);
     }
     out(`    ${records} audit records written in all`);

@@ -207,12 +207,16 @@ describe('health', () => {
 });
 
 describe('no advice without an audit record', () => {
-  it('a failing audit write gives a 500 OperationOutcome, not unaudited cards', async () => {
+  // A store may fail by rejecting its promise or by throwing before it returns one: both must give the same 500.
+  it.each([
+    ['rejects', async () => { throw new Error('disk full'); }],
+    ['throws before returning a promise', () => { throw new Error('disk full'); }],
+  ])('a failing audit write (the store %s) gives a 500 OperationOutcome, not unaudited cards', async (_how, append) => {
     const broken = await startService({}, {
       now: () => NOW,
       store: Object.assign(Object.create(null), {
         kind: 'broken', init: async () => {}, ping: async () => {}, close: async () => {},
-        append: async () => { throw new Error('disk full'); },
+        append,
       }),
     });
     try {
