@@ -104,3 +104,21 @@ describe('adviseOrder: tolerance not assessed', () => {
     expect(a.reasons).toContain('Ordered volume not read: no volume in dosageInstruction.');
   });
 });
+
+// The matrix's headlines (kept in the audit record's recommendation) and the shipped card catalogue's (shown on the
+// card, editable by a site) are two copies of the same wording; this keeps the shipped copies from drifting apart.
+describe('matrix headlines and the shipped card catalogue', () => {
+  it('say the same for every cell, congestion and unknown-tolerance headline', async () => {
+    const { loadCatalogue } = await import('../../src/cards/catalogue.js');
+    const { catalogue } = loadCatalogue();
+    const fromMatrix: Record<string, string> = {};
+    for (const r of R) {
+      for (const t of TOL) fromMatrix[`${r}/${t}`] = ADVICE_MATRIX[r][t].headline;
+      fromMatrix[`congestion/${r}`] = CRITICAL_HEADLINE[r];
+      fromMatrix[`tolerance-unknown/${r}`] = UNKNOWN_TOLERANCE_HEADLINE[r];
+    }
+    const shipped = Object.fromEntries(Object.entries(catalogue.headlines).filter(([k]) => k in fromMatrix));
+    expect(Object.keys(shipped).sort()).toEqual(Object.keys(fromMatrix).sort());
+    expect(shipped).toEqual(fromMatrix);
+  });
+});
