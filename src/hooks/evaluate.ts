@@ -10,10 +10,10 @@ import type { AuditStore, AdviceRecord } from '../audit/types.js';
 import type { Catalogue } from '../cards/catalogue.js';
 import { composeCards } from '../cards/compose.js';
 import { renderCard } from '../cards/render.js';
-import { gather, fhirFetcher, type Gathered, type GatherOptions, type GatherOutcome } from '../fhir/gather.js';
+import { gather, fhirFetcher, type GatherOptions, type GatherOutcome } from '../fhir/gather.js';
 import { HttpError, zodIssues } from '../http/errors.js';
 import { buildSnapshot } from '../snapshot/normalize.js';
-import { HOOK_CONTEXT_SCHEMAS, hookRequestSchema, type Card, type HookName, type HookRequest, type HookResponse } from './schemas.js';
+import { HOOK_CONTEXT_SCHEMAS, hookRequestSchema, type Card, type HookName, type HookResponse } from './schemas.js';
 import type { ServiceDefinition } from './services.js';
 
 export interface EvaluateDeps {
@@ -44,8 +44,8 @@ export class AuditWriteError extends HttpError {
 export async function evaluateHook(service: ServiceDefinition, body: unknown, deps: EvaluateDeps, client?: AdviceRecord['client']): Promise<EvaluateResult> {
   const t0 = performance.now();
   // The request is parsed, gathered, assessed and its record handed to the store in adviseAndStore, so that
-  // nothing of the request, the snapshot or the record is held here while the commit is awaited: on a loaded
-  // service (one call in flight per connection) the garbage collector need not copy them meanwhile.
+  // nothing of the request, the snapshot or the record is held here while the commit is awaited (`body` is let go
+  // too): on a loaded service, one call in flight per connection, the garbage collector need not copy them meanwhile.
   const started = adviseAndStore(service, body, deps, client, t0);
   body = undefined;
   const made = await started;
@@ -58,7 +58,18 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
   return { status: 200, body: { cards: made.cards }, adviceId: made.adviceId };
 }
 
-/** Checks the request, gathers its data, then makes the advice and its record and begins the store's append. */
+type HookCtx = { userId: string; patientId: string; encounterId?: string; selections?: string[]; draftOrders?: { entry?: Array<{ resource?: unknown }> } };
+
+/** What the answer needs once the record is stored: never the request, snapshot or record themselves. */
+type Made = { stored: Stored; hookInstance: string; adviceId: string } & (
+  | { status: 412; outcome: Record<string, unknown>; missing: string[] }
+  | { status: 200; cards: Card[]; totalMs: number }
+);
+
+/**
+ * Checks the request, gathers its data, makes the advice and its record and begins the store's append. Its frame
+ * ends there, so what it made is unreachable while evaluateHook awaits the commit; only `Made` is returned.
+ */
 async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: EvaluateDeps, client: AdviceRecord['client'] | undefined, t0: number): Promise<Made> {
   const parsed = hookRequestSchema.safeParse(body);
   if (!parsed.success) throw new HttpError(400, 'invalid', 'the request is not a valid CDS Hooks 2.0 request', zodIssues(parsed.error.issues));
@@ -75,23 +86,8 @@ async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: E
   const now = deps.now();
   const gathered = await gather(req, service, deps.gatherOptions, deps.makeFetcher);
   deps.metrics?.observeGather(gathered.outcomes);
-  return adviseAndRecord(service, req, ctx, gathered, now, randomUUID(), t0, deps, client);
-}
+  const adviceId = randomUUID();
 
-type HookCtx = { userId: string; patientId: string; encounterId?: string; selections?: string[]; draftOrders?: { entry?: Array<{ resource?: unknown }> } };
-
-/** What the answer needs once the record is stored: never the request, snapshot or record themselves. */
-type Made = { stored: Stored; hookInstance: string; adviceId: string } & (
-  | { status: 412; outcome: Record<string, unknown>; missing: string[] }
-  | { status: 200; cards: Card[]; totalMs: number }
-);
-
-/** The advice (or the 412 outcome), its audit record, and the store's append of it, begun. Synchronous up to the append. */
-function adviseAndRecord(
-  service: ServiceDefinition, req: HookRequest, ctx: HookCtx, gathered: Gathered, now: Date, adviceId: string, t0: number,
-  deps: EvaluateDeps, client: AdviceRecord['client'] | undefined,
-): Made {
-  const hook: HookName = service.hook;
   const base = {
     id: adviceId, recordedAt: new Date().toISOString(), service: service.id, hook, hookInstance: req.hookInstance,
     userId: ctx.userId, patientId: ctx.patientId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}),
