@@ -8,11 +8,12 @@ import type {
   Condition, Encounter, FhirResource, MedicationAdministration, MedicationRequest, Observation, ObservationComponent, Patient, Quantity, ServiceRequest,
 } from 'fhir/r4.js';
 import {
-  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, SNOMED, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
+  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
   type DynamicMeasured, type NumericKind,
 } from '../fhir/codes.js';
 import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
 import { convert, toCanonical } from '../fhir/units.js';
+import { rhythmAnswerOf } from '../fhir/value-sets.js';
 import { isoInstant, parseTimeMs } from './time.js';
 import type {
   CodedMeasurement, ConditionEntry, DraftOrder, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
@@ -68,9 +69,6 @@ const DYNAMIC_KIND_OF = kindLookup(DYNAMIC_TEST_CODES);
 /** The first code listed for each numeric kind (the code a measurement's `original` names). */
 const CODE_OF_KIND = new Map<string, (typeof OBSERVATION_CODES)[number]>();
 for (const c of OBSERVATION_CODES) if (!CODE_OF_KIND.has(c.kind)) CODE_OF_KIND.set(c.kind, c);
-
-/** SNOMED CT answers some feeds use for rhythm (from memory; verify): 49436004 atrial fibrillation. */
-const SNOMED_RHYTHM: Record<string, string> = { '49436004': 'atrial-fibrillation' };
 
 export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotContext, now: Date): PatientSnapshot {
   const nowMs = now.getTime();
@@ -155,8 +153,9 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     if (codedKind) {
       const cc = o.valueCodeableConcept?.coding ?? [];
       const ours = cc.find((c) => c.system === TIDEMARK_ANSWERS && c.code && CODED_ANSWERS[codedKind].includes(c.code));
-      const snomed = codedKind === 'heartRhythm' ? cc.find((c) => c.system === SNOMED && c.code && SNOMED_RHYTHM[c.code]) : undefined;
-      const answer = ours?.code ?? (snomed?.code ? SNOMED_RHYTHM[snomed.code] : undefined);
+      // A rhythm may come as a SNOMED CT concept (src/fhir/value-sets/rhythm.json) instead of our answer code.
+      const snomed = codedKind === 'heartRhythm' && !ours ? cc.find((c) => rhythmAnswerOf(c) !== undefined) : undefined;
+      const answer = ours?.code ?? (snomed ? rhythmAnswerOf(snomed) : undefined);
       const orig = ours ?? snomed ?? cc[0];
       if (!answer || !orig) return void exclude(ref, 'unknown-answer', `answer ${cc.map((c) => `${c.system}|${c.code}`).join(', ') || '(none)'} is not one Tidemark reads`, codedKind);
       coded.push({ kind: codedKind, answer, original: { system: orig.system ?? '', code: orig.code ?? '', ...(orig.display ? { display: orig.display } : {}) }, effective, ageMinutes: age(effective), ref });
