@@ -7,7 +7,7 @@
 import { z } from 'zod';
 import type { ConditionEntry, FluidClass } from '../snapshot/types.js';
 import { CODED_ANSWERS } from './codes.js';
-import { icd10Matches, isSnomedConceptId, normaliseIcd10, type Icd10Rule } from './code-match.js';
+import { icd10Matches, isSnomedConceptId, normaliseIcd10 } from './code-match.js';
 import rawConditions from './value-sets/conditions.json' with { type: 'json' };
 import rawRhythm from './value-sets/rhythm.json' with { type: 'json' };
 import rawFluids from './value-sets/fluids.json' with { type: 'json' };
@@ -75,7 +75,7 @@ type Coding = { system: string; code: string };
 
 function inOwnEntries(c: Coding, set: ConditionSet, sets: ConditionSets): boolean {
   if (c.system === sets.snomedSystem) return set.snomed.some((s) => s.code === c.code.trim());
-  if (sets.icd10Systems.includes(c.system)) return set.icd10.some((r) => icd10Matches(r as Icd10Rule, c.code));
+  if (sets.icd10Systems.includes(c.system)) return set.icd10.some((r) => icd10Matches(r, c.code));
   return false;
 }
 
