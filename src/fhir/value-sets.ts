@@ -46,6 +46,8 @@ const conditionSetsSchema = z.strictObject({
     label: z.string().min(1),
     why: z.string().min(1),
     effects: z.array(z.enum(CONDITION_EFFECTS)).min(1),
+    /** The published source of each effect beyond lowering tolerance (required for high-ppv-doubtful). */
+    effectSources: z.partialRecord(z.enum(CONDITION_EFFECTS), z.string().min(1)).optional(),
     /** Groups whose members count as members of this one too (right-ventricular failure is a heart failure). */
     includes: z.array(z.enum(CONDITION_GROUP_IDS)).optional(),
     snomed: z.array(snomedEntry),
@@ -57,6 +59,9 @@ const conditionSetsSchema = z.strictObject({
   for (const id of CONDITION_GROUP_IDS) if (!ids.includes(id)) ctx.addIssue({ code: 'custom', message: `condition group ${id} is missing` });
   for (const s of v.sets) {
     sourcesKnown(v.sources, [...s.snomed, ...s.icd10], ctx, s.id);
+    if (s.effects.includes('high-ppv-doubtful') && !s.effectSources?.['high-ppv-doubtful']) {
+      ctx.addIssue({ code: 'custom', message: `${s.id}: high-ppv-doubtful needs its source in effectSources` });
+    }
     for (const inc of s.includes ?? []) {
       const target = v.sets.find((x) => x.id === inc);
       if (inc === s.id || target?.includes?.length) ctx.addIssue({ code: 'custom', message: `${s.id}: includes must be one level deep and not itself` });
@@ -66,8 +71,13 @@ const conditionSetsSchema = z.strictObject({
 export type ConditionSets = z.infer<typeof conditionSetsSchema>;
 export type ConditionSet = ConditionSets['sets'][number];
 
+/** Validates condition value sets (throws with the reasons): a bad edit of the file stops start-up. */
+export function parseConditionSets(raw: unknown): ConditionSets {
+  return conditionSetsSchema.parse(raw);
+}
+
 /** The condition value sets (value-sets/conditions.json). */
-export const CONDITION_SETS: ConditionSets = conditionSetsSchema.parse(rawConditions);
+export const CONDITION_SETS: ConditionSets = parseConditionSets(rawConditions);
 
 export interface ConditionGroupHit { id: ConditionGroupId; label: string; coding: string }
 

@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { icd10Matches, isSnomedConceptId, normaliseIcd10, verhoeffValid } from '../../src/fhir/code-match.js';
-import { activeConditionGroups, CONDITION_SETS, matchConditionGroups } from '../../src/fhir/value-sets.js';
+import { activeConditionGroups, CONDITION_SETS, matchConditionGroups, parseConditionSets, VALUE_SETS } from '../../src/fhir/value-sets.js';
 import { matchConditionSets } from '../../src/assess/tolerance/conditions.js';
 import type { ConditionEntry } from '../../src/snapshot/types.js';
 
@@ -146,4 +146,23 @@ describe('activeConditionGroups (for rules that need a group, e.g. high PPV doub
     expect(CONDITION_SETS.sets.filter((s) => s.effects.includes('high-ppv-doubtful')).map((s) => s.id)).toEqual(['right-ventricular-failure', 'pulmonary-hypertension']);
   });
   it('nothing active → nothing', () => expect(activeConditionGroups([c('Condition/x', SCT, '84114007', 'inactive')])).toEqual([]));
+});
+
+describe('a bad edit of conditions.json stops start-up', () => {
+  type Raw = { sources: Record<string, string>; sets: Array<Record<string, unknown> & { snomed: Array<{ code: string; source: string }>; icd10: Array<{ code?: string }> }> };
+  const edit = (f: (raw: Raw) => void) => {
+    const raw = structuredClone(VALUE_SETS.conditions) as unknown as Raw;
+    f(raw);
+    return () => parseConditionSets(raw);
+  };
+  it('the shipped file parses', () => expect(edit(() => {})).not.toThrow());
+  it.each([
+    ['a SNOMED CT id with a wrong check digit', (r: Raw) => { r.sets[1]!.snomed[0]!.code = '84114008'; }, /Verhoeff/],
+    ['an ICD-10 code of the wrong shape', (r: Raw) => { r.sets[1]!.icd10[0]!.code = 'I-50'; }, /not an ICD-10 code/],
+    ['an unknown source', (r: Raw) => { r.sets[0]!.snomed[0]!.source = 'a friend'; }, /unknown source .{0,4}a friend/],
+    ['a missing group', (r: Raw) => { r.sets.pop(); }, /pulmonary-hypertension is missing/],
+    ['a group listed twice', (r: Raw) => { r.sets.push(structuredClone(r.sets[0]!)); }, /listed twice/],
+    ['high-ppv-doubtful without its source', (r: Raw) => { delete r.sets[4]!['effectSources']; }, /needs its source/],
+    ['an includes two levels deep', (r: Raw) => { r.sets[4]!['includes'] = ['pulmonary-hypertension']; }, /one level deep/],
+  ] as const)('%s', (_name, f, message) => expect(edit(f)).toThrow(message));
 });
