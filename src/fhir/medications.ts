@@ -23,6 +23,12 @@ const RXNORM_VASOACTIVE: Record<string, string> = {
 
 const VASOACTIVE_TEXT = /\b(nor-?epinephrine|noradrenaline|epinephrine|adrenaline|vasopressin|phenylephrine|dopamine|dobutamine|angiotensin ii|terlipressin)\b/i;
 
+/**
+ * Hartmann's solution (compound sodium lactate) is the UK name of a lactated Ringer's composition. The same name is
+ * also an operation (Hartmann's procedure and its reversal), which a ServiceRequest may carry: not a fluid.
+ */
+const HARTMANN_FLUID = /(?<!reversal of )\bhartmann(?:['’]s|s)?(?![a-z'’])(?!\s*(procedure|operation|reversal|resection|pouch|stump))/;
+
 /** Fluid class from free text (generic names). Order matters: albumin before saline (albumin may be "in sodium chloride"). */
 export function fluidClassFromText(text: string): FluidClass | undefined {
   const t = text.toLowerCase();
@@ -32,8 +38,7 @@ export function fluidClassFromText(text: string): FluidClass | undefined {
     return 'albumin-iso';
   }
   if (/gelatin|starch|dextran/.test(t)) return 'other-colloid';
-  // Hartmann's solution (compound sodium lactate) is the UK name of a lactated Ringer's composition.
-  if (/ringer|sodium lactate|hartmann|balanced (crystalloid|solution)|multiple electrolytes|acetate.*gluconate/.test(t)) return 'balanced-crystalloid';
+  if (/ringer|sodium lactate|balanced (crystalloid|solution)|multiple electrolytes|acetate.*gluconate/.test(t) || HARTMANN_FLUID.test(t)) return 'balanced-crystalloid';
   if (/sodium chloride\s*(0\.9|9\s*mg\/ml)|0\.9\s*%\s*(sodium chloride|nacl|saline)|normal saline|\bnacl\s*0\.9|\bns\b.*bolus|saline\s*0\.9/.test(t)) return 'saline';
   if (/\b(crystalloid|fluid bolus|iv fluid|volume bolus)\b/.test(t)) return 'other';
   return undefined;

@@ -87,10 +87,17 @@ describe('fluids', () => {
     ["Hartmann's solution for infusion", 'balanced-crystalloid'],
     ['Compound sodium lactate intravenous infusion', 'balanced-crystalloid'],
     ['Hartmanns 1000 mL', 'balanced-crystalloid'],
+    ['HARTMANN’S SOLUTION', 'balanced-crystalloid'],
   ])('"%s" is read as %s', (text, cls) => {
     const s = snap([given('f1', { text })]);
     expect(s.fluids).toMatchObject([{ fluidClass: cls, volumeMl: 500, display: text }]);
   });
+  it.each([["Hartmann's procedure"], ['Reversal of Hartmann’s'], ['Hartmanns operation, laparoscopic'], ['Hartmann pouch leak']])(
+    'the operation "%s" in a ServiceRequest is not a fluid order', (text) => {
+      const s = buildSnapshot([], { patientId: P, draftOrders: { entry: [{ resource: b.serviceOrder('sr1', P, text, t(1)) }] } }, now);
+      expect(s.draftOrders).toMatchObject([{ ref: 'ServiceRequest/sr1', isFluid: false }]);
+    },
+  );
   it('RxNorm 847630 (lactated Ringer\'s clinical drug) is read by code, whatever the text', () => {
     const s = snap([given('f2', { coding: [{ system: RX, code: '847630' }], text: 'LR' })]);
     expect(s.fluids).toMatchObject([{ fluidClass: 'balanced-crystalloid' }]);
