@@ -34,6 +34,10 @@ function sourcesKnown(sources: Record<string, string>, entries: ReadonlyArray<{ 
   for (const e of entries) if (!(e.source in sources)) ctx.addIssue({ code: 'custom', message: `${where}: unknown source "${e.source}"` });
 }
 
+function sourcesUsed(sources: Record<string, string>, entries: ReadonlyArray<{ source: string }>, ctx: z.RefinementCtx): void {
+  for (const k of Object.keys(sources)) if (!entries.some((e) => e.source === k)) ctx.addIssue({ code: 'custom', message: `source "${k}" is not used` });
+}
+
 const conditionSetsSchema = z.strictObject({
   provenance: z.string().min(1),
   version: z.string(),
@@ -57,6 +61,7 @@ const conditionSetsSchema = z.strictObject({
   const ids = v.sets.map((s) => s.id);
   if (new Set(ids).size !== ids.length) ctx.addIssue({ code: 'custom', message: 'a condition group is listed twice' });
   for (const id of CONDITION_GROUP_IDS) if (!ids.includes(id)) ctx.addIssue({ code: 'custom', message: `condition group ${id} is missing` });
+  sourcesUsed(v.sources, v.sets.flatMap((s) => [...s.snomed, ...s.icd10]), ctx);
   for (const s of v.sets) {
     sourcesKnown(v.sources, [...s.snomed, ...s.icd10], ctx, s.id);
     if (s.effects.includes('high-ppv-doubtful') && !s.effectSources?.['high-ppv-doubtful']) {
@@ -145,7 +150,10 @@ const rhythmSchema = z.strictObject({
   snomedSystem: z.url(),
   sources: z.record(z.string(), z.string().min(1)),
   concepts: z.array(z.strictObject({ code: snomedEntry.shape.code, answer: z.string().refine((a) => CODED_ANSWERS.heartRhythm.includes(a), 'not a heart-rhythm answer of CODED_ANSWERS'), ...sourced })).min(1),
-}).superRefine((v, ctx) => sourcesKnown(v.sources, v.concepts, ctx, 'rhythm'));
+}).superRefine((v, ctx) => {
+  sourcesKnown(v.sources, v.concepts, ctx, 'rhythm');
+  sourcesUsed(v.sources, v.concepts, ctx);
+});
 
 /** SNOMED CT rhythm concepts and the Tidemark answer (CODED_ANSWERS.heartRhythm) each is read as. */
 export const RHYTHM_SET = rhythmSchema.parse(rawRhythm);
@@ -170,7 +178,10 @@ const fluidsSchema = z.strictObject({
     fluidClass: z.enum(FLUID_CLASSES),
     source: z.string().min(1),
   })).min(1),
-}).superRefine((v, ctx) => sourcesKnown(v.sources, v.fluids, ctx, 'fluids'));
+}).superRefine((v, ctx) => {
+  sourcesKnown(v.sources, v.fluids, ctx, 'fluids');
+  sourcesUsed(v.sources, v.fluids, ctx);
+});
 
 /** RxNorm clinical drugs of the common fluids (value-sets/fluids.json); those without rxcui are known by name only. */
 export const FLUID_SET = fluidsSchema.parse(rawFluids);

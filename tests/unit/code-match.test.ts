@@ -160,6 +160,7 @@ describe('a bad edit of conditions.json stops start-up', () => {
     ['a SNOMED CT id with a wrong check digit', (r: Raw) => { r.sets[1]!.snomed[0]!.code = '84114008'; }, /Verhoeff/],
     ['an ICD-10 code of the wrong shape', (r: Raw) => { r.sets[1]!.icd10[0]!.code = 'I-50'; }, /not an ICD-10 code/],
     ['an unknown source', (r: Raw) => { r.sets[0]!.snomed[0]!.source = 'a friend'; }, /unknown source .{0,4}a friend/],
+    ['a source no entry uses', (r: Raw) => { r.sources['spare'] = 'a list nobody cites'; }, /source .{0,4}spare.{0,4} is not used/],
     ['a missing group', (r: Raw) => { r.sets.pop(); }, /pulmonary-hypertension is missing/],
     ['a group listed twice', (r: Raw) => { r.sets.push(structuredClone(r.sets[0]!)); }, /listed twice/],
     ['high-ppv-doubtful without its source', (r: Raw) => { delete r.sets[4]!['effectSources']; }, /needs its source/],
