@@ -66,9 +66,15 @@ export function kindLookup<K extends string>(list: ReadonlyArray<{ system: strin
 const NUMERIC_KIND_OF = kindLookup(OBSERVATION_CODES);
 const CODED_KIND_OF = kindLookup(CODED_OBSERVATION_CODES);
 const DYNAMIC_KIND_OF = kindLookup(DYNAMIC_TEST_CODES);
-/** The first code listed for each numeric kind (the code a measurement's `original` names). */
+/** The first code listed for each numeric kind (what a measurement's `original` names when no coding of that kind is found). */
 const CODE_OF_KIND = new Map<string, (typeof OBSERVATION_CODES)[number]>();
 for (const c of OBSERVATION_CODES) if (!CODE_OF_KIND.has(c.kind)) CODE_OF_KIND.set(c.kind, c);
+const KIND_OF_CODE = new Map(OBSERVATION_CODES.map((c) => [`${c.system}|${c.code}`, c.kind]));
+/** The coding that was read as `kind` (so that `original` names the code the record carried, e.g. 2708-6, not 59408-5). */
+function codingRead(codings: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>, kind: NumericKind): { system: string; code: string } | undefined {
+  const c = codings.find((x) => KIND_OF_CODE.get(`${x.system}|${x.code}`) === kind);
+  return c?.system && c.code ? { system: c.system, code: c.code } : CODE_OF_KIND.get(kind);
+}
 
 export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotContext, now: Date): PatientSnapshot {
   const nowMs = now.getTime();
@@ -161,18 +167,18 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
       coded.push({ kind: codedKind, answer, original: { system: orig.system ?? '', code: orig.code ?? '', ...(orig.display ? { display: orig.display } : {}) }, effective, ageMinutes: age(effective), ref });
       return;
     }
-    if (numericKind && o.valueQuantity) addQuantity(numericKind, o.valueQuantity, ref, effective, periodStart);
+    if (numericKind && o.valueQuantity) addQuantity(numericKind, o.valueQuantity, ref, effective, periodStart, codingRead(codings, numericKind));
     else if (numericKind && !componentKinds.some((x) => x.kind)) {
       exclude(ref, 'no-value', o.dataAbsentReason ? `no value: ${conceptText(o.dataAbsentReason) || 'data absent'}` : 'no valueQuantity', numericKind);
     }
     for (const { c, kind } of componentKinds) {
       if (!kind) continue;
-      if (c.valueQuantity) addQuantity(kind, c.valueQuantity, ref, effective, periodStart);
+      if (c.valueQuantity) addQuantity(kind, c.valueQuantity, ref, effective, periodStart, codingRead(c.code?.coding ?? [], kind));
       else exclude(ref, 'no-value', 'component has no valueQuantity', kind);
     }
   }
 
-  function addQuantity(kind: NumericKind, q: Quantity, ref: string, effective: string, periodStart: string | undefined): void {
+  function addQuantity(kind: NumericKind, q: Quantity, ref: string, effective: string, periodStart: string | undefined, code: { system: string; code: string } | undefined): void {
     if (typeof q.value !== 'number' || !Number.isFinite(q.value)) return void exclude(ref, 'no-value', 'value is not a number', kind);
     if (q.comparator) return void exclude(ref, 'censored-value', `value is ${q.comparator}${q.value}: a limit, not a measurement`, kind);
     const unit = q.system === 'http://unitsofmeasure.org' && q.code ? q.code : (q.unit ?? q.code);
@@ -180,7 +186,6 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     if (!conv.ok) return void exclude(ref, conv.reason, conv.detail, kind);
     const [lo, hi] = KIND_BOUNDS[kind];
     if (conv.value < lo || conv.value > hi) return void exclude(ref, 'impossible-value', `${round(conv.value)} ${conv.unit} is outside ${lo}–${hi}`, kind);
-    const code = CODE_OF_KIND.get(kind);
     measurements.push({
       kind, value: conv.value, unit: conv.unit,
       original: { value: q.value, unit: unit ?? '', code: code?.code ?? '', system: code?.system ?? '' },

@@ -31,14 +31,19 @@ function pulseOx(id: string, spo2: number, components: Observation['component'],
 describe('saturation and inhaled oxygen', () => {
   it('LOINC 2708-6 alone is read as SpO2', () => {
     const s = snap([pulseOx('o1', 94, undefined, ['2708-6'])]);
-    expect(s.measurements).toMatchObject([{ kind: 'spo2', value: 94, unit: '%', ref: 'Observation/o1' }]);
+    expect(s.measurements).toMatchObject([{ kind: 'spo2', value: 94, unit: '%', ref: 'Observation/o1', original: { system: LOINC, code: '2708-6' } }]);
+  });
+  it('the original names the code the record carried, also for a kind with several codes (venous lactate 2519-7)', () => {
+    const lac: Observation = { resourceType: 'Observation', id: 'l1', status: 'final', subject: { reference: `Patient/${P}` }, effectiveDateTime: t(20),
+      code: { coding: [{ system: 'urn:lab', code: 'LACV' }, { system: LOINC, code: '2519-7' }] }, valueQuantity: { value: 2.1, unit: 'mmol/L', system: 'http://unitsofmeasure.org', code: 'mmol/L' } };
+    expect(snap([lac]).measurements).toMatchObject([{ kind: 'lactate', value: 2.1, original: { system: LOINC, code: '2519-7' } }]);
   });
   it('a pulse oximetry panel gives SpO2 and, from its 3150-0 component, FiO2; the 3151-8 flow rate is not read', () => {
     const s = snap([pulseOx('o2', 92, [
       { code: { coding: [{ system: LOINC, code: '3151-8', display: 'Inhaled oxygen flow rate' }] }, valueQuantity: { value: 6, unit: 'L/min', system: 'http://unitsofmeasure.org', code: 'L/min' } },
       { code: { coding: [{ system: LOINC, code: '3150-0', display: 'Inhaled oxygen concentration' }] }, valueQuantity: pct(40) },
     ])]);
-    expect(s.measurements.map((m) => [m.kind, m.value])).toEqual([['fio2', 40], ['spo2', 92]]);
+    expect(s.measurements.map((m) => [m.kind, m.value, m.original.code])).toEqual([['fio2', 40, '3150-0'], ['spo2', 92, '2708-6']]);
     expect(s.excluded).toEqual([]);
   });
   it('3150-0 as a fraction (unit 1) is converted to %', () => {
