@@ -12,7 +12,7 @@ import {
   type DynamicMeasured, type NumericKind,
 } from '../fhir/codes.js';
 import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
-import { convert, toCanonical } from '../fhir/units.js';
+import { convert, MAX_UNIT_LENGTH, toCanonical } from '../fhir/units.js';
 import { isoInstant, parseTimeMs } from './time.js';
 import type {
   CodedMeasurement, ConditionEntry, DraftOrder, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
@@ -201,7 +201,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
       const q = comp(code)?.valueQuantity;
       if (!q || typeof q.value !== 'number' || !Number.isFinite(q.value)) return void exclude(ref, 'no-value', `component ${code} has no value`, kind);
       const v = convert(q.value, q.system === 'http://unitsofmeasure.org' && q.code ? q.code : (q.unit ?? q.code), unit);
-      if (v === undefined) return void exclude(ref, 'incompatible-unit', `component ${code} unit "${q.unit ?? q.code ?? ''}" cannot be converted to ${unit}`, kind);
+      if (v === undefined) return void exclude(ref, 'incompatible-unit', `component ${code} unit "${(q.unit ?? q.code ?? '').slice(0, MAX_UNIT_LENGTH)}" cannot be converted to ${unit}`, kind);
       if (v < 0 || v > 1000) return void exclude(ref, 'impossible-value', `component ${code} value ${v} ${unit} is impossible`, kind);
       values.push(v);
     }
