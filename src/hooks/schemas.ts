@@ -10,8 +10,9 @@ import { z } from 'zod';
 
 /**
  * Deepest nesting of objects and arrays in a request body (the body itself is level 1), checked right after parsing
- * (src/http/body-shape.ts). A FHIR resource in a prefetch Bundle sits about 6 levels down and nests about 8 more
- * (extensions inside a component's coding); 64 is our own bound, with room for contained resources.
+ * (src/http/body-shape.ts). A full order-select request of the test fixtures nests 11 levels (a coding inside an
+ * Observation inside a prefetch Bundle; tests/unit/body-shape.test.ts); 64 is our own bound, with room for
+ * extensions and contained resources.
  */
 export const MAX_JSON_DEPTH = 64;
 /** Longest FHIR id: the R4 id datatype is [A-Za-z0-9\-\.]{1,64} (FHIR R4, Datatypes §2.24.0.1 "id"). */

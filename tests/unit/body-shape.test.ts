@@ -2,6 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { pathTooDeep, tooDeep } from '../../src/http/body-shape.js';
 import { MAX_JSON_DEPTH } from '../../src/hooks/schemas.js';
+import { basicResources, orderSelectRequest, prefetchOf } from '../helpers/hook-fixtures.js';
 
 /** `n` nested arrays around 0, built as text and parsed (the engine's parser does not recurse). */
 const nested = (n: number): unknown => JSON.parse(`${'['.repeat(n)}0${']'.repeat(n)}`);
@@ -29,5 +30,10 @@ describe('body depth', () => {
   });
   it('finds depth in a later sibling after a shallow one', () => {
     expect(pathTooDeep([[1], [[[2]]]], 3)).toEqual([1, 0, 0]);
+  });
+  it('a full order-select request of the fixtures nests 11 levels, far within the limit (the figure in src/hooks/schemas.ts)', () => {
+    const req = JSON.parse(JSON.stringify(orderSelectRequest({ prefetch: prefetchOf(basicResources()) })));
+    expect(pathTooDeep(req, 11)).toBeUndefined();
+    expect(pathTooDeep(req, 10)).toBeDefined();
   });
 });
