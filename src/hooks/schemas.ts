@@ -15,9 +15,9 @@ import { z } from 'zod';
  * extensions and contained resources.
  */
 export const MAX_JSON_DEPTH = 64;
-/** Longest FHIR id: the R4 id datatype is [A-Za-z0-9\-\.]{1,64} (FHIR R4, Datatypes §2.24.0.1 "id"). */
+/** Longest FHIR id: the R4 primitive type id is [A-Za-z0-9\-\.]{1,64} (FHIR R4, Data Types, "id"). */
 export const MAX_ID_LENGTH = 64;
-/** Longest resource type name taken from a client (the longest R4 name has 33 letters; 64 is our own bound). */
+/** Longest resource type name taken from a client (R4 names are far shorter; 64 is our own bound). */
 export const MAX_RESOURCE_TYPE_LENGTH = 64;
 /** Longest hook name or prefetch key (CDS Hooks names are short, "order-select"; 64 is our own bound). */
 export const MAX_NAME_LENGTH = 64;
