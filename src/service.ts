@@ -42,7 +42,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE thresholds: ${(e as Error).message}`);
   }
   const { catalogue, digest } = loadCatalogue();
-  const version = rulesVersion(digest, thresholds);
+  const version = rulesVersion(digest, thresholds, undefined, cfg.siteMap);
   const store = opts.store ?? openAuditStore(cfg, { onError: (e) => log.error({ err: e.message }, 'audit store connection error') });
   await store.init();
   const publicUrl = cfg.TIDEMARK_PUBLIC_URL ?? `http://localhost:${cfg.PORT}`;
@@ -71,6 +71,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
       });
     },
     store, catalogue, thresholds, rulesVersion: version, publicUrl, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
+    ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
     gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY },
     now: opts.now ?? (() => new Date()),
     ...(opts.makeFetcher ? { makeFetcher: opts.makeFetcher } : {}),

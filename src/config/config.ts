@@ -4,7 +4,9 @@
  * start-up with a message that names the variable.
  */
 import { readFileSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
 import { z } from 'zod';
+import { parseSiteMap, SiteMapError, type SiteMap } from '../fhir/site-map.js';
 
 const intFrom = (min: number, max: number) => z.coerce.number().int().min(min).max(max);
 const boolFrom = z.enum(['true', 'false', '1', '0', 'yes', 'no']).transform((v) => v === 'true' || v === '1' || v === 'yes');
@@ -40,6 +42,13 @@ export const fileSchema = z
     thresholds: z.record(z.string(), z.unknown()).optional(),
     issuers: z.array(z.unknown()).optional(),
     corsOrigins: z.array(z.string()).optional(),
+    /**
+     * The site's FHIR R4 ConceptMaps (docs/integration.md): each a file path (relative to this file) or the
+     * ConceptMap itself. Checked at start by src/fhir/site-map.ts; part of the rules version.
+     */
+    conceptMaps: z.array(z.union([z.string().min(1), z.record(z.string(), z.unknown())])).max(50).optional(),
+    /** Site unit text → UCUM code, for unit text that is not UCUM (docs/integration.md). Part of the rules version. */
+    unitHints: z.record(z.string(), z.string()).optional(),
   })
   .strict();
 
@@ -47,6 +56,8 @@ export type EnvConfig = z.infer<typeof envSchema>;
 export type FileConfig = z.infer<typeof fileSchema>;
 export interface AppConfig extends EnvConfig {
   file: FileConfig;
+  /** The site's maps and unit hints, checked (absent: none). */
+  siteMap?: SiteMap;
 }
 
 export class ConfigError extends Error {
@@ -78,5 +89,30 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     if (!f.success) throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE ${describe(f.error.issues, '')}`);
     file = f.data;
   }
-  return { ...cfg, file };
+  const siteMap = loadSiteMap(file, cfg.TIDEMARK_CONFIG_FILE ? dirname(resolve(cfg.TIDEMARK_CONFIG_FILE)) : process.cwd());
+  return { ...cfg, file, ...(siteMap ? { siteMap } : {}) };
+}
+
+/**
+ * Reads the ConceptMap files named in the configuration file (paths relative to it) and checks maps and unit
+ * hints. Throws ConfigError naming the element at fault (`conceptMaps[0].group[1].element[3].target[0].code`).
+ */
+export function loadSiteMap(file: FileConfig, baseDir: string): SiteMap | undefined {
+  if (!file.conceptMaps?.length && !file.unitHints) return undefined;
+  const names: string[] = [];
+  const maps = (file.conceptMaps ?? []).map((m, i) => {
+    if (typeof m !== 'string') return (names.push(''), m);
+    names.push(m);
+    try {
+      return JSON.parse(readFileSync(resolve(baseDir, m), 'utf8')) as unknown;
+    } catch (e) {
+      throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE conceptMaps[${i}] (${m}) could not be read as JSON: ${(e as Error).message}`);
+    }
+  });
+  try {
+    return parseSiteMap(maps, file.unitHints ?? {}, names);
+  } catch (e) {
+    if (e instanceof SiteMapError) throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE ${e.message}`);
+    throw e;
+  }
 }
