@@ -156,11 +156,11 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
   }
 
   /** The numeric kind of a code: a code Tidemark reads itself first, else a site code read through the site's maps. */
-  const numericOf = (codings: NonNullable<Observation['code']['coding']>) => {
+  function numericOf(codings: NonNullable<Observation['code']['coding']>): { kind: NumericKind | undefined; site: SiteCode | undefined } {
     const own = NUMERIC_KIND_OF(codings);
     const site = own ? undefined : siteCodeOf(siteMap, codings);
     return { kind: own ?? site?.kind, site };
-  };
+  }
 
   function readObservation(o: Observation, ref: string): void {
     const codings = o.code?.coding ?? [];
