@@ -52,6 +52,8 @@ export interface ServiceSummary {
 
 export interface PatientReadiness {
   patientId: string;
+  /** The encounter the hook context named (the patient's newest in progress), when there is one. */
+  encounterId?: string;
   markers: MarkerLine[];
   /** Resources left out before any marker was known (another patient's, malformed, an id that is not a FHIR id). */
   leftOut: Array<{ reason: string; count: number; example: string }>;
@@ -166,7 +168,7 @@ export function writeReport(report: ReadinessReport, format: 'text' | 'json', wr
   if (format === 'json') return write(`${JSON.stringify(report, null, 2)}\n`);
   write(`Tidemark data-readiness report · rules ${report.rulesVersion} · ${report.now}\n`);
   for (const p of report.patients) {
-    write(`\nPatient/${p.patientId}\n`);
+    write(`\nPatient/${p.patientId}${p.encounterId ? ` · Encounter/${p.encounterId}` : ' · no encounter in progress'}\n`);
     const read = p.markers.filter((m) => m.status === 'read');
     const excl = p.markers.filter((m) => m.excluded?.length);
     const absent = p.markers.filter((m) => m.status === 'absent');

@@ -53,9 +53,9 @@ function sampleOrder(patientId: string): MedicationRequest {
 }
 
 /** The CDS Hooks 2.0 request a service would be called with for this patient. */
-export function hookRequestFor(service: ServiceDefinition, patientId: string, fhirServer: string, token?: string): unknown {
+export function hookRequestFor(service: ServiceDefinition, patientId: string, fhirServer: string, token?: string, encounterId?: string): unknown {
   const order = sampleOrder(patientId);
-  const context: Record<string, unknown> = { userId: 'Practitioner/tidemark-readiness', patientId };
+  const context: Record<string, unknown> = { userId: 'Practitioner/tidemark-readiness', patientId, ...(encounterId ? { encounterId } : {}) };
   if (service.hook !== 'patient-view') context['draftOrders'] = { resourceType: 'Bundle', type: 'collection', entry: [{ resource: order }] };
   if (service.hook === 'order-select') context['selections'] = [`MedicationRequest/${order.id}`];
   return {
@@ -76,17 +76,31 @@ export async function runReadiness(opts: ReadinessOptions): Promise<ReadinessRep
   const patients = [];
   for (const patientId of opts.patients) {
     const runs: ServiceRun[] = [];
+    const fetcher = makeFetcher(opts.fhirServer, opts.token);
+    // The EHR names the encounter in the hook context; the report takes the patient's newest one in progress.
+    const encounterId = await currentEncounter(fetcher, patientId, gatherOptions.budgetMs);
     for (const service of services) {
-      const request = hookRequestSchema.parse(hookRequestFor(service, patientId, opts.fhirServer, opts.token));
+      const request = hookRequestSchema.parse(hookRequestFor(service, patientId, opts.fhirServer, opts.token, encounterId));
       const gathered = await gather(request, service, gatherOptions, makeFetcher);
       const ctx = request.context as { draftOrders?: { entry?: Array<{ resource?: unknown }> }; selections?: string[] };
-      const snapshot = buildSnapshot(gathered.resources, { patientId, ...(ctx.draftOrders ? { draftOrders: ctx.draftOrders } : {}), ...(ctx.selections ? { selections: ctx.selections } : {}) }, now, siteMap);
+      const snapshot = buildSnapshot(gathered.resources, { patientId, ...(encounterId ? { encounterId } : {}), ...(ctx.draftOrders ? { draftOrders: ctx.draftOrders } : {}), ...(ctx.selections ? { selections: ctx.selections } : {}) }, now, siteMap);
       runs.push({ serviceId: service.id, hook: service.hook, outcomes: gathered.outcomes, resources: gathered.resources, snapshot, advice: assess(snapshot, now, thresholds, version) });
     }
-    const survey = await surveyObservations(makeFetcher(opts.fhirServer, opts.token), patientId, gatherOptions.budgetMs);
-    patients.push(patientReadiness(patientId, runs, survey, siteMap));
+    const survey = await surveyObservations(fetcher, patientId, gatherOptions.budgetMs);
+    patients.push({ ...patientReadiness(patientId, runs, survey, siteMap), ...(encounterId ? { encounterId } : {}) });
   }
   return { rulesVersion: version, now: now.toISOString(), patients };
+}
+
+/** The id of the patient's newest Encounter in progress, if the server has one. */
+async function currentEncounter(fetcher: ReturnType<typeof fhirFetcher>, patientId: string, budgetMs: number): Promise<string | undefined> {
+  try {
+    const body = (await fetcher(`Encounter?patient=Patient/${patientId}&status=in-progress&_sort=-date&_count=1`, AbortSignal.timeout(budgetMs))) as Bundle;
+    const id = body?.entry?.[0]?.resource?.id;
+    return typeof id === 'string' && /^[A-Za-z0-9\-.]{1,64}$/.test(id) ? id : undefined;
+  } catch {
+    return undefined;
+  }
 }
 
 /** The patient's newest Observations whatever their code (one page); none if the server refuses. */

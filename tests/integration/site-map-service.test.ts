@@ -41,7 +41,7 @@ describe('a site running with its maps', () => {
 
   it('reads the monitor and flowsheet codes from the FHIR server and the audit record shows both codings', async () => {
     expect((await call(mapped)).status).toBe(200);
-    const item = (await mapped.svc.store.list({ patient: SITE_PATIENT, limit: 5 })).items[0];
+    const item = (await mapped.svc.store.list({ patientId: SITE_PATIENT, limit: 5 })).items[0];
     const rec = await mapped.svc.store.get(item!.id);
     const ms = (rec as { snapshot: { measurements: Measurement[] } }).snapshot.measurements;
     expect(ms.find((m) => m.ref === 'Observation/st-abp-sys-1')).toMatchObject({
@@ -55,7 +55,7 @@ describe('a site running with its maps', () => {
 
   it('without the maps the same chart gives only the LOINC lab', async () => {
     expect((await call(plain)).status).toBe(200);
-    const item = (await plain.svc.store.list({ patient: SITE_PATIENT, limit: 5 })).items[0];
+    const item = (await plain.svc.store.list({ patientId: SITE_PATIENT, limit: 5 })).items[0];
     const rec = await plain.svc.store.get(item!.id);
     expect((rec as { snapshot: { measurements: Measurement[] } }).snapshot.measurements.map((m) => m.ref)).toEqual(['Observation/st-lac-1']);
   });
