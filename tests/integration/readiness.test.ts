@@ -14,7 +14,7 @@ import { SERVICES } from '../../src/hooks/services.js';
 import type { ReadinessReport } from '../../src/readiness/report.js';
 import { runReadiness } from '../../src/readiness/run.js';
 import { SCENARIOS, scenarioBundle } from '../../examples/scenarios/index.js';
-import { FLOWSHEET, SITE_CONFIG, SITE_PATIENT, siteChart } from '../helpers/site-chart.js';
+import { FLOWSHEET, SITE_CONFIG, SITE_PATIENT, siteChart } from '../../examples/site-maps/hospital-chart.js';
 
 const NOW = new Date();
 let fhir: EmbeddedFhir;

@@ -1,14 +1,14 @@
 /**
  * The service with the example site maps (issue 17): its searches ask a FHIR server for the site's codes, the
  * snapshot reads them through the maps, and the audit record keeps both codings and the rules version names the map.
- * Invented hospital-coded data (tests/helpers/site-chart.ts) on the embedded FHIR server.
+ * Invented hospital-coded data (examples/site-maps/hospital-chart.ts) on the embedded FHIR server.
  */
 import type { Bundle } from 'fhir/r4.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startEmbeddedFhir, type EmbeddedFhir } from '../../src/devserver/embedded-fhir.js';
 import type { Measurement } from '../../src/snapshot/types.js';
 import { post, startService, type Running } from '../helpers/server.js';
-import { IEEE, SITE_CONFIG, SITE_PATIENT, siteChart } from '../helpers/site-chart.js';
+import { IEEE, SITE_CONFIG, SITE_PATIENT, siteChart } from '../../examples/site-maps/hospital-chart.js';
 
 let fhir: EmbeddedFhir;
 let plain: Running;

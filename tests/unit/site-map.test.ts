@@ -1,6 +1,6 @@
 /**
  * Site code mapping (issue 17): ConceptMaps and unit hints from the configuration file, checked at start, read by
- * the snapshot; the readiness report over a snapshot. Invented data coded as a hospital would (tests/helpers/site-chart.ts).
+ * the snapshot; the readiness report over a snapshot. Invented data coded as a hospital would (examples/site-maps/hospital-chart.ts).
  */
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -15,7 +15,7 @@ import { parseSiteMap, SiteMapError, type SiteMap } from '../../src/fhir/site-ma
 import { SERVICES, servicesFor } from '../../src/hooks/services.js';
 import { patientReadiness, writeReport } from '../../src/readiness/report.js';
 import { buildSnapshot } from '../../src/snapshot/normalize.js';
-import { FLOWSHEET, IEEE, SITE_CONFIG, SITE_PATIENT, siteChart } from '../helpers/site-chart.js';
+import { FLOWSHEET, IEEE, SITE_CONFIG, SITE_PATIENT, siteChart } from '../../examples/site-maps/hospital-chart.js';
 
 const NOW = new Date('2026-11-30T10:00:00Z');
 const siteMap = (): SiteMap => loadConfig({ TIDEMARK_CONFIG_FILE: SITE_CONFIG }).siteMap as SiteMap;
