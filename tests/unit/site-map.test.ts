@@ -14,6 +14,7 @@ import { rulesVersion } from '../../src/config/rules-version.js';
 import { parseSiteMap, SiteMapError, type SiteMap } from '../../src/fhir/site-map.js';
 import { SERVICES, servicesFor } from '../../src/hooks/services.js';
 import { patientReadiness, writeReport } from '../../src/readiness/report.js';
+import { validateFhir } from '../../src/fhir/validator.js';
 import { buildSnapshot } from '../../src/snapshot/normalize.js';
 import { FLOWSHEET, IEEE, SITE_CONFIG, SITE_PATIENT, siteChart } from '../../examples/site-maps/hospital-chart.js';
 
@@ -31,6 +32,9 @@ const refused = (maps: unknown[], hints: Record<string, string> = {}): string =>
 };
 
 describe('the site maps are read as configured', () => {
+  it('the invented hospital chart is valid FHIR R4 (the FHIR validator)', () => {
+    for (const r of siteChart(NOW)) expect(validateFhir(r), r.id).toEqual([]);
+  });
   it('the example configuration loads: equal/equivalent/wider are read, narrower and relatedto are not', () => {
     const m = siteMap();
     expect(m.read.get(`${IEEE}|150037`)).toMatchObject({ kind: 'systolicBp', equivalence: 'wider', target: { system: 'http://loinc.org', code: '8480-6' } });
