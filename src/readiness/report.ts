@@ -54,6 +54,8 @@ export interface PatientReadiness {
   patientId: string;
   /** The encounter the hook context named (the patient's newest in progress), when there is one. */
   encounterId?: string;
+  /** The search without a code filter that finds unmapped codes: how many Observations it gave, or why none. */
+  survey?: { count: number; problem?: string };
   markers: MarkerLine[];
   /** Resources left out before any marker was known (another patient's, malformed, an id that is not a FHIR id). */
   leftOut: Array<{ reason: string; count: number; example: string }>;
@@ -183,7 +185,8 @@ export function writeReport(report: ReadinessReport, format: 'text' | 'json', wr
       write(`  Left out before reading (${p.leftOut.reduce((n, e) => n + e.count, 0)}):\n`);
       for (const e of p.leftOut) write(`    ${String(e.count).padStart(4)} × ${e.reason}: ${clean(e.example)}\n`);
     }
-    write(`  Present under a code no map covers (${p.unmapped.length}):\n`);
+    const surveyed = p.survey ? (p.survey.problem ? `; the search of all Observations failed: ${p.survey.problem}, so this list may be incomplete` : `; from the newest ${p.survey.count} Observations`) : '';
+    write(`  Present under a code no map covers (${p.unmapped.length}${surveyed}):\n`);
     for (const u of p.unmapped) write(`    ${clean(u.system)} | ${clean(u.code)}${u.display ? ` "${clean(u.display)}"` : ''} × ${u.count}${u.note ? ` (${u.note})` : ''}\n`);
     write(`  Absent (${absent.length}): ${absent.map((m) => m.marker).join(', ') || '(none)'}\n`);
     for (const s of p.services) {

@@ -87,7 +87,10 @@ export async function runReadiness(opts: ReadinessOptions): Promise<ReadinessRep
       runs.push({ serviceId: service.id, hook: service.hook, outcomes: gathered.outcomes, resources: gathered.resources, snapshot, advice: assess(snapshot, now, thresholds, version) });
     }
     const survey = await surveyObservations(fetcher, patientId, gatherOptions.budgetMs);
-    patients.push({ ...patientReadiness(patientId, runs, survey, siteMap), ...(encounterId ? { encounterId } : {}) });
+    patients.push({
+      ...patientReadiness(patientId, runs, survey.resources, siteMap), ...(encounterId ? { encounterId } : {}),
+      survey: { count: survey.resources.length, ...(survey.problem ? { problem: survey.problem } : {}) },
+    });
   }
   return { rulesVersion: version, now: now.toISOString(), patients };
 }
@@ -103,12 +106,14 @@ async function currentEncounter(fetcher: ReturnType<typeof fhirFetcher>, patient
   }
 }
 
-/** The patient's newest Observations whatever their code (one page); none if the server refuses. */
-async function surveyObservations(fetcher: ReturnType<typeof fhirFetcher>, patientId: string, budgetMs: number): Promise<FhirResource[]> {
+/** The patient's newest Observations whatever their code (one page), or why the server gave none. */
+async function surveyObservations(fetcher: ReturnType<typeof fhirFetcher>, patientId: string, budgetMs: number): Promise<{ resources: FhirResource[]; problem?: string }> {
   try {
     const body = (await fetcher(`Observation?patient=Patient/${patientId}&_sort=-date&_count=${SURVEY_COUNT}`, AbortSignal.timeout(budgetMs))) as Bundle;
-    return (body?.entry ?? []).map((e) => e.resource).filter((r): r is FhirResource => r?.resourceType === 'Observation');
-  } catch {
-    return [];
+    if (body?.resourceType !== 'Bundle') return { resources: [], problem: 'the answer was not a Bundle' };
+    return { resources: (body.entry ?? []).map((e) => e.resource).filter((r): r is FhirResource => r?.resourceType === 'Observation') };
+  } catch (e) {
+    const status = (e as { response?: { status?: number } })?.response?.status;
+    return { resources: [], problem: typeof status === 'number' ? `the FHIR server answered ${status}` : (e as Error)?.name === 'TimeoutError' ? 'timed out' : 'connection failed' };
   }
 }
