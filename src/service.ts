@@ -46,12 +46,12 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
   }
   const { catalogue, digest } = loadCatalogue();
   const version = rulesVersion(digest, thresholds);
-  const store = opts.store ?? openAuditStore(cfg, { onError: (e) => log.error({ err: e.message }, 'audit store connection error') });
-  await store.init();
-  const publicUrl = cfg.TIDEMARK_PUBLIC_URL ?? `http://localhost:${cfg.PORT}`;
   const auth = authConfigOf(cfg, 'issuers');
   // Audit readers are an allowlist of their own: a CDS issuer's token opens the audit API only if it is listed here too.
   const auditReaders = authConfigOf(cfg, 'auditReaders');
+  const store = opts.store ?? openAuditStore(cfg, { onError: (e) => log.error({ err: e.message }, 'audit store connection error') });
+  await store.init();
+  const publicUrl = cfg.TIDEMARK_PUBLIC_URL ?? `http://localhost:${cfg.PORT}`;
   // One replay memory for both lists; with the PostgreSQL store it is a table every replica shares.
   const sharedReplay = store.sharedReplayCache?.();
   const replayCache = sharedReplay ?? new InMemoryReplayCache();
