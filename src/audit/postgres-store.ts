@@ -88,6 +88,11 @@ const RELATIONS = ['advice', 'advice_patient_time', 'advice_time', 'advice_card'
 
 interface AdviceRow { seq: string; record: string; prev_hash: string; hash: string }
 
+/** A failed set-up statement, rethrown naming it: a role without the right can have the owner run it once. */
+const explain = (stmt: string) => (e: unknown): never => {
+  throw new Error(`audit store set-up failed (${(e as Error).message}); the owner role must run once: ${stmt.replace(/\s+/g, ' ').slice(0, 120)}`);
+};
+
 export class PostgresAuditStore implements AuditStore {
   readonly kind = 'postgres';
   readonly schema: string;
@@ -142,14 +147,17 @@ export class PostgresAuditStore implements AuditStore {
         'SELECT COUNT(*)::int AS n FROM pg_class r JOIN pg_namespace s ON s.oid = r.relnamespace WHERE s.nspname = $1 AND r.relname = ANY($2::text[])',
         [this.schema, RELATIONS],
       );
-      if ((have.rows[0]?.n ?? 0) < RELATIONS.length) for (const stmt of ddl(this.s)) await c.query(stmt);
+      if ((have.rows[0]?.n ?? 0) < RELATIONS.length) for (const stmt of ddl(this.s)) await c.query(stmt).catch(explain(stmt));
       // advice.issuer came with Tidemark 0.3 (the issuer that received the cards, for feedback): added to an older
       // table, where it stays empty for the old rows (cardOwner then reads the issuer from the record text).
       const col = await c.query(
         "SELECT 1 FROM information_schema.columns WHERE table_schema = $1 AND table_name = 'advice' AND column_name = 'issuer'",
         [this.schema],
       );
-      if (!col.rowCount) await c.query(`ALTER TABLE ${this.s}.advice ADD COLUMN issuer TEXT`);
+      if (!col.rowCount) {
+        const alter = `ALTER TABLE ${this.s}.advice ADD COLUMN issuer TEXT`;
+        await c.query(alter).catch(explain(alter));
+      }
     });
   }
 
