@@ -3,6 +3,7 @@
 // The token rules (clockSkewSeconds, maxTokenAgeSeconds, algorithms) come from the config file; /metrics can
 // have a bearer token of its own; the public URL's default is warned about; the start-up line says where the
 // service listens, the public URL, the trusted issuers and the audit store; trial mode stays on loopback.
+import { spawn } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import type { Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
@@ -170,5 +171,35 @@ describe('the start-up line and where the service listens', () => {
     const chosen = await serve({ TIDEMARK_TRIAL_MODE: 'true', HOST: '0.0.0.0', TIDEMARK_AUDIT_TOKEN: 'local-trial-audit-token' });
     expect(chosen.address.address).toBe('0.0.0.0');
     expect(String(chosen.startLine?.['msg'])).not.toContain('listening on 127.0.0.1 only');
+  });
+
+  it('the `npm run trial` command itself (src/cli/serve.ts, environment as the script sets it, no HOST) listens on 127.0.0.1', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'tm-trial-'));
+    const { HOST: _host, ...env } = process.env;
+    const child = spawn(process.execPath, ['--import', 'tsx', 'src/cli/serve.ts'], {
+      env: { ...env, PORT: '0', TIDEMARK_TRIAL_MODE: 'true', TIDEMARK_AUDIT_TOKEN: 'local-trial-audit-token', TIDEMARK_SQLITE_PATH: join(dir, 'a.sqlite'), TIDEMARK_LOG_LEVEL: 'info' },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    });
+    try {
+      const line = await new Promise<Record<string, unknown>>((resolve, reject) => {
+        let buf = '';
+        const timer = setTimeout(() => reject(new Error(`no start-up line: ${buf}`)), 20_000);
+        child.stdout.on('data', (d: Buffer) => {
+          buf += d.toString();
+          const found = buf.split('\n').find((l) => l.includes('"Tidemark listening'));
+          if (found) (clearTimeout(timer), resolve(JSON.parse(found) as Record<string, unknown>));
+        });
+        child.on('exit', (code) => reject(new Error(`exited ${code}: ${buf}`)));
+      });
+      expect(line).toMatchObject({ host: '127.0.0.1', trialMode: true });
+      expect(String(line['msg'])).toContain('trial mode: listening on 127.0.0.1 only');
+    } finally {
+      if (child.exitCode === null && child.signalCode === null) {
+        const exited = new Promise((r) => child.once('exit', r));
+        child.kill('SIGTERM');
+        await exited;
+      }
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
