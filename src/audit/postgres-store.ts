@@ -88,9 +88,14 @@ const RELATIONS = ['advice', 'advice_patient_time', 'advice_time', 'advice_card'
 
 interface AdviceRow { seq: string; record: string; prev_hash: string; hash: string }
 
-/** A failed set-up statement, rethrown naming it: a role without the right can have the owner run it once. */
+/**
+ * A failed set-up statement, rethrown naming it and the way out: a role with only SELECT and INSERT cannot create
+ * what a newer Tidemark adds to an older schema (jti_seen, advice.issuer); the owner role runs the service once.
+ */
 const explain = (stmt: string) => (e: unknown): never => {
-  throw new Error(`audit store set-up failed (${(e as Error).message}); the owner role must run once: ${stmt.replace(/\s+/g, ' ').slice(0, 120)}`);
+  throw new Error(
+    `audit store set-up failed at "${stmt.replace(/\s+/g, ' ').slice(0, 80)}" (${(e as Error).message}): run the service once as the owner of the audit schema to create or update its tables`,
+  );
 };
 
 export class PostgresAuditStore implements AuditStore {

@@ -637,6 +637,59 @@ describe('PostgreSQL audit store shared by several replicas', () => {
     expect(await b.get(ra.id)).toBeUndefined();
   });
 
+  it('runs as a role with only SELECT and INSERT (plus UPDATE, DELETE on jti_seen); an older schema must be updated by the owner first', async () => {
+    const schema = newSchema('least');
+    const role = `${RUN}_app`;
+    const asApp = (() => {
+      const u = new URL(PG_URL);
+      u.username = role;
+      return u.toString();
+    })();
+    await admin.query(`CREATE ROLE "${role}" LOGIN`);
+    try {
+      const [owner] = replicas(schema, 1);
+      await owner?.init();
+      const grant = async () => {
+        await admin.query(`GRANT USAGE ON SCHEMA "${schema}" TO "${role}"`);
+        await admin.query(`GRANT SELECT, INSERT ON ALL TABLES IN SCHEMA "${schema}" TO "${role}"`);
+        await admin.query(`GRANT UPDATE, DELETE ON "${schema}".jti_seen TO "${role}"`);
+      };
+      await grant();
+      const app = new PostgresAuditStore(asApp, { schema, poolSize: 2 });
+      stores.push(app);
+      await app.init();
+      const rec = adviceRecord();
+      await app.append(rec);
+      expect((await app.cardOwner(cardsOf(rec)[0] ?? ''))?.issuer).toBe('https://ehr.invented.example');
+      const cache = app.sharedReplayCache();
+      expect(await cache.seen('https://ehr.invented.example jti-1', Date.now() / 1000 + 60)).toBe(false);
+      expect(await cache.seen('https://ehr.invented.example jti-1', Date.now() / 1000 + 60)).toBe(true);
+      const direct = new pg.Client({ connectionString: asApp });
+      await direct.connect();
+      await expect(direct.query(`UPDATE "${schema}".advice SET record = '{}'`)).rejects.toThrow(/permission denied/);
+      await direct.end();
+
+      // The schema as an older Tidemark made it: no issuer column, no jti_seen. The app role cannot add them.
+      await admin.query(`ALTER TABLE "${schema}".advice DROP COLUMN issuer`);
+      await admin.query(`DROP TABLE "${schema}".jti_seen`);
+      const before = new PostgresAuditStore(asApp, { schema, poolSize: 2 });
+      stores.push(before);
+      await expect(before.init()).rejects.toThrow(/audit store set-up failed at .*run the service once as the owner of the audit schema/);
+      await owner?.init();
+      await grant();
+      const after = new PostgresAuditStore(asApp, { schema, poolSize: 2 });
+      stores.push(after);
+      await after.init();
+      expect((await after.cardOwner(cardsOf(rec)[0] ?? ''))?.issuer).toBe('https://ehr.invented.example');
+      expect(await after.verifyChain()).toEqual({ ok: true, checked: 1 });
+    } finally {
+      await Promise.all(stores.splice(0).map((st) => st.close()));
+      await admin.query(`DROP SCHEMA IF EXISTS "${schema}" CASCADE`);
+      await admin.query(`DROP OWNED BY "${role}"`);
+      await admin.query(`DROP ROLE "${role}"`);
+    }
+  });
+
   it('refuses a schema name that is not a plain identifier', () => {
     expect(() => new PostgresAuditStore(PG_URL, { schema: 'x"; DROP TABLE y; --' })).toThrow(/schema name/);
   });
