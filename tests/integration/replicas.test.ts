@@ -10,6 +10,8 @@ import { Writable } from 'node:stream';
 import pg from 'pg';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { PostgresAuditStore } from '../../src/audit/postgres-store.js';
+import { createClientVerifier } from '../../src/auth/client-verifier.js';
+import { authConfigSchema } from '../../src/auth/issuer-config.js';
 import { listen } from '../../src/cli/listen.js';
 import { loadConfig } from '../../src/config/config.js';
 import { createLogger } from '../../src/log.js';
@@ -151,5 +153,13 @@ describe('the shared replay table', () => {
     clock.ms += 61_000; // past both expiries and the purge interval: the next call deletes expired rows
     expect(await cache.seen(`https://ehr.north-invented.example.org/cds ${randomUUID()}`, t + 500)).toBe(false);
     expect(await count()).toBe(0);
+  });
+
+  it('a replay table that cannot be reached refuses the token: the check fails closed', async () => {
+    const store = new PostgresAuditStore(PG_URL, { schema: SCHEMA, poolSize: 1 });
+    await store.init();
+    await store.close();
+    const verifier = createClientVerifier(authConfigSchema.parse({ issuers: [north.entry] }), { replayCache: store.sharedReplayCache() });
+    expect(await verifier.verify(`Bearer ${await north.mint(HOOK_AUD)}`, HOOK_AUD)).toEqual({ ok: false, reason: 'replay cache unavailable', issuer: north.iss });
   });
 });
