@@ -3,15 +3,16 @@
  * record by card uuid. A batch may span several hook calls.
  *
  * Who may send it: only the issuer whose call received the card (the advice record keeps the verified issuer;
- * `trial-mode` in trial mode). A card we never issued, issued by another service, or issued to another issuer
- * gets the same 404 OperationOutcome naming it, so a client cannot learn another client's card uuids; a card
- * whose record names no issuer (written without a verified caller) takes no feedback from a verified one. The
- * known ones in the same batch are still stored.
+ * `trial-mode` in trial mode), and, when that call named a tenant, only for that same tenant. A card we never
+ * issued, issued by another service, or issued to another issuer or tenant gets the same 404 OperationOutcome
+ * naming it, so a client cannot learn another client's card uuids; a card whose record names no issuer (written
+ * without a verified caller) takes no feedback from a verified one. The known ones in the same batch are still
+ * stored.
  *
  * What it may say: acceptedSuggestions only with the card's own suggestion uuids, an override reason only one
  * of the card's own overrideReasons (system and code). Anything else is a 400 and nothing of the batch is stored.
  */
-import type { AuditStore, CardOwner, FeedbackRow, StoredAdvice } from '../audit/types.js';
+import type { AuditStore, FeedbackRow, StoredAdvice } from '../audit/types.js';
 import { HttpError, zodIssues } from '../http/errors.js';
 import { feedbackRequestSchema, type Card, type FeedbackItem } from './schemas.js';
 import type { ServiceDefinition } from './services.js';
@@ -19,6 +20,7 @@ import type { ServiceDefinition } from './services.js';
 /** The verified caller of the feedback endpoint (res.locals.client); undefined only where no guard runs. */
 export interface FeedbackCaller {
   issuer?: string;
+  tenant?: string;
 }
 
 export async function recordFeedback(
@@ -31,22 +33,23 @@ export async function recordFeedback(
   const parsed = feedbackRequestSchema.safeParse(body);
   if (!parsed.success) throw new HttpError(400, 'invalid', 'the body is not valid CDS Hooks 2.0 feedback', zodIssues(parsed.error.issues));
   const receivedAt = now().toISOString();
-  const known: Array<{ item: FeedbackItem; index: number; owner: CardOwner }> = [];
+  const known: Array<{ item: FeedbackItem; index: number; card: Card | undefined }> = [];
   const unknown: string[] = [];
+  // One read of each advice record: its client's tenant, and the card as it was issued.
+  const records = new Map<string, Promise<StoredAdvice | undefined>>();
   for (const [index, f] of parsed.data.feedback.entries()) {
     const owner = await store.cardOwner(f.card);
-    if (!owner || owner.service !== service.id || owner.issuer !== caller?.issuer) unknown.push(f.card);
-    else known.push({ item: f, index, owner });
+    if (!owner || owner.service !== service.id || owner.issuer !== caller?.issuer) {
+      unknown.push(f.card);
+      continue;
+    }
+    if (!records.has(owner.adviceId)) records.set(owner.adviceId, store.get(owner.adviceId));
+    const rec = await records.get(owner.adviceId);
+    if (rec?.client?.tenant !== caller?.tenant) unknown.push(f.card);
+    else known.push({ item: f, index, card: rec?.cards.find((c) => c.uuid === f.card) });
   }
 
-  // Each item is checked against the card as it was issued (one read of each advice record).
-  const records = new Map<string, Promise<StoredAdvice | undefined>>();
-  const problems: string[] = [];
-  for (const { item, index, owner } of known) {
-    if (!records.has(owner.adviceId)) records.set(owner.adviceId, store.get(owner.adviceId));
-    const card = (await records.get(owner.adviceId))?.cards.find((c) => c.uuid === item.card);
-    problems.push(...cardProblems(item, card).map((p) => `feedback.${index}.${p}`));
-  }
+  const problems = known.flatMap(({ item, index, card }) => cardProblems(item, card).map((p) => `feedback.${index}.${p}`));
   if (problems.length) throw new HttpError(400, 'invalid', 'the feedback does not match the card it names; nothing was stored', problems);
 
   const rows: FeedbackRow[] = known.map(({ item: f }) => {

@@ -11,22 +11,22 @@ import { calculateJwkThumbprint, exportJWK, generateKeyPair, SignJWT, type Crypt
 export interface TestIssuer {
   iss: string;
   /** The entry for the config file's `issuers` or `auditReaders`. */
-  entry: { iss: string; jwks: { keys: JWK[] } };
-  /** A signed token for `aud`; `scope` optional; `iat` in seconds (default now), exp 300 s later unless told. */
-  mint(aud: string, opts?: { scope?: string; iat?: number; expInSeconds?: number }): Promise<string>;
+  entry: { iss: string; jwks: { keys: JWK[] }; tenants?: string[] };
+  /** A signed token for `aud`; `scope` and `tenant` optional; `iat` in seconds (default now), exp 300 s later unless told. */
+  mint(aud: string, opts?: { scope?: string; tenant?: string; iat?: number; expInSeconds?: number }): Promise<string>;
 }
 
-export async function makeIssuer(iss: string, alg: 'ES384' | 'RS384' = 'ES384'): Promise<TestIssuer> {
+export async function makeIssuer(iss: string, alg: 'ES384' | 'RS384' = 'ES384', tenants?: string[]): Promise<TestIssuer> {
   const pair = await generateKeyPair(alg, { extractable: true });
   const jwk = { ...(await exportJWK(pair.publicKey)), alg, use: 'sig' };
   const kid = await calculateJwkThumbprint(jwk);
   const privateKey: CryptoKey = pair.privateKey;
   return {
     iss,
-    entry: { iss, jwks: { keys: [{ ...jwk, kid }] } },
+    entry: { iss, jwks: { keys: [{ ...jwk, kid }] }, ...(tenants ? { tenants } : {}) },
     mint(aud, o = {}) {
       const iat = o.iat ?? Math.floor(Date.now() / 1000);
-      return new SignJWT(o.scope === undefined ? {} : { scope: o.scope })
+      return new SignJWT({ ...(o.scope !== undefined && { scope: o.scope }), ...(o.tenant !== undefined && { tenant: o.tenant }) })
         .setProtectedHeader({ alg, kid, typ: 'JWT' })
         .setIssuer(iss)
         .setAudience(aud)

@@ -18,13 +18,15 @@ let north: TestIssuer; // CDS client of one hospital
 let south: TestIssuer; // CDS client of another hospital, also listed as an audit reader with a key of its own
 let southAudit: TestIssuer;
 let reader: TestIssuer; // an audit reader only
+let vendor: TestIssuer; // one CDS client serving two wards as tenants
 
 beforeAll(async () => {
   north = await makeIssuer('https://ehr.north-invented.example.org/cds');
   south = await makeIssuer('https://ehr.south-invented.example.org/cds');
   southAudit = await makeIssuer(south.iss);
   reader = await makeIssuer('https://quality.bayview-invented.example.org/audit-desk');
-  const file = writeConfigFile({ issuers: [north.entry, south.entry], auditReaders: [reader.entry, southAudit.entry] });
+  vendor = await makeIssuer('https://hosted-ehr.invented.example.net/cds', 'ES384', ['ward-a', 'ward-b']);
+  const file = writeConfigFile({ issuers: [north.entry, south.entry, vendor.entry], auditReaders: [reader.entry, southAudit.entry] });
   s = await startService({ TIDEMARK_TRIAL_MODE: 'false', TIDEMARK_CONFIG_FILE: file, TIDEMARK_PUBLIC_URL: PUBLIC }, { now: () => NOW });
 });
 afterAll(async () => s.stop());
@@ -32,17 +34,19 @@ afterAll(async () => s.stop());
 const auditAs = async (who: TestIssuer, path = '/audit/advice') =>
   get(`${s.url}${path}`, { authorization: `Bearer ${await who.mint(`${PUBLIC}/audit`, { scope: 'tidemark.audit' })}` });
 
-/** One card issued to `who` over HTTP. */
-async function cardFor(who: TestIssuer, c: keyof typeof ADVICE_CASES = 'smaller-aliquot') {
-  const r = await post(`${s.url}/cds-services/${SERVICE}`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES[c]) }), {
-    authorization: `Bearer ${await who.mint(`${PUBLIC}/cds-services/${SERVICE}`)}`,
+/** One card issued to `who` (for `tenant`, if given) over HTTP. */
+async function cardFor(who: TestIssuer, tenant?: string) {
+  const r = await post(`${s.url}/cds-services/${SERVICE}`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['smaller-aliquot']) }), {
+    authorization: `Bearer ${await who.mint(`${PUBLIC}/cds-services/${SERVICE}`, tenant === undefined ? {} : { tenant })}`,
   });
   expect(r.status).toBe(200);
   return r.body.cards[0];
 }
 
-const feedbackAs = async (who: TestIssuer, feedback: unknown[]) =>
-  post(`${s.url}/cds-services/${SERVICE}/feedback`, { feedback }, { authorization: `Bearer ${await who.mint(`${PUBLIC}/cds-services/${SERVICE}/feedback`)}` });
+const feedbackAs = async (who: TestIssuer, feedback: unknown[], tenant?: string) =>
+  post(`${s.url}/cds-services/${SERVICE}/feedback`, { feedback }, {
+    authorization: `Bearer ${await who.mint(`${PUBLIC}/cds-services/${SERVICE}/feedback`, tenant === undefined ? {} : { tenant })}`,
+  });
 
 /** The feedback stored for the advice that holds `cardUuid`, read with the static audit token. */
 async function storedFeedback(cardUuid: string): Promise<unknown[]> {
@@ -89,6 +93,15 @@ describe('feedback only from the issuer that received the card, with the card ow
     const own = await feedbackAs(north, [{ card: card.uuid, outcome: 'overridden', overrideReason: { reason: card.overrideReasons[0] }, outcomeTimestamp: '2026-11-20T14:01:00Z' }]);
     expect(own).toEqual({ status: 200, body: { stored: 1, duplicates: 0 } });
     expect(await storedFeedback(card.uuid)).toMatchObject([{ cardUuid: card.uuid, outcome: 'overridden', overrideReason: { code: card.overrideReasons[0].code } }]);
+  });
+
+  it('one issuer serving several tenants: feedback only for the tenant whose call received the card', async () => {
+    const card = await cardFor(vendor, 'ward-a');
+    const item = { card: card.uuid, outcome: 'overridden', overrideReason: { reason: card.overrideReasons[0] }, outcomeTimestamp: '2026-11-20T14:06:00Z' };
+    expect((await feedbackAs(vendor, [item], 'ward-b')).status).toBe(404);
+    expect((await feedbackAs(vendor, [item])).status).toBe(401); // this issuer lists tenants: a token without one is refused
+    expect(await storedFeedback(card.uuid)).toEqual([]);
+    expect(await feedbackAs(vendor, [item], 'ward-a')).toEqual({ status: 200, body: { stored: 1, duplicates: 0 } });
   });
 
   it('a suggestion id or an override reason the card did not offer is a 400 OperationOutcome, and nothing of the batch is stored', async () => {
