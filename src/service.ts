@@ -51,6 +51,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE issuers: ${auth.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
   }
   const verifier = createClientVerifier(auth.data);
+  const fhirServers = new Map(auth.data.issuers.flatMap((i) => (i.fhirServers ? [[i.iss, i.fhirServers] as const] : [])));
   const warnings: string[] = [];
   if (cfg.TIDEMARK_TRIAL_MODE) {
     warnings.push('local trial mode: CDS calls are accepted without a verified client JWT; never use with real patients');
@@ -71,8 +72,10 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
       });
     },
     store, catalogue, thresholds, rulesVersion: version, publicUrl, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
-    gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY },
+    gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY,
+      maxResponseBytes: cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES, maxCallBytes: cfg.TIDEMARK_FHIR_MAX_CALL_BYTES },
     now: opts.now ?? (() => new Date()),
+    fhirServersFor: (issuer) => fhirServers.get(issuer),
     ...(opts.makeFetcher ? { makeFetcher: opts.makeFetcher } : {}),
   });
   return { app, store, log, rulesVersion: version, close: () => store.close() };

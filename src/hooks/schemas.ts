@@ -3,6 +3,7 @@
  * Source: CDS Hooks 2.0 (STU2), https://cds-hooks.hl7.org/2.0/ — condensed in ../shared/cds-hooks-2.0.md.
  */
 import { z } from 'zod';
+import { httpsOrLoopbackUrl } from '../auth/issuer-config.js';
 
 /** A string that is not empty: the standard asks senders to omit rather than send "". */
 const text = z.string().min(1);
@@ -68,7 +69,8 @@ export const hookRequestSchema = z
   .object({
     hook: text,
     hookInstance: z.guid(),
-    fhirServer: z.url().optional(),
+    /** Where Tidemark reads missing data with the call's token: https only (http on a loopback host for trials). */
+    fhirServer: httpsOrLoopbackUrl.optional(),
     fhirAuthorization: fhirAuthorizationSchema.optional(),
     context: jsonObject,
     prefetch: prefetchSchema.optional(),
