@@ -52,6 +52,8 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
   }
   const verifier = createClientVerifier(auth.data);
   const fhirServers = new Map(auth.data.issuers.flatMap((i) => (i.fhirServers ? [[i.iss, i.fhirServers] as const] : [])));
+  const unlisted = auth.data.issuers.filter((i) => !i.fhirServers).map((i) => i.iss);
+  if (unlisted.length) log.warn({ issuers: unlisted }, 'trusted issuers without a fhirServers list: any https FHIR server their calls name gets the call\'s token (docs/security.md)');
   const warnings: string[] = [];
   if (cfg.TIDEMARK_TRIAL_MODE) {
     warnings.push('local trial mode: CDS calls are accepted without a verified client JWT; never use with real patients');
