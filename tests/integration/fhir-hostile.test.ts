@@ -205,6 +205,17 @@ describe('link[next] never takes the token off fhirServer', () => {
   });
 });
 
+describe('link[next] in a prefetched Bundle follows the same rule', () => {
+  it('a paged prefetch pointing at `http:/127.0.0.1:P/x` is not followed and the attacker gets nothing', async () => {
+    const before = hits.length;
+    const p = prefetchExcept();
+    p['vitals'] = b.searchset([b.numeric('hr-pf', PID, 'heartRate', 93, b.minutesAgo(NOW, 6))], `http:/127.0.0.1:${attackerPort}/x`);
+    const { rec } = await callWith(`${hostileOrigin}/ok/fhir`, p);
+    expect(outcomeOf(rec, 'vitals')).toMatchObject({ source: 'prefetch', status: 'truncated', count: 1, detail: 'link[next] points outside fhirServer: not followed' });
+    expect(hits.slice(before)).toEqual([]);
+  });
+});
+
 describe('redirects are refused', () => {
   it('a 302 to another origin is not followed: the token is not sent there and the outcome says why', async () => {
     const before = hits.length;
