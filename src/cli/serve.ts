@@ -1,5 +1,6 @@
 /** `npm start`: runs the service on the configured port (embedded SQLite audit by default). */
 import { loadConfig, ConfigError } from '../config/config.js';
+import { createLogger } from '../log.js';
 import { buildService } from '../service.js';
 
 async function main(): Promise<void> {
@@ -7,7 +8,8 @@ async function main(): Promise<void> {
   try {
     cfg = loadConfig();
   } catch (e) {
-    process.stderr.write(`${(e as Error).message}\n`);
+    // Nothing writes to stdout or stderr but the logger, also before the configuration is known (info level).
+    createLogger('info').fatal({ err: (e as Error).message.slice(0, 2000) }, 'configuration refused');
     process.exit(2);
   }
   try {
@@ -28,7 +30,10 @@ async function main(): Promise<void> {
     process.on('SIGTERM', () => stop('SIGTERM'));
     process.on('SIGINT', () => stop('SIGINT'));
   } catch (e) {
-    process.stderr.write(`${e instanceof ConfigError ? '' : 'start-up failed: '}${(e as Error).message}\n`);
+    createLogger(cfg.TIDEMARK_LOG_LEVEL).fatal(
+      { err: (e as Error).message.slice(0, 2000) },
+      e instanceof ConfigError ? 'configuration refused' : 'start-up failed',
+    );
     process.exit(e instanceof ConfigError ? 2 : 1);
   }
 }

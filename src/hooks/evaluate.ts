@@ -76,6 +76,7 @@ async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: E
   const parsed = hookRequestSchema.safeParse(body);
   if (!parsed.success) throw new HttpError(400, 'invalid', 'the request is not a valid CDS Hooks 2.0 request', zodIssues(parsed.error.issues));
   const req = parsed.data;
+  // req.hook is client text echoed here: hookRequestSchema caps it at MAX_NAME_LENGTH characters (it was echoed whole).
   if (req.hook !== service.hook) throw new HttpError(400, 'invalid', `service ${service.id} answers the ${service.hook} hook, not ${req.hook}`);
   refuseUnlistedFhirServer(req.fhirServer, client?.issuer, deps, req.hookInstance);
   const hook: HookName = service.hook;
@@ -84,7 +85,7 @@ async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: E
   const ctx = ctxParsed.data as HookCtx;
   if (req.prefetch) {
     const unknown = Object.keys(req.prefetch).filter((k) => !(k in service.prefetch));
-    if (unknown.length) deps.log.info({ hookInstance: req.hookInstance, keys: unknown }, 'ignoring prefetch keys this service did not ask for');
+    if (unknown.length) deps.log.info({ hookInstance: req.hookInstance, keys: unknown.slice(0, 20), unknownKeys: unknown.length }, 'ignoring prefetch keys this service did not ask for');
   }
   const now = deps.now();
   const gathered = await gather(req, service, deps.gatherOptions, deps.makeFetcher);

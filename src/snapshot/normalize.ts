@@ -12,7 +12,7 @@ import {
   type DynamicMeasured, type NumericKind,
 } from '../fhir/codes.js';
 import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
-import { convert, toCanonical } from '../fhir/units.js';
+import { convert, MAX_UNIT_LENGTH, toCanonical } from '../fhir/units.js';
 import { isoInstant, parseTimeMs } from './time.js';
 import type {
   CodedMeasurement, ConditionEntry, DraftOrder, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
@@ -72,6 +72,13 @@ for (const c of OBSERVATION_CODES) if (!CODE_OF_KIND.has(c.kind)) CODE_OF_KIND.s
 /** SNOMED CT answers some feeds use for rhythm (from memory; verify): 49436004 atrial fibrillation. */
 const SNOMED_RHYTHM: Record<string, string> = { '49436004': 'atrial-fibrillation' };
 
+/** FHIR R4 id datatype: [A-Za-z0-9\-\.]{1,64} (FHIR R4, Datatypes "id"). */
+const FHIR_ID = /^[A-Za-z0-9\-.]{1,64}$/;
+/** The resource types buildSnapshot reads. */
+const TYPES_READ: ReadonlySet<string> = new Set(['Patient', 'Encounter', 'Observation', 'Condition', 'MedicationAdministration', 'MedicationRequest']);
+/** Longest reason kept for a left-out resource (our own bound). */
+const MAX_DETAIL_LENGTH = 300;
+
 export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotContext, now: Date): PatientSnapshot {
   const nowMs = now.getTime();
   const patientRef = `Patient/${ctx.patientId}`;
@@ -86,8 +93,12 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
   let encounter: PatientSnapshot['encounter'];
 
   const age = (iso: string) => Math.round((nowMs - parseTimeMs(iso)) / 60_000);
-  const exclude = (ref: string, reason: Exclusion['reason'], detail: string, kind?: string) =>
-    excluded.push(kind ? { ref, reason, detail, kind } : { ref, reason, detail });
+  // A reason may quote client text (a time, a reference, a code): at most MAX_DETAIL_LENGTH characters of it go into
+  // the snapshot, which the audit record keeps (issue 13 item 5).
+  const exclude = (ref: string, reason: Exclusion['reason'], detail: string, kind?: string) => {
+    const d = detail.length > MAX_DETAIL_LENGTH ? `${detail.slice(0, MAX_DETAIL_LENGTH)}…` : detail;
+    excluded.push(kind ? { ref, reason, detail: d, kind } : { ref, reason, detail: d });
+  };
   /** Checks a time: returns the UTC ISO instant, or undefined after recording why it is unusable. */
   const checkTime = (ref: string, raw: string | undefined, kind?: string): string | undefined => {
     if (!raw) return void exclude(ref, 'no-time', 'no effective time', kind);
@@ -104,6 +115,11 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
 
   for (const r of resources) {
     if (!r || typeof r !== 'object') continue;
+    // An id that is not a FHIR id (1–64 of A-Z a-z 0-9 - .) would be copied into every finding's reference.
+    if (r.id !== undefined && !FHIR_ID.test(r.id)) {
+      if (TYPES_READ.has(r.resourceType)) exclude(`${r.resourceType}/(invalid id)`, 'malformed', `the id is not a FHIR id (1-64 of A-Z a-z 0-9 - .; ${String(r.id).length} characters)`);
+      continue;
+    }
     const ref = `${r.resourceType}/${r.id ?? '(no id)'}`;
     try {
       switch (r.resourceType) {
@@ -201,7 +217,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
       const q = comp(code)?.valueQuantity;
       if (!q || typeof q.value !== 'number' || !Number.isFinite(q.value)) return void exclude(ref, 'no-value', `component ${code} has no value`, kind);
       const v = convert(q.value, q.system === 'http://unitsofmeasure.org' && q.code ? q.code : (q.unit ?? q.code), unit);
-      if (v === undefined) return void exclude(ref, 'incompatible-unit', `component ${code} unit "${q.unit ?? q.code ?? ''}" cannot be converted to ${unit}`, kind);
+      if (v === undefined) return void exclude(ref, 'incompatible-unit', `component ${code} unit "${(q.unit ?? q.code ?? '').slice(0, MAX_UNIT_LENGTH)}" cannot be converted to ${unit}`, kind);
       if (v < 0 || v > 1000) return void exclude(ref, 'impossible-value', `component ${code} value ${v} ${unit} is impossible`, kind);
       values.push(v);
     }
