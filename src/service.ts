@@ -57,6 +57,9 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
   const replayCache = sharedReplay ?? new InMemoryReplayCache();
   const verifier = createClientVerifier(auth, { replayCache });
   const auditVerifier = createClientVerifier(auditReaders, { replayCache });
+  const fhirServers = new Map(auth.issuers.flatMap((i) => (i.fhirServers ? [[i.iss, i.fhirServers] as const] : [])));
+  const unlisted = auth.issuers.filter((i) => !i.fhirServers).map((i) => i.iss);
+  if (unlisted.length) log.warn({ issuers: unlisted }, 'trusted issuers without a fhirServers list: any https FHIR server their calls name gets the call\'s token (docs/security.md)');
   const warnings: string[] = [];
   if (cfg.TIDEMARK_TRIAL_MODE) {
     warnings.push('local trial mode: CDS calls are accepted without a verified client JWT; never use with real patients');
@@ -82,8 +85,10 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
       });
     },
     store, catalogue, thresholds, rulesVersion: version, publicUrl, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
-    gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY },
+    gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY,
+      maxResponseBytes: cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES, maxCallBytes: cfg.TIDEMARK_FHIR_MAX_CALL_BYTES },
     now: opts.now ?? (() => new Date()),
+    fhirServersFor: (issuer) => fhirServers.get(issuer),
     ...(opts.makeFetcher ? { makeFetcher: opts.makeFetcher } : {}),
   });
   const startup = {

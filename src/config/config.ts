@@ -5,6 +5,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { z } from 'zod';
+import { DEFAULT_BYTE_CAPS } from '../fhir/fetcher.js';
 
 const intFrom = (min: number, max: number) => z.coerce.number().int().min(min).max(max);
 const boolFrom = z.enum(['true', 'false', '1', '0', 'yes', 'no']).transform((v) => v === 'true' || v === '1' || v === 'yes');
@@ -25,6 +26,10 @@ export const envSchema = z.object({
   TIDEMARK_FHIR_MAX_PAGES: intFrom(1, 50).default(5),
   /** At most this many FHIR queries in flight per call. */
   TIDEMARK_FHIR_CONCURRENCY: intFrom(1, 32).default(8),
+  /** Largest single FHIR answer read, bytes after decompression (default 16 MiB); a larger one is cut off. */
+  TIDEMARK_FHIR_MAX_RESPONSE_BYTES: intFrom(64 * 1024, 1024 * 1024 * 1024).default(DEFAULT_BYTE_CAPS.maxResponseBytes),
+  /** Largest sum of the FHIR answers of one call, bytes after decompression (default 48 MiB). */
+  TIDEMARK_FHIR_MAX_CALL_BYTES: intFrom(64 * 1024, 4 * 1024 * 1024 * 1024).default(DEFAULT_BYTE_CAPS.maxCallBytes),
   TIDEMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   TIDEMARK_CONFIG_FILE: z.string().min(1).optional(),
   /** Local trial mode: accept calls without a verified client JWT. Never in production. */
