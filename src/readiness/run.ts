@@ -12,7 +12,8 @@ import { loadCatalogue } from '../cards/catalogue.js';
 import type { AppConfig } from '../config/config.js';
 import { rulesVersion } from '../config/rules-version.js';
 import { RXNORM, SNOMED } from '../fhir/codes.js';
-import { fhirFetcher, gather } from '../fhir/gather.js';
+import { FhirFetchError, resolveUnderBase } from '../fhir/fetcher.js';
+import { fhirFetcher, gather, type Fetcher } from '../fhir/gather.js';
 import { EMPTY_SITE_MAP } from '../fhir/site-map.js';
 import { hookRequestSchema } from '../hooks/schemas.js';
 import { servicesFor, type ServiceDefinition } from '../hooks/services.js';
@@ -70,15 +71,20 @@ export async function runReadiness(opts: ReadinessOptions): Promise<ReadinessRep
   const siteMap = opts.cfg.siteMap ?? EMPTY_SITE_MAP;
   const thresholds = resolveThresholds(opts.cfg.file.thresholds ?? {});
   const version = rulesVersion(loadCatalogue().digest, thresholds, undefined, opts.cfg.siteMap);
-  const gatherOptions = { budgetMs: opts.cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: opts.cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: opts.cfg.TIDEMARK_FHIR_CONCURRENCY };
+  const gatherOptions = {
+    budgetMs: opts.cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: opts.cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: opts.cfg.TIDEMARK_FHIR_CONCURRENCY,
+    maxResponseBytes: opts.cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES, maxCallBytes: opts.cfg.TIDEMARK_FHIR_MAX_CALL_BYTES,
+  };
   const makeFetcher = opts.makeFetcher ?? fhirFetcher;
   const services = servicesFor(opts.cfg.siteMap);
   const patients = [];
   for (const patientId of opts.patients) {
     const runs: ServiceRun[] = [];
-    const fetcher = makeFetcher(opts.fhirServer, opts.token);
+    // The report's own two searches, with the same byte caps as a call.
+    const fetcher = makeFetcher(opts.fhirServer, opts.token, { maxResponseBytes: gatherOptions.maxResponseBytes, maxCallBytes: gatherOptions.maxCallBytes });
+    const search = (path: string) => searchUnder(fetcher, opts.fhirServer, path, gatherOptions.budgetMs);
     // The EHR names the encounter in the hook context; the report takes the patient's newest one in progress.
-    const encounterId = await currentEncounter(fetcher, patientId, gatherOptions.budgetMs);
+    const encounterId = await currentEncounter(search, patientId);
     for (const service of services) {
       const request = hookRequestSchema.parse(hookRequestFor(service, patientId, opts.fhirServer, opts.token, encounterId));
       const gathered = await gather(request, service, gatherOptions, makeFetcher);
@@ -86,7 +92,7 @@ export async function runReadiness(opts: ReadinessOptions): Promise<ReadinessRep
       const snapshot = buildSnapshot(gathered.resources, { patientId, ...(encounterId ? { encounterId } : {}), ...(ctx.draftOrders ? { draftOrders: ctx.draftOrders } : {}), ...(ctx.selections ? { selections: ctx.selections } : {}) }, now, siteMap);
       runs.push({ serviceId: service.id, hook: service.hook, outcomes: gathered.outcomes, resources: gathered.resources, snapshot, advice: assess(snapshot, now, thresholds, version) });
     }
-    const survey = await surveyObservations(fetcher, patientId, gatherOptions.budgetMs);
+    const survey = await surveyObservations(search, patientId);
     patients.push({
       ...patientReadiness(patientId, runs, survey.resources, siteMap), ...(encounterId ? { encounterId } : {}),
       survey: { count: survey.resources.length, ...(survey.problem ? { problem: survey.problem } : {}) },
@@ -95,10 +101,19 @@ export async function runReadiness(opts: ReadinessOptions): Promise<ReadinessRep
   return { rulesVersion: version, now: now.toISOString(), patients };
 }
 
+type Search = (path: string) => Promise<unknown>;
+
+/** One search, its URL resolved under fhirServer as gather resolves its own (src/fhir/fetcher.ts resolveUnderBase). */
+async function searchUnder(fetcher: Fetcher, base: string, path: string, budgetMs: number): Promise<unknown> {
+  const url = resolveUnderBase(path, base);
+  if (!url) throw new FhirFetchError('outside-base', 'not under fhirServer');
+  return fetcher(url.href, AbortSignal.timeout(budgetMs));
+}
+
 /** The id of the patient's newest Encounter in progress, if the server has one. */
-async function currentEncounter(fetcher: ReturnType<typeof fhirFetcher>, patientId: string, budgetMs: number): Promise<string | undefined> {
+async function currentEncounter(search: Search, patientId: string): Promise<string | undefined> {
   try {
-    const body = (await fetcher(`Encounter?patient=Patient/${patientId}&status=in-progress&_sort=-date&_count=1`, AbortSignal.timeout(budgetMs))) as Bundle;
+    const body = (await search(`Encounter?patient=Patient/${patientId}&status=in-progress&_sort=-date&_count=1`)) as Bundle;
     const id = body?.entry?.[0]?.resource?.id;
     return typeof id === 'string' && /^[A-Za-z0-9\-.]{1,64}$/.test(id) ? id : undefined;
   } catch {
@@ -107,13 +122,13 @@ async function currentEncounter(fetcher: ReturnType<typeof fhirFetcher>, patient
 }
 
 /** The patient's newest Observations whatever their code (one page), or why the server gave none. */
-async function surveyObservations(fetcher: ReturnType<typeof fhirFetcher>, patientId: string, budgetMs: number): Promise<{ resources: FhirResource[]; problem?: string }> {
+async function surveyObservations(search: Search, patientId: string): Promise<{ resources: FhirResource[]; problem?: string }> {
   try {
-    const body = (await fetcher(`Observation?patient=Patient/${patientId}&_sort=-date&_count=${SURVEY_COUNT}`, AbortSignal.timeout(budgetMs))) as Bundle;
+    const body = (await search(`Observation?patient=Patient/${patientId}&_sort=-date&_count=${SURVEY_COUNT}`)) as Bundle;
     if (body?.resourceType !== 'Bundle') return { resources: [], problem: 'the answer was not a Bundle' };
     return { resources: (body.entry ?? []).map((e) => e.resource).filter((r): r is FhirResource => r?.resourceType === 'Observation') };
   } catch (e) {
-    const status = (e as { response?: { status?: number } })?.response?.status;
-    return { resources: [], problem: typeof status === 'number' ? `the FHIR server answered ${status}` : (e as Error)?.name === 'TimeoutError' ? 'timed out' : 'connection failed' };
+    if (e instanceof FhirFetchError) return { resources: [], problem: e.detail };
+    return { resources: [], problem: (e as Error)?.name === 'TimeoutError' ? 'timed out' : 'connection failed' };
   }
 }

@@ -10,6 +10,7 @@ import type { Bundle } from 'fhir/r4.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/config.js';
 import { startEmbeddedFhir, type EmbeddedFhir } from '../../src/devserver/embedded-fhir.js';
+import { FhirFetchError } from '../../src/fhir/fetcher.js';
 import { fhirFetcher } from '../../src/fhir/gather.js';
 import { SERVICES } from '../../src/hooks/services.js';
 import type { ReadinessReport } from '../../src/readiness/report.js';
@@ -69,10 +70,10 @@ describe('readiness on the demo scenarios and a hospital-coded patient', () => {
   it('a survey search the server refuses is said, not taken for "nothing unmapped"', async () => {
     const refusing: typeof fhirFetcher = (base, token) => {
       const f = fhirFetcher(base, token);
-      return (url, signal) => (url.startsWith('Observation?') && !url.includes('code=') ? Promise.reject(Object.assign(new Error('forbidden'), { response: { status: 403 } })) : f(url, signal));
+      return (url, signal) => (url.includes('/Observation?') && !url.includes('code=') ? Promise.reject(new FhirFetchError('http-error', 'FHIR server answered 403', 403)) : f(url, signal));
     };
     const r = await runReadiness({ fhirServer: fhir.baseUrl, patients: [SITE_PATIENT], cfg: loadConfig({ TIDEMARK_CONFIG_FILE: SITE_CONFIG }), now: NOW, makeFetcher: refusing });
-    expect(r.patients[0]?.survey).toEqual({ count: 0, problem: 'the FHIR server answered 403' });
+    expect(r.patients[0]?.survey).toEqual({ count: 0, problem: 'FHIR server answered 403' });
     expect(patient(SITE_PATIENT)?.survey?.count).toBeGreaterThan(10);
     // The services' own searches still ran: the mapped markers are read.
     expect(r.patients[0]?.markers.find((m) => m.marker === 'ppv')?.status).toBe('read');
