@@ -8,16 +8,13 @@ import type { ScenarioExpectation } from './types.js';
 export interface ObservedVerdicts {
   /** null: the record has no responsiveness verdict. */
   responsiveness: string | null;
-  /**
-   * 'unknown' when the verdict is 'adequate' with no deciding rule (no tolerance marker could be assessed);
-   * null: the record has no tolerance verdict.
-   */
+  /** null: the record has no tolerance verdict. */
   tolerance: string | null;
   /** The most severe card indicator, or 'no-card'. */
   indicator: string;
 }
 
-interface VerdictLike { value?: unknown; decidingRules?: unknown }
+interface VerdictLike { value?: unknown }
 interface RecordLike { advice?: { responsiveness?: VerdictLike; tolerance?: VerdictLike } }
 
 const SEVERITY = ['info', 'warning', 'critical'];
@@ -26,9 +23,7 @@ export function observedVerdicts(record: unknown, cards: ReadonlyArray<{ indicat
   const advice = (record as RecordLike | undefined)?.advice;
   const r = advice?.responsiveness;
   const t = advice?.tolerance;
-  const tolerance = t && typeof t.value === 'string'
-    ? (t.value === 'adequate' && Array.isArray(t.decidingRules) && t.decidingRules.length === 0 ? 'unknown' : t.value)
-    : null;
+  const tolerance = t && typeof t.value === 'string' ? t.value : null;
   const indicators = cards.map((c) => String(c.indicator)).sort((a, b) => SEVERITY.indexOf(b) - SEVERITY.indexOf(a));
   return { responsiveness: r && typeof r.value === 'string' ? r.value : null, tolerance, indicator: indicators[0] ?? 'no-card' };
 }
@@ -41,9 +36,9 @@ export function mismatches(expected: ScenarioExpectation, observed: ObservedVerd
     out.push(`responsiveness ${observed.responsiveness ?? 'not given'}, expected ${expected.responsiveness}`);
   }
   if (expected.tolerance !== null) {
-    // "unknown" also matches a record that leaves the tolerance verdict out while giving a responsiveness verdict.
+    // "not-known" also matches a record that leaves the tolerance verdict out while giving a responsiveness verdict.
     const ok = expected.tolerance === observed.tolerance
-      || (expected.tolerance === 'unknown' && observed.tolerance === null && observed.responsiveness !== null);
+      || (expected.tolerance === 'not-known' && observed.tolerance === null && observed.responsiveness !== null);
     if (!ok) out.push(`tolerance ${observed.tolerance ?? 'not given'}, expected ${expected.tolerance}`);
   }
   return out;

@@ -6,11 +6,11 @@
  */
 import { z } from 'zod';
 import type { ConditionEntry, PatientSnapshot } from '../../snapshot/types.js';
-import type { Evidence, Finding } from '../types.js';
+import type { Evidence, ToleranceFinding } from '../common/finding.js';
 import rawSets from './condition-sets.json' with { type: 'json' };
-import { ageMinutesAt } from './select.js';
 import { assessed, notAssessed } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
+import { ageMinutesRounded } from '../common/select.js';
 
 export const CONDITIONS = 'tolerance.conditions';
 
@@ -52,7 +52,7 @@ export function matchConditionSets(entry: ConditionEntry, sets: ConditionSets = 
   return hits;
 }
 
-export function conditionsRule(snapshot: PatientSnapshot, now: Date, _t: ToleranceThresholds): Finding[] {
+export function conditionsRule(snapshot: PatientSnapshot, now: Date, _t: ToleranceThresholds): ToleranceFinding[] {
   const active = snapshot.conditions
     .filter((c) => CONDITION_SETS.activeStatuses.includes(c.clinicalStatus))
     .sort((a, b) => (a.ref < b.ref ? -1 : a.ref > b.ref ? 1 : 0));
@@ -72,7 +72,7 @@ export function conditionsRule(snapshot: PatientSnapshot, now: Date, _t: Toleran
     }
     if (hits.length > 0) {
       const when = c.onset ?? snapshot.now;
-      evidence.push({ ref: c.ref, kind: 'condition', value: hits.map((h) => h.coding).join(' '), effective: when, ageMinutes: ageMinutesAt(when, now) });
+      evidence.push({ ref: c.ref, kind: 'condition', value: hits.map((h) => h.coding).join(' '), effective: when, ageMinutes: ageMinutesRounded(when, now) });
     }
   }
   if (matched.size === 0) {
