@@ -30,7 +30,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-saltash',
-  expect: { responsiveness: 'unlikely', tolerance: 'adequate', indicator: 'warning' },
+  expect: { responsiveness: 'unlikely', tolerance: 'adequate', indicator: 'warning', action: 'test-first', nextTest: 'mini-fluid-challenge' },
   conclusion:
     'The last 500 mL moved neither MAP nor heart rate and the IVC hardly distends under controlled ventilation, so another bolus is unlikely to '
     + 'help: raise the vasopressor to the MAP target and look for a cause (echo, source control) rather than give more volume; both signs are '

@@ -19,7 +19,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-penhallow',
-  expect: { responsiveness: 'likely', tolerance: 'adequate', indicator: 'warning' },
+  expect: { responsiveness: 'likely', tolerance: 'adequate', indicator: 'warning', action: 'question-need', nextTest: null },
   conclusion:
     'She is preload responsive, as most people are, but nothing shows a need for more cardiac output: MAP 78, lactate 1.1, capillary '
     + 'refill 2 s, urine 0.9 mL/kg/h. Responsiveness is not an indication; the bolus should be questioned, not given.',

@@ -18,7 +18,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-amberley',
-  expect: { responsiveness: 'likely', tolerance: 'limited', indicator: 'warning' },
+  expect: { responsiveness: 'likely', tolerance: 'limited', indicator: 'warning', action: 'smaller-aliquot', nextTest: 'tidal-volume-challenge' },
   conclusion:
     'Low tidal volume makes PPV read low, not high, so 16 % still argues for responsiveness; MAP 60 and lactate 2.8 show a need. Oxygenation '
     + '(SpO2/FiO2 184) limits tolerance: give a smaller aliquot and reassess; a tidal volume challenge (6 → 8 mL/kg) would confirm.',

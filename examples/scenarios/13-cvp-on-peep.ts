@@ -18,7 +18,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-saltash',
-  expect: { responsiveness: 'indeterminate', tolerance: 'limited', indicator: 'warning' },
+  expect: { responsiveness: 'indeterminate', tolerance: 'limited', indicator: 'warning', action: 'test-first', nextTest: 'mini-fluid-challenge' },
   conclusion:
     'One CVP decides nothing about responsiveness (no CVP value predicts it well, and PEEP 12 raises it); it does mark raised venous pressure '
     + 'for tolerance. With MAP 62 there is a need: test first (a mini fluid challenge with VTI by echo, no flow monitor) before giving 500 mL.',

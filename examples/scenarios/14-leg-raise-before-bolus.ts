@@ -18,7 +18,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-penhallow',
-  expect: { responsiveness: 'indeterminate', tolerance: 'adequate', indicator: 'info' },
+  expect: { responsiveness: 'indeterminate', tolerance: 'adequate', indicator: 'info', action: 'test-first', nextTest: 'passive-leg-raise' },
   conclusion:
     'The positive leg raise was taken before the last 500 mL, so it no longer says whether she still responds; the hourly pressures after '
     + 'that bolus are too few to judge. She is still hypotensive: repeat the leg raise with the cardiac output monitor before the next 500 mL.',

@@ -18,7 +18,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-okonjo',
-  expect: { responsiveness: 'indeterminate', tolerance: 'limited', indicator: 'warning' },
+  expect: { responsiveness: 'indeterminate', tolerance: 'limited', indicator: 'warning', action: 'test-first', nextTest: 'mini-fluid-challenge' },
   conclusion:
     'With IAP 18 mmHg a high PPV may be a false positive and a leg raise may be falsely negative: test with a mini fluid challenge and VTI '
     + 'before more volume. The intra-abdominal hypertension itself limits tolerance, since volume raises it further.',

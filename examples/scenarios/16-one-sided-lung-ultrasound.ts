@@ -18,7 +18,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-amberley',
-  expect: { responsiveness: 'likely', tolerance: 'limited', indicator: 'warning' },
+  expect: { responsiveness: 'likely', tolerance: 'limited', indicator: 'warning', action: 'smaller-aliquot' },
   conclusion:
     'Four B-line regions on one side are the pneumonia, not diffuse lung water (that needs two or more on each side); with the side not charted '
     + 'the finding limits tolerance moderately at most. Responsive and hypotensive: give a smaller aliquot and reassess oxygenation.',

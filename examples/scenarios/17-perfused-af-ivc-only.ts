@@ -18,7 +18,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-saltash',
-  expect: { responsiveness: 'indeterminate', tolerance: 'adequate', indicator: 'warning' },
+  expect: { responsiveness: 'indeterminate', tolerance: 'adequate', indicator: 'warning', action: 'question-need', nextTest: null },
   conclusion:
     'A collapsing IVC in a breathing patient is one static marker and decides nothing; AF voids pulse pressure variation anyway. He is well '
     + 'perfused (MAP 74, lactate 1.3, capillary refill 2.5 s, urine 0.8 mL/kg/h), so there is nothing for a bolus to treat: treat the AF.',

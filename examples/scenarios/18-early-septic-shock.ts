@@ -18,7 +18,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-penhallow',
-  expect: { responsiveness: 'indeterminate', tolerance: 'not-known', indicator: 'info' },
+  expect: { responsiveness: 'indeterminate', tolerance: 'not-known', indicator: 'info', action: 'resuscitate-and-reassess' },
   conclusion:
     'First hour of septic shock with MAP 58 and lactate 4.8 and only 500 of 2,400 mL (30 mL/kg admission weight) given: continue '
     + 'resuscitation in steps with reassessment after each, and start a vasopressor early if MAP stays low; do not withhold the bolus '

@@ -19,7 +19,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-okonjo',
-  expect: { responsiveness: 'likely', tolerance: 'poor', indicator: 'critical' },
+  expect: { responsiveness: 'likely', tolerance: 'poor', indicator: 'critical', action: 'smaller-aliquot' },
   conclusion:
     'He would raise his cardiac output with volume, but EVLWI 13 mL/kg and a falling SpO2/FiO2 show lung water in a cirrhotic patient: more '
     + 'crystalloid is likely to harm. Support pressure with a vasopressor, weigh albumin, and do not give this bolus as ordered.',

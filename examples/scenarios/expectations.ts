@@ -12,10 +12,13 @@ export interface ObservedVerdicts {
   tolerance: string | null;
   /** The most severe card indicator, or 'no-card'. */
   indicator: string;
+  /** advice.recommendation.action and .nextTest (null when absent). */
+  action: string | null;
+  nextTest: string | null;
 }
 
 interface VerdictLike { value?: unknown }
-interface RecordLike { advice?: { responsiveness?: VerdictLike; tolerance?: VerdictLike } }
+interface RecordLike { advice?: { responsiveness?: VerdictLike; tolerance?: VerdictLike; recommendation?: { action?: unknown; nextTest?: unknown } } }
 
 const SEVERITY = ['info', 'warning', 'critical'];
 
@@ -25,7 +28,11 @@ export function observedVerdicts(record: unknown, cards: ReadonlyArray<{ indicat
   const t = advice?.tolerance;
   const tolerance = t && typeof t.value === 'string' ? t.value : null;
   const indicators = cards.map((c) => String(c.indicator)).sort((a, b) => SEVERITY.indexOf(b) - SEVERITY.indexOf(a));
-  return { responsiveness: r && typeof r.value === 'string' ? r.value : null, tolerance, indicator: indicators[0] ?? 'no-card' };
+  const rec = advice?.recommendation;
+  return {
+    responsiveness: r && typeof r.value === 'string' ? r.value : null, tolerance, indicator: indicators[0] ?? 'no-card',
+    action: typeof rec?.action === 'string' ? rec.action : null, nextTest: typeof rec?.nextTest === 'string' ? rec.nextTest : null,
+  };
 }
 
 /** The ways `observed` departs from `expected`; empty when it matches. */
@@ -41,6 +48,8 @@ export function mismatches(expected: ScenarioExpectation, observed: ObservedVerd
       || (expected.tolerance === 'not-known' && observed.tolerance === null && observed.responsiveness !== null);
     if (!ok) out.push(`tolerance ${observed.tolerance ?? 'not given'}, expected ${expected.tolerance}`);
   }
+  if (expected.action !== undefined && expected.action !== observed.action) out.push(`action ${observed.action ?? 'none'}, expected ${expected.action}`);
+  if (expected.nextTest !== undefined && expected.nextTest !== observed.nextTest) out.push(`test offered ${observed.nextTest ?? 'none'}, expected ${expected.nextTest ?? 'none'}`);
   return out;
 }
 

@@ -15,6 +15,10 @@ export interface ScenarioExpectation {
   responsiveness: ExpectedResponsiveness | null;
   tolerance: ExpectedTolerance | null;
   indicator: ExpectedIndicator;
+  /** What the advice should do (src/assess/advice/types.ts AdviceAction); checked when given. */
+  action?: string;
+  /** The test the card should offer (NextTestKind), or null for none; checked when given. */
+  nextTest?: string | null;
 }
 
 export type OrderHook = 'order-select' | 'order-sign';

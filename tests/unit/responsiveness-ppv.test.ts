@@ -127,13 +127,15 @@ describe('PPV validity by the direction of the error (§12)', () => {
     expect(high.text).toMatch(/usable although/);
     expect(high.text).toMatch(pattern);
     const low = ppv(patient(state), 4);
+    expect(low.text).toMatch(pattern);
     expect(low).toMatchObject({ status: 'not-assessed', gap: 'outside-validity' });
     expect(low.reason).toMatch(/^false negatives likely/);
   });
   it('raised IAP (12 mmHg, IAH by WSACS 2013): a HIGH value is doubtful, a LOW value still argues against', () => {
     const high = ppv(patient({ iap: 12 }), 18);
     expect(high).toMatchObject({ status: 'not-assessed', gap: 'outside-validity' });
-    expect(high.reason).toMatch(/^false positives likely: intra-abdominal hypertension, IAP 12/);
+    expect(high.reason).toMatch(/^false positives likely \(no intra-abdominal hypertension/);
+    expect(high.text).toMatch(/a high value is doubtful with intra-abdominal hypertension, IAP 12/);
     expect(ppv(patient({ iap: 12 }), 4)).toMatchObject({ status: 'assessed', direction: 'against' });
   });
   it('chest status and IAP not charted are assumed closed and normal, and the finding says so', () => {

@@ -41,7 +41,7 @@ export function assessVariationIndex(ctx: RuleContext, spec: VariationIndexSpec)
   const low = Math.min(spec.greyZoneLowPercent, thr);
   if (value >= thr) {
     if (v.falsePositive.length) {
-      return shown(`a high value is doubtful with ${conditionText(v.falsePositive)}`, `false positives likely: ${conditionText(v.falsePositive)}`);
+      return shown(`a high value is doubtful with ${conditionText(v.falsePositive)}`, `false positives likely (${v.falsePositive.map((c) => c.label).join('; ')} not met)`);
     }
     const note = v.falseNegative.length ? `; usable although ${conditionText(v.falseNegative)} (that error only lowers the value)` : '';
     return assessed({
@@ -51,7 +51,7 @@ export function assessVariationIndex(ctx: RuleContext, spec: VariationIndexSpec)
   }
   if (value < low) {
     if (v.falseNegative.length) {
-      return shown(`a low value cannot be read with ${conditionText(v.falseNegative)}`, `false negatives likely: ${conditionText(v.falseNegative)}`);
+      return shown(`a low value cannot be read with ${conditionText(v.falseNegative)}`, `false negatives likely (${v.falseNegative.map((c) => c.label).join('; ')} not met)`);
     }
     return assessed({
       ruleId: spec.ruleId, marker, direction: 'against', tier: 'dynamic', assumptions,
