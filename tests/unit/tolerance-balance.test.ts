@@ -154,14 +154,19 @@ describe('tolerance.fluid-overload', () => {
 
 describe('tolerance.weight-gain', () => {
   const w = (kg: number, ago: number, unit?: string) => m('bodyWeight', kg, ago, unit ? { unit } : {});
-  it('present: 70 → 77.5 kg is 10.7 %, moderate', () => {
+  it('adult: 70 → 77.5 kg is 10.7 %, severe from 10 % (Bouchard 2009 band)', () => {
     const f = weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(77.5, 120)] }), NOW, T)[0]!;
     expect(f.values!['weightGainPercent']).toBeCloseTo(10.71, 2);
-    expect(limit(f)).toBe('moderate');
+    expect(limit(f)).toBe('severe');
   });
-  it('boundary: 20 % is severe, 9.9 % limits nothing', () => {
-    expect(limit(weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(84, 120)] }), NOW, T)[0]!)).toBe('severe');
+  it('adult boundary: exactly 10 % is severe, 9.9 % limits nothing', () => {
+    expect(limit(weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(77, 120)] }), NOW, T)[0]!)).toBe('severe');
     expect(limit(weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(76.9, 120)] }), NOW, T)[0]!)).toBe('none');
+  });
+  it('child (10 years): paediatric bands, 10.7 % moderate, 20 % severe (Selewski 2011)', () => {
+    const child = (ms: Parameters<typeof snapshot>[0]) => { const s = snapshot(ms); s.patient.ageYears = 10; return s; };
+    expect(limit(weightGainRule(child({ measurements: [w(70, 3 * DAY - 30), w(77.5, 120)] }), NOW, T)[0]!)).toBe('moderate');
+    expect(limit(weightGainRule(child({ measurements: [w(70, 3 * DAY - 30), w(84, 120)] }), NOW, T)[0]!)).toBe('severe');
   });
   it('absent: one weight only → not assessed', () => {
     expect(weightGainRule(snapshot({ measurements: [w(70, 120)] }), NOW, T)[0]!.status).toBe('not-assessed');

@@ -1,6 +1,7 @@
 /**
  * Rule tolerance.weight-gain: weight change since admission as a % of the admission weight (the
- * weight-based form of %FO; Selewski DT et al., Intensive Care Med 2011 — from memory). Same bands as %FO.
+ * weight-based form of %FO; Selewski DT et al., Intensive Care Med 2011 — from memory). Same bands as %FO: adults
+ * ≥ 10 % severe (Bouchard J et al., Kidney Int 2009;76:422 [M]); children 10 % moderate, 20 % severe.
  */
 import type { PatientSnapshot } from '../../snapshot/types.js';
 import { weightGainPercent } from '../../physiology/fluid-overload.js';
@@ -27,7 +28,11 @@ export function weightGainRule(snapshot: PatientSnapshot, now: Date, t: Toleranc
     return [notAssessed(WEIGHT_GAIN, 'balance', title, `only one weight, or weights less than ${fmt(t.weightGainMinIntervalHours)} h apart`, SOURCE, [evidenceOfMeasurement(first.m, now)])];
   }
   const percent = weightGainPercent(first.m.value, last.value);
-  const limit = percent >= t.weightGainSeverePercent ? 'severe' : percent >= t.weightGainModeratePercent ? 'moderate' : 'none';
+  // Adults: the adult fluid-overload band (Bouchard 2009); children: the paediatric bands (Selewski 2011).
+  const child = snapshot.patient.ageYears !== undefined && snapshot.patient.ageYears < t.paediatricBelowAgeYears;
+  const limit = child
+    ? (percent >= t.weightGainSeverePercent ? 'severe' : percent >= t.weightGainModeratePercent ? 'moderate' : 'none')
+    : percent >= t.adultFluidOverloadPercent ? 'severe' : 'none';
   const change = last.value - first.m.value;
   return [assessed({
     ruleId: WEIGHT_GAIN, domain: 'balance', limit,
