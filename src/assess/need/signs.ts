@@ -13,7 +13,7 @@ import { ageText, fmt, staleText } from '../common/text.js';
 import { vasoactiveChangesBetween } from '../common/vasoactive-changes.js';
 import { urineIntervals } from '../tolerance/kidney-urine.js';
 import { weightForPerKg } from '../tolerance/weights.js';
-import type { NeedRule } from './context.js';
+import type { NeedContext, NeedRule } from './context.js';
 import { errorSign, notAssessedParts, sign, unusableSign } from './finding.js';
 
 export const MAP_SIGN = 'perfusion.map';
@@ -49,38 +49,47 @@ export const mapSign: NeedRule = {
   },
 };
 
-export const lactateSign: NeedRule = {
-  id: LACTATE_SIGN,
-  onError: errorSign(LACTATE_SIGN, 'lactate'),
-  run: (ctx) => {
-    const sel = latestReading(ctx.snapshot, 'lactate', ctx.now, ctx.w.lactateMin);
-    if (sel.state !== 'fresh') return unusableSign(sel, { ruleId: LACTATE_SIGN, sign: 'lactate', label: 'Lactate', source: LACTATE_SOURCE, evidenceOf: (m) => evidenceOfMeasurement(m, ctx.now) });
-    const v = sel.item.value;
-    const raised = v > ctx.t.lactateMaxNormalMmolL;
-    return sign({
-      ruleId: LACTATE_SIGN, sign: 'lactate', hypoperfusion: raised, evidence: [evidenceOfMeasurement(sel.item, ctx.now)], source: LACTATE_SOURCE,
-      text: `Lactate ${fmt(v, 1)} mmol/L (${raised ? `> ${fmt(ctx.t.lactateMaxNormalMmolL, 1)}: raised` : `≤ ${fmt(ctx.t.lactateMaxNormalMmolL, 1)}: not raised`}; ${ageText(sel.ageMinutes)} old)`,
-      values: { lactateMmolL: v, ageMin: Math.round(sel.ageMinutes) },
-    });
-  },
-};
+/** A sign read from the latest reading of one kind against an upper limit (strictly above = hypoperfusion). */
+interface AboveLimitSpec {
+  id: string;
+  sign: 'lactate' | 'capillary-refill';
+  kind: 'lactate' | 'capillaryRefill';
+  label: string;
+  unit: string;
+  window: (w: NeedContext['w']) => number;
+  limit: (t: NeedContext['t']) => number;
+  words: [above: string, within: string];
+  source: string;
+}
 
-export const capillaryRefillSign: NeedRule = {
-  id: CAPILLARY_REFILL_SIGN,
-  onError: errorSign(CAPILLARY_REFILL_SIGN, 'capillary-refill'),
-  run: (ctx) => {
-    const sel = latestReading(ctx.snapshot, 'capillaryRefill', ctx.now, ctx.w.capillaryRefillMin);
-    if (sel.state !== 'fresh') return unusableSign(sel, { ruleId: CAPILLARY_REFILL_SIGN, sign: 'capillary-refill', label: 'Capillary refill', source: CRT_SOURCE, evidenceOf: (m) => evidenceOfMeasurement(m, ctx.now) });
-    const v = sel.item.value;
-    const limit = ctx.t.capillaryRefillMaxNormalS;
-    const prolonged = v > limit;
-    return sign({
-      ruleId: CAPILLARY_REFILL_SIGN, sign: 'capillary-refill', hypoperfusion: prolonged, evidence: [evidenceOfMeasurement(sel.item, ctx.now)], source: CRT_SOURCE,
-      text: prolonged ? `Capillary refill ${fmt(v, 1)} s (> ${fmt(limit, 1)} s): prolonged` : `Capillary refill ${fmt(v, 1)} s (≤ ${fmt(limit, 1)} s): normal`,
-      values: { capillaryRefillS: v },
-    });
-  },
-};
+function aboveLimitSign(spec: AboveLimitSpec): NeedRule {
+  return {
+    id: spec.id,
+    onError: errorSign(spec.id, spec.sign),
+    run: (ctx) => {
+      const sel = latestReading(ctx.snapshot, spec.kind, ctx.now, spec.window(ctx.w));
+      if (sel.state !== 'fresh') return unusableSign(sel, { ruleId: spec.id, sign: spec.sign, label: spec.label, source: spec.source, evidenceOf: (m) => evidenceOfMeasurement(m, ctx.now) });
+      const v = sel.item.value;
+      const limit = spec.limit(ctx.t);
+      const above = v > limit;
+      return sign({
+        ruleId: spec.id, sign: spec.sign, hypoperfusion: above, evidence: [evidenceOfMeasurement(sel.item, ctx.now)], source: spec.source,
+        text: `${spec.label} ${fmt(v, 1)} ${spec.unit} (${above ? `> ${fmt(limit, 1)}: ${spec.words[0]}` : `≤ ${fmt(limit, 1)}: ${spec.words[1]}`}; ${ageText(sel.ageMinutes)} old)`,
+        values: { value: v, ageMin: Math.round(sel.ageMinutes) },
+      });
+    },
+  };
+}
+
+export const lactateSign = aboveLimitSign({
+  id: LACTATE_SIGN, sign: 'lactate', kind: 'lactate', label: 'Lactate', unit: 'mmol/L', source: LACTATE_SOURCE,
+  window: (w) => w.lactateMin, limit: (t) => t.lactateMaxNormalMmolL, words: ['raised', 'not raised'],
+});
+
+export const capillaryRefillSign = aboveLimitSign({
+  id: CAPILLARY_REFILL_SIGN, sign: 'capillary-refill', kind: 'capillaryRefill', label: 'Capillary refill', unit: 's', source: CRT_SOURCE,
+  window: (w) => w.capillaryRefillMin, limit: (t) => t.capillaryRefillMaxNormalS, words: ['prolonged', 'normal'],
+});
 
 export const urineSign: NeedRule = {
   id: URINE_SIGN,
