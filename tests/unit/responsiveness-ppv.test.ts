@@ -176,7 +176,7 @@ describe('PPV validity boundaries', () => {
     // 175 cm: PBW male 70.566, female 66.066 kg
     expect(ppv(patient({ sex: 'unknown', vtMl: 600 }), 4).status).toBe('assessed'); // 8.50 / 9.08
     expect(ppv(patient({ sex: 'unknown', vtMl: 500 }), 4).status).toBe('not-assessed'); // 7.09 / 7.57
-    expect(ppv(patient({ sex: 'other', vtMl: 540 }), 4).reason).toMatch(/sex needed for predicted body weight/); // 7.65 / 8.17
+    expect(ppv(patient({ sex: 'other', vtMl: 540 }), 4).text).toMatch(/sex needed for predicted body weight/); // 7.65 / 8.17
   });
   it('the evidence lists the validity data used', () => {
     const f = ppv(patient(), 18);
