@@ -7,7 +7,7 @@ import type { Card, Suggestion } from '../hooks/schemas.js';
 import { formatAge } from './format.js';
 import type { Evidence } from '../assess/types.js';
 import { findKind, type Catalogue } from './catalogue.js';
-import { fill, md, table } from './markdown.js';
+import { fill, inline, md, table } from './markdown.js';
 
 export interface CardModel {
   kind: string;
@@ -48,6 +48,18 @@ export function shortTime(iso: string): string {
   return iso.slice(0, 16).replace('T', ' ') + 'Z';
 }
 
+/**
+ * The first `n` characters of escaped text, never ending inside an escape: not after the lone backslash of a
+ * backslash escape, not inside an entity (&amp; &lt; &gt;), not after the first half of a surrogate pair.
+ */
+function cutEscaped(text: string, n: number): string {
+  let t = text.slice(0, n);
+  const slashes = /\\+$/.exec(t)?.[0].length ?? 0;
+  if (slashes % 2 === 1) t = t.slice(0, -1);
+  t = t.replace(/&(a|am|amp|l|lt|g|gt)?$/, '');
+  return /[\ud800-\udbff]$/.test(t) ? t.slice(0, -1) : t;
+}
+
 export interface RenderContext {
   hook: string;
   publicUrl: string;
@@ -55,9 +67,12 @@ export interface RenderContext {
 
 export function renderCard(model: CardModel, cat: Catalogue, ctx: RenderContext): Card {
   const kind = findKind(cat, model.kind);
-  let summary = fill(kind.summary, model.vars).replace(/\s+/g, ' ').trim();
-  if (summary.length >= 140) summary = fill(kind.shortSummary, model.vars).replace(/\s+/g, ' ').trim();
-  if (summary.length >= 140) summary = `${summary.slice(0, 136)}…`;
+  // Variables can carry client text (the reason of an assessment-gap card quotes what a prefetch OperationOutcome
+  // said): escaped in the summary as values are in the detail. Tidemark's own phrases hold nothing to escape.
+  const summaryVars = Object.fromEntries(Object.entries(model.vars).map(([k, v]) => [k, inline(v)]));
+  let summary = fill(kind.summary, summaryVars).replace(/\s+/g, ' ').trim();
+  if (summary.length >= 140) summary = fill(kind.shortSummary, summaryVars).replace(/\s+/g, ' ').trim();
+  if (summary.length >= 140) summary = `${cutEscaped(summary, 136)}…`;
 
   const parts: string[] = [];
   for (const section of kind.sections) {

@@ -1,24 +1,23 @@
 /** `npm start`: runs the service on the configured port (embedded SQLite audit by default). */
 import { loadConfig, ConfigError } from '../config/config.js';
+import { createLogger } from '../log.js';
 import { buildService } from '../service.js';
+import { listen } from './listen.js';
 
 async function main(): Promise<void> {
   let cfg;
   try {
     cfg = loadConfig();
   } catch (e) {
-    process.stderr.write(`${(e as Error).message}\n`);
+    // Nothing writes to stdout or stderr but the logger, also before the configuration is known (info level).
+    createLogger('info').fatal({ err: (e as Error).message.slice(0, 2000) }, 'configuration refused');
     process.exit(2);
   }
   try {
     const svc = await buildService(cfg);
     // A stray rejection must not take the service down mid-shift: log it (ids only) and keep serving.
     process.on('unhandledRejection', (e) => svc.log.error({ err: String((e as Error)?.message ?? e).slice(0, 200) }, 'unhandled rejection'));
-    const server = svc.app.listen(cfg.PORT, cfg.HOST, () => {
-      const addr = server.address();
-      const port = typeof addr === 'object' && addr ? addr.port : cfg.PORT;
-      svc.log.info({ port, auditStore: svc.store.kind, rulesVersion: svc.rulesVersion }, `Tidemark listening on http://localhost:${port}/cds-services`);
-    });
+    const server = await listen(svc, cfg);
     server.requestTimeout = 30_000;
     const stop = (signal: string) => {
       svc.log.info({ signal }, 'shutting down');
@@ -28,7 +27,10 @@ async function main(): Promise<void> {
     process.on('SIGTERM', () => stop('SIGTERM'));
     process.on('SIGINT', () => stop('SIGINT'));
   } catch (e) {
-    process.stderr.write(`${e instanceof ConfigError ? '' : 'start-up failed: '}${(e as Error).message}\n`);
+    createLogger(cfg.TIDEMARK_LOG_LEVEL).fatal(
+      { err: (e as Error).message.slice(0, 2000) },
+      e instanceof ConfigError ? 'configuration refused' : 'start-up failed',
+    );
     process.exit(e instanceof ConfigError ? 2 : 1);
   }
 }

@@ -3,13 +3,42 @@
  * Source: CDS Hooks 2.0 (STU2), https://cds-hooks.hl7.org/2.0/ — condensed in ../shared/cds-hooks-2.0.md.
  */
 import { z } from 'zod';
+import { httpsOrLoopbackUrl } from '../auth/issuer-config.js';
+
+// ---------------------------------------------------------------- limits on what a client sends (issue 13 item 5)
+// Each is a 400 beyond it (never a 5xx), and each keeps a client from making the audit record large or the service
+// recurse: the record copies the ids and the draft orders as received. Also in docs/security.md, "Limits and faults".
+
+/**
+ * Deepest nesting of objects and arrays in a request body (the body itself is level 1), checked right after parsing
+ * (src/http/body-shape.ts). A full order-select request of the test fixtures nests 11 levels (a coding inside an
+ * Observation inside a prefetch Bundle; tests/unit/body-shape.test.ts); 64 is our own bound, with room for
+ * extensions and contained resources.
+ */
+export const MAX_JSON_DEPTH = 64;
+/** Longest FHIR id: the R4 primitive type id is [A-Za-z0-9\-\.]{1,64} (FHIR R4, Data Types, "id"). */
+export const MAX_ID_LENGTH = 64;
+/** Longest resource type name taken from a client (R4 names are far shorter; 64 is our own bound). */
+export const MAX_RESOURCE_TYPE_LENGTH = 64;
+/** Longest hook name or prefetch key (CDS Hooks names are short, "order-select"; 64 is our own bound). */
+export const MAX_NAME_LENGTH = 64;
+/**
+ * Largest context.draftOrders, as JSON text (UTF-16 code units, about bytes for ASCII): 256 KiB. The draft orders
+ * are kept in the audit record as received; an order-sign bundle of a whole order set is a few tens of KB.
+ * Our own bound, well below the body limit (TIDEMARK_BODY_LIMIT, 2 MB by default).
+ */
+export const MAX_DRAFT_ORDERS_CHARS = 256 * 1024;
+/** Longest free text stored from feedback (overrideReason.userComment); our own bound. */
+export const MAX_COMMENT_LENGTH = 2_000;
 
 /** A string that is not empty: the standard asks senders to omit rather than send "". */
 const text = z.string().min(1);
 const jsonObject = z.record(z.string(), z.unknown());
+const fhirId = z.string().regex(/^[A-Za-z0-9\-.]{1,64}$/, `must be a FHIR id (1-${MAX_ID_LENGTH} of A-Z a-z 0-9 - .)`);
+const resourceTypeName = z.string().regex(/^[A-Z][A-Za-z]{0,63}$/, `must be a FHIR resource type (a capital letter, then letters, at most ${MAX_RESOURCE_TYPE_LENGTH})`);
 
-/** A FHIR resource as JSON: only resourceType is required here; the snapshot checks the rest. */
-export const fhirResourceSchema = z.looseObject({ resourceType: text });
+/** A FHIR resource as JSON: resourceType (and id when present) are checked here; the snapshot checks the rest. */
+export const fhirResourceSchema = z.looseObject({ resourceType: resourceTypeName, id: fhirId.optional() });
 
 export const fhirAuthorizationSchema = z.object({
   access_token: text,
@@ -21,14 +50,24 @@ export const fhirAuthorizationSchema = z.object({
 });
 
 /** draftOrders is a Bundle that may lack Bundle.type (cds-hooks/docs#659): accept it. */
-export const draftOrdersSchema = z.looseObject({
-  resourceType: z.literal('Bundle'),
-  type: z.string().optional(),
-  entry: z.array(z.looseObject({ resource: fhirResourceSchema.optional() })).optional(),
-});
+export const draftOrdersSchema = z
+  .looseObject({
+    resourceType: z.literal('Bundle'),
+    type: z.string().optional(),
+    entry: z.array(z.looseObject({ resource: fhirResourceSchema.optional() })).optional(),
+  })
+  .refine((b) => jsonLength(b) <= MAX_DRAFT_ORDERS_CHARS, { message: `draftOrders is larger than ${MAX_DRAFT_ORDERS_CHARS / 1024} KiB of JSON` });
 
-const referenceString = z.string().regex(/^[A-Za-z]+\/[A-Za-z0-9\-.]{1,64}$/, 'must be a relative reference Type/id');
-const fhirId = z.string().regex(/^[A-Za-z0-9\-.]{1,64}$/, 'must be a FHIR id (1-64 of A-Z a-z 0-9 - .)');
+/** Length of a value's JSON text; a value that cannot be written as JSON (too deep, a cycle) counts as too long. */
+function jsonLength(v: unknown): number {
+  try {
+    return JSON.stringify(v)?.length ?? 0;
+  } catch {
+    return Number.POSITIVE_INFINITY;
+  }
+}
+
+const referenceString = z.string().regex(/^[A-Za-z]{1,64}\/[A-Za-z0-9\-.]{1,64}$/, 'must be a relative reference Type/id (each at most 64 characters)');
 
 /** patient-view 1.1 context. */
 export const patientViewContextSchema = z.looseObject({
@@ -62,13 +101,14 @@ export const HOOK_CONTEXT_SCHEMAS = {
 export type HookName = keyof typeof HOOK_CONTEXT_SCHEMAS;
 
 /** Prefetch values: a resource, a searchset Bundle, an OperationOutcome, or null. */
-export const prefetchSchema = z.record(z.string(), fhirResourceSchema.nullable());
+export const prefetchSchema = z.record(z.string().max(MAX_NAME_LENGTH), fhirResourceSchema.nullable());
 
 export const hookRequestSchema = z
   .object({
-    hook: text,
+    hook: text.max(MAX_NAME_LENGTH),
     hookInstance: z.guid(),
-    fhirServer: z.url().optional(),
+    /** Where Tidemark reads missing data with the call's token: https only (http on a loopback host for trials). */
+    fhirServer: httpsOrLoopbackUrl.optional(),
     fhirAuthorization: fhirAuthorizationSchema.optional(),
     context: jsonObject,
     prefetch: prefetchSchema.optional(),
@@ -175,7 +215,7 @@ export const feedbackItemSchema = z
     // Early clients sent a bare Coding instead of { reason, userComment } (cds-hooks/docs#519): accept both.
     overrideReason: z
       .union([
-        z.object({ reason: codingSchema.optional(), userComment: z.string().optional() }).refine((o) => o.reason || o.userComment, {
+        z.object({ reason: codingSchema.optional(), userComment: z.string().max(MAX_COMMENT_LENGTH).optional() }).refine((o) => o.reason || o.userComment, {
           message: 'overrideReason needs reason or userComment',
         }),
         codingSchema.transform((c) => ({ reason: c, userComment: undefined })),

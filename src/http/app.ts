@@ -11,6 +11,7 @@ import { evaluateHook, type EvaluateDeps } from '../hooks/evaluate.js';
 import { recordFeedback } from '../hooks/feedback.js';
 import { replay } from '../audit/replay.js';
 import { discoveryDocument, findService } from '../hooks/services.js';
+import { withDepthLimit } from './body-shape.js';
 import { HttpError, operationOutcome, zodIssues } from './errors.js';
 
 export interface AppDeps extends EvaluateDeps {
@@ -51,7 +52,8 @@ export function createApp(deps: AppDeps): express.Express {
   app.set('etag', false);
   const cds = deps.cdsClientAuth ?? pass;
   const audit = deps.auditAuth ?? pass;
-  const json = express.json({ limit: deps.bodyLimit, type: ['application/json', 'application/fhir+json', 'application/*+json'] });
+  // A body nested deeper than MAX_JSON_DEPTH is a 400 right after parsing, before any code can recurse over it.
+  const json = withDepthLimit(express.json({ limit: deps.bodyLimit, type: ['application/json', 'application/fhir+json', 'application/*+json'] }));
 
   app.use((req, res, next) => {
     res.setHeader('X-Content-Type-Options', 'nosniff');
@@ -116,7 +118,8 @@ export function createApp(deps: AppDeps): express.Express {
   app.post('/cds-services/:id/feedback', cds, json, async (req: Request, res: Response) => {
     const service = findService(String(req.params['id']));
     if (!service) throw new HttpError(404, 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
-    const result = await recordFeedback(service, req.body, deps.store, () => new Date());
+    // The caller the guard verified: feedback is taken only from the issuer that received the card.
+    const result = await recordFeedback(service, req.body, deps.store, () => new Date(), res.locals['client'] as { issuer?: string; tenant?: string } | undefined);
     res.status(200).json(result);
   });
 

@@ -7,7 +7,9 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { md } from '../../src/cards/markdown.js';
+import { loadCatalogue } from '../../src/cards/catalogue.js';
+import { inline, md } from '../../src/cards/markdown.js';
+import { renderCard } from '../../src/cards/render.js';
 
 function reference(value: unknown): string {
   return String(value)
@@ -32,5 +34,51 @@ describe('md (Markdown escaping of data values)', () => {
     expect(md(42.5)).toBe('42.5');
     expect(md('<b>*x*</b>\nnext')).toBe('&lt;b&gt;\\*x\\*&lt;/b&gt; next');
     expect(md('a|b')).toBe('a\\|b');
+  });
+});
+
+// Issue 13 item 9: client text in a card summary (the reason of the "advice not available" card quotes what a
+// prefetch OperationOutcome said). inline() removes control and bidi characters (Unicode UAX #9) and escapes as
+// md() does; the rendered summary keeps that for any string, also where it is cut to stay under 140 characters
+// (CDS Hooks 2.0: summary < 140 characters).
+const INVISIBLE = /[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069]/;
+const attack = fc.constantFrom('[click](javascript:alert(1))', '<img src=x onerror=alert(1)>', '\u202E', '\u2066', '\u200F', '&lt;', '\\', '\\\\[', '`', '**', '_', '|', '~~', '\n', '\r\n', '\t', '\u0000', '\u0085', '💧', 'a', ' ');
+const hostile = fc.oneof(fc.string({ unit: 'grapheme' }), fc.string({ unit: 'binary' }), fc.array(attack, { maxLength: 40 }).map((a) => a.join('')));
+
+/** Undoes the escaping: a backslash escape gives its character, an entity its character, in one pass. */
+function unescape(s: string): string {
+  return s.replace(/\\([\\`*_[\]|~])|&(amp|lt|gt);/g, (_m, c: string | undefined, e: string | undefined) => c ?? ({ amp: '&', lt: '<', gt: '>' } as Record<string, string>)[e ?? ''] ?? '');
+}
+
+/** Holds for escaped text: no control or bidi character, no raw HTML, markup only escaped, & only in entities. */
+function safelyEscaped(s: string): void {
+  expect(s).not.toMatch(INVISIBLE);
+  expect(s).not.toMatch(/[<>]/);
+  const bare = s.replace(/\\[\\`*_[\]|~]/g, '').replace(/&(amp|lt|gt);/g, '');
+  expect(bare).not.toMatch(/[\\`*_[\]|~&]/);
+}
+
+describe('inline (client text in a card summary)', () => {
+  it('escapes any hostile string and keeps its visible text', () => {
+    fc.assert(fc.property(hostile, (s) => {
+      const out = inline(s);
+      safelyEscaped(out);
+      expect(unescape(out)).toBe(s.replace(new RegExp(INVISIBLE.source, 'g'), (c) => (c === '\t' || c === '\n' || c === '\r' ? ' ' : '')));
+    }), { numRuns: 3000 });
+  });
+
+  it('the rendered summary of an assessment-gap card is escaped and under 140 characters for any reason text', () => {
+    const cat = loadCatalogue().catalogue;
+    fc.assert(fc.property(hostile, (reason) => {
+      const card = renderCard({ kind: 'assessment-gap', vars: { gapReason: reason }, conclusion: [], evidence: [], gaps: [], order: [], suggestions: [] }, cat, { hook: 'order-select', publicUrl: 'http://localhost:8080' });
+      expect(card.summary.length).toBeLessThan(140);
+      safelyEscaped(card.summary.replace(/…$/, ''));
+    }), { numRuns: 2000 });
+  });
+
+  it('neutralises the attacks of issue 13', () => {
+    expect(inline('[click](javascript:alert(1))')).toBe('\\[click\\](javascript:alert(1))');
+    expect(inline('<img src=x onerror=alert(1)>')).toBe('&lt;img src=x onerror=alert(1)&gt;');
+    expect(inline('abc\u202Edef')).toBe('abcdef');
   });
 });

@@ -1,6 +1,6 @@
 // Unit conversions through the UCUM reference library (@lhncbc/ucum-lhc), with check values from outside sources.
-import { describe, expect, it } from 'vitest';
-import { toCanonical, toUcum } from '../../src/fhir/units.js';
+import { describe, expect, it, vi } from 'vitest';
+import { convert, MAX_UNIT_LENGTH, toCanonical, toUcum } from '../../src/fhir/units.js';
 
 const value = (r: ReturnType<typeof toCanonical>) => (r.ok ? r.value : NaN);
 
@@ -39,5 +39,37 @@ describe('canonical units', () => {
     expect(toCanonical('heartRate', 80, 'furlongs')).toMatchObject({ ok: false, reason: 'unknown-unit' });
     expect(toCanonical('heartRate', 80, 'kg')).toMatchObject({ ok: false, reason: 'incompatible-unit' });
     expect(toCanonical('lactate', 2, undefined)).toMatchObject({ ok: false, reason: 'unknown-unit' });
+  });
+});
+
+// Issue 13 item 3: unit text is client data. @lhncbc/ucum-lhc 7.1.10 prints it with console.log when its parser throws
+// (UcumLhcUtils.getSpecifiedUnit), which wrote client text to stdout past the logger.
+describe('hostile unit text', () => {
+  const hostile = ['mm Hg\n{"level":50,"msg":"forged"} Quillfeather', 'mg\u202e', 'm\tL', 'x'.repeat(MAX_UNIT_LENGTH + 1), '{a}m(g)', '()', '(g){a}m'];
+  it('is refused as not UCUM, and nothing reaches the console', () => {
+    const spies = (['log', 'info', 'warn', 'error', 'debug'] as const).map((m) => vi.spyOn(console, m));
+    try {
+      for (const u of hostile) {
+        expect(toUcum(u), u).toBeUndefined();
+        expect(toCanonical('meanBp', 61, u), u).toMatchObject({ ok: false, reason: 'unknown-unit' });
+        expect(convert(500, u, 'mL'), u).toBeUndefined();
+      }
+      expect(spies.flatMap((s) => s.mock.calls)).toEqual([]);
+    } finally {
+      vi.restoreAllMocks();
+    }
+  });
+  it('the console is the same after a silenced library call as before it', () => {
+    const before = console.log;
+    toUcum('{a}m(g)');
+    expect(console.log).toBe(before);
+  });
+  it('a reason quotes at most MAX_UNIT_LENGTH characters of the unit', () => {
+    const r = toCanonical('meanBp', 61, 'y'.repeat(100_000));
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.detail.length).toBeLessThan(MAX_UNIT_LENGTH + 40);
+  });
+  it('valid UCUM still passes the screen (UCUM examples: mm[Hg], 10*3/uL, {beats}/min, mL/kg/h)', () => {
+    for (const u of ['mm[Hg]', '10*3/uL', '{beats}/min', 'mL/kg/h', '%']) expect(toUcum(u), u).toBe(u);
   });
 });
