@@ -199,3 +199,18 @@ describe('SVV (Marik 2009 threshold 11.6 %, same validity conditions)', () => {
     expect(svv(patient({ rhythm: 'other-irregular' }), 14).gap).toBe('outside-validity');
   });
 });
+
+describe('right-ventricular failure and pulmonary hypertension (false positives: Mahjoub 2009 [M]; §12)', () => {
+  const withCondition = (system: string, code: string) => patient().condition({ codings: [{ system, code }], clinicalStatus: 'active' });
+  it('pulmonary hypertension coded ICD-10-CM I27.21: a high PPV is doubtful, a low one still argues against', () => {
+    const b = withCondition('http://hl7.org/fhir/sid/icd-10-cm', 'I27.21');
+    const high = ppv(b, 18);
+    expect(high).toMatchObject({ status: 'not-assessed', gap: 'outside-validity' });
+    expect(high.text).toMatch(/pulmonary hypertension/i);
+    expect(ppv(withCondition('http://hl7.org/fhir/sid/icd-10-cm', 'I27.21'), 4)).toMatchObject({ status: 'assessed', direction: 'against' });
+  });
+  it('a resolved condition does not count', () => {
+    const b = patient().condition({ codings: [{ system: 'http://hl7.org/fhir/sid/icd-10-cm', code: 'I27.21' }], clinicalStatus: 'resolved' });
+    expect(ppv(b, 18).status).toBe('assessed');
+  });
+});

@@ -17,7 +17,7 @@ import { predictedBodyWeightKg, tidalVolumeMlPerKg } from '../../physiology/pred
 import type { Evidence, Figures } from '../common/finding.js';
 import { codedOf, evidenceOfCoded, evidenceOfMeasurement, latestCoded, latestReading, type Selection } from '../common/select.js';
 import { fmt, staleText } from '../common/text.js';
-import { matchConditionSets } from '../tolerance/conditions.js';
+import { activeConditionGroups } from '../tolerance/conditions.js';
 import type { RuleContext } from './context.js';
 
 export type ConditionState = 'met' | 'failed' | 'unknown' | 'assumed';
@@ -36,12 +36,6 @@ export interface Condition {
   evidence: Evidence[];
   values: Figures;
 }
-
-/**
- * Condition-set ids (tolerance/condition-sets.json, read through matchConditionSets) that make a high PPV doubtful:
- * right-ventricular failure and pulmonary hypertension (§12). Until those sets exist, nothing matches them.
- */
-export const RIGHT_HEART_SETS: readonly string[] = ['right-ventricular-failure', 'pulmonary-hypertension'];
 
 function why<T>(sel: Selection<T>, what: string): string {
   switch (sel.state) {
@@ -175,21 +169,23 @@ export function checkIntraAbdominalPressure(ctx: RuleContext): Condition {
   };
 }
 
-/** No active right-ventricular failure or pulmonary hypertension among the recorded conditions. */
+/**
+ * No active condition in a value-set group whose effect is `high-ppv-doubtful` (right-ventricular failure, pulmonary
+ * hypertension: src/fhir/value-sets/conditions.json, read through activeConditionGroups).
+ */
 export function checkRightVentricle(ctx: RuleContext): Condition {
   const label = 'no right-ventricular failure or pulmonary hypertension recorded';
-  for (const c of ctx.snapshot.conditions) {
-    if (c.clinicalStatus !== 'active' && c.clinicalStatus !== 'recurrence' && c.clinicalStatus !== 'relapse') continue;
-    const hit = matchConditionSets(c).find((h) => RIGHT_HEART_SETS.includes(h.id));
-    if (hit) {
-      const when = c.onset ?? ctx.snapshot.now;
-      return {
-        id: 'right-ventricle', label, state: 'failed', error: 'false-positive', detail: hit.label,
-        evidence: [{ ref: c.ref, kind: 'condition', value: hit.coding, effective: when, ageMinutes: 0 }], values: { rightHeartCondition: hit.id },
-      };
-    }
-  }
-  return { id: 'right-ventricle', label, state: 'met', error: 'false-positive', detail: 'none recorded', evidence: [], values: {} };
+  const groups = activeConditionGroups(ctx.snapshot.conditions).filter((g) => g.effects.includes('high-ppv-doubtful'));
+  if (groups.length === 0) return { id: 'right-ventricle', label, state: 'met', error: 'false-positive', detail: 'none recorded', evidence: [], values: {} };
+  const byRef = new Map(ctx.snapshot.conditions.map((c) => [c.ref, c]));
+  const evidence: Evidence[] = groups.flatMap((g) => g.refs.map((ref, i) => {
+    const when = byRef.get(ref)?.onset ?? ctx.snapshot.now;
+    return { ref, kind: 'condition', value: g.codings[i] ?? '', effective: when, ageMinutes: 0 };
+  }));
+  return {
+    id: 'right-ventricle', label, state: 'failed', error: 'false-positive', detail: groups.map((g) => g.label).join('; '),
+    evidence, values: { rightHeartGroups: groups.map((g) => g.id).join(',') },
+  };
 }
 
 /** All conditions for PPV and SVV, in a fixed order. */
