@@ -42,6 +42,8 @@ export interface ServiceSummary {
   serviceId: string;
   hook: string;
   gathering: Array<{ key: string; status: string; count: number; detail?: string }>;
+  /** Whether the circulation needs more flow (signs of hypoperfusion), when the rules could say. */
+  need: string | null;
   responsiveness: string | null;
   tolerance: string | null;
   /** Order hooks: the recommendation's action for the sample draft order, or null. */
@@ -139,6 +141,7 @@ export function patientReadiness(patientId: string, runs: readonly ServiceRun[],
     serviceId: r.serviceId,
     hook: r.hook,
     gathering: r.outcomes.map((o) => ({ key: o.key, status: o.status, count: o.count, ...(o.detail ? { detail: o.detail } : {}) })),
+    need: r.advice.need?.value ?? null,
     responsiveness: r.advice.responsiveness?.value ?? null,
     tolerance: r.advice.tolerance?.value ?? null,
     recommendation: r.advice.recommendation?.action ?? null,
@@ -190,7 +193,7 @@ export function writeReport(report: ReadinessReport, format: 'text' | 'json', wr
     for (const u of p.unmapped) write(`    ${clean(u.system)} | ${clean(u.code)}${u.display ? ` "${clean(u.display)}"` : ''} × ${u.count}${u.note ? ` (${u.note})` : ''}\n`);
     write(`  Absent (${absent.length}): ${absent.map((m) => m.marker).join(', ') || '(none)'}\n`);
     for (const s of p.services) {
-      const verdicts = [`responsiveness ${s.responsiveness ?? 'no verdict'}`, `tolerance ${s.tolerance ?? 'no verdict'}`];
+      const verdicts = [`need ${s.need ?? 'no verdict'}`, `responsiveness ${s.responsiveness ?? 'no verdict'}`, `tolerance ${s.tolerance ?? 'no verdict'}`];
       if (s.hook !== 'patient-view') verdicts.push(`sample order ${s.recommendation ?? 'no recommendation'}`);
       write(`  ${s.serviceId} (${s.hook}): ${verdicts.join(' · ')} · findings assessed ${s.rulesAssessed}, not assessed ${s.rulesNotAssessed}\n`);
       const gaps = s.gathering.filter((g) => g.status !== 'ok' && g.status !== 'no-data');

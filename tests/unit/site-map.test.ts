@@ -161,6 +161,7 @@ describe('the readiness report (pure, written to a sink)', () => {
     expect(r.unmapped.find((u) => u.code === '149530')?.note).toMatch(/says relatedto/);
     expect(r.unmapped.some((u) => u.code === 'FLO-3301' || u.code === '2524-7')).toBe(false);
     expect(r.services[0]?.responsiveness).toBe(run.advice.responsiveness?.value ?? null);
+    expect(r.services[0]?.need).toBe(run.advice.need?.value ?? null);
     const out: string[] = [];
     writeReport({ rulesVersion: 'test', now: NOW.toISOString(), patients: [r] }, 'text', (s) => out.push(s));
     const text = out.join('');
