@@ -16,6 +16,8 @@ import { createMetrics } from './http/metrics.js';
 import { authConfigSchema } from './auth/issuer-config.js';
 import { createClientVerifier } from './auth/client-verifier.js';
 import { requireAuditAccess, requireCdsClient } from './auth/middleware.js';
+import { adviceLinkUrl, ADVICE_LINK_LABEL, signerFromConfig } from './http/advice-link.js';
+import { mountPages } from './http/pages.js';
 
 export interface Service {
   app: ReturnType<typeof createApp>;
@@ -56,6 +58,13 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     warnings.push('local trial mode: CDS calls are accepted without a verified client JWT; never use with real patients');
     log.warn({}, warnings[0] as string);
   }
+  const links = signerFromConfig(cfg);
+  if (links.warning) {
+    warnings.push(links.warning);
+    log.warn({}, links.warning);
+  }
+  const now = opts.now ?? (() => new Date());
+  const signer = links.signer;
   if (!cfg.TIDEMARK_TRIAL_MODE && auth.data.issuers.length === 0) warnings.push('no trusted issuers configured: every CDS call is refused');
   const metrics = createMetrics();
   const app = createApp({
@@ -64,6 +73,11 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     cdsClientAuth: requireCdsClient({ verifier, publicUrl, trialMode: cfg.TIDEMARK_TRIAL_MODE, log }),
     auditAuth: requireAuditAccess({ ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), verifier, publicUrl, log }),
     readinessWarnings: warnings,
+    pages: (a) => mountPages(a, {
+      store, catalogue, thresholds, rulesVersion: version, now, timeZone: cfg.TIDEMARK_TIME_ZONE, frameAncestors: cfg.TIDEMARK_FRAME_ANCESTORS, log,
+      ...(signer ? { signer } : {}),
+    }),
+    ...(signer ? { adviceLink: (id: string) => ({ label: ADVICE_LINK_LABEL, url: adviceLinkUrl(publicUrl, id, signer.sign(id, now().getTime())) }) } : {}),
     ...(cfg.file.corsOrigins ? { corsOrigins: cfg.file.corsOrigins } : {}),
     extraRoutes: (a) => {
       a.get('/metrics', async (_req, res) => {
@@ -72,7 +86,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     },
     store, catalogue, thresholds, rulesVersion: version, publicUrl, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
     gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY },
-    now: opts.now ?? (() => new Date()),
+    now,
     ...(opts.makeFetcher ? { makeFetcher: opts.makeFetcher } : {}),
   });
   return { app, store, log, rulesVersion: version, close: () => store.close() };

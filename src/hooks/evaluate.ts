@@ -25,6 +25,8 @@ export interface EvaluateDeps {
   publicUrl: string;
   now: () => Date;
   makeFetcher?: typeof fhirFetcher;
+  /** The signed link to an advice's reasoning page, put on its cards; none when links are off. */
+  adviceLink?: (adviceId: string) => { label: string; url: string } | undefined;
   log: { info(o: object, m?: string): void; warn(o: object, m?: string): void; error(o: object, m?: string): void };
   metrics?: { observeGather(o: GatherOutcome[]): void; observeAuditWrite(seconds: number, ok: boolean): void };
 }
@@ -119,10 +121,11 @@ async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: E
     hook, advice, snapshot, gathering: gathered.outcomes, purposes, catalogue: deps.catalogue,
     context: { patientId: ctx.patientId, userId: ctx.userId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}) },
   });
+  const link = deps.adviceLink?.(adviceId);
   const cards: Card[] = [];
   const cardKinds: Record<string, string> = {};
   for (const m of models) {
-    const card = renderCard(m, deps.catalogue, { hook, publicUrl: deps.publicUrl });
+    const card = renderCard(m, deps.catalogue, { hook, publicUrl: deps.publicUrl, ...(link ? { adviceLink: link } : {}) });
     cards.push(card);
     if (card.uuid) cardKinds[card.uuid] = m.kind;
   }
