@@ -34,8 +34,10 @@ export function createLinkSigner(key: string | Buffer, lifetimeMinutes: number):
     },
     verify(adviceId, exp, sig, nowMs) {
       if (typeof exp !== 'string' || typeof sig !== 'string' || !EXP_SHAPE.test(exp) || !SIG_SHAPE.test(sig)) return 'bad';
-      const expected = mac(adviceId, Number(exp));
-      const given = Buffer.from(sig, 'base64url');
+      // Compared as text, not as decoded bytes: base64url has several spellings of the same last byte (its low
+      // padding bits), and a changed link must not pass for the original.
+      const expected = Buffer.from(mac(adviceId, Number(exp)).toString('base64url'));
+      const given = Buffer.from(sig);
       if (given.length !== expected.length || !timingSafeEqual(given, expected)) return 'bad';
       return Number(exp) * 1000 > nowMs ? 'ok' : 'expired';
     },

@@ -4,6 +4,7 @@
  * shortly after the moment of the advice. Pure: snapshot and that moment in, rows out.
  */
 import { balanceOver } from '../assess/tolerance/balance-data.js';
+import { absoluteChange, relativeChangePercent } from '../physiology/dynamic-tests.js';
 import type { Measurement, PatientSnapshot } from '../snapshot/types.js';
 
 export type RowMark = 'line' | 'bar' | 'point' | 'draft';
@@ -35,6 +36,12 @@ export interface Trends {
 }
 
 const HOUR = 3_600_000;
+/**
+ * A test read on PPV or SVV changes by percentage points (tidal volume challenge: absolute ΔPPV, Myatra SN et al.,
+ * Crit Care Med 2017;45:415–421); one read on flow by % of the baseline (PLR, mini fluid challenge, end-expiratory
+ * occlusion: physiology/dynamic-tests.ts).
+ */
+const ABSOLUTE = new Set(['ppv', 'svv']);
 /** The axis ends this long after "now", so the draft bolus at now is not on the frame's edge. */
 const AFTER_NOW_MS = 30 * 60_000;
 
@@ -95,8 +102,11 @@ export function trendsOf(snap: PatientSnapshot, nowIso: string): Trends {
   }
   const dynamic: TrendRow[] = [
     ...snap.dynamicTests
-      .filter((d) => inWindow(ms(d.effective)) && d.before !== 0)
-      .map((d) => ({ series: 'Dynamic test', t: d.effective, value: round(((d.after - d.before) / d.before) * 100, 1), unit: '% change', mark: 'point' as const, ref: d.ref, note: `${d.kind} (${d.measured}) ${d.before} → ${d.after} ${d.unit}` })),
+      .filter((d) => inWindow(ms(d.effective)) && (ABSOLUTE.has(d.measured) || d.before > 0))
+      .map((d) => ({
+        series: 'Dynamic test', t: d.effective, mark: 'point' as const, ref: d.ref, note: `${d.kind} (${d.measured}) ${d.before} → ${d.after} ${d.unit}`,
+        ...(ABSOLUTE.has(d.measured) ? { value: round(absoluteChange(d.before, d.after), 1), unit: 'points change' } : { value: round(relativeChangePercent(d.before, d.after), 1), unit: '% change' }),
+      })),
     ...series(snap, 'ppv', 'PPV', '%', fromMs, now).map((r) => ({ ...r, mark: 'point' as const })),
     ...series(snap, 'svv', 'SVV', '%', fromMs, now).map((r) => ({ ...r, mark: 'point' as const })),
   ].sort((a, b) => ms(a.t) - ms(b.t));
@@ -109,7 +119,7 @@ export function trendsOf(snap: PatientSnapshot, nowIso: string): Trends {
     { id: 'urine-balance', title: 'Urine output per hour and cumulative balance', axes: [{ series: ['Urine output'], title: 'Urine, mL/h', minSpan: 100 }, { series: ['Cumulative balance'], title: 'Balance, mL', minSpan: 1000 }],
       rows: [...urineRate(snap, fromMs, now), ...balance(snap, fromMs, now)] },
     { id: 'fluids', title: 'Fluids given and the draft bolus', axes: [{ series: ['Fluid given', 'Draft bolus (now)'], title: 'Volume, mL', minSpan: 500 }], rows: fluids },
-    { id: 'dynamic', title: 'Dynamic tests, PPV and SVV', axes: [{ series: ['Dynamic test', 'PPV', 'SVV'], title: '%', minSpan: 20 }], rows: dynamic },
+    { id: 'dynamic', title: 'Dynamic tests, PPV and SVV', axes: [{ series: ['Dynamic test', 'PPV', 'SVV'], title: '%; change in a test', minSpan: 20 }], rows: dynamic },
   ];
   return { from: new Date(fromMs).toISOString(), to: new Date(toMs).toISOString(), now: nowIso, hours, plots };
 }

@@ -25,7 +25,7 @@ const EHR = 'https://ehr.tern-hospital.example';
 const FHIR_TOKEN = 'e2e-pages-fhir-token';
 const AUDIT_TOKEN = 'e2e-pages-audit-token-0123456789';
 const IMG = fileURLToPath(new URL('../../docs/img/', import.meta.url));
-const PICKED = ['responder-poor-tolerance', 'bolus-answered'] as const;
+const PICKED = ['responder-poor-tolerance', 'bolus-answered', 'tidal-volume-challenge'] as const;
 
 let fhir: EmbeddedFhir;
 let svc: Running;
@@ -120,6 +120,7 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
     expect(csp).toContain(`frame-ancestors ${EHR}`);
     expect(headers['x-content-type-options']).toBe('nosniff');
     expect(headers['referrer-policy']).toBe('no-referrer');
+    expect(headers['cache-control']).toBe('no-store');
   });
 
   it('shows both verdicts in the catalogue words for the stored advice, and the headline', async () => {
@@ -144,6 +145,13 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
       compared += want.length;
     }
     expect(compared).toBeGreaterThan(20);
+    // Dynamic tests: the change from before to after, in % of before for flow, in points for PPV/SVV (Myatra 2017).
+    const tests = (rec.snapshot.dynamicTests as Array<{ before: number; after: number; effective: string; measured: string }>)
+      .filter((d) => Date.parse(d.effective) >= fromMs)
+      .map((d) => [['ppv', 'svv'].includes(d.measured) ? Math.round((d.after - d.before) * 10) / 10 : Math.round(((d.after - d.before) / d.before) * 1000) / 10, d.effective]);
+    const got = (await marksOf(page, 'dynamic')).map((m) => parse(m.label)).filter((m) => m.series === 'Dynamic test');
+    expect(got.map((g) => [g.value, g.t]).sort()).toEqual(tests.sort());
+    if (id === 'tidal-volume-challenge') expect(tests).toHaveLength(1);
   });
 
   it('fluids given are bars, the draft bolus a point at now, urine output per hour matches volume over period', async () => {

@@ -189,11 +189,21 @@ describe('docs pages linked from cards', () => {
     expect((await get(`${s.url}/docs/..%2Fpackage.json`)).status).toBe(404);
     expect((await get(`${s.url}/docs/nope.md`)).status).toBe(404);
   });
+  it('serves the same docs as HTML pages without ".md", with the pages CSP', async () => {
+    const r = await fetch(`${s.url}/docs/clinical-logic`);
+    expect(r.status).toBe(200);
+    expect(r.headers.get('content-type')).toContain('text/html');
+    expect(r.headers.get('content-security-policy')).toContain("default-src 'self'");
+    expect(await r.text()).toMatch(/<h1>Clinical logic<\/h1>/);
+    expect((await fetch(`${s.url}/docs/nope`)).status).toBe(404);
+    expect((await fetch(`${s.url}/docs/..%2Fpackage`)).status).toBe(404);
+  });
   it('every card links to a page that exists', async () => {
     const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }));
     for (const link of r.body.cards[0].links) {
-      const path = new URL(link.url).pathname;
-      expect((await get(`${s.url}${path}`)).status).toBe(200);
+      // The service listens on port 0, so keep the link's path and query (the reasoning-page link is signed in its query).
+      const u = new URL(link.url);
+      expect((await get(`${s.url}${u.pathname}${u.search}`)).status).toBe(200);
     }
   });
 });
