@@ -70,7 +70,7 @@ export function plotSpec(plot: TrendPlot, trends: Trends, zone: string): TopLeve
     axis: { format: '%H:%M', labelFontSize: 11, titleFontSize: 12, tickCount: 12 },
   };
   const names = plot.axes.flatMap((a) => a.series);
-  const colour = { field: 'series', type: 'nominal', title: null, scale: { domain: names, range: names.map((n) => COLOURS[n] ?? '#222') }, legend: { orient: 'top', direction: 'horizontal', labelFontSize: 12, labelLimit: 260, symbolSize: 80, offset: 6 } };
+  const colour = { field: 'series', type: 'nominal', title: null, scale: { domain: names, range: names.map((n) => COLOURS[n] ?? '#222') }, legend: { orient: 'top', direction: 'horizontal', labelFontSize: 12, labelLimit: 260, symbolSize: 80, symbolType: 'circle', offset: 6 } };
   const groups = plot.axes.map((a, i) => {
     const rows = plot.rows.filter((r) => a.series.includes(r.series));
     const y = { title: a.title, scale: { domain: yDomain(rows, a.minSpan), nice: true }, axis: { orient: i === 0 ? 'left' : 'right', titleFontSize: 12, labelFontSize: 11, format: '~r', minExtent: 44, maxExtent: 44 } };

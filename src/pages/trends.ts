@@ -112,7 +112,7 @@ export function trendsOf(snap: PatientSnapshot, nowIso: string): Trends {
   ].sort((a, b) => ms(a.t) - ms(b.t));
 
   const plots: TrendPlot[] = [
-    { id: 'map-hr', title: 'Mean arterial pressure and heart rate', axes: [{ series: ['MAP', 'Heart rate'], title: 'MAP mmHg · heart rate /min', minSpan: 60 }],
+    { id: 'map-hr', title: 'Mean arterial pressure and heart rate', axes: [{ series: ['MAP', 'Heart rate'], title: 'mmHg · beats/min', minSpan: 60 }],
       rows: [...series(snap, 'meanBp', 'MAP', 'mmHg', fromMs, now), ...series(snap, 'heartRate', 'Heart rate', '/min', fromMs, now)] },
     { id: 'cvp', title: 'Central venous pressure', axes: [{ series: ['CVP'], title: 'CVP, mmHg', minSpan: 16 }], rows: series(snap, 'cvp', 'CVP', 'mmHg', fromMs, now) },
     { id: 'lactate', title: 'Lactate', axes: [{ series: ['Lactate'], title: 'Lactate, mmol/L', minSpan: 4 }], rows: series(snap, 'lactate', 'Lactate', 'mmol/L', fromMs, now) },
