@@ -41,6 +41,8 @@ export function mountPages(app: Express, deps: PagesDeps): void {
   const csp = pageCsp(deps.frameAncestors);
   const send = (res: Response, status: number, page: string) => {
     res.setHeader('Content-Security-Policy', csp);
+    // For browsers that predate CSP frame-ancestors, when no EHR may frame the pages.
+    if (!deps.frameAncestors.length) res.setHeader('X-Frame-Options', 'DENY');
     res.status(status).type('text/html; charset=utf-8').send(page);
   };
 

@@ -40,6 +40,7 @@ details { margin: 0.3rem 0; }
 summary { cursor: pointer; color: var(--info); }
 .empty { color: var(--muted); font-style: italic; }
 .notice { max-width: 36rem; margin: 4rem auto; border: 2px solid var(--ink); padding: 1rem 1.25rem; }
+@page { margin: 14mm 12mm; }
 @media print {
   html { font-size: 11pt; }
   body { max-width: none; padding: 0; }

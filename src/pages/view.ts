@@ -70,7 +70,7 @@ export interface ViewInput {
   running: { rulesVersion: string; thresholds: unknown };
 }
 
-const NOT_RECORDED = /^(no .*recorded|missing\b|no\b)/i;
+const NOT_RECORDED = /(^|: )(no .*recorded|missing\b|no\b)/i;
 const STALE = /\bstale\b|\bolder than\b|\bold\b|\bago\b/i;
 const GATHER_PROBLEM = new Set(['unavailable', 'http-error', 'timeout', 'network-error', 'not-fhir', 'truncated']);
 const ACTION_WORDS: Record<string, string> = {
@@ -80,8 +80,15 @@ const ACTION_WORDS: Record<string, string> = {
   'test-first': 'Test responsiveness before giving volume',
 };
 
+/** Evidence kinds the card labels do not name: the draft order itself and a fluid given ("fluid:saline"). */
+function evidenceLabel(kind: string): string {
+  if (kind === 'draftOrder') return 'Ordered bolus';
+  if (kind.startsWith('fluid:')) return `Fluid given (${kind.slice(6).replace(/-/g, ' ')})`;
+  return kindLabel(kind);
+}
+
 function evidenceOf(f: Finding): PageEvidence[] {
-  return f.evidence.map((e) => ({ label: kindLabel(e.kind), value: String(e.value), unit: unitDisplay(e.unit), effective: e.effective, ref: e.ref }));
+  return f.evidence.map((e) => ({ label: evidenceLabel(e.kind), value: String(e.value), unit: unitDisplay(e.unit), effective: e.effective, ref: e.ref }));
 }
 
 function pageFinding(f: Finding): PageFinding {

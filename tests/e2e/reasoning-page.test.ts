@@ -121,6 +121,7 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
     expect(headers['x-content-type-options']).toBe('nosniff');
     expect(headers['referrer-policy']).toBe('no-referrer');
     expect(headers['cache-control']).toBe('no-store');
+    expect(headers['x-frame-options']).toBeUndefined(); // it would forbid the framing the CSP allows
   });
 
   it('shows both verdicts in the catalogue words for the stored advice, and the headline', async () => {

@@ -194,8 +194,15 @@ describe('docs pages linked from cards', () => {
     expect(r.status).toBe(200);
     expect(r.headers.get('content-type')).toContain('text/html');
     expect(r.headers.get('content-security-policy')).toContain("default-src 'self'");
+    expect(r.headers.get('content-security-policy')).toContain("frame-ancestors 'none'");
+    expect(r.headers.get('x-frame-options')).toBe('DENY');
     expect(await r.text()).toMatch(/<h1>Clinical logic<\/h1>/);
     expect((await fetch(`${s.url}/docs/nope`)).status).toBe(404);
+    // The reasoning page needs its signed query: none is 403 (a plain page, not JSON); an id of the wrong shape 404.
+    const refused = await fetch(`${s.url}/advice/3f2a6c1e-0b7d-4e59-8a41-6d2c9e7b5f03`);
+    expect(refused.status).toBe(403);
+    expect(refused.headers.get('content-type')).toContain('text/html');
+    expect((await fetch(`${s.url}/advice/${'x'.repeat(80)}?exp=1&sig=2`)).status).toBe(404);
     expect((await fetch(`${s.url}/docs/..%2Fpackage`)).status).toBe(404);
   });
   it('every card links to a page that exists', async () => {
