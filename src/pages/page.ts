@@ -65,7 +65,9 @@ function plotFigure(p: RenderedPlot, zone: string, trends: Trends, n: number): R
 
 export function reasoningPage(v: PageView, zone: string, trends: Trends | undefined, plots: RenderedPlot[]): string {
   const at = v.adviceAt;
-  const byTopic = ['responsiveness', 'tolerance', 'perfusion', 'data'].map((t) => [t, v.findings.filter((f) => f.topic === t)] as const).filter(([, f]) => f.length);
+  // Findings that could not be assessed are listed once, under "Missing, stale or set aside".
+  const byTopic = ['responsiveness', 'tolerance', 'perfusion', 'data'].map((t) => [t, v.findings.filter((f) => f.topic === t && f.assessed)] as const).filter(([, f]) => f.length);
+  const unassessed = v.findings.filter((f) => !f.assessed).length;
   const body = html`<header><p class="meta">Tidemark · reasoning behind one piece of fluid advice</p>
 <h1>Fluid bolus advice, ${fullClock(at, zone)}</h1>
 <p class="advisory">Advisory only. It does not order, stop or block anything; local protocol and the treating clinician's judgement prevail.</p>
@@ -82,10 +84,11 @@ ${v.reasons.length ? html`<h3>Why</h3><ul>${v.reasons.map((r) => html`<li>${r}</
 ${v.alternatives.length ? html`<h3>Options to consider instead of, or before, the bolus</h3><ul>${v.alternatives.map((r) => html`<li>${r}</li>`)}</ul>` : ''}
 </section>
 ${trends ? html`<section id="trends" aria-labelledby="trends-h"><h2 id="trends-h">Trends, last ${trends.hours} h</h2><p class="meta">All plots share one time axis, ${clock(trends.from, zone, trends.now)} to ${clock(trends.to, zone, trends.now)} site time (${zone}); the dashed line is the moment of the advice. Values as stored with the advice.</p>${plots.map((p, i) => plotFigure(p, zone, trends, i + 1))}</section>` : ''}
-<section id="findings" aria-labelledby="findings-h"><h2 id="findings-h">Findings</h2>${byTopic.map(([t, fs]) => html`<h3>${TOPIC_TITLE[t] ?? t}</h3>${fs.map((f) => finding(f, zone, at))}`)}${v.findings.length ? '' : html`<p class="empty">No findings.</p>`}</section>
+<section id="findings" aria-labelledby="findings-h"><h2 id="findings-h">Findings</h2>${byTopic.map(([t, fs]) => html`<h3>${TOPIC_TITLE[t] ?? t}</h3>${fs.map((f) => finding(f, zone, at))}`)}${byTopic.length ? '' : html`<p class="empty">No marker could be assessed.</p>`}${unassessed ? html`<p class="meta">${unassessed} more could not be assessed: see <a href="#gaps">Missing, stale or set aside</a>.</p>` : ''}</section>
 <section id="gaps" aria-labelledby="gaps-h"><h2 id="gaps-h">Missing, stale or set aside</h2>${
     v.gaps.length
-      ? html`<table><thead><tr><th>What</th><th>State</th><th>Why</th><th>FHIR reference</th></tr></thead><tbody>${v.gaps.map((g) => html`<tr><td>${g.what}</td><td>${g.kind}</td><td>${g.why}</td><td class="ref">${g.ref ?? ''}</td></tr>`)}</tbody></table>`
+      ? html`<table><thead><tr><th>What</th><th>State</th><th>Why</th><th>Values seen, FHIR reference</th></tr></thead><tbody>${v.gaps.map((g) => html`<tr><td>${g.what}</td><td>${g.kind}</td><td>${g.why}</td><td>${g.ref ? html`<span class="ref">${g.ref}</span>` : ''}${
+        g.evidence.map((e) => html`<div>${e.label} ${e.value}${e.unit ? ` ${e.unit}` : ''}, ${clockWithAge(e.effective, zone, at)} <span class="ref">${e.ref}</span></div>`)}</td></tr>`)}</tbody></table>`
       : html`<p class="empty">Nothing was missing, stale or set aside.</p>`
   }</section>
 <section id="order" aria-labelledby="order-h"><h2 id="order-h">The ordered bolus</h2>${v.order.length ? v.order.map((f) => finding(f, zone, at)) : html`<p class="empty">No fluid bolus was selected in this order.</p>`}</section>

@@ -33,7 +33,7 @@ export interface PageVerdict {
   nextTest?: string;
 }
 export type GapKind = 'missing' | 'stale' | 'set aside' | 'not obtained';
-export interface PageGap { kind: GapKind; what: string; why: string; ref?: string }
+export interface PageGap { kind: GapKind; what: string; why: string; ref?: string; /** Values the rule saw but could not use (stale, invalid, confounded). */ evidence: PageEvidence[] }
 
 export interface PageView {
   adviceId: string;
@@ -130,14 +130,14 @@ function flatten(v: unknown, prefix = ''): Array<[string, string]> {
 function gapsOf(rec: AdviceRecord): PageGap[] {
   const gaps: PageGap[] = [];
   for (const o of rec.gathering) {
-    if (GATHER_PROBLEM.has(o.status)) gaps.push({ kind: 'not obtained', what: `Data: ${o.key}`, why: `${o.status}${o.detail ? `: ${o.detail}` : ''}` });
+    if (GATHER_PROBLEM.has(o.status)) gaps.push({ kind: 'not obtained', what: `Data: ${o.key}`, why: `${o.status}${o.detail ? `: ${o.detail}` : ''}`, evidence: [] });
   }
   for (const f of rec.findings) {
     if (f.status !== 'not-assessed') continue;
     const why = f.reason ?? 'not assessed';
-    gaps.push({ kind: NOT_RECORDED.test(why) ? 'missing' : STALE.test(why) ? 'stale' : 'set aside', what: f.text, why });
+    gaps.push({ kind: NOT_RECORDED.test(why) ? 'missing' : STALE.test(why) ? 'stale' : 'set aside', what: f.text, why, evidence: evidenceOf(f) });
   }
-  for (const x of rec.snapshot?.excluded ?? []) gaps.push({ kind: 'set aside', what: x.kind ? kindLabel(x.kind) : x.ref, why: `${x.reason}: ${x.detail}`, ref: x.ref });
+  for (const x of rec.snapshot?.excluded ?? []) gaps.push({ kind: 'set aside', what: x.kind ? kindLabel(x.kind) : x.ref, why: `${x.reason}: ${x.detail}`, ref: x.ref, evidence: [] });
   return gaps;
 }
 
