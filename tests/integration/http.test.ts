@@ -198,6 +198,11 @@ describe('docs pages linked from cards', () => {
     expect(r.headers.get('x-frame-options')).toBe('DENY');
     expect(await r.text()).toMatch(/<h1>Clinical logic<\/h1>/);
     expect((await fetch(`${s.url}/docs/nope`)).status).toBe(404);
+    // The screenshots the integration guide shows (docs/img/, made by tests/e2e/reasoning-page.test.ts).
+    const img = await fetch(`${s.url}/docs/img/reasoning-link-expired.png`);
+    expect(img.status).toBe(200);
+    expect(img.headers.get('content-type')).toBe('image/png');
+    expect((await fetch(`${s.url}/docs/img/..%2F..%2Fpackage.json`)).status).toBe(404);
     // The reasoning page needs its signed query: none is 403 (a plain page, not JSON); an id of the wrong shape 404.
     const refused = await fetch(`${s.url}/advice/3f2a6c1e-0b7d-4e59-8a41-6d2c9e7b5f03`);
     expect(refused.status).toBe(403);
