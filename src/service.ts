@@ -13,9 +13,10 @@ import { fhirFetcher } from './fhir/gather.js';
 import { createApp } from './http/app.js';
 import { createLogger } from './log.js';
 import { createMetrics } from './http/metrics.js';
-import { authConfigSchema } from './auth/issuer-config.js';
+import { authConfigSchema, type AuthConfig } from './auth/issuer-config.js';
 import { createClientVerifier } from './auth/client-verifier.js';
-import { requireAuditAccess, requireCdsClient } from './auth/middleware.js';
+import { requireAuditAccess, requireCdsClient, requireMetricsAccess } from './auth/middleware.js';
+import { InMemoryReplayCache } from './auth/replay-cache.js';
 import { adviceLinkUrl, ADVICE_LINK_LABEL, signerFromConfig } from './http/advice-link.js';
 import { mountPages } from './http/pages.js';
 
@@ -24,6 +25,8 @@ export interface Service {
   store: AuditStore;
   log: Logger;
   rulesVersion: string;
+  /** What the start-up line reports. */
+  startup: { publicUrl: string; publicUrlFromEnv: boolean; trustedIssuers: number; auditReaders: number; auditStore: string; replayCache: 'shared' | 'per-process' };
   close(): Promise<void>;
 }
 
@@ -45,14 +48,20 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
   }
   const { catalogue, digest } = loadCatalogue();
   const version = rulesVersion(digest, thresholds);
+  const auth = authConfigOf(cfg, 'issuers');
+  // Audit readers are an allowlist of their own: a CDS issuer's token opens the audit API only if it is listed here too.
+  const auditReaders = authConfigOf(cfg, 'auditReaders');
   const store = opts.store ?? openAuditStore(cfg, { onError: (e) => log.error({ err: e.message }, 'audit store connection error') });
   await store.init();
   const publicUrl = cfg.TIDEMARK_PUBLIC_URL ?? `http://localhost:${cfg.PORT}`;
-  const auth = authConfigSchema.safeParse({ issuers: cfg.file.issuers ?? [] });
-  if (!auth.success) {
-    throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE issuers: ${auth.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
-  }
-  const verifier = createClientVerifier(auth.data);
+  // One replay memory for both lists; with the PostgreSQL store it is a table every replica shares.
+  const sharedReplay = store.sharedReplayCache?.();
+  const replayCache = sharedReplay ?? new InMemoryReplayCache();
+  const verifier = createClientVerifier(auth, { replayCache });
+  const auditVerifier = createClientVerifier(auditReaders, { replayCache });
+  const fhirServers = new Map(auth.issuers.flatMap((i) => (i.fhirServers ? [[i.iss, i.fhirServers] as const] : [])));
+  const unlisted = auth.issuers.filter((i) => !i.fhirServers).map((i) => i.iss);
+  if (unlisted.length) log.warn({ issuers: unlisted }, 'trusted issuers without a fhirServers list: any https FHIR server their calls name gets the call\'s token (docs/security.md)');
   const warnings: string[] = [];
   if (cfg.TIDEMARK_TRIAL_MODE) {
     warnings.push('local trial mode: CDS calls are accepted without a verified client JWT; never use with real patients');
@@ -65,13 +74,18 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
   }
   const now = opts.now ?? (() => new Date());
   const signer = links.signer;
-  if (!cfg.TIDEMARK_TRIAL_MODE && auth.data.issuers.length === 0) warnings.push('no trusted issuers configured: every CDS call is refused');
+  if (!cfg.TIDEMARK_TRIAL_MODE && auth.issuers.length === 0) warnings.push('no trusted issuers configured: every CDS call is refused');
+  if (!cfg.TIDEMARK_TRIAL_MODE && cfg.TIDEMARK_PUBLIC_URL === undefined) {
+    const w = `TIDEMARK_PUBLIC_URL is not set: the expected token audience is ${publicUrl}/..., which no client behind a proxy or on another host will send`;
+    warnings.push(w);
+    log.warn({ publicUrl }, w);
+  }
   const metrics = createMetrics();
   const app = createApp({
     metrics,
     onResponse: metrics.onResponse,
     cdsClientAuth: requireCdsClient({ verifier, publicUrl, trialMode: cfg.TIDEMARK_TRIAL_MODE, log }),
-    auditAuth: requireAuditAccess({ ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), verifier, publicUrl, log }),
+    auditAuth: requireAuditAccess({ ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), verifier: auditVerifier, publicUrl, log }),
     readinessWarnings: warnings,
     pages: (a) => mountPages(a, {
       store, catalogue, thresholds, rulesVersion: version, now, timeZone: cfg.TIDEMARK_TIME_ZONE, frameAncestors: cfg.TIDEMARK_FRAME_ANCESTORS, log,
@@ -80,14 +94,39 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     ...(signer ? { adviceLink: (id: string) => ({ label: ADVICE_LINK_LABEL, url: adviceLinkUrl(publicUrl, id, signer.sign(id, now().getTime())) }) } : {}),
     ...(cfg.file.corsOrigins ? { corsOrigins: cfg.file.corsOrigins } : {}),
     extraRoutes: (a) => {
-      a.get('/metrics', async (_req, res) => {
+      a.get('/metrics', requireMetricsAccess({ metricsToken: cfg.TIDEMARK_METRICS_TOKEN, log }), async (_req, res) => {
         res.type(metrics.registry.contentType).send(await metrics.registry.metrics());
       });
     },
     store, catalogue, thresholds, rulesVersion: version, publicUrl, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
-    gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY },
+    gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY,
+      maxResponseBytes: cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES, maxCallBytes: cfg.TIDEMARK_FHIR_MAX_CALL_BYTES },
     now,
+    fhirServersFor: (issuer) => fhirServers.get(issuer),
     ...(opts.makeFetcher ? { makeFetcher: opts.makeFetcher } : {}),
   });
-  return { app, store, log, rulesVersion: version, close: () => store.close() };
+  const startup = {
+    publicUrl, publicUrlFromEnv: cfg.TIDEMARK_PUBLIC_URL !== undefined, trustedIssuers: verifier.issuerCount, auditReaders: auditVerifier.issuerCount,
+    auditStore: store.kind, replayCache: sharedReplay ? ('shared' as const) : ('per-process' as const),
+  };
+  return { app, store, log, rulesVersion: version, startup, close: () => store.close() };
+}
+
+/**
+ * The verification settings for one list of the config file (`issuers` or `auditReaders`) with the file's token
+ * rules (clockSkewSeconds, maxTokenAgeSeconds, algorithms), which apply to both lists.
+ */
+function authConfigOf(cfg: AppConfig, list: 'issuers' | 'auditReaders'): AuthConfig {
+  const { clockSkewSeconds, maxTokenAgeSeconds, algorithms } = cfg.file;
+  const parsed = authConfigSchema.safeParse({
+    issuers: cfg.file[list] ?? [],
+    ...(clockSkewSeconds !== undefined && { clockSkewSeconds }),
+    ...(maxTokenAgeSeconds !== undefined && { maxTokenAgeSeconds }),
+    ...(algorithms !== undefined && { algorithms }),
+  });
+  if (!parsed.success) {
+    const where = (path: PropertyKey[]) => (path[0] === 'issuers' ? [list, ...path.slice(1)] : path).join('.');
+    throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE ${parsed.error.issues.map((i) => `${where(i.path)}: ${i.message}`).join('; ')}`);
+  }
+  return parsed.data;
 }

@@ -16,7 +16,8 @@ import pg from 'pg';
 import type { PoolClient } from 'pg';
 import { chainHashOfText, GENESIS, parseRecordText, recordText, storedHashMatches } from './chain.js';
 import { rowToFeedback } from './sqlite-store.js';
-import { feedbackKey, summarize } from './shared.js';
+import { PostgresReplayCache, replayTableDdl, type PostgresReplayCacheOptions } from './postgres-replay-cache.js';
+import { feedbackKey, ownerOf, summarize } from './shared.js';
 import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
 
 export interface PostgresAuditStoreOptions {
@@ -51,7 +52,8 @@ function ddl(s: string): string[] {
       rules_version TEXT NOT NULL,
       record TEXT NOT NULL,
       prev_hash TEXT NOT NULL,
-      hash TEXT NOT NULL
+      hash TEXT NOT NULL,
+      issuer TEXT
     )`,
     `CREATE INDEX IF NOT EXISTS advice_patient_time ON ${s}.advice (patient_id, recorded_at)`,
     `CREATE INDEX IF NOT EXISTS advice_time ON ${s}.advice (recorded_at)`,
@@ -77,13 +79,24 @@ function ddl(s: string): string[] {
       arrival BIGINT GENERATED ALWAYS AS IDENTITY
     )`,
     `CREATE INDEX IF NOT EXISTS feedback_card ON ${s}.feedback (card_uuid)`,
+    replayTableDdl(s),
   ];
 }
 
 /** Every table and index ddl() makes. */
-const RELATIONS = ['advice', 'advice_patient_time', 'advice_time', 'advice_card', 'advice_card_advice', 'feedback', 'feedback_card'];
+const RELATIONS = ['advice', 'advice_patient_time', 'advice_time', 'advice_card', 'advice_card_advice', 'feedback', 'feedback_card', 'jti_seen'];
 
 interface AdviceRow { seq: string; record: string; prev_hash: string; hash: string }
+
+/**
+ * A failed set-up statement, rethrown naming it and the way out: a role with only SELECT and INSERT cannot create
+ * what a newer Tidemark adds to an older schema (jti_seen, advice.issuer); the owner role runs the service once.
+ */
+const explain = (stmt: string) => (e: unknown): never => {
+  throw new Error(
+    `audit store set-up failed at "${stmt.replace(/\s+/g, ' ').slice(0, 80)}" (${(e as Error).message}): run the service once as the owner of the audit schema to create or update its tables`,
+  );
+};
 
 export class PostgresAuditStore implements AuditStore {
   readonly kind = 'postgres';
@@ -139,7 +152,17 @@ export class PostgresAuditStore implements AuditStore {
         'SELECT COUNT(*)::int AS n FROM pg_class r JOIN pg_namespace s ON s.oid = r.relnamespace WHERE s.nspname = $1 AND r.relname = ANY($2::text[])',
         [this.schema, RELATIONS],
       );
-      if ((have.rows[0]?.n ?? 0) < RELATIONS.length) for (const stmt of ddl(this.s)) await c.query(stmt);
+      if ((have.rows[0]?.n ?? 0) < RELATIONS.length) for (const stmt of ddl(this.s)) await c.query(stmt).catch(explain(stmt));
+      // advice.issuer came with Tidemark 0.3 (the issuer that received the cards, for feedback): added to an older
+      // table, where it stays empty for the old rows (cardOwner then reads the issuer from the record text).
+      const col = await c.query(
+        "SELECT 1 FROM information_schema.columns WHERE table_schema = $1 AND table_name = 'advice' AND column_name = 'issuer'",
+        [this.schema],
+      );
+      if (!col.rowCount) {
+        const alter = `ALTER TABLE ${this.s}.advice ADD COLUMN issuer TEXT`;
+        await c.query(alter).catch(explain(alter));
+      }
     });
   }
 
@@ -153,9 +176,12 @@ export class PostgresAuditStore implements AuditStore {
       // The hash covers exactly the text stored (src/audit/chain.ts).
       const hash = chainHashOfText(prev, json);
       const ins = await c.query<{ seq: string }>(
-        `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash)
-         VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12) RETURNING seq`,
-        [rec.id, rec.recordedAt, rec.service, rec.hook, rec.hookInstance, rec.patientId ?? null, rec.encounterId ?? null, rec.outcome, rec.rulesVersion, json, prev, hash],
+        `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer)
+         VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13) RETURNING seq`,
+        [
+          rec.id, rec.recordedAt, rec.service, rec.hook, rec.hookInstance, rec.patientId ?? null, rec.encounterId ?? null, rec.outcome, rec.rulesVersion, json, prev, hash,
+          rec.client?.issuer ?? null,
+        ],
       );
       for (const [uuid, kind] of Object.entries(rec.cardKinds)) {
         await c.query(`INSERT INTO ${this.s}.advice_card (card_uuid, advice_id, card_kind, service) VALUES ($1, $2, $3, $4)`, [uuid, rec.id, kind, rec.service]);
@@ -217,12 +243,20 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async cardOwner(cardUuid: string): Promise<CardOwner | undefined> {
-    const r = await this.pool.query<{ advice_id: string; card_kind: string; service: string }>(
-      `SELECT advice_id, card_kind, service FROM ${this.s}.advice_card WHERE card_uuid = $1`,
+    // COALESCE evaluates the second argument only for a row written before the issuer column (json, not jsonb:
+    // jsonb refuses a \u0000 anywhere in the text).
+    const r = await this.pool.query<{ advice_id: string; card_kind: string; service: string; issuer: string | null }>(
+      `SELECT c.advice_id, c.card_kind, c.service, COALESCE(a.issuer, a.record::json #>> '{client,issuer}') AS issuer
+       FROM ${this.s}.advice_card c JOIN ${this.s}.advice a ON a.id = c.advice_id WHERE c.card_uuid = $1`,
       [cardUuid],
     );
     const row = r.rows[0];
-    return row ? { adviceId: row.advice_id, cardKind: row.card_kind, service: row.service } : undefined;
+    return row ? ownerOf(row) : undefined;
+  }
+
+  /** The jti replay cache every replica on this schema shares (src/audit/postgres-replay-cache.ts). */
+  sharedReplayCache(opts: PostgresReplayCacheOptions = {}): PostgresReplayCache {
+    return new PostgresReplayCache(this.pool, this.s, opts);
   }
 
   async addFeedback(rows: FeedbackRow[]): Promise<{ stored: number; duplicates: number }> {

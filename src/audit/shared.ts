@@ -1,6 +1,6 @@
 /** Helpers shared by the audit adapters. */
 import { createHash } from 'node:crypto';
-import type { AdviceRecord, AdviceSummary, FeedbackRow } from './types.js';
+import type { AdviceRecord, AdviceSummary, CardOwner, FeedbackRow } from './types.js';
 
 export function summarize(r: AdviceRecord & { seq: number }, feedback: Map<string, { accepted: number; overridden: number }>): AdviceSummary {
   return {
@@ -16,4 +16,9 @@ export function feedbackKey(f: FeedbackRow): string {
   return createHash('sha256')
     .update(JSON.stringify([f.cardUuid, f.outcome, f.outcomeTimestamp, [...f.acceptedSuggestions].sort(), f.overrideReason?.code ?? null, f.userComment ?? null]))
     .digest('hex');
+}
+
+/** A card-owner row of either store as a CardOwner (no `issuer` when the record names none). */
+export function ownerOf(r: { advice_id: string; card_kind: string; service: string; issuer: string | null }): CardOwner {
+  return { adviceId: r.advice_id, cardKind: r.card_kind, service: r.service, ...(r.issuer !== null ? { issuer: r.issuer } : {}) };
 }

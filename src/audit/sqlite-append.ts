@@ -21,8 +21,10 @@ export function openAuditDb(path: string): Database.Database {
   return db;
 }
 
-/** The columns of a record besides its text. */
-export type RecordMeta = Pick<AdviceRecord, 'id' | 'recordedAt' | 'service' | 'hook' | 'hookInstance' | 'patientId' | 'encounterId' | 'outcome' | 'rulesVersion' | 'cardKinds'>;
+/** The columns of a record besides its text; `issuer` is the record's `client.issuer`. */
+export type RecordMeta = Pick<AdviceRecord, 'id' | 'recordedAt' | 'service' | 'hook' | 'hookInstance' | 'patientId' | 'encounterId' | 'outcome' | 'rulesVersion' | 'cardKinds'> & {
+  issuer?: string;
+};
 
 export interface PreparedRecord {
   meta: RecordMeta;
@@ -39,7 +41,7 @@ function metaOf(r: AdviceRecord): RecordMeta {
   return {
     id: r.id, recordedAt: r.recordedAt, service: r.service, hook: r.hook, hookInstance: r.hookInstance,
     ...(r.patientId !== undefined ? { patientId: r.patientId } : {}), ...(r.encounterId !== undefined ? { encounterId: r.encounterId } : {}),
-    outcome: r.outcome, rulesVersion: r.rulesVersion, cardKinds: r.cardKinds,
+    outcome: r.outcome, rulesVersion: r.rulesVersion, cardKinds: r.cardKinds, ...(r.client?.issuer !== undefined ? { issuer: r.client.issuer } : {}),
   };
 }
 
@@ -62,13 +64,13 @@ export function prepareRecord(rec: AdviceRecord): PreparedRecord {
 export function createBatchAppender(db: Database.Database): (batch: readonly PreparedRecord[]) => AppendResult[] {
   const last = db.prepare('SELECT hash FROM advice ORDER BY seq DESC LIMIT 1');
   const insert = db.prepare(
-    `INSERT INTO advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash)
-     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+    `INSERT INTO advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer)
+     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
   const card = db.prepare('INSERT INTO advice_card (card_uuid, advice_id, card_kind, service) VALUES (?, ?, ?, ?)');
   const one = db.transaction(({ meta: r, text }: PreparedRecord, prev: string) => {
     const hash = chainHashOfText(prev, text);
-    const info = insert.run(r.id, r.recordedAt, r.service, r.hook, r.hookInstance, r.patientId ?? null, r.encounterId ?? null, r.outcome, r.rulesVersion, text, prev, hash);
+    const info = insert.run(r.id, r.recordedAt, r.service, r.hook, r.hookInstance, r.patientId ?? null, r.encounterId ?? null, r.outcome, r.rulesVersion, text, prev, hash, r.issuer ?? null);
     for (const [uuid, kind] of Object.entries(r.cardKinds)) card.run(uuid, r.id, kind, r.service);
     return { seq: Number(info.lastInsertRowid), hash };
   });

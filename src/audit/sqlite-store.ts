@@ -13,7 +13,7 @@ import { GENESIS, parseRecordText, storedHashMatches } from './chain.js';
 import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type AppendResult, type PreparedRecord } from './sqlite-append.js';
 import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
 import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
-import { summarize, feedbackKey } from './shared.js';
+import { summarize, feedbackKey, ownerOf } from './shared.js';
 
 const SCHEMA = `
 CREATE TABLE IF NOT EXISTS advice (
@@ -29,7 +29,8 @@ CREATE TABLE IF NOT EXISTS advice (
   rules_version TEXT NOT NULL,
   record TEXT NOT NULL,
   prev_hash TEXT NOT NULL,
-  hash TEXT NOT NULL
+  hash TEXT NOT NULL,
+  issuer TEXT
 );
 CREATE INDEX IF NOT EXISTS advice_patient_time ON advice (patient_id, recorded_at);
 CREATE INDEX IF NOT EXISTS advice_time ON advice (recorded_at);
@@ -81,6 +82,10 @@ export class SqliteAuditStore implements AuditStore {
 
   async init(): Promise<void> {
     this.db.exec(SCHEMA);
+    // advice.issuer came with Tidemark 0.3 (the issuer that received the cards, for feedback): added to an older
+    // file, where it stays empty for the old rows (cardOwner then reads the issuer from the record text).
+    const columns = this.db.pragma('table_info(advice)') as Array<{ name: string }>;
+    if (!columns.some((c) => c.name === 'issuer')) this.db.exec('ALTER TABLE advice ADD COLUMN issuer TEXT');
     const check = this.db.pragma('quick_check', { simple: true });
     if (check !== 'ok') throw new Error(`audit database ${this.path} failed its integrity check: ${String(check)}`);
     if (this.path !== ':memory:') this.startWriter();
@@ -234,10 +239,14 @@ export class SqliteAuditStore implements AuditStore {
   }
 
   async cardOwner(cardUuid: string): Promise<CardOwner | undefined> {
-    const r = this.db.prepare('SELECT advice_id, card_kind, service FROM advice_card WHERE card_uuid = ?').get(cardUuid) as
-      | { advice_id: string; card_kind: string; service: string }
-      | undefined;
-    return r ? { adviceId: r.advice_id, cardKind: r.card_kind, service: r.service } : undefined;
+    // COALESCE evaluates json_extract only for a row written before the issuer column.
+    const r = this.db
+      .prepare(
+        `SELECT c.advice_id, c.card_kind, c.service, COALESCE(a.issuer, json_extract(a.record, '$.client.issuer')) AS issuer
+         FROM advice_card c JOIN advice a ON a.id = c.advice_id WHERE c.card_uuid = ?`,
+      )
+      .get(cardUuid) as { advice_id: string; card_kind: string; service: string; issuer: string | null } | undefined;
+    return r ? ownerOf(r) : undefined;
   }
 
   async addFeedback(rows: FeedbackRow[]): Promise<{ stored: number; duplicates: number }> {

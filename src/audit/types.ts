@@ -5,6 +5,7 @@
  * removed record shows when the chain is verified.
  */
 import type { Advice, Finding } from '../assess/types.js';
+import type { ReplayCache } from '../auth/replay-cache.js';
 import type { GatherOutcome } from '../fhir/gather.js';
 import type { Card } from '../hooks/schemas.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
@@ -82,6 +83,8 @@ export interface CardOwner {
   adviceId: string;
   cardKind: string;
   service: string;
+  /** The verified issuer whose call received the card (`trial-mode` in trial mode); absent when the record names none. */
+  issuer?: string;
 }
 
 export interface FeedbackStats {
@@ -104,4 +107,6 @@ export interface AuditStore {
   verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }>;
   ping(): Promise<void>;
   close(): Promise<void>;
+  /** A jti replay cache shared by every replica on this store, if the store is shared (PostgreSQL); else absent. */
+  sharedReplayCache?(): ReplayCache;
 }

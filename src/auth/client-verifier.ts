@@ -144,7 +144,13 @@ export function createClientVerifier(cfg: AuthConfig, deps: ClientVerifierDeps =
     // jose has checked exp and iat are numbers. A token is dead at exp, and also once its iat is older
     // than the age cap, so the jti need be kept only until the earlier of the two (plus skew).
     const retainUntil = Math.min(exp as number, (iat as number) + config.maxTokenAgeSeconds) + config.clockSkewSeconds;
-    if (replay.seen(`${iss} ${jti}`, retainUntil)) return fail('jti replayed', iss);
+    let replayed: boolean;
+    try {
+      replayed = await replay.seen(`${iss} ${jti}`, retainUntil);
+    } catch {
+      return fail('replay cache unavailable', iss); // fail closed: a jti we cannot check is not accepted
+    }
+    if (replayed) return fail('jti replayed', iss);
 
     return tenant === undefined ? { ok: true, issuer: iss, jti } : { ok: true, issuer: iss, tenant, jti };
   }

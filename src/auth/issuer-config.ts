@@ -14,16 +14,27 @@ export type AllowedAlgorithm = (typeof ALLOWED_ALGORITHMS)[number];
 const LOOPBACK_HOSTS = new Set(['127.0.0.1', 'localhost', '[::1]']);
 
 /**
- * A URL we fetch keys from: https, or http on a loopback host (local tests and trials only). No
- * embedded credentials, no fragment, so the value is what an operator sees in the log.
+ * A URL we fetch from (key sets here, a call's fhirServer in src/hooks/schemas.ts): https, or http on a
+ * loopback host (local tests and trials only). No embedded credentials, no fragment, so the value is what an
+ * operator sees in the log. Any other scheme (data:, file:, ftp:, …) is refused.
  */
-const keySetUrl = z.url().superRefine((value, ctx) => {
+export const httpsOrLoopbackUrl = z.url().superRefine((value, ctx) => {
   const u = new URL(value);
   const secure = u.protocol === 'https:' || (u.protocol === 'http:' && LOOPBACK_HOSTS.has(u.hostname));
   if (!secure) ctx.addIssue({ code: 'custom', message: 'must be an https URL (http only on a loopback host)' });
   if (u.username !== '' || u.password !== '') ctx.addIssue({ code: 'custom', message: 'must not carry credentials' });
   if (u.hash !== '') ctx.addIssue({ code: 'custom', message: 'must not have a fragment' });
 });
+
+const keySetUrl = httpsOrLoopbackUrl;
+
+/** An origin only (scheme, host, port), as listed in an issuer's `fhirServers`; kept in its normal form. */
+const fhirServerOrigin = httpsOrLoopbackUrl
+  .refine((v) => {
+    const u = new URL(v);
+    return (u.pathname === '/' || u.pathname === '') && u.search === '';
+  }, { message: 'must be an origin only (scheme, host and port), with no path or query' })
+  .transform((v) => new URL(v).origin);
 
 /** Members of a JWK that only a private or symmetric key has (RFC 7518 §6.2.2, §6.3.2, §6.4). */
 const PRIVATE_MEMBERS = ['d', 'p', 'q', 'dp', 'dq', 'qi', 'oth', 'k'] as const;
@@ -71,6 +82,12 @@ export const trustedIssuerSchema = z
     allowedJku: z.array(keySetUrl).min(1).optional(),
     /** If present, the token's `tenant` claim must be one of these. */
     tenants: z.array(z.string().min(1)).min(1).optional(),
+    /**
+     * If present, the FHIR server origins (`https://host[:port]`) this client's calls may name as fhirServer;
+     * a call naming any other is refused before any request is made. Recommended: without it any https
+     * fhirServer is accepted and receives the call's fhirAuthorization token.
+     */
+    fhirServers: z.array(fhirServerOrigin).min(1).optional(),
   })
   .strict()
   .refine((i) => (i.jwksUrl === undefined) !== (i.jwks === undefined), {

@@ -92,12 +92,10 @@ export function requireCdsClient(opts: RequireCdsClientOptions): RequestHandler 
       refuse(res);
       return;
     }
-    const result = await verifier.verify(req.get('authorization'), audienceFor(publicUrl, path));
+    const audience = audienceFor(publicUrl, path);
+    const result = await verifier.verify(req.get('authorization'), audience);
     if (!result.ok) {
-      log.warn(
-        { reason: result.reason, ...(result.issuer !== undefined && { issuer: result.issuer }), method: req.method, path },
-        'cds client refused',
-      );
+      log.warn({ ...refusalFields(result, audience), method: req.method, path }, 'cds client refused');
       refuse(res);
       return;
     }
@@ -108,10 +106,25 @@ export function requireCdsClient(opts: RequireCdsClientOptions): RequestHandler 
   };
 }
 
+/**
+ * The log fields of a refusal: the reason, the issuer when it is a configured one, and on an audience mismatch
+ * the audience we expected (our own URL, so an operator can fix TIDEMARK_PUBLIC_URL), never the token's.
+ */
+function refusalFields(result: { reason: string; issuer?: string }, audience: string): Record<string, string> {
+  return {
+    reason: result.reason,
+    ...(result.issuer !== undefined && { issuer: result.issuer }),
+    ...(result.reason === 'aud mismatch' && { expectedAudience: audience }),
+  };
+}
+
 export interface RequireAuditAccessOptions {
   /** Static bearer token for the audit API (TIDEMARK_AUDIT_TOKEN), at least 16 characters. */
   auditToken?: string | undefined;
-  /** Verifier for audit-scoped JWTs from trusted issuers; aud must be `{publicUrl}/audit`. */
+  /**
+   * Verifier over the audit readers (the config file's `auditReaders`, not the CDS issuers); aud must be
+   * `{publicUrl}/audit`.
+   */
   verifier?: ClientVerifier | undefined;
   publicUrl: string | undefined;
   /** Scope the JWT must carry; defaults to `tidemark.audit`. */
@@ -121,15 +134,25 @@ export interface RequireAuditAccessOptions {
 
 const digest = (s: string): Buffer => createHash('sha256').update(s, 'utf8').digest();
 
+/** Matches a presented static token in constant time (over SHA-256 digests, so its length does not leak). */
+function staticTokenMatcher(token: string): (presented: string) => boolean {
+  const expected = digest(token);
+  return (presented) => timingSafeEqual(digest(presented), expected);
+}
+
+/** The credential of an `Authorization: Bearer <credential>` header, if that is its shape. */
+const bearerCredential = (header: string): string | undefined => /^Bearer +(\S+)$/i.exec(header)?.[1];
+
 /**
  * Guards the audit API. It accepts either the configured static token (compared in constant time) or a
- * JWT with the audit scope. With neither configured it refuses everything, trial mode or not.
+ * JWT with the audit scope from an issuer the `verifier` trusts (in the service: the audit readers only, so a
+ * CDS client's own token never opens it). With neither configured it refuses everything, trial mode or not.
  */
 export function requireAuditAccess(opts: RequireAuditAccessOptions): RequestHandler {
   const { auditToken, verifier, publicUrl, log } = opts;
   const requiredScope = opts.requiredScope ?? AUDIT_SCOPE;
   if (auditToken !== undefined && auditToken.length < 16) throw new Error('audit token must be at least 16 characters');
-  const expected = auditToken === undefined ? undefined : digest(auditToken);
+  const expected = auditToken === undefined ? undefined : staticTokenMatcher(auditToken);
   const jwtAudience = publicUrl === undefined ? undefined : audienceFor(publicUrl, '/audit');
   const jwtUsable = verifier !== undefined && verifier.issuerCount > 0 && jwtAudience !== undefined;
   if (expected === undefined && !jwtUsable) log?.warn({ audit: 'closed' }, 'no audit credential configured: the audit API refuses every call');
@@ -137,18 +160,17 @@ export function requireAuditAccess(opts: RequireAuditAccessOptions): RequestHand
   return async (req, res, next) => {
     const path = pathOf(req);
     const denied = (reason: string, issuer?: string): void => {
-      log?.warn({ reason, ...(issuer !== undefined && { issuer }), method: req.method, path }, 'audit access refused');
+      log?.warn({ ...refusalFields(issuer === undefined ? { reason } : { reason, issuer }, jwtAudience ?? ''), method: req.method, path }, 'audit access refused');
       refuse(res);
     };
     if (expected === undefined && !jwtUsable) return denied('no audit credential configured');
 
     const header = req.get('authorization');
     if (header === undefined || header === '') return denied('missing authorization');
-    const m = /^Bearer +(\S+)$/i.exec(header);
-    const presented = m?.[1];
+    const presented = bearerCredential(header);
     if (presented === undefined) return denied('not a bearer credential');
 
-    if (expected !== undefined && timingSafeEqual(digest(presented), expected)) {
+    if (expected?.(presented)) {
       res.locals['auditClient'] = { via: 'token' } satisfies AuditClient;
       return next();
     }
@@ -163,5 +185,28 @@ export function requireAuditAccess(opts: RequireAuditAccessOptions): RequestHand
         : { via: 'jwt', issuer: result.issuer, tenant: result.tenant, jti: result.jti };
     res.locals['auditClient'] = client;
     return next();
+  };
+}
+
+export interface RequireMetricsAccessOptions {
+  /** Bearer token /metrics requires (TIDEMARK_METRICS_TOKEN), at least 16 characters; absent, /metrics is open. */
+  metricsToken?: string | undefined;
+  log: WarnLogger;
+}
+
+/**
+ * Guards /metrics with a static bearer token of its own (compared in constant time over SHA-256 digests, as the
+ * audit token). Without one configured it lets every call through, as /healthz and /readyz do.
+ */
+export function requireMetricsAccess(opts: RequireMetricsAccessOptions): RequestHandler {
+  const { metricsToken, log } = opts;
+  if (metricsToken === undefined) return (_req, _res, next) => next();
+  if (metricsToken.length < 16) throw new Error('metrics token must be at least 16 characters');
+  const matches = staticTokenMatcher(metricsToken);
+  return (req, res, next) => {
+    const presented = bearerCredential(req.get('authorization') ?? '');
+    if (presented !== undefined && matches(presented)) return next();
+    log.warn({ reason: presented === undefined ? 'missing authorization' : 'metrics token mismatch', method: req.method, path: pathOf(req) }, 'metrics access refused');
+    refuse(res);
   };
 }

@@ -1,14 +1,17 @@
 /**
  * Used-`jti` memory (CDS Hooks 2.0 §Trusting CDS Clients: reject a repeated jti, keep used ones until
- * their exp). The interface is small so a shared store (several replicas) can replace the in-memory one.
+ * their exp). The interface is small so a shared store can replace the in-memory one: with the PostgreSQL
+ * audit store every replica uses one table (src/audit/postgres-replay-cache.ts); with SQLite the memory is
+ * this process's own.
  */
 
 export interface ReplayCache {
   /**
    * Records `jti` as used until `expSeconds` (seconds since epoch) and reports whether it had already
    * been recorded and not yet expired. Must be atomic: of two concurrent calls with one jti, one sees true.
+   * A shared cache answers asynchronously and throws when it cannot answer (the token is then refused).
    */
-  seen(jti: string, expSeconds: number): boolean;
+  seen(jti: string, expSeconds: number): boolean | Promise<boolean>;
 }
 
 /**

@@ -13,7 +13,7 @@ import { kindLabel } from './render.js';
 import { formatAge } from './format.js';
 import { requestTest, smallerAliquot, withdrawDraft, type SuggestionContext, type TestKind } from './suggestions.js';
 
-const GATHER_PROBLEM = new Set(['unavailable', 'http-error', 'timeout', 'network-error', 'not-fhir', 'truncated']);
+const GATHER_PROBLEM = new Set(['unavailable', 'http-error', 'timeout', 'network-error', 'not-fhir', 'truncated', 'too-large', 'redirect']);
 
 /**
  * A smaller aliquot: 250 mL when 500 mL or more was ordered, else half the order, never below 100 mL, rounded
@@ -34,6 +34,8 @@ function gatherWhy(o: GatherOutcome): string {
     case 'network-error': return 'the FHIR server could not be reached';
     case 'not-fhir': return 'the FHIR server sent something that is not FHIR';
     case 'truncated': return `only part of the data was read (${o.detail ?? 'paging stopped'})`;
+    case 'too-large': return `the FHIR server's answer was too large to read (${o.detail ?? 'size limit'})`;
+    case 'redirect': return `the FHIR server redirected the query elsewhere, which is not followed (${o.httpStatus ?? '3xx'})`;
     case 'unavailable': return o.detail ?? 'not sent and no FHIR server to ask';
     default: return o.detail ?? o.status;
   }

@@ -2,6 +2,7 @@
 import { loadConfig, ConfigError } from '../config/config.js';
 import { createLogger } from '../log.js';
 import { buildService } from '../service.js';
+import { listen } from './listen.js';
 
 async function main(): Promise<void> {
   let cfg;
@@ -16,11 +17,7 @@ async function main(): Promise<void> {
     const svc = await buildService(cfg);
     // A stray rejection must not take the service down mid-shift: log it (ids only) and keep serving.
     process.on('unhandledRejection', (e) => svc.log.error({ err: String((e as Error)?.message ?? e).slice(0, 200) }, 'unhandled rejection'));
-    const server = svc.app.listen(cfg.PORT, cfg.HOST, () => {
-      const addr = server.address();
-      const port = typeof addr === 'object' && addr ? addr.port : cfg.PORT;
-      svc.log.info({ port, auditStore: svc.store.kind, rulesVersion: svc.rulesVersion }, `Tidemark listening on http://localhost:${port}/cds-services`);
-    });
+    const server = await listen(svc, cfg);
     server.requestTimeout = 30_000;
     const stop = (signal: string) => {
       svc.log.info({ signal }, 'shutting down');

@@ -5,6 +5,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { z } from 'zod';
+import { DEFAULT_BYTE_CAPS } from '../fhir/fetcher.js';
 
 const intFrom = (min: number, max: number) => z.coerce.number().int().min(min).max(max);
 const boolFrom = z.enum(['true', 'false', '1', '0', 'yes', 'no']).transform((v) => v === 'true' || v === '1' || v === 'yes');
@@ -12,7 +13,8 @@ const boolFrom = z.enum(['true', 'false', '1', '0', 'yes', 'no']).transform((v) 
 /** Environment variables and what they mean; docs/configuration.md lists the same. */
 export const envSchema = z.object({
   PORT: intFrom(0, 65535).default(8080),
-  HOST: z.string().min(1).default('0.0.0.0'),
+  /** Address to listen on. Unset: 127.0.0.1 in trial mode, 0.0.0.0 otherwise (loadConfig fills it in). */
+  HOST: z.string().min(1).optional(),
   /** Public base URL of this service as CDS clients call it (JWT aud, card links). */
   TIDEMARK_PUBLIC_URL: z.url().optional(),
   TIDEMARK_AUDIT_STORE: z.enum(['sqlite', 'postgres']).default('sqlite'),
@@ -24,12 +26,18 @@ export const envSchema = z.object({
   TIDEMARK_FHIR_MAX_PAGES: intFrom(1, 50).default(5),
   /** At most this many FHIR queries in flight per call. */
   TIDEMARK_FHIR_CONCURRENCY: intFrom(1, 32).default(8),
+  /** Largest single FHIR answer read, bytes after decompression (default 16 MiB); a larger one is cut off. */
+  TIDEMARK_FHIR_MAX_RESPONSE_BYTES: intFrom(64 * 1024, 1024 * 1024 * 1024).default(DEFAULT_BYTE_CAPS.maxResponseBytes),
+  /** Largest sum of the FHIR answers of one call, bytes after decompression (default 48 MiB). */
+  TIDEMARK_FHIR_MAX_CALL_BYTES: intFrom(64 * 1024, 4 * 1024 * 1024 * 1024).default(DEFAULT_BYTE_CAPS.maxCallBytes),
   TIDEMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   TIDEMARK_CONFIG_FILE: z.string().min(1).optional(),
   /** Local trial mode: accept calls without a verified client JWT. Never in production. */
   TIDEMARK_TRIAL_MODE: boolFrom.default(false),
-  /** Bearer token for the audit API (alternative to an audit-scoped JWT). */
+  /** Bearer token for the audit API (alternative to an audit reader's JWT). */
   TIDEMARK_AUDIT_TOKEN: z.string().min(16).optional(),
+  /** Bearer token that /metrics then requires; unset, /metrics answers anyone who can reach the port. */
+  TIDEMARK_METRICS_TOKEN: z.string().min(16).optional(),
   /** Largest accepted request body. */
   TIDEMARK_BODY_LIMIT: z.string().regex(/^\d+(kb|mb)$/i).default('2mb'),
   /**
@@ -59,18 +67,30 @@ function isTimeZone(zone: string): boolean {
   }
 }
 
-/** The optional JSON file: site threshold overrides and trusted CDS clients. */
+/**
+ * The optional JSON file: site threshold overrides, trusted CDS clients, audit readers and the token rules.
+ * The auth entries are checked in full by authConfigSchema (src/auth/issuer-config.ts) when the service is built.
+ */
 export const fileSchema = z
   .object({
     thresholds: z.record(z.string(), z.unknown()).optional(),
     issuers: z.array(z.unknown()).optional(),
+    /** Issuers whose JWTs open the audit API (and nothing else); a CDS issuer is not one unless listed here too. */
+    auditReaders: z.array(z.unknown()).optional(),
+    clockSkewSeconds: z.unknown().optional(),
+    maxTokenAgeSeconds: z.unknown().optional(),
+    algorithms: z.unknown().optional(),
     corsOrigins: z.array(z.string()).optional(),
   })
   .strict();
 
 export type EnvConfig = z.infer<typeof envSchema>;
 export type FileConfig = z.infer<typeof fileSchema>;
-export interface AppConfig extends EnvConfig {
+export interface AppConfig extends Omit<EnvConfig, 'HOST'> {
+  /** The address to listen on: HOST, or its default for the mode. */
+  HOST: string;
+  /** Whether HOST was set, or is the default (127.0.0.1 in trial mode, 0.0.0.0 otherwise). */
+  hostFromEnv: boolean;
   file: FileConfig;
 }
 
@@ -103,5 +123,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     if (!f.success) throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE ${describe(f.error.issues, '')}`);
     file = f.data;
   }
-  return { ...cfg, file };
+  // Trial mode takes calls without a token and has a well-known audit token: it stays on loopback unless asked.
+  const host = cfg.HOST ?? (cfg.TIDEMARK_TRIAL_MODE ? '127.0.0.1' : '0.0.0.0');
+  return { ...cfg, HOST: host, hostFromEnv: cfg.HOST !== undefined, file };
 }

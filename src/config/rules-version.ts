@@ -1,13 +1,24 @@
-/** Rules version = package version + digest of the card catalogue and the active thresholds (design: replay). */
+/**
+ * Rules version = package version + digest of the card catalogue, the active thresholds and the value sets
+ * (design: replay). The value sets (src/fhir/value-sets/*.json) decide which conditions, rhythms and fluids are
+ * recognised, so a changed code changes the output and must change the version.
+ */
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { canonicalJson } from '../audit/chain.js';
+import { VALUE_SETS } from '../fhir/value-sets.js';
 
 const pkg = JSON.parse(readFileSync(fileURLToPath(new URL('../../package.json', import.meta.url)), 'utf8')) as { version: string };
 export const PACKAGE_VERSION = pkg.version;
 
-export function rulesVersion(catalogueDigest: string, thresholds: unknown): string {
-  const t = createHash('sha256').update(canonicalJson(thresholds)).digest('hex').slice(0, 8);
-  return `${PACKAGE_VERSION}+c${catalogueDigest.slice(0, 8)}.t${t}`;
+const digest8 = (v: unknown): string => createHash('sha256').update(canonicalJson(v)).digest('hex').slice(0, 8);
+
+/** Digest of the value sets (first 8 hex characters of SHA-256 over their canonical JSON). */
+export function valueSetsDigest(valueSets: unknown = VALUE_SETS): string {
+  return digest8(valueSets);
+}
+
+export function rulesVersion(catalogueDigest: string, thresholds: unknown, valueSets: unknown = VALUE_SETS): string {
+  return `${PACKAGE_VERSION}+c${catalogueDigest.slice(0, 8)}.t${digest8(thresholds)}.v${valueSetsDigest(valueSets)}`;
 }

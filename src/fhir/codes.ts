@@ -70,8 +70,15 @@ export const OBSERVATION_CODES: ReadonlyArray<CodeRef & { kind: NumericKind }> =
   { system: LOINC, code: '8478-0', display: 'Mean blood pressure', kind: 'meanBp' },
   { system: LOINC, code: '9279-1', display: 'Respiratory rate', kind: 'respiratoryRate' },
   { system: LOINC, code: '59408-5', display: 'Oxygen saturation in Arterial blood by Pulse oximetry', kind: 'spo2' },
+  // The FHIR R4 oxygen saturation profile fixes 2708-6 and the US Core pulse oximetry profile adds 59408-5 beside it
+  // (HL7/US-Core, us-core-pulse-oximetry; example satO2-fiO2); feeds also send 2708-6 alone, and an arterial blood gas
+  // saturation carries it too. Both read as the saturation used by the SpO2/FiO2 ratio.
+  { system: LOINC, code: '2708-6', display: 'Oxygen saturation in Arterial blood', kind: 'spo2' },
   { system: LOINC, code: '19994-3', display: 'Oxygen/Inspired gas setting [Volume Fraction] Ventilator', kind: 'fio2' },
   { system: LOINC, code: '71835-3', display: 'Oxygen/Inspired gas Respiratory system by O2 Analyzer --on ventilator', kind: 'fio2' },
+  // Inhaled oxygen concentration: a component of the US Core pulse oximetry panel (beside 3151-8 flow rate, which is
+  // not read) and, in public FHIR data, also an Observation of its own. Read as FiO2 in either place.
+  { system: LOINC, code: '3150-0', display: 'Inhaled oxygen concentration', kind: 'fio2' },
   { system: LOINC, code: '29463-7', display: 'Body weight', kind: 'bodyWeight' },
   { system: LOINC, code: '8302-2', display: 'Body height', kind: 'bodyHeight' },
   { system: LOINC, code: '60985-9', display: 'Central venous pressure (CVP)', kind: 'cvp' },

@@ -1,7 +1,8 @@
 /**
- * Data gathering (an edge: does I/O). Prefetch first; what is missing is queried from fhirServer with
- * fhir-kit-client and the fhirAuthorization bearer token, in parallel, inside one time budget. Every
- * failure becomes a GatherOutcome ("missing data" with its reason), never an exception.
+ * Data gathering (an edge: does I/O). Prefetch first; what is missing is queried from fhirServer with the
+ * fhirAuthorization bearer token (src/fhir/fetcher.ts: under the base only, no redirects, byte caps), in
+ * parallel, inside one time budget. Every failure becomes a GatherOutcome ("missing data" with its reason),
+ * never an exception.
  *
  * Prefetch cases (CDS Hooks 2.0 §Prefetch, cds-hooks/docs#366 and PR #600):
  * - key absent: the client did not or could not fill it → query fhirServer ourselves;
@@ -9,13 +10,18 @@
  * - OperationOutcome: the client hit an error → query ourselves;
  * - searchset Bundle: use it, following link[next] (bounded) when it is paged.
  */
-import { Client } from 'fhir-kit-client';
 import type { FhirResource, Bundle, OperationOutcome } from 'fhir/r4.js';
 import type { HookRequest } from '../hooks/schemas.js';
 import { resolvePrefetchTemplate } from '../hooks/prefetch-tokens.js';
 import type { ServiceDefinition } from '../hooks/services.js';
+import { DEFAULT_BYTE_CAPS, FhirFetchError, fhirFetcher, resolveUnderBase, type ByteCaps, type Fetcher } from './fetcher.js';
 
-export type GatherStatus = 'ok' | 'no-data' | 'not-applicable' | 'unavailable' | 'http-error' | 'timeout' | 'network-error' | 'not-fhir' | 'truncated';
+export { fhirFetcher, type Fetcher } from './fetcher.js';
+
+/** `too-large`: an answer, or all answers of the call, passed a byte cap; `redirect`: a 3xx, not followed. */
+export type GatherStatus =
+  | 'ok' | 'no-data' | 'not-applicable' | 'unavailable' | 'http-error' | 'timeout' | 'network-error' | 'not-fhir' | 'truncated'
+  | 'too-large' | 'redirect';
 
 export interface GatherOutcome {
   key: string;
@@ -44,16 +50,11 @@ export interface GatherOptions {
   budgetMs: number;
   maxPages: number;
   concurrency: number;
+  /** Byte caps on the answers (TIDEMARK_FHIR_MAX_RESPONSE_BYTES, TIDEMARK_FHIR_MAX_CALL_BYTES). */
+  maxResponseBytes?: number;
+  maxCallBytes?: number;
   /** For tests: a fixed clock for timings. */
   clock?: () => number;
-}
-
-type Fetcher = (url: string, signal: AbortSignal) => Promise<unknown>;
-
-/** A fhir-kit-client fetcher bound to one call's server and token. The token is used for this call only. */
-export function fhirFetcher(baseUrl: string, accessToken?: string): Fetcher {
-  const client = new Client({ baseUrl, ...(accessToken ? { bearerToken: accessToken } : {}) });
-  return (url, signal) => client.request(url, { options: { signal, headers: { accept: 'application/fhir+json' } } });
 }
 
 /** Settles when `p` does or when the budget runs out, whichever is first, even if the fetcher ignores the signal. */
@@ -74,7 +75,8 @@ export async function gather(request: HookRequest, service: ServiceDefinition, o
   const clock = opts.clock ?? (() => performance.now());
   const t0 = clock();
   const deadline = AbortSignal.timeout(opts.budgetMs);
-  const fetcher = request.fhirServer ? makeFetcher(request.fhirServer, request.fhirAuthorization?.access_token) : undefined;
+  const caps: ByteCaps = { maxResponseBytes: opts.maxResponseBytes ?? DEFAULT_BYTE_CAPS.maxResponseBytes, maxCallBytes: opts.maxCallBytes ?? DEFAULT_BYTE_CAPS.maxCallBytes };
+  const fetcher = request.fhirServer ? makeFetcher(request.fhirServer, request.fhirAuthorization?.access_token, caps) : undefined;
   const limit = semaphore(opts.concurrency);
   const context = request.context;
   const hook = service.hook;
@@ -103,10 +105,12 @@ export async function gather(request: HookRequest, service: ServiceDefinition, o
     if (!fetcher) {
       return { outcome: { key, source: 'none', status: 'unavailable', count: 0, detail: clientProblem ?? 'not prefetched and no fhirServer given' }, resources: [] };
     }
+    const target = resolveUnderBase(resolved.value, request.fhirServer as string);
+    if (!target) return { outcome: { key, source: 'none', status: 'not-applicable', count: 0, detail: 'the query would leave fhirServer: not sent' }, resources: [] };
     return limit(async () => {
       const started = clock();
       try {
-        const body = await withinBudget(fetcher(resolved.value, deadline), deadline);
+        const body = await withinBudget(fetcher(target.href, deadline), deadline);
         const ans = readAnswer(body, q.resourceTypes);
         if (ans.kind === 'problem') return { outcome: { key, source: 'fhir-server', status: 'not-fhir', count: 0, ms: clock() - started, detail: ans.detail }, resources: [] };
         if (!ans.next) {
@@ -155,18 +159,22 @@ async function follow(
     if (n >= opts.maxPages) {
       return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: `stopped after ${opts.maxPages} pages` }, resources: out };
     }
-    if (!sameOrigin(url, base)) {
+    // Resolved once; the URL checked is the URL fetched (a raw `http:/host/x` would reach another host).
+    const target = resolveUnderBase(url, base);
+    if (!target) {
       return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: 'link[next] points outside fhirServer: not followed' }, resources: out };
     }
     try {
-      const ans = readAnswer(await withinBudget(fetcher(url, deadline), deadline), types);
+      const ans = readAnswer(await withinBudget(fetcher(target.href, deadline), deadline), types);
       n += 1;
       if (ans.kind === 'problem') return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: `page ${n}: ${ans.detail}` }, resources: out };
       out.push(...ans.resources);
       url = ans.next;
     } catch (e) {
       const c = classify(e);
-      return { outcome: { key, source, count: out.length, pages: n, ms: clock() - started, ...c, status: 'truncated', detail: `page ${n + 1}: ${c.status}${c.detail ? `: ${c.detail}` : ''}` }, resources: out };
+      // A cap or a redirect keeps its own status (the pages before it are kept); other faults make the key 'truncated'.
+      const status: GatherStatus = c.status === 'too-large' || c.status === 'redirect' ? c.status : 'truncated';
+      return { outcome: { key, source, count: out.length, pages: n, ms: clock() - started, ...c, status, detail: `page ${n + 1}: ${c.status}${c.detail ? `: ${c.detail}` : ''}` }, resources: out };
     }
   }
   return { outcome: { key, source, status: out.length ? 'ok' : 'no-data', count: out.length, pages: n, ms: clock() - started }, resources: out };
@@ -198,23 +206,14 @@ function outcomeText(o: OperationOutcome): string {
 }
 
 function classify(e: unknown): { status: GatherStatus; httpStatus?: number; detail?: string } {
-  const err = e as { name?: string; message?: string; response?: { status?: number; data?: unknown }; cause?: { code?: string; name?: string } };
-  if (err?.name === 'TimeoutError' || err?.name === 'AbortError' || err?.cause?.name === 'TimeoutError') return { status: 'timeout', detail: 'time budget for FHIR queries ran out' };
-  const status = err?.response?.status;
-  if (typeof status === 'number') {
-    if (status >= 200 && status < 300) return { status: 'not-fhir', httpStatus: status, detail: 'body is not JSON' };
-    return { status: 'http-error', httpStatus: status, detail: `FHIR server answered ${status}` };
+  if (e instanceof FhirFetchError) {
+    const status: GatherStatus = e.status === 'outside-base' ? 'not-applicable' : e.status;
+    return e.httpStatus === undefined ? { status, detail: e.detail } : { status, httpStatus: e.httpStatus, detail: e.detail };
   }
+  const err = e as { name?: string; message?: string; cause?: { code?: string; name?: string } };
+  if (err?.name === 'TimeoutError' || err?.name === 'AbortError' || err?.cause?.name === 'TimeoutError') return { status: 'timeout', detail: 'time budget for FHIR queries ran out' };
   const code = err?.cause?.code;
   return { status: 'network-error', detail: code ? `connection failed (${code})` : 'connection failed' };
-}
-
-function sameOrigin(url: string, base: string): boolean {
-  try {
-    return new URL(url, base).origin === new URL(base).origin;
-  } catch {
-    return false;
-  }
 }
 
 function semaphore(n: number) {

@@ -6,9 +6,12 @@
 import type { CodeableConcept } from 'fhir/r4.js';
 import type { FluidClass } from '../snapshot/types.js';
 import { RXNORM, SNOMED } from './codes.js';
+import { FLUID_SET } from './value-sets.js';
 
-/** RxNorm clinical drugs we are confident of. 313002 "Sodium Chloride 9 MG/ML Injectable Solution" (seen in public FHIR data). */
-const RXNORM_FLUIDS: Record<string, FluidClass> = { '313002': 'saline' };
+/** RxNorm clinical drugs read by code (value-sets/fluids.json, each with its source); the rest by generic name. */
+const RXNORM_FLUIDS: ReadonlyMap<string, FluidClass> = new Map(
+  FLUID_SET.fluids.flatMap((f) => (f.rxcui ? [[f.rxcui, f.fluidClass] as const] : [])),
+);
 
 /**
  * RxNorm ingredient codes of vasoactive drugs (from memory; verify against RxNav):
@@ -20,6 +23,12 @@ const RXNORM_VASOACTIVE: Record<string, string> = {
 
 const VASOACTIVE_TEXT = /\b(nor-?epinephrine|noradrenaline|epinephrine|adrenaline|vasopressin|phenylephrine|dopamine|dobutamine|angiotensin ii|terlipressin)\b/i;
 
+/**
+ * Hartmann's solution (compound sodium lactate) is the UK name of a lactated Ringer's composition. The same name is
+ * also an operation (Hartmann's procedure and its reversal), which a ServiceRequest may carry: not a fluid.
+ */
+const HARTMANN_FLUID = /(?<!reversal of )\bhartmann(?:['’]s|s)?(?![a-z'’])(?!\s*(procedure|operation|reversal|resection|pouch|stump))/;
+
 /** Fluid class from free text (generic names). Order matters: albumin before saline (albumin may be "in sodium chloride"). */
 export function fluidClassFromText(text: string): FluidClass | undefined {
   const t = text.toLowerCase();
@@ -29,7 +38,7 @@ export function fluidClassFromText(text: string): FluidClass | undefined {
     return 'albumin-iso';
   }
   if (/gelatin|starch|dextran/.test(t)) return 'other-colloid';
-  if (/ringer|sodium lactate|balanced (crystalloid|solution)|multiple electrolytes|acetate.*gluconate/.test(t)) return 'balanced-crystalloid';
+  if (/ringer|sodium lactate|balanced (crystalloid|solution)|multiple electrolytes|acetate.*gluconate/.test(t) || HARTMANN_FLUID.test(t)) return 'balanced-crystalloid';
   if (/sodium chloride\s*(0\.9|9\s*mg\/ml)|0\.9\s*%\s*(sodium chloride|nacl|saline)|normal saline|\bnacl\s*0\.9|\bns\b.*bolus|saline\s*0\.9/.test(t)) return 'saline';
   if (/\b(crystalloid|fluid bolus|iv fluid|volume bolus)\b/.test(t)) return 'other';
   return undefined;
@@ -47,7 +56,8 @@ export function conceptLabel(cc: CodeableConcept | undefined): string {
 
 export function classifyFluid(cc: CodeableConcept | undefined): FluidClass | undefined {
   for (const c of cc?.coding ?? []) {
-    if (c.system === RXNORM && c.code && RXNORM_FLUIDS[c.code]) return RXNORM_FLUIDS[c.code];
+    const byCode = c.system === RXNORM && c.code ? RXNORM_FLUIDS.get(c.code.trim()) : undefined;
+    if (byCode) return byCode;
   }
   return fluidClassFromText(conceptText(cc));
 }

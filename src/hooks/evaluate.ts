@@ -27,6 +27,8 @@ export interface EvaluateDeps {
   makeFetcher?: typeof fhirFetcher;
   /** The signed link to an advice's reasoning page, put on its cards; none when links are off. */
   adviceLink?: (adviceId: string) => { label: string; url: string } | undefined;
+  /** The FHIR server origins a trusted issuer's calls may name (its `fhirServers`); undefined: any. */
+  fhirServersFor?: (issuer: string) => readonly string[] | undefined;
   log: { info(o: object, m?: string): void; warn(o: object, m?: string): void; error(o: object, m?: string): void };
   metrics?: { observeGather(o: GatherOutcome[]): void; observeAuditWrite(seconds: number, ok: boolean): void };
 }
@@ -78,6 +80,7 @@ async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: E
   const req = parsed.data;
   // req.hook is client text echoed here: hookRequestSchema caps it at MAX_NAME_LENGTH characters (it was echoed whole).
   if (req.hook !== service.hook) throw new HttpError(400, 'invalid', `service ${service.id} answers the ${service.hook} hook, not ${req.hook}`);
+  refuseUnlistedFhirServer(req.fhirServer, client?.issuer, deps, req.hookInstance);
   const hook: HookName = service.hook;
   const ctxParsed = HOOK_CONTEXT_SCHEMAS[hook].safeParse(req.context);
   if (!ctxParsed.success) throw new HttpError(400, 'invalid', `context is not a valid ${hook} context`, zodIssues(ctxParsed.error.issues, 'context'));
@@ -136,6 +139,21 @@ async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: E
     timings: { totalMs, gatherMs: gathered.ms, fhirWaitMs: gathered.fhirWaitMs, assessMs },
   };
   return { status: 200, stored: startAppend(deps, rec), hookInstance: req.hookInstance, adviceId, cards, totalMs };
+}
+
+/**
+ * A call may name only a FHIR server its issuer lists (`fhirServers`), so a client's token never goes elsewhere.
+ * Refused before any request, with a 403 and a log line (issuer and origin, no token); like other refusals of a
+ * request, it leaves no advice record, since no data was read and no advice given.
+ */
+function refuseUnlistedFhirServer(fhirServer: string | undefined, issuer: string | undefined, deps: EvaluateDeps, hookInstance: string): void {
+  if (fhirServer === undefined || issuer === undefined) return;
+  const allowed = deps.fhirServersFor?.(issuer);
+  if (allowed === undefined) return;
+  const origin = new URL(fhirServer).origin;
+  if (allowed.includes(origin)) return;
+  deps.log.warn({ hookInstance, issuer, fhirServerOrigin: origin }, 'fhirServer is not listed for this client: call refused');
+  throw new HttpError(403, 'forbidden', 'fhirServer is not one of the FHIR servers this client may name (fhirServers in its issuer configuration)');
 }
 
 interface Stored { done: Promise<unknown>; startedAt: number }

@@ -3,6 +3,7 @@
  * Source: CDS Hooks 2.0 (STU2), https://cds-hooks.hl7.org/2.0/ — condensed in ../shared/cds-hooks-2.0.md.
  */
 import { z } from 'zod';
+import { httpsOrLoopbackUrl } from '../auth/issuer-config.js';
 
 // ---------------------------------------------------------------- limits on what a client sends (issue 13 item 5)
 // Each is a 400 beyond it (never a 5xx), and each keeps a client from making the audit record large or the service
@@ -106,7 +107,8 @@ export const hookRequestSchema = z
   .object({
     hook: text.max(MAX_NAME_LENGTH),
     hookInstance: z.guid(),
-    fhirServer: z.url().optional(),
+    /** Where Tidemark reads missing data with the call's token: https only (http on a loopback host for trials). */
+    fhirServer: httpsOrLoopbackUrl.optional(),
     fhirAuthorization: fhirAuthorizationSchema.optional(),
     context: jsonObject,
     prefetch: prefetchSchema.optional(),

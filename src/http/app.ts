@@ -120,7 +120,8 @@ export function createApp(deps: AppDeps): express.Express {
   app.post('/cds-services/:id/feedback', cds, json, async (req: Request, res: Response) => {
     const service = findService(String(req.params['id']));
     if (!service) throw new HttpError(404, 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
-    const result = await recordFeedback(service, req.body, deps.store, () => new Date());
+    // The caller the guard verified: feedback is taken only from the issuer that received the card.
+    const result = await recordFeedback(service, req.body, deps.store, () => new Date(), res.locals['client'] as { issuer?: string; tenant?: string } | undefined);
     res.status(200).json(result);
   });
 

@@ -1,6 +1,6 @@
 /** Errors that become an HTTP status and a FHIR OperationOutcome body, in exactly one place (the app's error handler). */
 
-export type IssueCode = 'invalid' | 'structure' | 'required' | 'value' | 'not-found' | 'not-supported' | 'exception' | 'incomplete' | 'login' | 'too-costly' | 'transient';
+export type IssueCode = 'invalid' | 'structure' | 'required' | 'value' | 'not-found' | 'not-supported' | 'exception' | 'incomplete' | 'login' | 'forbidden' | 'too-costly' | 'transient';
 
 export class HttpError extends Error {
   override name = 'HttpError';

@@ -35,7 +35,7 @@ export function createMetrics(): Metrics {
     observeGather(outcomes) {
       for (const o of outcomes) {
         if (o.source !== 'none') fhirFetches.inc({ source: o.source });
-        if (['http-error', 'timeout', 'network-error', 'not-fhir', 'truncated'].includes(o.status)) fhirErrors.inc({ kind: o.status });
+        if (['http-error', 'timeout', 'network-error', 'not-fhir', 'truncated', 'too-large', 'redirect'].includes(o.status)) fhirErrors.inc({ kind: o.status });
       }
     },
     observeAuditWrite(seconds, ok) {

@@ -8,11 +8,12 @@ import type {
   Condition, Encounter, FhirResource, MedicationAdministration, MedicationRequest, Observation, ObservationComponent, Patient, Quantity, ServiceRequest,
 } from 'fhir/r4.js';
 import {
-  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, SNOMED, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
+  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
   type DynamicMeasured, type NumericKind,
 } from '../fhir/codes.js';
 import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
 import { convert, MAX_UNIT_LENGTH, toCanonical } from '../fhir/units.js';
+import { rhythmAnswerOf } from '../fhir/value-sets.js';
 import { isoInstant, parseTimeMs } from './time.js';
 import type {
   CodedMeasurement, ConditionEntry, DraftOrder, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
@@ -65,12 +66,15 @@ export function kindLookup<K extends string>(list: ReadonlyArray<{ system: strin
 const NUMERIC_KIND_OF = kindLookup(OBSERVATION_CODES);
 const CODED_KIND_OF = kindLookup(CODED_OBSERVATION_CODES);
 const DYNAMIC_KIND_OF = kindLookup(DYNAMIC_TEST_CODES);
-/** The first code listed for each numeric kind (the code a measurement's `original` names). */
+/** The first code listed for each numeric kind (what a measurement's `original` names when no coding of that kind is found). */
 const CODE_OF_KIND = new Map<string, (typeof OBSERVATION_CODES)[number]>();
 for (const c of OBSERVATION_CODES) if (!CODE_OF_KIND.has(c.kind)) CODE_OF_KIND.set(c.kind, c);
-
-/** SNOMED CT answers some feeds use for rhythm (from memory; verify): 49436004 atrial fibrillation. */
-const SNOMED_RHYTHM: Record<string, string> = { '49436004': 'atrial-fibrillation' };
+const KIND_OF_CODE = new Map(OBSERVATION_CODES.map((c) => [`${c.system}|${c.code}`, c.kind]));
+/** The coding that was read as `kind` (so that `original` names the code the record carried, e.g. 2708-6, not 59408-5). */
+function codingRead(codings: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>, kind: NumericKind): { system: string; code: string } | undefined {
+  const c = codings.find((x) => KIND_OF_CODE.get(`${x.system}|${x.code}`) === kind);
+  return c?.system && c.code ? { system: c.system, code: c.code } : CODE_OF_KIND.get(kind);
+}
 
 /** FHIR R4 id datatype: [A-Za-z0-9\-\.]{1,64} (FHIR R4, Datatypes "id"). */
 const FHIR_ID = /^[A-Za-z0-9\-.]{1,64}$/;
@@ -171,25 +175,26 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     if (codedKind) {
       const cc = o.valueCodeableConcept?.coding ?? [];
       const ours = cc.find((c) => c.system === TIDEMARK_ANSWERS && c.code && CODED_ANSWERS[codedKind].includes(c.code));
-      const snomed = codedKind === 'heartRhythm' ? cc.find((c) => c.system === SNOMED && c.code && SNOMED_RHYTHM[c.code]) : undefined;
-      const answer = ours?.code ?? (snomed?.code ? SNOMED_RHYTHM[snomed.code] : undefined);
+      // A rhythm may come as a SNOMED CT concept (src/fhir/value-sets/rhythm.json) instead of our answer code.
+      const snomed = codedKind === 'heartRhythm' && !ours ? cc.find((c) => rhythmAnswerOf(c) !== undefined) : undefined;
+      const answer = ours?.code ?? (snomed ? rhythmAnswerOf(snomed) : undefined);
       const orig = ours ?? snomed ?? cc[0];
       if (!answer || !orig) return void exclude(ref, 'unknown-answer', `answer ${cc.map((c) => `${c.system}|${c.code}`).join(', ') || '(none)'} is not one Tidemark reads`, codedKind);
       coded.push({ kind: codedKind, answer, original: { system: orig.system ?? '', code: orig.code ?? '', ...(orig.display ? { display: orig.display } : {}) }, effective, ageMinutes: age(effective), ref });
       return;
     }
-    if (numericKind && o.valueQuantity) addQuantity(numericKind, o.valueQuantity, ref, effective, periodStart);
+    if (numericKind && o.valueQuantity) addQuantity(numericKind, o.valueQuantity, ref, effective, periodStart, codingRead(codings, numericKind));
     else if (numericKind && !componentKinds.some((x) => x.kind)) {
       exclude(ref, 'no-value', o.dataAbsentReason ? `no value: ${conceptText(o.dataAbsentReason) || 'data absent'}` : 'no valueQuantity', numericKind);
     }
     for (const { c, kind } of componentKinds) {
       if (!kind) continue;
-      if (c.valueQuantity) addQuantity(kind, c.valueQuantity, ref, effective, periodStart);
+      if (c.valueQuantity) addQuantity(kind, c.valueQuantity, ref, effective, periodStart, codingRead(c.code?.coding ?? [], kind));
       else exclude(ref, 'no-value', 'component has no valueQuantity', kind);
     }
   }
 
-  function addQuantity(kind: NumericKind, q: Quantity, ref: string, effective: string, periodStart: string | undefined): void {
+  function addQuantity(kind: NumericKind, q: Quantity, ref: string, effective: string, periodStart: string | undefined, code: { system: string; code: string } | undefined): void {
     if (typeof q.value !== 'number' || !Number.isFinite(q.value)) return void exclude(ref, 'no-value', 'value is not a number', kind);
     if (q.comparator) return void exclude(ref, 'censored-value', `value is ${q.comparator}${q.value}: a limit, not a measurement`, kind);
     const unit = q.system === 'http://unitsofmeasure.org' && q.code ? q.code : (q.unit ?? q.code);
@@ -197,7 +202,6 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     if (!conv.ok) return void exclude(ref, conv.reason, conv.detail, kind);
     const [lo, hi] = KIND_BOUNDS[kind];
     if (conv.value < lo || conv.value > hi) return void exclude(ref, 'impossible-value', `${round(conv.value)} ${conv.unit} is outside ${lo}–${hi}`, kind);
-    const code = CODE_OF_KIND.get(kind);
     measurements.push({
       kind, value: conv.value, unit: conv.unit,
       original: { value: q.value, unit: unit ?? '', code: code?.code ?? '', system: code?.system ?? '' },

@@ -38,7 +38,10 @@ let targets: RunTargets;
 beforeAll(async () => {
   fhir = await startEmbeddedFhir({ requireToken: FHIR_TOKEN });
   for (const s of SCENARIOS) await fhir.load(scenarioBundle(chart(s)));
-  svc = await startService({ TIDEMARK_AUDIT_TOKEN: AUDIT_TOKEN }, { now: () => NOW });
+  // This file checks what is gathered and concluded, not how fast: a generous FHIR budget keeps the first, cold
+  // searches of the embedded server (and a loaded CI machine) from ending as timeouts. Budget faults are tested in
+  // tests/integration/fhir-faults.test.ts.
+  svc = await startService({ TIDEMARK_AUDIT_TOKEN: AUDIT_TOKEN, TIDEMARK_FHIR_BUDGET_MS: '15000' }, { now: () => NOW });
   targets = { serviceUrl: svc.url, fhirBaseUrl: fhir.baseUrl, fhirToken: FHIR_TOKEN, auditToken: AUDIT_TOKEN };
   // One call at a time: each run finds its own audit record as the newest of its patient and service.
   for (const s of SCENARIOS) for (const r of ROUTES) runs.set(`${s.id}/${r}`, await runScenario(targets, s, chart(s), r));

@@ -98,6 +98,10 @@ interface Harness {
   setChain(seq: number, prevHash: string, hash: string): Promise<void>;
   /** Deletes an advice row and its cards (and their feedback). */
   deleteAdvice(seq: number): Promise<void>;
+  /** Drops advice.issuer, as the tables were before Tidemark 0.3 (the store must be closed). */
+  dropIssuerColumn(): Promise<void>;
+  /** A new store over the same tables, initialised, without emptying them. */
+  reopen(): Promise<AuditStore>;
 }
 
 function sqliteHarness(): Harness {
@@ -143,6 +147,14 @@ function sqliteHarness(): Harness {
         db.prepare('DELETE FROM advice_card WHERE advice_id = ?').run(id);
         db.prepare('DELETE FROM advice WHERE id = ?').run(id);
       });
+    },
+    async dropIssuerColumn() {
+      raw((db) => db.exec('ALTER TABLE advice DROP COLUMN issuer'));
+    },
+    async reopen() {
+      const s = new SqliteAuditStore(path);
+      await s.init();
+      return s;
     },
   };
 }
@@ -198,6 +210,14 @@ function postgresHarness(): Harness {
       await q(`DELETE FROM "${schema}".feedback WHERE card_uuid IN (SELECT card_uuid FROM "${schema}".advice_card WHERE advice_id = $1)`, [id]);
       await q(`DELETE FROM "${schema}".advice_card WHERE advice_id = $1`, [id]);
       await q(`DELETE FROM "${schema}".advice WHERE id = $1`, [id]);
+    },
+    async dropIssuerColumn() {
+      await q(`ALTER TABLE "${schema}".advice DROP COLUMN issuer`);
+    },
+    async reopen() {
+      const s = new PostgresAuditStore(PG_URL, { schema, poolSize: 4 });
+      await s.init();
+      return s;
     },
   };
 }
@@ -260,7 +280,7 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const reused = cardsOf(r1)[0] ?? '';
     await expect(store.append({ ...reuse, cardKinds: { [reused]: 'data-gap' } })).rejects.toThrow();
     expect(await store.get(reuse.id)).toBeUndefined();
-    expect(await store.cardOwner(reused)).toEqual({ adviceId: r1.id, cardKind: 'volume-ok', service: 'bolus-select' });
+    expect(await store.cardOwner(reused)).toEqual({ adviceId: r1.id, cardKind: 'volume-ok', service: 'bolus-select', issuer: 'https://ehr.invented.example' });
     const r2 = adviceRecord();
     await store.append(r2);
     expect(await store.verifyChain()).toEqual({ ok: true, checked: 2 });
@@ -398,9 +418,37 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const r = adviceRecord({ kinds: ['volume-ok', 'data-gap'], service: 'bolus-sign' });
     await store.append(r);
     const [c1, c2] = cardsOf(r);
-    expect(await store.cardOwner(c1 ?? '')).toEqual({ adviceId: r.id, cardKind: 'volume-ok', service: 'bolus-sign' });
-    expect(await store.cardOwner(c2 ?? '')).toEqual({ adviceId: r.id, cardKind: 'data-gap', service: 'bolus-sign' });
+    expect(await store.cardOwner(c1 ?? '')).toEqual({ adviceId: r.id, cardKind: 'volume-ok', service: 'bolus-sign', issuer: 'https://ehr.invented.example' });
+    expect(await store.cardOwner(c2 ?? '')).toEqual({ adviceId: r.id, cardKind: 'data-gap', service: 'bolus-sign', issuer: 'https://ehr.invented.example' });
     expect(await store.cardOwner(randomUUID())).toBeUndefined();
+  });
+
+  it('keeps the issuer that received the cards in its own column; a record without a client has none', async () => {
+    await open();
+    const other = { ...adviceRecord(), client: { issuer: 'https://records.other-invented.example', tenant: 'ward-3' } };
+    const { client: _none, ...anonymous } = adviceRecord();
+    await appendAll([other, anonymous]);
+    expect((await store.cardOwner(cardsOf(other)[0] ?? ''))?.issuer).toBe('https://records.other-invented.example');
+    expect(await store.cardOwner(cardsOf(anonymous)[0] ?? '')).toEqual({ adviceId: anonymous.id, cardKind: 'volume-ok', service: 'bolus-select' });
+  });
+
+  it('adds the issuer column to tables made before it; their records stay readable, verifiable and attributable from their text', async () => {
+    await open();
+    const old = adviceRecord();
+    const { client: _none, ...older } = adviceRecord();
+    await appendAll([old, older]);
+    await store.close();
+    await h.dropIssuerColumn();
+    store = await h.reopen();
+    opened.push(store);
+    // The old rows have an empty column: the issuer comes from the hashed record text, or is absent if it names none.
+    expect((await store.cardOwner(cardsOf(old)[0] ?? ''))?.issuer).toBe('https://ehr.invented.example');
+    expect((await store.cardOwner(cardsOf(older)[0] ?? ''))?.issuer).toBeUndefined();
+    expect(await store.get(old.id)).toMatchObject({ id: old.id, client: old.client });
+    const fresh = { ...adviceRecord(), client: { issuer: 'https://records.other-invented.example' } };
+    await store.append(fresh);
+    expect((await store.cardOwner(cardsOf(fresh)[0] ?? ''))?.issuer).toBe('https://records.other-invented.example');
+    expect(await store.verifyChain()).toEqual({ ok: true, checked: 3 });
   });
 
   it('stores feedback idempotently and counts duplicates', async () => {
@@ -550,7 +598,7 @@ describe('PostgreSQL audit store shared by several replicas', () => {
     const schema = newSchema('init');
     await Promise.all(replicas(schema, 4).map((s) => s.init()));
     const t = await admin.query(`SELECT table_name FROM information_schema.tables WHERE table_schema = $1 ORDER BY table_name`, [schema]);
-    expect(t.rows.map((r: { table_name: string }) => r.table_name)).toEqual(['advice', 'advice_card', 'feedback']);
+    expect(t.rows.map((r: { table_name: string }) => r.table_name)).toEqual(['advice', 'advice_card', 'feedback', 'jti_seen']);
   });
 
   it('four replicas appending 50 records each in parallel keep one linear chain', async () => {
@@ -587,6 +635,59 @@ describe('PostgreSQL audit store shared by several replicas', () => {
     const rb = adviceRecord();
     expect((await b.append(rb)).hash).toBe(sha256Hex(GENESIS + JSON.stringify(rb)));
     expect(await b.get(ra.id)).toBeUndefined();
+  });
+
+  it('runs as a role with only SELECT and INSERT (plus UPDATE, DELETE on jti_seen); an older schema must be updated by the owner first', async () => {
+    const schema = newSchema('least');
+    const role = `${RUN}_app`;
+    const asApp = (() => {
+      const u = new URL(PG_URL);
+      u.username = role;
+      return u.toString();
+    })();
+    await admin.query(`CREATE ROLE "${role}" LOGIN`);
+    try {
+      const [owner] = replicas(schema, 1);
+      await owner?.init();
+      const grant = async () => {
+        await admin.query(`GRANT USAGE ON SCHEMA "${schema}" TO "${role}"`);
+        await admin.query(`GRANT SELECT, INSERT ON ALL TABLES IN SCHEMA "${schema}" TO "${role}"`);
+        await admin.query(`GRANT UPDATE, DELETE ON "${schema}".jti_seen TO "${role}"`);
+      };
+      await grant();
+      const app = new PostgresAuditStore(asApp, { schema, poolSize: 2 });
+      stores.push(app);
+      await app.init();
+      const rec = adviceRecord();
+      await app.append(rec);
+      expect((await app.cardOwner(cardsOf(rec)[0] ?? ''))?.issuer).toBe('https://ehr.invented.example');
+      const cache = app.sharedReplayCache();
+      expect(await cache.seen('https://ehr.invented.example jti-1', Date.now() / 1000 + 60)).toBe(false);
+      expect(await cache.seen('https://ehr.invented.example jti-1', Date.now() / 1000 + 60)).toBe(true);
+      const direct = new pg.Client({ connectionString: asApp });
+      await direct.connect();
+      await expect(direct.query(`UPDATE "${schema}".advice SET record = '{}'`)).rejects.toThrow(/permission denied/);
+      await direct.end();
+
+      // The schema as an older Tidemark made it: no issuer column, no jti_seen. The app role cannot add them.
+      await admin.query(`ALTER TABLE "${schema}".advice DROP COLUMN issuer`);
+      await admin.query(`DROP TABLE "${schema}".jti_seen`);
+      const before = new PostgresAuditStore(asApp, { schema, poolSize: 2 });
+      stores.push(before);
+      await expect(before.init()).rejects.toThrow(/audit store set-up failed at .*run the service once as the owner of the audit schema/);
+      await owner?.init();
+      await grant();
+      const after = new PostgresAuditStore(asApp, { schema, poolSize: 2 });
+      stores.push(after);
+      await after.init();
+      expect((await after.cardOwner(cardsOf(rec)[0] ?? ''))?.issuer).toBe('https://ehr.invented.example');
+      expect(await after.verifyChain()).toEqual({ ok: true, checked: 1 });
+    } finally {
+      await Promise.all(stores.splice(0).map((st) => st.close()));
+      await admin.query(`DROP SCHEMA IF EXISTS "${schema}" CASCADE`);
+      await admin.query(`DROP OWNED BY "${role}"`);
+      await admin.query(`DROP ROLE "${role}"`);
+    }
   });
 
   it('refuses a schema name that is not a plain identifier', () => {

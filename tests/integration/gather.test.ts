@@ -8,11 +8,11 @@ import { hookRequestSchema } from '../../src/hooks/schemas.js';
 import { findService, PREFETCH } from '../../src/hooks/services.js';
 import { basicResources, orderSelectRequest, PID, prefetchOf } from '../helpers/hook-fixtures.js';
 
-const BASE = 'http://fhir.test.invalid/r4';
+const BASE = 'https://fhir.test.invalid/r4';
 const service = findService('bolus-review-select')!;
 const opts = { budgetMs: 800, maxPages: 3, concurrency: 4 };
 const parse = (x: unknown) => hookRequestSchema.parse(x);
-/** The path and query fhir-kit-client will request for a prefetch key. */
+/** The path and query Tidemark will request for a prefetch key. */
 const pathOf = (key: string) => `/r4/${(PREFETCH[key]?.template ?? '').replace(/\{\{context\.patientId\}\}/g, PID).replace(/\{\{context\.encounterId\}\}/g, 'tm-enc-ward4-017')}`;
 
 beforeAll(() => nock.disableNetConnect());

@@ -10,6 +10,8 @@ describe('loadConfig', () => {
   it('has embedded defaults: port 8080, SQLite audit, 2 s FHIR budget', () => {
     const c = loadConfig({});
     expect(c).toMatchObject({ PORT: 8080, TIDEMARK_AUDIT_STORE: 'sqlite', TIDEMARK_FHIR_BUDGET_MS: 2000, TIDEMARK_TRIAL_MODE: false });
+    // The byte caps for FHIR answers, as docs/configuration.md states them: 16 MiB per answer, 48 MiB per call.
+    expect(c).toMatchObject({ TIDEMARK_FHIR_MAX_RESPONSE_BYTES: 16_777_216, TIDEMARK_FHIR_MAX_CALL_BYTES: 50_331_648 });
   });
   it.each([
     [{ PORT: 'eighty' }, 'PORT'],
@@ -19,6 +21,8 @@ describe('loadConfig', () => {
     [{ TIDEMARK_FHIR_BUDGET_MS: '10' }, 'TIDEMARK_FHIR_BUDGET_MS'],
     [{ TIDEMARK_TRIAL_MODE: 'maybe' }, 'TIDEMARK_TRIAL_MODE'],
     [{ TIDEMARK_PUBLIC_URL: 'not a url' }, 'TIDEMARK_PUBLIC_URL'],
+    [{ TIDEMARK_FHIR_MAX_RESPONSE_BYTES: '1000' }, 'TIDEMARK_FHIR_MAX_RESPONSE_BYTES'],
+    [{ TIDEMARK_FHIR_MAX_CALL_BYTES: 'lots' }, 'TIDEMARK_FHIR_MAX_CALL_BYTES'],
   ])('%o is refused naming %s', (env, name) => {
     expect(() => loadConfig(env)).toThrow(new RegExp(name));
   });

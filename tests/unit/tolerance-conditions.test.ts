@@ -1,4 +1,4 @@
-/** Truth table: conditions that lower tolerance, matched against condition-sets.json. */
+/** Truth table: conditions that lower tolerance, matched against src/fhir/value-sets/conditions.json. */
 import { describe, expect, it } from 'vitest';
 import { CONDITION_SETS, conditionsRule, matchConditionSets } from '../../src/assess/tolerance/conditions.js';
 import { ICD10, SNOMED } from '../../src/fhir/codes.js';
@@ -8,9 +8,11 @@ const ICD10CM = 'http://hl7.org/fhir/sid/icd-10-cm';
 const run = (...cs: ReturnType<typeof condition>[]) => conditionsRule(snapshot({ conditions: cs }), NOW, T)[0]!;
 
 describe('condition sets file', () => {
-  it('carries its provenance and the four sets', () => {
-    expect(CONDITION_SETS.provenance).toMatch(/from memory/i);
-    expect(CONDITION_SETS.sets.map((s) => s.id)).toEqual(['advanced-liver-disease', 'heart-failure', 'end-stage-kidney-disease', 'ards']);
+  it('carries its provenance and the six sets', () => {
+    expect(CONDITION_SETS.provenance).toMatch(/from-memory/i);
+    expect(CONDITION_SETS.sets.map((s) => s.id)).toEqual([
+      'advanced-liver-disease', 'heart-failure', 'end-stage-kidney-disease', 'ards', 'right-ventricular-failure', 'pulmonary-hypertension',
+    ]);
   });
 });
 

@@ -1,55 +1,27 @@
 /**
  * Rule tolerance.conditions: active conditions that lower fluid tolerance — advanced liver disease, heart
- * failure, end-stage kidney disease or dialysis, ARDS — matched against Tidemark's own value sets kept as
- * data (condition-sets.json; SNOMED CT codes exactly, ICD-10 by prefix). Each is a moderate limit: the
- * diagnosis narrows the margin, the bedside markers show how much.
+ * failure, end-stage kidney disease or dialysis, ARDS, right-ventricular failure, pulmonary hypertension —
+ * matched against Tidemark's value sets kept as data (src/fhir/value-sets/conditions.json: SNOMED CT concepts
+ * with their common descendants, ICD-10 / ICD-10-CM codes and ranges, each entry with its source). Each is a
+ * moderate limit: the diagnosis narrows the margin, the bedside markers show how much.
  */
-import { z } from 'zod';
 import type { ConditionEntry, PatientSnapshot } from '../../snapshot/types.js';
 import type { Evidence, Finding } from '../types.js';
-import rawSets from './condition-sets.json' with { type: 'json' };
+import { CONDITION_SETS, matchConditionGroups, type ConditionGroupHit, type ConditionSets } from '../../fhir/value-sets.js';
 import { ageMinutesAt } from './select.js';
 import { assessed, notAssessed } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
 
 export const CONDITIONS = 'tolerance.conditions';
 
-const codeSchema = z.strictObject({ code: z.string().min(1), display: z.string() });
-const conditionSetsSchema = z.strictObject({
-  provenance: z.string().min(1),
-  version: z.string(),
-  icd10Systems: z.array(z.url()).min(1),
-  snomedSystem: z.url(),
-  activeStatuses: z.array(z.string()).min(1),
-  sets: z.array(z.strictObject({
-    id: z.string().regex(/^[a-z0-9-]+$/),
-    label: z.string().min(1),
-    why: z.string().min(1),
-    snomed: z.array(codeSchema.extend({ code: z.string().regex(/^\d{6,18}$/) })),
-    icd10Prefixes: z.array(codeSchema.extend({ code: z.string().regex(/^[A-Z]\d{2}(\.\d{1,4})?$/) })),
-  })).min(1),
-});
-export type ConditionSets = z.infer<typeof conditionSetsSchema>;
+export { CONDITION_SETS, type ConditionSets };
+export { activeConditionGroups, CONDITION_GROUP_IDS, type ActiveConditionGroup, type ConditionEffect, type ConditionGroupId } from '../../fhir/value-sets.js';
 
-/** The value sets, validated when the module loads so that a bad edit of the JSON fails at start-up. */
-export const CONDITION_SETS: ConditionSets = conditionSetsSchema.parse(rawSets);
+const SOURCE = `Tidemark value sets v${CONDITION_SETS.version} (src/fhir/value-sets/conditions.json; each code with its source, some from memory); conservative fluids in ARDS: FACTT, N Engl J Med 2006;354:2564`;
 
-const SOURCE = `Tidemark value sets v${CONDITION_SETS.version} (condition-sets.json; codes from memory, to verify against SNOMED CT and ICD-10 releases); conservative fluids in ARDS: FACTT, N Engl J Med 2006;354:2564`;
-
-function normIcd(code: string): string {
-  return code.replace(/\./g, '').trim().toUpperCase();
-}
-
-/** Set ids an entry matches (SNOMED exact, ICD-10 by prefix). */
-export function matchConditionSets(entry: ConditionEntry, sets: ConditionSets = CONDITION_SETS): Array<{ id: string; label: string; coding: string }> {
-  const hits: Array<{ id: string; label: string; coding: string }> = [];
-  for (const set of sets.sets) {
-    const hit = entry.codings.find((c) =>
-      (c.system === sets.snomedSystem && set.snomed.some((s) => s.code === c.code.trim())) ||
-      (sets.icd10Systems.includes(c.system) && set.icd10Prefixes.some((p) => normIcd(c.code).startsWith(normIcd(p.code)))));
-    if (hit) hits.push({ id: set.id, label: set.label, coding: `${hit.system}|${hit.code}` });
-  }
-  return hits;
+/** Set ids an entry matches (SNOMED CT concepts as listed, ICD-10 codes and ranges; see src/fhir/code-match.ts). */
+export function matchConditionSets(entry: ConditionEntry, sets: ConditionSets = CONDITION_SETS): ConditionGroupHit[] {
+  return matchConditionGroups(entry.codings, sets);
 }
 
 export function conditionsRule(snapshot: PatientSnapshot, now: Date, _t: ToleranceThresholds): Finding[] {
