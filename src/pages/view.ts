@@ -27,7 +27,7 @@ export interface PageVerdict {
   rationale: string;
   /** "high", "moderate" …, when the record states it. */
   confidence?: string;
-  /** How much of what the rules look at was there, e.g. "5 of 9 markers assessed". */
+  /** How much of what the rules look at was there, e.g. "5 of 9 findings assessed". */
   coverage?: string;
   decidingRules: string[];
   nextTest?: string;
@@ -100,11 +100,11 @@ function pageFinding(f: Finding): PageFinding {
   };
 }
 
-/** "5 of 9 markers assessed" over the findings of one topic. */
+/** "5 of 9 findings assessed" over the findings of one topic. */
 function coverageOf(findings: Finding[], topic: string): string | undefined {
   const of = findings.filter((f) => f.topic === topic);
   if (!of.length) return undefined;
-  return `${of.filter((f) => f.status === 'assessed').length} of ${of.length} markers assessed`;
+  return `${of.filter((f) => f.status === 'assessed').length} of ${of.length} findings assessed`;
 }
 
 /** A field a later Advice shape may carry (confidence, coverage), read without depending on its type. */

@@ -91,7 +91,7 @@ describe('toPageView', () => {
       phrases: { responsiveness: { likely: 'likely fluid responsive' }, tolerance: { unassessed: 'tolerance not assessed' } },
       cautions: ['c'], running: { rulesVersion: 'v2', thresholds: {} },
     });
-    expect(v.verdicts.map((d) => [d.value, d.coverage, d.confidence])).toEqual([['Likely fluid responsive', '1 of 3 markers assessed', 'moderate'], ['Tolerance not assessed', undefined, undefined]]);
+    expect(v.verdicts.map((d) => [d.value, d.coverage, d.confidence])).toEqual([['Likely fluid responsive', '1 of 3 findings assessed', 'moderate'], ['Tolerance not assessed', undefined, undefined]]);
     expect(v.gaps.map((g) => g.kind)).toEqual(['missing', 'stale', 'set aside']);
     expect(v.order.map((f) => f.text)).toEqual(['Ordered 500 mL']);
     expect(v.thresholds).toBeUndefined(); // another rules version than the running one
