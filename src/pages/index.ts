@@ -12,6 +12,14 @@ export async function renderAdvicePage(input: ViewInput & { zone: string }): Pro
   const view = toPageView(input);
   const trends = view.snapshot ? trendsOf(view.snapshot, view.adviceAt) : undefined;
   const plots: RenderedPlot[] = [];
-  for (const plot of trends?.plots ?? []) plots.push(plot.rows.length ? { plot, svg: await plotSvg(plot, trends!, input.zone) } : { plot });
+  for (const plot of trends?.plots ?? []) {
+    if (!plot.rows.length) { plots.push({ plot }); continue; }
+    try {
+      plots.push({ plot, svg: await plotSvg(plot, trends!, input.zone) });
+    } catch {
+      // A plot vega cannot draw leaves its summary and table: the page itself is still given.
+      plots.push({ plot, failed: true });
+    }
+  }
   return reasoningPage(view, input.zone, trends, plots);
 }

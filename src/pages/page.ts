@@ -12,7 +12,7 @@ import type { PageFinding, PageView } from './view.js';
 
 export const STYLESHEET_PATH = '/pages/style.css';
 
-export interface RenderedPlot { plot: TrendPlot; svg?: string }
+export interface RenderedPlot { plot: TrendPlot; svg?: string; failed?: boolean }
 
 function doc(title: string, body: Raw): string {
   return `<!doctype html>\n${html`<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><meta name="robots" content="noindex"><title>${title}</title><link rel="stylesheet" href="${STYLESHEET_PATH}"></head><body>${body}</body></html>`.html}\n`;
@@ -54,7 +54,7 @@ function plotFigure(p: RenderedPlot, zone: string, trends: Trends, n: number): R
     : `Nothing charted in the last ${trends.hours} h.`;
   return html`<figure id="${id}" data-plot="${p.plot.id}"><figcaption id="${id}-title">${n}. ${p.plot.title}</figcaption>${
     p.svg ? html`<div role="img" aria-labelledby="${id}-title ${id}-summary" class="plot">${raw(p.svg)}</div>` : ''
-  }<p id="${id}-summary" class="${counts.length ? 'meta' : 'empty'}">${summary}</p>${
+  }${p.failed ? html`<p class="empty">This plot could not be drawn; its values are in the table below.</p>` : ''}<p id="${id}-summary" class="${counts.length ? 'meta' : 'empty'}">${summary}</p>${
     rows.length
       ? html`<details><summary>Values of this plot as a table</summary><table class="plot-data"><thead><tr><th>Time (site)</th><th>Series</th><th>Value</th><th>Unit</th><th>Note</th><th>FHIR reference</th></tr></thead><tbody>${rows.map(
           (r) => html`<tr data-series="${r.series}" data-time="${r.t}" data-value="${r.value}" aria-label="${describeRow(r)}"><td>${r.t0 ? `${clock(r.t0, zone, trends.now)}–` : ''}${clock(r.t, zone, trends.now)}</td><td>${r.series}</td><td class="num">${r.value}</td><td>${r.unit}</td><td>${r.note ?? ''}</td><td class="ref">${r.ref}</td></tr>`,
