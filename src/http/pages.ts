@@ -61,7 +61,7 @@ export function mountPages(app: Express, deps: PagesDeps): void {
     const record = await deps.store.get(id);
     if (!record) return send(res, 404, noticePage('No such advice', 'No advice with this id is stored here.'));
     const page = await renderAdvicePage({
-      record, phrases: deps.catalogue.phrases, cautions: deps.catalogue.cautions,
+      record, words: deps.catalogue, cautions: deps.catalogue.cautions,
       running: { rulesVersion: deps.rulesVersion, thresholds: deps.thresholds }, zone: deps.timeZone,
     });
     send(res, 200, page);

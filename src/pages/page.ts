@@ -23,7 +23,7 @@ export function noticePage(title: string, text: string): string {
   return doc(title, html`<main class="notice"><h1>${title}</h1><p>${text}</p><p class="meta">Tidemark gives advisory information only; the order itself is not affected.</p></main>`);
 }
 
-const TOPIC_TITLE: Record<string, string> = { responsiveness: 'Responsiveness', tolerance: 'Tolerance', perfusion: 'Perfusion', data: 'Data' };
+const TOPIC_TITLE: Record<string, string> = { responsiveness: 'Responsiveness', tolerance: 'Tolerance', perfusion: 'Perfusion and need', phase: 'Phase of care', data: 'Data' };
 
 function evidenceTable(f: PageFinding, zone: string, at: string): Raw {
   if (!f.evidence.length) return raw('');
@@ -33,12 +33,12 @@ function evidenceTable(f: PageFinding, zone: string, at: string): Raw {
 }
 
 function valuesList(f: PageFinding): Raw {
-  if (!f.values.length) return raw('');
-  return html`<details><summary>Derived values</summary><table><tbody>${f.values.map(([k, v]) => html`<tr><td class="ref">${k}</td><td class="num">${v}</td></tr>`)}</tbody></table></details>`;
+  if (!f.figures.length) return raw('');
+  return html`<details><summary>Derived values</summary><table><tbody>${f.figures.map(([k, v]) => html`<tr><td class="ref">${k}</td><td class="num">${v}</td></tr>`)}</tbody></table></details>`;
 }
 
 function finding(f: PageFinding, zone: string, at: string): Raw {
-  return html`<div class="finding"><p class="text">${f.direction ? html`<span class="tag">${f.direction === 'for' ? 'for volume' : f.direction === 'against' ? 'against volume' : 'neutral'}</span>` : ''}${f.assessed ? '' : html`<span class="tag">not assessed</span>`}${f.text}</p>${
+  return html`<div class="finding"><p class="text">${f.direction ? html`<span class="tag">${f.direction === 'for' ? 'for volume' : f.direction === 'against' ? 'against volume' : 'neutral'}</span>` : ''}${f.tier ? html`<span class="tag">${f.tier}</span>` : ''}${f.assessed ? '' : html`<span class="tag">not assessed</span>`}${f.text}</p>${
     f.reason ? html`<p>Why: ${f.reason}</p>` : ''}${evidenceTable(f, zone, at)}${valuesList(f)}<p class="meta">Rule <code>${f.ruleId}</code>${f.source ? html` · Source: ${f.source}` : ''}</p></div>`;
 }
 
@@ -66,7 +66,7 @@ function plotFigure(p: RenderedPlot, zone: string, trends: Trends, n: number): R
 export function reasoningPage(v: PageView, zone: string, trends: Trends | undefined, plots: RenderedPlot[]): string {
   const at = v.adviceAt;
   // Findings that could not be assessed are listed once, under "Missing, stale or set aside".
-  const byTopic = ['responsiveness', 'tolerance', 'perfusion', 'data'].map((t) => [t, v.findings.filter((f) => f.topic === t && f.assessed)] as const).filter(([, f]) => f.length);
+  const byTopic = ['responsiveness', 'tolerance', 'perfusion', 'phase', 'data'].map((t) => [t, v.findings.filter((f) => f.topic === t && f.assessed)] as const).filter(([, f]) => f.length);
   const unassessed = v.findings.filter((f) => !f.assessed).length;
   const body = html`<header><p class="meta">Tidemark · reasoning behind one piece of fluid advice</p>
 <h1>Fluid bolus advice, ${fullClock(at, zone)}</h1>
@@ -75,10 +75,10 @@ export function reasoningPage(v: PageView, zone: string, trends: Trends | undefi
 <main>
 <section id="verdicts" aria-labelledby="verdicts-h"><h2 id="verdicts-h">Verdicts</h2>
 ${v.headline ? html`<p class="headline ${v.indicator ?? 'info'}" id="headline">${v.headline}</p>` : ''}
-${v.action ? html`<p><strong>Advice:</strong> ${v.action}.</p>` : ''}
+${v.action ? html`<p><strong>Advice:</strong> ${v.action}.${v.phase ? html` <span class="meta">(${v.phase})</span>` : ''}</p>` : ''}
 ${v.answered ? '' : html`<p>The advice could not be given: required data could not be obtained (see below).</p>`}
-<div class="verdicts">${v.verdicts.map((d, i) => html`<div class="verdict" data-verdict="${i === 0 ? 'responsiveness' : 'tolerance'}"><p class="q">${d.question}</p><p class="v">${d.value}</p><p>${d.rationale}</p><dl>
-${d.confidence ? html`<dt>Confidence</dt><dd>${d.confidence}</dd>` : ''}${d.coverage ? html`<dt>Coverage</dt><dd>${d.coverage}</dd>` : ''}${d.nextTest ? html`<dt>Would settle it</dt><dd>${d.nextTest}</dd>` : ''}${
+<div class="verdicts">${v.verdicts.map((d) => html`<div class="verdict" data-verdict="${d.key}"><p class="q">${d.question}</p><p class="v">${d.value}</p><p>${d.rationale}</p><dl>
+${d.confidence ? html`<dt>Confidence</dt><dd>${d.confidence}</dd>` : ''}${d.coverage ? html`<dt>Coverage</dt><dd>${d.coverage}</dd>` : ''}${d.nextTest ? html`<dt>Test to settle or confirm it</dt><dd>${d.nextTest}</dd>` : ''}${d.assumptions.length ? html`<dt>Assumed</dt><dd>${d.assumptions.join('; ')}</dd>` : ''}${
     d.decidingRules.length ? html`<dt>Decided by</dt><dd>${d.decidingRules.map((r, j) => html`${j ? ', ' : ''}<code>${r}</code>`)}</dd>` : ''}</dl></div>`)}</div>
 ${v.reasons.length ? html`<h3>Why</h3><ul>${v.reasons.map((r) => html`<li>${r}</li>`)}</ul>` : ''}
 ${v.alternatives.length ? html`<h3>Options to consider instead of, or before, the bolus</h3><ul>${v.alternatives.map((r) => html`<li>${r}</li>`)}</ul>` : ''}

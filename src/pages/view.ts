@@ -3,8 +3,9 @@
  * src/pages/ that reads the Advice, Finding and Verdict shapes (src/assess/types.ts): when assessment v2 changes
  * them, this file changes and the page does not. Everything here is plain data; escaping happens in page.ts.
  */
-import type { Finding } from '../assess/types.js';
+import type { Finding, Verdict } from '../assess/types.js';
 import type { AdviceRecord } from '../audit/types.js';
+import type { Catalogue } from '../cards/catalogue.js';
 import { kindLabel, unitDisplay } from '../cards/render.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
 
@@ -16,11 +17,15 @@ export interface PageFinding {
   text: string;
   reason?: string;
   direction?: string;
+  /** Responsiveness: the evidence tier (dynamic, static, context). */
+  tier?: string;
   source?: string;
-  values: Array<[string, string]>;
+  /** Derived figures (key, value), shown as they are. */
+  figures: Array<[string, string]>;
   evidence: PageEvidence[];
 }
 export interface PageVerdict {
+  key: 'responsiveness' | 'tolerance' | 'need';
   question: string;
   /** The verdict in words, e.g. "Likely fluid responsive". */
   value: string;
@@ -31,6 +36,8 @@ export interface PageVerdict {
   coverage?: string;
   decidingRules: string[];
   nextTest?: string;
+  /** Conditions assumed because they were not charted. */
+  assumptions: string[];
 }
 export type GapKind = 'missing' | 'stale' | 'set aside' | 'not obtained';
 export interface PageGap { kind: GapKind; what: string; why: string; ref?: string; /** Values the rule saw but could not use (stale, invalid, confounded). */ evidence: PageEvidence[] }
@@ -48,6 +55,8 @@ export interface PageView {
   headline?: string;
   indicator?: string;
   action?: string;
+  /** "Early resuscitation of shock" or "After early resuscitation", when the record says. */
+  phase?: string;
   reasons: string[];
   alternatives: string[];
   verdicts: PageVerdict[];
@@ -63,8 +72,8 @@ export interface PageView {
 
 export interface ViewInput {
   record: AdviceRecord;
-  /** Phrases for the verdict values (cards/catalogue.json `phrases`). */
-  phrases: { responsiveness: Record<string, string>; tolerance: Record<string, string> };
+  /** The wording of the verdicts, headlines, alternatives and tests (cards/catalogue.json). */
+  words: Pick<Catalogue, 'phrases' | 'headlines' | 'alternatives' | 'nextTests'>;
   cautions: readonly string[];
   /** The running service's thresholds and rules version: shown only when the record was made under the same version. */
   running: { rulesVersion: string; thresholds: unknown };
@@ -78,7 +87,11 @@ const ACTION_WORDS: Record<string, string> = {
   'smaller-aliquot': 'Give a smaller amount, reassessing before more',
   'question-bolus': 'Reconsider the bolus',
   'test-first': 'Test responsiveness before giving volume',
+  'resuscitate-and-reassess': 'Resuscitate in steps, reassessing after each',
+  'question-need': 'Ask whether there is anything to treat before giving volume',
 };
+/** The gap codes of a not-assessed finding (assess/common/finding.ts GapKind) as the page groups them. */
+const GAP_WORDS: Record<string, GapKind> = { missing: 'missing', stale: 'stale' };
 
 /** Evidence kinds the card labels do not name: the draft order itself and a fluid given ("fluid:saline"). */
 function evidenceLabel(kind: string): string {
@@ -94,26 +107,19 @@ function evidenceOf(f: Finding): PageEvidence[] {
 function pageFinding(f: Finding): PageFinding {
   return {
     topic: f.topic, ruleId: f.ruleId, assessed: f.status === 'assessed', text: f.text,
-    ...(f.reason ? { reason: f.reason } : {}), ...(f.direction ? { direction: f.direction } : {}), ...(f.source ? { source: f.source } : {}),
-    values: Object.entries(f.values ?? {}).map(([k, v]) => [k, String(v)]),
+    ...(f.reason ? { reason: f.reason } : {}), ...(f.source ? { source: f.source } : {}),
+    ...(f.topic === 'responsiveness' && f.direction ? { direction: f.direction } : {}), ...(f.topic === 'responsiveness' && f.tier ? { tier: f.tier } : {}),
+    figures: Object.entries(f.values ?? {}).map(([k, v]) => [k, String(v)]),
     evidence: evidenceOf(f),
   };
 }
 
-/** "5 of 9 findings assessed" over the findings of one topic. */
-function coverageOf(findings: Finding[], topic: string): string | undefined {
+/** "5 of 9 markers assessed" from the verdict's own count, else "5 of 9 findings assessed" over the topic's findings. */
+function coverageOf(v: Verdict<string> | undefined, findings: Finding[], topic: string): string | undefined {
+  if (v?.coverage) return `${v.coverage.assessed} of ${v.coverage.total} markers assessed`;
   const of = findings.filter((f) => f.topic === topic);
   if (!of.length) return undefined;
   return `${of.filter((f) => f.status === 'assessed').length} of ${of.length} findings assessed`;
-}
-
-/** A field a later Advice shape may carry (confidence, coverage), read without depending on its type. */
-function optionalText(v: unknown, key: string): string | undefined {
-  const x = (v as Record<string, unknown> | undefined)?.[key];
-  if (typeof x === 'string') return x;
-  if (typeof x === 'number') return String(x);
-  if (x && typeof x === 'object' && typeof (x as { level?: unknown }).level === 'string') return (x as { level: string }).level;
-  return undefined;
 }
 
 function capital(s: string): string {
@@ -135,39 +141,47 @@ function gapsOf(rec: AdviceRecord): PageGap[] {
   for (const f of rec.findings) {
     if (f.status !== 'not-assessed') continue;
     const why = f.reason ?? 'not assessed';
-    gaps.push({ kind: NOT_RECORDED.test(why) ? 'missing' : STALE.test(why) ? 'stale' : 'set aside', what: f.text, why, evidence: evidenceOf(f) });
+    const kind: GapKind = f.gap ? (GAP_WORDS[f.gap] ?? 'set aside') : NOT_RECORDED.test(why) ? 'missing' : STALE.test(why) ? 'stale' : 'set aside';
+    gaps.push({ kind, what: f.text, why: f.gap && !GAP_WORDS[f.gap] ? `${f.gap.replace(/-/g, ' ')}: ${why}` : why, evidence: evidenceOf(f) });
   }
   for (const x of rec.snapshot?.excluded ?? []) gaps.push({ kind: 'set aside', what: x.kind ? kindLabel(x.kind) : x.ref, why: `${x.reason}: ${x.detail}`, ref: x.ref, evidence: [] });
   return gaps;
 }
 
 export function toPageView(input: ViewInput): PageView {
-  const { record: rec, phrases } = input;
+  const { record: rec, words } = input;
+  const p = words.phrases;
   const advice = rec.advice;
   const verdicts: PageVerdict[] = [];
   if (advice) {
     const r = advice.responsiveness;
     const t = advice.tolerance;
-    const rCov = optionalText(r, 'coverage') ?? coverageOf(advice.findings, 'responsiveness');
-    const tCov = optionalText(t, 'coverage') ?? coverageOf(advice.findings, 'tolerance');
-    const rConf = optionalText(r, 'confidence');
-    const tConf = optionalText(t, 'confidence');
+    const n = advice.need;
+    const rCov = coverageOf(r, advice.findings, 'responsiveness');
+    const tCov = coverageOf(t, advice.findings, 'tolerance');
     verdicts.push({
-      question: 'Will the heart answer volume? (responsiveness)',
-      value: capital(r ? (phrases.responsiveness[r.value] ?? r.value) : (phrases.responsiveness['unassessed'] ?? 'Not assessed')),
+      key: 'responsiveness', question: 'Will the heart answer volume? (responsiveness)',
+      value: capital(r ? p.responsiveness[r.value] : p.responsiveness.unassessed),
       rationale: r?.rationale ?? 'No responsiveness verdict was made.',
-      ...(rConf ? { confidence: rConf } : {}), ...(rCov ? { coverage: rCov } : {}),
-      decidingRules: r?.decidingRules ?? [], ...(r?.nextTest ? { nextTest: r.nextTest } : {}),
+      ...(r?.confidence ? { confidence: p.confidence[r.confidence] } : {}), ...(rCov ? { coverage: rCov } : {}),
+      decidingRules: r?.decidingRules ?? [], ...(r?.nextTest ? { nextTest: words.nextTests[r.nextTest] } : {}), assumptions: r?.assumptions ?? [],
     });
     verdicts.push({
-      question: 'Can the patient take it? (tolerance)',
-      value: capital(t ? (phrases.tolerance[t.value] ?? t.value) : (phrases.tolerance['unassessed'] ?? 'Not assessed')),
+      key: 'tolerance', question: 'Can the patient take it? (tolerance)',
+      value: capital(t ? p.tolerance[t.value] : p.tolerance.unassessed),
       rationale: t?.rationale ?? 'No tolerance verdict was made.',
-      ...(tConf ? { confidence: tConf } : {}), ...(tCov ? { coverage: tCov } : {}),
-      decidingRules: t?.decidingRules ?? [],
+      ...(t?.confidence ? { confidence: p.confidence[t.confidence] } : {}), ...(tCov ? { coverage: tCov } : {}),
+      decidingRules: t?.decidingRules ?? [], assumptions: t?.assumptions ?? [],
     });
+    if (n) {
+      const nCov = coverageOf(n, advice.findings, 'perfusion');
+      verdicts.push({
+        key: 'need', question: 'Is there anything to treat? (need, perfusion)', value: capital(p.need[n.value]), rationale: n.rationale,
+        ...(nCov ? { coverage: nCov } : {}), decidingRules: n.decidingRules, assumptions: n.assumptions ?? [],
+      });
+    }
   }
-  const rec2 = advice?.recommendation;
+  const order = advice?.recommendation;
   const findings = rec.findings.filter((f) => f.topic !== 'order').map(pageFinding);
   return {
     adviceId: rec.id, service: rec.service, hook: rec.hook,
@@ -176,9 +190,10 @@ export function toPageView(input: ViewInput): PageView {
     recordedAt: rec.recordedAt,
     adviceAt: advice?.now ?? rec.snapshot?.now ?? rec.recordedAt,
     answered: rec.outcome === 'answered',
-    ...(rec2 ? { headline: rec2.headline, indicator: rec2.indicator, action: ACTION_WORDS[rec2.action] ?? rec2.action } : {}),
-    reasons: rec2?.reasons ?? [],
-    alternatives: rec2?.alternatives ?? [],
+    ...(order ? { headline: words.headlines[order.headline] ?? order.headline, indicator: order.indicator, action: ACTION_WORDS[order.action] ?? order.action } : {}),
+    ...(advice?.phase ? { phase: p.phase[advice.phase.value] } : {}),
+    reasons: order?.reasons ?? [],
+    alternatives: (order?.alternatives ?? []).map((a) => words.alternatives[a] ?? a),
     verdicts,
     findings,
     gaps: gapsOf(rec),

@@ -130,7 +130,17 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
     const t = rec.advice.tolerance.value as keyof typeof catalogue.phrases.tolerance;
     expect((await page.textContent('[data-verdict="responsiveness"] .v'))?.trim()).toBe(cap(catalogue.phrases.responsiveness[r]));
     expect((await page.textContent('[data-verdict="tolerance"] .v'))?.trim()).toBe(cap(catalogue.phrases.tolerance[t]));
-    expect((await page.textContent('#headline'))?.trim()).toBe(rec.advice.recommendation.headline);
+    expect((await page.textContent('#headline'))?.trim()).toBe((catalogue.headlines as Record<string, string>)[rec.advice.recommendation.headline]);
+    if (rec.advice.need) {
+      expect((await page.textContent('[data-verdict="need"] .v'))?.trim()).toBe(cap(catalogue.phrases.need[rec.advice.need.value as keyof typeof catalogue.phrases.need]));
+    }
+    if (rec.advice.responsiveness.confidence) {
+      expect(await page.textContent('[data-verdict="responsiveness"]')).toContain(catalogue.phrases.confidence[rec.advice.responsiveness.confidence as keyof typeof catalogue.phrases.confidence]);
+    }
+    if (rec.advice.tolerance.coverage) {
+      const c = rec.advice.tolerance.coverage;
+      expect(await page.textContent('[data-verdict="tolerance"]')).toContain(`${c.assessed} of ${c.total} markers assessed`);
+    }
     expect(await page.textContent('#cautions')).toContain(catalogue.cautions[1]);
   });
 

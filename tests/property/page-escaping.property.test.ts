@@ -4,7 +4,9 @@
 // Unicode UAX #9 for the bidirectional controls, and CommonMark with raw HTML off (markdown-it `html: false`).
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
+import type { Finding } from '../../src/assess/types.js';
 import type { AdviceRecord } from '../../src/audit/types.js';
+import { loadCatalogue } from '../../src/cards/catalogue.js';
 import { h } from '../../src/pages/escape.js';
 import { docsPage, renderAdvicePage } from '../../src/pages/index.js';
 import { SnapshotBuilder } from '../helpers/snapshot-builder.js';
@@ -43,18 +45,24 @@ function recordWith(t: string): AdviceRecord {
   const snapshot = b.build();
   const ev = { ref: `Observation/${t}`, kind: t, value: t, unit: t, effective: '2026-11-20T13:40:00.000Z', ageMinutes: 20 };
   const findings = [
-    { ruleId: 'responsiveness.ppv', topic: 'responsiveness' as const, status: 'assessed' as const, direction: 'for' as const, text: t, evidence: [ev], source: t, values: { [t]: t } },
-    { ruleId: 'tolerance.lungs', topic: 'tolerance' as const, status: 'not-assessed' as const, text: t, reason: t, evidence: [] },
-    { ruleId: 'order.volume', topic: 'order' as const, status: 'assessed' as const, text: t, evidence: [ev], values: { volumeMl: 500 } },
-  ];
+    { ruleId: 'responsiveness.ppv', topic: 'responsiveness', marker: 'ppv', tier: 'dynamic', status: 'assessed', direction: 'for', text: t, evidence: [ev], source: t, values: { [t]: t }, assumptions: [t] },
+    { ruleId: 'tolerance.lungs', topic: 'tolerance', domain: 'lungs', limit: 'none', harmSign: false, contextOnly: false, status: 'not-assessed', gap: 'confounded', text: t, reason: t, evidence: [ev] },
+    { ruleId: 'perfusion.map', topic: 'perfusion', sign: 'map', contextOnly: false, hypoperfusion: true, status: 'assessed', text: t, evidence: [ev] },
+    { ruleId: 'order.volume', topic: 'order', part: 'volume', status: 'assessed', text: t, evidence: [ev], values: { volumeMl: 500 } },
+  ] satisfies Finding[];
   return {
     id: '3f2a6c1e-0b7d-4e59-8a41-6d2c9e7b5f03', recordedAt: '2026-11-20T14:00:01.000Z', service: 'bolus-review-select', hook: 'order-select',
     hookInstance: 'h', patientId: 'p', outcome: 'answered', rulesVersion: 'v', snapshot, findings,
     advice: {
       rulesVersion: 'v', now: snapshot.now, findings, ruleErrors: [],
-      responsiveness: { value: 'likely', rationale: t, decidingRules: [t] },
-      tolerance: { value: 'limited', rationale: t, decidingRules: [t] },
-      recommendation: { action: 'smaller-aliquot', indicator: 'warning', headline: t, reasons: [t], alternatives: [t], cell: 'likely/limited', toleranceAssessed: true, harmSigns: [], decidingRules: [] },
+      responsiveness: { value: 'likely', rationale: t, decidingRules: [t], confidence: 'moderate', assumptions: [t] },
+      tolerance: { value: 'limited', rationale: t, decidingRules: [t], coverage: { assessed: 3, total: 9 } },
+      need: { value: 'present', rationale: t, decidingRules: [t] },
+      phase: { value: 'later', rationale: t, decidingRules: [] },
+      recommendation: {
+        action: 'smaller-aliquot', indicator: 'warning', headline: 'likely/limited', reasons: [t], alternatives: ['albumin'], cell: 'likely/limited',
+        need: 'present', phase: 'later', toleranceAssessed: true, harmSigns: [], decidingRules: [],
+      },
     },
     cards: [], cardKinds: {}, gathering: [{ key: 'vitals', status: 'timeout', detail: t } as never], timings: { totalMs: 1, gatherMs: 1, fhirWaitMs: 1, assessMs: 1 },
   };
@@ -63,7 +71,7 @@ function recordWith(t: string): AdviceRecord {
 const tags = (page: string) => [...page.matchAll(/<\/?([a-zA-Z][\w:-]*)/g)].map((m) => m[1]).join(' ');
 const render = (t: string) => renderAdvicePage({
   record: recordWith(t), zone: 'Europe/Berlin', cautions: [t], running: { rulesVersion: 'v', thresholds: { a: { [t]: t } } },
-  phrases: { responsiveness: { likely: 'likely fluid responsive' }, tolerance: { limited: 'tolerance limited' } },
+  words: loadCatalogue().catalogue,
 });
 
 describe('the reasoning page with hostile client text everywhere', () => {

@@ -5,6 +5,8 @@ import { describe, expect, it } from 'vitest';
 import { clock, clockWithAge, fullClock, zoneOffsetMs } from '../../src/pages/time.js';
 import { trendsOf } from '../../src/pages/trends.js';
 import { toPageView } from '../../src/pages/view.js';
+import type { Finding } from '../../src/assess/types.js';
+import { loadCatalogue } from '../../src/cards/catalogue.js';
 import { SnapshotBuilder } from '../helpers/snapshot-builder.js';
 
 const NOW = '2026-11-20T14:00:00.000Z';
@@ -74,25 +76,37 @@ describe('trendsOf', () => {
 });
 
 describe('toPageView', () => {
-  it('reads verdicts, coverage, gaps by kind and the order findings from a record', () => {
+  const words = loadCatalogue().catalogue;
+  it('reads verdicts (catalogue words), confidence, coverage, gaps by their code and the order findings from a record', () => {
     const snapshot = new SnapshotBuilder({ now: NOW }).exclude({ ref: 'Observation/x', reason: 'unknown-unit', detail: 'unit "mmhg" not known', kind: 'cvp' }).build();
     const findings = [
-      { ruleId: 'r.a', topic: 'responsiveness' as const, status: 'assessed' as const, text: 'PPV 14 %', evidence: [] },
-      { ruleId: 'r.b', topic: 'responsiveness' as const, status: 'not-assessed' as const, text: 'PLR', reason: 'no leg raise recorded', evidence: [] },
-      { ruleId: 'r.c', topic: 'responsiveness' as const, status: 'not-assessed' as const, text: 'CVP', reason: 'stale (age 300 min, window 120 min)', evidence: [] },
-      { ruleId: 'o.v', topic: 'order' as const, status: 'assessed' as const, text: 'Ordered 500 mL', evidence: [] },
-    ];
+      { ruleId: 'r.a', topic: 'responsiveness', marker: 'ppv', tier: 'dynamic', status: 'assessed', text: 'PPV 14 %', evidence: [] },
+      { ruleId: 'r.b', topic: 'responsiveness', marker: 'plr', status: 'not-assessed', gap: 'missing', text: 'PLR', reason: 'no leg raise recorded', evidence: [] },
+      { ruleId: 'r.c', topic: 'responsiveness', marker: 'cvp', status: 'not-assessed', gap: 'stale', text: 'CVP', reason: 'CVP stale (age 300 min, window 120 min)', evidence: [] },
+      { ruleId: 'r.d', topic: 'responsiveness', marker: 'svv', status: 'not-assessed', gap: 'confounded', text: 'SVV', reason: 'vasopressor changed', evidence: [] },
+      { ruleId: 'o.v', topic: 'order', part: 'volume', status: 'assessed', text: 'Ordered 500 mL', evidence: [] },
+    ] satisfies Finding[];
     const v = toPageView({
       record: {
         id: 'a', recordedAt: NOW, service: 's', hook: 'order-select', hookInstance: 'h', outcome: 'answered', rulesVersion: 'v1', snapshot, findings,
-        advice: { rulesVersion: 'v1', now: NOW, findings, ruleErrors: [], responsiveness: { value: 'likely', rationale: 'PPV high', decidingRules: ['r.a'], confidence: 'moderate' } as never },
+        advice: {
+          rulesVersion: 'v1', now: NOW, findings, ruleErrors: [],
+          responsiveness: { value: 'likely', rationale: 'PPV high', decidingRules: ['r.a'], confidence: 'moderate' },
+          tolerance: { value: 'not-known', rationale: 'too little data', decidingRules: [], coverage: { assessed: 1, total: 9 } },
+        },
         cards: [], cardKinds: {}, gathering: [], timings: { totalMs: 0, gatherMs: 0, fhirWaitMs: 0, assessMs: 0 },
       },
-      phrases: { responsiveness: { likely: 'likely fluid responsive' }, tolerance: { unassessed: 'tolerance not assessed' } },
-      cautions: ['c'], running: { rulesVersion: 'v2', thresholds: {} },
+      words, cautions: ['c'], running: { rulesVersion: 'v2', thresholds: {} },
     });
-    expect(v.verdicts.map((d) => [d.value, d.coverage, d.confidence])).toEqual([['Likely fluid responsive', '1 of 3 findings assessed', 'moderate'], ['Tolerance not assessed', undefined, undefined]]);
-    expect(v.gaps.map((g) => g.kind)).toEqual(['missing', 'stale', 'set aside']);
+    expect(v.verdicts.map((d) => [d.key, d.value, d.coverage, d.confidence])).toEqual([
+      ['responsiveness', 'Likely fluid responsive', '1 of 4 findings assessed', words.phrases.confidence.moderate],
+      ['tolerance', 'Tolerance not known', '1 of 9 markers assessed', undefined],
+    ]);
+    expect(v.gaps.map((g) => [g.kind, g.why])).toEqual([
+      ['missing', 'no leg raise recorded'], ['stale', 'CVP stale (age 300 min, window 120 min)'], ['set aside', 'confounded: vasopressor changed'],
+      ['set aside', 'unknown-unit: unit "mmhg" not known'],
+    ]);
+    expect(v.findings.find((f) => f.ruleId === 'r.a')?.tier).toBe('dynamic');
     expect(v.order.map((f) => f.text)).toEqual(['Ordered 500 mL']);
     expect(v.thresholds).toBeUndefined(); // another rules version than the running one
   });
