@@ -78,7 +78,7 @@ ${v.headline ? html`<p class="headline ${v.indicator ?? 'info'}" id="headline">$
 ${v.action ? html`<p><strong>Advice:</strong> ${v.action}.${v.phase ? html` <span class="meta">(${v.phase})</span>` : ''}</p>` : ''}
 ${v.answered ? '' : html`<p>The advice could not be given: required data could not be obtained (see below).</p>`}
 <div class="verdicts">${v.verdicts.map((d) => html`<div class="verdict" data-verdict="${d.key}"><p class="q">${d.question}</p><p class="v">${d.value}</p><p>${d.rationale}</p><dl>
-${d.confidence ? html`<dt>Confidence</dt><dd>${d.confidence}</dd>` : ''}${d.coverage ? html`<dt>Coverage</dt><dd>${d.coverage}</dd>` : ''}${d.nextTest ? html`<dt>Test to settle or confirm it</dt><dd>${d.nextTest}</dd>` : ''}${d.assumptions.length ? html`<dt>Assumed</dt><dd>${d.assumptions.join('; ')}</dd>` : ''}${
+${d.confidence ? html`<dt>Confidence</dt><dd>${d.confidence}</dd>` : ''}${d.coverage ? html`<dt>Coverage</dt><dd>${d.coverage}</dd>` : ''}${d.nextTest ? html`<dt>Next test</dt><dd>${d.nextTest}</dd>` : ''}${d.assumptions.length ? html`<dt>Assumed</dt><dd>${d.assumptions.join('; ')}</dd>` : ''}${
     d.decidingRules.length ? html`<dt>Decided by</dt><dd>${d.decidingRules.map((r, j) => html`${j ? ', ' : ''}<code>${r}</code>`)}</dd>` : ''}</dl></div>`)}</div>
 ${v.reasons.length ? html`<h3>Why</h3><ul>${v.reasons.map((r) => html`<li>${r}</li>`)}</ul>` : ''}
 ${v.alternatives.length ? html`<h3>Options to consider instead of, or before, the bolus</h3><ul>${v.alternatives.map((r) => html`<li>${r}</li>`)}</ul>` : ''}

@@ -22,7 +22,7 @@ a { color: var(--info); }
 .verdict { border: 1px solid var(--line); padding: 0.6rem 0.75rem; background: var(--soft); }
 .verdict .q { font-size: 0.85rem; color: var(--muted); margin: 0; }
 .verdict .v { font-size: 1.2rem; font-weight: 700; margin: 0.15rem 0 0.3rem; }
-.verdict dl { display: grid; grid-template-columns: max-content 1fr; gap: 0.1rem 0.6rem; margin: 0.3rem 0 0; font-size: 0.9rem; }
+.verdict dl { display: grid; grid-template-columns: minmax(5.5rem, max-content) 1fr; gap: 0.1rem 0.6rem; margin: 0.3rem 0 0; font-size: 0.9rem; }
 .verdict dt { color: var(--muted); }
 .verdict dd { margin: 0; }
 table { border-collapse: collapse; width: 100%; margin: 0.4rem 0 0.8rem; font-size: 0.9rem; }
