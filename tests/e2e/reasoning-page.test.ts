@@ -4,7 +4,7 @@
 // point and bar against the stored snapshot (value, time, and the x position on the shared time axis); times in
 // the site zone (Intl, the ICU time-zone data, as the outside reference); the tampered-link, expired-link and
 // unknown-id answers; the CSP (W3C CSP Level 3, frame-ancestors); screenshots saved to docs/img/.
-// scripts/ensure-chromium.sh (run by `npm test`) installs chromium when it is missing; without it this file fails.
+// tests/setup/ensure-chromium.sh (run by `npm test`) installs chromium when it is missing; without it this file fails.
 import { createHmac } from 'node:crypto';
 import { existsSync, mkdirSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
@@ -24,7 +24,9 @@ const ZONE = 'Europe/Berlin';
 const EHR = 'https://ehr.tern-hospital.example';
 const FHIR_TOKEN = 'e2e-pages-fhir-token';
 const AUDIT_TOKEN = 'e2e-pages-audit-token-0123456789';
-const IMG = fileURLToPath(new URL('../../docs/img/', import.meta.url));
+// Screenshots go to tests/e2e/out/ (not tracked) on every run, and to docs/img/ (the pictures the docs show) only
+// with TIDEMARK_UPDATE_SCREENSHOTS=1, so that a test run leaves the work tree as it found it.
+const IMG = fileURLToPath(new URL(process.env['TIDEMARK_UPDATE_SCREENSHOTS'] === '1' ? '../../docs/img/' : './out/', import.meta.url));
 const PICKED = ['responder-poor-tolerance', 'bolus-answered', 'tidal-volume-challenge'] as const;
 
 let fhir: EmbeddedFhir;
@@ -33,7 +35,7 @@ let browser: Browser;
 const runs = new Map<string, ScenarioRun>();
 
 beforeAll(async () => {
-  if (!existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: run scripts/ensure-chromium.sh (npm test does)`);
+  if (!existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: run tests/setup/ensure-chromium.sh (npm test does)`);
   fhir = await startEmbeddedFhir({ requireToken: FHIR_TOKEN });
   svc = await startService(
     { TIDEMARK_AUDIT_TOKEN: AUDIT_TOKEN, TIDEMARK_LINK_KEY: KEY, TIDEMARK_TIME_ZONE: ZONE, TIDEMARK_FRAME_ANCESTORS: EHR },
