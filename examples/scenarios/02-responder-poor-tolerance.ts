@@ -4,7 +4,7 @@
  * PPV 15 % is valid. But albumin is 21 g/L, the stay has run +8.6 L, weight is up 12 %, there is grade 3
  * oedema and a B-pattern in 5 of 8 lung regions. Asked on order-sign.
  *
- * Expectation changed with assessment v2 (clinical-references §12): the B-pattern is charted without its side, so it
+ * Expectation changed with assessment v2 (clinical-references docs/clinical-logic): the B-pattern is charted without its side, so it
  * cannot show diffuse (bilateral) lung water and is capped at a moderate limit, not a harm sign; tolerance is still
  * poor (+8.6 L is 12.6 % of the admission weight, ≥ 10 % in an adult: Bouchard 2009), but the card is a warning,
  * not critical. Albumin 21 g/L is context only.

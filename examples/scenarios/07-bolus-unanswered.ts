@@ -3,7 +3,7 @@
  * on a steady norepinephrine infusion. 500 mL of sodium chloride 0.9 % an hour ago left MAP (+1) and heart
  * rate unchanged; the IVC barely distends with the ventilator (Barbier index 4.5 %). Asked on order-sign.
  *
- * With assessment v2 (§12) both are static markers charted hourly: they agree, so responsiveness is "unlikely" with
+ * With assessment v2 (docs/clinical-logic) both are static markers charted hourly: they agree, so responsiveness is "unlikely" with
  * LOW confidence, and the card asks for a test before more volume rather than treating the question as settled.
  */
 import * as b from '../lib/fhir-builders.js';

@@ -5,7 +5,7 @@
  *   tolerance/       adequate | limited | poor | not known (a CVP that decided responsiveness counts once);
  *   order/           the reading of each selected fluid order;
  *   advice/          the matrix that joins them, in codes.
- * All on the common rule core (common/). Failures are isolated (conventions §6): a group that throws is recorded in
+ * All on the common rule core (common/). Failures are isolated: a group that throws is recorded in
  * ruleErrors and the other findings still count.
  */
 import type { PatientSnapshot } from '../snapshot/types.js';

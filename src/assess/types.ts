@@ -47,6 +47,6 @@ export interface Advice {
   phase?: Verdict<PhaseValue>;
   /** For order hooks with a fluid bolus selected: what the advice matrix recommends. */
   recommendation?: OrderRecommendation;
-  /** Errors raised by single rules; the other findings still count (conventions §6). */
+  /** Errors raised by single rules; the other findings still count. */
   ruleErrors: RuleError[];
 }

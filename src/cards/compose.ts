@@ -27,7 +27,7 @@ export function aliquotMl(orderedMl: number): number | undefined {
   return v < orderedMl ? v : undefined;
 }
 
-/** The aliquot keeps the ordered rate (§12: 500 mL over 30 min → 250 mL over 15 min): its duration scales with its volume. */
+/** The aliquot keeps the ordered rate (docs/clinical-logic: 500 mL over 30 min → 250 mL over 15 min): its duration scales with its volume. */
 export function aliquotDurationMin(orderedMl: number, orderedMin: number | undefined, aliquot: number): number | undefined {
   if (orderedMin === undefined || !(orderedMin > 0) || !(orderedMl > 0)) return undefined;
   return Math.max(1, Math.round((orderedMin * aliquot) / orderedMl));
@@ -138,7 +138,7 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
       break;
     case 'smaller-aliquot': {
       const s = aliquot !== undefined ? smallerAliquot(order, aliquot, aliquotMin, T['smaller-aliquot'], vars) : undefined;
-      // A critical card never recommends giving (§12).
+      // A critical card never recommends giving (docs/clinical-logic).
       out.push(s ? (critical ? s : { ...s, isRecommended: true }) : undefined, reassess());
       if (next) out.push(test(next));
       if (critical) out.push(withdraw());

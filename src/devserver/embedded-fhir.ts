@@ -4,7 +4,7 @@
  * behind express on 127.0.0.1. Never for real patients: no authentication beyond an optional fixed token, no
  * persistence, no validation on write.
  *
- * The server's known quirks (../shared/deps-notes.md §3) are handled here, at the edge, so that Tidemark's
+ * The server's known quirks (bare ids, string sort of dates, no paging links) are handled here, at the edge, so that Tidemark's
  * rules and gathering see what a conforming server would send:
  * - searchset Bundles come without `link`: we add `self`, and `next` (with `_offset`) when a page is full, so
  *   paging is exercised as against a hospital's server;

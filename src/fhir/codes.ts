@@ -62,7 +62,7 @@ export const KIND_BOUNDS: Record<NumericKind, readonly [number, number]> = {
 
 export interface CodeRef { system: string; code: string; display: string }
 
-/** Observation codes → numeric kind. LOINC first; our own codes where LOINC has none (§10). */
+/** Observation codes → numeric kind. LOINC first; our own codes where LOINC has none (docs/codes.md). */
 export const OBSERVATION_CODES: ReadonlyArray<CodeRef & { kind: NumericKind }> = [
   { system: LOINC, code: '8867-4', display: 'Heart rate', kind: 'heartRate' },
   { system: LOINC, code: '8480-6', display: 'Systolic blood pressure', kind: 'systolicBp' },

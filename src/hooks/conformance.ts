@@ -1,6 +1,6 @@
 /**
  * A CDS Hooks 2.0 response check of ours: the response schema from the spec (schemas.ts) plus its invariants
- * (the 3.0 FSH invariants, condensed in ../shared/cds-hooks-2.0.md §4) and the JSON rule "omit optional
+ * (the 3.0 FSH invariants) and the JSON rule "omit optional
  * fields: never null, "", [] or {}" (except `cards: []`). Used by the tests over every card the service makes.
  */
 import { hookResponseSchema } from './schemas.js';

@@ -1,6 +1,6 @@
 /**
  * evaluateHook: one CDS Hooks call from parsed body to audited response. The HTTP route only parses and
- * serialises (conventions §1); I/O happens in gather (FHIR) and the audit store, the rest is pure.
+ * serialises; I/O happens in gather (FHIR) and the audit store, the rest is pure.
  */
 import { randomUUID } from 'node:crypto';
 import type { FhirResource } from 'fhir/r4.js';

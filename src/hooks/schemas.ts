@@ -1,6 +1,6 @@
 /**
- * CDS Hooks 2.0 wire contracts, one zod schema each (conventions §3). Types come from z.infer.
- * Source: CDS Hooks 2.0 (STU2), https://cds-hooks.hl7.org/2.0/ — condensed in ../shared/cds-hooks-2.0.md.
+ * CDS Hooks 2.0 wire contracts, one zod schema each. Types come from z.infer.
+ * Source: CDS Hooks 2.0 (STU2), https://cds-hooks.hl7.org/2.0/.
  */
 import { z } from 'zod';
 import { httpsOrLoopbackUrl } from '../auth/issuer-config.js';

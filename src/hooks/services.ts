@@ -1,5 +1,5 @@
 /**
- * The service registry (conventions §7): each service declares its hook, its prefetch templates and which
+ * The service registry: each service declares its hook, its prefetch templates and which
  * of them it cannot do without. Discovery is generated from this list; code never branches on service ids.
  */
 import { CODED_OBSERVATION_CODES, DYNAMIC_TEST_CODES, OBSERVATION_CODES, type NumericKind } from '../fhir/codes.js';

@@ -34,7 +34,7 @@ export const ADVICE_CASES = {
   proceed: withExtra({
     hemodynamics: [plrPositive, ...normalVenousAndKidneys], labs: [albumin(38, 'alb-ok')], vitals: [goodLungs[0] as FhirResource], ventilation: [goodLungs[1] as FhirResource],
   }),
-  /** Positive PLR, SpO2/FiO2 153: tolerance limited → smaller aliquot (albumin 22 g/L is context only, §12). */
+  /** Positive PLR, SpO2/FiO2 153: tolerance limited → smaller aliquot (albumin 22 g/L is context only, docs/clinical-logic). */
   'smaller-aliquot': withExtra({ hemodynamics: [plrPositive], labs: [albumin(22, 'alb-low')], vitals: [poorOxygenation[0] as FhirResource], ventilation: [poorOxygenation[1] as FhirResource] }),
   /** Positive PLR, EVLWI 14 mL/kg: poor tolerance with lung water → critical. */
   critical: withExtra({ hemodynamics: [plrPositive, b.numeric('evlwi-1', PID, 'evlwi', 14, t(60))], labs: [albumin(24, 'alb-low2')] }),

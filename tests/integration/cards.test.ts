@@ -17,7 +17,7 @@ afterAll(async () => s.stop());
 
 const cases = Object.keys(ADVICE_CASES) as AdviceCase[];
 const expected: Record<AdviceCase, { action: string; indicator: string; firstLabel: RegExp; types: string[] }> = {
-  // No flow monitor on the chart: a mini fluid challenge with VTI by echo (§12), following the next-test kind.
+  // No flow monitor on the chart: a mini fluid challenge with VTI by echo (docs/clinical-logic), following the next-test kind.
   'test-first': { action: 'test-first', indicator: 'info', firstLabel: /mini fluid challenge/i, types: ['create', 'create', 'delete'] },
   proceed: { action: 'proceed-and-reassess', indicator: 'info', firstLabel: /reassessment/i, types: ['create'] },
   'smaller-aliquot': { action: 'smaller-aliquot', indicator: 'warning', firstLabel: /^Give 250 mL over 15 min instead of 500 mL/, types: ['update', 'create'] },
@@ -51,7 +51,7 @@ describe('each advice cell gives a conformant card with real FHIR suggestions', 
     expect(card.suggestions.map((x: any) => x.actions[0].type)).toEqual(want.types);
     expect(card.suggestions[0].label).toMatch(want.firstLabel);
     expect(card.suggestions.filter((x: any) => x.isRecommended).length).toBeLessThanOrEqual(1);
-    // A critical card never recommends giving (§12).
+    // A critical card never recommends giving (docs/clinical-logic).
     if (card.indicator === 'critical') expect(card.suggestions.filter((x: any) => x.isRecommended && x.actions[0].type === 'update')).toEqual([]);
     for (const sug of card.suggestions) {
       for (const a of sug.actions) {
@@ -65,7 +65,7 @@ describe('each advice cell gives a conformant card with real FHIR suggestions', 
           expect(a.resource.id).toBe('draft-bolus-1');
           expect(a.resource.dosageInstruction[0].doseAndRate[0].doseQuantity).toEqual({ value: 250, unit: 'mL', system: 'http://unitsofmeasure.org', code: 'mL' });
           expect(a.resource.note.at(-1).text).toMatch(/Reassess/);
-          // The aliquot keeps the ordered rate: 500 mL over 30 min → 250 mL over 15 min (§12).
+          // The aliquot keeps the ordered rate: 500 mL over 30 min → 250 mL over 15 min (docs/clinical-logic).
           expect(a.resource.dosageInstruction[0].timing.repeat).toMatchObject({ duration: 15, durationUnit: 'min' });
         }
       }
@@ -154,7 +154,7 @@ describe('patient-view overview', () => {
 
 describe('stale data only', () => {
   it('says so in the summary instead of giving a verdict-based headline, and lists each stale marker with its age', async () => {
-    // 13 h later: the vitals (window 90 min) and even the lactate (12 h, §12) are stale.
+    // 13 h later: the vitals (window 90 min) and even the lactate (12 h, docs/clinical-logic) are stale.
     const late = await startService({}, { now: () => new Date(NOW.getTime() + 13 * 3600_000) });
     try {
       const r = await post(`${late.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['test-first']) }));

@@ -249,7 +249,7 @@ const opposite = (v: Responsiveness) => (v === 'likely' ? 'against' : 'for');
 
 /**
  * The removed data spoke against `after`: it supported an opposing finding, confounded one, set one aside (an event
- * since), or made one doubtful (a charted raised IAP makes a high PPV doubtful; uncharted, IAP is assumed normal, §12).
+ * since), or made one doubtful (a charted raised IAP makes a high PPV doubtful; uncharted, IAP is assumed normal, docs/clinical-logic).
  */
 function spokeAgainst(findings: readonly Finding[], removed: Set<string>, after: Responsiveness): boolean {
   return findings.some((f) => f.topic === 'responsiveness' && f.evidence.some((e) => removed.has(e.ref)) && (

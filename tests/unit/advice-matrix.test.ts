@@ -65,7 +65,7 @@ describe('the matrix, later phase, with signs of hypoperfusion', () => {
   });
 });
 
-describe('responsiveness is not an indication (§12)', () => {
+describe('responsiveness is not an indication (docs/clinical-logic)', () => {
   it('responsive with no sign of hypoperfusion → question-need, never a give action', () => {
     const rec = advise({ n: 'absent' });
     expect(rec).toMatchObject({ action: 'question-need', headline: 'no-need/responsive', indicator: 'warning', alternatives: ['perfusion-check'] });
@@ -79,7 +79,7 @@ describe('responsiveness is not an indication (§12)', () => {
   });
 });
 
-describe('early resuscitation (§12; SSC 2021)', () => {
+describe('early resuscitation (docs/clinical-logic; SSC 2021)', () => {
   it('never a withdrawal: resuscitate-and-reassess whatever the responsiveness', () => {
     for (const r of [rv('likely', 'high'), rv('indeterminate'), rv('unlikely', 'high')]) {
       expect(advise({ r, ph: 'early-resuscitation' }).action).toBe('resuscitate-and-reassess');

@@ -29,7 +29,7 @@ describe('MAP against the 65 mmHg target (SSC 2021)', () => {
     const f = map(new SnapshotBuilder().vitals({ sbp: 120, dbp: 60 }, { ageMin: 5 }));
     expect(f.values).toMatchObject({ mapMmHg: 80, measured: false });
   });
-  it('fresh up to 90 min (§12: hourly vitals validated late), stale after; absent', () => {
+  it('fresh up to 90 min (docs/clinical-logic: hourly vitals validated late), stale after; absent', () => {
     expect(map(new SnapshotBuilder().measure('meanBp', 60, { ageMin: 90 })).status).toBe('assessed');
     expect(map(new SnapshotBuilder().measure('meanBp', 60, { ageMin: 91 }))).toMatchObject({ gap: 'stale', reason: 'MAP stale (age 91 min, window 90 min)' });
     expect(map(new SnapshotBuilder()).gap).toBe('missing');
@@ -52,7 +52,7 @@ describe('capillary refill (ANDROMEDA-SHOCK: > 3 s abnormal)', () => {
   it.each([[2, false], [3, false], [3.1, true], [6, true]] as const)('CRT %s s → sign %s', (v, s) => {
     expect(crt(v).hypoperfusion).toBe(s);
   });
-  it('fresh up to 120 min (§12), stale after', () => {
+  it('fresh up to 120 min (docs/clinical-logic), stale after', () => {
     expect(crt(4, 120).status).toBe('assessed');
     expect(crt(4, 121).gap).toBe('stale');
   });

@@ -89,7 +89,7 @@ describe('tiers and confidence', () => {
     expect(v.value).toBe('indeterminate');
     expect(v.rationale).toBe('No usable marker of fluid responsiveness.');
   });
-  it('a PLR taken before the latest 250 mL bolus is set aside (§12, events make evidence old)', () => {
+  it('a PLR taken before the latest 250 mL bolus is set aside (docs/clinical-logic, events make evidence old)', () => {
     const b = plrFor(new SnapshotBuilder()).fluid({ volumeMl: 250, startAgeMin: 8, endAgeMin: 2 });
     const r = run(b);
     expect(r.verdict.value).toBe('indeterminate');

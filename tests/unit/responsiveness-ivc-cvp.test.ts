@@ -1,10 +1,10 @@
 /**
  * Truth tables for 'responsiveness.ivc' and 'responsiveness.cvp'.
  * IVC, spontaneous breathing: collapse > 40 % → for; Dmax > 2.1 and collapse < 10 % → against; otherwise neutral; all
- * static (they only corroborate, §12). Controlled ventilation without
+ * static (they only corroborate, docs/clinical-logic). Controlled ventilation without
  * effort: Barbier > 18 % (or Feissel > 12 %) → for, else against (static). Fresh when ≤ 360 min.
  * CVP: ≤ 3 mmHg → for, ≥ 12 → against, between → neutral "not evidence either way"; static. Fresh ≤ 120 min (one window
- * for both questions, §12).
+ * for both questions, docs/clinical-logic).
  */
 import { describe, expect, it } from 'vitest';
 import { assessResponsiveness, responsivenessThresholdsSchema, type ResponsivenessThresholds } from '../../src/assess/responsiveness/index.js';

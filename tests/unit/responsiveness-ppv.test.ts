@@ -3,7 +3,7 @@
  * of the error (docs/clinical-logic/index.md; Michard, Chemla, Teboul, Crit Care 2015;19:144; Monnet, Marik, Teboul, Ann
  * Intensive Care 2016;6:111, Table 2). Boundaries (docs/clinical-logic/responsiveness.md): PPV ≥ 13 % for, < 9 %
  * against, 9 ≤ PPV < 13 grey zone; SVV ≥ 11.6 for, < 9.7 against; Vt ≥ 8 mL/kg PBW; HR/RR strictly > 3.6; IAP < 12
- * mmHg; fresh when age ≤ 60 min (§12) and not set aside by a later fluid or vasoactive change.
+ * mmHg; fresh when age ≤ 60 min (docs/clinical-logic) and not set aside by a later fluid or vasoactive change.
  */
 import { describe, expect, it } from 'vitest';
 import type { ResponsivenessFinding as Finding } from '../../src/assess/common/finding.js';
@@ -71,13 +71,13 @@ describe('PPV present, absent, stale, invalid', () => {
     expect(f).toMatchObject({ reason: 'no PPV recorded', gap: 'missing' });
     expect(f.values?.freshness).toBe('missing');
   });
-  it('age 60 min is fresh (≤ window, §12), 61 min is stale with age and window in the reason', () => {
+  it('age 60 min is fresh (≤ window, docs/clinical-logic), 61 min is stale with age and window in the reason', () => {
     expect(ppv(patient(), 16, 60).status).toBe('assessed');
     const f = ppv(patient(), 16, 61);
     expect(f).toMatchObject({ status: 'not-assessed', gap: 'stale', reason: 'PPV stale (age 61 min, window 60 min)' });
     expect(f.evidence).toHaveLength(1);
   });
-  it('a PPV charted before the latest fluid of ≥ 100 mL is set aside with that reason (§12); one after it counts', () => {
+  it('a PPV charted before the latest fluid of ≥ 100 mL is set aside with that reason (docs/clinical-logic); one after it counts', () => {
     const before = ppv(patient().fluid({ volumeMl: 250, startAgeMin: 20, endAgeMin: 10 }), 16, 30);
     expect(before).toMatchObject({ status: 'not-assessed', gap: 'set-aside' });
     expect(before.reason).toMatch(/taken before 250 mL .* started at/);
@@ -101,7 +101,7 @@ describe('PPV present, absent, stale, invalid', () => {
   });
 });
 
-describe('PPV validity by the direction of the error (§12)', () => {
+describe('PPV validity by the direction of the error (docs/clinical-logic)', () => {
   it.each([
     ['spontaneous breathing', { mode: 'spontaneous' }, /spontaneous breathing/],
     ['effort on the ventilator', { mode: 'controlled-with-effort' }, /spontaneous breathing effort/],
@@ -143,7 +143,7 @@ describe('PPV validity by the direction of the error (§12)', () => {
     expect(f).toMatchObject({ status: 'assessed', direction: 'for' });
     expect(f.assumptions).toEqual(['chest status not recorded: assumed closed', 'intra-abdominal pressure not recorded: assumed normal']);
   });
-  it('a rhythm record other than sinus within 12 h voids it even when the latest is sinus (§12)', () => {
+  it('a rhythm record other than sinus within 12 h voids it even when the latest is sinus (docs/clinical-logic)', () => {
     const b = patient().coded('heartRhythm', 'atrial-fibrillation', { ageMin: 300 });
     expect(ppv(b, 18).reason).toMatch(/rhythm atrial-fibrillation recorded at/);
     expect(ppv(patient().coded('heartRhythm', 'atrial-fibrillation', { ageMin: 721 }), 18).status).toBe('assessed');
@@ -200,7 +200,7 @@ describe('SVV (Marik 2009 threshold 11.6 %, same validity conditions)', () => {
   });
 });
 
-describe('right-ventricular failure and pulmonary hypertension (false positives: Mahjoub 2009 [M]; §12)', () => {
+describe('right-ventricular failure and pulmonary hypertension (false positives: Mahjoub 2009 [M]; docs/clinical-logic)', () => {
   const withCondition = (system: string, code: string) => patient().condition({ codings: [{ system, code }], clinicalStatus: 'active' });
   it('pulmonary hypertension coded ICD-10-CM I27.21: a high PPV is doubtful, a low one still argues against', () => {
     const b = withCondition('http://hl7.org/fhir/sid/icd-10-cm', 'I27.21');

@@ -30,7 +30,7 @@ describe('tolerance.spo2-fio2', () => {
   it('absent FiO2 → not assessed (room air is not assumed)', () => {
     expect(spo2Fio2Rule(s(m('spo2', 92, 10)), NOW, T)[0]!.reason).toBe('no FiO2 recorded');
   });
-  it('FiO2 is carried forward until changed, up to 12 h (§12); a later FiO2 is not the one in force', () => {
+  it('FiO2 is carried forward until changed, up to 12 h (docs/clinical-logic); a later FiO2 is not the one in force', () => {
     expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 8 * 60)), NOW, T)[0]!).toMatchObject({ status: 'assessed', values: { fio2Percent: 50 } });
     expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 12 * 60 + 11)), NOW, T)[0]!.status).toBe('not-assessed');
     expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 40, 300), m('fio2', 60, 60)), NOW, T)[0]!.values).toMatchObject({ fio2Percent: 60 });
@@ -100,7 +100,7 @@ describe('tolerance.oxygen-need', () => {
 
 describe('tolerance.lung-ultrasound', () => {
   const run = (n?: number, ago = 60, unit?: string) => lungUltrasoundRule(s(...(n === undefined ? [] : [m('bLineRegions', n, ago, unit ? { unit } : {})])), NOW, T)[0]!;
-  // With the side not charted, diffuse lung water (≥ 2 regions on EACH side, Volpicelli 2012) cannot be shown: capped at moderate (§12).
+  // With the side not charted, diffuse lung water (≥ 2 regions on EACH side, Volpicelli 2012) cannot be shown: capped at moderate (docs/clinical-logic).
   it.each([[0, 'none', false], [1, 'none', false], [2, 'moderate', false], [3, 'moderate', false], [4, 'moderate', false], [8, 'moderate', false]])(
     '%s regions, side unknown → %s (harm sign %s)', (n, l, sign) => {
       const f = run(n);

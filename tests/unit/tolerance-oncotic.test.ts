@@ -6,7 +6,7 @@ import { limit, m, NOW, snapshot, T, tol } from '../helpers/tolerance-fixtures.j
 
 describe('tolerance.albumin', () => {
   const run = (...ms: Parameters<typeof m>[]) => albuminRule(snapshot({ measurements: ms.map((a) => m(...a)) }), NOW, T)[0]!;
-  it('context only, never a limit (§12: ALBIOS used 30 g/L as a replacement target): 27 g/L named low', () => {
+  it('context only, never a limit (docs/clinical-logic: ALBIOS used 30 g/L as a replacement target): 27 g/L named low', () => {
     const f = run(['albumin', 27, 300]);
     expect(tol(f)).toMatchObject({ status: 'assessed', contextOnly: true, limit: 'none' });
     expect(f.values!['band']).toBe('low');
@@ -25,7 +25,7 @@ describe('tolerance.albumin', () => {
   it('absent → not assessed', () => {
     expect(run()).toMatchObject({ status: 'not-assessed', reason: 'no serum albumin recorded' });
   });
-  it('fresh up to 72 h (§12); older does not count', () => {
+  it('fresh up to 72 h (docs/clinical-logic); older does not count', () => {
     expect(run(['albumin', 20, 3 * 1440]).status).toBe('assessed');
     const f = run(['albumin', 20, 3 * 1440 + 1]);
     expect(f.status).toBe('not-assessed');

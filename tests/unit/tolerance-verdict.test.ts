@@ -48,7 +48,7 @@ describe('toleranceVerdict (docs/clinical-logic/index.md, "Tolerance")', () => {
   it('a context finding can never limit, whatever limit it was given', () => {
     expect(toleranceVerdict([f('ctx', 'balance', 'severe', true)], T).value).toBe('not-known');
   });
-  it('a number counts once: a CVP finding that decided responsiveness becomes context (§12)', () => {
+  it('a number counts once: a CVP finding that decided responsiveness becomes context (docs/clinical-logic)', () => {
     const cvp = assessed({ ruleId: 'tolerance.cvp', domain: 'venous', limit: 'moderate', text: 'CVP 14 mmHg', evidence: [], source: 'test', uses: ['cvp'] });
     const [counted] = countOnce([cvp], ['cvp']);
     expect(counted).toMatchObject({ contextOnly: true, limit: 'none' });

@@ -1,6 +1,6 @@
 /**
- * Central venous pressure: one reading, one window (windows.cvpMin, §12) for both questions, and the two findings
- * made from it. A number counts once (§12): when the responsiveness verdict rests on the CVP, the tolerance finding
+ * Central venous pressure: one reading, one window (windows.cvpMin, docs/clinical-logic) for both questions, and the two findings
+ * made from it. A number counts once (docs/clinical-logic): when the responsiveness verdict rests on the CVP, the tolerance finding
  * from the same CVP is turned into context (tolerance/verdict.ts, countOnce).
  *   responsiveness.cvp — extremes only, static (corroborates, never decides alone): ≤ 3 mmHg for, ≥ 12 mmHg against
  *                        (common practice §11; no CVP value predicts response well: Eskesen TG et al., Intensive Care

@@ -11,6 +11,8 @@ import { vasoactiveChangesBetween } from './vasoactive-changes.js';
 
 export interface EvidenceEvent {
   kind: 'fluid' | 'vasoactive-change';
+  /** For a vasoactive change: which kind (a start sorts before a rate change at the same moment). */
+  change?: 'started' | 'stopped' | 'rate changed';
   at: string;
   atMs: number;
   /** "500 mL balanced-crystalloid started 2026-…", "norepinephrine rate changed at …". */
@@ -27,7 +29,14 @@ export function evidenceEvents(s: PatientSnapshot, now: Date, fluidEventMinMl: n
     out.push({ kind: 'fluid', at: f.start, atMs: timeMs(f.start), text: `${fmt(f.volumeMl)} mL ${f.display || 'IV fluid'} started at ${f.start}`, evidence: evidenceOfFluid(f, now) });
   }
   for (const c of vasoactiveChangesBetween(s.vasoactives, -Infinity, now.getTime())) {
-    out.push({ kind: 'vasoactive-change', at: c.at, atMs: c.atMs, text: `${c.drug.drug} ${c.kind} at ${c.at}`, evidence: evidenceOfVasoactive(c.drug, now) });
+    out.push({ kind: 'vasoactive-change', change: c.kind, at: c.at, atMs: c.atMs, text: `${c.drug.drug} ${c.kind} at ${c.at}`, evidence: evidenceOfVasoactive(c.drug, now) });
   }
-  return out.sort((a, b) => b.atMs - a.atMs || compareText(a.evidence.ref, b.evidence.ref));
+  // Ties: by reference, then a start before a rate change, so that the event named does not depend on whether a
+  // second record of the same moment exists (a rate change is derived from a pair of records).
+  return out.sort((a, b) => b.atMs - a.atMs || compareText(a.evidence.ref, b.evidence.ref) || rank(a) - rank(b) || compareText(a.text, b.text));
+}
+
+const CHANGE_RANK = { started: 0, stopped: 1, 'rate changed': 2 } as const;
+function rank(e: EvidenceEvent): number {
+  return e.change === undefined ? -1 : CHANGE_RANK[e.change];
 }

@@ -1,7 +1,7 @@
 /**
  * The one Rule shape and the one runner. A rule is a pure function of a context (snapshot, now, thresholds)
  * returning its findings; a rule that throws is caught once, recorded in ruleErrors with its id, leaves a
- * not-assessed finding of its topic, and the other rules still count (conventions §6).
+ * not-assessed finding of its topic, and the other rules still count.
  */
 import type { PatientSnapshot } from '../../snapshot/types.js';
 import type { EvidenceEvent } from './events.js';

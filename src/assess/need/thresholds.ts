@@ -19,7 +19,7 @@ export const needThresholdsSchema = z.strictObject({
   vasopressorRiseLookbackMin: z.number().int().min(10).max(1440).default(120),
   /** Shock index strictly above this is raised; shown as context only (Koch E et al., Open Access Emerg Med 2019;11:179). */
   shockIndexHigh: z.number().min(0).max(5).default(1.0),
-  /** Early resuscitation: within this many hours of the onset of shock (§12: "first hours"; SSC 2021 judges the first 3 h; our default 6 h). */
+  /** Early resuscitation: within this many hours of the onset of shock (docs/clinical-logic: "first hours"; SSC 2021 judges the first 3 h; our default 6 h). */
   earlyPhaseHours: z.number().min(1).max(48).default(6),
   /** Lactate at or above this, mmol/L, marks shock for the phase (SSC 2021: lactate ≥ 4 mmol/L). */
   earlyLactateMmolL: z.number().min(0).max(20).default(4),

@@ -43,7 +43,7 @@ export function fluidGivenWithin(snapshot: PatientSnapshot, now: Date, hours: nu
 }
 
 export function sepsisContext(snapshot: PatientSnapshot, now: Date, t: OrderThresholds, orderVolumeMl?: number): OrderFinding {
-  // On the admission (dry) weight, not today's fluid-laden weight (§12).
+  // On the admission (dry) weight, not today's fluid-laden weight (docs/clinical-logic).
   const weight = admissionWeight(snapshot, now, t);
   if (!weight) {
     return {

@@ -10,7 +10,7 @@
  *                     value is doubtful, a LOW value still argues against.
  * Ventilation and rhythm that are not charted void the index (they cannot be assumed). Tidal volume and HR/RR that
  * cannot be checked are treated as a possible false negative. Chest status and IAP that are not charted are
- * assumed closed and normal, and the finding says so (§12).
+ * assumed closed and normal, and the finding says so (docs/clinical-logic).
  */
 import { heartRateRespiratoryRateRatio } from '../../physiology/heart-rate-respiratory-rate-ratio.js';
 import { predictedBodyWeightKg, tidalVolumeMlPerKg } from '../../physiology/predicted-body-weight.js';
@@ -62,7 +62,7 @@ export function checkVentilation(ctx: RuleContext): Condition {
   return { id: 'ventilation', label, state: answer === 'controlled-no-effort' ? 'met' : 'failed', error: 'void', detail, evidence: [ev(sel.item)], values: { ventilationMode: answer } };
 }
 
-/** Sinus rhythm in the latest record, and no other rhythm recorded within the rhythm window (§12: void on any irregular record). */
+/** Sinus rhythm in the latest record, and no other rhythm recorded within the rhythm window (docs/clinical-logic: void on any irregular record). */
 export function checkRhythm(ctx: RuleContext): Condition {
   const label = 'sinus rhythm';
   const sel = latestCoded(ctx.snapshot, 'heartRhythm', ctx.now, ctx.w.rhythmMin);

@@ -7,7 +7,7 @@
  * - controlled ventilation without effort: distensibility, Barbier (Dmax − Dmin)/Dmin > 18 % or Feissel
  *   (Dmax − Dmin)/mean > 12 % → for, otherwise against (static; the method is a threshold setting).
  * - controlled ventilation with effort, or state unknown or changed since the measurement: not assessed.
- * IVC indices are static markers that only corroborate (§12, evidence tiers): their accuracy depends on tidal volume
+ * IVC indices are static markers that only corroborate (docs/clinical-logic, evidence tiers): their accuracy depends on tidal volume
  * and abdominal pressure, and later studies found them weaker than the original reports.
  */
 import { ivcCollapsibilityIndexPercent, ivcDistensibilityIndexBarbierPercent, ivcDistensibilityIndexFeisselPercent } from '../../physiology/ivc-indices.js';

@@ -6,7 +6,7 @@
  *   Care Med 2016;44:880). A rise ≥ `bolusFlowRisePercent` → for, else against; dynamic tier.
  * - Otherwise, hourly charting: the MAP (measured, else from SBP/DBP) and heart rate charted before the start and
  *   after the end. MAP rise ≥ 5 mmHg with HR fall ≥ 5/min → for; neither → against; one → neutral. This is a weak
- *   static marker, not a response test (§12), and the finding says so.
+ *   static marker, not a response test (docs/clinical-logic), and the finding says so.
  * Not used when a vasoactive started, stopped or changed between the baseline and the response (confounder), or
  * when a later fluid or vasoactive change has made it old (set aside). Capillary refill, lactate and urine output
  * before/after are shown when present; they do not change the reading.

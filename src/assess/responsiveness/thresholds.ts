@@ -29,11 +29,11 @@ export const responsivenessThresholdsSchema = z
     flowBeforeStartMaxMin: z.number().min(1).max(30).default(10),
     /** Flow (CO, CI, SV) rise that reads as a response to the bolus, percent, ≥ (Aya 2016 used a 10 % rise in cardiac output [M]). */
     bolusFlowRisePercent: percent().default(10),
-    /** Hourly charting: baseline = the newest MAP/HR within this many minutes before the start (§12: hourly vitals). */
+    /** Hourly charting: baseline = the newest MAP/HR within this many minutes before the start (docs/clinical-logic: hourly vitals). */
     bolusPreWindowMin: minutes(240).default(90),
-    /** Hourly charting: response = readings within this many minutes after the end (§12: hourly vitals). */
+    /** Hourly charting: response = readings within this many minutes after the end (docs/clinical-logic: hourly vitals). */
     bolusPostWindowMin: minutes(240).default(90),
-    /** MAP rise that reads as a response, mmHg, ≥ (common practice: about 5–10 mmHg). Weak static marker (§12). */
+    /** MAP rise that reads as a response, mmHg, ≥ (common practice: about 5–10 mmHg). Weak static marker (docs/clinical-logic). */
     bolusMapRiseMmHg: z.number().min(0).max(50).default(5),
     /** Heart-rate fall that reads as a response, /min, ≥ (common practice: "falling heart rate"; our choice of 5/min). */
     bolusHrFallPerMin: z.number().min(0).max(50).default(5),
@@ -55,7 +55,7 @@ export const responsivenessThresholdsSchema = z
     minHeartRateRespiratoryRateRatio: z.number().min(0).max(20).default(3.6),
     /** Intra-abdominal hypertension from this value, mmHg, ≥: a high PPV/SVV is doubtful (WSACS 2013; false positives: Jacques D et al., Crit Care 2011 [M]). */
     iahThresholdMmHg: z.number().min(0).max(40).default(12),
-    /** A cardiac output, cardiac index or stroke volume reading this recent means a flow monitor is in use, minutes (our choice): PLR is offered, else a mini fluid challenge with VTI (§12). */
+    /** A cardiac output, cardiac index or stroke volume reading this recent means a flow monitor is in use, minutes (our choice): PLR is offered, else a mini fluid challenge with VTI (docs/clinical-logic). */
     flowMonitorRecentMin: minutes(1440).default(240),
 
     // ── Dynamic tests ───────────────────────────────────────────────────────────────────────────────────────
@@ -99,7 +99,7 @@ export const responsivenessThresholdsSchema = z
     cvpHighMmHg: z.number().min(0).max(40).default(12),
 
     // ── Combination ─────────────────────────────────────────────────────────────────────────────────────────
-    /** Static markers that must agree, with none against, for a low-confidence verdict (§12: two agreeing statics at most give low confidence). */
+    /** Static markers that must agree, with none against, for a low-confidence verdict (docs/clinical-logic: two agreeing statics at most give low confidence). */
     staticAgreementMinCount: z.number().int().min(2).max(10).default(2),
   })
   .superRefine((t, ctx) => {

@@ -1,5 +1,5 @@
 /**
- * Rule tolerance.albumin: serum albumin, canonical g/L, as CONTEXT only (§12): ALBIOS (Caironi P et al., N Engl J
+ * Rule tolerance.albumin: serum albumin, canonical g/L, as CONTEXT only (docs/clinical-logic): ALBIOS (Caironi P et al., N Engl J
  * Med 2014;370:1412) used 30 g/L as a replacement target, not as a limit of fluid tolerance. Below 30 g/L is named
  * low, below 25 g/L severely low (from memory); neither limits tolerance by itself. A value below 8 g/L is taken as
  * a unit error (g/dL sent as g/L) and not used.

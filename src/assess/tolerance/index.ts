@@ -64,13 +64,13 @@ export interface ToleranceAssessment {
   findings: ToleranceFinding[];
   verdict: Verdict<Tolerance>;
   coverage: ToleranceCoverage;
-  /** Rules that threw: each also leaves a not-assessed finding, and the other rules still count (conventions §6). */
+  /** Rules that threw: each also leaves a not-assessed finding, and the other rules still count. */
   ruleErrors: RuleError[];
 }
 
 /**
  * Runs the tolerance rules. `counted`: shared numbers that already decided the responsiveness verdict; their
- * tolerance findings become context (a number counts once, §12).
+ * tolerance findings become context (a number counts once, docs/clinical-logic).
  */
 export function assessTolerance(ctx: RuleContext<ToleranceThresholds>, counted: readonly SharedNumber[] = []): ToleranceAssessment {
   const run = runRules(TOLERANCE_RULES, ctx);

@@ -1,7 +1,7 @@
 /**
  * Rule tolerance.lung-ultrasound: regions (of 8) with a B-pattern (≥ 3 B-lines per intercostal space). Diffuse
  * interstitial syndrome (lung water) needs a bilateral B-pattern, ≥ 2 positive regions on each side (Volpicelli G et
- * al., Intensive Care Med 2012;38:577 [M]; §12). The chart gives the count without the side, so a diffuse pattern
+ * al., Intensive Care Med 2012;38:577 [M]; docs/clinical-logic). The chart gives the count without the side, so a diffuse pattern
  * cannot be shown: from `bLineModerateRegions` (2) regions the finding is a moderate limit, capped there with the
  * side unknown, and never a harm sign. Not specific for hydrostatic oedema (pneumonia, ARDS, fibrosis give B-lines).
  */

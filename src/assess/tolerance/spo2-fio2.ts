@@ -30,7 +30,7 @@ export interface Spo2Fio2Pair {
 
 /**
  * Each SpO2 with the FiO2 in force at its time: the latest FiO2 charted at or before it (up to the clock skew after
- * it), carried forward until changed for at most `carryForwardMinutes` (§12: FiO2 is charted when it changes).
+ * it), carried forward until changed for at most `carryForwardMinutes` (docs/clinical-logic: FiO2 is charted when it changes).
  */
 export function spo2Fio2Pairs(snapshot: PatientSnapshot, now: Date, carryForwardMinutes: number): Spo2Fio2Pair[] {
   const fio2 = readingsOldestFirst(snapshot, 'fio2', now).items;

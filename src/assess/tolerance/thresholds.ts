@@ -70,7 +70,7 @@ export const toleranceThresholdsSchema = z
     ultrasoundFreshMinutes: minutes(360),
     /** Regions (of 8) with B-pattern from which lung water limits tolerance (common practice). */
     bLineModerateRegions: z.number().int().min(1).max(8).default(2),
-    /** B-pattern regions per side for diffuse interstitial syndrome, ≥ (Volpicelli G et al., Intensive Care Med 2012;38:577 [M]: ≥ 2 positive regions on each side). With the side not charted the finding is capped at moderate (§12). */
+    /** B-pattern regions per side for diffuse interstitial syndrome, ≥ (Volpicelli G et al., Intensive Care Med 2012;38:577 [M]: ≥ 2 positive regions on each side). With the side not charted the finding is capped at moderate (docs/clinical-logic). */
     bLineBilateralPerSide: z.number().int().min(1).max(4).default(2),
     /** EVLWI freshness (common practice: thermodilution repeated every few hours). */
     evlwiFreshMinutes: minutes(720),
@@ -105,7 +105,7 @@ export const toleranceThresholdsSchema = z
     // ── Verdict ──────────────────────────────────────────────────────────────────────────────────
     /** Moderate findings in this many different organ domains, one of them lungs, venous or balance, make tolerance poor (Tidemark's scheme; docs/clinical-logic/tolerance.md). */
     poorWhenModerateDomains: z.number().int().min(2).default(3),
-    /** "Adequate" needs at least this many markers assessed, one of them lungs, venous or balance; fewer gives "not known" (our choice, §12). */
+    /** "Adequate" needs at least this many markers assessed, one of them lungs, venous or balance; fewer gives "not known" (our choice, docs/clinical-logic). */
     adequateMinMarkers: z.number().int().min(1).default(3),
   })
   .superRefine((t, ctx) => {

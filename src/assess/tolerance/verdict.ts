@@ -9,7 +9,7 @@
  *   adequate  — no limiting finding among at least `adequateMinMarkers` markers assessed, one of them lungs, venous
  *               or balance; it states its coverage ("no limit found in 3 of 17 markers");
  *   not-known — no limit found, but too few markers assessed to call it adequate.
- * Context-only findings (balance in mL, albumin) never limit. A number counts once (§12): a tolerance finding whose
+ * Context-only findings (balance in mL, albumin) never limit. A number counts once (docs/clinical-logic): a tolerance finding whose
  * shared number (the CVP) already decided the responsiveness verdict becomes context (countOnce).
  */
 import type { SharedNumber, ToleranceDomain, ToleranceFinding } from '../common/finding.js';
