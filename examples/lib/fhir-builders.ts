@@ -37,6 +37,8 @@ export interface ObsOptions {
   unit?: string;
   status?: Observation['status'];
   periodStart?: string;
+  /** Observation.bodySite, e.g. one lung for a lung-ultrasound count (SNOMED CT body structure). */
+  bodySite?: { system: string; code: string; display: string };
 }
 
 /** A numeric Observation in UCUM (the kind's canonical unit unless `unit` is given). */
@@ -50,6 +52,7 @@ export function numeric(id: string, patientId: string, kind: NumericKind, value:
     subject: { reference: `Patient/${patientId}` },
     ...(opts.periodStart ? { effectivePeriod: { start: opts.periodStart, end: effective } } : { effectiveDateTime: effective }),
     valueQuantity: { value, unit: unit.replace(/[[\]]/g, ''), system: UCUM, code: unit },
+    ...(opts.bodySite ? { bodySite: { coding: [opts.bodySite], text: opts.bodySite.display } } : {}),
   };
 }
 

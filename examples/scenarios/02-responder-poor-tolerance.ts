@@ -2,12 +2,14 @@
  * (b) A responder with poor tolerance: decompensated alcohol-related cirrhosis with spontaneous bacterial
  * peritonitis, day 3 in the ICU, ventilated without effort, sinus rhythm, Vt 8.4 mL/kg PBW, IAP below 12 mmHg:
  * PPV 15 % is valid. But albumin is 21 g/L, the stay has run +8.6 L, weight is up 12 %, there is grade 3
- * oedema and a B-pattern in 5 of 8 lung regions. Asked on order-sign.
+ * oedema and a B-pattern in 5 of 8 lung regions, on both sides: 2 of 4 on the left, 3 of 4 on the right, charted
+ * per side. Asked on order-sign.
  *
- * Expectation changed with assessment v2 (clinical-references docs/clinical-logic): the B-pattern is charted without its side, so it
- * cannot show diffuse (bilateral) lung water and is capped at a moderate limit, not a harm sign; tolerance is still
- * poor (+8.6 L is 12.6 % of the admission weight, ≥ 10 % in an adult: Bouchard 2009), but the card is a warning,
- * not critical. Albumin 21 g/L is context only.
+ * Assessment v2 (clinical-references docs/clinical-logic) first lowered this card to a warning, because the B-pattern was charted
+ * without its side and could not show diffuse lung water. Charted per side, ≥ 2 positive regions on each side is
+ * diffuse interstitial syndrome (Volpicelli G et al., Intensive Care Med 2012;38:577): a severe lung finding and a
+ * sign that volume is likely to harm. With +8.6 L (12.6 % of the admission weight, ≥ 10 % in an adult: Bouchard
+ * 2009) tolerance is poor, and the bilateral lung finding makes the card critical. Albumin 21 g/L is context only.
  */
 import * as b from '../lib/fhir-builders.js';
 import { Chart, CONDITIONS, every, wobble } from './chart.js';
@@ -23,12 +25,12 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-okonjo',
-  expect: { responsiveness: 'likely', tolerance: 'poor', indicator: 'warning' },
+  expect: { responsiveness: 'likely', tolerance: 'poor', indicator: 'critical' },
   conclusion:
     'She would probably raise her cardiac output with volume, but with cirrhosis, albumin 21 g/L, +8.6 L, grade 3 oedema and diffuse B-lines '
     + 'more crystalloid will mostly go to the lungs and tissues: support pressure with a vasopressor and, if volume is given at all, a small aliquot '
-    + '(albumin rather than crystalloid) with close reassessment. The lung ultrasound gives no side, so it shows B-lines, not proven '
-    + 'bilateral lung water: a warning, not a critical card.',
+    + '(albumin rather than crystalloid) with close reassessment. The B-pattern is on both sides (2 and 3 of 4 regions): diffuse '
+    + 'interstitial syndrome, a sign that volume is likely to harm, so the card is critical.',
   build(now) {
     const c = new Chart('rpt', P, now);
     c.patient('female', '1971-09-02', 'Vell', 'Perpetua').encounter(E, 70 * 60, 'Tern ICU, bed 11');
@@ -53,7 +55,8 @@ export const scenario: Scenario = {
       [34 * 60, 22 * 60, 2100, 1200], [22 * 60, 10 * 60, 1600, 1100], [10 * 60, 0, 1400, 900],
     ]);
     c.hourlyUrine(8 * 60, 0, (i) => 44 + wobble(i, 5));
-    c.num('edemaGrade', 3, 3 * 60).num('bLineRegions', 5, 50);
+    // The 8-region lung ultrasound, charted per side: 2 of 4 regions on the left, 3 of 4 on the right.
+    c.num('edemaGrade', 3, 3 * 60).num('bLineRegionsLeft', 2, 50).num('bLineRegionsRight', 3, 50);
     const draft = Chart.bolusDraft('rpt-order-bolus', P, now, b.FLUIDS.lactatedRinger, 500, 30);
     return { resources: c.resources, draftOrders: [draft], selections: ['MedicationRequest/rpt-order-bolus'], hook: 'order-sign' };
   },

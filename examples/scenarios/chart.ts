@@ -35,7 +35,7 @@ const SHORT: Partial<Record<NumericKind, string>> = {
   bodyWeight: 'wt', bodyHeight: 'ht', cvp: 'cvp', lactate: 'lac', albumin: 'alb', creatinine: 'cre', urineOutput: 'uo',
   fluidIntake: 'in', fluidOutput: 'out', fluidBalance: 'bal', cardiacOutput: 'co', ppv: 'ppv', svv: 'svv',
   ivcDiameterMax: 'ivcmax', ivcDiameterMin: 'ivcmin', capillaryRefill: 'crt', tidalVolume: 'vt', peep: 'peep',
-  intraAbdominalPressure: 'iap', edemaGrade: 'oed', bLineRegions: 'blines', portalPulsatility: 'portal',
+  intraAbdominalPressure: 'iap', edemaGrade: 'oed', bLineRegions: 'blines', bLineRegionsLeft: 'blinesl', bLineRegionsRight: 'blinesr', portalPulsatility: 'portal',
 };
 
 export class Chart {

@@ -31,7 +31,8 @@ const KIND_LABEL: Record<string, string> = {
   cardiacOutput: 'Cardiac output', cardiacIndex: 'Cardiac index', strokeVolume: 'Stroke volume', strokeVolumeIndex: 'Stroke volume index', ppv: 'PPV', svv: 'SVV',
   ivcDiameterMax: 'IVC diameter (max)', ivcDiameterMin: 'IVC diameter (min)', capillaryRefill: 'Capillary refill time', tidalVolume: 'Tidal volume', peep: 'PEEP',
   intraAbdominalPressure: 'Intra-abdominal pressure', evlwi: 'EVLWI', portalPulsatility: 'Portal pulsatility fraction', edemaGrade: 'Oedema grade',
-  bLineRegions: 'Lung ultrasound B-pattern', ventilationMode: 'Ventilation', heartRhythm: 'Rhythm', hepaticVeinPattern: 'Hepatic vein Doppler',
+  bLineRegions: 'Lung ultrasound B-pattern', bLineRegionsLeft: 'Lung ultrasound B-pattern (left)', bLineRegionsRight: 'Lung ultrasound B-pattern (right)',
+  ventilationMode: 'Ventilation', heartRhythm: 'Rhythm', hepaticVeinPattern: 'Hepatic vein Doppler',
   renalVeinPattern: 'Intrarenal venous Doppler', lvFunction: 'LV function (echo)', chestStatus: 'Chest', plr: 'Passive leg raise',
   miniFluidChallenge: 'Mini fluid challenge', endExpiratoryOcclusion: 'End-expiratory occlusion', tidalVolumeChallenge: 'Tidal volume challenge',
 };

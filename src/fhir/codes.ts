@@ -27,7 +27,7 @@ export const NUMERIC_KINDS = [
   'cardiacOutput', 'cardiacIndex', 'strokeVolume', 'strokeVolumeIndex',
   'ppv', 'svv', 'ivcDiameterMax', 'ivcDiameterMin', 'capillaryRefill',
   'tidalVolume', 'peep', 'intraAbdominalPressure', 'evlwi', 'portalPulsatility', 'edemaGrade',
-  'bLineRegions',
+  'bLineRegions', 'bLineRegionsLeft', 'bLineRegionsRight',
 ] as const;
 export type NumericKind = (typeof NUMERIC_KINDS)[number];
 
@@ -42,6 +42,7 @@ export const KIND_UNITS: Record<NumericKind, string> = {
   ppv: '%', svv: '%', ivcDiameterMax: 'cm', ivcDiameterMin: 'cm', capillaryRefill: 's',
   tidalVolume: 'mL', peep: 'cm[H2O]', intraAbdominalPressure: 'mm[Hg]', evlwi: 'mL/kg',
   portalPulsatility: '%', edemaGrade: '{grade}', bLineRegions: '{regions}',
+  bLineRegionsLeft: '{regions}', bLineRegionsRight: '{regions}',
 };
 
 /**
@@ -58,6 +59,8 @@ export const KIND_BOUNDS: Record<NumericKind, readonly [number, number]> = {
   ppv: [0, 100], svv: [0, 100], ivcDiameterMax: [0, 5], ivcDiameterMin: [0, 5], capillaryRefill: [0, 60],
   tidalVolume: [0, 3000], peep: [0, 40], intraAbdominalPressure: [-5, 80], evlwi: [0, 60],
   portalPulsatility: [0, 100], edemaGrade: [0, 4], bLineRegions: [0, 8],
+  // Per side: 4 regions each in the 8-region examination (Volpicelli G et al., Intensive Care Med 2012;38:577).
+  bLineRegionsLeft: [0, 4], bLineRegionsRight: [0, 4],
 };
 
 export interface CodeRef { system: string; code: string; display: string }
@@ -116,7 +119,32 @@ export const OBSERVATION_CODES: ReadonlyArray<CodeRef & { kind: NumericKind }> =
   { system: TIDEMARK_MARKERS, code: 'portal-pulsatility', display: 'Portal vein pulsatility fraction', kind: 'portalPulsatility' },
   { system: TIDEMARK_MARKERS, code: 'edema-grade', display: 'Peripheral oedema grade (0-4)', kind: 'edemaGrade' },
   { system: TIDEMARK_MARKERS, code: 'lung-us-b-regions', display: 'Lung ultrasound regions with B-pattern (of 8)', kind: 'bLineRegions' },
+  { system: TIDEMARK_MARKERS, code: 'lung-us-b-regions-left', display: 'Lung ultrasound regions with B-pattern, left lung (of 4)', kind: 'bLineRegionsLeft' },
+  { system: TIDEMARK_MARKERS, code: 'lung-us-b-regions-right', display: 'Lung ultrasound regions with B-pattern, right lung (of 4)', kind: 'bLineRegionsRight' },
 ];
+
+/**
+ * Observation.bodySite of a whole-chest B-pattern count (`lung-us-b-regions`) that names one lung: the count is then
+ * that lung's (of 4). SNOMED CT body structures 44029006 |Left lung structure| and 3341006 |Right lung structure|,
+ * as used for Observation/Specimen bodySite in public FHIR and DICOM mapping tables (docs/codes.md). Any other
+ * bodySite (both lungs, a lobe, the chest) leaves the count whole-chest with the side unknown.
+ */
+export const LUNG_SIDE_SITES: ReadonlyArray<CodeRef & { kind: 'bLineRegionsLeft' | 'bLineRegionsRight' }> = [
+  { system: SNOMED, code: '44029006', display: 'Left lung structure', kind: 'bLineRegionsLeft' },
+  { system: SNOMED, code: '3341006', display: 'Right lung structure', kind: 'bLineRegionsRight' },
+];
+
+/**
+ * The kind a numeric Observation is read as, given its bodySite: a whole-chest B-pattern count on one lung is that
+ * side's count; every other kind, and a count with no one-lung bodySite, is unchanged. Two different lungs named at
+ * once leave the side unknown.
+ */
+export function kindAtSite(kind: NumericKind, bodySite: { coding?: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }> | undefined } | undefined): NumericKind {
+  if (kind !== 'bLineRegions' || !bodySite?.coding) return kind;
+  const sides = new Set(bodySite.coding.flatMap((c) => LUNG_SIDE_SITES.filter((s) => s.system === c.system && s.code === c.code).map((s) => s.kind)));
+  const [only] = sides;
+  return sides.size === 1 && only ? only : kind;
+}
 
 /** Coded (non-numeric) observation kinds: the Observation carries a valueCodeableConcept from TIDEMARK_ANSWERS. */
 export const CODED_KINDS = [

@@ -60,7 +60,7 @@ export const PREFETCH: Record<string, PrefetchQuery> = {
   // Rarely charted states get a key of their own, so minute-level device data cannot push them off the first page.
   assessments: {
     template: obs(
-      [codes(['intraAbdominalPressure', 'evlwi', 'portalPulsatility', 'edemaGrade', 'bLineRegions']), CODED_OBSERVATION_CODES.map((c) => `${c.system}|${c.code}`).join(',')].join(','),
+      [codes(['intraAbdominalPressure', 'evlwi', 'portalPulsatility', 'edemaGrade', 'bLineRegions', 'bLineRegionsLeft', 'bLineRegionsRight']), CODED_OBSERVATION_CODES.map((c) => `${c.system}|${c.code}`).join(',')].join(','),
       50,
     ),
     purpose: 'ventilation state, rhythm, chest, echo and Doppler impressions, IAP, lung water and oedema',

@@ -9,7 +9,7 @@ import type {
 } from 'fhir/r4.js';
 import {
   CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
-  type DynamicMeasured, type NumericKind,
+  kindAtSite, type DynamicMeasured, type NumericKind,
 } from '../fhir/codes.js';
 import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
 import { convert, MAX_UNIT_LENGTH, toCanonical } from '../fhir/units.js';
@@ -193,7 +193,8 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
       coded.push({ kind: codedKind, answer, original: { system: orig.system ?? '', code: orig.code ?? '', ...(orig.display ? { display: orig.display } : {}) }, effective, ageMinutes: age(effective), ref });
       return;
     }
-    if (numericKind && o.valueQuantity) addQuantity(numericKind, o.valueQuantity, ref, effective, periodStart, numeric.site ?? codingRead(codings, numericKind));
+    // A whole-chest B-pattern count whose bodySite names one lung is that side's count (fhir/codes.ts kindAtSite).
+    if (numericKind && o.valueQuantity) addQuantity(kindAtSite(numericKind, o.bodySite), o.valueQuantity, ref, effective, periodStart, numeric.site ?? codingRead(codings, numericKind));
     else if (numericKind && !componentKinds.some((x) => x.kind)) {
       exclude(ref, 'no-value', o.dataAbsentReason ? `no value: ${conceptText(o.dataAbsentReason) || 'data absent'}` : 'no valueQuantity', numericKind);
     }

@@ -42,6 +42,7 @@ const scenario = fc.record({
   cvp: opt(fc.integer({ min: 0, max: 25 })),
   iap: opt(fc.integer({ min: 2, max: 32 })),
   bLines: opt(fc.integer({ min: 0, max: 8 })),
+  bLinesBySide: opt(fc.tuple(fc.integer({ min: 0, max: 4 }), fc.integer({ min: 0, max: 4 }), fc.integer({ min: 20, max: 120 }))),
   oedema: opt(fc.integer({ min: 0, max: 4 })),
   spo2: fc.array(fc.record({ spo2: fc.integer({ min: 80, max: 100 }), fio2: fc.integer({ min: 21, max: 100 }), ago: fc.integer({ min: 0, max: 420 }) }), { maxLength: 4 }),
   peep: fc.array(fc.record({ v: fc.integer({ min: 0, max: 20 }), ago: fc.integer({ min: 0, max: 420 }) }), { maxLength: 3 }),
@@ -68,6 +69,7 @@ function build(raw: Scenario): PatientSnapshot {
     cvp: raw.cvp === undefined ? undefined : Math.min(raw.cvp, 8),
     iap: raw.iap === undefined ? undefined : Math.min(raw.iap, 10),
     bLines: raw.bLines === undefined ? undefined : Math.min(raw.bLines, 1),
+    bLinesBySide: raw.bLinesBySide === undefined ? undefined : [Math.min(raw.bLinesBySide[0], 1), 0, raw.bLinesBySide[2]] as const,
     oedema: raw.oedema === undefined ? undefined : Math.min(raw.oedema, 1),
     spo2: raw.spo2.map((p) => ({ ...p, spo2: Math.max(p.spo2, 95), fio2: 21 })),
     peep: [],
@@ -87,6 +89,7 @@ function build(raw: Scenario): PatientSnapshot {
   if (sc.cvp !== undefined) ms.push(m('cvp', sc.cvp, 20, { ref: ref() }));
   if (sc.iap !== undefined) ms.push(m('intraAbdominalPressure', sc.iap, 50, { ref: ref() }), m('meanBp', 72, 45, { ref: ref() }));
   if (sc.bLines !== undefined) ms.push(m('bLineRegions', sc.bLines, 70, { ref: ref() }));
+  if (sc.bLinesBySide !== undefined) ms.push(m('bLineRegionsLeft', sc.bLinesBySide[0], sc.bLinesBySide[2], { ref: ref() }), m('bLineRegionsRight', sc.bLinesBySide[1], sc.bLinesBySide[2], { ref: ref() }));
   if (sc.oedema !== undefined) ms.push(m('edemaGrade', sc.oedema, 400, { ref: ref() }));
   for (const p of sc.spo2) ms.push(m('spo2', p.spo2, p.ago, { ref: ref() }), m('fio2', p.fio2, p.ago, { ref: ref() }));
   for (const p of sc.peep) ms.push(m('peep', p.v, p.ago, { ref: ref() }));

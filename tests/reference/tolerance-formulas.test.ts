@@ -14,6 +14,10 @@ import { spo2Fio2Ratio } from '../../src/physiology/oxygenation.js';
 import { intravascularEstimate } from '../../src/assess/order/describe-order.js';
 import { sepsisReferenceVolumeMl } from '../../src/assess/order/sepsis-context.js';
 import { DEFAULT_ORDER_THRESHOLDS } from '../../src/assess/order/thresholds.js';
+import { lungUltrasoundRule } from '../../src/assess/tolerance/lung-ultrasound.js';
+import { DEFAULT_TOLERANCE_THRESHOLDS } from '../../src/assess/tolerance/thresholds.js';
+import { KIND_BOUNDS, LUNG_SIDE_SITES } from '../../src/fhir/codes.js';
+import { m, NOW, snapshot } from '../helpers/tolerance-fixtures.js';
 
 describe('percent fluid overload — Goldstein SL et al., Pediatrics 2001;107:1309', () => {
   it('in 12 L, out 4 L, 70 kg → 11.4 % (moderate band, Sutherland 2010 [from memory])', () => {
@@ -102,5 +106,24 @@ describe('Surviving Sepsis Campaign 2021 (Evans L et al., Intensive Care Med 202
 describe('SpO2/FiO2 (Rice TW et al., Chest 2007 [from memory])', () => {
   it('SpO2 95 % on FiO2 40 % → 237.5 (FiO2 used as a fraction)', () => {
     expect(spo2Fio2Ratio(95, 40)).toBeCloseTo(237.5, 6);
+  });
+});
+
+describe('Lung ultrasound B-pattern (Volpicelli G et al., Intensive Care Med 2012;38:577, international evidence-based recommendations for point-of-care lung ultrasound)', () => {
+  const T = DEFAULT_TOLERANCE_THRESHOLDS;
+  const run = (left: number, right: number) => lungUltrasoundRule(snapshot({ measurements: [m('bLineRegionsLeft', left, 30), m('bLineRegionsRight', right, 30)] }), NOW, T)[0]!;
+  it('the 8-region examination: 4 regions per side (Volpicelli 2012)', () => {
+    expect(KIND_BOUNDS.bLineRegions).toEqual([0, 8]);
+    expect(KIND_BOUNDS.bLineRegionsLeft).toEqual([0, 4]);
+    expect(KIND_BOUNDS.bLineRegionsRight).toEqual([0, 4]);
+  });
+  it('diffuse interstitial syndrome = ≥ 2 positive regions on each side (Volpicelli 2012): 2 + 2 is, 2 + 1 and 4 + 0 are not', () => {
+    expect(T.bLineBilateralPerSide).toBe(2);
+    expect(run(2, 2)).toMatchObject({ limit: 'severe', harmSign: true });
+    expect(run(2, 1)).toMatchObject({ limit: 'moderate', harmSign: false });
+    expect(run(4, 0)).toMatchObject({ limit: 'moderate', harmSign: false });
+  });
+  it('left / right lung as SNOMED CT body structures 44029006 and 3341006 (public FHIR and DICOM mapping tables)', () => {
+    expect(LUNG_SIDE_SITES.map((s) => [s.code, s.kind])).toEqual([['44029006', 'bLineRegionsLeft'], ['3341006', 'bLineRegionsRight']]);
   });
 });

@@ -1,7 +1,8 @@
 /**
  * Codes that real records carry, read through the real snapshot reader (buildSnapshot): LOINC 2708-6 for the
  * saturation, 3150-0 as the inhaled-oxygen component of a pulse oximetry panel, SNOMED CT rhythm values,
- * Hartmann's and the RxNorm fluids, and conditions coded the way problem lists code them.
+ * Hartmann's and the RxNorm fluids, conditions coded the way problem lists code them, and a lung-ultrasound count
+ * whose bodySite names one lung.
  */
 import type { Observation } from 'fhir/r4.js';
 import { describe, expect, it } from 'vitest';
@@ -9,6 +10,7 @@ import * as b from '../../examples/lib/fhir-builders.js';
 import { buildSnapshot } from '../../src/snapshot/normalize.js';
 import { classifyFluid } from '../../src/fhir/medications.js';
 import { conditionsRule } from '../../src/assess/tolerance/conditions.js';
+import { lungUltrasoundRule } from '../../src/assess/tolerance/lung-ultrasound.js';
 import { resolveThresholds } from '../../src/assess/thresholds.js';
 
 const now = new Date('2026-11-20T14:00:00Z');
@@ -127,5 +129,43 @@ describe('conditions coded as problem lists code them, through the snapshot into
     const s = snap([b.condition('c1', P, system, code, display)]);
     const f = conditionsRule(s, now, T)[0]!;
     expect(f).toMatchObject({ limit: 'moderate', values: { matchedSets: sets } }); // assessment v2: the limit is a typed field
+  });
+});
+
+describe('lung ultrasound per side, through the snapshot into the tolerance rule', () => {
+  const MARKER = 'https://tidemark.invalid/fhir/CodeSystem/marker';
+  const regions = (value: number, code = '{regions}') => ({ value, unit: code, system: 'http://unitsofmeasure.org', code });
+  const lus = (id: string, code: string, value: number, extra: Partial<Observation> = {}): Observation => ({
+    resourceType: 'Observation', id, status: 'final', subject: { reference: `Patient/${P}` }, effectiveDateTime: t(30),
+    code: { coding: [{ system: MARKER, code }] }, valueQuantity: regions(value), ...extra,
+  });
+  const site = (...codes: string[]) => ({ bodySite: { coding: codes.map((code) => ({ system: SCT, code })) } });
+  const T = resolveThresholds({}).tolerance;
+
+  it('the per-side markers are read as left and right counts (of 4)', () => {
+    const s = snap([lus('l1', 'lung-us-b-regions-left', 3), lus('r1', 'lung-us-b-regions-right', 2)]);
+    expect(s.measurements.map((m) => [m.kind, m.value, m.unit])).toEqual([['bLineRegionsLeft', 3, '{regions}'], ['bLineRegionsRight', 2, '{regions}']]);
+    expect(lungUltrasoundRule(s, now, T)[0]).toMatchObject({ limit: 'severe', harmSign: true, values: { pattern: 'diffuse' } });
+  });
+  it('the whole-chest code with bodySite left lung (SNOMED CT 44029006) / right lung (3341006) is that side\'s count; the original keeps the code sent', () => {
+    const s = snap([lus('w1', 'lung-us-b-regions', 0, site('44029006')), lus('w2', 'lung-us-b-regions', 4, site('3341006'))]);
+    expect(s.measurements.map((m) => [m.kind, m.value, m.original.code])).toEqual([['bLineRegionsLeft', 0, 'lung-us-b-regions'], ['bLineRegionsRight', 4, 'lung-us-b-regions']]);
+    expect(lungUltrasoundRule(s, now, T)[0]).toMatchObject({ limit: 'moderate', harmSign: false, values: { pattern: 'one-sided' } });
+  });
+  it('no bodySite, another site (lung structure 39607008), or both lungs named at once: whole chest, side unknown', () => {
+    for (const extra of [{}, site('39607008'), site('44029006', '3341006')]) {
+      const s = snap([lus('w3', 'lung-us-b-regions', 6, extra)]);
+      expect(s.measurements.map((m) => m.kind)).toEqual(['bLineRegions']);
+      expect(lungUltrasoundRule(s, now, T)[0]).toMatchObject({ limit: 'moderate', harmSign: false, values: { sideRecorded: false } });
+    }
+  });
+  it('more than 4 regions on one lung is impossible and left out; a wrong unit is left out', () => {
+    const s = snap([lus('x1', 'lung-us-b-regions', 5, site('44029006')), lus('x2', 'lung-us-b-regions-right', 3, { valueQuantity: regions(3, '%') })]);
+    expect(s.measurements).toEqual([]);
+    expect(s.excluded).toMatchObject([
+      { ref: 'Observation/x1', reason: 'impossible-value', kind: 'bLineRegionsLeft' },
+      { ref: 'Observation/x2', reason: 'incompatible-unit', kind: 'bLineRegionsRight' },
+    ]);
+    expect(lungUltrasoundRule(s, now, T)[0]!.status).toBe('not-assessed');
   });
 });

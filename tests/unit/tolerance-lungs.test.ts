@@ -116,6 +116,97 @@ describe('tolerance.lung-ultrasound', () => {
   });
 });
 
+describe('tolerance.lung-ultrasound per side (left and right lung, 4 regions each)', () => {
+  const L = 'bLineRegionsLeft' as const;
+  const R = 'bLineRegionsRight' as const;
+  const bySide = (left: number | undefined, right: number | undefined, o: { ago?: number; unit?: string; extra?: Measurement[] } = {}) => {
+    const ago = o.ago ?? 40;
+    const ms = [
+      ...(left === undefined ? [] : [m(L, left, ago, o.unit ? { unit: o.unit } : {})]),
+      ...(right === undefined ? [] : [m(R, right, ago)]),
+      ...(o.extra ?? []),
+    ];
+    return lungUltrasoundRule(s(...ms), NOW, T)[0]!;
+  };
+  // Diffuse interstitial syndrome: ≥ 2 positive regions on EACH side (Volpicelli G et al., Intensive Care Med 2012;38:577).
+  it.each([
+    // left, right, limit, harm sign, pattern
+    [2, 2, 'severe', true, 'diffuse'],
+    [4, 4, 'severe', true, 'diffuse'],
+    [3, 2, 'severe', true, 'diffuse'],
+    [2, 1, 'moderate', false, 'one-sided'],
+    [1, 2, 'moderate', false, 'one-sided'],
+    [0, 4, 'moderate', false, 'one-sided'],
+    [4, 0, 'moderate', false, 'one-sided'],
+    [1, 1, 'moderate', false, 'scattered'],
+    [1, 0, 'none', false, 'focal'],
+    [0, 0, 'none', false, 'none'],
+  ] as const)('left %s, right %s → %s (harm sign %s, %s)', (l, r, lim, sign, pattern) => {
+    const f = bySide(l, r);
+    expect(f.status).toBe('assessed');
+    expect(limit(f)).toBe(lim);
+    expect(tol(f).harmSign).toBe(sign);
+    expect(f.values).toMatchObject({ bLineRegionsLeft: l, bLineRegionsRight: r, sideRecorded: true, pattern });
+    expect(f.evidence.map((e) => e.kind)).toEqual([L, R]);
+  });
+  it('boundary 1/2 per side: 2 on each side is diffuse, 1 on either side is not (Volpicelli 2012: ≥ 2 regions per side)', () => {
+    expect(tol(bySide(2, 2)).harmSign).toBe(true);
+    expect(tol(bySide(1, 2)).harmSign).toBe(false);
+    expect(tol(bySide(2, 1)).harmSign).toBe(false);
+  });
+  it('one-sided says so and names the focal causes; diffuse says it is not specific', () => {
+    expect(bySide(0, 4).text).toMatch(/one-sided \(right\).*pneumonia, contusion or atelectasis.*needs ≥ 2 regions on each side/);
+    expect(bySide(3, 0).text).toContain('one-sided (left)');
+    expect(bySide(3, 3).text).toMatch(/diffuse interstitial syndrome.*not specific/);
+  });
+  it('side unknown: one side alone is capped at moderate, never a harm sign', () => {
+    const f = bySide(4, undefined);
+    expect(limit(f)).toBe('moderate');
+    expect(tol(f).harmSign).toBe(false);
+    expect(f.text).toMatch(/left lung only.*right side not recorded.*diffuse lung water needs ≥ 2 regions on each side/);
+    expect(limit(bySide(undefined, 1))).toBe('none');
+  });
+  it('stale: per-side readings older than 6 h are not used; nothing else → not assessed, stale', () => {
+    const f = bySide(3, 3, { ago: 7 * 60 });
+    expect(f.status).toBe('not-assessed');
+    expect(f.gap).toBe('stale');
+    expect(f.text).toContain('left lung');
+  });
+  it('stale side: a fresh left with a stale right is one side only (moderate, no harm sign)', () => {
+    const f = bySide(3, undefined, { extra: [m(R, 3, 7 * 60)] });
+    expect(limit(f)).toBe('moderate');
+    expect(tol(f).harmSign).toBe(false);
+  });
+  it('wrong unit: a side in % is not used; with the other side fresh it is one side only, alone → not assessed (invalid)', () => {
+    const f = bySide(3, 3, { unit: '%' });
+    expect(tol(f).harmSign).toBe(false);
+    expect(f.text).toContain('right lung only');
+    const alone = lungUltrasoundRule(s(m(L, 3, 40, { unit: '%' })), NOW, T)[0]!;
+    expect(alone.status).toBe('not-assessed');
+    expect(alone.gap).toBe('invalid');
+  });
+  it('the per-side reading wins over a fresh whole-chest count charted with or before it', () => {
+    const f = bySide(3, 3, { extra: [m('bLineRegions', 4, 60)] });
+    expect(limit(f)).toBe('severe');
+    expect(f.values).toMatchObject({ sideRecorded: true });
+    const g = bySide(0, 0, { extra: [m('bLineRegions', 6, 60)] });
+    expect(limit(g)).toBe('none');
+  });
+  it('a whole-chest count charted after the per-side exam that limits more keeps the limit at least moderate', () => {
+    const f = bySide(0, 1, { ago: 200, extra: [m('bLineRegions', 5, 30)] });
+    expect(limit(f)).toBe('moderate');
+    expect(tol(f).harmSign).toBe(false);
+    expect(f.text).toContain('a later whole-chest count, 5 of 8 regions');
+    // It never lowers a diffuse reading.
+    expect(limit(bySide(2, 2, { ago: 200, extra: [m('bLineRegions', 0, 30)] }))).toBe('severe');
+  });
+  it('a whole-chest count beside one fresh side: side unknown, capped at moderate', () => {
+    const f = bySide(3, undefined, { extra: [m('bLineRegions', 6, 30)] });
+    expect(limit(f)).toBe('moderate');
+    expect(tol(f).harmSign).toBe(false);
+  });
+});
+
 describe('tolerance.evlwi', () => {
   const run = (v?: number, ago = 60) => evlwiRule(s(...(v === undefined ? [] : [m('evlwi', v, ago)])), NOW, T)[0]!;
   it('11.4 mL/kg → pulmonary oedema: severe, congestion sign', () => {

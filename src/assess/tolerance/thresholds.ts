@@ -68,9 +68,9 @@ export const toleranceThresholdsSchema = z
     peepRiseCmH2O: z.number().positive().default(2),
     /** Bedside ultrasound freshness: lung ultrasound, IVC, VExUS parts (common practice: a snapshot of hours). */
     ultrasoundFreshMinutes: minutes(360),
-    /** Regions (of 8) with B-pattern from which lung water limits tolerance (common practice). */
+    /** Regions (of 8; with the side charted, left + right) with B-pattern from which the finding is a moderate limit (common practice). */
     bLineModerateRegions: z.number().int().min(1).max(8).default(2),
-    /** B-pattern regions per side for diffuse interstitial syndrome, ≥ (Volpicelli G et al., Intensive Care Med 2012;38:577 [M]: ≥ 2 positive regions on each side). With the side not charted the finding is capped at moderate (docs/clinical-logic). */
+    /** B-pattern regions per side (of 4) for diffuse interstitial syndrome, ≥ on BOTH sides: severe and a harm sign (Volpicelli G et al., Intensive Care Med 2012;38:577 [M]: ≥ 2 positive regions on each side). One side or the side not charted: capped at moderate (docs/clinical-logic). */
     bLineBilateralPerSide: z.number().int().min(1).max(4).default(2),
     /** EVLWI freshness (common practice: thermodilution repeated every few hours). */
     evlwiFreshMinutes: minutes(720),
