@@ -1,8 +1,12 @@
-/** `npm start`: runs the service on the configured port (embedded SQLite audit by default). */
+/**
+ * `npm start` (built: node dist/cli/serve.js; `npm run trial` runs this file through tsx): runs the service on the
+ * configured port (embedded SQLite audit by default) and stops gracefully on SIGTERM / SIGINT (shutdown.ts).
+ */
 import { loadConfig, ConfigError } from '../config/config.js';
 import { createLogger } from '../log.js';
 import { buildService } from '../service.js';
 import { listen } from './listen.js';
+import { gracefulShutdown } from './shutdown.js';
 
 async function main(): Promise<void> {
   let cfg;
@@ -19,13 +23,9 @@ async function main(): Promise<void> {
     process.on('unhandledRejection', (e) => svc.log.error({ err: String((e as Error)?.message ?? e).slice(0, 200) }, 'unhandled rejection'));
     const server = await listen(svc, cfg);
     server.requestTimeout = 30_000;
-    const stop = (signal: string) => {
-      svc.log.info({ signal }, 'shutting down');
-      server.close(() => void svc.close().then(() => process.exit(0)));
-      setTimeout(() => process.exit(0), 5000).unref();
-    };
-    process.on('SIGTERM', () => stop('SIGTERM'));
-    process.on('SIGINT', () => stop('SIGINT'));
+    const stop = gracefulShutdown(server, svc);
+    process.on('SIGTERM', () => void stop('SIGTERM'));
+    process.on('SIGINT', () => void stop('SIGINT'));
   } catch (e) {
     createLogger(cfg.TIDEMARK_LOG_LEVEL).fatal(
       { err: (e as Error).message.slice(0, 2000) },
