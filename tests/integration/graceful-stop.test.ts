@@ -153,13 +153,16 @@ describe('the built service (node dist/cli/serve.js) on SIGTERM mid-burst', () =
 
   // The defect of issue 15: `npm start` was npm → sh → tsx → node, and SIGTERM to npm left node listening. The start
   // script now execs node, so npm's forwarded signal reaches the service itself. (--ignore-scripts skips the
-  // prestart build, done above; --silent keeps npm's banner off stdout.)
+  // prestart build, done above; --silent keeps npm's banner off stdout.) The signal comes right after the listening
+  // line, so this also checks that the handlers are in place by then (serve.ts installs them before listening: when
+  // they came after, the kernel's default action sometimes killed the service here, under the full suite's load).
   it('npm start: SIGTERM to npm stops the service itself (no orphan left listening)', async () => {
     const { proc, port } = await start('npm', ['start', '--silent', '--ignore-scripts'], join(dir, 'npm-start.sqlite'));
     const exited = exitOf(proc);
     proc.kill('SIGTERM');
-    expect(await exited).toEqual({ code: 0, signal: null });
+    const npmExit = await exited;
     expect(await refusesConnections(port)).toBe(true);
     expectCleanLog();
+    expect(npmExit).toEqual({ code: 0, signal: null });
   }, 60_000);
 });
