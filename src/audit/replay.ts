@@ -21,6 +21,7 @@ export interface ReplayDiff {
 }
 
 const key = (f: Finding) => `${f.ruleId}`;
+const direction = (f: Finding) => (f.topic === 'responsiveness' ? f.direction : undefined);
 
 export function replay(rec: StoredAdvice, thresholds: Thresholds, rulesVersion: string): ReplayDiff | undefined {
   if (!rec.snapshot || !rec.advice) return undefined;
@@ -33,7 +34,7 @@ export function replay(rec: StoredAdvice, thresholds: Thresholds, rulesVersion: 
   const changed: ReplayDiff['findings']['changed'] = [];
   for (const [k, f] of byNow) {
     const old = byThen.get(k);
-    if (old && (old.text !== f.text || old.status !== f.status || old.direction !== f.direction)) changed.push({ ruleId: k, then: old.text, now: f.text });
+    if (old && (old.text !== f.text || old.status !== f.status || direction(old) !== direction(f))) changed.push({ ruleId: k, then: old.text, now: f.text });
   }
   const pair = (a?: string, b?: string) => ({ ...(a ? { then: a } : {}), ...(b ? { now: b } : {}) });
   const diff: ReplayDiff = {

@@ -4,7 +4,7 @@
 // Checks, with their outside references: the FHIR R4 validator (tests/helpers/fhir-validator.ts) on every chart; the FHIR
 // search semantics of each prefetch template (token OR lists, reference Patient/id, _sort=-date, _count, paging);
 // the CDS Hooks 2.0 card schema (src/hooks/schemas.ts); and the direction a careful intensivist would give
-// (each scenario's `expect`, the clinical reasoning in ../shared/clinical-references.md).
+// (each scenario's `expect`, the clinical reasoning in docs/clinical-logic/).
 import type { Bundle, Condition, FhirResource, MedicationRequest, Observation } from 'fhir/r4.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { SCENARIOS, hookContext, scenarioBundle, serviceIdFor } from '../../examples/scenarios/index.js';
@@ -64,7 +64,7 @@ describe('the scenarios as data', () => {
   it('covers the required situations: each expected verdict and both order hooks, and a non-fluid order', () => {
     const e = SCENARIOS.map((s) => s.expect);
     for (const v of ['likely', 'unlikely', 'indeterminate']) expect(e.some((x) => x.responsiveness === v)).toBe(true);
-    for (const v of ['adequate', 'limited', 'poor', 'unknown']) expect(e.some((x) => x.tolerance === v)).toBe(true);
+    for (const v of ['adequate', 'limited', 'poor', 'not-known']) expect(e.some((x) => x.tolerance === v)).toBe(true);
     for (const v of ['info', 'warning', 'critical', 'no-card']) expect(e.some((x) => x.indicator === v)).toBe(true);
     expect(new Set(SCENARIOS.map((s) => chart(s).hook))).toEqual(new Set(['order-select', 'order-sign']));
   });
