@@ -60,7 +60,7 @@ async function main(): Promise<number> {
       const rec = await store.get(args[0]);
       if (!rec) return (process.stderr.write(`no advice record ${args[0]}\n`), 1);
       const thresholds = resolveThresholds(cfg.file.thresholds ?? {});
-      const diff = replay(rec, thresholds, rulesVersion(loadCatalogue().digest, thresholds));
+      const diff = replay(rec, thresholds, rulesVersion(loadCatalogue().digest, thresholds, undefined, cfg.siteMap));
       process.stdout.write(`${JSON.stringify(diff ?? { note: 'no snapshot to replay (a 412 answer)' }, null, 2)}\n`);
       return 0;
     }

@@ -10,7 +10,7 @@ import type { AuditStore } from '../audit/types.js';
 import { evaluateHook, type EvaluateDeps } from '../hooks/evaluate.js';
 import { recordFeedback } from '../hooks/feedback.js';
 import { replay } from '../audit/replay.js';
-import { discoveryDocument, findService } from '../hooks/services.js';
+import { discoveryDocument, findService, servicesFor } from '../hooks/services.js';
 import { withDepthLimit } from './body-shape.js';
 import { HttpError, operationOutcome, zodIssues } from './errors.js';
 
@@ -100,12 +100,14 @@ export function createApp(deps: AppDeps): express.Express {
     }
   });
 
+  // With site maps, the searches also ask for the site codes read as Tidemark's (src/hooks/services.ts servicesFor).
+  const services = servicesFor(deps.siteMap);
   app.get('/cds-services', cds, (_req, res) => {
-    res.json(discoveryDocument());
+    res.json(discoveryDocument(services));
   });
 
   app.post('/cds-services/:id', cds, json, async (req: Request, res: Response) => {
-    const service = findService(String(req.params['id']));
+    const service = findService(String(req.params['id']), services);
     if (!service) throw new HttpError(404, 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
     const pending = evaluateHook(service, req.body, deps, res.locals['client'] as never);
     // The parsed body (about 100 KB of objects for the benchmark's full prefetch) is not needed while the audit commit is
