@@ -80,7 +80,7 @@ export function searchParametersPerBase(bundle: Bundle): Bundle {
 /** Loads the FHIR R4 StructureDefinitions and SearchParameters once per process (about 1.5 s). */
 export function ensureFhirDefinitionsIndexed(): void {
   if (indexed) return;
-  // The validator of the tests (tests/helpers/fhir-validator.ts) may already have indexed the StructureDefinitions in this process.
+  // The validator (src/fhir/validator.ts) may already have indexed the StructureDefinitions in this process.
   if (!isDataTypeLoaded('Observation')) {
     indexStructureDefinitionBundle(readJson('fhir/r4/profiles-types.json') as never);
     indexStructureDefinitionBundle(readJson('fhir/r4/profiles-resources.json') as never);

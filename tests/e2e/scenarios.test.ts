@@ -1,7 +1,7 @@
 // End to end: every invented scenario (examples/scenarios/) through the real app over real HTTP, against the
 // embedded FHIR R4 server (@medplum/fhir-router + MemoryRepository), by both routes a CDS client can take:
 // fhirServer + fhirAuthorization with no prefetch, and a full prefetch built from the service's own templates.
-// Checks, with their outside references: the FHIR R4 validator (tests/helpers/fhir-validator.ts) on every chart; the FHIR
+// Checks, with their outside references: the FHIR R4 validator (src/fhir/validator.ts) on every chart; the FHIR
 // search semantics of each prefetch template (token OR lists, reference Patient/id, _sort=-date, _count, paging);
 // the CDS Hooks 2.0 card schema (src/hooks/schemas.ts); and the direction a careful intensivist would give
 // (each scenario's `expect`, the clinical reasoning in docs/clinical-logic/).
@@ -16,7 +16,7 @@ import { resolvePrefetchTemplate } from '../../src/hooks/prefetch-tokens.js';
 import { cardSchema } from '../../src/hooks/schemas.js';
 import { checkCdsResponse } from '../helpers/cds-conformance.js';
 import { PREFETCH } from '../../src/hooks/services.js';
-import { validateFhir } from '../helpers/fhir-validator.js';
+import { validateFhir } from '../../src/fhir/validator.js';
 import { get, startService, type Running } from '../helpers/server.js';
 
 /** Pinned clock: the charts are written relative to it and the service judges ages against it. */

@@ -3,7 +3,7 @@
 // FHIR R4 validator (@medplum/core against the base StructureDefinitions) plus the status bindings it skips.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { checkCdsResponse } from '../helpers/cds-conformance.js';
-import { statusCodeCount, validateFhir } from '../helpers/fhir-validator.js';
+import { statusCodeCount, validateFhir } from '../../src/fhir/validator.js';
 import { loadCatalogue } from '../../src/cards/catalogue.js';
 import { ADVICE_CASES, type AdviceCase } from '../helpers/advice-fixtures.js';
 import { NOW, orderSelectRequest, orderSignRequest, patientViewRequest, prefetchOf } from '../helpers/hook-fixtures.js';

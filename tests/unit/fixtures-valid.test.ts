@@ -1,7 +1,7 @@
 // Test data is valid FHIR R4: every fixture resource passes the registry's validator (@medplum/core against the
-// base StructureDefinitions) plus the status bindings it skips (tests/helpers/fhir-validator.ts).
+// base StructureDefinitions) plus the status bindings it skips (src/fhir/validator.ts).
 import { describe, expect, it } from 'vitest';
-import { validateFhir } from '../helpers/fhir-validator.js';
+import { validateFhir } from '../../src/fhir/validator.js';
 import { ADVICE_CASES } from '../helpers/advice-fixtures.js';
 import { basicResources, bolusDraft } from '../helpers/hook-fixtures.js';
 
