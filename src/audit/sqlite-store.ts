@@ -15,6 +15,12 @@ import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
 import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
 import { summarize, feedbackKey, ownerOf } from './shared.js';
 
+/**
+ * The writer thread's entry. Built (dist/, `npm start`) this module is JavaScript and the compiled writer runs as is;
+ * run from source (tsx, vitest) a worker does not inherit the loader, so the .mjs bridge registers tsx first.
+ */
+const WRITER_ENTRY = import.meta.url.endsWith('.ts') ? './sqlite-writer.mjs' : './sqlite-writer.js';
+
 const SCHEMA = `
 CREATE TABLE IF NOT EXISTS advice (
   seq INTEGER PRIMARY KEY AUTOINCREMENT,
@@ -100,7 +106,7 @@ export class SqliteAuditStore implements AuditStore {
   private closing = false;
 
   private startWriter(): Worker {
-    const w = new Worker(new URL('./sqlite-writer.mjs', import.meta.url), { workerData: { path: this.path } });
+    const w = new Worker(new URL(WRITER_ENTRY, import.meta.url), { workerData: { path: this.path } });
     w.on('message', (m: WriterOut) => {
       if (m.type === 'done') {
         for (const r of m.results) {

@@ -1,8 +1,12 @@
-/** `npm start`: runs the service on the configured port (embedded SQLite audit by default). */
+/**
+ * `npm start` (built: node dist/cli/serve.js; `npm run trial` runs this file through tsx): runs the service on the
+ * configured port (embedded SQLite audit by default) and stops gracefully on SIGTERM / SIGINT (shutdown.ts).
+ */
 import { loadConfig, ConfigError } from '../config/config.js';
 import { createLogger } from '../log.js';
 import { buildService } from '../service.js';
 import { listen } from './listen.js';
+import { gracefulShutdown } from './shutdown.js';
 
 async function main(): Promise<void> {
   let cfg;
@@ -17,15 +21,17 @@ async function main(): Promise<void> {
     const svc = await buildService(cfg);
     // A stray rejection must not take the service down mid-shift: log it (ids only) and keep serving.
     process.on('unhandledRejection', (e) => svc.log.error({ err: String((e as Error)?.message ?? e).slice(0, 200) }, 'unhandled rejection'));
+    // The handlers come before the listening line: once a supervisor can see the service, a signal is a graceful stop
+    // (without a handler the kernel's default ends the process at once). One that arrives while it binds waits.
+    let stop: ((signal: string) => Promise<void>) | undefined;
+    const early: string[] = [];
+    const onSignal = (signal: string) => (stop ? void stop(signal) : void early.push(signal));
+    process.on('SIGTERM', () => onSignal('SIGTERM'));
+    process.on('SIGINT', () => onSignal('SIGINT'));
     const server = await listen(svc, cfg);
     server.requestTimeout = 30_000;
-    const stop = (signal: string) => {
-      svc.log.info({ signal }, 'shutting down');
-      server.close(() => void svc.close().then(() => process.exit(0)));
-      setTimeout(() => process.exit(0), 5000).unref();
-    };
-    process.on('SIGTERM', () => stop('SIGTERM'));
-    process.on('SIGINT', () => stop('SIGINT'));
+    stop = gracefulShutdown(server, svc);
+    for (const signal of early) void stop(signal);
   } catch (e) {
     createLogger(cfg.TIDEMARK_LOG_LEVEL).fatal(
       { err: (e as Error).message.slice(0, 2000) },

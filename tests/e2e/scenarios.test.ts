@@ -14,7 +14,7 @@ import type { BuiltScenario, Scenario } from '../../examples/scenarios/types.js'
 import { nonUtcTimes, startEmbeddedFhir, type EmbeddedFhir } from '../../src/devserver/embedded-fhir.js';
 import { resolvePrefetchTemplate } from '../../src/hooks/prefetch-tokens.js';
 import { cardSchema } from '../../src/hooks/schemas.js';
-import { checkCdsResponse } from '../../src/hooks/conformance.js';
+import { checkCdsResponse } from '../helpers/cds-conformance.js';
 import { PREFETCH } from '../../src/hooks/services.js';
 import { validateFhir } from '../../src/fhir/validator.js';
 import { get, startService, type Running } from '../helpers/server.js';

@@ -1,8 +1,8 @@
 // Cards a prescriber can act on. Every card the service makes here passes our CDS Hooks 2.0 response check
-// (schema + invariants, src/hooks/conformance.ts); every FHIR resource in a suggestion passes the registry's
+// (schema + invariants, tests/helpers/cds-conformance.ts); every FHIR resource in a suggestion passes the registry's
 // FHIR R4 validator (@medplum/core against the base StructureDefinitions) plus the status bindings it skips.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { checkCdsResponse } from '../../src/hooks/conformance.js';
+import { checkCdsResponse } from '../helpers/cds-conformance.js';
 import { statusCodeCount, validateFhir } from '../../src/fhir/validator.js';
 import { loadCatalogue } from '../../src/cards/catalogue.js';
 import { ADVICE_CASES, type AdviceCase } from '../helpers/advice-fixtures.js';

@@ -5,7 +5,7 @@ import type { Server } from 'node:http';
 import express from 'express';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import * as b from '../../examples/lib/fhir-builders.js';
-import { checkCdsResponse } from '../../src/hooks/conformance.js';
+import { checkCdsResponse } from '../helpers/cds-conformance.js';
 import { NOW, orderSelectRequest, PID } from '../helpers/hook-fixtures.js';
 import { AUDIT_HEADERS, get, post, startService, type Running } from '../helpers/server.js';
 

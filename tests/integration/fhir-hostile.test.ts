@@ -14,7 +14,7 @@ import { createGzip } from 'node:zlib';
 import { calculateJwkThumbprint, exportJWK, generateKeyPair, SignJWT } from 'jose';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import * as b from '../../examples/lib/fhir-builders.js';
-import { checkCdsResponse } from '../../src/hooks/conformance.js';
+import { checkCdsResponse } from '../helpers/cds-conformance.js';
 import { basicResources, NOW, orderSelectRequest, PID, prefetchOf } from '../helpers/hook-fixtures.js';
 import { AUDIT_HEADERS, get, post, startService, type Running } from '../helpers/server.js';
 

@@ -1,10 +1,10 @@
 // Fuzzing the hook and feedback endpoints over real HTTP with fast-check: 10,600 generated bodies in all.
 // Never a crash, never a 5xx: always a clear 400-class OperationOutcome or a valid CDS Hooks response
-// (checked with our CDS Hooks 2.0 response check, src/hooks/conformance.ts). An OperationOutcome stays short
+// (checked with our CDS Hooks 2.0 response check, tests/helpers/cds-conformance.ts). An OperationOutcome stays short
 // whatever was sent: client text is not echoed whole (issue 13 item 5).
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { checkCdsResponse } from '../../src/hooks/conformance.js';
+import { checkCdsResponse } from '../helpers/cds-conformance.js';
 import { basicResources, NOW, orderSelectRequest, prefetchOf } from '../helpers/hook-fixtures.js';
 import { post, startService, type Running } from '../helpers/server.js';
 

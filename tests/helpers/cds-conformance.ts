@@ -1,9 +1,9 @@
 /**
- * A CDS Hooks 2.0 response check of ours: the response schema from the spec (schemas.ts) plus its invariants
- * (the 3.0 FSH invariants) and the JSON rule "omit optional
+ * A CDS Hooks 2.0 response check of ours (test-only, so it lives under tests/): the response schema from the spec
+ * (src/hooks/schemas.ts) plus its invariants (the FSH invariants of the CDS Hooks 3.0 ballot) and the JSON rule "omit optional
  * fields: never null, "", [] or {}" (except `cards: []`). Used by the tests over every card the service makes.
  */
-import { hookResponseSchema } from './schemas.js';
+import { hookResponseSchema } from '../../src/hooks/schemas.js';
 
 export function checkCdsResponse(body: unknown): string[] {
   const problems: string[] = [];
