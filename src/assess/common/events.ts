@@ -18,6 +18,8 @@ export interface EvidenceEvent {
   /** "500 mL balanced-crystalloid started 2026-…", "norepinephrine rate changed at …". */
   text: string;
   evidence: Evidence;
+  /** For a rate change: the entry before it, cited too (the change is read from the pair). */
+  previous?: Evidence;
 }
 
 /** All events, newest first (ties by reference). */
@@ -29,7 +31,7 @@ export function evidenceEvents(s: PatientSnapshot, now: Date, fluidEventMinMl: n
     out.push({ kind: 'fluid', at: f.start, atMs: timeMs(f.start), text: `${fmt(f.volumeMl)} mL ${f.display || 'IV fluid'} started at ${f.start}`, evidence: evidenceOfFluid(f, now) });
   }
   for (const c of vasoactiveChangesBetween(s.vasoactives, -Infinity, now.getTime())) {
-    out.push({ kind: 'vasoactive-change', change: c.kind, at: c.at, atMs: c.atMs, text: `${c.drug.drug} ${c.kind} at ${c.at}`, evidence: evidenceOfVasoactive(c.drug, now) });
+    out.push({ kind: 'vasoactive-change', change: c.kind, at: c.at, atMs: c.atMs, text: `${c.drug.drug} ${c.kind} at ${c.at}`, evidence: evidenceOfVasoactive(c.drug, now), ...(c.previous ? { previous: evidenceOfVasoactive(c.previous, now) } : {}) });
   }
   // Ties: by reference, then a start before a rate change, so that the event named does not depend on whether a
   // second record of the same moment exists (a rate change is derived from a pair of records).

@@ -127,7 +127,7 @@ export function unusableParts<T>(
       return {
         status: 'not-assessed', gap: 'set-aside', text: `${label}: set aside, taken before a later event (${sel.event.text})`,
         reason: `${label} no longer describes the patient: taken before ${sel.event.text}`,
-        evidence: [evidenceOf(sel.item), sel.event.evidence], values: { freshness: 'set-aside', ageMin: Math.round(sel.ageMinutes) },
+        evidence: [evidenceOf(sel.item), sel.event.evidence, ...(sel.event.previous ? [sel.event.previous] : [])], values: { freshness: 'set-aside', ageMin: Math.round(sel.ageMinutes) },
       };
     case 'invalid':
       return {

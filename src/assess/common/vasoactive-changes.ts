@@ -13,6 +13,8 @@ const IGNORED_STATUS = new Set(['not-done', 'entered-in-error']);
 export interface DoseChange {
   drug: VasoactiveDrug;
   kind: 'started' | 'stopped' | 'rate changed';
+  /** For a rate change: the entry it follows (a rate change is read from the pair, so both are its evidence). */
+  previous?: VasoactiveDrug;
   at: string;
   atMs: number;
 }
@@ -51,7 +53,10 @@ export function vasoactiveChangesBetween(all: readonly VasoactiveDrug[], fromMs:
     if (inSpan(startMs)) {
       const prev = drugs.filter((w) => w !== v && sameDrug(w, v) && w.end !== undefined && Math.abs(timeMs(w.end) - startMs) <= ABUT_MS);
       if (prev.length === 0) out.push({ drug: v, kind: 'started', at: v.start, atMs: startMs });
-      else if (!prev.some((w) => sameRate(w, v))) out.push({ drug: v, kind: 'rate changed', at: v.start, atMs: startMs });
+      else if (!prev.some((w) => sameRate(w, v))) {
+        const before = [...prev].sort((a, b) => compareText(a.ref, b.ref))[0] as VasoactiveDrug;
+        out.push({ drug: v, kind: 'rate changed', previous: before, at: v.start, atMs: startMs });
+      }
     }
     if (v.end !== undefined) {
       const endMs = timeMs(v.end);
