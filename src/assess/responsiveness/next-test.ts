@@ -17,7 +17,10 @@ import { checkIntraAbdominalPressure, checkRhythm, checkTidalVolume, checkVentil
 export function chooseNextTest(ctx: RuleContext): NextTestKind {
   const { t, snapshot: s, now } = ctx;
   const vent = checkVentilation(ctx);
-  const hasIndex = latestReading(s, 'ppv', now, ctx.w.ppvSvvMin).state !== 'missing' || latestReading(s, 'svv', now, ctx.w.ppvSvvMin).state !== 'missing';
+  // A PPV or SVV within its window (fresh, or set aside by a later event: the arterial line is there either way);
+  // a stale one says nothing about the patient now and does not choose the test.
+  const current = (k: 'ppv' | 'svv') => { const st = latestReading(s, k, now, ctx.w.ppvSvvMin).state; return st === 'fresh' || st === 'set-aside'; };
+  const hasIndex = current('ppv') || current('svv');
   if (vent.state === 'met' && hasIndex && checkRhythm(ctx).state === 'met' && checkTidalVolume(ctx).state === 'failed') return 'tidal-volume-challenge';
   if (checkIntraAbdominalPressure(ctx).state === 'failed') return 'mini-fluid-challenge';
   const flowMonitor = (['cardiacOutput', 'cardiacIndex', 'strokeVolume'] as const).some((k) => {
