@@ -68,6 +68,18 @@ export interface AdviceQuery {
   cursor?: string;
 }
 
+/** Filters of a streamed read (records oldest first, by seq). */
+export interface RecordStreamQuery {
+  service?: string;
+  from?: string;
+  to?: string;
+  outcome?: AdviceOutcome;
+  /** Only records after this seq (resume a run; paging of the impact endpoint). */
+  afterSeq?: number;
+  /** Records fetched per round trip; the store holds at most this many at once. */
+  batchSize?: number;
+}
+
 export interface FeedbackRow {
   cardUuid: string;
   outcome: 'accepted' | 'overridden';
@@ -102,6 +114,11 @@ export interface AuditStore {
   /** Stores feedback idempotently: a repeat of the same card, outcome and timestamp is a duplicate. */
   addFeedback(rows: FeedbackRow[]): Promise<{ stored: number; duplicates: number }>;
   feedbackFor(adviceId: string): Promise<FeedbackRow[]>;
+  /**
+   * Every matching record, oldest first (ascending seq), read in batches by seq so that a trail of any length
+   * is never held in memory at once. Stopping the loop early is fine: nothing stays open between batches.
+   */
+  records(q: RecordStreamQuery): AsyncIterable<StoredAdvice>;
   feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats>;
   /** Recomputes the hash chain; reports the first record that does not match. */
   verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }>;

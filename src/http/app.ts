@@ -10,6 +10,7 @@ import type { AuditStore } from '../audit/types.js';
 import { evaluateHook, type EvaluateDeps } from '../hooks/evaluate.js';
 import { recordFeedback } from '../hooks/feedback.js';
 import { replay } from '../audit/replay.js';
+import { impactPage, impactRequestSchema } from '../audit/impact-request.js';
 import { discoveryDocument, findService } from '../hooks/services.js';
 import { withDepthLimit } from './body-shape.js';
 import { HttpError, operationOutcome, zodIssues } from './errors.js';
@@ -23,6 +24,8 @@ export interface AppDeps extends EvaluateDeps {
   auditAuth?: RequestHandler;
   /** Origins allowed to call from a browser (CORS); none by default. */
   corsOrigins?: readonly string[];
+  /** Digest of the loaded card catalogue, for the rules version of a candidate in an impact run. */
+  catalogueDigest?: string;
   /** Extra readiness warnings (e.g. trial mode). */
   readinessWarnings?: string[];
   /** Extra routes mounted before the error handler (metrics). */
@@ -154,6 +157,14 @@ export function createApp(deps: AppDeps): express.Express {
     res.json(await deps.store.feedbackStats({
       ...(q.data.service ? { service: q.data.service } : {}), ...(q.data.from ? { from: toInstant(q.data.from) } : {}), ...(q.data.to ? { to: toInstant(q.data.to, true) } : {}),
     }));
+  });
+  app.post('/audit/impact', audit, json, async (req: Request, res: Response) => {
+    const body = impactRequestSchema.safeParse(req.body);
+    if (!body.success) throw new HttpError(400, 'invalid', 'invalid impact request', zodIssues(body.error.issues, 'body'));
+    const { from, to } = body.data;
+    const page = await impactPage(deps.store, { ...body.data, ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}) }, { catalogue: deps.catalogue, ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}) });
+    if (!page.ok) throw new HttpError(400, 'invalid', 'the candidate thresholds are invalid', [page.message]);
+    res.json(page.body);
   });
   app.get('/audit/verify', audit, async (_req, res) => {
     res.json(await deps.store.verifyChain());
