@@ -225,11 +225,12 @@ export class PostgresAuditStore implements AuditStore {
     return r.rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
   }
 
+  /** Cards accepted and cards overridden per advice (distinct cards, as feedbackStats counts them; not feedback rows). */
   private async feedbackCounts(adviceIds: string[]): Promise<Map<string, { accepted: number; overridden: number }>> {
     const out = new Map<string, { accepted: number; overridden: number }>();
     if (!adviceIds.length) return out;
     const r = await this.pool.query<{ advice_id: string; outcome: string; n: number }>(
-      `SELECT c.advice_id, f.outcome, COUNT(*)::int AS n FROM ${this.s}.feedback f JOIN ${this.s}.advice_card c ON c.card_uuid = f.card_uuid
+      `SELECT c.advice_id, f.outcome, COUNT(DISTINCT f.card_uuid)::int AS n FROM ${this.s}.feedback f JOIN ${this.s}.advice_card c ON c.card_uuid = f.card_uuid
        WHERE c.advice_id = ANY($1::text[]) GROUP BY c.advice_id, f.outcome`,
       [adviceIds],
     );

@@ -223,12 +223,13 @@ export class SqliteAuditStore implements AuditStore {
     return rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
   }
 
+  /** Cards accepted and cards overridden per advice (distinct cards, as feedbackStats counts them; not feedback rows). */
   private feedbackCounts(adviceIds: string[]): Map<string, { accepted: number; overridden: number }> {
     const out = new Map<string, { accepted: number; overridden: number }>();
     if (!adviceIds.length) return out;
     const rows = this.db
       .prepare(
-        `SELECT c.advice_id AS advice_id, f.outcome AS outcome, COUNT(*) AS n FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid
+        `SELECT c.advice_id AS advice_id, f.outcome AS outcome, COUNT(DISTINCT f.card_uuid) AS n FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid
          WHERE c.advice_id IN (${adviceIds.map(() => '?').join(',')}) GROUP BY c.advice_id, f.outcome`,
       )
       .all(...adviceIds) as Array<{ advice_id: string; outcome: string; n: number }>;

@@ -55,6 +55,10 @@ export interface AdviceSummary {
   cardCount: number;
   indicators: string[];
   latencyMs: number;
+  /**
+   * Cards of this answer with at least one accepted (overridden) feedback — cards, not feedback rows, so that the
+   * list agrees with feedbackStats: a card accepted twice counts once; a card both accepted and overridden, in both.
+   */
   feedback: { accepted: number; overridden: number };
 }
 
@@ -100,6 +104,7 @@ export interface CardOwner {
 }
 
 export interface FeedbackStats {
+  /** Per card kind: cards shown, and cards with at least one accepted (overridden) feedback. */
   byKind: Array<{ cardKind: string; cards: number; accepted: number; overridden: number; overrideRate: number }>;
   byReason: Array<{ cardKind: string; reasonCode: string; reasonDisplay: string; count: number }>;
 }
