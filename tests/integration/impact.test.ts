@@ -4,7 +4,6 @@
 // 14 % in the grey zone (9 % up to the threshold: Cannesson et al., Anesthesiology 2011) — exactly those three
 // records change from likely, the rest stay as they were. Over the command line (a child process) and the
 // audit API (real HTTP, the audit credential).
-import { spawn } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -12,6 +11,7 @@ import type { FhirResource } from 'fhir/r4.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import * as b from '../../examples/lib/fhir-builders.js';
 import { ADVICE_CASES } from '../helpers/advice-fixtures.js';
+import { auditCli } from '../helpers/audit-cli.js';
 import { basicResources, NOW, orderSelectRequest, PID, prefetchOf } from '../helpers/hook-fixtures.js';
 import { AUDIT_HEADERS, post, startService, type Running } from '../helpers/server.js';
 
@@ -57,22 +57,7 @@ afterAll(async () => {
   rmSync(dir, { recursive: true, force: true });
 });
 
-/**
- * The command line as a child process, awaited without blocking this process (the service under test runs here:
- * a blocked event loop would leave its idle keep-alive sockets half-closed for the next fetch).
- */
-function cli(...args: string[]): Promise<{ status: number | null; stdout: string; stderr: string }> {
-  return new Promise((resolve, reject) => {
-    const c = spawn(process.execPath, ['--import', 'tsx', 'src/cli/audit.ts', ...args], { env: { ...process.env, TIDEMARK_SQLITE_PATH: s.dbPath } });
-    let stdout = '';
-    let stderr = '';
-    c.stdout.setEncoding('utf8').on('data', (d: string) => (stdout += d));
-    c.stderr.setEncoding('utf8').on('data', (d: string) => (stderr += d));
-    c.on('error', reject);
-    c.on('close', (status) => resolve({ status, stdout, stderr }));
-  });
-}
-
+const cli = (...args: string[]) => auditCli({ TIDEMARK_SQLITE_PATH: s.dbPath }, ...args);
 function file(name: string, value: unknown): string {
   const p = join(dir, name);
   writeFileSync(p, typeof value === 'string' ? value : JSON.stringify(value));
