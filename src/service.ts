@@ -62,8 +62,8 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
   if (unlisted.length) log.warn({ issuers: unlisted }, 'trusted issuers without a fhirServers list: any https FHIR server their calls name gets the call\'s token (docs/security.md)');
   const warnings: string[] = [];
   if (cfg.TIDEMARK_TRIAL_MODE) {
+    // Shown at /readyz; the start-up log line comes from the CDS guard (src/auth/middleware.ts), once.
     warnings.push('local trial mode: CDS calls are accepted without a verified client JWT; never use with real patients');
-    log.warn({}, warnings[0] as string);
   }
   if (!cfg.TIDEMARK_TRIAL_MODE && auth.issuers.length === 0) warnings.push('no trusted issuers configured: every CDS call is refused');
   if (!cfg.TIDEMARK_TRIAL_MODE && cfg.TIDEMARK_PUBLIC_URL === undefined) {

@@ -18,7 +18,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-amberley',
-  expect: { responsiveness: 'likely', tolerance: 'adequate', indicator: 'info' },
+  expect: { responsiveness: 'likely', tolerance: 'adequate', indicator: 'info', action: 'proceed-and-reassess' },
   conclusion:
     'Valid PPV of 17 % under controlled ventilation without effort, sinus rhythm and Vt 8.2 mL/kg PBW says this patient is very likely to raise '
     + 'cardiac output with volume, and nothing limits tolerance yet: give the 500 mL and reassess MAP, lactate and PPV straight after.',

@@ -3,6 +3,11 @@
  * peritonitis, day 3 in the ICU, ventilated without effort, sinus rhythm, Vt 8.4 mL/kg PBW, IAP below 12 mmHg:
  * PPV 15 % is valid. But albumin is 21 g/L, the stay has run +8.6 L, weight is up 12 %, there is grade 3
  * oedema and a B-pattern in 5 of 8 lung regions. Asked on order-sign.
+ *
+ * Expectation changed with assessment v2 (clinical-references §12): the B-pattern is charted without its side, so it
+ * cannot show diffuse (bilateral) lung water and is capped at a moderate limit, not a harm sign; tolerance is still
+ * poor (+8.6 L is 12.6 % of the admission weight, ≥ 10 % in an adult: Bouchard 2009), but the card is a warning,
+ * not critical. Albumin 21 g/L is context only.
  */
 import * as b from '../lib/fhir-builders.js';
 import { Chart, CONDITIONS, every, wobble } from './chart.js';
@@ -18,11 +23,12 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-okonjo',
-  expect: { responsiveness: 'likely', tolerance: 'poor', indicator: 'critical' },
+  expect: { responsiveness: 'likely', tolerance: 'poor', indicator: 'warning' },
   conclusion:
     'She would probably raise her cardiac output with volume, but with cirrhosis, albumin 21 g/L, +8.6 L, grade 3 oedema and diffuse B-lines '
     + 'more crystalloid will mostly go to the lungs and tissues: support pressure with a vasopressor and, if volume is given at all, a small aliquot '
-    + '(albumin rather than crystalloid) with close reassessment.',
+    + '(albumin rather than crystalloid) with close reassessment. The lung ultrasound gives no side, so it shows B-lines, not proven '
+    + 'bilateral lung water: a warning, not a critical card.',
   build(now) {
     const c = new Chart('rpt', P, now);
     c.patient('female', '1971-09-02', 'Vell', 'Perpetua').encounter(E, 70 * 60, 'Tern ICU, bed 11');

@@ -3,6 +3,10 @@
  * 500 mL balanced crystalloid bolus an hour ago raised MAP by about 8 mmHg and lowered heart rate by about 11/min,
  * with lactate and capillary refill improving; since then MAP is drifting down again. A new IVC look shows a
  * small IVC collapsing by 45 % with breathing.
+ *
+ * Expectation changed with assessment v2 (clinical-references §12): an hourly pressure change after a bolus and an
+ * IVC in spontaneous breathing are static markers; two agreeing give "likely" with LOW confidence, and the advice
+ * is to confirm with a test before more volume rather than to give.
  */
 import * as b from '../lib/fhir-builders.js';
 import type { VitalsRow } from './chart.js';
@@ -29,10 +33,11 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-okonjo',
-  expect: { responsiveness: 'likely', tolerance: 'adequate', indicator: 'info' },
+  expect: { responsiveness: 'likely', tolerance: 'adequate', indicator: 'info', action: 'test-first', nextTest: 'mini-fluid-challenge' },
   conclusion:
     'She answered the last bolus (MAP up 8 mmHg, heart rate down 11/min, lactate and capillary refill better) and her small IVC still collapses '
-    + 'by 45 %, so she is probably still on the steep part of the curve: another 500 mL is reasonable, reassessed the same way afterwards.',
+    + 'by 45 %, so she is probably still on the steep part of the curve. Both are weak static signs (hourly pressures, an IVC in a breathing '
+    + 'patient): a quick test (mini fluid challenge with VTI) would confirm before the next 500 mL.',
   build(now) {
     const c = new Chart('ba', P, now);
     c.patient('female', '1978-03-26', 'Stroud', 'Mirela').encounter(E, 26 * 60, 'Tern ICU, bed 3');

@@ -2,6 +2,9 @@
  * (g) A prior bolus that was not answered: faecal peritonitis, ventilated without effort (Vt 8.1 mL/kg PBW),
  * on a steady norepinephrine infusion. 500 mL of sodium chloride 0.9 % an hour ago left MAP (+1) and heart
  * rate unchanged; the IVC barely distends with the ventilator (Barbier index 4.5 %). Asked on order-sign.
+ *
+ * With assessment v2 (§12) both are static markers charted hourly: they agree, so responsiveness is "unlikely" with
+ * LOW confidence, and the card asks for a test before more volume rather than treating the question as settled.
  */
 import * as b from '../lib/fhir-builders.js';
 import type { VitalsRow } from './chart.js';
@@ -27,10 +30,11 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-saltash',
-  expect: { responsiveness: 'unlikely', tolerance: 'adequate', indicator: 'warning' },
+  expect: { responsiveness: 'unlikely', tolerance: 'adequate', indicator: 'warning', action: 'test-first', nextTest: 'mini-fluid-challenge' },
   conclusion:
     'The last 500 mL moved neither MAP nor heart rate and the IVC hardly distends under controlled ventilation, so another bolus is unlikely to '
-    + 'help: raise the vasopressor to the MAP target and look for a cause (echo, source control) rather than give more volume.',
+    + 'help: raise the vasopressor to the MAP target and look for a cause (echo, source control) rather than give more volume; both signs are '
+    + 'weak (hourly pressures, IVC), so if volume is still considered, test first (mini fluid challenge with VTI).',
   build(now) {
     const c = new Chart('bu', P, now);
     c.patient('male', '1949-08-12', 'Ashgrove', 'Lionel').encounter(E, 20 * 60, 'Kestrel ICU, bed 9');

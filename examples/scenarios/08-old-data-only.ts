@@ -18,7 +18,7 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-fenwright',
-  expect: { responsiveness: 'indeterminate', tolerance: 'unknown', indicator: 'info' },
+  expect: { responsiveness: 'indeterminate', tolerance: 'not-known', indicator: 'info' },
   conclusion:
     'Nothing on the chart is current, so neither responsiveness nor tolerance can be judged from it: examine the patient and re-measure '
     + '(blood pressure, lactate, a dynamic test) before deciding on the bolus; old reassuring values are no basis for advice.',

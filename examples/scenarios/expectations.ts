@@ -8,17 +8,17 @@ import type { ScenarioExpectation } from './types.js';
 export interface ObservedVerdicts {
   /** null: the record has no responsiveness verdict. */
   responsiveness: string | null;
-  /**
-   * 'unknown' when the verdict is 'adequate' with no deciding rule (no tolerance marker could be assessed);
-   * null: the record has no tolerance verdict.
-   */
+  /** null: the record has no tolerance verdict. */
   tolerance: string | null;
   /** The most severe card indicator, or 'no-card'. */
   indicator: string;
+  /** advice.recommendation.action and .nextTest (null when absent). */
+  action: string | null;
+  nextTest: string | null;
 }
 
-interface VerdictLike { value?: unknown; decidingRules?: unknown }
-interface RecordLike { advice?: { responsiveness?: VerdictLike; tolerance?: VerdictLike } }
+interface VerdictLike { value?: unknown }
+interface RecordLike { advice?: { responsiveness?: VerdictLike; tolerance?: VerdictLike; recommendation?: { action?: unknown; nextTest?: unknown } } }
 
 const SEVERITY = ['info', 'warning', 'critical'];
 
@@ -26,11 +26,13 @@ export function observedVerdicts(record: unknown, cards: ReadonlyArray<{ indicat
   const advice = (record as RecordLike | undefined)?.advice;
   const r = advice?.responsiveness;
   const t = advice?.tolerance;
-  const tolerance = t && typeof t.value === 'string'
-    ? (t.value === 'adequate' && Array.isArray(t.decidingRules) && t.decidingRules.length === 0 ? 'unknown' : t.value)
-    : null;
+  const tolerance = t && typeof t.value === 'string' ? t.value : null;
   const indicators = cards.map((c) => String(c.indicator)).sort((a, b) => SEVERITY.indexOf(b) - SEVERITY.indexOf(a));
-  return { responsiveness: r && typeof r.value === 'string' ? r.value : null, tolerance, indicator: indicators[0] ?? 'no-card' };
+  const rec = advice?.recommendation;
+  return {
+    responsiveness: r && typeof r.value === 'string' ? r.value : null, tolerance, indicator: indicators[0] ?? 'no-card',
+    action: typeof rec?.action === 'string' ? rec.action : null, nextTest: typeof rec?.nextTest === 'string' ? rec.nextTest : null,
+  };
 }
 
 /** The ways `observed` departs from `expected`; empty when it matches. */
@@ -41,11 +43,13 @@ export function mismatches(expected: ScenarioExpectation, observed: ObservedVerd
     out.push(`responsiveness ${observed.responsiveness ?? 'not given'}, expected ${expected.responsiveness}`);
   }
   if (expected.tolerance !== null) {
-    // "unknown" also matches a record that leaves the tolerance verdict out while giving a responsiveness verdict.
+    // "not-known" also matches a record that leaves the tolerance verdict out while giving a responsiveness verdict.
     const ok = expected.tolerance === observed.tolerance
-      || (expected.tolerance === 'unknown' && observed.tolerance === null && observed.responsiveness !== null);
+      || (expected.tolerance === 'not-known' && observed.tolerance === null && observed.responsiveness !== null);
     if (!ok) out.push(`tolerance ${observed.tolerance ?? 'not given'}, expected ${expected.tolerance}`);
   }
+  if (expected.action !== undefined && expected.action !== observed.action) out.push(`action ${observed.action ?? 'none'}, expected ${expected.action}`);
+  if (expected.nextTest !== undefined && expected.nextTest !== observed.nextTest) out.push(`test offered ${observed.nextTest ?? 'none'}, expected ${expected.nextTest ?? 'none'}`);
   return out;
 }
 

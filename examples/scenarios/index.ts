@@ -17,6 +17,15 @@ import { scenario as bolusUnanswered } from './07-bolus-unanswered.js';
 import { scenario as oldDataOnly } from './08-old-data-only.js';
 import { scenario as notAFluidOrder } from './09-not-a-fluid-order.js';
 import { scenario as tidalVolumeChallenge } from './10-tidal-volume-challenge.js';
+import { scenario as responsiveWellPerfused } from './11-responsive-well-perfused.js';
+import { scenario as ppvHighLowTidalVolume } from './12-ppv-high-low-tidal-volume.js';
+import { scenario as cvpOnPeep } from './13-cvp-on-peep.js';
+import { scenario as legRaiseBeforeBolus } from './14-leg-raise-before-bolus.js';
+import { scenario as raisedAbdominalPressure } from './15-raised-abdominal-pressure.js';
+import { scenario as oneSidedLungUltrasound } from './16-one-sided-lung-ultrasound.js';
+import { scenario as perfusedAfIvcOnly } from './17-perfused-af-ivc-only.js';
+import { scenario as earlySepticShock } from './18-early-septic-shock.js';
+import { scenario as cirrhosisLungWater } from './19-cirrhosis-lung-water.js';
 import type { BuiltScenario, OrderHook, Scenario } from './types.js';
 
 export type { BuiltScenario, Scenario, ScenarioExpectation } from './types.js';
@@ -24,6 +33,8 @@ export type { BuiltScenario, Scenario, ScenarioExpectation } from './types.js';
 export const SCENARIOS: readonly Scenario[] = [
   clearResponder, responderPoorTolerance, fixedFullIvc, ppvNotValid, legRaiseFirst,
   bolusAnswered, bolusUnanswered, oldDataOnly, notAFluidOrder, tidalVolumeChallenge,
+  responsiveWellPerfused, ppvHighLowTidalVolume, cvpOnPeep, legRaiseBeforeBolus, raisedAbdominalPressure,
+  oneSidedLungUltrasound, perfusedAfIvcOnly, earlySepticShock, cirrhosisLungWater,
 ];
 
 /** The Tidemark service that answers a hook (from the registry, not hard-coded). */

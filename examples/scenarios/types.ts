@@ -5,8 +5,8 @@
 import type { FhirResource, Resource } from 'fhir/r4.js';
 
 export type ExpectedResponsiveness = 'likely' | 'unlikely' | 'indeterminate';
-/** 'unknown': no tolerance marker could be assessed (the engine then says 'adequate' with no deciding rule, or leaves it out). */
-export type ExpectedTolerance = 'adequate' | 'limited' | 'poor' | 'unknown';
+/** 'not-known': too few tolerance markers could be assessed to call tolerance adequate (clinical-references §12). */
+export type ExpectedTolerance = 'adequate' | 'limited' | 'poor' | 'not-known';
 /** 'no-card': Tidemark should stay silent (not a fluid order). */
 export type ExpectedIndicator = 'info' | 'warning' | 'critical' | 'no-card';
 
@@ -15,6 +15,10 @@ export interface ScenarioExpectation {
   responsiveness: ExpectedResponsiveness | null;
   tolerance: ExpectedTolerance | null;
   indicator: ExpectedIndicator;
+  /** What the advice should do (src/assess/advice/types.ts AdviceAction); checked when given. */
+  action?: string;
+  /** The test the card should offer (NextTestKind), or null for none; checked when given. */
+  nextTest?: string | null;
 }
 
 export type OrderHook = 'order-select' | 'order-sign';

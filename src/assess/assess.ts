@@ -1,54 +1,70 @@
 /**
  * assess(): the pure core. A function of (snapshot, now, thresholds, rulesVersion):
- * responsiveness engine, tolerance engine, the reading of each selected fluid order, and the advice matrix
- * that joins them. Failures are isolated (conventions §6): a group that throws is recorded in ruleErrors and
- * the other findings still count.
+ *   need/            is there anything to treat, and which phase of fluid therapy;
+ *   responsiveness/  likely | unlikely | indeterminate, with its confidence and the test that would settle it;
+ *   tolerance/       adequate | limited | poor | not known (a CVP that decided responsiveness counts once);
+ *   order/           the reading of each selected fluid order;
+ *   advice/          the matrix that joins them, in codes.
+ * All on the common rule core (common/). Failures are isolated (conventions §6): a group that throws is recorded in
+ * ruleErrors and the other findings still count.
  */
 import type { PatientSnapshot } from '../snapshot/types.js';
 import { adviseOrder } from './advice/index.js';
+import { evidenceEvents } from './common/events.js';
+import type { Finding, SharedNumber } from './common/finding.js';
+import { guarded, type RuleContext } from './common/rule.js';
+import { assessNeed } from './need/index.js';
 import { describeOrder } from './order/index.js';
 import { assessResponsiveness } from './responsiveness/index.js';
 import type { Thresholds } from './thresholds.js';
 import { assessTolerance } from './tolerance/index.js';
-import type { Advice, Finding } from './types.js';
+import type { Advice } from './types.js';
 
 export function assess(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: string): Advice {
   const findings: Finding[] = [];
   const ruleErrors: Advice['ruleErrors'] = [];
   const advice: Advice = { rulesVersion, now: now.toISOString(), findings, ruleErrors };
-  const guard = <T>(id: string, fn: () => T): T | undefined => {
-    try {
-      return fn();
-    } catch (e) {
-      ruleErrors.push({ ruleId: id, message: String((e as Error)?.message ?? e).slice(0, 300) });
-      return undefined;
-    }
-  };
+  const events = guarded('events', ruleErrors, () => evidenceEvents(s, now, t.windows.fluidEventMinMl)) ?? [];
+  const ctx = <T>(x: T): RuleContext<T> => ({ snapshot: s, now, t: x, w: t.windows, events });
 
-  const r = guard('responsiveness', () => assessResponsiveness(s, now, t.responsiveness));
+  const tol = t.tolerance;
+  const need = guarded('need', ruleErrors, () => assessNeed(ctx({
+    ...t.need, weightMaxAgeHours: tol.weightMaxAgeHours, admissionWeightWindowHours: tol.admissionWeightWindowHours,
+    balanceFallbackLookbackHours: tol.balanceFallbackLookbackHours, urinePointMaxGapMinutes: tol.urinePointMaxGapMinutes,
+    urineRecencyMinutes: tol.urineRecencyMinutes, urineCoverageFraction: tol.urineCoverageFraction,
+  })));
+  if (need) {
+    findings.push(...need.findings);
+    ruleErrors.push(...need.ruleErrors);
+    advice.need = need.need;
+    if (need.phase) advice.phase = need.phase;
+  }
+
+  const r = guarded('responsiveness', ruleErrors, () => assessResponsiveness(ctx(t.responsiveness)));
   if (r) {
     findings.push(...r.findings);
     ruleErrors.push(...r.ruleErrors);
     advice.responsiveness = r.verdict;
   }
-  const tol = guard('tolerance', () => assessTolerance(s, now, t.tolerance));
-  if (tol) {
-    findings.push(...tol.findings);
-    ruleErrors.push(...tol.ruleErrors);
-    // With no limiting marker assessed, 'adequate' would mean "unknown": leave the verdict unset.
-    if (tol.coverage.assessed > 0) advice.tolerance = tol.verdict;
+  // A number counts once: the shared numbers of the findings that decided responsiveness.
+  const counted: SharedNumber[] = r
+    ? [...new Set(r.findings.filter((f) => r.verdict.decidingRules.includes(f.ruleId) && r.verdict.value !== 'indeterminate').flatMap((f) => f.uses ?? []))]
+    : [];
+  const tv = guarded('tolerance', ruleErrors, () => assessTolerance(ctx(t.tolerance), counted));
+  if (tv) {
+    findings.push(...tv.findings);
+    ruleErrors.push(...tv.ruleErrors);
+    advice.tolerance = tv.verdict;
   }
 
   const orders = s.draftOrders.filter((o) => o.selected && o.isFluid);
   if (orders.length) {
-    const orderFindings = guard('order', () => {
-      const out: Finding[] = [];
-      for (const o of orders) out.push(...describeOrder(o, s, now, t.order));
-      return out;
-    });
-    if (orderFindings) findings.push(...orderFindings);
-    if (r && tol) {
-      const rec = guard('advice', () => adviseOrder(r.verdict, tol.verdict, orderFindings ?? [], findings));
+    const orderFindings = guarded('order', ruleErrors, () => orders.flatMap((o) => describeOrder(o, s, now, t.order))) ?? [];
+    findings.push(...orderFindings);
+    if (r && tv && need && need.phase) {
+      const rec = guarded('advice', ruleErrors, () => adviseOrder({
+        responsiveness: r.verdict, tolerance: tv.verdict, need: need.need, phase: need.phase!, findings, orderFindings,
+      }));
       if (rec) advice.recommendation = rec;
     }
   }

@@ -1,15 +1,19 @@
 /**
- * Thresholds: one schema per engine, each field with its default and source in the engine's own file; a site
- * may override any of them in the configuration file (`thresholds`), validated here. The active thresholds
- * are part of the rules version.
+ * Thresholds: the shared windows and one schema per question, each field with its default and source in its own
+ * file; a site may override any of them in the configuration file (`thresholds`), validated here. The active
+ * thresholds are part of the rules version.
  */
 import { z } from 'zod';
+import { windowsSchema } from './common/windows.js';
+import { needThresholdsSchema } from './need/thresholds.js';
 import { orderThresholdsSchema } from './order/thresholds.js';
 import { responsivenessThresholdsSchema } from './responsiveness/thresholds.js';
 import { toleranceThresholdsSchema } from './tolerance/thresholds.js';
 
 export const thresholdsSchema = z
   .object({
+    windows: windowsSchema.default(windowsSchema.parse({})),
+    need: needThresholdsSchema.default(needThresholdsSchema.parse({})),
     responsiveness: responsivenessThresholdsSchema.default(responsivenessThresholdsSchema.parse({})),
     tolerance: toleranceThresholdsSchema.default(toleranceThresholdsSchema.parse({})),
     order: orderThresholdsSchema.default(orderThresholdsSchema.parse({})),

@@ -1,42 +1,19 @@
-/** Findings and advice: what the pure rules return. Plain JSON, stored in the audit record. */
-import type { FhirRef } from '../snapshot/types.js';
+/** Findings, verdicts and advice: what the pure core returns. Plain JSON, stored in the audit record. */
 import type { OrderRecommendation } from './advice/types.js';
+import type { Finding } from './common/finding.js';
+import type { RuleError } from './common/rule.js';
 
-export type Freshness = 'fresh' | 'stale' | 'missing';
+export type {
+  Direction, Evidence, Figures, Finding, FindingTopic, Freshness, GapKind, Marker, NeedSign, OrderFinding, PerfusionFinding,
+  Phase, PhaseFinding, ResponsivenessFinding, SharedNumber, Tier, ToleranceDomain, ToleranceFinding, ToleranceLimit,
+} from './common/finding.js';
 
-/** One piece of evidence a finding used: which resource, which value, when. */
-export interface Evidence {
-  ref: FhirRef;
-  /** Measurement kind or a description (e.g. 'heartRate', 'plr'). */
-  kind: string;
-  value: number | string;
-  unit?: string;
-  effective: string;
-  ageMinutes: number;
-}
+/** How much the evidence that decided a verdict can bear (clinical-references §12, evidence tiers). */
+export type Confidence = 'high' | 'moderate' | 'low';
 
-export type FindingTopic = 'responsiveness' | 'tolerance' | 'perfusion' | 'order' | 'data';
-
-export interface Finding {
-  /** Stable id of the rule that made it, e.g. 'perfusion.map'. */
-  ruleId: string;
-  topic: FindingTopic;
-  /** assessed: the rule had what it needed; not-assessed: it did not (reason says why). */
-  status: 'assessed' | 'not-assessed';
-  /** For responsiveness/tolerance findings: which way the evidence points. */
-  direction?: 'for' | 'against' | 'neutral';
-  /** Strength of the evidence this finding gives, for the combination scheme. */
-  weight?: 'dynamic' | 'static-extreme' | 'static' | 'context';
-  /** Short plain sentence for a prescriber, e.g. "MAP 58 mmHg, below target 65 mmHg". */
-  text: string;
-  /** Why it could not be assessed, or which validity condition failed. */
-  reason?: string;
-  /** Derived values with units in the key name (e.g. { mapMmHg: 58 }). */
-  values?: Record<string, number | string | boolean>;
-  evidence: Evidence[];
-  /** The published source (or "common practice") of the threshold or formula used. */
-  source?: string;
-}
+/** The test that would settle or confirm responsiveness (closed set; wording in cards/catalogue.json). */
+export const NEXT_TESTS = ['passive-leg-raise', 'mini-fluid-challenge', 'tidal-volume-challenge', 'end-expiratory-occlusion'] as const;
+export type NextTestKind = (typeof NEXT_TESTS)[number];
 
 export interface Verdict<V extends string> {
   value: V;
@@ -44,12 +21,21 @@ export interface Verdict<V extends string> {
   rationale: string;
   /** Rule ids of the findings that decided it. */
   decidingRules: string[];
-  /** For indeterminate responsiveness: the test that would settle it. */
-  nextTest?: string;
+  /** Responsiveness: the tier that decided it. */
+  confidence?: Confidence;
+  /** Responsiveness: the test that would settle or confirm it. */
+  nextTest?: NextTestKind;
+  /** Conditions assumed because they were not charted (e.g. chest closed, IAP normal). */
+  assumptions?: string[];
+  /** Tolerance: markers assessed and markers in all. */
+  coverage?: { assessed: number; total: number };
 }
 
 export type Responsiveness = 'likely' | 'unlikely' | 'indeterminate';
-export type Tolerance = 'adequate' | 'limited' | 'poor';
+export type Tolerance = 'adequate' | 'limited' | 'poor' | 'not-known';
+/** Is there anything to treat: a fresh sign of hypoperfusion (present), none among those assessed (absent), or too little data. */
+export type Need = 'present' | 'absent' | 'unknown';
+export type PhaseValue = 'early-resuscitation' | 'later';
 
 export interface Advice {
   rulesVersion: string;
@@ -57,8 +43,10 @@ export interface Advice {
   findings: Finding[];
   responsiveness?: Verdict<Responsiveness>;
   tolerance?: Verdict<Tolerance>;
+  need?: Verdict<Need>;
+  phase?: Verdict<PhaseValue>;
   /** For order hooks with a fluid bolus selected: what the advice matrix recommends. */
   recommendation?: OrderRecommendation;
   /** Errors raised by single rules; the other findings still count (conventions §6). */
-  ruleErrors: Array<{ ruleId: string; message: string }>;
+  ruleErrors: RuleError[];
 }

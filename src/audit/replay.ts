@@ -26,6 +26,7 @@ export interface ReplayDiff {
 }
 
 const key = (f: Finding) => `${f.ruleId}`;
+const direction = (f: Finding) => (f.topic === 'responsiveness' ? f.direction : undefined);
 
 /** The advice today's (or candidate) rules give on the record's snapshot, at the stored `now`; undefined for a 412 record. */
 export function reassess(rec: StoredAdvice, thresholds: Thresholds, rulesVersion: string): Advice | undefined {
@@ -66,7 +67,7 @@ export function replay(rec: StoredAdvice, thresholds: Thresholds, rulesVersion: 
   const changed: ReplayDiff['findings']['changed'] = [];
   for (const [k, f] of byNow) {
     const old = byThen.get(k);
-    if (old && (old.text !== f.text || old.status !== f.status || old.direction !== f.direction)) changed.push({ ruleId: k, then: old.text, now: f.text });
+    if (old && (old.text !== f.text || old.status !== f.status || direction(old) !== direction(f))) changed.push({ ruleId: k, then: old.text, now: f.text });
   }
   const pair = (a?: string, b?: string) => ({ ...(a ? { then: a } : {}), ...(b ? { now: b } : {}) });
   const diff: ReplayDiff = {

@@ -7,8 +7,22 @@ import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { z } from 'zod';
+import { ALTERNATIVES, HEADLINE_KEYS } from '../assess/advice/types.js';
+import { NEXT_TESTS } from '../assess/types.js';
 
 const text = z.string().min(1);
+
+/** An object with exactly these keys, each a text: a missing or unknown key stops start-up. */
+function closedSet<K extends string>(keys: readonly K[], value: z.ZodType<string> = text): z.ZodType<Record<K, string>> {
+  return z.strictObject(Object.fromEntries(keys.map((k) => [k, value])) as Record<K, z.ZodType<string>>) as unknown as z.ZodType<Record<K, string>>;
+}
+
+/** Suggestion kinds the composer can offer (closed set). */
+export const SUGGESTION_KINDS = [
+  'smaller-aliquot', 'reassess-after-bolus', 'passive-leg-raise', 'mini-fluid-challenge', 'tidal-volume-challenge', 'end-expiratory-occlusion',
+  'bedside-ultrasound', 'withdraw-bolus',
+] as const;
+export type SuggestionKind = (typeof SUGGESTION_KINDS)[number];
 const indicator = z.enum(['info', 'warning', 'critical']);
 
 export const catalogueSchema = z
@@ -17,8 +31,16 @@ export const catalogueSchema = z
     source: z.object({ label: text, topic: z.object({ system: text, code: text, display: text }).optional() }),
     cautions: z.array(text).min(1),
     phrases: z.object({
-      responsiveness: z.object({ likely: text, unlikely: text, indeterminate: text, unassessed: text }),
-      tolerance: z.object({ adequate: text, limited: text, poor: text, unassessed: text }),
+      responsiveness: z.strictObject({ likely: text, unlikely: text, indeterminate: text, unassessed: text }),
+      tolerance: z.strictObject({ adequate: text, limited: text, poor: text, 'not-known': text, unassessed: text }),
+      confidence: z.strictObject({ high: text, moderate: text, low: text }),
+      need: z.strictObject({ present: text, absent: text, unknown: text }),
+      phase: z.strictObject({ 'early-resuscitation': text, later: text }),
+      assumed: text,
+      overloadPercent: text,
+      balanceMl: text,
+      settle: text,
+      options: text,
     }),
     kinds: z
       .array(
@@ -38,13 +60,15 @@ export const catalogueSchema = z
       )
       .min(1),
     overrideReasons: z.array(z.object({ code: z.string().regex(/^[a-z][a-z0-9-]*$/), display: text })),
-    /** Card headlines per advice cell ("likely/limited"), congestion ("congestion/likely") or unknown tolerance. */
-    headlines: z.record(z.string().regex(/^[a-z-]+\/[a-z]+$/), text.max(120)),
+    /** Card headline per headline key of the advice (closed set: src/assess/advice/types.ts HEADLINE_KEYS). */
+    headlines: closedSet(HEADLINE_KEYS, text.max(120)),
+    /** Wording of each alternative code (closed set: ALTERNATIVES). */
+    alternatives: closedSet(ALTERNATIVES),
+    /** Wording of each next-test kind, as the card names it (closed set: NEXT_TESTS). */
+    nextTests: closedSet(NEXT_TESTS),
     /** Suggestion wording per suggestion kind: label, action description, text of the FHIR resource. */
-    suggestions: z.record(
-      z.enum(['smaller-aliquot', 'reassess-after-bolus', 'passive-leg-raise', 'mini-fluid-challenge', 'bedside-ultrasound', 'withdraw-bolus']),
-      z.object({ label: text.max(120), description: text, text }),
-    ),
+    suggestions: z.strictObject(Object.fromEntries(SUGGESTION_KINDS.map((k) => [k, z.object({ label: text.max(120), description: text, text })])) as
+      Record<SuggestionKind, z.ZodObject<{ label: z.ZodString; description: z.ZodString; text: z.ZodString }>>),
     overrideReasonSystem: z.url(),
     sectionTitles: z.record(z.string(), text),
   })

@@ -1,8 +1,10 @@
 /**
  * What to say: Advice + snapshot + gathering outcomes → card models (rendered by render.ts with the catalogue).
- * Decides which card kinds apply and which suggestions to offer from the advice's action; never looks at
- * clinical thresholds (those live in assess/), never branches on card ids.
+ * Decides which card kinds apply and which suggestions to offer from the advice's codes (action, headline key,
+ * alternatives, next-test kind); never looks at clinical thresholds (those live in assess/), never branches on card
+ * ids, rule ids or the words of reasons. All wording comes from the catalogue.
  */
+import type { NextTestKind } from '../assess/types.js';
 import type { Advice, Finding } from '../assess/types.js';
 import type { GatherOutcome } from '../fhir/gather.js';
 import type { HookName, Suggestion } from '../hooks/schemas.js';
@@ -11,6 +13,7 @@ import type { Catalogue } from './catalogue.js';
 import type { CardModel } from './render.js';
 import { kindLabel } from './render.js';
 import { formatAge } from './format.js';
+import { fill } from './markdown.js';
 import { requestTest, smallerAliquot, withdrawDraft, type SuggestionContext, type TestKind } from './suggestions.js';
 
 const GATHER_PROBLEM = new Set(['unavailable', 'http-error', 'timeout', 'network-error', 'not-fhir', 'truncated', 'too-large', 'redirect']);
@@ -22,6 +25,12 @@ const GATHER_PROBLEM = new Set(['unavailable', 'http-error', 'timeout', 'network
 export function aliquotMl(orderedMl: number): number | undefined {
   const v = orderedMl >= 500 ? 250 : Math.max(100, Math.round(orderedMl / 2 / 50) * 50);
   return v < orderedMl ? v : undefined;
+}
+
+/** The aliquot keeps the ordered rate (§12: 500 mL over 30 min → 250 mL over 15 min): its duration scales with its volume. */
+export function aliquotDurationMin(orderedMl: number, orderedMin: number | undefined, aliquot: number): number | undefined {
+  if (orderedMin === undefined || !(orderedMin > 0) || !(orderedMl > 0)) return undefined;
+  return Math.max(1, Math.round((orderedMin * aliquot) / orderedMl));
 }
 /** Reassess this long after a bolus ends (common practice: response is judged within minutes of the bolus). */
 const REASSESS_MIN = 15;
@@ -56,8 +65,6 @@ function gapWhat(f: Finding): string {
   return f.text.replace(/:?\s*not assessed.*$/i, '').trim() || f.ruleId;
 }
 
-/** A reason that only says the marker was never recorded (as opposed to stale, invalid or confounded). */
-const NOT_RECORDED = /^(no .*recorded|missing\b)/i;
 
 /** One gap line without saying the same thing twice ("PPV: PPV stale …" → "PPV stale …"). */
 function gapLine(what: string, why: string): CardModel['gaps'][number] {
@@ -76,7 +83,7 @@ export function gapsOf(advice: Advice, snapshot: PatientSnapshot, gathering: Gat
   const absent: string[] = [];
   for (const f of advice.findings) {
     if (f.status !== 'not-assessed') continue;
-    if (NOT_RECORDED.test(f.reason ?? '')) {
+    if (f.gap === 'missing') {
       if (!absent.includes(gapWhat(f))) absent.push(gapWhat(f));
     } else gaps.push(gapLine(gapWhat(f), f.reason ?? 'not assessed'));
   }
@@ -101,27 +108,10 @@ function capital(s: string): string {
   return s ? `${s[0]?.toUpperCase()}${s.slice(1)}` : s;
 }
 
-/** Nothing current to go on: no clinical finding assessed, and at least one marker set aside as stale. */
-function onlyStaleData(advice: Advice): boolean {
-  const clinical = advice.findings.filter((f) => f.topic !== 'order');
-  return !clinical.some((f) => f.status === 'assessed') && clinical.some((f) => /\bstale\b/i.test(f.reason ?? ''));
-}
-
-function headlineKey(advice: Advice): string | undefined {
-  const rec = advice.recommendation;
-  if (!rec) return undefined;
-  if (onlyStaleData(advice)) return 'stale-data/any';
-  const r = rec.cell.split('/')[0] ?? 'indeterminate';
-  if (rec.indicator === 'critical') return `congestion/${r}`;
-  if (!rec.toleranceAssessed) return `tolerance-unknown/${r}`;
-  return rec.cell;
-}
-
-function testFor(nextTest: string | undefined): TestKind {
-  if (nextTest && /mini fluid|vti/i.test(nextTest) && !/leg rais/i.test(nextTest)) return 'mini-fluid-challenge';
-  if (nextTest && /ultrasound|echo|ivc/i.test(nextTest) && !/leg rais/i.test(nextTest)) return 'bedside-ultrasound';
-  return 'passive-leg-raise';
-}
+const TEST_SUGGESTION: Record<NextTestKind, 'passive-leg-raise' | 'mini-fluid-challenge' | 'tidal-volume-challenge' | 'end-expiratory-occlusion'> = {
+  'passive-leg-raise': 'passive-leg-raise', 'mini-fluid-challenge': 'mini-fluid-challenge',
+  'tidal-volume-challenge': 'tidal-volume-challenge', 'end-expiratory-occlusion': 'end-expiratory-occlusion',
+};
 
 function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Catalogue, ctx: SuggestionContext, now: string): Suggestion[] {
   const rec = advice.recommendation;
@@ -129,30 +119,38 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
   const T = cat.suggestions;
   const orderedMl = order.volumeMl;
   const aliquot = orderedMl !== undefined ? aliquotMl(orderedMl) : undefined;
-  const vars = { aliquotMl: String(aliquot ?? ''), orderedMl: String(Math.round(orderedMl ?? 0)), reassessMin: String(REASSESS_MIN) };
+  const aliquotMin = aliquot !== undefined && orderedMl !== undefined ? aliquotDurationMin(orderedMl, order.durationMin, aliquot) : undefined;
+  const vars = {
+    aliquotMl: String(aliquot ?? ''), orderedMl: String(Math.round(orderedMl ?? 0)), reassessMin: String(REASSESS_MIN),
+    aliquotRate: aliquotMin !== undefined ? ` over ${aliquotMin} min` : '',
+  };
   const out: Array<Suggestion | undefined> = [];
   const reassess = () => requestTest('reassess-after-bolus', ctx, T['reassess-after-bolus'], vars, now);
   const test = (k: TestKind) => requestTest(k, ctx, T[k], vars, now);
+  const next = rec.nextTest ? TEST_SUGGESTION[rec.nextTest] : undefined;
+  const critical = rec.indicator === 'critical';
+  const withdraw = () => (rec.phase === 'early-resuscitation' ? undefined : withdrawDraft(order, T['withdraw-bolus'], vars));
   switch (rec.action) {
     case 'proceed-and-reassess':
+    case 'resuscitate-and-reassess':
       out.push({ ...reassess(), isRecommended: true });
+      if (next) out.push(test(next));
       break;
     case 'smaller-aliquot': {
-      const s = aliquot !== undefined ? smallerAliquot(order, aliquot, T['smaller-aliquot'], vars) : undefined;
-      out.push(s ? { ...s, isRecommended: true } : undefined, reassess());
-      if (rec.indicator === 'critical') out.push(withdrawDraft(order, T['withdraw-bolus'], vars));
+      const s = aliquot !== undefined ? smallerAliquot(order, aliquot, aliquotMin, T['smaller-aliquot'], vars) : undefined;
+      // A critical card never recommends giving (§12).
+      out.push(s ? (critical ? s : { ...s, isRecommended: true }) : undefined, reassess());
+      if (next) out.push(test(next));
+      if (critical) out.push(withdraw());
       break;
     }
+    case 'question-need':
     case 'question-bolus':
-      out.push(test('bedside-ultrasound'), withdrawDraft(order, T['withdraw-bolus'], vars));
+      out.push(test('bedside-ultrasound'), withdraw());
       break;
-    case 'test-first': {
-      const kind = testFor(rec.nextTest ?? advice.responsiveness?.nextTest);
-      out.push({ ...test(kind), isRecommended: true });
-      if (kind !== 'bedside-ultrasound') out.push(test('bedside-ultrasound'));
-      out.push(withdrawDraft(order, T['withdraw-bolus'], vars));
+    case 'test-first':
+      out.push({ ...test(next ?? 'mini-fluid-challenge'), isRecommended: true }, test('bedside-ultrasound'), withdraw());
       break;
-    }
   }
   return out.filter((s): s is Suggestion => !!s);
 }
@@ -174,31 +172,33 @@ export function composeCards(input: ComposeInput): CardModel[] {
   const responsivenessPhrase = ph.responsiveness[r];
   const tolerancePhrase = ph.tolerance[t];
   const conclusion: string[] = [];
-  if (advice.responsiveness) conclusion.push(`${responsivenessPhrase}: ${advice.responsiveness.rationale}`);
+  const confidence = advice.responsiveness?.confidence;
+  if (advice.responsiveness) {
+    conclusion.push(`${responsivenessPhrase}${confidence ? ` (${ph.confidence[confidence]})` : ''}: ${advice.responsiveness.rationale}`);
+  }
   if (advice.tolerance) conclusion.push(`${capital(tolerancePhrase)}: ${advice.tolerance.rationale}`);
   else conclusion.push(`${capital(tolerancePhrase)}: no marker of fluid tolerance could be assessed`);
-  const nextTest = rec?.nextTest ?? advice.responsiveness?.nextTest;
-  if (advice.responsiveness?.value === 'indeterminate' && nextTest) conclusion.push(`What would settle it: ${nextTest}`);
+  if (advice.need) conclusion.push(`${ph.need[advice.need.value]}: ${advice.need.rationale}`);
+  if (advice.phase) conclusion.push(`${ph.phase[advice.phase.value]}: ${advice.phase.rationale}`);
+  const assumed = advice.responsiveness?.assumptions ?? [];
+  if (assumed.length) conclusion.push(`${ph.assumed}: ${assumed.join('; ')}`);
+  const nextTest = rec ? rec.nextTest : advice.responsiveness?.value === 'indeterminate' ? advice.responsiveness.nextTest : undefined;
+  if (nextTest) conclusion.push(`${ph.settle}: ${catalogue.nextTests[nextTest]}`);
   if (!orderHook) {
     // The overview names the newest evidence behind the responsiveness verdict and its age.
     const deciding = advice.findings.filter((f) => f.status === 'assessed' && advice.responsiveness?.decidingRules.includes(f.ruleId));
     const newest = deciding.flatMap((f) => f.evidence.map((e) => ({ f, e }))).sort((a, b) => a.e.ageMinutes - b.e.ageMinutes)[0];
     if (newest) conclusion.push(`Latest responsiveness evidence: ${newest.f.text} (${formatAge(newest.e.ageMinutes)} ago)`);
   }
-  const options = (rec?.alternatives ?? []).filter((a) => a !== nextTest);
-  if (options.length) conclusion.push(`Options to weigh (choice and dose with the treating team): ${options.join('; ')}`);
+  const options = (rec?.alternatives ?? []).map((a) => catalogue.alternatives[a]);
+  if (options.length) conclusion.push(`${ph.options}: ${options.join('; ')}`);
 
-  const key = headlineKey(advice);
-  const headline = (key && catalogue.headlines[key]) ?? rec?.headline ?? 'review the evidence below before more volume';
-  const balance = advice.findings.find((f) => f.ruleId === 'tolerance.fluid-overload' && f.status === 'assessed') ??
-    advice.findings.find((f) => f.ruleId === 'tolerance.balance-cumulative' && f.status === 'assessed');
-  const balancePhrase = balance
-    ? typeof balance.values?.['fluidOverloadPercent'] === 'number'
-      ? `, overload ${Number(balance.values['fluidOverloadPercent']).toFixed(1)} %`
-      : typeof balance.values?.['balanceMl'] === 'number'
-        ? `, balance ${Number(balance.values['balanceMl']) >= 0 ? '+' : '−'}${Math.abs(Math.round(Number(balance.values['balanceMl'])))} mL`
-        : ''
-    : '';
+  const headline = rec ? catalogue.headlines[rec.headline] : '';
+  const quantity = advice.findings.flatMap((f) => (f.topic === 'tolerance' && f.status === 'assessed' && f.quantity ? [f.quantity] : []));
+  const overload = quantity.find((q) => q.kind === 'fluid-overload-percent');
+  const balanceQ = quantity.find((q) => q.kind === 'balance-ml');
+  const balancePhrase = overload ? fill(ph.overloadPercent, { value: overload.value.toFixed(1) })
+    : balanceQ ? fill(ph.balanceMl, { value: `${balanceQ.value >= 0 ? '+' : '−'}${Math.abs(Math.round(balanceQ.value))}` }) : '';
   const vars: Record<string, string> = {
     responsivenessPhrase, responsivenessPhraseLower: responsivenessPhrase.toLowerCase(), tolerancePhrase,
     tolerance: t, responsiveness: r, headline, balancePhrase, indicator: rec?.indicator ?? 'info',

@@ -14,11 +14,14 @@ import { fill } from './markdown.js';
 /** Tidemark's own codes for what a suggestion asks for (docs/codes.md). */
 export const TIDEMARK_PROCEDURES = 'https://tidemark.invalid/fhir/CodeSystem/procedure';
 
-export type TestKind = 'passive-leg-raise' | 'bedside-ultrasound' | 'reassess-after-bolus' | 'mini-fluid-challenge';
+export type TestKind =
+  | 'passive-leg-raise' | 'bedside-ultrasound' | 'reassess-after-bolus' | 'mini-fluid-challenge' | 'tidal-volume-challenge' | 'end-expiratory-occlusion';
 
 const TEST_CODES: Record<TestKind, { system: string; code: string }> = {
   'passive-leg-raise': { system: TIDEMARK_MARKERS, code: 'passive-leg-raise' },
   'mini-fluid-challenge': { system: TIDEMARK_MARKERS, code: 'mini-fluid-challenge' },
+  'tidal-volume-challenge': { system: TIDEMARK_MARKERS, code: 'tidal-volume-challenge' },
+  'end-expiratory-occlusion': { system: TIDEMARK_MARKERS, code: 'end-expiratory-occlusion' },
   'bedside-ultrasound': { system: TIDEMARK_PROCEDURES, code: 'bedside-ultrasound-fluid' },
   'reassess-after-bolus': { system: TIDEMARK_PROCEDURES, code: 'reassess-after-bolus' },
 };
@@ -36,16 +39,25 @@ export interface SuggestionContext {
   userId: string;
 }
 
-/** Update the draft MedicationRequest to `volumeMl`, keeping everything else, with a note to reassess. */
-export function smallerAliquot(order: DraftOrder, volumeMl: number, t: SuggestionText, vars: Record<string, string>): Suggestion | undefined {
+/**
+ * Update the draft MedicationRequest to `volumeMl` given over `durationMin` (the ordered rate kept), keeping everything
+ * else, with a note to reassess. A rate in the order stays as it was; a duration is shortened in proportion.
+ */
+export function smallerAliquot(order: DraftOrder, volumeMl: number, durationMin: number | undefined, t: SuggestionText, vars: Record<string, string>): Suggestion | undefined {
   if (order.resourceType !== 'MedicationRequest' || !order.id) return undefined;
   const mr = structuredClone(order.resource) as unknown as MedicationRequest;
   const dose = mr.dosageInstruction?.[0];
   if (!dose) return undefined;
   const dr = dose.doseAndRate?.[0];
   const rest = (dose.doseAndRate ?? []).slice(1);
-  dose.doseAndRate = [{ ...(dr?.type ? { type: dr.type } : {}), doseQuantity: { value: volumeMl, unit: 'mL', system: UCUM, code: 'mL' } }, ...rest];
-  dose.text = `${volumeMl} mL IV${order.durationMin ? ` over ${Math.round(order.durationMin)} min` : ''}`;
+  dose.doseAndRate = [{
+    ...(dr?.type ? { type: dr.type } : {}), doseQuantity: { value: volumeMl, unit: 'mL', system: UCUM, code: 'mL' },
+    ...(dr?.rateQuantity ? { rateQuantity: dr.rateQuantity } : {}),
+  }, ...rest];
+  if (durationMin !== undefined) {
+    dose.timing = { ...dose.timing, repeat: { ...dose.timing?.repeat, duration: durationMin, durationUnit: 'min' } };
+  }
+  dose.text = `${volumeMl} mL IV${durationMin !== undefined ? ` over ${durationMin} min` : ''}`;
   mr.note = [...(mr.note ?? []), { text: fill(t.text, vars) }];
   return {
     label: fill(t.label, vars),

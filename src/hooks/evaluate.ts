@@ -53,10 +53,10 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
   const made = await started;
   await awaitAppend(deps, made.stored, made.hookInstance, made.adviceId);
   if (made.status === 412) {
-    deps.log.info({ hookInstance: made.hookInstance, service: service.id, adviceId: made.adviceId, missing: made.missing }, 'required data could not be obtained from prefetch or the FHIR server');
+    deps.log.info({ hookInstance: made.hookInstance, cdsService: service.id, adviceId: made.adviceId, missing: made.missing }, 'required data could not be obtained from prefetch or the FHIR server');
     return { status: 412, body: made.outcome, adviceId: made.adviceId };
   }
-  deps.log.info({ hookInstance: made.hookInstance, service: service.id, adviceId: made.adviceId, cards: made.cards.length, ms: Math.round(made.totalMs) }, 'advice given');
+  deps.log.info({ hookInstance: made.hookInstance, cdsService: service.id, adviceId: made.adviceId, cards: made.cards.length, ms: Math.round(made.totalMs) }, 'advice given');
   return { status: 200, body: { cards: made.cards }, adviceId: made.adviceId };
 }
 

@@ -64,7 +64,7 @@ describe('the scenarios as data', () => {
   it('covers the required situations: each expected verdict and both order hooks, and a non-fluid order', () => {
     const e = SCENARIOS.map((s) => s.expect);
     for (const v of ['likely', 'unlikely', 'indeterminate']) expect(e.some((x) => x.responsiveness === v)).toBe(true);
-    for (const v of ['adequate', 'limited', 'poor', 'unknown']) expect(e.some((x) => x.tolerance === v)).toBe(true);
+    for (const v of ['adequate', 'limited', 'poor', 'not-known']) expect(e.some((x) => x.tolerance === v)).toBe(true);
     for (const v of ['info', 'warning', 'critical', 'no-card']) expect(e.some((x) => x.indicator === v)).toBe(true);
     expect(new Set(SCENARIOS.map((s) => chart(s).hook))).toEqual(new Set(['order-select', 'order-sign']));
   });

@@ -4,7 +4,7 @@
  */
 import { CODED_OBSERVATION_CODES, KIND_UNITS, OBSERVATION_CODES, type CodedKind, type NumericKind } from '../../src/fhir/codes.js';
 import type { CodedMeasurement, ConditionEntry, DraftOrder, FluidClass, FluidGiven, Measurement, PatientSnapshot } from '../../src/snapshot/types.js';
-import type { Finding } from '../../src/assess/types.js';
+import type { Finding, ToleranceFinding } from '../../src/assess/types.js';
 import { DEFAULT_TOLERANCE_THRESHOLDS, type ToleranceThresholds } from '../../src/assess/tolerance/thresholds.js';
 
 /** Pinned clock for every test (tests run with TZ=America/Denver). */
@@ -104,8 +104,15 @@ export function one(findings: readonly Finding[], ruleId: string): Finding {
   return hits[0]!;
 }
 
+/** The limit of an assessed tolerance finding (undefined when not assessed). */
 export function limit(f: Finding): unknown {
-  return f.values?.['limit'];
+  return f.topic === 'tolerance' && f.status === 'assessed' ? f.limit : undefined;
+}
+
+/** The typed tolerance fields of a finding (throws for another topic). */
+export function tol(f: Finding): ToleranceFinding {
+  if (f.topic !== 'tolerance') throw new Error(`not a tolerance finding: ${f.ruleId}`);
+  return f;
 }
 
 /** Hourly amounts over `hours` hours ending `endMinutesAgo`, each with a one-hour period. */

@@ -58,7 +58,7 @@ function adviceRecord(o: AdviceOpts = {}): AdviceRecord {
     rulesVersion: '0.1.0+cards.ab12cd34',
     findings: [
       {
-        ruleId: 'perfusion.map', topic: 'perfusion', status: 'assessed', direction: 'for', weight: 'static',
+        ruleId: 'perfusion.map', topic: 'perfusion', sign: 'map', hypoperfusion: true, contextOnly: false, status: 'assessed',
         text: 'MAP 58 mmHg, below target 65 mmHg', values: { mapMmHg: 58.333333333333336, belowTarget: true, tiny: 1e-7 },
         evidence: [{ ref: 'Observation/inv-bp-1', kind: 'meanArterialPressure', value: 58.333333333333336, unit: 'mm[Hg]', effective: at(-5), ageMinutes: 5 }],
       },

@@ -17,9 +17,10 @@ afterAll(async () => s.stop());
 
 const cases = Object.keys(ADVICE_CASES) as AdviceCase[];
 const expected: Record<AdviceCase, { action: string; indicator: string; firstLabel: RegExp; types: string[] }> = {
-  'test-first': { action: 'test-first', indicator: 'info', firstLabel: /passive leg raise/i, types: ['create', 'create', 'delete'] },
+  // No flow monitor on the chart: a mini fluid challenge with VTI by echo (§12), following the next-test kind.
+  'test-first': { action: 'test-first', indicator: 'info', firstLabel: /mini fluid challenge/i, types: ['create', 'create', 'delete'] },
   proceed: { action: 'proceed-and-reassess', indicator: 'info', firstLabel: /reassessment/i, types: ['create'] },
-  'smaller-aliquot': { action: 'smaller-aliquot', indicator: 'warning', firstLabel: /Give 250 mL now instead of 500 mL/, types: ['update', 'create'] },
+  'smaller-aliquot': { action: 'smaller-aliquot', indicator: 'warning', firstLabel: /^Give 250 mL over 15 min instead of 500 mL/, types: ['update', 'create'] },
   critical: { action: 'smaller-aliquot', indicator: 'critical', firstLabel: /Give 250 mL/, types: ['update', 'create', 'delete'] },
   question: { action: 'question-bolus', indicator: 'warning', firstLabel: /ultrasound/i, types: ['create', 'delete'] },
 };
@@ -50,6 +51,8 @@ describe('each advice cell gives a conformant card with real FHIR suggestions', 
     expect(card.suggestions.map((x: any) => x.actions[0].type)).toEqual(want.types);
     expect(card.suggestions[0].label).toMatch(want.firstLabel);
     expect(card.suggestions.filter((x: any) => x.isRecommended).length).toBeLessThanOrEqual(1);
+    // A critical card never recommends giving (§12).
+    if (card.indicator === 'critical') expect(card.suggestions.filter((x: any) => x.isRecommended && x.actions[0].type === 'update')).toEqual([]);
     for (const sug of card.suggestions) {
       for (const a of sug.actions) {
         if (a.type === 'delete') {
@@ -62,6 +65,8 @@ describe('each advice cell gives a conformant card with real FHIR suggestions', 
           expect(a.resource.id).toBe('draft-bolus-1');
           expect(a.resource.dosageInstruction[0].doseAndRate[0].doseQuantity).toEqual({ value: 250, unit: 'mL', system: 'http://unitsofmeasure.org', code: 'mL' });
           expect(a.resource.note.at(-1).text).toMatch(/Reassess/);
+          // The aliquot keeps the ordered rate: 500 mL over 30 min → 250 mL over 15 min (§12).
+          expect(a.resource.dosageInstruction[0].timing.repeat).toMatchObject({ duration: 15, durationUnit: 'min' });
         }
       }
     }
@@ -131,7 +136,7 @@ describe('patient-view overview', () => {
     const r0 = basicResources();
     const P = 'tm-pat-ward4-017';
     const t = (m: number) => b.minutesAgo(NOW, m);
-    // 12 L in, 4 L out since admission at 70 kg: Goldstein 2001 %FO = (12 − 4) / 70 × 100 = 11.4 %.
+    // 12 L in, 4 L out since admission at 70 kg: Goldstein 2001 %FO = (12 − 4) / 70 × 100 = 11.4 %; ≥ 10 % in an adult is poor (Bouchard 2009).
     r0['body'] = [b.numeric('wt-adm', P, 'bodyWeight', 70, t(25 * 60))];
     r0['balance'] = [
       b.numeric('in-1', P, 'fluidIntake', 12_000, t(30), { periodStart: t(25 * 60) }),
@@ -141,7 +146,7 @@ describe('patient-view overview', () => {
     const view = await post(`${s.url}/cds-services/fluid-overview`, patientViewRequest(prefetchOf(r0)));
     const card = view.body.cards[0];
     expect(checkCdsResponse(view.body)).toEqual([]);
-    expect(card.summary).toMatch(/^Fluid overview: tolerance limited, overload 11\.4 %; likely fluid responsive$/);
+    expect(card.summary).toMatch(/^Fluid overview: tolerance poor, overload 11\.4 %; likely fluid responsive$/);
     expect(card.detail).toMatch(/Fluid overload 11\.4 %/);
     expect(card.detail).toMatch(/Latest responsiveness evidence: .*Passive leg rais.* \(25 min ago\)/);
   });
@@ -149,13 +154,14 @@ describe('patient-view overview', () => {
 
 describe('stale data only', () => {
   it('says so in the summary instead of giving a verdict-based headline, and lists each stale marker with its age', async () => {
-    const late = await startService({}, { now: () => new Date(NOW.getTime() + 8 * 3600_000) });
+    // 13 h later: the vitals (window 90 min) and even the lactate (12 h, §12) are stale.
+    const late = await startService({}, { now: () => new Date(NOW.getTime() + 13 * 3600_000) });
     try {
       const r = await post(`${late.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['test-first']) }));
       const card = r.body.cards[0];
       expect(checkCdsResponse(r.body)).toEqual([]);
       expect(card.summary).toBe('No current data on the chart: re-examine and re-measure before deciding on this bolus');
-      expect(card.detail).toMatch(/- MAP stale \(age 490 min, window 60 min\)/);
+      expect(card.detail).toMatch(/- MAP stale \(age 13 h 10 min, window 90 min\)/);
       expect(card.detail).not.toMatch(/MAP: MAP stale/);
     } finally {
       await late.stop();

@@ -54,7 +54,8 @@ describe('hook calls', () => {
     const rec = JSON.parse(last.record);
     expect(rec.cards[0].uuid).toBe(card.uuid);
     expect(rec.snapshot.measurements.length).toBeGreaterThan(0);
-    expect(rec.findings.some((f: { ruleId: string }) => f.ruleId === 'responsiveness.map')).toBe(true);
+    expect(rec.findings.some((f: { ruleId: string }) => f.ruleId === 'perfusion.map')).toBe(true);
+    expect(rec.advice.need.value).toBe('present'); // MAP 61 < 65 (SSC 2021)
     expect(rec.advice.responsiveness.value).toMatch(/^(likely|unlikely|indeterminate)$/);
     expect(rec.advice.recommendation.action).toBeTruthy();
     expect(rec.gathering).toHaveLength(12);
@@ -183,7 +184,7 @@ describe('audit API access', () => {
 
 describe('docs pages linked from cards', () => {
   it('serves docs as Markdown and nothing outside docs/', async () => {
-    const r = await get(`${s.url}/docs/clinical-logic.md`);
+    const r = await get(`${s.url}/docs/clinical-logic/index.md`);
     expect(r.status).toBe(200);
     expect(String(r.body)).toContain('# Clinical logic');
     expect((await get(`${s.url}/docs/..%2Fpackage.json`)).status).toBe(404);
@@ -239,14 +240,14 @@ describe('replay under other rules', () => {
     const same = await get(`${s.url}/audit/advice/${id}/replay`, AUDIT_HEADERS);
     expect(same.status).toBe(200);
     expect(same.body).toMatchObject({ changed: false, action: { then: 'smaller-aliquot', now: 'smaller-aliquot' } });
-    // The albumin 22 g/L limited tolerance under the default (< 30 g/L, ALBIOS); a site that lowers the band to 20 g/L sees the change.
+    // SpO2/FiO2 153 limited tolerance under the default (< 235, Rice 2007); a site that sets the cut-off at 150 sees the change.
     const { replay } = await import('../../src/audit/replay.js');
     const { resolveThresholds } = await import('../../src/assess/thresholds.js');
     const rec = await s.svc.store.get(id);
-    const diff = replay(rec!, resolveThresholds({ tolerance: { albuminLowGPerL: 20, albuminSevereLowGPerL: 15 } }), 'site-variant');
+    const diff = replay(rec!, resolveThresholds({ tolerance: { spo2Fio2LowRatio: 150 } }), 'site-variant');
     expect(diff?.changed).toBe(true);
     expect(diff?.tolerance.then).toBe('limited');
-    expect(diff?.tolerance.now).toBe('adequate');
-    expect(diff?.findings.changed.map((c) => c.ruleId)).toContain('tolerance.albumin');
+    expect(diff?.tolerance.now).toBe('not-known');
+    expect(diff?.findings.changed.map((c) => c.ruleId)).toContain('tolerance.spo2-fio2');
   });
 });

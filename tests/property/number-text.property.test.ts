@@ -1,13 +1,14 @@
 /**
- * fmt (src/assess/tolerance/select.ts) writes numbers into finding texts as Intl.NumberFormat('en-US') does
+ * fmt (src/assess/common/text.ts, the one number formatter of every finding text) writes numbers into finding texts as Intl.NumberFormat('en-US') does
  * (ECMA-402: grouping separators, at most `decimals` fraction digits, half-expand rounding), with a shortcut
- * for values below 1,000. For any number and any number of decimals the text must be the formatter's own.
+ * for values below 1,000. For any number and any number of decimals the text must be the formatter's own, except that
+ * a value rounding to zero is written 0, never -0.
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { fmt, round } from '../../src/assess/tolerance/select.js';
+import { fmt, round } from '../../src/assess/common/text.js';
 
-const reference = (v: number, d: number) => new Intl.NumberFormat('en-US', { maximumFractionDigits: d, minimumFractionDigits: 0 }).format(round(v, d));
+const reference = (v: number, d: number) => new Intl.NumberFormat('en-US', { maximumFractionDigits: d, minimumFractionDigits: 0 }).format(round(v, d) || 0);
 
 describe('fmt (numbers in finding texts)', () => {
   it('equals Intl.NumberFormat en-US for any finite number, 0–3 decimals', () => {
@@ -21,6 +22,6 @@ describe('fmt (numbers in finding texts)', () => {
     expect(fmt(2100)).toBe('2,100');
     expect(fmt(16.94, 1)).toBe('16.9');
     expect(fmt(3.0, 1)).toBe('3');
-    expect(fmt(-0.04, 1)).toBe('-0');
+    expect(fmt(-0.04, 1)).toBe('0');
   });
 });

@@ -11,7 +11,9 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
+import { DEFAULT_WINDOWS as W } from '../../src/assess/common/windows.js';
 import { assessResponsiveness, responsivenessThresholdsSchema } from '../../src/assess/responsiveness/index.js';
+import { contextOf } from '../helpers/rule-context.js';
 import type { Finding, Responsiveness } from '../../src/assess/types.js';
 import { CODED_ANSWERS, KIND_UNITS, type CodedKind, type DynamicMeasured, type DynamicTestKind, type NumericKind } from '../../src/fhir/codes.js';
 import type { CodedMeasurement, DynamicTestResult, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug } from '../../src/snapshot/types.js';
@@ -145,7 +147,7 @@ function build(raw: Raw, tag = 'a'): PatientSnapshot {
   };
 }
 
-const assess = (s: PatientSnapshot) => assessResponsiveness(s, NOW, T);
+const assess = (s: PatientSnapshot) => assessResponsiveness(contextOf(s, NOW, T));
 
 function shuffled<X>(xs: readonly X[], seed: number): X[] {
   const out = [...xs];
@@ -179,23 +181,26 @@ describe('property: order of the snapshot arrays does not matter', () => {
  */
 const bolusVitals = T.lastBolusLookbackMin + T.bolusPreWindowMin;
 const bolusSecondary = T.lastBolusLookbackMin + T.bolusSecondaryWindowMin;
+const flowDense = T.lastBolusLookbackMin + T.flowBeforeStartMaxMin;
 const OLDEST: Partial<Record<NumericKind, number>> = {
-  heartRate: Math.max(T.vitalsMaxAgeMin, bolusVitals), systolicBp: Math.max(T.vitalsMaxAgeMin, bolusVitals),
-  diastolicBp: Math.max(T.vitalsMaxAgeMin, bolusVitals), meanBp: Math.max(T.vitalsMaxAgeMin, bolusVitals),
-  respiratoryRate: T.vitalsMaxAgeMin, bodyHeight: T.bodyHeightMaxAgeMin, tidalVolume: T.tidalVolumeMaxAgeMin,
-  ppv: T.ppvSvvMaxAgeMin, svv: T.ppvSvvMaxAgeMin, cvp: T.cvpMaxAgeMin, rightAtrialPressure: T.cvpMaxAgeMin,
-  ivcDiameterMax: T.ivcMaxAgeMin, ivcDiameterMin: T.ivcMaxAgeMin, intraAbdominalPressure: T.intraAbdominalPressureMaxAgeMin,
-  lactate: Math.max(T.lactateMaxAgeMin, bolusSecondary), capillaryRefill: Math.max(T.capillaryRefillMaxAgeMin, bolusSecondary),
-  urineOutput: bolusSecondary,
+  heartRate: Math.max(W.vitalsMin, bolusVitals), systolicBp: Math.max(W.vitalsMin, bolusVitals),
+  diastolicBp: Math.max(W.vitalsMin, bolusVitals), meanBp: Math.max(W.vitalsMin, bolusVitals),
+  respiratoryRate: W.vitalsMin, bodyHeight: W.bodyHeightMin, tidalVolume: W.tidalVolumeMin,
+  ppv: W.ppvSvvMin, svv: W.ppvSvvMin, cvp: W.cvpMin, rightAtrialPressure: W.cvpMin,
+  ivcDiameterMax: W.ivcMin, ivcDiameterMin: W.ivcMin, intraAbdominalPressure: W.intraAbdominalPressureMin,
+  lactate: bolusSecondary, capillaryRefill: bolusSecondary, urineOutput: bolusSecondary,
+  // Flow readings: the dense bolus path, and the flow-monitor check of the next test.
+  cardiacOutput: Math.max(flowDense, T.flowMonitorRecentMin), cardiacIndex: Math.max(flowDense, T.flowMonitorRecentMin),
+  strokeVolume: Math.max(flowDense, T.flowMonitorRecentMin),
 };
 const OLDEST_CODED: Record<string, number> = {
-  ventilationMode: T.ventilationStateMaxAgeMin, heartRhythm: T.heartRhythmMaxAgeMin, chestStatus: T.chestStatusMaxAgeMin, lvFunction: T.echoImpressionMaxAgeMin,
+  ventilationMode: W.ventilationStateMin, heartRhythm: W.rhythmMin, chestStatus: W.chestStatusMin, lvFunction: W.echoImpressionMin,
 };
 const staleBy = fc.integer({ min: 1, max: 2000 });
 const staleArb = fc.record({
   measurements: fc.array(fc.tuple(measurementArb, staleBy).map(([m, d]): MRaw => ({ ...m, ageMin: (OLDEST[m.kind] ?? 0) + d })), { maxLength: 15 }),
   coded: fc.array(fc.tuple(codedArb, staleBy).map(([c, d]) => ({ ...c, ageMin: (OLDEST_CODED[c.kind] ?? 0) + d })), { maxLength: 5 }),
-  tests: fc.array(fc.tuple(testArb, staleBy).map(([x, d]) => ({ ...x, ageMin: T.dynamicTestMaxAgeMin + d })), { maxLength: 3 }),
+  tests: fc.array(fc.tuple(testArb, staleBy).map(([x, d]) => ({ ...x, ageMin: W.dynamicTestMin + d })), { maxLength: 3 }),
   fluids: fc.array(fc.tuple(fluidArb, staleBy).map(([f, d]) => ({ ...f, startAgeMin: T.lastBolusLookbackMin + f.durationMin + d })), { maxLength: 2 }),
   // Events (start, end) older than any span a bolus check can look at; no end = still running, unchanged.
   vasos: fc.array(fc.tuple(vasoArb, staleBy).map(([v, d]) => {
@@ -242,10 +247,13 @@ const GROUPS: Group[] = [
 ];
 const opposite = (v: Responsiveness) => (v === 'likely' ? 'against' : 'for');
 
-/** The removed data spoke against `after`: it supported an opposing finding, or confounded one. */
+/**
+ * The removed data spoke against `after`: it supported an opposing finding, confounded one, set one aside (an event
+ * since), or made one doubtful (a charted raised IAP makes a high PPV doubtful; uncharted, IAP is assumed normal, §12).
+ */
 function spokeAgainst(findings: readonly Finding[], removed: Set<string>, after: Responsiveness): boolean {
   return findings.some((f) => f.topic === 'responsiveness' && f.evidence.some((e) => removed.has(e.ref)) && (
-    (f.status === 'assessed' && f.weight !== 'context' && f.direction === opposite(after)) || f.values?.confounded === true));
+    (f.status === 'assessed' && f.tier !== 'context' && f.direction === opposite(after)) || f.gap === 'confounded' || f.gap === 'set-aside' || f.gap === 'outside-validity'));
 }
 
 describe('property: removing evidence never makes the verdict more certain', () => {

@@ -70,9 +70,15 @@ describe('EVLWI (Tagami T et al., Crit Care 2010; Jozwiak M et al., Ann Intensiv
 });
 
 describe('volume kinetics', () => {
-  it('500 mL crystalloid ≈ 170 mL intravascular once distributed (common practice: a third)', () => {
-    expect(roundToStep(crystalloidIntravascularAfterDistributionMl(500), 10)).toBe(170);
-    expect(intravascularEstimate(500, 'balanced-crystalloid', DEFAULT_ORDER_THRESHOLDS)?.values['intravascularAfterDistributionMl']).toBe(170);
+  it('500 mL crystalloid ≈ 125 mL intravascular once distributed (saline PV:ISF ≈ 1:3, Ernest D et al., Crit Care Med 1999;27:46)', () => {
+    expect(crystalloidIntravascularAfterDistributionMl(500)).toBe(125);
+    expect(intravascularEstimate(500, 'balanced-crystalloid', DEFAULT_ORDER_THRESHOLDS)?.values['intravascularAfterDistributionMl']).toBe(130); // 10-mL steps
+  });
+  it('the rule of thumb (a third, common practice, clinical-references §11) is shown beside the published figure only', () => {
+    const est = intravascularEstimate(500, 'balanced-crystalloid', DEFAULT_ORDER_THRESHOLDS);
+    expect(roundToStep(crystalloidIntravascularAfterDistributionMl(500, 1 / 3), 10)).toBe(170);
+    expect(est?.values['ruleOfThumbMl']).toBe(170);
+    expect(est?.text).toMatch(/^About 130 mL of 500 mL stays in the vessels once distributed \(about a quarter, Ernest 1999; the bedside rule of thumb of a third would say 170 mL\)/);
   });
   it('1,000 mL Ringer\'s: 500–600 mL while infusing, 150–200 mL 30 min after (Hahn RG, Acta Anaesthesiol Scand 2020)', () => {
     expect(crystalloidPlasmaExpansionRangeMl(1000, 'during-infusion')).toEqual([500, 600]);

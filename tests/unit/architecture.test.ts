@@ -55,3 +55,20 @@ describe('no import cycles in src/', () => {
     expect(cycles).toEqual([]);
   });
 });
+
+describe('advice carries codes, not prose (issue 19)', () => {
+  const rel = (f: string) => relative(SRC, f);
+  it('no code reads a finding\'s values back by key: decisions use the typed fields', () => {
+    const offenders = all.filter((f) => /\.values\??\.(\[|[a-zA-Z_])/.test(readFileSync(f, 'utf8'))).map(rel);
+    expect(offenders).toEqual([]);
+  });
+  it('the advice and the cards never branch on rule ids or on the words of reasons', () => {
+    const rooms = all.filter((f) => /^(cards|assess\/advice)\//.test(rel(f)));
+    expect(rooms.length).toBeGreaterThan(5);
+    for (const f of rooms) {
+      const src = readFileSync(f, 'utf8');
+      expect(src, rel(f)).not.toMatch(/ruleId\s*===\s*['`]/);
+      expect(src, rel(f)).not.toMatch(/\.test\([^)]*(reason|nextTest|rationale)/);
+    }
+  });
+});

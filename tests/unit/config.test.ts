@@ -42,9 +42,12 @@ describe('loadConfig', () => {
 
 describe('site thresholds', () => {
   it('override the defaults, and a bad one is refused with its path', () => {
-    expect(resolveThresholds({ responsiveness: { mapTargetMmHg: 70 } }).responsiveness.mapTargetMmHg).toBe(70);
-    expect(resolveThresholds({}).responsiveness.mapTargetMmHg).toBe(65);
-    expect(() => resolveThresholds({ responsiveness: { mapTargetMmHg: 500 } })).toThrow(/mapTargetMmHg/);
+    expect(resolveThresholds({ need: { mapTargetMmHg: 70 } }).need.mapTargetMmHg).toBe(70);
+    expect(resolveThresholds({}).need.mapTargetMmHg).toBe(65);
+    expect(() => resolveThresholds({ need: { mapTargetMmHg: 500 } })).toThrow(/mapTargetMmHg/);
+    // One CVP window for both questions (§12), overridable in one place.
+    expect(resolveThresholds({ windows: { cvpMin: 180 } }).windows.cvpMin).toBe(180);
+    expect(resolveThresholds({}).windows).toMatchObject({ vitalsMin: 90, cvpMin: 120, ppvSvvMin: 60, tidalVolumeMin: 240, rhythmMin: 720, capillaryRefillMin: 120, lactateMin: 720, fio2CarryForwardMin: 720, creatinineMin: 2160, albuminMin: 4320 });
     expect(() => resolveThresholds({ responsivness: {} })).toThrow();
   });
 });

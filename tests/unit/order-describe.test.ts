@@ -15,8 +15,8 @@ describe('describeOrder', () => {
     expect(one(fs, 'order.volume').values).toMatchObject({ volumeMl: 500, durationMin: 30, rateMlPerHour: 1000, fluidClass: 'balanced-crystalloid' });
     expect(one(fs, 'order.volume-per-kg').values).toMatchObject({ volumeMlPerKg: 7.14, weightKg: 70, weightBasis: 'latest' });
     const est = one(fs, 'order.intravascular-estimate');
-    expect(est.values).toMatchObject({ intravascularAfterDistributionMl: 170, duringInfusionLowMl: 250, duringInfusionHighMl: 300, thirtyMinutesAfterHighMl: 100 });
-    expect(est.text).toContain('About 170 mL of 500 mL');
+    expect(est.values).toMatchObject({ intravascularAfterDistributionMl: 130, ruleOfThumbMl: 170, duringInfusionLowMl: 250, duringInfusionHighMl: 300, thirtyMinutesAfterHighMl: 100 });
+    expect(est.text).toContain('About 130 mL of 500 mL');
     expect(est.text).toContain('4–6 h');
     expect(est.evidence[0]).toMatchObject({ ref: 'draftOrders#MedicationRequest/tm-bolus-1', value: 500, unit: 'mL' });
   });
@@ -70,7 +70,7 @@ describe('order.sepsis-context', () => {
     const f = sepsisContext(s, NOW, OT, 500);
     // 1000 mL over 4 h → 2 h ago: half (500 mL) in the last 3 h; albumin 250 all in; the saline 5–6.7 h ago none.
     expect(f.values).toMatchObject({ referenceMl: 2100, givenWindowMl: 750, crystalloidWindowMl: 500, withOrderMl: 1250, withOrderMlPerKg: 17.9 });
-    expect(f).toMatchObject({ status: 'assessed', direction: 'neutral', weight: 'context' });
+    expect(f).toMatchObject({ status: 'assessed', topic: 'order', part: 'sepsis-context' });
     expect(f.text).toContain('2,100 mL');
     expect(f.text).toContain('weak recommendation, low-quality evidence');
   });
@@ -87,7 +87,8 @@ describe('order.sepsis-context', () => {
   });
   it('the figures are thresholds with defaults', () => {
     expect(orderThresholdsSchema.parse({})).toMatchObject({ sepsisMlPerKg: 30, sepsisWindowHours: 3, albuminHyperOncoticFactor: 2 });
-    expect(orderThresholdsSchema.parse({}).crystalloidRetainedFraction).toBeCloseTo(1 / 3, 10);
+    expect(orderThresholdsSchema.parse({}).crystalloidRetainedFraction).toBe(0.25);
+    expect(orderThresholdsSchema.parse({}).crystalloidRuleOfThumbFraction).toBeCloseTo(1 / 3, 10);
     expect(orderThresholdsSchema.safeParse({ sepsisMlPerkg: 20 }).success).toBe(false);
   });
 });

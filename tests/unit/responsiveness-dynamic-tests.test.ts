@@ -6,7 +6,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { assessResponsiveness, responsivenessThresholdsSchema } from '../../src/assess/responsiveness/index.js';
-import type { Finding } from '../../src/assess/types.js';
+import type { ResponsivenessFinding as Finding } from '../../src/assess/common/finding.js';
+import { responsivenessContext } from '../helpers/rule-context.js';
 import type { DynamicMeasured, DynamicTestKind } from '../../src/fhir/codes.js';
 import { SnapshotBuilder } from '../helpers/snapshot-builder.js';
 
@@ -17,7 +18,7 @@ const ID: Record<DynamicTestKind, string> = {
 };
 
 function find(b: SnapshotBuilder, id: string): Finding {
-  const f = assessResponsiveness(b.build(), b.now, T).findings.find((x) => x.ruleId === id);
+  const f = assessResponsiveness(responsivenessContext(b, T)).findings.find((x) => x.ruleId === id);
   if (!f) throw new Error(`no finding ${id}`);
   return f;
 }
@@ -38,7 +39,7 @@ describe('passive leg raising (Monnet 2016: CO rise ≥ 10 %)', () => {
     const f = test1('plr', measured, before, after);
     expect(f.status).toBe('assessed');
     expect(f.direction).toBe(direction);
-    expect(f.weight).toBe('dynamic');
+    expect(f.tier).toBe('dynamic');
   });
   it('CO 4.0 → 4.5 is +12.5 %', () => {
     const f = test1('plr', 'cardiacOutput', 4.0, 4.5);
@@ -48,15 +49,14 @@ describe('passive leg raising (Monnet 2016: CO rise ≥ 10 %)', () => {
   it('judged by pulse pressure: labelled weak and weighed as static (≥ 12 %)', () => {
     const pos = test1('plr', 'pulsePressure', 50, 56);
     expect(pos.direction).toBe('for');
-    expect(pos.weight).toBe('static');
-    expect(pos.values?.weak).toBe(true);
-    expect(pos.text).toMatch(/weak evidence, weighed as static/);
+    expect(pos.tier).toBe('static');
+    expect(pos.text).toMatch(/weak evidence, a static marker that only corroborates/);
     expect(test1('plr', 'pulsePressure', 50, 55.9).direction).toBe('against');
   });
   it('a flow read-out is preferred to a newer pulse-pressure one', () => {
     const b = new SnapshotBuilder().dynamicTest('plr', 'cardiacOutput', 4, 4.1, { ageMin: 40 }).dynamicTest('plr', 'pulsePressure', 50, 60, { ageMin: 5 });
     const f = find(b, ID.plr);
-    expect(f.weight).toBe('dynamic');
+    expect(f.tier).toBe('dynamic');
     expect(f.direction).toBe('against');
   });
   it('PLR read by PPV is not a validated read-out', () => {
@@ -72,7 +72,7 @@ describe('passive leg raising (Monnet 2016: CO rise ≥ 10 %)', () => {
     expect(stale.reason).toBe('Passive leg raising stale (age 61 min, window 60 min)');
     const bad = test1('plr', 'cardiacOutput', 0, 5);
     expect(bad.status).toBe('not-assessed');
-    expect(bad.values?.freshness).toBe('invalid');
+    expect(bad.gap).toBe('invalid');
   });
 });
 
@@ -82,7 +82,7 @@ describe('mini fluid challenge (Muller 2011: ΔVTI ≥ 10 %)', () => {
   ] as const)('%s %s → %s: %s', (measured, before, after, direction) => {
     const f = test1('miniFluidChallenge', measured, before, after);
     expect(f.direction).toBe(direction);
-    expect(f.weight).toBe('dynamic');
+    expect(f.tier).toBe('dynamic');
   });
   it('VTI 18 → 20 is +11.1 %', () => {
     expect(test1('miniFluidChallenge', 'vti', 18, 20).values?.changePercent).toBeCloseTo(11.11, 2);
@@ -91,7 +91,7 @@ describe('mini fluid challenge (Muller 2011: ΔVTI ≥ 10 %)', () => {
     expect(test1('miniFluidChallenge', 'pulsePressure', 40, 50).status).toBe('not-assessed');
   });
   it('stale', () => {
-    expect(test1('miniFluidChallenge', 'vti', 18, 20, { ageMin: 90 }).values?.freshness).toBe('stale');
+    expect(test1('miniFluidChallenge', 'vti', 18, 20, { ageMin: 90 }).gap).toBe('stale');
   });
 });
 
@@ -104,10 +104,10 @@ describe('end-expiratory occlusion (Monnet 2009: CI rise > 5 %)', () => {
     ['vti', 25, 27.2, 'against', 'dynamic'],
     ['pulsePressure', 40, 42, 'against', 'static'], // exactly 5 %: not > 5
     ['pulsePressure', 40, 43, 'for', 'static'],
-  ] as const)('%s %s → %s: %s (%s)', (measured, before, after, direction, weight) => {
+  ] as const)('%s %s → %s: %s (%s)', (measured, before, after, direction, tier) => {
     const f = test1('endExpiratoryOcclusion', measured, before, after);
     expect(f.direction).toBe(direction);
-    expect(f.weight).toBe(weight);
+    expect(f.tier).toBe(tier);
   });
   it('CI 3.00 → 3.18 is +6 %', () => {
     expect(test1('endExpiratoryOcclusion', 'cardiacIndex', 3.0, 3.18).values?.changePercent).toBe(6);
@@ -121,7 +121,7 @@ describe('tidal volume challenge (Myatra 2017: ΔPPV ≥ 3.5 points)', () => {
     const f = test1('tidalVolumeChallenge', measured, before, after, { b: ventilated() });
     expect(f.status).toBe('assessed');
     expect(f.direction).toBe(direction);
-    expect(f.weight).toBe('dynamic');
+    expect(f.tier).toBe('dynamic');
   });
   it('PPV 6 → 10 is 4 points', () => {
     expect(test1('tidalVolumeChallenge', 'ppv', 6, 10, { b: ventilated() }).values?.changePoints).toBe(4);
@@ -134,10 +134,10 @@ describe('tidal volume challenge (Myatra 2017: ΔPPV ≥ 3.5 points)', () => {
     expect(af.reason).toMatch(/sinus rhythm not met/);
     const unknown = test1('tidalVolumeChallenge', 'ppv', 6, 10);
     expect(unknown.status).toBe('not-assessed');
-    expect(unknown.values?.validity).toBe('unknown');
+    expect(unknown.gap).toBe('outside-validity');
   });
   it('a PPV read-out not in % is invalid; a flow read-out is not validated', () => {
-    expect(test1('tidalVolumeChallenge', 'ppv', 6, 10, { b: ventilated(), unit: '1' }).values?.freshness).toBe('invalid');
+    expect(test1('tidalVolumeChallenge', 'ppv', 6, 10, { b: ventilated(), unit: '1' }).gap).toBe('invalid');
     expect(test1('tidalVolumeChallenge', 'cardiacOutput', 4, 5, { b: ventilated() }).status).toBe('not-assessed');
   });
 });
@@ -146,7 +146,7 @@ describe('thresholds of the dynamic tests are configurable', () => {
   it('PLR threshold 15 % turns +12.5 % into against', () => {
     const t = responsivenessThresholdsSchema.parse({ plrFlowRisePercent: 15 });
     const b = new SnapshotBuilder().dynamicTest('plr', 'cardiacOutput', 4, 4.5, { ageMin: 5 });
-    const f = assessResponsiveness(b.build(), b.now, t).findings.find((x) => x.ruleId === ID.plr);
+    const f = assessResponsiveness(responsivenessContext(b, t)).findings.find((x) => x.ruleId === ID.plr);
     expect(f?.direction).toBe('against');
   });
 });

@@ -1,162 +1,127 @@
 /**
- * Truth table for 'responsiveness.last-bolus'. Defaults: bolus ≥ 250 mL over ≤ 60 min, completed, started within
- * 240 min; baseline = 30 min before the start, response = 30 min after the end, ≥ 2 readings each for MAP and HR;
- * response when MAP rises ≥ 5 mmHg AND HR falls ≥ 5/min (both boundaries inclusive); neither → no response;
- * one only → partial (neutral). Weighed as static.
+ * Truth table for 'responsiveness.last-bolus' (clinical-references §12, "Events make evidence old"). Defaults: bolus
+ * ≥ 250 mL over ≤ 60 min, completed, started within 240 min.
+ * - Dense monitor data (Aya HD et al., Crit Care Med 2016;44:880: the flow response peaks ~1 min after the end and fades
+ *   within ~10 min): a flow reading ≤ 10 min before the start, one ≤ 10 min after the end, no gap > 5 min → a
+ *   dynamic reading, rise ≥ 10 % for, else against.
+ * - Otherwise hourly charting: the newest MAP/HR within 90 min before the start against the first within 90 min after
+ *   the end; MAP ≥ +5 mmHg AND HR ≤ −5/min → for; neither → against; one → neutral. A weak static marker.
  */
 import { describe, expect, it } from 'vitest';
+import type { ResponsivenessFinding as Finding } from '../../src/assess/common/finding.js';
 import { assessResponsiveness, responsivenessThresholdsSchema } from '../../src/assess/responsiveness/index.js';
-import type { Finding } from '../../src/assess/types.js';
+import { responsivenessContext } from '../helpers/rule-context.js';
 import { SnapshotBuilder } from '../helpers/snapshot-builder.js';
 
 const T = responsivenessThresholdsSchema.parse({});
 const ID = 'responsiveness.last-bolus';
 
-function find(b: SnapshotBuilder): Finding {
-  const f = assessResponsiveness(b.build(), b.now, T).findings.find((x) => x.ruleId === ID);
+function find(b: SnapshotBuilder, t = T): Finding {
+  const f = assessResponsiveness(responsivenessContext(b, t)).findings.find((x) => x.ruleId === ID);
   if (!f) throw new Error('no finding');
   return f;
 }
 
-/** Bolus from 100 to 80 min ago; baseline readings at 125 and 110 min, response readings at 75 and 60 min. */
-function bolus(pre: { map: number; hr: number }[], post: { map: number; hr: number }[], b = new SnapshotBuilder()) {
+/** Bolus from 100 to 80 min ago; hourly vitals at 130 min (baseline) and 30 min (after), as nurses chart them. */
+function hourly(pre: { map: number; hr: number } | undefined, post: { map: number; hr: number } | undefined, b = new SnapshotBuilder()) {
   b.fluid({ volumeMl: 500, startAgeMin: 100, endAgeMin: 80 });
-  [125, 110].forEach((age, i) => { const p = pre[i]; if (p) b.vitals(p, { ageMin: age }); });
-  [75, 60].forEach((age, i) => { const p = post[i]; if (p) b.vitals(p, { ageMin: age }); });
+  if (pre) b.vitals(pre, { ageMin: 130 });
+  if (post) b.vitals(post, { ageMin: 30 });
   return b;
 }
-const steady = (map: number, hr: number) => [{ map, hr }, { map, hr }];
+/** Dense cardiac output every 2 min from 110 to 70 min ago, `before` until the start, `after` from the end on. */
+function dense(before: number, after: number, b = new SnapshotBuilder()) {
+  b.fluid({ volumeMl: 250, startAgeMin: 100, endAgeMin: 95 });
+  for (let age = 110; age >= 84; age -= 2) b.measure('cardiacOutput', age >= 100 ? before : after, { ageMin: age });
+  return b;
+}
 
-describe('reading the response', () => {
-  it('MAP +8, HR −10 → read as a response (for, static), values and evidence cited', () => {
-    const f = find(bolus([{ map: 60, hr: 120 }, { map: 62, hr: 118 }], [{ map: 69, hr: 110 }, { map: 69, hr: 108 }]));
-    expect(f.status).toBe('assessed');
-    expect(f.direction).toBe('for');
-    expect(f.weight).toBe('static');
-    expect(f.values).toMatchObject({ mapBeforeMmHg: 61, mapAfterMmHg: 69, mapChangeMmHg: 8, heartRateBeforePerMin: 119, heartRateAfterPerMin: 109, heartRateChangePerMin: -10 });
-    expect(f.evidence.filter((e) => e.kind === 'fluid')).toHaveLength(1);
-    expect(f.evidence.filter((e) => e.kind === 'meanBp')).toHaveLength(4);
-    expect(f.evidence.filter((e) => e.kind === 'heartRate')).toHaveLength(4);
-    expect(f.text).toMatch(/read as a response/);
+describe('hourly charting: a weak static marker', () => {
+  it('MAP +8, HR −10 → read as a response (for, static), named as a weak marker', () => {
+    const f = find(hourly({ map: 61, hr: 119 }, { map: 69, hr: 109 }));
+    expect(f).toMatchObject({ status: 'assessed', direction: 'for', tier: 'static' });
+    expect(f.values).toMatchObject({ mapChangeMmHg: 8, heartRateChangePerMin: -10, dense: false });
+    expect(f.text).toMatch(/hourly pressure change: a weak static marker/);
+    expect(f.evidence.filter((e) => e.kind.startsWith('fluid'))).toHaveLength(1);
   });
-  it('no change → no response (against)', () => {
-    const f = find(bolus(steady(60, 120), [{ map: 61, hr: 119 }, { map: 62, hr: 120 }]));
-    expect(f.direction).toBe('against');
-    expect(f.text).toMatch(/no response/);
-  });
-  it('MAP up but HR unchanged → partial (neutral)', () => {
-    expect(find(bolus(steady(60, 120), steady(70, 120))).direction).toBe('neutral');
-  });
-  it('HR down but MAP unchanged → partial (neutral)', () => {
-    expect(find(bolus(steady(60, 120), steady(60, 110))).direction).toBe('neutral');
+  it('no change → no response (against); one of the two → partial (neutral)', () => {
+    expect(find(hourly({ map: 60, hr: 120 }, { map: 61, hr: 119 })).direction).toBe('against');
+    expect(find(hourly({ map: 60, hr: 120 }, { map: 70, hr: 120 })).direction).toBe('neutral');
+    expect(find(hourly({ map: 60, hr: 120 }, { map: 60, hr: 110 })).direction).toBe('neutral');
   });
   it('boundaries: MAP exactly +5 and HR exactly −5 → response; +4.5 → partial', () => {
-    expect(find(bolus(steady(60, 120), steady(65, 115))).direction).toBe('for');
-    expect(find(bolus(steady(60, 120), steady(64.5, 115))).direction).toBe('neutral');
-    expect(find(bolus(steady(60, 120), steady(65, 116))).direction).toBe('neutral');
+    expect(find(hourly({ map: 60, hr: 120 }, { map: 65, hr: 115 })).direction).toBe('for');
+    expect(find(hourly({ map: 60, hr: 120 }, { map: 64.5, hr: 115 })).direction).toBe('neutral');
   });
   it('MAP is computed from SBP/DBP when no measured MAP exists (DBP + (SBP − DBP)/3)', () => {
-    const b = new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 100, endAgeMin: 80 });
-    b.vitals({ sbp: 90, dbp: 45, hr: 120 }, { ageMin: 125 }).vitals({ sbp: 90, dbp: 45, hr: 120 }, { ageMin: 110 }); // MAP 60
-    b.vitals({ sbp: 105, dbp: 54, hr: 110 }, { ageMin: 75 }).vitals({ sbp: 105, dbp: 54, hr: 110 }, { ageMin: 60 }); // MAP 71
-    const f = find(b);
-    expect(f.values?.mapBeforeMmHg).toBe(60);
-    expect(f.values?.mapAfterMmHg).toBe(71);
-    expect(f.direction).toBe('for');
+    const b = new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 100, endAgeMin: 80 })
+      .vitals({ sbp: 90, dbp: 45, hr: 120 }, { ageMin: 130 }) // MAP 60
+      .vitals({ sbp: 100, dbp: 55, hr: 110 }, { ageMin: 30 }); // MAP 70
+    expect(find(b)).toMatchObject({ direction: 'for', values: { mapChangeMmHg: 10 } });
   });
-  it('capillary refill, lactate and urine output before/after are shown when present', () => {
-    const b = bolus(steady(60, 120), steady(70, 110));
-    b.measure('capillaryRefill', 4.5, { ageMin: 105 }).measure('capillaryRefill', 2.5, { ageMin: 70 });
-    b.measure('lactate', 3.4, { ageMin: 150 }).measure('lactate', 2.6, { ageMin: 30 });
-    b.measure('urineOutput', 20, { ageMin: 110 }).measure('urineOutput', 60, { ageMin: 20 });
-    const f = find(b);
-    expect(f.values).toMatchObject({ capillaryRefillSBefore: 4.5, capillaryRefillSAfter: 2.5, lactateMmolLBefore: 3.4, lactateMmolLAfter: 2.6, urineBeforeMl: 20, urineAfterMl: 60 });
-    expect(f.text).toMatch(/capillary refill 4\.5 → 2\.5 s; lactate 3\.4 → 2\.6 mmol\/L; urine 20 → 60 mL/);
-    expect(f.direction).toBe('for');
+  it('a missing reading in a window → not assessed, says which', () => {
+    const f = find(hourly({ map: 60, hr: 120 }, undefined));
+    expect(f).toMatchObject({ status: 'not-assessed', gap: 'too-few-readings' });
+    expect(f.reason).toMatch(/no MAP after, no heart rate after/);
+  });
+  it('readings outside the 90-min windows do not count', () => {
+    const b = new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 100, endAgeMin: 80 })
+      .vitals({ map: 60, hr: 120 }, { ageMin: 191 }).vitals({ map: 70, hr: 110 }, { ageMin: 30 });
+    expect(find(b).gap).toBe('too-few-readings');
   });
 });
 
-describe('too few readings', () => {
-  it('one baseline MAP (2 needed) → not assessed, says which window', () => {
-    const f = find(bolus([{ map: 60, hr: 120 }], steady(70, 110)));
-    expect(f.status).toBe('not-assessed');
-    expect(f.reason).toMatch(/too few readings \(MAP before: 1 of 2 readings; heart rate before: 1 of 2 readings/);
+describe('dense monitor data (Aya 2016): a dynamic reading', () => {
+  it('cardiac output 4.0 → 4.6 (+15 %) within 10 min of the end → for, dynamic', () => {
+    const f = find(dense(4.0, 4.6));
+    expect(f).toMatchObject({ status: 'assessed', direction: 'for', tier: 'dynamic', values: { flowChangePercent: 15, dense: true } });
   });
-  it('no readings after the end → not assessed', () => {
-    const f = find(bolus(steady(60, 120), []));
-    expect(f.reason).toMatch(/MAP after: 0 of 2 readings; heart rate after: 0 of 2 readings/);
+  it('boundary: +10 % is a response, +9.75 % is not', () => {
+    expect(find(dense(4.0, 4.4)).direction).toBe('for');
+    expect(find(dense(4.0, 4.39)).direction).toBe('against');
   });
-  it('readings outside the windows do not count (window 30 min before start / after end)', () => {
-    const b = new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 100, endAgeMin: 80 });
-    b.vitals({ map: 60, hr: 120 }, { ageMin: 131 }).vitals({ map: 60, hr: 120 }, { ageMin: 130 }); // 130 = exactly 30 min before: counts
-    b.vitals({ map: 70, hr: 110 }, { ageMin: 50 }).vitals({ map: 70, hr: 110 }, { ageMin: 49 }); // 50 = exactly 30 min after: counts; 49 does not
-    const f = find(b);
-    expect(f.reason).toMatch(/MAP before: 1 of 2 readings/);
-    expect(f.reason).toMatch(/MAP after: 1 of 2 readings/);
-  });
-  it('the minimum is configurable', () => {
-    const t = responsivenessThresholdsSchema.parse({ bolusMinPointsPerWindow: 1 });
-    const b = bolus([{ map: 60, hr: 120 }], [{ map: 70, hr: 110 }]);
-    expect(assessResponsiveness(b.build(), b.now, t).findings.find((x) => x.ruleId === ID)?.direction).toBe('for');
+  it('readings 15 min apart are not dense: the hourly path is used', () => {
+    const b = new SnapshotBuilder().fluid({ volumeMl: 250, startAgeMin: 100, endAgeMin: 95 });
+    for (const age of [105, 90]) b.measure('cardiacOutput', age > 100 ? 4 : 4.6, { ageMin: age });
+    expect(find(b).values?.dense).toBeUndefined();
   });
 });
 
-describe('vasoactive confounder', () => {
-  const responded = () => bolus(steady(60, 120), steady(70, 110));
-  it('a vasopressor started between the windows → not used, named', () => {
+describe('confounders and events', () => {
+  const responded = () => hourly({ map: 60, hr: 120 }, { map: 70, hr: 110 });
+  it('a vasopressor started between baseline and response → not used, named', () => {
     const f = find(responded().vasoactive({ drug: 'norepinephrine', startAgeMin: 90, rate: { value: 0.1, unit: 'ug/kg/min' } }));
-    expect(f.status).toBe('not-assessed');
-    expect(f.values?.confounded).toBe(true);
+    expect(f).toMatchObject({ status: 'not-assessed', gap: 'confounded' });
     expect(f.reason).toMatch(/^confounded: norepinephrine started at/);
-    expect(f.evidence.some((e) => e.kind === 'vasoactive')).toBe(true);
   });
-  it('stopped between the windows → confounded', () => {
-    expect(find(responded().vasoactive({ drug: 'norepinephrine', startAgeMin: 300, endAgeMin: 95 })).reason).toMatch(/norepinephrine stopped/);
-  });
-  it('rate changed between the windows (one period ends, the next starts at another rate) → confounded', () => {
+  it('rate changed between the windows → confounded; unchanged continuous infusion is not', () => {
     const b = responded()
       .vasoactive({ drug: 'norepinephrine', startAgeMin: 300, endAgeMin: 90, rate: { value: 0.1, unit: 'ug/kg/min' } })
       .vasoactive({ drug: 'norepinephrine', startAgeMin: 90, rate: { value: 0.2, unit: 'ug/kg/min' } });
-    const f = find(b);
-    expect(f.reason).toMatch(/norepinephrine rate changed/);
-    expect(f.reason).not.toMatch(/stopped/);
-  });
-  it('a continuous infusion at an unchanged rate is no confounder', () => {
+    expect(find(b).reason).toMatch(/norepinephrine rate changed/);
     expect(find(responded().vasoactive({ drug: 'norepinephrine', startAgeMin: 400, rate: { value: 0.1, unit: 'ug/kg/min' } })).direction).toBe('for');
-    const split = responded()
-      .vasoactive({ drug: 'norepinephrine', startAgeMin: 300, endAgeMin: 90, rate: { value: 0.1, unit: 'ug/kg/min' } })
-      .vasoactive({ drug: 'norepinephrine', startAgeMin: 90, rate: { value: 0.1, unit: 'ug/kg/min' } });
-    expect(find(split).direction).toBe('for');
   });
-  it('changes outside the windows do not confound; not-done entries are ignored', () => {
-    expect(find(responded().vasoactive({ drug: 'vasopressin', startAgeMin: 200 })).direction).toBe('for');
-    expect(find(responded().vasoactive({ drug: 'vasopressin', startAgeMin: 90, status: 'not-done' })).direction).toBe('for');
+  it('a later fluid of ≥ 100 mL sets the reading aside', () => {
+    const f = find(responded().fluid({ volumeMl: 200, startAgeMin: 20, endAgeMin: 15 }));
+    expect(f).toMatchObject({ status: 'not-assessed', gap: 'set-aside' });
   });
 });
 
 describe('which fluid counts', () => {
-  it('absent → not assessed', () => {
-    const f = find(new SnapshotBuilder());
-    expect(f.status).toBe('not-assessed');
-    expect(f.values?.freshness).toBe('missing');
+  it('absent → not assessed (missing)', () => {
+    expect(find(new SnapshotBuilder()).gap).toBe('missing');
   });
   it('started more than 240 min ago → stale with age and look-back', () => {
-    const b = new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 241, endAgeMin: 221 });
-    const f = find(b);
-    expect(f.values?.freshness).toBe('stale');
+    const f = find(new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 241, endAgeMin: 221 }));
+    expect(f.gap).toBe('stale');
     expect(f.reason).toMatch(/stale \(started 241 min ago, look-back 240 min\)/);
   });
   it('too small (< 250 mL), too slow (> 60 min) or still running → not a bolus', () => {
-    expect(find(new SnapshotBuilder().fluid({ volumeMl: 249, startAgeMin: 100, endAgeMin: 80 })).values?.freshness).toBe('missing');
-    expect(find(new SnapshotBuilder().fluid({ volumeMl: 1000, startAgeMin: 200, endAgeMin: 100 })).values?.freshness).toBe('missing');
-    expect(find(new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 10, endAgeMin: -10, status: 'in-progress' })).values?.freshness).toBe('missing');
+    expect(find(new SnapshotBuilder().fluid({ volumeMl: 249, startAgeMin: 100, endAgeMin: 80 })).gap).toBe('missing');
+    expect(find(new SnapshotBuilder().fluid({ volumeMl: 1000, startAgeMin: 200, endAgeMin: 100 })).gap).toBe('missing');
+    expect(find(new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 10, endAgeMin: -10, status: 'in-progress' })).gap).toBe('missing');
   });
   it('exactly 250 mL over exactly 60 min counts', () => {
-    const b = new SnapshotBuilder().fluid({ volumeMl: 250, startAgeMin: 140, endAgeMin: 80 });
-    expect(find(b).values?.bolusVolumeMl).toBe(250);
-  });
-  it('the most recent bolus is used', () => {
-    const b = bolus(steady(60, 120), steady(70, 110)).fluid({ volumeMl: 300, startAgeMin: 200, endAgeMin: 190 });
-    expect(find(b).values?.bolusVolumeMl).toBe(500);
+    expect(find(new SnapshotBuilder().fluid({ volumeMl: 250, startAgeMin: 140, endAgeMin: 80 })).values?.bolusVolumeMl).toBe(250);
   });
 });

@@ -126,6 +126,6 @@ describe('conditions coded as problem lists code them, through the snapshot into
   ])('%s %s (%s) → %s', (system, code, display, sets) => {
     const s = snap([b.condition('c1', P, system, code, display)]);
     const f = conditionsRule(s, now, T)[0]!;
-    expect(f.values).toMatchObject({ limit: 'moderate', matchedSets: sets });
+    expect(f).toMatchObject({ limit: 'moderate', values: { matchedSets: sets } }); // assessment v2: the limit is a typed field
   });
 });

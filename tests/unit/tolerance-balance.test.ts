@@ -13,7 +13,7 @@ const output4 = () => [0, DAY].map((ago) => m('fluidOutput', 2000, ago, { period
 describe('tolerance.balance-cumulative', () => {
   it('present: intake − output observations since admission, sources named', () => {
     const [f] = cumulativeBalanceRule(snapshot({ measurements: [...intake12(), ...output4()] }), NOW, T);
-    expect(f).toMatchObject({ status: 'assessed', direction: 'neutral', values: { balanceMl: 8000, intakeMl: 12000, outputMl: 4000, limit: 'none' } });
+    expect(f).toMatchObject({ status: 'assessed', contextOnly: true, limit: 'none', values: { balanceMl: 8000, intakeMl: 12000, outputMl: 4000 } });
     expect(f!.values!['source']).toBe('intake observations − output observations');
     expect(f!.text).toContain('+8,000 mL');
     expect(f!.evidence).toHaveLength(5);
@@ -110,23 +110,29 @@ describe('tolerance.balance-24h', () => {
 
 describe('tolerance.fluid-overload', () => {
   const weight = (kg: number, ago = 3 * DAY - 60, unit?: string) => m('bodyWeight', kg, ago, unit ? { unit } : {});
-  it('present: 12 L in, 4 L out, 70 kg → 11.4 %, moderate', () => {
+  it('adult: 12 L in, 4 L out, 70 kg → 11.4 % (Goldstein 2001 formula), severe from 10 % (Bouchard 2009)', () => {
     const f = fluidOverloadRule(snapshot({ measurements: [...intake12(), ...output4(), weight(70)] }), NOW, T)[0]!;
     expect(f.values!['fluidOverloadPercent']).toBeCloseTo(11.43, 2);
-    expect(limit(f)).toBe('moderate');
-    expect(f.direction).toBe('against');
+    expect(limit(f)).toBe('severe');
+    expect(f.text).toMatch(/adult band/);
   });
-  it('boundary: exactly 20 % is severe, just below is moderate', () => {
-    const s20 = snapshot({ measurements: [m('fluidIntake', 16000, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)] });
+  it('adult boundary: exactly 10 % is severe, just below limits nothing', () => {
+    const s10 = snapshot({ measurements: [m('fluidIntake', 9000, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)] });
+    expect(limit(fluidOverloadRule(s10, NOW, T)[0]!)).toBe('severe');
+    const s9 = snapshot({ measurements: [m('fluidIntake', 8990, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)] });
+    expect(limit(fluidOverloadRule(s9, NOW, T)[0]!)).toBe('none');
+  });
+  it('child (10 years): paediatric bands, 11.4 % moderate, exactly 20 % severe (Goldstein 2001; Sutherland 2010)', () => {
+    const child = (ms: Parameters<typeof snapshot>[0]) => { const s = snapshot(ms); s.patient.ageYears = 10; return s; };
+    const f = fluidOverloadRule(child({ measurements: [...intake12(), ...output4(), weight(70)] }), NOW, T)[0]!;
+    expect(limit(f)).toBe('moderate');
+    expect(f.text).toMatch(/paediatric band/);
+    const s20 = child({ measurements: [m('fluidIntake', 16000, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)] });
     expect(limit(fluidOverloadRule(s20, NOW, T)[0]!)).toBe('severe');
-    const s19 = snapshot({ measurements: [m('fluidIntake', 15990, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)] });
-    expect(limit(fluidOverloadRule(s19, NOW, T)[0]!)).toBe('moderate');
   });
   it('below 10 % limits nothing; a negative balance points for tolerance', () => {
     const s = snapshot({ measurements: [m('fluidIntake', 2000, 0, { periodMinutes: DAY }), m('fluidOutput', 3000, 0, { periodMinutes: DAY }), weight(70)] });
-    const f = fluidOverloadRule(s, NOW, T)[0]!;
-    expect(limit(f)).toBe('none');
-    expect(f.direction).toBe('for');
+    expect(limit(fluidOverloadRule(s, NOW, T)[0]!)).toBe('none');
   });
   it('absent weight → not assessed, balance kept in values', () => {
     const f = fluidOverloadRule(snapshot({ measurements: [...intake12(), ...output4()] }), NOW, T)[0]!;
@@ -148,14 +154,19 @@ describe('tolerance.fluid-overload', () => {
 
 describe('tolerance.weight-gain', () => {
   const w = (kg: number, ago: number, unit?: string) => m('bodyWeight', kg, ago, unit ? { unit } : {});
-  it('present: 70 → 77.5 kg is 10.7 %, moderate', () => {
+  it('adult: 70 → 77.5 kg is 10.7 %, severe from 10 % (Bouchard 2009 band)', () => {
     const f = weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(77.5, 120)] }), NOW, T)[0]!;
     expect(f.values!['weightGainPercent']).toBeCloseTo(10.71, 2);
-    expect(limit(f)).toBe('moderate');
+    expect(limit(f)).toBe('severe');
   });
-  it('boundary: 20 % is severe, 9.9 % limits nothing', () => {
-    expect(limit(weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(84, 120)] }), NOW, T)[0]!)).toBe('severe');
+  it('adult boundary: exactly 10 % is severe, 9.9 % limits nothing', () => {
+    expect(limit(weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(77, 120)] }), NOW, T)[0]!)).toBe('severe');
     expect(limit(weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(76.9, 120)] }), NOW, T)[0]!)).toBe('none');
+  });
+  it('child (10 years): paediatric bands, 10.7 % moderate, 20 % severe (Selewski 2011)', () => {
+    const child = (ms: Parameters<typeof snapshot>[0]) => { const s = snapshot(ms); s.patient.ageYears = 10; return s; };
+    expect(limit(weightGainRule(child({ measurements: [w(70, 3 * DAY - 30), w(77.5, 120)] }), NOW, T)[0]!)).toBe('moderate');
+    expect(limit(weightGainRule(child({ measurements: [w(70, 3 * DAY - 30), w(84, 120)] }), NOW, T)[0]!)).toBe('severe');
   });
   it('absent: one weight only → not assessed', () => {
     expect(weightGainRule(snapshot({ measurements: [w(70, 120)] }), NOW, T)[0]!.status).toBe('not-assessed');

@@ -74,10 +74,11 @@ describe('tolerance.kidney-creatinine', () => {
   it('the baseline is the lowest value of 7 days before the latest; older values do not count', () => {
     expect(crea(m('creatinine', 0.7, 8 * 1440), m('creatinine', 1.2, 3 * 1440), m('creatinine', 1.3, 60)).values!['kdigoCreatinineStage']).toBe(0);
   });
-  it('absent, a single value, stale latest (30 h), wrong unit (µmol/L) → not assessed', () => {
+  it('absent, a single value, stale latest (37 h; window 36 h, §12), wrong unit (µmol/L) → not assessed', () => {
     expect(crea().status).toBe('not-assessed');
     expect(crea(m('creatinine', 2.0, 60)).reason).toContain('no earlier creatinine');
-    expect(crea(m('creatinine', 1.0, 4 * 1440), m('creatinine', 2.5, 30 * 60)).status).toBe('not-assessed');
+    expect(crea(m('creatinine', 1.0, 4 * 1440), m('creatinine', 2.5, 37 * 60)).status).toBe('not-assessed');
+    expect(crea(m('creatinine', 1.0, 4 * 1440), m('creatinine', 2.5, 36 * 60)).status).toBe('assessed');
     expect(crea(m('creatinine', 88, 4 * 1440, { unit: 'umol/L' }), m('creatinine', 186, 60, { unit: 'umol/L' })).status).toBe('not-assessed');
   });
 });

@@ -4,9 +4,8 @@ import { spo2Fio2Rule, spo2Fio2TrendRule } from '../../src/assess/tolerance/spo2
 import { oxygenNeedRule } from '../../src/assess/tolerance/oxygen-need.js';
 import { lungUltrasoundRule } from '../../src/assess/tolerance/lung-ultrasound.js';
 import { evlwiRule } from '../../src/assess/tolerance/evlwi.js';
-import { isCongestionSign } from '../../src/assess/tolerance/finding.js';
 import type { Measurement } from '../../src/snapshot/types.js';
-import { limit, m, NOW, snapshot, T } from '../helpers/tolerance-fixtures.js';
+import { limit, m, NOW, snapshot, T, tol } from '../helpers/tolerance-fixtures.js';
 
 const s = (...ms: Measurement[]) => snapshot({ measurements: ms });
 
@@ -21,22 +20,24 @@ describe('tolerance.spo2-fio2', () => {
   });
   it('SpO2 above 97 % with a low ratio is not interpretable (context only)', () => {
     const f = spo2Fio2Rule(s(m('spo2', 99, 10), m('fio2', 60, 10)), NOW, T)[0]!;
-    expect(f.direction).toBe('neutral');
+    expect(tol(f).contextOnly).toBe(true);
     expect(limit(f)).toBe('none');
     expect(f.text).toContain('not interpretable');
   });
   it('SpO2 above 97 % with a ratio ≥ 235 shows good oxygenation', () => {
-    expect(spo2Fio2Rule(s(m('spo2', 99, 10), m('fio2', 30, 10)), NOW, T)[0]!.direction).toBe('for');
+    expect(limit(spo2Fio2Rule(s(m('spo2', 99, 10), m('fio2', 30, 10)), NOW, T)[0]!)).toBe('none');
   });
   it('absent FiO2 → not assessed (room air is not assumed)', () => {
     expect(spo2Fio2Rule(s(m('spo2', 92, 10)), NOW, T)[0]!.reason).toBe('no FiO2 recorded');
   });
-  it('FiO2 charted more than 60 min from the SpO2 is not paired', () => {
-    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 80)), NOW, T)[0]!.status).toBe('not-assessed');
-    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 70)), NOW, T)[0]!.status).toBe('assessed');
+  it('FiO2 is carried forward until changed, up to 12 h (§12); a later FiO2 is not the one in force', () => {
+    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 8 * 60)), NOW, T)[0]!).toMatchObject({ status: 'assessed', values: { fio2Percent: 50 } });
+    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 12 * 60 + 11)), NOW, T)[0]!.status).toBe('not-assessed');
+    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 40, 300), m('fio2', 60, 60)), NOW, T)[0]!.values).toMatchObject({ fio2Percent: 60 });
+    expect(spo2Fio2Rule(s(m('spo2', 92, 60), m('fio2', 60, 20)), NOW, T)[0]!.status).toBe('not-assessed');
   });
   it('stale: SpO2 3 h old does not count', () => {
-    expect(spo2Fio2Rule(s(m('spo2', 92, 180), m('fio2', 50, 180)), NOW, T)[0]!.reason).toMatch(/3 h old/);
+    expect(spo2Fio2Rule(s(m('spo2', 92, 180), m('fio2', 50, 180)), NOW, T)[0]!.reason).toMatch(/SpO2 stale \(age 3 h, window 2 h\)/);
   });
   it('wrong unit: FiO2 sent as a fraction with unit 1 is not used', () => {
     expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 0.5, 10, { unit: '1' })), NOW, T)[0]!.reason).toContain("unit '1'");
@@ -49,14 +50,14 @@ describe('tolerance.spo2-fio2-trend', () => {
     // 320 → 230: −28 %.
     expect(f.values).toMatchObject({ earlierRatio: 320, latestRatio: 230, falling: true });
     expect(limit(f)).toBe('moderate');
-    expect(isCongestionSign(f)).toBe(true);
+    expect(tol(f).harmSign).toBe(true);
   });
   it('boundary: a fall of exactly 20 % is falling; 19 % is not', () => {
     const at20 = spo2Fio2TrendRule(s(m('spo2', 95, 240), m('fio2', 30, 240), m('spo2', 95, 10), m('fio2', 37.5, 10)), NOW, T)[0]!;
     expect(at20.values!['falling']).toBe(true);
     const at19 = spo2Fio2TrendRule(s(m('spo2', 95, 240), m('fio2', 30, 240), m('spo2', 95, 10), m('fio2', 37, 10)), NOW, T)[0]!;
     expect(at19.values!['falling']).toBe(false);
-    expect(isCongestionSign(at19)).toBe(false);
+    expect(tol(at19).harmSign).toBe(false);
   });
   it('a fall to a ratio on the plateau (SpO2 > 97 %) is not called a fall', () => {
     const f = spo2Fio2TrendRule(s(m('spo2', 96, 240), m('fio2', 21, 240), m('spo2', 98, 10), m('fio2', 40, 10)), NOW, T)[0]!;
@@ -99,11 +100,12 @@ describe('tolerance.oxygen-need', () => {
 
 describe('tolerance.lung-ultrasound', () => {
   const run = (n?: number, ago = 60, unit?: string) => lungUltrasoundRule(s(...(n === undefined ? [] : [m('bLineRegions', n, ago, unit ? { unit } : {})])), NOW, T)[0]!;
-  it.each([[0, 'none', false], [1, 'none', false], [2, 'moderate', false], [3, 'moderate', false], [4, 'severe', true], [8, 'severe', true]])(
-    '%s regions → %s (congestion sign %s)', (n, l, sign) => {
+  // With the side not charted, diffuse lung water (≥ 2 regions on EACH side, Volpicelli 2012) cannot be shown: capped at moderate (§12).
+  it.each([[0, 'none', false], [1, 'none', false], [2, 'moderate', false], [3, 'moderate', false], [4, 'moderate', false], [8, 'moderate', false]])(
+    '%s regions, side unknown → %s (harm sign %s)', (n, l, sign) => {
       const f = run(n);
       expect(limit(f)).toBe(l);
-      expect(isCongestionSign(f)).toBe(sign);
+      expect(tol(f).harmSign).toBe(sign);
     });
   it('absent and stale (7 h) → not assessed', () => {
     expect(run().status).toBe('not-assessed');
@@ -119,12 +121,12 @@ describe('tolerance.evlwi', () => {
   it('11.4 mL/kg → pulmonary oedema: severe, congestion sign', () => {
     const f = run(11.4);
     expect(limit(f)).toBe('severe');
-    expect(isCongestionSign(f)).toBe(true);
+    expect(tol(f).harmSign).toBe(true);
   });
   it('boundary: 10 is oedema, 9.9 is not', () => {
     expect(limit(run(10))).toBe('severe');
     expect(limit(run(9.9))).toBe('none');
-    expect(run(9.9).direction).toBe('for');
+    expect(limit(run(9.9))).toBe('none');
   });
   it('absent → not assessed; stale (13 h) → not assessed', () => {
     expect(run().status).toBe('not-assessed');

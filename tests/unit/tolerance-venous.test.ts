@@ -2,9 +2,8 @@
 import { describe, expect, it } from 'vitest';
 import { vexusRule } from '../../src/assess/tolerance/vexus.js';
 import { cvpRule } from '../../src/assess/tolerance/cvp.js';
-import { isCongestionSign } from '../../src/assess/tolerance/finding.js';
 import type { CodedMeasurement, Measurement } from '../../src/snapshot/types.js';
-import { coded, limit, m, NOW, snapshot, T } from '../helpers/tolerance-fixtures.js';
+import { coded, limit, m, NOW, snapshot, T, tol } from '../helpers/tolerance-fixtures.js';
 
 function vexus(parts: { ivc?: number; hv?: string; pf?: number; rv?: string; ago?: number; ivcUnit?: string }) {
   const ago = parts.ago ?? 30;
@@ -22,14 +21,14 @@ describe('tolerance.vexus', () => {
     const f = vexus({ ivc: 2.3, hv: 'severe', pf: 60, rv: 'biphasic' });
     expect(f.values).toMatchObject({ vexusGrade: 3, severePatterns: 2, definite: true });
     expect(limit(f)).toBe('severe');
-    expect(isCongestionSign(f)).toBe(true);
+    expect(tol(f).harmSign).toBe(true);
     expect(f.evidence).toHaveLength(4);
   });
   it('one severe pattern → grade 2, moderate', () => {
     const f = vexus({ ivc: 2.3, hv: 'mild', pf: 55, rv: 'biphasic' });
     expect(f.values!['vexusGrade']).toBe(2);
     expect(limit(f)).toBe('moderate');
-    expect(isCongestionSign(f)).toBe(false);
+    expect(tol(f).harmSign).toBe(false);
   });
   it('mild patterns only → grade 1, limits nothing', () => {
     expect(limit(vexus({ ivc: 2.3, hv: 'mild', pf: 40, rv: 'biphasic' }))).toBe('none');
@@ -53,7 +52,7 @@ describe('tolerance.vexus', () => {
     expect(vexus({ ivc: 2.4 }).status).toBe('not-assessed');
   });
   it('IVC < 2 cm needs no Doppler: grade 0', () => {
-    expect(vexus({ ivc: 1.5 })).toMatchObject({ status: 'assessed', direction: 'for' });
+    expect(vexus({ ivc: 1.5 })).toMatchObject({ status: 'assessed', limit: 'none' });
   });
   it('absent IVC → not assessed, even with severe Doppler patterns', () => {
     expect(vexus({ hv: 'severe', pf: 70 }).status).toBe('not-assessed');

@@ -10,8 +10,9 @@ import {
   crystalloidIntravascularAfterDistributionMl, crystalloidPlasmaExpansionRangeMl, hyperOncoticAlbuminExpansionMl,
   isoOncoticAlbuminExpansionMl, roundToStep,
 } from '../../physiology/volume-kinetics.js';
-import type { Evidence, Finding } from '../types.js';
-import { evidenceOf, fmt, round } from '../tolerance/select.js';
+import type { Evidence, OrderFinding, OrderPart } from '../common/finding.js';
+import { evidenceOfMeasurement as evidenceOf } from '../common/select.js';
+import { fmt, round } from '../common/text.js';
 import { weightForPerKg } from '../tolerance/weights.js';
 import { sepsisContext } from './sepsis-context.js';
 import type { OrderThresholds } from './thresholds.js';
@@ -20,7 +21,7 @@ export const ORDER_VOLUME = 'order.volume';
 export const ORDER_VOLUME_PER_KG = 'order.volume-per-kg';
 export const ORDER_INTRAVASCULAR = 'order.intravascular-estimate';
 
-const KINETICS_SOURCE = 'Crystalloid: a third stays once distributed, most gone within 4–6 h (common practice; Ernest D et al., Crit Care Med 1999;27:46); '
+const KINETICS_SOURCE = 'Crystalloid: about a quarter stays once distributed (saline PV:ISF ≈ 1:3, Ernest D et al., Crit Care Med 1999;27:46); rule of thumb a third, most gone within 4–6 h (common practice); '
   + '50–60 % while infusing, 15–20 % 30 min after (Hahn RG, Acta Anaesthesiol Scand 2020, doi 10.1111/aas.13533); '
   + 'albumin 5 % ≈ volume infused; 20–25 % ≈ twice the volume (Crit Care 2020, doi 10.1186/s13054-020-02855-0)';
 
@@ -37,11 +38,15 @@ function orderEvidence(order: DraftOrder, now: Date): Evidence {
   return { ref: order.ref, kind: 'draftOrder', value: order.volumeMl ?? order.display ?? order.id, ...(order.volumeMl !== undefined ? { unit: 'mL' } : {}), effective: now.toISOString(), ageMinutes: 0 };
 }
 
-function notAssessed(ruleId: string, text: string, reason: string, evidence: Evidence[], source?: string): Finding {
-  return { ruleId, topic: 'order', status: 'not-assessed', text, reason, evidence, ...(source ? { source } : {}) };
+const PART: Record<string, OrderPart> = {
+  [ORDER_VOLUME]: 'volume', [ORDER_VOLUME_PER_KG]: 'volume-per-kg', [ORDER_INTRAVASCULAR]: 'intravascular-estimate',
+};
+
+function notAssessed(ruleId: string, text: string, reason: string, evidence: Evidence[], source?: string): OrderFinding {
+  return { ruleId, topic: 'order', part: PART[ruleId] ?? 'volume', status: 'not-assessed', gap: 'missing', text, reason, evidence, ...(source ? { source } : {}) };
 }
 
-function volumeFinding(order: DraftOrder, now: Date): Finding {
+function volumeFinding(order: DraftOrder, now: Date): OrderFinding {
   const ev = [orderEvidence(order, now)];
   if (order.volumeMl === undefined) {
     return notAssessed(ORDER_VOLUME, 'Ordered volume not read', order.volumeProblem ?? 'the order gives no volume in mL', ev);
@@ -49,7 +54,7 @@ function volumeFinding(order: DraftOrder, now: Date): Finding {
   const label = order.fluidClass ? CLASS_LABEL[order.fluidClass] : 'IV fluid';
   const rate = order.durationMin !== undefined && order.durationMin > 0 ? (order.volumeMl / order.durationMin) * 60 : undefined;
   return {
-    ruleId: ORDER_VOLUME, topic: 'order', status: 'assessed',
+    ruleId: ORDER_VOLUME, topic: 'order', part: 'volume', status: 'assessed', fluidClass: order.fluidClass ?? 'other',
     text: `${fmt(order.volumeMl)} mL ${label}${order.durationMin !== undefined ? ` over ${fmt(order.durationMin)} min` : ''}${rate !== undefined ? ` (${fmt(rate)} mL/h)` : ''}`,
     values: {
       volumeMl: order.volumeMl, fluidClass: order.fluidClass ?? 'other',
@@ -60,7 +65,7 @@ function volumeFinding(order: DraftOrder, now: Date): Finding {
   };
 }
 
-function perKgFinding(order: DraftOrder, snapshot: PatientSnapshot, now: Date, t: OrderThresholds): Finding {
+function perKgFinding(order: DraftOrder, snapshot: PatientSnapshot, now: Date, t: OrderThresholds): OrderFinding {
   const ev = [orderEvidence(order, now)];
   if (order.volumeMl === undefined) return notAssessed(ORDER_VOLUME_PER_KG, 'Volume per kg not given', 'no ordered volume', ev);
   const w = weightForPerKg(snapshot, now, t);
@@ -68,7 +73,7 @@ function perKgFinding(order: DraftOrder, snapshot: PatientSnapshot, now: Date, t
   const perKg = order.volumeMl / w.m.value;
   const basis = w.basis === 'latest' ? 'latest weight' : w.basis === 'admission' ? 'admission weight' : 'earliest recorded weight';
   return {
-    ruleId: ORDER_VOLUME_PER_KG, topic: 'order', status: 'assessed',
+    ruleId: ORDER_VOLUME_PER_KG, topic: 'order', part: 'volume-per-kg', status: 'assessed',
     text: `${fmt(perKg, 1)} mL/kg (${basis} ${fmt(w.m.value, 1)} kg)`,
     values: { volumeMlPerKg: round(perKg, 2), weightKg: w.m.value, weightBasis: w.basis },
     evidence: [...ev, evidenceOf(w.m, now)],
@@ -81,6 +86,7 @@ export function intravascularEstimate(volumeMl: number, fluidClass: FluidClass, 
   const r = (ml: number) => roundToStep(ml, t.estimateRoundingMl);
   if (fluidClass === 'balanced-crystalloid' || fluidClass === 'saline') {
     const after = r(crystalloidIntravascularAfterDistributionMl(volumeMl, t.crystalloidRetainedFraction));
+    const thumb = r(crystalloidIntravascularAfterDistributionMl(volumeMl, t.crystalloidRuleOfThumbFraction));
     const fr = {
       duringInfusion: [t.crystalloidDuringInfusionLowFraction, t.crystalloidDuringInfusionHighFraction] as const,
       thirtyMinutesAfter: [t.crystalloidThirtyMinutesAfterLowFraction, t.crystalloidThirtyMinutesAfterHighFraction] as const,
@@ -89,11 +95,11 @@ export function intravascularEstimate(volumeMl: number, fluidClass: FluidClass, 
     const [aLo, aHi] = crystalloidPlasmaExpansionRangeMl(volumeMl, 'thirty-minutes-after', fr).map(r) as [number, number];
     const saline = fluidClass === 'saline' ? ' Saline leaves the plasma about half as fast as balanced solutions (Hahn 2020).' : '';
     return {
-      text: `About ${fmt(after)} mL of ${fmt(volumeMl)} mL stays in the vessels once distributed (a third); `
+      text: `About ${fmt(after)} mL of ${fmt(volumeMl)} mL stays in the vessels once distributed (about a quarter, Ernest 1999; the bedside rule of thumb of a third would say ${fmt(thumb)} mL); `
         + `about ${fmt(dLo)}–${fmt(dHi)} mL while it runs${durationMin !== undefined ? ` (${fmt(durationMin)} min)` : ''}, ${fmt(aLo)}–${fmt(aHi)} mL 30 min after; `
         + `most has left the circulation within ${fmt(t.crystalloidMostGoneLowHours)}–${fmt(t.crystalloidMostGoneHighHours)} h.${saline}`,
       values: {
-        intravascularAfterDistributionMl: after, duringInfusionLowMl: dLo, duringInfusionHighMl: dHi,
+        intravascularAfterDistributionMl: after, ruleOfThumbMl: thumb, duringInfusionLowMl: dLo, duringInfusionHighMl: dHi,
         thirtyMinutesAfterLowMl: aLo, thirtyMinutesAfterHighMl: aHi,
         mostGoneLowHours: t.crystalloidMostGoneLowHours, mostGoneHighHours: t.crystalloidMostGoneHighHours,
       },
@@ -116,18 +122,18 @@ export function intravascularEstimate(volumeMl: number, fluidClass: FluidClass, 
   return undefined;
 }
 
-function estimateFinding(order: DraftOrder, now: Date, t: OrderThresholds): Finding {
+function estimateFinding(order: DraftOrder, now: Date, t: OrderThresholds): OrderFinding {
   const ev = [orderEvidence(order, now)];
   const title = 'Intravascular estimate not given';
   if (order.volumeMl === undefined) return notAssessed(ORDER_INTRAVASCULAR, title, 'no ordered volume', ev, KINETICS_SOURCE);
   if (!order.fluidClass) return notAssessed(ORDER_INTRAVASCULAR, title, 'the kind of fluid is not known', ev, KINETICS_SOURCE);
   const est = intravascularEstimate(order.volumeMl, order.fluidClass, t, order.durationMin);
   if (!est) return notAssessed(ORDER_INTRAVASCULAR, title, `no estimate for ${CLASS_LABEL[order.fluidClass]}`, ev, KINETICS_SOURCE);
-  return { ruleId: ORDER_INTRAVASCULAR, topic: 'order', status: 'assessed', text: est.text, values: est.values, evidence: ev, source: KINETICS_SOURCE };
+  return { ruleId: ORDER_INTRAVASCULAR, topic: 'order', part: 'intravascular-estimate', status: 'assessed', text: est.text, values: est.values, evidence: ev, source: KINETICS_SOURCE };
 }
 
 /** Order findings for one draft fluid order. A non-fluid order yields one not-assessed finding. */
-export function describeOrder(order: DraftOrder, snapshot: PatientSnapshot, now: Date, t: OrderThresholds): Finding[] {
+export function describeOrder(order: DraftOrder, snapshot: PatientSnapshot, now: Date, t: OrderThresholds): OrderFinding[] {
   if (!order.isFluid) {
     return [notAssessed(ORDER_VOLUME, 'Not an IV fluid order', 'the draft order is not an intravenous fluid', [orderEvidence(order, now)])];
   }

@@ -7,9 +7,10 @@
 import type { PatientSnapshot } from '../../snapshot/types.js';
 import { volumeInWindowMl } from '../../physiology/fluid-balance.js';
 import { sepsisInitialCrystalloidMl } from '../../physiology/sepsis-volume.js';
-import type { Evidence, Finding } from '../types.js';
-import { ageMinutesAt, evidenceOf, fmt, round, timeMs } from '../tolerance/select.js';
-import { weightForPerKg } from '../tolerance/weights.js';
+import type { Evidence, OrderFinding } from '../common/finding.js';
+import { ageMinutesRounded as ageMinutesAt, evidenceOfMeasurement as evidenceOf, timeMs } from '../common/select.js';
+import { fmt, round } from '../common/text.js';
+import { admissionWeight } from '../tolerance/weights.js';
 import type { OrderThresholds } from './thresholds.js';
 
 export const SEPSIS_CONTEXT = 'order.sepsis-context';
@@ -41,12 +42,13 @@ export function fluidGivenWithin(snapshot: PatientSnapshot, now: Date, hours: nu
   };
 }
 
-export function sepsisContext(snapshot: PatientSnapshot, now: Date, t: OrderThresholds, orderVolumeMl?: number): Finding {
-  const weight = weightForPerKg(snapshot, now, t);
+export function sepsisContext(snapshot: PatientSnapshot, now: Date, t: OrderThresholds, orderVolumeMl?: number): OrderFinding {
+  // On the admission (dry) weight, not today's fluid-laden weight (§12).
+  const weight = admissionWeight(snapshot, now, t);
   if (!weight) {
     return {
-      ruleId: SEPSIS_CONTEXT, topic: 'order', status: 'not-assessed', weight: 'context',
-      text: 'Sepsis volume context not given', reason: 'no body weight recorded', evidence: [], source: SOURCE,
+      ruleId: SEPSIS_CONTEXT, topic: 'order', part: 'sepsis-context', status: 'not-assessed', gap: 'missing',
+      text: 'Sepsis volume context not given', reason: 'no admission weight recorded', evidence: [], source: SOURCE,
     };
   }
   const kg = weight.m.value;
@@ -55,9 +57,9 @@ export function sepsisContext(snapshot: PatientSnapshot, now: Date, t: OrderThre
   const withOrder = orderVolumeMl !== undefined ? given.totalMl + orderVolumeMl : undefined;
   const h = fmt(t.sepsisWindowHours);
   return {
-    ruleId: SEPSIS_CONTEXT, topic: 'order', status: 'assessed', direction: 'neutral', weight: 'context',
+    ruleId: SEPSIS_CONTEXT, topic: 'order', part: 'sepsis-context', status: 'assessed',
     text: `Context only, if sepsis-induced hypoperfusion: SSC 2021 suggests ≥ ${fmt(t.sepsisMlPerKg)} mL/kg crystalloid in the first ${h} h `
-      + `(${fmt(referenceMl)} mL for ${fmt(kg, 1)} kg; weak recommendation, low-quality evidence). Recorded IV fluid in the last ${h} h: ${fmt(given.totalMl)} mL`
+      + `(${fmt(referenceMl)} mL for ${fmt(kg, 1)} kg ${weight.basis === 'admission' ? 'admission' : 'earliest recorded'} weight; weak recommendation, low-quality evidence). Recorded IV fluid in the last ${h} h: ${fmt(given.totalMl)} mL`
       + (withOrder !== undefined ? `; with this order ${fmt(withOrder)} mL (${fmt(withOrder / kg, 1)} mL/kg)` : ''),
     values: {
       referenceMl: round(referenceMl, 0), mlPerKg: t.sepsisMlPerKg, weightKg: kg, weightBasis: weight.basis,

@@ -1,16 +1,7 @@
-/** What every responsiveness rule receives: the snapshot, the injected clock and the thresholds. */
-import type { PatientSnapshot } from '../../snapshot/types.js';
-import type { Finding } from '../types.js';
+/** What every responsiveness rule receives (the common RuleContext with this group's thresholds) and the rule shape. */
+import type { Rule, RuleContext as CommonRuleContext } from '../common/rule.js';
+import type { ResponsivenessFinding } from '../common/finding.js';
 import type { ResponsivenessThresholds } from './thresholds.js';
 
-export interface RuleContext {
-  snapshot: PatientSnapshot;
-  now: Date;
-  t: ResponsivenessThresholds;
-}
-
-/** One marker rule: a pure function returning exactly one finding (assessed, or not-assessed with the reason). */
-export interface ResponsivenessRule {
-  id: string;
-  run: (ctx: RuleContext) => Finding;
-}
+export type RuleContext = CommonRuleContext<ResponsivenessThresholds>;
+export type ResponsivenessRule = Rule<ResponsivenessThresholds, ResponsivenessFinding>;

@@ -8,18 +8,20 @@
 import type { DynamicMeasured, DynamicTestKind } from '../../fhir/codes.js';
 import { absoluteChange, relativeChangePercent } from '../../physiology/dynamic-tests.js';
 import type { DynamicTestResult } from '../../snapshot/types.js';
-import type { Finding } from '../types.js';
+import type { Marker, ResponsivenessFinding } from '../common/finding.js';
+import { ageMinutes, dynamicTestsOf, evidenceOfDynamicTest, judge, type Selection } from '../common/select.js';
+import { displayUnit, fmt, signed } from '../common/text.js';
 import type { RuleContext } from './context.js';
-import { assessed, displayUnit, fmt, notAssessed, signed, unusableFinding } from './finding.js';
-import { summarizeValidity, type Condition } from './heart-lung-validity.js';
-import { ageMinutes, dynamicTestsOf, evidenceOfDynamicTest, type Selection } from './select.js';
+import { assessed, notAssessed, unusableFinding } from './finding.js';
+import { conditionText, summarizeValidity, type Condition } from './heart-lung-validity.js';
 
 export interface ReadOut {
   compare: 'relative' | 'absolute';
   threshold: number;
   /** true: change must be strictly above the threshold; false: at or above. */
   strict: boolean;
-  weight: 'dynamic' | 'static';
+  /** Flow read-outs decide (dynamic); pressure surrogates only corroborate (static). */
+  tier: 'dynamic' | 'static';
   /** Added to the text of weak read-outs. */
   note?: string;
   source: string;
@@ -27,6 +29,7 @@ export interface ReadOut {
 
 export interface DynamicTestSpec {
   ruleId: string;
+  marker: Marker;
   kind: DynamicTestKind;
   label: string;
   readOuts: Partial<Record<DynamicMeasured, ReadOut>>;
@@ -43,25 +46,27 @@ export const MEASURED_LABEL: Record<DynamicMeasured, string> = {
 
 function rank(spec: DynamicTestSpec, d: DynamicTestResult): number {
   const r = spec.readOuts[d.measured];
-  return r === undefined ? 2 : r.weight === 'dynamic' ? 0 : 1;
+  return r === undefined ? 2 : r.tier === 'dynamic' ? 0 : 1;
 }
 
-/** Fresh tests: best read-out first, then newest (the order of dynamicTestsOf is total). Otherwise the newest, stale. */
+/**
+ * Tests within the window and after the latest event: best read-out first, then newest (the order of
+ * dynamicTestsOf is total). Otherwise the newest, judged (stale, or set aside by an event since).
+ */
 export function selectDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Selection<DynamicTestResult> {
-  const windowMin = ctx.t.dynamicTestMaxAgeMin;
+  const windowMin = ctx.w.dynamicTestMin;
   const all = dynamicTestsOf(ctx.snapshot, spec.kind, ctx.now);
-  const fresh = all.filter((d) => ageMinutes(d.effective, ctx.now) <= windowMin);
-  const best = fresh.map((d, i) => ({ d, i, r: rank(spec, d) })).sort((a, b) => a.r - b.r || a.i - b.i)[0];
+  const opts = { events: ctx.events };
+  const usable = all.filter((d) => judge(d, ctx.now, windowMin, opts).state === 'fresh');
+  const best = usable.map((d, i) => ({ d, i, r: rank(spec, d) })).sort((a, b) => a.r - b.r || a.i - b.i)[0];
   if (best) return { state: 'fresh', item: best.d, ageMinutes: ageMinutes(best.d.effective, ctx.now), windowMin };
-  const newest = all[0];
-  if (newest) return { state: 'stale', item: newest, ageMinutes: ageMinutes(newest.effective, ctx.now), windowMin };
-  return { state: 'missing', windowMin };
+  return judge(all[0], ctx.now, windowMin, opts);
 }
 
-export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Finding {
+export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): ResponsivenessFinding {
   const sel = selectDynamicTest(ctx, spec);
   if (sel.state !== 'fresh') {
-    return unusableFinding(sel, { ruleId: spec.ruleId, label: spec.label, source: spec.source, evidenceOf: (d) => evidenceOfDynamicTest(d, ctx.now) });
+    return unusableFinding(sel, { ruleId: spec.ruleId, marker: spec.marker, label: spec.label, source: spec.source, evidenceOf: (d) => evidenceOfDynamicTest(d, ctx.now) });
   }
   const d = sel.item;
   const mLabel = MEASURED_LABEL[d.measured];
@@ -71,18 +76,18 @@ export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Find
   if (readOut === undefined) {
     return notAssessed({
       ruleId: spec.ruleId, text: `${spec.label} by ${mLabel}: not assessed (not a validated read-out for this test)`,
-      reason: `${spec.label} read by ${mLabel} has no validated threshold`, evidence: ev, source: spec.source, values: baseValues,
+      reason: `${spec.label} read by ${mLabel} has no validated threshold`, gap: 'invalid', marker: spec.marker, evidence: ev, source: spec.source, values: baseValues,
     });
   }
   const validity = spec.gate ? summarizeValidity(spec.gate(ctx)) : undefined;
   if (validity) {
     // The conditions the gate relied on are evidence of the result too, met or not.
     ev.push(...validity.evidence);
-    if (validity.state !== 'met') {
+    if (validity.voiding.length) {
       return notAssessed({
-        ruleId: spec.ruleId, text: `${spec.label}: result shown but not used (${validity.failed.length ? 'outside validity' : 'validity could not be checked'})`,
-        reason: validity.reason, evidence: ev, source: readOut.source,
-        values: { ...baseValues, ...validity.values, validity: validity.state },
+        ruleId: spec.ruleId, marker: spec.marker, text: `${spec.label}: result shown but not used (${conditionText(validity.voiding)})`,
+        reason: `outside validity: ${validity.voiding.map((c) => `${c.label} not met (${c.detail})`).join('; ')}`, gap: 'outside-validity',
+        evidence: ev, source: readOut.source, values: { ...baseValues, ...validity.values },
       });
     }
   }
@@ -91,7 +96,7 @@ export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Find
     if (!(d.before > 0)) {
       return notAssessed({
         ruleId: spec.ruleId, text: `${spec.label}: not assessed, invalid baseline ${mLabel} ${fmt(d.before, 2)} ${displayUnit(d.unit)}`,
-        reason: `${spec.label} invalid: baseline must be positive`, evidence: ev, source: readOut.source, values: { ...baseValues, freshness: 'invalid' },
+        reason: `${spec.label} invalid: baseline must be positive`, gap: 'invalid', marker: spec.marker, evidence: ev, source: readOut.source, values: { ...baseValues, freshness: 'invalid' },
       });
     }
     change = relativeChangePercent(d.before, d.after);
@@ -99,7 +104,7 @@ export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Find
     if (d.unit !== '%') {
       return notAssessed({
         ruleId: spec.ruleId, text: `${spec.label}: not assessed, ${mLabel} in unit '${d.unit}' (expected %)`,
-        reason: `${spec.label} invalid: unit '${d.unit}' is not %`, evidence: ev, source: readOut.source, values: { ...baseValues, freshness: 'invalid' },
+        reason: `${spec.label} invalid: unit '${d.unit}' is not %`, gap: 'invalid', marker: spec.marker, evidence: ev, source: readOut.source, values: { ...baseValues, freshness: 'invalid' },
       });
     }
     change = absoluteChange(d.before, d.after);
@@ -107,14 +112,11 @@ export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Find
   const positive = readOut.strict ? change > readOut.threshold : change >= readOut.threshold;
   const unitText = readOut.compare === 'relative' ? ' %' : ' points';
   const changeKey = readOut.compare === 'relative' ? 'changePercent' : 'changePoints';
-  const thrText = `${readOut.strict ? '>' : '≥'} ${fmt(readOut.threshold)}${unitText}`;
+  const thrText = `${readOut.strict ? '>' : '≥'} ${fmt(readOut.threshold, 1)}${unitText}`;
   const text = `${spec.label}: ${mLabel} ${fmt(d.before, 2)} → ${fmt(d.after, 2)} ${displayUnit(d.unit)} (${signed(change)}${unitText}; threshold ${thrText}): `
     + `${positive ? 'points to' : 'points against'} fluid responsiveness${readOut.note ? `; ${readOut.note}` : ''}`;
   return assessed({
-    ruleId: spec.ruleId, direction: positive ? 'for' : 'against', weight: readOut.weight, text, evidence: ev, source: readOut.source,
-    values: {
-      ...baseValues, ...validity?.values, [changeKey]: Math.round(change * 100) / 100, threshold: readOut.threshold,
-      ...(validity ? { validity: validity.state } : {}), ...(readOut.weight === 'static' ? { weak: true } : {}),
-    },
+    ruleId: spec.ruleId, marker: spec.marker, direction: positive ? 'for' : 'against', tier: readOut.tier, text, evidence: ev, source: readOut.source,
+    values: { ...baseValues, ...validity?.values, [changeKey]: Math.round(change * 100) / 100, threshold: readOut.threshold },
   });
 }

@@ -1,32 +1,29 @@
 /**
- * The test that would settle an indeterminate verdict, chosen from the patient's state:
- * - controlled ventilation without effort, sinus rhythm, tidal volume below 8 mL/kg PBW → tidal volume challenge
- *   (Myatra 2017: made for low tidal volume);
- * - intra-abdominal hypertension → mini fluid challenge with VTI (PLR is less reliable with raised abdominal
- *   pressure: Mahjoub Y et al., Crit Care Med 2010, from memory);
- * - controlled ventilation → PLR with real-time cardiac output, or end-expiratory occlusion;
- * - otherwise → PLR with real-time cardiac output; else a mini fluid challenge with VTI.
+ * The test that would settle (or confirm) responsiveness, as a kind from a closed set; its wording is in the
+ * catalogue. Chosen from the patient's state (clinical-references §12, Suggestions):
+ * - a PPV or SVV charted under controlled ventilation, sinus rhythm and tidal volume below 8 mL/kg PBW → tidal
+ *   volume challenge (Myatra SN et al., Crit Care Med 2017;45:415: made for low tidal volume);
+ * - intra-abdominal hypertension → mini fluid challenge, not PLR (PLR false negatives with IAH: Mahjoub Y et al.,
+ *   Crit Care Med 2010;38:1824 [M]);
+ * - a flow monitor in use (a cardiac output, cardiac index or stroke volume reading within `flowMonitorRecentMin`)
+ *   → PLR with real-time flow (Monnet 2016);
+ * - no flow monitor → mini fluid challenge with VTI by echo (Muller L et al., Anesthesiology 2011;115:541).
  */
+import type { NextTestKind } from '../types.js';
+import { latestReading, readings } from '../common/select.js';
 import type { RuleContext } from './context.js';
-import { fmt } from './finding.js';
 import { checkIntraAbdominalPressure, checkRhythm, checkTidalVolume, checkVentilation } from './heart-lung-validity.js';
-import { latestCoded } from './select.js';
 
-export function chooseNextTest(ctx: RuleContext): string {
-  const { t } = ctx;
-  const plr = `passive leg raising with real-time cardiac output or stroke volume monitoring (rise ≥ ${fmt(t.plrFlowRisePercent)} %, Monnet 2016)`;
-  const mfc = `a mini fluid challenge (100 mL over 1 min) with subaortic VTI (rise ≥ ${fmt(t.miniFluidChallengeRisePercent)} %, Muller 2011)`;
+export function chooseNextTest(ctx: RuleContext): NextTestKind {
+  const { t, snapshot: s, now } = ctx;
   const vent = checkVentilation(ctx);
-  if (vent.state === 'met' && checkRhythm(ctx).state === 'met' && checkTidalVolume(ctx).state === 'failed') {
-    return `Tidal volume challenge: raise Vt from 6 to 8 mL/kg PBW for 1 min; an absolute PPV rise ≥ ${fmt(t.tidalVolumeChallengePpvRisePoints)} points predicts response (Myatra 2017)`;
-  }
-  if (checkIntraAbdominalPressure(ctx).state === 'failed') {
-    return `Mini fluid challenge (100 mL over 1 min) with subaortic VTI (rise ≥ ${fmt(t.miniFluidChallengeRisePercent)} %, Muller 2011); passive leg raising is less reliable with intra-abdominal hypertension`;
-  }
-  const mode = latestCoded(ctx.snapshot, 'ventilationMode', ctx.now, t.ventilationStateMaxAgeMin);
-  if (mode.state === 'fresh' && mode.item.answer.startsWith('controlled')) {
-    return `Passive leg raising with real-time cardiac output or stroke volume monitoring (rise ≥ ${fmt(t.plrFlowRisePercent)} %, Monnet 2016), `
-      + `or an end-expiratory occlusion test (cardiac index rise > ${fmt(t.eeoFlowRisePercent)} %, Monnet 2009)`;
-  }
-  return `${plr[0]?.toUpperCase()}${plr.slice(1)}; if that is not possible, ${mfc}`;
+  const hasIndex = latestReading(s, 'ppv', now, ctx.w.ppvSvvMin).state !== 'missing' || latestReading(s, 'svv', now, ctx.w.ppvSvvMin).state !== 'missing';
+  if (vent.state === 'met' && hasIndex && checkRhythm(ctx).state === 'met' && checkTidalVolume(ctx).state === 'failed') return 'tidal-volume-challenge';
+  if (checkIntraAbdominalPressure(ctx).state === 'failed') return 'mini-fluid-challenge';
+  const flowMonitor = (['cardiacOutput', 'cardiacIndex', 'strokeVolume'] as const).some((k) => {
+    const newest = readings(s, k, now).items[0];
+    return newest !== undefined && now.getTime() - Date.parse(newest.effective) <= t.flowMonitorRecentMin * 60_000;
+  });
+  if (!flowMonitor) return 'mini-fluid-challenge';
+  return 'passive-leg-raise';
 }

@@ -1,8 +1,9 @@
 /**
  * Rule 'responsiveness.plr': passive leg raising. Flow read-out (CO, CI, SV, VTI) rise ≥ 10 %: dynamic.
- * Judged by pulse pressure alone it is weak (sens 0.56, spec 0.83, AUC 0.77 in Monnet 2016): weighed as static.
+ * Judged by pulse pressure alone it is weak (sens 0.56, spec 0.83, AUC 0.77 in Monnet 2016): a static marker that only corroborates.
  */
 import type { ResponsivenessRule } from './context.js';
+import { ruleErrorFinding } from './finding.js';
 import { assessDynamicTest, type ReadOut } from './dynamic-test.js';
 
 export const PLR_RULE_ID = 'responsiveness.plr';
@@ -10,15 +11,16 @@ const FLOW_SOURCE = 'PLR-induced rise in cardiac output ≥ 10 %: Monnet, Marik,
 
 export const plrRule: ResponsivenessRule = {
   id: PLR_RULE_ID,
+  onError: ruleErrorFinding(PLR_RULE_ID, 'plr'),
   run: (ctx) => {
-    const flow: ReadOut = { compare: 'relative', threshold: ctx.t.plrFlowRisePercent, strict: false, weight: 'dynamic', source: FLOW_SOURCE };
+    const flow: ReadOut = { compare: 'relative', threshold: ctx.t.plrFlowRisePercent, strict: false, tier: 'dynamic', source: FLOW_SOURCE };
     return assessDynamicTest(ctx, {
-      ruleId: PLR_RULE_ID, kind: 'plr', label: 'Passive leg raising', source: FLOW_SOURCE,
+      ruleId: PLR_RULE_ID, marker: 'plr', kind: 'plr', label: 'Passive leg raising', source: FLOW_SOURCE,
       readOuts: {
         cardiacOutput: flow, cardiacIndex: flow, strokeVolume: flow, vti: flow,
         pulsePressure: {
-          compare: 'relative', threshold: ctx.t.plrPulsePressureRisePercent, strict: false, weight: 'static',
-          note: 'judged by pulse pressure only: weak evidence, weighed as static; PLR needs real-time cardiac output monitoring',
+          compare: 'relative', threshold: ctx.t.plrPulsePressureRisePercent, strict: false, tier: 'static',
+          note: 'judged by pulse pressure only: weak evidence, a static marker that only corroborates; PLR needs real-time cardiac output monitoring',
           source: 'PLR by pulse pressure is a poor surrogate (AUC 0.77): Monnet, Marik, Teboul, Intensive Care Med 2016; pulse pressure rise ≥ 12 %: Monnet et al., Crit Care Med 2006;34:1402 (from memory)',
         },
       },

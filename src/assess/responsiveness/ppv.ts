@@ -1,11 +1,13 @@
 /** Rule 'responsiveness.ppv': pulse pressure variation, validity-gated, with the Cannesson grey zone. */
 import type { ResponsivenessRule } from './context.js';
+import { ruleErrorFinding } from './finding.js';
 import { assessVariationIndex } from './variation-index.js';
 
 export const PPV_RULE_ID = 'responsiveness.ppv';
 
 export const ppvRule: ResponsivenessRule = {
   id: PPV_RULE_ID,
+  onError: ruleErrorFinding(PPV_RULE_ID, 'ppv'),
   run: (ctx) =>
     assessVariationIndex(ctx, {
       ruleId: PPV_RULE_ID, kind: 'ppv', label: 'PPV',

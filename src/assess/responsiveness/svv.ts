@@ -1,11 +1,13 @@
 /** Rule 'responsiveness.svv': stroke volume variation, same validity conditions as PPV. */
 import type { ResponsivenessRule } from './context.js';
+import { ruleErrorFinding } from './finding.js';
 import { assessVariationIndex } from './variation-index.js';
 
 export const SVV_RULE_ID = 'responsiveness.svv';
 
 export const svvRule: ResponsivenessRule = {
   id: SVV_RULE_ID,
+  onError: ruleErrorFinding(SVV_RULE_ID, 'svv'),
   run: (ctx) =>
     assessVariationIndex(ctx, {
       ruleId: SVV_RULE_ID, kind: 'svv', label: 'SVV',

@@ -12,50 +12,28 @@ const percent = () => z.number().min(0).max(100);
 
 export const responsivenessThresholdsSchema = z
   .strictObject({
-    // ── Freshness windows, minutes: older data never counts ───────────────────────────────────────────────
-    /** Heart rate, blood pressure, respiratory rate (common practice: charted at least hourly in the ICU). */
-    vitalsMaxAgeMin: minutes(1440).default(60),
-    /** PPV and SVV (common practice: they change within minutes with ventilation and volume). */
-    ppvSvvMaxAgeMin: minutes(1440).default(30),
-    /** Dynamic tests: PLR, mini fluid challenge, end-expiratory occlusion, tidal volume challenge (common practice). */
-    dynamicTestMaxAgeMin: minutes(1440).default(60),
-    /** IVC diameters (common practice: an echo finding is repeated when the state changes; 6 h). */
-    ivcMaxAgeMin: minutes(2880).default(360),
-    /** CVP and measured right atrial pressure (common practice, as vitals). */
-    cvpMaxAgeMin: minutes(1440).default(60),
-    /** Lactate (common practice: repeated every 2–6 h in shock). */
-    lactateMaxAgeMin: minutes(2880).default(360),
-    /** Capillary refill time (ANDROMEDA-SHOCK assessed it every 30 min, Hernández et al., JAMA 2019; window 60 min, common practice). */
-    capillaryRefillMaxAgeMin: minutes(1440).default(60),
-    /** Ventilation state, coded (common practice: charted at least every 4 h). */
-    ventilationStateMaxAgeMin: minutes(2880).default(240),
-    /** Heart rhythm, coded (common practice: charted at least every 4 h). */
-    heartRhythmMaxAgeMin: minutes(2880).default(240),
-    /** Tidal volume, set or delivered (common practice: ventilator charted hourly). */
-    tidalVolumeMaxAgeMin: minutes(1440).default(60),
-    /** Intra-abdominal pressure (common practice: intermittent bladder pressure every 4–6 h when monitored). */
-    intraAbdominalPressureMaxAgeMin: minutes(2880).default(360),
-    /** Chest open or closed, coded (common practice: changes only with surgery; 24 h). */
-    chestStatusMaxAgeMin: minutes(10_080).default(1440),
-    /** Body height for predicted body weight (common practice: recorded at admission; one year). */
-    bodyHeightMaxAgeMin: minutes(5_256_000).default(525_600),
-    /** Echo impression of LV function (common practice: one echo a day; 24 h). */
-    echoImpressionMaxAgeMin: minutes(10_080).default(1440),
+    // Freshness windows are shared with the other questions: ../common/windows.ts.
 
-    // ── Response to the last fluid bolus (common practice, clinical-references §11) ──────────────────────────
+    // ── Response to the last fluid bolus ───────────────────────────────────────────────────────────────────
     /** A bolus counts if it started within this many minutes before now and is completed (common practice). */
     lastBolusLookbackMin: minutes(1440).default(240),
     /** Smallest volume that counts as a bolus, mL (common practice: a fluid challenge is 250–500 mL). */
     bolusMinVolumeMl: z.number().min(1).max(5000).default(250),
     /** Longest infusion that counts as a bolus, minutes (common practice: given over 10–30 min; slower is not a challenge). */
     bolusMaxDurationMin: minutes(1440).default(60),
-    /** Window before the bolus start whose readings form the baseline, minutes (common practice). */
-    bolusPreWindowMin: minutes(240).default(30),
-    /** Window after the bolus end whose readings form the response, minutes (common practice: the effect fades within about 30 min). */
-    bolusPostWindowMin: minutes(240).default(30),
-    /** Fewest readings each window needs for MAP and for heart rate (our choice: one reading is too noisy). */
-    bolusMinPointsPerWindow: z.number().int().min(1).max(20).default(2),
-    /** MAP rise that reads as a response, mmHg, ≥ (common practice: about 5–10 mmHg). */
+    /** Dense monitor data: flow readings no further apart than this, minutes (Aya HD et al., Crit Care Med 2016;44:880: readings every few minutes). */
+    denseMaxGapMin: z.number().min(1).max(30).default(5),
+    /** A flow reading this close after the end of the bolus, minutes: the response peaks ~1 min after the end and fades within ~10 min (Aya 2016). */
+    flowAfterEndMaxMin: z.number().min(1).max(30).default(10),
+    /** A flow reading this close before the start of the bolus serves as baseline, minutes (our choice, as flowAfterEndMaxMin). */
+    flowBeforeStartMaxMin: z.number().min(1).max(30).default(10),
+    /** Flow (CO, CI, SV) rise that reads as a response to the bolus, percent, ≥ (Aya 2016 used a 10 % rise in cardiac output [M]). */
+    bolusFlowRisePercent: percent().default(10),
+    /** Hourly charting: baseline = the newest MAP/HR within this many minutes before the start (§12: hourly vitals). */
+    bolusPreWindowMin: minutes(240).default(90),
+    /** Hourly charting: response = readings within this many minutes after the end (§12: hourly vitals). */
+    bolusPostWindowMin: minutes(240).default(90),
+    /** MAP rise that reads as a response, mmHg, ≥ (common practice: about 5–10 mmHg). Weak static marker (§12). */
     bolusMapRiseMmHg: z.number().min(0).max(50).default(5),
     /** Heart-rate fall that reads as a response, /min, ≥ (common practice: "falling heart rate"; our choice of 5/min). */
     bolusHrFallPerMin: z.number().min(0).max(50).default(5),
@@ -75,8 +53,10 @@ export const responsivenessThresholdsSchema = z
     minTidalVolumeMlPerKgPbw: z.number().min(0).max(20).default(8),
     /** HR/RR ratio needed for PPV/SVV validity, strictly > (De Backer et al., Anesthesiology 2009 [M citation]). */
     minHeartRateRespiratoryRateRatio: z.number().min(0).max(20).default(3.6),
-    /** Intra-abdominal hypertension from this value, mmHg, ≥: PPV/SVV invalid (WSACS 2013, Kirkpatrick et al., Intensive Care Med 2013). */
+    /** Intra-abdominal hypertension from this value, mmHg, ≥: a high PPV/SVV is doubtful (WSACS 2013; false positives: Jacques D et al., Crit Care 2011 [M]). */
     iahThresholdMmHg: z.number().min(0).max(40).default(12),
+    /** A cardiac output, cardiac index or stroke volume reading this recent means a flow monitor is in use, minutes (our choice): PLR is offered, else a mini fluid challenge with VTI (§12). */
+    flowMonitorRecentMin: minutes(1440).default(240),
 
     // ── Dynamic tests ───────────────────────────────────────────────────────────────────────────────────────
     /** PLR: CO, CI, SV or VTI rise ≥ this, percent (Monnet, Marik, Teboul, Intensive Care Med 2016;42:1935). */
@@ -109,29 +89,17 @@ export const responsivenessThresholdsSchema = z
     ivcDistensibilityFeisselPercent: percent().default(12),
     /** IVC diameter cut, cm: ≤ is small, > is wide (Rudski et al., J Am Soc Echocardiogr 2010, 2.1 cm). */
     ivcDiameterCutCm: z.number().min(0.5).max(5).default(2.1),
-    /** Small IVC collapsing strictly more than this, percent: static-extreme for (common practice §11; Rudski 2010 50 %). */
-    ivcExtremeCollapsePercent: percent().default(50),
-    /** Wide IVC collapsing strictly less than this, percent ("no respiratory variation"): static-extreme against (common practice §11; our reading: < 10 %). */
+    /** Wide IVC (> ivcDiameterCutCm) collapsing strictly less than this, percent ("no respiratory variation"): static against (common practice §11; our reading: < 10 %). */
     ivcNoVariationPercent: percent().default(10),
 
-    // ── CVP, at the extremes only (common practice §11; mid-range is no evidence: Marik 2008, 2013) ─────────
+    // ── CVP, at the extremes only, static (§11; it never decides alone: Eskesen TG et al., Intensive Care Med 2016;42:324) ─
     /** CVP ≤ this, mmHg: static-extreme for (common practice: about 2–3 mmHg or less). */
     cvpLowMmHg: z.number().min(-10).max(20).default(3),
     /** CVP ≥ this, mmHg: static-extreme against (common practice: about 12 mmHg or more). */
     cvpHighMmHg: z.number().min(0).max(40).default(12),
 
-    // ── Perfusion context (never decides responsiveness) ────────────────────────────────────────────────────
-    /** Capillary refill strictly > this, seconds, is prolonged (ANDROMEDA-SHOCK, Hernández et al., JAMA 2019;321:654). */
-    capillaryRefillMaxNormalS: z.number().min(0).max(20).default(3),
-    /** Lactate strictly > this, mmol/L, is raised (Sepsis-3, Singer et al., JAMA 2016;315:801). */
-    lactateMaxNormalMmolL: z.number().min(0).max(20).default(2),
-    /** MAP strictly below this, mmHg, is below target (Surviving Sepsis Campaign 2021, Evans et al., Intensive Care Med 2021 [M grade]). */
-    mapTargetMmHg: z.number().min(30).max(150).default(65),
-    /** Shock index strictly > this is raised (Koch et al., Open Access Emerg Med 2019;11:179). */
-    shockIndexHigh: z.number().min(0).max(5).default(1.0),
-
     // ── Combination ─────────────────────────────────────────────────────────────────────────────────────────
-    /** Static (non-extreme) findings that must agree, with none against, before they decide (our choice; one never decides). */
+    /** Static markers that must agree, with none against, for a low-confidence verdict (§12: two agreeing statics at most give low confidence). */
     staticAgreementMinCount: z.number().int().min(2).max(10).default(2),
   })
   .superRefine((t, ctx) => {

@@ -4,6 +4,7 @@
  * controlled ventilation without spontaneous effort and sinus rhythm (the PPV reading itself needs them).
  */
 import type { ResponsivenessRule } from './context.js';
+import { ruleErrorFinding } from './finding.js';
 import { assessDynamicTest } from './dynamic-test.js';
 import { checkRhythm, checkVentilation } from './heart-lung-validity.js';
 
@@ -12,14 +13,15 @@ const SOURCE = 'Tidal volume challenge, absolute ΔPPV ≥ 3.5 points: Myatra SN
 
 export const tidalVolumeChallengeRule: ResponsivenessRule = {
   id: TIDAL_VOLUME_CHALLENGE_RULE_ID,
+  onError: ruleErrorFinding(TIDAL_VOLUME_CHALLENGE_RULE_ID, 'tidal-volume-challenge'),
   run: (ctx) =>
     assessDynamicTest(ctx, {
-      ruleId: TIDAL_VOLUME_CHALLENGE_RULE_ID, kind: 'tidalVolumeChallenge', label: 'Tidal volume challenge', source: SOURCE,
+      ruleId: TIDAL_VOLUME_CHALLENGE_RULE_ID, marker: 'tidal-volume-challenge', kind: 'tidalVolumeChallenge', label: 'Tidal volume challenge', source: SOURCE,
       gate: (c) => [checkVentilation(c), checkRhythm(c)],
       readOuts: {
-        ppv: { compare: 'absolute', threshold: ctx.t.tidalVolumeChallengePpvRisePoints, strict: false, weight: 'dynamic', source: SOURCE },
+        ppv: { compare: 'absolute', threshold: ctx.t.tidalVolumeChallengePpvRisePoints, strict: false, tier: 'dynamic', source: SOURCE },
         svv: {
-          compare: 'absolute', threshold: ctx.t.tidalVolumeChallengeSvvRisePoints, strict: false, weight: 'dynamic',
+          compare: 'absolute', threshold: ctx.t.tidalVolumeChallengeSvvRisePoints, strict: false, tier: 'dynamic',
           source: 'Tidal volume challenge, absolute ΔSVV ≥ 2.5 points: Myatra SN et al., Crit Care Med 2017 (from memory)',
         },
       },

@@ -10,10 +10,12 @@
 import type { Measurement, PatientSnapshot } from '../../snapshot/types.js';
 import { meanArterialPressureMmHg } from '../../physiology/mean-arterial-pressure.js';
 import { abdominalPerfusionPressure, filtrationGradient, iahGrade, iahGradeLabel } from '../../physiology/intra-abdominal-pressure.js';
-import type { Evidence, Finding } from '../types.js';
-import { assessed, notAssessed } from './finding.js';
-import { evidenceOf, fmt, latestOf, round, seriesOf, timeMs, unusableReason } from './select.js';
+import type { Evidence, ToleranceFinding } from '../common/finding.js';
+import { assessed, unusableTolerance } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
+import { DEFAULT_WINDOWS, type Windows } from '../common/windows.js';
+import { evidenceOfMeasurement, latestReading, readingsOldestFirst, timeMs } from '../common/select.js';
+import { fmt, round } from '../common/text.js';
 
 export const ABDOMINAL_PRESSURE = 'tolerance.abdominal-pressure';
 const SOURCE = 'WSACS 2013 (Kirkpatrick AW et al., Intensive Care Med 2013;39:1190, doi 10.1007/s00134-013-2906-z): IAH ≥ 12 mmHg, grades I 12–15, II 16–20, III 21–25, IV > 25; APP = MAP − IAP; FG = MAP − 2·IAP';
@@ -30,20 +32,19 @@ function nearest(items: Measurement[], atMs: number, withinMs: number): Measurem
 
 /** MAP near a time: measured, else from systolic and diastolic charted together (conventional approximation). */
 function mapNear(snapshot: PatientSnapshot, now: Date, atMs: number, withinMs: number): { mapMmHg: number; measured: boolean; evidence: Evidence[] } | undefined {
-  const measured = nearest(seriesOf(snapshot, 'meanBp', now).items, atMs, withinMs);
-  if (measured) return { mapMmHg: measured.value, measured: true, evidence: [evidenceOf(measured, now)] };
-  const sbp = nearest(seriesOf(snapshot, 'systolicBp', now).items, atMs, withinMs);
+  const measured = nearest(readingsOldestFirst(snapshot, 'meanBp', now).items, atMs, withinMs);
+  if (measured) return { mapMmHg: measured.value, measured: true, evidence: [evidenceOfMeasurement(measured, now)] };
+  const sbp = nearest(readingsOldestFirst(snapshot, 'systolicBp', now).items, atMs, withinMs);
   if (!sbp) return undefined;
-  const dbp = nearest(seriesOf(snapshot, 'diastolicBp', now).items, timeMs(sbp.effective), 5 * 60_000);
+  const dbp = nearest(readingsOldestFirst(snapshot, 'diastolicBp', now).items, timeMs(sbp.effective), 5 * 60_000);
   if (!dbp || sbp.value < dbp.value) return undefined;
-  return { mapMmHg: meanArterialPressureMmHg(sbp.value, dbp.value), measured: false, evidence: [evidenceOf(sbp, now), evidenceOf(dbp, now)] };
+  return { mapMmHg: meanArterialPressureMmHg(sbp.value, dbp.value), measured: false, evidence: [evidenceOfMeasurement(sbp, now), evidenceOfMeasurement(dbp, now)] };
 }
 
-export function abdominalPressureRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {
-  const pick = latestOf(snapshot, 'intraAbdominalPressure', now, t.iapFreshMinutes);
+export function abdominalPressureRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows = DEFAULT_WINDOWS): ToleranceFinding[] {
+  const pick = latestReading(snapshot, 'intraAbdominalPressure', now, w.intraAbdominalPressureMin);
   if (pick.state !== 'fresh') {
-    return [notAssessed(ABDOMINAL_PRESSURE, 'abdomen', 'Intra-abdominal pressure not assessed',
-      unusableReason('intra-abdominal pressure', pick, now, t.iapFreshMinutes), SOURCE, pick.state === 'stale' ? [evidenceOf(pick.item, now)] : [])];
+    return [unusableTolerance(pick, { ruleId: ABDOMINAL_PRESSURE, domain: 'abdomen', label: 'Intra-abdominal pressure', source: SOURCE, now })];
   }
   const iap = pick.item.value;
   const grade = iahGrade(iap, t.iahMmHg);
@@ -60,6 +61,6 @@ export function abdominalPressureRule(snapshot: PatientSnapshot, now: Date, t: T
   return [assessed({
     ruleId: ABDOMINAL_PRESSURE, domain: 'abdomen', limit,
     text: `Intra-abdominal pressure ${fmt(iap)} mmHg${grade > 0 ? `: IAH grade ${iahGradeLabel(grade)}` : ''}${perfusion}`,
-    values, evidence: [evidenceOf(pick.item, now), ...(map?.evidence ?? [])], source: SOURCE,
+    values, evidence: [evidenceOfMeasurement(pick.item, now), ...(map?.evidence ?? [])], source: SOURCE,
   })];
 }

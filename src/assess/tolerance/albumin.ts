@@ -1,35 +1,36 @@
 /**
- * Rule tolerance.albumin: serum albumin, canonical g/L. Below 30 g/L (the ALBIOS target; Caironi P et al.,
- * N Engl J Med 2014) low oncotic pressure favours leak of infused volume: a moderate limit. Below 25 g/L is
- * named severely low (from memory) but stays a moderate limit by itself: it raises the risk, it does not
- * show harm. A value below 8 g/L is taken as a unit error (g/dL sent as g/L) and not used.
+ * Rule tolerance.albumin: serum albumin, canonical g/L, as CONTEXT only (§12): ALBIOS (Caironi P et al., N Engl J
+ * Med 2014;370:1412) used 30 g/L as a replacement target, not as a limit of fluid tolerance. Below 30 g/L is named
+ * low, below 25 g/L severely low (from memory); neither limits tolerance by itself. A value below 8 g/L is taken as
+ * a unit error (g/dL sent as g/L) and not used.
  */
 import type { PatientSnapshot } from '../../snapshot/types.js';
-import type { Finding } from '../types.js';
-import { assessed, notAssessed } from './finding.js';
-import { evidenceOf, fmt, latestOf, unusableReason } from './select.js';
+import type { ToleranceFinding } from '../common/finding.js';
+import { assessed, notAssessed, unusableTolerance } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
+import { DEFAULT_WINDOWS, type Windows } from '../common/windows.js';
+import { evidenceOfMeasurement, latestReading } from '../common/select.js';
+import { fmt } from '../common/text.js';
 
 export const ALBUMIN = 'tolerance.albumin';
 const SOURCE = 'ALBIOS target ≥ 30 g/L: Caironi P et al., N Engl J Med 2014;370:1412; < 25 g/L severe (from memory)';
 
-export function albuminRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {
-  const pick = latestOf(snapshot, 'albumin', now, t.albuminFreshMinutes);
+export function albuminRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows = DEFAULT_WINDOWS): ToleranceFinding[] {
+  const pick = latestReading(snapshot, 'albumin', now, w.albuminMin);
   if (pick.state !== 'fresh') {
-    return [notAssessed(ALBUMIN, 'oncotic', 'Serum albumin not assessed', unusableReason('serum albumin', pick, now, t.albuminFreshMinutes), SOURCE,
-      pick.state === 'stale' ? [evidenceOf(pick.item, now)] : [])];
+    return [unusableTolerance(pick, { ruleId: ALBUMIN, domain: 'oncotic', label: 'Serum albumin', source: SOURCE, now })];
   }
   const m = pick.item;
   if (m.value < t.albuminImplausibleBelowGPerL) {
     return [notAssessed(ALBUMIN, 'oncotic', 'Serum albumin not assessed',
-      `albumin ${fmt(m.value, 1)} g/L is implausibly low: probably g/dL sent as g/L (original ${m.original.value} ${m.original.unit}); not used`, SOURCE, [evidenceOf(m, now)])];
+      `albumin ${fmt(m.value, 1)} g/L is implausibly low: probably g/dL sent as g/L (original ${m.original.value} ${m.original.unit}); not used`, SOURCE, [evidenceOfMeasurement(m, now)])];
   }
   const severe = m.value < t.albuminSevereLowGPerL;
   const low = m.value < t.albuminLowGPerL;
   return [assessed({
-    ruleId: ALBUMIN, domain: 'oncotic', limit: low ? 'moderate' : 'none',
-    text: `Serum albumin ${fmt(m.value)} g/L${severe ? ` (severely low, < ${t.albuminSevereLowGPerL} g/L)` : low ? ` (low, < ${t.albuminLowGPerL} g/L)` : ''}`,
+    ruleId: ALBUMIN, domain: 'oncotic', limit: 'none', context: true,
+    text: `Serum albumin ${fmt(m.value)} g/L${severe ? ` (severely low, < ${t.albuminSevereLowGPerL} g/L)` : low ? ` (low, < ${t.albuminLowGPerL} g/L)` : ''}: context, not a limit of tolerance`,
     values: { albuminGPerL: m.value, band: severe ? 'severely-low' : low ? 'low' : 'normal' },
-    evidence: [evidenceOf(m, now)], source: SOURCE,
+    evidence: [evidenceOfMeasurement(m, now)], source: SOURCE,
   })];
 }

@@ -12,8 +12,8 @@ import type { NumericKind } from '../../fhir/codes.js';
 import type { Measurement, PatientSnapshot } from '../../snapshot/types.js';
 import { volumeInWindowMl, withoutOverlaps, type VolumeRecord } from '../../physiology/fluid-balance.js';
 import type { Evidence } from '../types.js';
-import { ageMinutesAt, evidenceOf, seriesOf, timeMs } from './select.js';
 import { encounterStartMs } from './weights.js';
+import { ageMinutesRounded, evidenceOfMeasurement, readingsOldestFirst, timeMs } from '../common/select.js';
 
 /** LOINC 9097-7 is a 24-hour balance: without a period it covers the 24 h before its time. */
 const BALANCE_DEFAULT_PERIOD_MS = 24 * 3_600_000;
@@ -46,12 +46,12 @@ interface Rec extends VolumeRecord {
 }
 
 function measurementRecords(snapshot: PatientSnapshot, kind: NumericKind, now: Date): { kept: Rec[]; dropped: Rec[] } {
-  const recs = seriesOf(snapshot, kind, now).items.map((m: Measurement): Rec => {
+  const recs = readingsOldestFirst(snapshot, kind, now).items.map((m: Measurement): Rec => {
     const endMs = timeMs(m.effective);
     let startMs = m.periodStart !== undefined ? timeMs(m.periodStart) : endMs;
     if (!Number.isFinite(startMs) || startMs > endMs) startMs = endMs;
     if (kind === 'fluidBalance' && m.periodStart === undefined) startMs = endMs - BALANCE_DEFAULT_PERIOD_MS;
-    return { id: m.ref, volumeMl: m.value, startMs, endMs, evidence: evidenceOf(m, now) };
+    return { id: m.ref, volumeMl: m.value, startMs, endMs, evidence: evidenceOfMeasurement(m, now) };
   });
   return withoutOverlaps(recs);
 }
@@ -66,7 +66,7 @@ function administrationRecords(snapshot: PatientSnapshot, now: Date): Rec[] {
     if (startMs > now.getTime()) continue;
     out.push({
       id: f.ref, volumeMl: f.volumeMl, startMs, endMs,
-      evidence: { ref: f.ref, kind: `fluid:${f.fluidClass}`, value: f.volumeMl, unit: 'mL', effective: f.end, ageMinutes: ageMinutesAt(f.end, now) },
+      evidence: { ref: f.ref, kind: `fluid:${f.fluidClass}`, value: f.volumeMl, unit: 'mL', effective: f.end, ageMinutes: ageMinutesRounded(f.end, now) },
     });
   }
   return out.sort((a, b) => a.endMs - b.endMs || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));

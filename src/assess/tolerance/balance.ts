@@ -4,19 +4,15 @@
  * by itself; its share of body weight is judged by tolerance.fluid-overload.
  */
 import type { PatientSnapshot } from '../../snapshot/types.js';
-import type { Finding } from '../types.js';
+import type { ToleranceFinding } from '../common/finding.js';
 import { balanceOver, cumulativeStartMs, type BalanceWindowResult } from './balance-data.js';
 import { assessed, notAssessed } from './finding.js';
-import { fmt, round } from './select.js';
 import type { ToleranceThresholds } from './thresholds.js';
+import { fmt, round, signedMl } from '../common/text.js';
 
 export const BALANCE_CUMULATIVE = 'tolerance.balance-cumulative';
 export const BALANCE_24H = 'tolerance.balance-24h';
 const SOURCE = 'Net balance = intake − output (common practice); cumulative balance and outcome: Boyd JH et al., Crit Care Med 2011; FACTT, N Engl J Med 2006';
-
-export function signedMl(ml: number): string {
-  return `${ml >= 0 ? '+' : '−'}${fmt(Math.abs(ml))} mL`;
-}
 
 function values(r: BalanceWindowResult): Record<string, number | string | boolean> {
   return {
@@ -37,7 +33,7 @@ function caveat(r: BalanceWindowResult): string {
   return parts.length ? `; ${parts.join('; ')}` : '';
 }
 
-export function cumulativeBalanceRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {
+export function cumulativeBalanceRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): ToleranceFinding[] {
   const start = cumulativeStartMs(snapshot, now, t.balanceFallbackLookbackHours);
   if (!start) {
     return [notAssessed(BALANCE_CUMULATIVE, 'balance', 'Cumulative fluid balance not assessed', 'no admission time and no intake/output records', SOURCE)];
@@ -50,11 +46,12 @@ export function cumulativeBalanceRule(snapshot: PatientSnapshot, now: Date, t: T
     ruleId: BALANCE_CUMULATIVE, domain: 'balance', limit: 'none', context: true,
     text: `Cumulative balance ${since}: ${signedMl(r.balanceMl)} (${r.source}${caveat(r)})`,
     values: { ...values(r), startBasis: start.basis },
+    quantity: { kind: 'balance-ml', value: round(r.balanceMl, 0) },
     evidence: r.evidence, source: SOURCE,
   })];
 }
 
-export function balance24hRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {
+export function balance24hRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): ToleranceFinding[] {
   const start = cumulativeStartMs(snapshot, now, t.balanceFallbackLookbackHours);
   const dayAgo = now.getTime() - 24 * 3_600_000;
   // A stay shorter than a day: the window begins at admission.

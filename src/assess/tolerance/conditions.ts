@@ -6,9 +6,9 @@
  * moderate limit: the diagnosis narrows the margin, the bedside markers show how much.
  */
 import type { ConditionEntry, PatientSnapshot } from '../../snapshot/types.js';
-import type { Evidence, Finding } from '../types.js';
+import type { Evidence, ToleranceFinding } from '../common/finding.js';
 import { CONDITION_SETS, matchConditionGroups, type ConditionGroupHit, type ConditionSets } from '../../fhir/value-sets.js';
-import { ageMinutesAt } from './select.js';
+import { ageMinutesRounded as ageMinutesAt } from '../common/select.js';
 import { assessed, notAssessed } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
 
@@ -24,7 +24,7 @@ export function matchConditionSets(entry: ConditionEntry, sets: ConditionSets = 
   return matchConditionGroups(entry.codings, sets);
 }
 
-export function conditionsRule(snapshot: PatientSnapshot, now: Date, _t: ToleranceThresholds): Finding[] {
+export function conditionsRule(snapshot: PatientSnapshot, now: Date, _t: ToleranceThresholds): ToleranceFinding[] {
   const active = snapshot.conditions
     .filter((c) => CONDITION_SETS.activeStatuses.includes(c.clinicalStatus))
     .sort((a, b) => (a.ref < b.ref ? -1 : a.ref > b.ref ? 1 : 0));

@@ -1,16 +1,14 @@
 /**
- * Tolerance findings. Each assessed finding carries in `values`:
- *   limit  — 'none' | 'moderate' | 'severe': how much it limits tolerance of more volume;
- *   domain — the organ domain (for the verdict's domain count);
- *   congestionSign — true for signs that harm from volume is likely (pulmonary oedema, severe venous
- *                    congestion, falling oxygenation); the advice uses it for the critical indicator.
- * direction: 'against' = the finding argues against more volume; 'for' = no limit found by this marker;
- * 'neutral' = context only (e.g. the balance in mL).
+ * Building tolerance findings on the common Finding union. Each assessed finding states its organ domain and
+ * limit ('none' | 'moderate' | 'severe'), whether it is a harm sign (pulmonary oedema, severe venous congestion,
+ * falling oxygenation: the advice uses it for the critical indicator), and whether it is context only.
  */
-import type { Evidence, Finding } from '../types.js';
+import type { Evidence, Figures, GapKind, SharedNumber, ToleranceDomain, ToleranceFinding, ToleranceLimit } from '../common/finding.js';
+import { unusableParts } from '../common/finding.js';
+import { evidenceOfCoded, evidenceOfMeasurement, type Unusable } from '../common/select.js';
+import type { CodedMeasurement, Measurement } from '../../snapshot/types.js';
 
-export type ToleranceLimit = 'none' | 'moderate' | 'severe';
-export type ToleranceDomain = 'balance' | 'oncotic' | 'lungs' | 'venous' | 'abdomen' | 'kidneys' | 'conditions';
+export type { ToleranceDomain, ToleranceLimit } from '../common/finding.js';
 
 export interface AssessedArgs {
   ruleId: string;
@@ -19,65 +17,43 @@ export interface AssessedArgs {
   text: string;
   evidence: Evidence[];
   source: string;
-  values?: Record<string, number | string | boolean>;
+  values?: Figures;
   congestionSign?: boolean;
-  /** Context only: never limits, direction neutral. */
+  /** Context only: never limits. */
   context?: boolean;
+  quantity?: ToleranceFinding['quantity'];
+  uses?: SharedNumber[];
 }
 
-export function assessed(a: AssessedArgs): Finding {
-  const limit: ToleranceLimit = a.context ? 'none' : a.limit;
+export function assessed(a: AssessedArgs): ToleranceFinding {
   return {
-    ruleId: a.ruleId,
-    topic: 'tolerance',
-    status: 'assessed',
-    direction: a.context ? 'neutral' : limit === 'none' ? 'for' : 'against',
-    text: a.text,
-    values: { ...a.values, limit, domain: a.domain, ...(a.congestionSign ? { congestionSign: true } : {}) },
-    evidence: a.evidence,
-    source: a.source,
+    ruleId: a.ruleId, topic: 'tolerance', status: 'assessed', domain: a.domain, limit: a.context ? 'none' : a.limit,
+    harmSign: a.congestionSign === true, contextOnly: a.context === true,
+    text: a.text, ...(a.values ? { values: a.values } : {}), evidence: a.evidence, source: a.source,
+    ...(a.quantity ? { quantity: a.quantity } : {}), ...(a.uses ? { uses: a.uses } : {}),
   };
 }
 
 export function notAssessed(
-  ruleId: string,
-  domain: ToleranceDomain,
-  text: string,
-  reason: string,
-  source: string,
-  evidence: Evidence[] = [],
-  values?: Record<string, number | string | boolean>,
-): Finding {
+  ruleId: string, domain: ToleranceDomain, text: string, reason: string, source: string, evidence: Evidence[] = [], values?: Figures, gap: GapKind = 'missing',
+): ToleranceFinding {
   return {
-    ruleId,
-    topic: 'tolerance',
-    status: 'not-assessed',
-    text,
-    reason,
-    values: { ...values, domain },
-    evidence,
-    source,
+    ruleId, topic: 'tolerance', status: 'not-assessed', domain, limit: 'none', harmSign: false, contextOnly: false,
+    text, reason, gap, ...(values ? { values } : {}), evidence, source,
   };
 }
 
-/** Limit of a tolerance finding; not-assessed and non-tolerance findings limit nothing. */
-export function limitOf(f: Finding): ToleranceLimit {
-  if (f.topic !== 'tolerance' || f.status !== 'assessed') return 'none';
-  const v = f.values?.['limit'];
-  return v === 'moderate' || v === 'severe' ? v : 'none';
+/** The not-assessed finding for a measurement or coded selection that is missing, stale or invalid. */
+export function unusableTolerance<T extends Measurement | CodedMeasurement>(
+  sel: Unusable<T>, a: { ruleId: string; domain: ToleranceDomain; label: string; source: string; now: Date },
+): ToleranceFinding {
+  const ev = (x: T): Evidence => ('answer' in x ? evidenceOfCoded(x, a.now) : evidenceOfMeasurement(x, a.now));
+  const p = unusableParts(sel, a.label, ev);
+  return { ruleId: a.ruleId, topic: 'tolerance', domain: a.domain, limit: 'none', harmSign: false, contextOnly: false, ...p, source: a.source };
 }
 
-export function domainOf(f: Finding): string | undefined {
-  const d = f.values?.['domain'];
-  return typeof d === 'string' ? d : undefined;
-}
-
-/** True for an assessed tolerance finding that marks pulmonary oedema, severe congestion or falling oxygenation. */
-export function isCongestionSign(f: Finding): boolean {
-  return f.topic === 'tolerance' && f.status === 'assessed' && f.values?.['congestionSign'] === true;
-}
-
-/** True when the finding is context only (it can never limit tolerance). */
-export function isContextOnly(f: Finding): boolean {
-  return f.topic === 'tolerance' && f.direction === 'neutral';
+/** Limit of a finding; not-assessed, context-only and non-tolerance findings limit nothing. */
+export function limitOf(f: { topic: string; status: string } & Partial<Pick<ToleranceFinding, 'limit' | 'contextOnly'>>): ToleranceLimit {
+  if (f.topic !== 'tolerance' || f.status !== 'assessed' || f.contextOnly) return 'none';
+  return f.limit ?? 'none';
 }

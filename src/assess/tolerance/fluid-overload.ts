@@ -1,22 +1,23 @@
 /**
  * Rule tolerance.fluid-overload: percent fluid overload = cumulative (in − out) in L / admission weight in
- * kg × 100 (Goldstein SL et al., Pediatrics 2001); ≥ 10 % moderate, ≥ 20 % severe (Sutherland SM et al.,
- * Am J Kidney Dis 2010 — from memory).
+ * kg × 100 (Goldstein SL et al., Pediatrics 2001). Adults: ≥ 10 % a severe limit (Bouchard J et al., Kidney Int
+ * 2009;76:422 [M], adults with AKI). Children: ≥ 10 % moderate, ≥ 20 % severe (Goldstein 2001; Sutherland SM et al.,
+ * Am J Kidney Dis 2010 [M]) — bands from children on CRRT, applied only below `paediatricBelowAgeYears`.
  */
 import type { PatientSnapshot } from '../../snapshot/types.js';
 import { fluidOverloadBand, percentFluidOverloadFromBalance } from '../../physiology/fluid-overload.js';
-import type { Finding } from '../types.js';
+import type { ToleranceFinding } from '../common/finding.js';
 import { balanceOver, cumulativeStartMs } from './balance-data.js';
-import { signedMl } from './balance.js';
 import { assessed, notAssessed } from './finding.js';
-import { evidenceOf, fmt, round } from './select.js';
 import type { ToleranceThresholds } from './thresholds.js';
 import { admissionWeight } from './weights.js';
+import { evidenceOfMeasurement } from '../common/select.js';
+import { fmt, round, signedMl } from '../common/text.js';
 
 export const FLUID_OVERLOAD = 'tolerance.fluid-overload';
-const SOURCE = '%FO = (in − out, L) / admission weight (kg) × 100: Goldstein SL et al., Pediatrics 2001;107:1309; bands 10 % and 20 %: Sutherland SM et al., Am J Kidney Dis 2010 (from memory)';
+const SOURCE = '%FO = (in − out, L) / admission weight (kg) × 100: Goldstein SL et al., Pediatrics 2001;107:1309; adults ≥ 10 %: Bouchard J et al., Kidney Int 2009;76:422 (from memory); children 10 % / 20 %: Sutherland SM et al., Am J Kidney Dis 2010 (from memory)';
 
-export function fluidOverloadRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {
+export function fluidOverloadRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): ToleranceFinding[] {
   const title = 'Percent fluid overload not assessed';
   const start = cumulativeStartMs(snapshot, now, t.balanceFallbackLookbackHours);
   if (!start) return [notAssessed(FLUID_OVERLOAD, 'balance', title, 'no admission time and no intake/output records', SOURCE)];
@@ -27,17 +28,23 @@ export function fluidOverloadRule(snapshot: PatientSnapshot, now: Date, t: Toler
 
   const r = out.result;
   const percent = percentFluidOverloadFromBalance(r.balanceMl, weight.m.value);
-  const band = fluidOverloadBand(percent, t.fluidOverloadModeratePercent, t.fluidOverloadSeverePercent);
+  const child = snapshot.patient.ageYears !== undefined && snapshot.patient.ageYears < t.paediatricBelowAgeYears;
+  const band = child
+    ? fluidOverloadBand(percent, t.fluidOverloadModeratePercent, t.fluidOverloadSeverePercent)
+    : fluidOverloadBand(percent, t.adultFluidOverloadPercent, t.adultFluidOverloadPercent) === 'below' ? 'below' : 'severe';
   const limit = band === 'severe' ? 'severe' : band === 'moderate' ? 'moderate' : 'none';
-  const bandText = band === 'severe' ? ` (≥ ${t.fluidOverloadSeverePercent} %)` : band === 'moderate' ? ` (≥ ${t.fluidOverloadModeratePercent} %)` : '';
+  const bandText = child
+    ? (band === 'severe' ? ` (≥ ${t.fluidOverloadSeverePercent} %, paediatric band)` : band === 'moderate' ? ` (≥ ${t.fluidOverloadModeratePercent} %, paediatric band)` : '')
+    : band === 'severe' ? ` (≥ ${t.adultFluidOverloadPercent} %, adult band)` : '';
   const weightText = weight.basis === 'admission' ? 'admission weight' : 'earliest recorded weight';
   return [assessed({
     ruleId: FLUID_OVERLOAD, domain: 'balance', limit,
     text: `Fluid overload ${fmt(percent, 1)} % of ${weightText} ${fmt(weight.m.value, 1)} kg${bandText}; balance ${signedMl(r.balanceMl)}`,
     values: {
       fluidOverloadPercent: round(percent, 2), balanceMl: round(r.balanceMl, 0), admissionWeightKg: weight.m.value,
-      weightBasis: weight.basis, startBasis: start.basis, band, source: r.source, urineOnly: r.urineOnly,
+      weightBasis: weight.basis, startBasis: start.basis, band, source: r.source, urineOnly: r.urineOnly, paediatric: child,
     },
-    evidence: [...r.evidence, evidenceOf(weight.m, now)], source: SOURCE,
+    quantity: { kind: 'fluid-overload-percent', value: round(percent, 2) },
+    evidence: [...r.evidence, evidenceOfMeasurement(weight.m, now)], source: SOURCE,
   })];
 }

@@ -5,7 +5,10 @@
  * ../../physiology, zod.
  */
 import type { PatientSnapshot } from '../../snapshot/types.js';
-import type { Finding, Tolerance, Verdict } from '../types.js';
+import type { SharedNumber, ToleranceFinding } from '../common/finding.js';
+import { runRules, type Rule, type RuleContext, type RuleError } from '../common/rule.js';
+import type { Windows } from '../common/windows.js';
+import type { Tolerance, Verdict } from '../types.js';
 import { abdominalPressureRule, ABDOMINAL_PRESSURE } from './abdominal-pressure.js';
 import { albuminRule, ALBUMIN } from './albumin.js';
 import { balance24hRule, BALANCE_24H, BALANCE_CUMULATIVE, cumulativeBalanceRule } from './balance.js';
@@ -21,57 +24,60 @@ import { OEDEMA, oedemaRule } from './oedema.js';
 import { OXYGEN_NEED, oxygenNeedRule } from './oxygen-need.js';
 import { SPO2_FIO2, SPO2_FIO2_TREND, spo2Fio2Rule, spo2Fio2TrendRule } from './spo2-fio2.js';
 import type { ToleranceThresholds } from './thresholds.js';
-import { toleranceCoverage, toleranceVerdict, type ToleranceCoverage } from './verdict.js';
+import { countOnce, toleranceCoverage, toleranceVerdict, type ToleranceCoverage } from './verdict.js';
 import { VEXUS, vexusRule } from './vexus.js';
 import { WEIGHT_GAIN, weightGainRule } from './weight-gain.js';
 
-export type ToleranceRule = (snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds) => Finding[];
+export type ToleranceRuleFn = (snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows) => ToleranceFinding[];
+export type ToleranceRule = Rule<ToleranceThresholds, ToleranceFinding>;
+
+function rule(id: string, domain: ToleranceDomain, fn: ToleranceRuleFn): ToleranceRule {
+  return {
+    id,
+    run: (c) => fn(c.snapshot, c.now, c.t, c.w),
+    onError: (message) => notAssessed(id, domain, 'Not assessed: the rule failed', `rule error: ${message}`, 'internal', [], undefined, 'rule-error'),
+  };
+}
 
 /** The tolerance rules in the order their findings are listed. */
-export const TOLERANCE_RULES: ReadonlyArray<{ id: string; domain: ToleranceDomain; run: ToleranceRule }> = [
-  { id: BALANCE_CUMULATIVE, domain: 'balance', run: cumulativeBalanceRule },
-  { id: BALANCE_24H, domain: 'balance', run: balance24hRule },
-  { id: FLUID_OVERLOAD, domain: 'balance', run: fluidOverloadRule },
-  { id: WEIGHT_GAIN, domain: 'balance', run: weightGainRule },
-  { id: ALBUMIN, domain: 'oncotic', run: albuminRule },
-  { id: OEDEMA, domain: 'oncotic', run: oedemaRule },
-  { id: SPO2_FIO2, domain: 'lungs', run: spo2Fio2Rule },
-  { id: SPO2_FIO2_TREND, domain: 'lungs', run: spo2Fio2TrendRule },
-  { id: OXYGEN_NEED, domain: 'lungs', run: oxygenNeedRule },
-  { id: LUNG_ULTRASOUND, domain: 'lungs', run: lungUltrasoundRule },
-  { id: EVLWI, domain: 'lungs', run: evlwiRule },
-  { id: VEXUS, domain: 'venous', run: vexusRule },
-  { id: CVP, domain: 'venous', run: cvpRule },
-  { id: ABDOMINAL_PRESSURE, domain: 'abdomen', run: abdominalPressureRule },
-  { id: KIDNEY_URINE, domain: 'kidneys', run: kidneyUrineRule },
-  { id: KIDNEY_CREATININE, domain: 'kidneys', run: kidneyCreatinineRule },
-  { id: CONDITIONS, domain: 'conditions', run: conditionsRule },
+export const TOLERANCE_RULES: readonly ToleranceRule[] = [
+  rule(BALANCE_CUMULATIVE, 'balance', cumulativeBalanceRule),
+  rule(BALANCE_24H, 'balance', balance24hRule),
+  rule(FLUID_OVERLOAD, 'balance', fluidOverloadRule),
+  rule(WEIGHT_GAIN, 'balance', weightGainRule),
+  rule(ALBUMIN, 'oncotic', albuminRule),
+  rule(OEDEMA, 'oncotic', oedemaRule),
+  rule(SPO2_FIO2, 'lungs', spo2Fio2Rule),
+  rule(SPO2_FIO2_TREND, 'lungs', spo2Fio2TrendRule),
+  rule(OXYGEN_NEED, 'lungs', oxygenNeedRule),
+  rule(LUNG_ULTRASOUND, 'lungs', lungUltrasoundRule),
+  rule(EVLWI, 'lungs', evlwiRule),
+  rule(VEXUS, 'venous', vexusRule),
+  rule(CVP, 'venous', cvpRule),
+  rule(ABDOMINAL_PRESSURE, 'abdomen', abdominalPressureRule),
+  rule(KIDNEY_URINE, 'kidneys', kidneyUrineRule),
+  rule(KIDNEY_CREATININE, 'kidneys', kidneyCreatinineRule),
+  rule(CONDITIONS, 'conditions', conditionsRule),
 ];
 
 export interface ToleranceAssessment {
-  findings: Finding[];
+  findings: ToleranceFinding[];
   verdict: Verdict<Tolerance>;
-  /** How many limiting markers were assessed. With none, the verdict 'adequate' means "unknown": a caller may leave Advice.tolerance unset. */
   coverage: ToleranceCoverage;
   /** Rules that threw: each also leaves a not-assessed finding, and the other rules still count (conventions §6). */
-  ruleErrors: Array<{ ruleId: string; message: string }>;
+  ruleErrors: RuleError[];
 }
 
-export function assessTolerance(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): ToleranceAssessment {
-  const findings: Finding[] = [];
-  const ruleErrors: ToleranceAssessment['ruleErrors'] = [];
-  for (const rule of TOLERANCE_RULES) {
-    try {
-      findings.push(...rule.run(snapshot, now, t));
-    } catch (err) {
-      const message = err instanceof Error ? err.message : String(err);
-      ruleErrors.push({ ruleId: rule.id, message });
-      findings.push(notAssessed(rule.id, rule.domain, 'Not assessed: the rule failed', `rule error: ${message}`, 'Tidemark'));
-    }
-  }
-  return { findings, verdict: toleranceVerdict(findings, t), coverage: toleranceCoverage(findings), ruleErrors };
+/**
+ * Runs the tolerance rules. `counted`: shared numbers that already decided the responsiveness verdict; their
+ * tolerance findings become context (a number counts once, §12).
+ */
+export function assessTolerance(ctx: RuleContext<ToleranceThresholds>, counted: readonly SharedNumber[] = []): ToleranceAssessment {
+  const run = runRules(TOLERANCE_RULES, ctx);
+  const findings = countOnce(run.findings, counted);
+  return { findings, verdict: toleranceVerdict(findings, ctx.t), coverage: toleranceCoverage(findings), ruleErrors: run.ruleErrors };
 }
 
 export { toleranceThresholdsSchema, DEFAULT_TOLERANCE_THRESHOLDS, type ToleranceThresholds } from './thresholds.js';
-export { limitOf, isCongestionSign, isContextOnly, type ToleranceLimit, type ToleranceDomain } from './finding.js';
-export { toleranceVerdict, toleranceCoverage, type ToleranceCoverage } from './verdict.js';
+export { limitOf, type ToleranceLimit, type ToleranceDomain } from './finding.js';
+export { toleranceVerdict, toleranceCoverage, countOnce, type ToleranceCoverage } from './verdict.js';

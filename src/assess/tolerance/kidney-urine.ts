@@ -9,11 +9,12 @@
 import type { PatientSnapshot } from '../../snapshot/types.js';
 import { coveredMs, volumeInWindowMl, withoutOverlaps, type VolumeRecord } from '../../physiology/fluid-balance.js';
 import { kdigoStageFromUrineOutput, urineOutputMlPerKgPerHour, type UrineWindow } from '../../physiology/kdigo.js';
-import type { Evidence, Finding } from '../types.js';
+import type { Evidence, ToleranceFinding } from '../common/finding.js';
 import { assessed, notAssessed } from './finding.js';
-import { ageText, evidenceOf, fmt, round, seriesOf, timeMs } from './select.js';
 import type { ToleranceThresholds } from './thresholds.js';
 import { weightForPerKg } from './weights.js';
+import { evidenceOfMeasurement, readingsOldestFirst, timeMs } from '../common/select.js';
+import { ageText, fmt, round } from '../common/text.js';
 
 export const KIDNEY_URINE = 'tolerance.kidney-urine';
 const SOURCE = 'KDIGO AKI guideline, Kidney Int Suppl 2012;2:1–138: stage 1 < 0.5 mL/kg/h for 6–12 h, stage 2 < 0.5 for ≥ 12 h, stage 3 < 0.3 for ≥ 24 h or anuria ≥ 12 h';
@@ -23,10 +24,10 @@ interface UrineRec extends VolumeRecord { evidence: Evidence }
 
 /** Urine records as intervals, point amounts placed after the previous record. */
 export function urineIntervals(snapshot: PatientSnapshot, now: Date, maxGapMinutes: number): { intervals: UrineRec[]; unplaced: UrineRec[] } {
-  const recs: UrineRec[] = seriesOf(snapshot, 'urineOutput', now).items.map((m) => {
+  const recs: UrineRec[] = readingsOldestFirst(snapshot, 'urineOutput', now).items.map((m) => {
     const endMs = timeMs(m.effective);
     const s = m.periodStart !== undefined ? timeMs(m.periodStart) : endMs;
-    return { id: m.ref, volumeMl: m.value, startMs: Number.isFinite(s) && s <= endMs ? s : endMs, endMs, evidence: evidenceOf(m, now) };
+    return { id: m.ref, volumeMl: m.value, startMs: Number.isFinite(s) && s <= endMs ? s : endMs, endMs, evidence: evidenceOfMeasurement(m, now) };
   });
   const kept = withoutOverlaps(recs).kept.sort((a, b) => a.endMs - b.endMs || a.startMs - b.startMs || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
   const intervals: UrineRec[] = [];
@@ -46,7 +47,7 @@ export function urineIntervals(snapshot: PatientSnapshot, now: Date, maxGapMinut
   return { intervals, unplaced };
 }
 
-export function kidneyUrineRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {
+export function kidneyUrineRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): ToleranceFinding[] {
   const title = 'Urine output (KDIGO) not assessed';
   const weight = weightForPerKg(snapshot, now, t);
   const { intervals, unplaced } = urineIntervals(snapshot, now, t.urinePointMaxGapMinutes);
@@ -74,7 +75,7 @@ export function kidneyUrineRule(snapshot: PatientSnapshot, now: Date, t: Toleran
     }
   }
   const used = intervals.filter((r) => r.endMs > endMs - 24 * 3_600_000).map((r) => r.evidence);
-  const evidence = [...used, evidenceOf(weight.m, now)];
+  const evidence = [...used, evidenceOfMeasurement(weight.m, now)];
   const stage = kdigoStageFromUrineOutput(windows);
   if (stage === undefined) {
     const rate = widest ? urineOutputMlPerKgPerHour(widest.volumeMl, kg, widest.coveredHours) : undefined;

@@ -8,10 +8,13 @@
  */
 import type { Measurement, PatientSnapshot } from '../../snapshot/types.js';
 import { relativeFallPercent, spo2Fio2Ratio } from '../../physiology/oxygenation.js';
-import type { Finding } from '../types.js';
+import type { ToleranceFinding } from '../common/finding.js';
+import { unusableReason } from '../common/finding.js';
+import { DEFAULT_WINDOWS, type Windows } from '../common/windows.js';
 import { assessed, notAssessed } from './finding.js';
-import { ageMinutesAt, ageText, evidenceOf, fmt, latestOf, round, seriesOf, timeMs, unusableReason } from './select.js';
 import type { ToleranceThresholds } from './thresholds.js';
+import { CLOCK_SKEW_MIN, ageMinutesRounded, evidenceOfMeasurement, latestReading, readingsOldestFirst, timeMs } from '../common/select.js';
+import { ageText, fmt, round } from '../common/text.js';
 
 export const SPO2_FIO2 = 'tolerance.spo2-fio2';
 export const SPO2_FIO2_TREND = 'tolerance.spo2-fio2-trend';
@@ -25,43 +28,42 @@ export interface Spo2Fio2Pair {
   timeMs: number;
 }
 
-/** Each SpO2 with the FiO2 nearest in time within `pairMinutes` (a tie goes to the earlier FiO2). */
-export function spo2Fio2Pairs(snapshot: PatientSnapshot, now: Date, pairMinutes: number): Spo2Fio2Pair[] {
-  const fio2 = seriesOf(snapshot, 'fio2', now).items;
+/**
+ * Each SpO2 with the FiO2 in force at its time: the latest FiO2 charted at or before it (up to the clock skew after
+ * it), carried forward until changed for at most `carryForwardMinutes` (§12: FiO2 is charted when it changes).
+ */
+export function spo2Fio2Pairs(snapshot: PatientSnapshot, now: Date, carryForwardMinutes: number): Spo2Fio2Pair[] {
+  const fio2 = readingsOldestFirst(snapshot, 'fio2', now).items;
   const pairs: Spo2Fio2Pair[] = [];
-  for (const s of seriesOf(snapshot, 'spo2', now).items) {
+  for (const s of readingsOldestFirst(snapshot, 'spo2', now).items) {
     const sMs = timeMs(s.effective);
     let best: Measurement | undefined;
-    let bestGap = Infinity;
-    for (const f of fio2) {
-      const gap = Math.abs(timeMs(f.effective) - sMs);
-      if (gap < bestGap) { best = f; bestGap = gap; }
-    }
-    if (best && bestGap <= pairMinutes * 60_000) pairs.push({ spo2: s, fio2: best, ratio: spo2Fio2Ratio(s.value, best.value), timeMs: sMs });
+    for (const f of fio2) if (timeMs(f.effective) <= sMs + CLOCK_SKEW_MIN * 60_000) best = f;
+    if (best && sMs - timeMs(best.effective) <= carryForwardMinutes * 60_000) pairs.push({ spo2: s, fio2: best, ratio: spo2Fio2Ratio(s.value, best.value), timeMs: sMs });
   }
   return pairs;
 }
 
 function latestFreshPair(pairs: Spo2Fio2Pair[], now: Date, t: ToleranceThresholds): Spo2Fio2Pair | undefined {
   const last = pairs.at(-1);
-  return last && ageMinutesAt(last.spo2.effective, now) <= t.oxygenationFreshMinutes ? last : undefined;
+  return last && ageMinutesRounded(last.spo2.effective, now) <= t.oxygenationFreshMinutes ? last : undefined;
 }
 
-function missingReason(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): string {
-  const spo2 = latestOf(snapshot, 'spo2', now, t.oxygenationFreshMinutes);
-  if (spo2.state !== 'fresh') return unusableReason('SpO2', spo2, now, t.oxygenationFreshMinutes);
-  const fio2 = latestOf(snapshot, 'fio2', now, Number.MAX_SAFE_INTEGER);
-  if (fio2.state === 'missing') return unusableReason('FiO2', fio2, now, t.oxygenationFreshMinutes);
-  return `no FiO2 charted within ${t.spo2Fio2PairMinutes} min of a recent SpO2`;
+function missingReason(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows): string {
+  const spo2 = latestReading(snapshot, 'spo2', now, t.oxygenationFreshMinutes);
+  if (spo2.state !== 'fresh') return unusableReason(spo2, 'SpO2');
+  const fio2 = latestReading(snapshot, 'fio2', now, Number.MAX_SAFE_INTEGER);
+  if (fio2.state !== 'fresh') return unusableReason(fio2, 'FiO2');
+  return `no FiO2 charted in the ${ageText(w.fio2CarryForwardMin)} before a recent SpO2`;
 }
 
-export function spo2Fio2Rule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {
-  const pair = latestFreshPair(spo2Fio2Pairs(snapshot, now, t.spo2Fio2PairMinutes), now, t);
-  if (!pair) return [notAssessed(SPO2_FIO2, 'lungs', 'SpO2/FiO2 not assessed', missingReason(snapshot, now, t), SOURCE)];
+export function spo2Fio2Rule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows = DEFAULT_WINDOWS): ToleranceFinding[] {
+  const pair = latestFreshPair(spo2Fio2Pairs(snapshot, now, w.fio2CarryForwardMin), now, t);
+  if (!pair) return [notAssessed(SPO2_FIO2, 'lungs', 'SpO2/FiO2 not assessed', missingReason(snapshot, now, t, w), SOURCE)];
   const plateau = pair.spo2.value > t.spo2PlateauPercent;
   const low = pair.ratio < t.spo2Fio2LowRatio;
   const base = `SpO2/FiO2 ${fmt(pair.ratio)} (SpO2 ${fmt(pair.spo2.value)} % on FiO2 ${fmt(pair.fio2.value)} %)`;
-  const evidence = [evidenceOf(pair.fio2, now), evidenceOf(pair.spo2, now)];
+  const evidence = [evidenceOfMeasurement(pair.fio2, now), evidenceOfMeasurement(pair.spo2, now)];
   const values = { spo2Fio2Ratio: round(pair.ratio, 1), spo2Percent: pair.spo2.value, fio2Percent: pair.fio2.value, spo2OnPlateau: plateau };
   if (plateau && low) {
     return [assessed({
@@ -76,16 +78,16 @@ export function spo2Fio2Rule(snapshot: PatientSnapshot, now: Date, t: ToleranceT
   })];
 }
 
-export function spo2Fio2TrendRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {
+export function spo2Fio2TrendRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows = DEFAULT_WINDOWS): ToleranceFinding[] {
   const title = 'SpO2/FiO2 trend not assessed';
-  const pairs = spo2Fio2Pairs(snapshot, now, t.spo2Fio2PairMinutes);
+  const pairs = spo2Fio2Pairs(snapshot, now, w.fio2CarryForwardMin);
   const latest = latestFreshPair(pairs, now, t);
-  if (!latest) return [notAssessed(SPO2_FIO2_TREND, 'lungs', title, missingReason(snapshot, now, t), TREND_SOURCE)];
+  if (!latest) return [notAssessed(SPO2_FIO2_TREND, 'lungs', title, missingReason(snapshot, now, t, w), TREND_SOURCE)];
   const earliest = pairs.find((p) => p.timeMs >= latest.timeMs - t.trendWindowMinutes * 60_000 && p.timeMs <= latest.timeMs - t.trendMinSpanMinutes * 60_000);
   if (!earliest) {
     return [notAssessed(SPO2_FIO2_TREND, 'lungs', title,
       `no earlier SpO2/FiO2 between ${ageText(t.trendWindowMinutes)} and ${ageText(t.trendMinSpanMinutes)} before the latest`, TREND_SOURCE,
-      [evidenceOf(latest.spo2, now)])];
+      [evidenceOfMeasurement(latest.spo2, now)])];
   }
   const fall = relativeFallPercent(earliest.ratio, latest.ratio);
   const latestOnPlateau = latest.spo2.value > t.spo2PlateauPercent;
@@ -96,7 +98,7 @@ export function spo2Fio2TrendRule(snapshot: PatientSnapshot, now: Date, t: Toler
     ruleId: SPO2_FIO2_TREND, domain: 'lungs', limit: falling ? 'moderate' : 'none', congestionSign: falling,
     text: `SpO2/FiO2 ${fmt(earliest.ratio)} → ${fmt(latest.ratio)} over ${span} (${move})${falling ? ': falling oxygenation' : ''}`,
     values: { earlierRatio: round(earliest.ratio, 1), latestRatio: round(latest.ratio, 1), fallPercent: round(fall, 1), spanMinutes: round((latest.timeMs - earliest.timeMs) / 60_000, 0), falling },
-    evidence: [evidenceOf(earliest.fio2, now), evidenceOf(earliest.spo2, now), evidenceOf(latest.fio2, now), evidenceOf(latest.spo2, now)],
+    evidence: [evidenceOfMeasurement(earliest.fio2, now), evidenceOfMeasurement(earliest.spo2, now), evidenceOfMeasurement(latest.fio2, now), evidenceOfMeasurement(latest.spo2, now)],
     source: TREND_SOURCE,
   })];
 }

@@ -15,10 +15,14 @@ export const toleranceThresholdsSchema = z
     balanceRecencyMinutes: minutes(720),
     /** Without an admission time, the cumulative balance starts at the earliest record within this many hours (common practice). */
     balanceFallbackLookbackHours: hours(168),
-    /** %FO moderate band (Goldstein SL et al., Pediatrics 2001; Sutherland SM et al., Am J Kidney Dis 2010 — from memory). */
+    /** Adults: %FO ≥ this is a severe limit (Bouchard J et al., Kidney Int 2009;76:422 [M]: fluid overload > 10 % with higher mortality in adults with AKI). */
+    adultFluidOverloadPercent: z.number().positive().default(10),
+    /** Children (< `paediatricBelowAgeYears`): %FO moderate band (Goldstein SL et al., Pediatrics 2001; children on CRRT). */
     fluidOverloadModeratePercent: z.number().positive().default(10),
-    /** %FO severe band, ≥ 20 % with higher mortality (Goldstein 2001; Sutherland 2010 — from memory). */
+    /** Children: %FO severe band, ≥ 20 % with higher mortality (Sutherland SM et al., Am J Kidney Dis 2010 [M]; children on CRRT). */
     fluidOverloadSeverePercent: z.number().positive().default(20),
+    /** Below this age in years the paediatric bands apply (common practice: paediatric care to 18). */
+    paediatricBelowAgeYears: z.number().positive().default(18),
 
     // ── Weight ───────────────────────────────────────────────────────────────────────────────────
     /** A weight up to this long before the admission time still counts as the admission weight (common practice). */
@@ -34,8 +38,6 @@ export const toleranceThresholdsSchema = z
     weightGainSeverePercent: z.number().positive().default(20),
 
     // ── Oncotic pressure and leak ────────────────────────────────────────────────────────────────
-    /** Albumin result freshness (common practice: daily chemistry; albumin changes slowly). */
-    albuminFreshMinutes: minutes(2880),
     /** Low albumin: below the ALBIOS target of 30 g/L (Caironi P et al., N Engl J Med 2014). */
     albuminLowGPerL: z.number().positive().default(30),
     /** Severely low albumin, < 25 g/L (from memory; often so called). */
@@ -50,8 +52,6 @@ export const toleranceThresholdsSchema = z
     // ── Lungs ────────────────────────────────────────────────────────────────────────────────────
     /** SpO2, FiO2 and PEEP freshness (common practice: continuous monitoring, charted hourly). */
     oxygenationFreshMinutes: minutes(120),
-    /** SpO2 and FiO2 are paired only when charted this close together (common practice). */
-    spo2Fio2PairMinutes: minutes(60),
     /** SpO2/FiO2 below this ≈ PaO2/FiO2 < 200 (Rice TW et al., Chest 2007 — from memory). */
     spo2Fio2LowRatio: z.number().positive().default(235),
     /** Above this SpO2 the ratio is unreliable (flat part of the dissociation curve; Rice 2007 — from memory). */
@@ -70,8 +70,8 @@ export const toleranceThresholdsSchema = z
     ultrasoundFreshMinutes: minutes(360),
     /** Regions (of 8) with B-pattern from which lung water limits tolerance (common practice). */
     bLineModerateRegions: z.number().int().min(1).max(8).default(2),
-    /** Regions (of 8) with B-pattern read as diffuse interstitial syndrome: ≥ 2 per side, so ≥ 4 (Volpicelli G et al., Intensive Care Med 2012 — from memory). */
-    bLineSevereRegions: z.number().int().min(1).max(8).default(4),
+    /** B-pattern regions per side for diffuse interstitial syndrome, ≥ (Volpicelli G et al., Intensive Care Med 2012;38:577 [M]: ≥ 2 positive regions on each side). With the side not charted the finding is capped at moderate (§12). */
+    bLineBilateralPerSide: z.number().int().min(1).max(4).default(2),
     /** EVLWI freshness (common practice: thermodilution repeated every few hours). */
     evlwiFreshMinutes: minutes(720),
     /** EVLWI at which pulmonary oedema is present (Tagami T et al., Crit Care 2010; Jozwiak M et al., Ann Intensive Care 2015). */
@@ -83,14 +83,10 @@ export const toleranceThresholdsSchema = z
     /** Portal pulsatility fraction: mild from 30 %, severe from 50 % (Beaubien-Souligny 2020). */
     portalMildPercent: z.number().positive().default(30),
     portalSeverePercent: z.number().positive().default(50),
-    /** CVP freshness (common practice: continuous transducer, charted hourly). */
-    cvpFreshMinutes: minutes(120),
     /** High CVP (common practice; Boyd JH et al., Crit Care Med 2011: CVP > 12 mmHg with the highest mortality). */
     cvpHighMmHg: z.number().default(12),
 
     // ── Abdomen ──────────────────────────────────────────────────────────────────────────────────
-    /** Intra-abdominal pressure freshness (common practice: measured every 4–6 h when monitored). */
-    iapFreshMinutes: minutes(360),
     /** IAH threshold (WSACS 2013, Kirkpatrick AW et al., Intensive Care Med 2013). */
     iahMmHg: z.number().positive().default(12),
     /** IAH grade from which the finding is severe: grade III (IAP > 20 mmHg, the pressure of abdominal compartment syndrome; WSACS 2013). */
@@ -105,19 +101,18 @@ export const toleranceThresholdsSchema = z
     urinePointMaxGapMinutes: minutes(240),
     /** A KDIGO window counts only when charting covers at least this fraction of it (common practice). */
     urineCoverageFraction: z.number().gt(0).max(1).default(0.9),
-    /** Creatinine freshness (common practice: daily chemistry). */
-    creatinineFreshMinutes: minutes(1440),
 
     // ── Verdict ──────────────────────────────────────────────────────────────────────────────────
-    /** Moderate findings in this many different organ domains make tolerance poor (Tidemark's scheme; see docs/clinical-logic/tolerance.md). */
+    /** Moderate findings in this many different organ domains, one of them lungs, venous or balance, make tolerance poor (Tidemark's scheme; docs/clinical-logic/tolerance.md). */
     poorWhenModerateDomains: z.number().int().min(2).default(3),
+    /** "Adequate" needs at least this many markers assessed, one of them lungs, venous or balance; fewer gives "not known" (our choice, §12). */
+    adequateMinMarkers: z.number().int().min(1).default(3),
   })
   .superRefine((t, ctx) => {
     const pairs: Array<[keyof typeof t, keyof typeof t]> = [
       ['fluidOverloadModeratePercent', 'fluidOverloadSeverePercent'],
       ['weightGainModeratePercent', 'weightGainSeverePercent'],
       ['albuminSevereLowGPerL', 'albuminLowGPerL'],
-      ['bLineModerateRegions', 'bLineSevereRegions'],
       ['portalMildPercent', 'portalSeverePercent'],
       ['albuminImplausibleBelowGPerL', 'albuminSevereLowGPerL'],
     ];

@@ -7,42 +7,43 @@
  */
 import type { PatientSnapshot } from '../../snapshot/types.js';
 import { hepaticSeverity, portalSeverity, renalSeverity, vexusGrade, type DopplerSeverity } from '../../physiology/vexus.js';
-import type { Evidence, Finding } from '../types.js';
-import { assessed, notAssessed } from './finding.js';
-import { codedEvidenceOf, evidenceOf, fmt, latestCodedOf, latestOf, unusableReason } from './select.js';
+import type { Evidence, ToleranceFinding } from '../common/finding.js';
+import { assessed, notAssessed, unusableTolerance } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
+import { DEFAULT_WINDOWS, type Windows } from '../common/windows.js';
+import { evidenceOfCoded, evidenceOfMeasurement, latestCoded, latestReading } from '../common/select.js';
+import { fmt } from '../common/text.js';
 
 export const VEXUS = 'tolerance.vexus';
 const SOURCE = 'VExUS: Beaubien-Souligny W et al., Ultrasound J 2020;12:16 (doi 10.1186/s13089-020-00163-w)';
 
 const PART_LABEL = { hepatic: 'hepatic vein', portal: 'portal vein', renal: 'intrarenal vein' } as const;
 
-export function vexusRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): Finding[] {
+export function vexusRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows = DEFAULT_WINDOWS): ToleranceFinding[] {
   const win = t.ultrasoundFreshMinutes;
-  const ivc = latestOf(snapshot, 'ivcDiameterMax', now, win);
+  const ivc = latestReading(snapshot, 'ivcDiameterMax', now, w.ivcMin);
   if (ivc.state !== 'fresh') {
-    return [notAssessed(VEXUS, 'venous', 'VExUS not assessed', unusableReason('IVC diameter', ivc, now, win), SOURCE,
-      ivc.state === 'stale' ? [evidenceOf(ivc.item, now)] : [])];
+    return [unusableTolerance(ivc, { ruleId: VEXUS, domain: 'venous', label: 'VExUS', source: SOURCE, now })];
   }
-  const evidence: Evidence[] = [evidenceOf(ivc.item, now)];
-  const hv = latestCodedOf(snapshot, 'hepaticVeinPattern', now, win);
-  const pv = latestOf(snapshot, 'portalPulsatility', now, win);
-  const rv = latestCodedOf(snapshot, 'renalVeinPattern', now, win);
+  const evidence: Evidence[] = [evidenceOfMeasurement(ivc.item, now)];
+  const hv = latestCoded(snapshot, 'hepaticVeinPattern', now, win);
+  const pv = latestReading(snapshot, 'portalPulsatility', now, win);
+  const rv = latestCoded(snapshot, 'renalVeinPattern', now, win);
 
   let hepatic: DopplerSeverity | undefined;
   if (hv.state === 'fresh' && (hv.item.answer === 'normal' || hv.item.answer === 'mild' || hv.item.answer === 'severe')) {
     hepatic = hepaticSeverity(hv.item.answer);
-    evidence.push(codedEvidenceOf(hv.item, now));
+    evidence.push(evidenceOfCoded(hv.item, now));
   }
   let portal: DopplerSeverity | undefined;
   if (pv.state === 'fresh') {
     portal = portalSeverity(pv.item.value, t.portalMildPercent, t.portalSeverePercent);
-    evidence.push(evidenceOf(pv.item, now));
+    evidence.push(evidenceOfMeasurement(pv.item, now));
   }
   let renal: DopplerSeverity | undefined;
   if (rv.state === 'fresh' && (rv.item.answer === 'continuous' || rv.item.answer === 'biphasic' || rv.item.answer === 'monophasic')) {
     renal = renalSeverity(rv.item.answer);
-    evidence.push(codedEvidenceOf(rv.item, now));
+    evidence.push(evidenceOfCoded(rv.item, now));
   }
 
   const g = vexusGrade({ ivcMaxCm: ivc.item.value, hepatic, portal, renal }, t.vexusIvcCm);

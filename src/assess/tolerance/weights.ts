@@ -3,7 +3,7 @@
  * weight (for per-kg rates), each with its basis named.
  */
 import type { Measurement, PatientSnapshot } from '../../snapshot/types.js';
-import { ageMinutesAt, seriesOf, timeMs } from './select.js';
+import { ageMinutesRounded, readingsOldestFirst, timeMs } from '../common/select.js';
 
 /** Admission time from the encounter, when it has a usable start not after now. */
 export function encounterStartMs(snapshot: PatientSnapshot, now: Date): number | undefined {
@@ -24,15 +24,15 @@ export function admissionWeight(
   const fromMs = start !== undefined
     ? start - t.admissionWeightWindowHours * 3_600_000
     : now.getTime() - t.balanceFallbackLookbackHours * 3_600_000;
-  const first = seriesOf(snapshot, 'bodyWeight', now).items.find((m) => timeMs(m.effective) >= fromMs);
+  const first = readingsOldestFirst(snapshot, 'bodyWeight', now).items.find((m) => timeMs(m.effective) >= fromMs);
   if (!first) return undefined;
   return { m: first, basis: start !== undefined ? 'admission' : 'earliest-recorded' };
 }
 
 /** Latest weight no older than `maxAgeHours`. */
 export function latestWeight(snapshot: PatientSnapshot, now: Date, maxAgeHours: number): Measurement | undefined {
-  const last = seriesOf(snapshot, 'bodyWeight', now).items.at(-1);
-  return last && ageMinutesAt(last.effective, now) <= maxAgeHours * 60 ? last : undefined;
+  const last = readingsOldestFirst(snapshot, 'bodyWeight', now).items.at(-1);
+  return last && ageMinutesRounded(last.effective, now) <= maxAgeHours * 60 ? last : undefined;
 }
 
 /** Weight for per-kg figures: the latest recent weight, else the admission weight. */

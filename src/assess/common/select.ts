@@ -1,14 +1,16 @@
 /**
- * Picking data from a snapshot for the responsiveness rules: usable readings of one kind, newest first, the
- * newest one with its freshness against a window, readings inside a time span, and evidence records.
+ * The one way every rule picks data from a snapshot: usable readings of a kind (newest first), the latest one
+ * judged against its window (fresh, stale, missing, invalid), and set aside when an event since then (a fluid of
+ * ≥ 100 mL, a vasoactive change) means it no longer describes the patient (clinical-references §12).
  * Age is computed from the injected `now`, never from the clock. Sorting is total (time, then reference, then
  * content) so that no result depends on the order of the snapshot arrays.
- * General enough to move to src/assess/ if other rule groups want it.
  */
 import { KIND_UNITS, type CodedKind, type DynamicTestKind, type NumericKind } from '../../fhir/codes.js';
-import type { CodedMeasurement, DynamicTestResult, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug } from '../../snapshot/types.js';
-import type { Evidence } from '../types.js';
 import { parseTimeMs } from '../../snapshot/time.js';
+import type { CodedMeasurement, DynamicTestResult, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug } from '../../snapshot/types.js';
+import type { Evidence } from './finding.js';
+import type { EvidenceEvent } from './events.js';
+import { round } from './text.js';
 
 /** A time up to this far after `now` is clock skew and counts as age 0 (common practice). */
 export const CLOCK_SKEW_MIN = 5;
@@ -37,24 +39,23 @@ export function newestFirst<T extends { effective: string; ref: string }>(a: T, 
   return timeMs(b.effective) - timeMs(a.effective) || compareText(a.ref, b.ref) || compareText(JSON.stringify(a), JSON.stringify(b));
 }
 
-export function round1(v: number): number {
-  return Math.round(v * 10) / 10;
-}
-
 export type Selection<T> =
   | { state: 'fresh'; item: T; ageMinutes: number; windowMin: number }
   | { state: 'stale'; item: T; ageMinutes: number; windowMin: number }
+  | { state: 'set-aside'; item: T; ageMinutes: number; windowMin: number; event: EvidenceEvent }
   | { state: 'invalid'; item: T; ageMinutes: number; windowMin: number; detail: string }
   | { state: 'missing'; windowMin: number };
 
-export interface MeasurementSeries {
+export type Unusable<T> = Exclude<Selection<T>, { state: 'fresh' }>;
+
+export interface Readings {
   /** Usable readings (canonical unit, finite value, not in the future), newest first. */
   items: Measurement[];
   /** Readings whose unit is not the canonical unit of the kind: never used. */
   wrongUnit: Measurement[];
 }
 
-export function measurementsOf(s: PatientSnapshot, kind: NumericKind, now: Date): MeasurementSeries {
+export function readings(s: PatientSnapshot, kind: NumericKind, now: Date): Readings {
   const items: Measurement[] = [];
   const wrongUnit: Measurement[] = [];
   for (const m of s.measurements) {
@@ -67,17 +68,48 @@ export function measurementsOf(s: PatientSnapshot, kind: NumericKind, now: Date)
   return { items, wrongUnit };
 }
 
-function choose<T extends { effective: string }>(items: readonly T[], now: Date, windowMin: number): Selection<T> {
+/** Usable readings of `kind`, oldest first (for rules that walk a series forwards in time). */
+export function readingsOldestFirst(s: PatientSnapshot, kind: NumericKind, now: Date): Readings {
+  const r = readings(s, kind, now);
+  return { items: [...r.items].reverse(), wrongUnit: [...r.wrongUnit].reverse() };
+}
+
+/** Age in minutes rounded to 0.1, as evidence records carry it. */
+export function ageMinutesRounded(iso: string, now: Date): number {
+  return round(ageMinutes(iso, now), 1);
+}
+
+/** Usable readings of `kind` with fromMs ≤ time ≤ toMs, newest first. */
+export function readingsBetween(s: PatientSnapshot, kind: NumericKind, now: Date, fromMs: number, toMs: number): Measurement[] {
+  return readings(s, kind, now).items.filter((m) => {
+    const ms = timeMs(m.effective);
+    return ms >= fromMs && ms <= toMs;
+  });
+}
+
+export interface PickOptions {
+  /** Events after which a reading no longer describes the patient (see events.ts); the newest one after the reading sets it aside. */
+  events?: readonly EvidenceEvent[];
+}
+
+function choose<T extends { effective: string }>(items: readonly T[], now: Date, windowMin: number, opts: PickOptions): Selection<T> {
   const first = items[0];
   if (first === undefined) return { state: 'missing', windowMin };
   const age = ageMinutes(first.effective, now);
-  return { state: age <= windowMin ? 'fresh' : 'stale', item: first, ageMinutes: age, windowMin };
+  if (age > windowMin) return { state: 'stale', item: first, ageMinutes: age, windowMin };
+  const atMs = timeMs(first.effective);
+  const event = (opts.events ?? []).find((e) => e.atMs > atMs);
+  if (event) return { state: 'set-aside', item: first, ageMinutes: age, windowMin, event };
+  return { state: 'fresh', item: first, ageMinutes: age, windowMin };
 }
 
-/** The newest usable reading of `kind`, fresh if its age is ≤ windowMin. Wrong-unit readings only show as 'invalid' when nothing else exists. */
-export function latestMeasurement(s: PatientSnapshot, kind: NumericKind, now: Date, windowMin: number): Selection<Measurement> {
-  const { items, wrongUnit } = measurementsOf(s, kind, now);
-  const picked = choose(items, now, windowMin);
+/**
+ * The newest usable reading of `kind`: fresh if its age is ≤ windowMin and no event came after it.
+ * Wrong-unit readings show as 'invalid' only when nothing else exists.
+ */
+export function latestReading(s: PatientSnapshot, kind: NumericKind, now: Date, windowMin: number, opts: PickOptions = {}): Selection<Measurement> {
+  const { items, wrongUnit } = readings(s, kind, now);
+  const picked = choose(items, now, windowMin, opts);
   const bad = wrongUnit[0];
   if (picked.state === 'missing' && bad !== undefined) {
     return {
@@ -88,20 +120,12 @@ export function latestMeasurement(s: PatientSnapshot, kind: NumericKind, now: Da
   return picked;
 }
 
-/** Usable readings of `kind` with fromMs ≤ time ≤ toMs, newest first. */
-export function measurementsBetween(s: PatientSnapshot, kind: NumericKind, now: Date, fromMs: number, toMs: number): Measurement[] {
-  return measurementsOf(s, kind, now).items.filter((m) => {
-    const ms = timeMs(m.effective);
-    return ms >= fromMs && ms <= toMs;
-  });
-}
-
 export function codedOf(s: PatientSnapshot, kind: CodedKind, now: Date): CodedMeasurement[] {
   return s.coded.filter((c) => c.kind === kind && usableTime(c.effective, now)).sort(newestFirst);
 }
 
-export function latestCoded(s: PatientSnapshot, kind: CodedKind, now: Date, windowMin: number): Selection<CodedMeasurement> {
-  return choose(codedOf(s, kind, now), now, windowMin);
+export function latestCoded(s: PatientSnapshot, kind: CodedKind, now: Date, windowMin: number, opts: PickOptions = {}): Selection<CodedMeasurement> {
+  return choose(codedOf(s, kind, now), now, windowMin, opts);
 }
 
 export function dynamicTestsOf(s: PatientSnapshot, kind: DynamicTestKind, now: Date): DynamicTestResult[] {
@@ -110,28 +134,33 @@ export function dynamicTestsOf(s: PatientSnapshot, kind: DynamicTestKind, now: D
     .sort(newestFirst);
 }
 
+/** Judge one chosen item against a window and events (for rules that choose among several, e.g. the best read-out). */
+export function judge<T extends { effective: string }>(item: T | undefined, now: Date, windowMin: number, opts: PickOptions = {}): Selection<T> {
+  return choose(item === undefined ? [] : [item], now, windowMin, opts);
+}
+
 export function evidenceOfMeasurement(m: Measurement, now: Date): Evidence {
-  return { ref: m.ref, kind: m.kind, value: m.value, unit: m.unit, effective: m.effective, ageMinutes: round1(ageMinutes(m.effective, now)) };
+  return { ref: m.ref, kind: m.kind, value: m.value, unit: m.unit, effective: m.effective, ageMinutes: round(ageMinutes(m.effective, now), 1) };
 }
 
 export function evidenceOfCoded(c: CodedMeasurement, now: Date): Evidence {
-  return { ref: c.ref, kind: c.kind, value: c.answer, effective: c.effective, ageMinutes: round1(ageMinutes(c.effective, now)) };
+  return { ref: c.ref, kind: c.kind, value: c.answer, effective: c.effective, ageMinutes: round(ageMinutes(c.effective, now), 1) };
 }
 
 export function evidenceOfDynamicTest(d: DynamicTestResult, now: Date): Evidence {
   return {
     ref: d.ref, kind: `${d.kind}:${d.measured}`, value: `${d.before} → ${d.after}`, unit: d.unit,
-    effective: d.effective, ageMinutes: round1(ageMinutes(d.effective, now)),
+    effective: d.effective, ageMinutes: round(ageMinutes(d.effective, now), 1),
   };
 }
 
 export function evidenceOfFluid(f: FluidGiven, now: Date): Evidence {
-  return { ref: f.ref, kind: 'fluid', value: f.volumeMl, unit: 'mL', effective: f.end, ageMinutes: round1(ageMinutes(f.end, now)) };
+  return { ref: f.ref, kind: `fluid:${f.fluidClass}`, value: f.volumeMl, unit: 'mL', effective: f.end, ageMinutes: round(ageMinutes(f.end, now), 1) };
 }
 
 export function evidenceOfVasoactive(v: VasoactiveDrug, now: Date): Evidence {
   const value = v.rate ? `${v.drug} ${v.rate.value} ${v.rate.unit}` : v.drug;
-  return { ref: v.ref, kind: 'vasoactive', value, effective: v.start, ageMinutes: round1(ageMinutes(v.start, now)) };
+  return { ref: v.ref, kind: 'vasoactive', value, effective: v.start, ageMinutes: round(ageMinutes(v.start, now), 1) };
 }
 
 /** Evidence in one total order (newest first, then reference, then kind) with duplicates removed. */

@@ -3,10 +3,9 @@
  * diastolic reading with the same time (DBP + (SBP − DBP)/3). Used by the last-bolus and MAP rules.
  */
 import { meanArterialPressureMmHg } from '../../physiology/mean-arterial-pressure.js';
-import type { Measurement } from '../../snapshot/types.js';
-import type { Evidence } from '../types.js';
-import type { RuleContext } from './context.js';
-import { compareText, evidenceOfMeasurement, measurementsOf, timeMs } from './select.js';
+import type { Measurement, PatientSnapshot } from '../../snapshot/types.js';
+import type { Evidence } from './finding.js';
+import { compareText, evidenceOfMeasurement, readings, timeMs } from './select.js';
 
 export interface MapPoint {
   mapMmHg: number;
@@ -19,11 +18,10 @@ export interface MapPoint {
 }
 
 /** All MAP points, newest first (ties by the first source reference). */
-export function mapSeries(ctx: RuleContext): MapPoint[] {
-  const { snapshot: s, now } = ctx;
+export function mapSeries(s: PatientSnapshot, now: Date): MapPoint[] {
   const points: MapPoint[] = [];
   const measuredAt = new Set<number>();
-  for (const m of measurementsOf(s, 'meanBp', now).items) {
+  for (const m of readings(s, 'meanBp', now).items) {
     const ms = timeMs(m.effective);
     measuredAt.add(ms);
     points.push({ mapMmHg: m.value, effective: m.effective, effectiveMs: ms, measured: true, sources: [m] });
@@ -37,8 +35,8 @@ export function mapSeries(ctx: RuleContext): MapPoint[] {
     }
     return byTime;
   };
-  const dbpAt = firstAt(measurementsOf(s, 'diastolicBp', now).items);
-  for (const [ms, sbp] of firstAt(measurementsOf(s, 'systolicBp', now).items)) {
+  const dbpAt = firstAt(readings(s, 'diastolicBp', now).items);
+  for (const [ms, sbp] of firstAt(readings(s, 'systolicBp', now).items)) {
     const dbp = dbpAt.get(ms);
     if (dbp === undefined || measuredAt.has(ms) || sbp.value < dbp.value) continue;
     points.push({ mapMmHg: meanArterialPressureMmHg(sbp.value, dbp.value), effective: sbp.effective, effectiveMs: ms, measured: false, sources: [sbp, dbp] });

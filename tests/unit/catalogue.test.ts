@@ -1,0 +1,44 @@
+/**
+ * The card catalogue is validated at start-up against the closed sets of the advice (headline keys, alternatives,
+ * next-test kinds, suggestion kinds): a missing or unknown key stops start-up (issue 19).
+ */
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { ALTERNATIVES, HEADLINE_KEYS } from '../../src/assess/advice/types.js';
+import { NEXT_TESTS } from '../../src/assess/types.js';
+import { DEFAULT_CATALOGUE_PATH, loadCatalogue, SUGGESTION_KINDS } from '../../src/cards/catalogue.js';
+
+const shipped = JSON.parse(readFileSync(DEFAULT_CATALOGUE_PATH, 'utf8')) as Record<string, Record<string, unknown>>;
+function loadEdited(edit: (c: Record<string, Record<string, unknown>>) => void) {
+  const c = structuredClone(shipped);
+  edit(c);
+  const p = join(mkdtempSync(join(tmpdir(), 'tm-cat-')), 'catalogue.json');
+  writeFileSync(p, JSON.stringify(c));
+  return () => loadCatalogue(p);
+}
+
+describe('card catalogue against the closed sets', () => {
+  it('the shipped catalogue loads and has wording for every code', () => {
+    const { catalogue } = loadCatalogue();
+    for (const k of HEADLINE_KEYS) expect(catalogue.headlines[k], k).toBeTruthy();
+    for (const k of ALTERNATIVES) expect(catalogue.alternatives[k], k).toBeTruthy();
+    for (const k of NEXT_TESTS) expect(catalogue.nextTests[k], k).toBeTruthy();
+    for (const k of SUGGESTION_KINDS) expect(catalogue.suggestions[k].label, k).toBeTruthy();
+  });
+  it('a missing headline key stops start-up, naming the key', () => {
+    expect(loadEdited((c) => { delete c['headlines']!['early/any']; })).toThrow(/headlines\.early\/any/);
+  });
+  it('an unknown headline key stops start-up (a misspelt key would never be shown)', () => {
+    expect(loadEdited((c) => { c['headlines']!['likely/adequat'] = 'x'; })).toThrow(/headlines/);
+  });
+  it('a missing alternative, next test or suggestion stops start-up', () => {
+    expect(loadEdited((c) => { delete c['alternatives']!['perfusion-check']; })).toThrow(/alternatives\.perfusion-check/);
+    expect(loadEdited((c) => { delete c['nextTests']!['tidal-volume-challenge']; })).toThrow(/nextTests\.tidal-volume-challenge/);
+    expect(loadEdited((c) => { delete c['suggestions']!['tidal-volume-challenge']; })).toThrow(/suggestions\.tidal-volume-challenge/);
+  });
+  it('every headline is short enough for a card summary (< 140 characters)', () => {
+    for (const h of Object.values(loadCatalogue().catalogue.headlines)) expect(h.length).toBeLessThan(140);
+  });
+});
