@@ -33,13 +33,24 @@ export interface CandidateRules {
  * What can change: the advice's verdicts and headline key, and per card kind whether the card is shown, its
  * indicator, its summary (the headline as shown) and its suggestion labels.
  */
-export type ChangeDimension = 'responsiveness' | 'tolerance' | 'headline-key' | 'card' | 'indicator' | 'headline' | 'suggestions';
+export type ChangeDimension =
+  | 'responsiveness' | 'confidence' | 'tolerance' | 'action' | 'next-test' | 'headline-key' | 'card' | 'indicator' | 'headline' | 'suggestions';
+
+/** The advice-level dimensions and the field of the comparable outcome each compares. */
+const ADVICE_DIMENSIONS = [
+  ['responsiveness', 'responsiveness'], ['confidence', 'confidence'], ['tolerance', 'tolerance'], ['action', 'action'],
+  ['next-test', 'nextTest'], ['headline-key', 'headlineKey'],
+] as const satisfies ReadonlyArray<readonly [ChangeDimension, keyof ComparableOutcome]>;
 
 /** Counts of records in which at least one thing of that sort changed. */
 export interface ChangedCounts {
   any: number;
   responsiveness: number;
+  /** The responsiveness verdict's confidence. */
+  confidence: number;
   tolerance: number;
+  action: number;
+  nextTest: number;
   indicator: number;
   /** The card summary as shown, or the headline key. */
   headline: number;
@@ -99,6 +110,12 @@ export const EXAMPLES = 5;
  * of its dimension and kind, so summaries that carry values cannot grow the tally without bound.
  */
 export const MAX_CHANGE_ROWS = 1000;
+/** Which count of records a change of each dimension adds to. */
+const COUNTED_AS: Record<ChangeDimension, keyof ChangedCounts> = {
+  responsiveness: 'responsiveness', confidence: 'confidence', tolerance: 'tolerance', action: 'action', 'next-test': 'nextTest',
+  'headline-key': 'headline', card: 'cards', indicator: 'indicator', headline: 'headline', suggestions: 'suggestions',
+};
+
 /** Records re-run between two turns of the event loop. */
 const YIELD_EVERY = 100;
 const NONE = '(none)';
@@ -115,7 +132,7 @@ export class ImpactTally {
   private notReplayable = 0;
   private failed = 0;
   private readonly failedExamples: string[] = [];
-  private readonly changed: ChangedCounts = { any: 0, responsiveness: 0, tolerance: 0, indicator: 0, headline: 0, suggestions: 0, cards: 0 };
+  private readonly changed: ChangedCounts = { any: 0, responsiveness: 0, confidence: 0, tolerance: 0, action: 0, nextTest: 0, indicator: 0, headline: 0, suggestions: 0, cards: 0 };
   private readonly rows = new Map<string, ChangeRow>();
   private readonly kinds = new Map<string, KindRow>();
   private lastSeq: number | undefined;
@@ -147,14 +164,13 @@ export class ImpactTally {
     const seen = new Set<keyof ChangedCounts>();
     const note = (dim: ChangeDimension, kind: string, from: string, to: string): void => {
       this.row(dim, kind, from, to, id);
-      seen.add(dim === 'headline-key' ? 'headline' : dim === 'card' ? 'cards' : dim);
+      seen.add(COUNTED_AS[dim]);
     };
-    const verdict = (dim: 'responsiveness' | 'tolerance' | 'headline-key', a?: string, b?: string) => {
+    for (const [dim, field] of ADVICE_DIMENSIONS) {
+      const a = then[field];
+      const b = now[field];
       if (a !== b) note(dim, '', a ?? NONE, b ?? NONE);
-    };
-    verdict('responsiveness', then.responsiveness, now.responsiveness);
-    verdict('tolerance', then.tolerance, now.tolerance);
-    verdict('headline-key', then.headlineKey, now.headlineKey);
+    }
 
     const thenByKind = byKind(then.cards);
     const nowByKind = byKind(now.cards);
@@ -209,7 +225,7 @@ export class ImpactTally {
   }
 
   report(more = false): ImpactReport {
-    const order: ChangeDimension[] = ['responsiveness', 'tolerance', 'headline-key', 'card', 'indicator', 'headline', 'suggestions'];
+    const order = Object.keys(COUNTED_AS);
     const changes = [...this.rows.values()]
       .map((r) => ({ ...r, examples: [...r.examples] }))
       .sort((a, b) => b.count - a.count || order.indexOf(a.dimension) - order.indexOf(b.dimension) || a.cardKind.localeCompare(b.cardKind) || a.from.localeCompare(b.from) || a.to.localeCompare(b.to));
@@ -284,7 +300,8 @@ function table(r: ImpactReport): string {
     `Impact of candidate rules ${r.candidateRulesVersion}`,
     `records read ${r.read}, replayed ${r.replayed}, unchanged ${r.unchanged}, changed ${c.any}, not replayable ${r.notReplayable}, failed ${r.failed}` +
       (r.failedExamples.length ? ` (e.g. ${r.failedExamples.join(' ')})` : '') + (r.more ? `; stopped at the record limit after seq ${r.lastSeq}` : ''),
-    `records changed in: responsiveness ${c.responsiveness}, tolerance ${c.tolerance}, indicator ${c.indicator}, headline ${c.headline}, suggestions ${c.suggestions}, cards shown/absent ${c.cards}`,
+    `records changed in: responsiveness ${c.responsiveness}, confidence ${c.confidence}, tolerance ${c.tolerance}, action ${c.action}, next test ${c.nextTest}, ` +
+      `indicator ${c.indicator}, headline ${c.headline}, suggestions ${c.suggestions}, cards shown/absent ${c.cards}`,
     '',
     'By card kind (records changed)',
     columns([['card kind', 'records', 'indicator', 'headline', 'suggestions', 'shown/absent'], ...r.byCardKind.map((k) => [k.cardKind, ...[k.records, k.indicator, k.headline, k.suggestions, k.shownOrAbsent].map(String)])]),

@@ -83,6 +83,12 @@ describe('npm run -s audit -- impact', () => {
     expect(verdict).toHaveLength(1);
     expect(verdict[0]).toMatchObject({ from: 'likely', to: 'indeterminate', count: 3 });
     expect([...verdict[0].examples].sort()).toEqual([...ids['ppv14']!].sort());
+    // The advice's codes move with it: the headline key leaves the "likely" row of the advice matrix.
+    const key = lines.filter((l) => l.dimension === 'headline-key');
+    expect(key).toHaveLength(1);
+    expect(key[0]).toMatchObject({ count: 3 });
+    expect(key[0].from).toMatch(/^likely\//);
+    expect(key[0].to).toMatch(/^indeterminate\//);
     // Every change row names only the 14 % records.
     for (const l of lines.slice(1)) for (const e of l.examples) expect(ids['ppv14']).toContain(e);
     expect(r.stderr).toMatch(/10 records replayed, 3 changed/);
