@@ -160,7 +160,8 @@ export class ImpactTally {
     this.compare(rec.id, outcomeOfRecord(rec), now);
   }
 
-  private compare(id: string, then: ComparableOutcome, now: ComparableOutcome): void {
+  /** Counts one record's change from `then` to `now` (add() does this after re-running a record). */
+  compare(id: string, then: ComparableOutcome, now: ComparableOutcome): void {
     const seen = new Set<keyof ChangedCounts>();
     const note = (dim: ChangeDimension, kind: string, from: string, to: string): void => {
       this.row(dim, kind, from, to, id);

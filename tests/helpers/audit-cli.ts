@@ -8,8 +8,17 @@ export interface CliResult { status: number | null; stdout: string; stderr: stri
  * keep-alive sockets are not left half-closed for the next fetch (as a blocked event loop would leave them).
  */
 export function auditCli(env: Record<string, string>, ...args: string[]): Promise<CliResult> {
+  return node(['--import', 'tsx', 'src/cli/audit.ts', ...args], env);
+}
+
+/** The package's own program (package.json "bin": bin/tidemark-audit.mjs), run as an installed bin would be. */
+export function auditBin(env: Record<string, string>, ...args: string[]): Promise<CliResult> {
+  return node(['bin/tidemark-audit.mjs', ...args], env);
+}
+
+function node(argv: string[], env: Record<string, string>): Promise<CliResult> {
   return new Promise((resolve, reject) => {
-    const c = spawn(process.execPath, ['--import', 'tsx', 'src/cli/audit.ts', ...args], { env: { ...process.env, ...env } });
+    const c = spawn(process.execPath, argv, { env: { ...process.env, ...env } });
     let stdout = '';
     let stderr = '';
     c.stdout.setEncoding('utf8').on('data', (d: string) => (stdout += d));

@@ -1,11 +1,11 @@
 // The audit command line's CSV export (one row per answer, RFC 4180, formula-safe) and `verify` on a path with no
 // audit file (an error, and no empty database left behind). Child processes over a real SQLite audit file.
-import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ADVICE_CASES } from '../helpers/advice-fixtures.js';
-import { auditCli } from '../helpers/audit-cli.js';
+import { auditBin, auditCli } from '../helpers/audit-cli.js';
 import { NOW, orderSelectRequest, prefetchOf } from '../helpers/hook-fixtures.js';
 import { post, startService, type Running } from '../helpers/server.js';
 
@@ -82,6 +82,18 @@ describe('export --format csv', () => {
     const nd = await cli('export');
     expect(nd.stdout.trim().split('\n').map((l) => JSON.parse(l).patientId)).toEqual(['-2-3', 'tm-pat-ward4-017']);
     expect((await cli('export', '--format', 'xlsx')).status).toBe(2);
+  });
+});
+
+describe('the tidemark-audit bin', () => {
+  it('runs the same commands, its stdout holding only the result', async () => {
+    const pkg = JSON.parse(readFileSync('package.json', 'utf8'));
+    expect(pkg.bin).toEqual({ 'tidemark-audit': 'bin/tidemark-audit.mjs' });
+    const v = await auditBin({ TIDEMARK_SQLITE_PATH: s.dbPath }, 'verify');
+    expect(v).toMatchObject({ status: 0, stdout: 'audit chain intact: 2 records\n' });
+    const e = await auditBin({ TIDEMARK_SQLITE_PATH: s.dbPath }, 'export');
+    expect(e.stdout.trim().split('\n').map((l) => JSON.parse(l).id)).toHaveLength(2);
+    expect((await auditBin({}, 'shred')).status).toBe(2);
   });
 });
 
