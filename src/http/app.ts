@@ -163,7 +163,7 @@ export function createApp(deps: AppDeps): express.Express {
     if (!body.success) throw new HttpError(400, 'invalid', 'invalid impact request', zodIssues(body.error.issues, 'body'));
     const { from, to } = body.data;
     const page = await impactPage(deps.store, { ...body.data, ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}) }, { catalogue: deps.catalogue, ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}) });
-    if (!page.ok) throw new HttpError(400, 'invalid', 'the candidate thresholds are invalid', [page.message]);
+    if (!page.ok) throw new HttpError(400, 'invalid', 'the candidate thresholds are invalid', [page.message.slice(0, 1000)]);
     res.json(page.body);
   });
   app.get('/audit/verify', audit, async (_req, res) => {
