@@ -16,6 +16,7 @@ import { resolveThresholds } from '../assess/thresholds.js';
 import { csvExportHeader, csvExportRow } from '../audit/export-csv.js';
 import { candidateThresholds, formatImpact, impactOf, type ImpactFormat } from '../audit/impact.js';
 import { openAuditStore } from '../audit/open-store.js';
+import { auditInstant } from '../audit/shared.js';
 import { replay } from '../audit/replay.js';
 import type { AdviceQuery, AuditStore, FeedbackRow, StoredAdvice } from '../audit/types.js';
 import { loadCatalogue } from '../cards/catalogue.js';
@@ -59,12 +60,13 @@ function flag(args: string[], name: string): string | undefined {
   return v;
 }
 
-function instant(args: string[], name: string): string | undefined {
+/** --from / --to: a date alone is the whole day (UTC), as in the audit API; both bounds inclusive. */
+function instant(args: string[], name: 'from' | 'to'): string | undefined {
   const v = flag(args, name);
   if (v === undefined) return undefined;
-  const t = new Date(v);
-  if (Number.isNaN(t.getTime())) throw new UsageError(`--${name} ${JSON.stringify(v)} is not an ISO 8601 date or time`);
-  return t.toISOString();
+  const t = auditInstant(v, name === 'to');
+  if (!t) throw new UsageError(`--${name} ${JSON.stringify(v)} is not an ISO 8601 date or time`);
+  return t;
 }
 
 function oneOf<T extends string>(args: string[], name: string, allowed: readonly T[], dflt: T): T {

@@ -11,6 +11,7 @@ import { evaluateHook, type EvaluateDeps } from '../hooks/evaluate.js';
 import { recordFeedback } from '../hooks/feedback.js';
 import { replay } from '../audit/replay.js';
 import { impactPage, impactRequestSchema } from '../audit/impact-request.js';
+import { auditInstant } from '../audit/shared.js';
 import { discoveryDocument, findService } from '../hooks/services.js';
 import { withDepthLimit } from './body-shape.js';
 import { HttpError, operationOutcome, zodIssues } from './errors.js';
@@ -214,9 +215,9 @@ export function createApp(deps: AppDeps): express.Express {
   return app;
 }
 
+/** A validated from/to bound (an ISO date or date-time, checked by the query schema) as the audit store compares it. */
 function toInstant(v: string, endOfDay = false): string {
-  if (/^\d{4}-\d{2}-\d{2}$/.test(v)) return `${v}T${endOfDay ? '23:59:59.999' : '00:00:00.000'}Z`;
-  return new Date(v).toISOString();
+  return auditInstant(v, endOfDay) as string;
 }
 
 function stringsOf(q: Request['query']): Record<string, string> {

@@ -164,6 +164,10 @@ describe('npm run -s audit -- impact', () => {
     const future = await cli('impact', '--thresholds', th, '--from', '2999-01-01', '--format', 'ndjson');
     expect(JSON.parse(future.stdout.split('\n')[0]!)).toMatchObject({ read: 0 });
     expect((await cli('impact', '--thresholds', th, '--from', 'yesterday')).status).toBe(2);
+    // A date alone as --to is the whole of that day (UTC), as in the audit API: today's records are all in.
+    const today = new Date().toISOString().slice(0, 10);
+    const inDay = await cli('impact', '--thresholds', th, '--to', today, '--format', 'ndjson');
+    expect(JSON.parse(inDay.stdout.split('\n')[0]!)).toMatchObject({ read: 10, replayed: 10 });
   });
 });
 
