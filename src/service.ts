@@ -45,7 +45,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE thresholds: ${(e as Error).message}`);
   }
   const { catalogue, digest } = loadCatalogue();
-  const version = rulesVersion(digest, thresholds);
+  const version = rulesVersion(digest, thresholds, undefined, cfg.siteMap);
   const auth = authConfigOf(cfg, 'issuers');
   // Audit readers are an allowlist of their own: a CDS issuer's token opens the audit API only if it is listed here too.
   const auditReaders = authConfigOf(cfg, 'auditReaders');
@@ -85,6 +85,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
       });
     },
     store, catalogue, catalogueDigest: digest, thresholds, rulesVersion: version, publicUrl, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
+    ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
     gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY,
       maxResponseBytes: cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES, maxCallBytes: cfg.TIDEMARK_FHIR_MAX_CALL_BYTES },
     now: opts.now ?? (() => new Date()),

@@ -8,7 +8,7 @@ export type {
   Phase, PhaseFinding, ResponsivenessFinding, SharedNumber, Tier, ToleranceDomain, ToleranceFinding, ToleranceLimit,
 } from './common/finding.js';
 
-/** How much the evidence that decided a verdict can bear (clinical-references §12, evidence tiers). */
+/** How much the evidence that decided a verdict can bear (docs/clinical-logic/index.md, evidence tiers). */
 export type Confidence = 'high' | 'moderate' | 'low';
 
 /** The test that would settle or confirm responsiveness (closed set; wording in cards/catalogue.json). */

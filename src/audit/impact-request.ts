@@ -6,6 +6,7 @@
  */
 import { z } from 'zod';
 import type { Catalogue } from '../cards/catalogue.js';
+import type { SiteMap } from '../fhir/site-map.js';
 import { rulesVersion } from '../config/rules-version.js';
 import { candidateThresholds, impactOf, type ImpactReport } from './impact.js';
 import type { AuditStore } from './types.js';
@@ -31,7 +32,7 @@ export async function impactPage(
   store: AuditStore,
   /** The request with `from` and `to` as instants (a date alone is the start, or the end, of that day in UTC). */
   req: ImpactRequest,
-  ctx: { catalogue: Catalogue; catalogueDigest?: string },
+  ctx: { catalogue: Catalogue; catalogueDigest?: string; siteMap?: SiteMap },
 ): Promise<{ ok: true; body: { report: ImpactReport; next?: { after: number } } } | { ok: false; message: string }> {
   const cand = candidateThresholds(req.thresholds);
   if (!cand.ok) return cand;
@@ -41,7 +42,7 @@ export async function impactPage(
     ...(req.after !== undefined ? { afterSeq: req.after } : {}),
   });
   const report = await impactOf(records, {
-    thresholds: cand.thresholds, catalogue: ctx.catalogue, rulesVersion: rulesVersion(ctx.catalogueDigest ?? 'unknown', cand.thresholds),
+    thresholds: cand.thresholds, catalogue: ctx.catalogue, rulesVersion: rulesVersion(ctx.catalogueDigest ?? 'unknown', cand.thresholds, undefined, ctx.siteMap),
   }, { maxRecords: req.limit });
   return { ok: true, body: { report, ...(report.more && report.lastSeq !== undefined ? { next: { after: report.lastSeq } } : {}) } };
 }

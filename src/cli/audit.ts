@@ -116,7 +116,7 @@ function progressBar(err: NodeJS.WriteStream): { tick(n: number): void; done(): 
 
 type Io = { out: NodeJS.WritableStream; err: NodeJS.WriteStream; env: NodeJS.ProcessEnv };
 
-async function impact(store: AuditStore, args: string[], io: Io): Promise<number> {
+async function impact(store: AuditStore, cfg: AppConfig, args: string[], io: Io): Promise<number> {
   const path = flag(args, 'thresholds');
   if (!path) throw new UsageError('impact needs --thresholds FILE (candidate thresholds, the shape of the configuration file\'s "thresholds")');
   const format = oneOf<ImpactFormat>(args, 'format', ['table', 'csv', 'ndjson'], 'table');
@@ -135,7 +135,7 @@ async function impact(store: AuditStore, args: string[], io: Io): Promise<number
   const bar = progressBar(io.err);
   const report = await impactOf(
     store.records({ outcome: 'answered', ...(from ? { from } : {}), ...(to ? { to } : {}), ...(service ? { service } : {}) }),
-    { thresholds: cand.thresholds, catalogue: loaded.catalogue, rulesVersion: rulesVersion(loaded.digest, cand.thresholds) },
+    { thresholds: cand.thresholds, catalogue: loaded.catalogue, rulesVersion: rulesVersion(loaded.digest, cand.thresholds, undefined, cfg.siteMap) },
     { onProgress: (n) => bar.tick(n) },
   );
   bar.done();
@@ -180,11 +180,11 @@ export async function run(argv: string[], io: Io = { out: process.stdout, err: p
       const rec = await store.get(id);
       if (!rec) return (io.err.write(`no advice record ${id}\n`), 1);
       const thresholds = resolveThresholds(cfg.file.thresholds ?? {});
-      const diff = replay(rec, thresholds, rulesVersion(loadCatalogue().digest, thresholds));
+      const diff = replay(rec, thresholds, rulesVersion(loadCatalogue().digest, thresholds, undefined, cfg.siteMap));
       io.out.write(`${JSON.stringify(diff ?? { note: 'no snapshot to replay (a 412 answer)' }, null, 2)}\n`);
       return 0;
     }
-    return await impact(store, args, io);
+    return await impact(store, cfg, args, io);
   } catch (e) {
     if (e instanceof UsageError) return (io.err.write(`${e.message}\n`), 2);
     throw e;

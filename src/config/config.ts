@@ -4,7 +4,9 @@
  * start-up with a message that names the variable.
  */
 import { readFileSync } from 'node:fs';
+import { dirname, resolve } from 'node:path';
 import { z } from 'zod';
+import { parseSiteMap, SiteMapError, type SiteMap } from '../fhir/site-map.js';
 import { DEFAULT_BYTE_CAPS } from '../fhir/fetcher.js';
 
 const intFrom = (min: number, max: number) => z.coerce.number().int().min(min).max(max);
@@ -56,6 +58,13 @@ export const fileSchema = z
     maxTokenAgeSeconds: z.unknown().optional(),
     algorithms: z.unknown().optional(),
     corsOrigins: z.array(z.string()).optional(),
+    /**
+     * The site's FHIR R4 ConceptMaps (docs/integration.md): each a file path (relative to this file) or the
+     * ConceptMap itself. Checked at start by src/fhir/site-map.ts; part of the rules version.
+     */
+    conceptMaps: z.array(z.union([z.string().min(1), z.record(z.string(), z.unknown())])).max(50).optional(),
+    /** Site unit text → UCUM code, for unit text that is not UCUM (docs/integration.md). Part of the rules version. */
+    unitHints: z.record(z.string(), z.string()).optional(),
   })
   .strict();
 
@@ -67,6 +76,8 @@ export interface AppConfig extends Omit<EnvConfig, 'HOST'> {
   /** Whether HOST was set, or is the default (127.0.0.1 in trial mode, 0.0.0.0 otherwise). */
   hostFromEnv: boolean;
   file: FileConfig;
+  /** The site's maps and unit hints, checked (absent: none). */
+  siteMap?: SiteMap;
 }
 
 export class ConfigError extends Error {
@@ -100,5 +111,30 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
   }
   // Trial mode takes calls without a token and has a well-known audit token: it stays on loopback unless asked.
   const host = cfg.HOST ?? (cfg.TIDEMARK_TRIAL_MODE ? '127.0.0.1' : '0.0.0.0');
-  return { ...cfg, HOST: host, hostFromEnv: cfg.HOST !== undefined, file };
+  const siteMap = loadSiteMap(file, cfg.TIDEMARK_CONFIG_FILE ? dirname(resolve(cfg.TIDEMARK_CONFIG_FILE)) : process.cwd());
+  return { ...cfg, HOST: host, hostFromEnv: cfg.HOST !== undefined, file, ...(siteMap ? { siteMap } : {}) };
+}
+
+/**
+ * Reads the ConceptMap files named in the configuration file (paths relative to it) and checks maps and unit
+ * hints. Throws ConfigError naming the element at fault (`conceptMaps[0].group[1].element[3].target[0].code`).
+ */
+export function loadSiteMap(file: FileConfig, baseDir: string): SiteMap | undefined {
+  if (!file.conceptMaps?.length && !file.unitHints) return undefined;
+  const names: string[] = [];
+  const maps = (file.conceptMaps ?? []).map((m, i) => {
+    if (typeof m !== 'string') return (names.push(''), m);
+    names.push(m);
+    try {
+      return JSON.parse(readFileSync(resolve(baseDir, m), 'utf8')) as unknown;
+    } catch (e) {
+      throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE conceptMaps[${i}] (${m}) could not be read as JSON: ${(e as Error).message}`);
+    }
+  });
+  try {
+    return parseSiteMap(maps, file.unitHints ?? {}, names);
+  } catch (e) {
+    if (e instanceof SiteMapError) throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE ${e.message}`);
+    throw e;
+  }
 }

@@ -1,12 +1,13 @@
 /**
  * Rules version = package version + digest of the card catalogue, the active thresholds and the value sets
  * (design: replay). The value sets (src/fhir/value-sets/*.json) decide which conditions, rhythms and fluids are
- * recognised, so a changed code changes the output and must change the version.
+ * recognised, so a changed code changes the output and must change the version. The site's maps too, when any.
  */
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { canonicalJson } from '../audit/chain.js';
+import type { SiteMap } from '../fhir/site-map.js';
 import { VALUE_SETS } from '../fhir/value-sets.js';
 
 const pkg = JSON.parse(readFileSync(fileURLToPath(new URL('../../package.json', import.meta.url)), 'utf8')) as { version: string };
@@ -19,6 +20,11 @@ export function valueSetsDigest(valueSets: unknown = VALUE_SETS): string {
   return digest8(valueSets);
 }
 
-export function rulesVersion(catalogueDigest: string, thresholds: unknown, valueSets: unknown = VALUE_SETS): string {
-  return `${PACKAGE_VERSION}+c${catalogueDigest.slice(0, 8)}.t${digest8(thresholds)}.v${valueSetsDigest(valueSets)}`;
+/**
+ * `siteMap`: the site's ConceptMaps and unit hints (src/fhir/site-map.ts) decide which site codes and unit texts are
+ * read, so when any is configured their digest is added (`.m…`): replay then knows which mapping was in force.
+ */
+export function rulesVersion(catalogueDigest: string, thresholds: unknown, valueSets: unknown = VALUE_SETS, siteMap?: SiteMap): string {
+  const site = siteMap && (siteMap.configured.conceptMaps.length || Object.keys(siteMap.configured.unitHints).length) ? `.m${digest8(siteMap.configured)}` : '';
+  return `${PACKAGE_VERSION}+c${catalogueDigest.slice(0, 8)}.t${digest8(thresholds)}.v${valueSetsDigest(valueSets)}${site}`;
 }

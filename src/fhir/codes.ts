@@ -1,8 +1,8 @@
 /**
  * Code lists: which FHIR codes map to which measurement kind, and the canonical UCUM unit of each kind.
  *
- * LOINC codes come from ../shared/clinical-references.md §10 (seen in public FHIR profiles: the German
- * Medical Informatics Initiative ICU module, the GECCO code list, the FHIR R4 vital-signs value set).
+ * LOINC codes are those seen in public FHIR profiles (the German
+ * Medical Informatics Initiative ICU module, the GECCO code list, the FHIR R4 vital-signs value set; docs/codes.md).
  * Markers that have no LOINC code (PPV, SVV, IVC diameters, VExUS parts, oedema grade, dynamic tests,
  * ventilation state) use Tidemark's own CodeSystem, published in docs/codes.md so that integrators can map
  * their local codes to it. We never guess a LOINC code.

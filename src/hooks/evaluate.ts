@@ -11,6 +11,7 @@ import type { Catalogue } from '../cards/catalogue.js';
 import { composeCards } from '../cards/compose.js';
 import { renderCard } from '../cards/render.js';
 import { gather, fhirFetcher, type GatherOptions, type GatherOutcome } from '../fhir/gather.js';
+import type { SiteMap } from '../fhir/site-map.js';
 import { HttpError, zodIssues } from '../http/errors.js';
 import { buildSnapshot } from '../snapshot/normalize.js';
 import { HOOK_CONTEXT_SCHEMAS, hookRequestSchema, type Card, type HookName, type HookResponse } from './schemas.js';
@@ -25,6 +26,8 @@ export interface EvaluateDeps {
   publicUrl: string;
   now: () => Date;
   makeFetcher?: typeof fhirFetcher;
+  /** The site's ConceptMaps and unit hints (src/fhir/site-map.ts); none by default. */
+  siteMap?: SiteMap;
   /** The FHIR server origins a trusted issuer's calls may name (its `fhirServers`); undefined: any. */
   fhirServersFor?: (issuer: string) => readonly string[] | undefined;
   log: { info(o: object, m?: string): void; warn(o: object, m?: string): void; error(o: object, m?: string): void };
@@ -114,7 +117,7 @@ async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: E
   const snapshot = buildSnapshot(gathered.resources as FhirResource[], {
     patientId: ctx.patientId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}),
     ...(ctx.selections ? { selections: ctx.selections } : {}), ...(ctx.draftOrders ? { draftOrders: ctx.draftOrders } : {}),
-  }, now);
+  }, now, deps.siteMap);
   const advice = assess(snapshot, now, deps.thresholds, deps.rulesVersion);
   for (const e of advice.ruleErrors) deps.log.error({ hookInstance: req.hookInstance, ruleId: e.ruleId }, 'a rule failed; its findings are left out');
   const purposes = Object.fromEntries(Object.entries(service.prefetch).map(([k, q]) => [k, q.purpose]));

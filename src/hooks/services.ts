@@ -3,6 +3,7 @@
  * of them it cannot do without. Discovery is generated from this list; code never branches on service ids.
  */
 import { CODED_OBSERVATION_CODES, DYNAMIC_TEST_CODES, OBSERVATION_CODES, type NumericKind } from '../fhir/codes.js';
+import type { SiteMap } from '../fhir/site-map.js';
 import type { DiscoveryService, HookName } from './schemas.js';
 
 export interface PrefetchQuery {
@@ -109,14 +110,38 @@ export const SERVICES: readonly ServiceDefinition[] = [
   },
 ];
 
-export function findService(id: string): ServiceDefinition | undefined {
-  return SERVICES.find((s) => s.id === id);
+export function findService(id: string, services: readonly ServiceDefinition[] = SERVICES): ServiceDefinition | undefined {
+  return services.find((s) => s.id === id);
+}
+
+/**
+ * The services as a site with these maps runs them: every Observation search that asks for a Tidemark code also asks
+ * for the site codes read as it (src/fhir/site-map.ts), so that a hospital's server returns them and the EHR's
+ * prefetch (from discovery) includes them. Without maps, the registry itself.
+ */
+export function servicesFor(siteMap: SiteMap | undefined): readonly ServiceDefinition[] {
+  if (!siteMap || siteMap.read.size === 0) return SERVICES;
+  const sources = new Map<string, string[]>();
+  for (const [source, site] of siteMap.read) {
+    const target = `${site.target.system}|${site.target.code}`;
+    sources.set(target, [...(sources.get(target) ?? []), source]);
+  }
+  const widen = (template: string): string =>
+    template.replace(/([?&]code=)([^&]*)/, (_m, head: string, list: string) => {
+      const codes = list.split(',');
+      const added = codes.flatMap((c) => sources.get(c) ?? []).filter((c) => !codes.includes(c));
+      return `${head}${[...codes, ...new Set(added)].join(',')}`;
+    });
+  return SERVICES.map((s) => ({
+    ...s,
+    prefetch: Object.fromEntries(Object.entries(s.prefetch).map(([k, q]) => [k, { ...q, template: widen(q.template) }])),
+  }));
 }
 
 /** Discovery entries generated from the registry (CDS Hooks 2.0 §Discovery). */
-export function discoveryDocument(): { services: DiscoveryService[] } {
+export function discoveryDocument(services: readonly ServiceDefinition[] = SERVICES): { services: DiscoveryService[] } {
   return {
-    services: SERVICES.map((s) => ({
+    services: services.map((s) => ({
       hook: s.hook,
       title: s.title,
       description: s.description,

@@ -12,7 +12,7 @@ import { recordFeedback } from '../hooks/feedback.js';
 import { replay } from '../audit/replay.js';
 import { impactPage, impactRequestSchema } from '../audit/impact-request.js';
 import { auditInstant } from '../audit/shared.js';
-import { discoveryDocument, findService } from '../hooks/services.js';
+import { discoveryDocument, findService, servicesFor } from '../hooks/services.js';
 import { withDepthLimit } from './body-shape.js';
 import { HttpError, operationOutcome, zodIssues } from './errors.js';
 
@@ -104,12 +104,14 @@ export function createApp(deps: AppDeps): express.Express {
     }
   });
 
+  // With site maps, the searches also ask for the site codes read as Tidemark's (src/hooks/services.ts servicesFor).
+  const services = servicesFor(deps.siteMap);
   app.get('/cds-services', cds, (_req, res) => {
-    res.json(discoveryDocument());
+    res.json(discoveryDocument(services));
   });
 
   app.post('/cds-services/:id', cds, json, async (req: Request, res: Response) => {
-    const service = findService(String(req.params['id']));
+    const service = findService(String(req.params['id']), services);
     if (!service) throw new HttpError(404, 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
     const pending = evaluateHook(service, req.body, deps, res.locals['client'] as never);
     // The parsed body (about 100 KB of objects for the benchmark's full prefetch) is not needed while the audit commit is
@@ -163,7 +165,9 @@ export function createApp(deps: AppDeps): express.Express {
     const body = impactRequestSchema.safeParse(req.body);
     if (!body.success) throw new HttpError(400, 'invalid', 'invalid impact request', zodIssues(body.error.issues, 'body'));
     const { from, to } = body.data;
-    const page = await impactPage(deps.store, { ...body.data, ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}) }, { catalogue: deps.catalogue, ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}) });
+    const page = await impactPage(deps.store, { ...body.data, ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}) }, {
+      catalogue: deps.catalogue, ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}), ...(deps.siteMap ? { siteMap: deps.siteMap } : {}),
+    });
     if (!page.ok) throw new HttpError(400, 'invalid', 'the candidate thresholds are invalid', [page.message.slice(0, 1000)]);
     res.json(page.body);
   });

@@ -13,6 +13,7 @@ import {
 } from '../fhir/codes.js';
 import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
 import { convert, MAX_UNIT_LENGTH, toCanonical } from '../fhir/units.js';
+import { EMPTY_SITE_MAP, siteCodeOf, type SiteCode, type SiteMap } from '../fhir/site-map.js';
 import { rhythmAnswerOf } from '../fhir/value-sets.js';
 import { isoInstant, parseTimeMs } from './time.js';
 import type {
@@ -83,7 +84,8 @@ const TYPES_READ: ReadonlySet<string> = new Set(['Patient', 'Encounter', 'Observ
 /** Longest reason kept for a left-out resource (our own bound). */
 const MAX_DETAIL_LENGTH = 300;
 
-export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotContext, now: Date): PatientSnapshot {
+/** `siteMap`: the site's ConceptMaps and unit hints, loaded and checked at start (src/fhir/site-map.ts); none by default. */
+export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotContext, now: Date, siteMap: SiteMap = EMPTY_SITE_MAP): PatientSnapshot {
   const nowMs = now.getTime();
   const patientRef = `Patient/${ctx.patientId}`;
   const excluded: Exclusion[] = [];
@@ -153,12 +155,20 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     }
   }
 
+  /** The numeric kind of a code: a code Tidemark reads itself first, else a site code read through the site's maps. */
+  function numericOf(codings: NonNullable<Observation['code']['coding']>): { kind: NumericKind | undefined; site: SiteCode | undefined } {
+    const own = NUMERIC_KIND_OF(codings);
+    const site = own ? undefined : siteCodeOf(siteMap, codings);
+    return { kind: own ?? site?.kind, site };
+  }
+
   function readObservation(o: Observation, ref: string): void {
     const codings = o.code?.coding ?? [];
-    const numericKind = NUMERIC_KIND_OF(codings);
+    const numeric = numericOf(codings);
+    const numericKind = numeric.kind;
     const codedKind = CODED_KIND_OF(codings);
     const dynamicKind = DYNAMIC_KIND_OF(codings);
-    const componentKinds = (o.component ?? []).map((c) => ({ c, kind: NUMERIC_KIND_OF(c.code?.coding ?? []) }));
+    const componentKinds = (o.component ?? []).map((c) => ({ c, ...numericOf(c.code?.coding ?? []) }));
     const readable = numericKind || codedKind || dynamicKind || componentKinds.some((x) => x.kind);
     if (!readable) return; // not one of ours: ignored (a search may return more than we asked)
     const kindName = numericKind ?? codedKind ?? dynamicKind ?? 'panel';
@@ -183,28 +193,32 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
       coded.push({ kind: codedKind, answer, original: { system: orig.system ?? '', code: orig.code ?? '', ...(orig.display ? { display: orig.display } : {}) }, effective, ageMinutes: age(effective), ref });
       return;
     }
-    if (numericKind && o.valueQuantity) addQuantity(numericKind, o.valueQuantity, ref, effective, periodStart, codingRead(codings, numericKind));
+    if (numericKind && o.valueQuantity) addQuantity(numericKind, o.valueQuantity, ref, effective, periodStart, numeric.site ?? codingRead(codings, numericKind));
     else if (numericKind && !componentKinds.some((x) => x.kind)) {
       exclude(ref, 'no-value', o.dataAbsentReason ? `no value: ${conceptText(o.dataAbsentReason) || 'data absent'}` : 'no valueQuantity', numericKind);
     }
-    for (const { c, kind } of componentKinds) {
+    for (const { c, kind, site } of componentKinds) {
       if (!kind) continue;
-      if (c.valueQuantity) addQuantity(kind, c.valueQuantity, ref, effective, periodStart, codingRead(c.code?.coding ?? [], kind));
+      if (c.valueQuantity) addQuantity(kind, c.valueQuantity, ref, effective, periodStart, site ?? codingRead(c.code?.coding ?? [], kind));
       else exclude(ref, 'no-value', 'component has no valueQuantity', kind);
     }
   }
 
-  function addQuantity(kind: NumericKind, q: Quantity, ref: string, effective: string, periodStart: string | undefined, code: { system: string; code: string } | undefined): void {
+  function addQuantity(kind: NumericKind, q: Quantity, ref: string, effective: string, periodStart: string | undefined, read: { system: string; code: string } | SiteCode | undefined): void {
+    const site = read && 'source' in read ? read : undefined;
+    const code = read && 'source' in read ? read.source : read;
     if (typeof q.value !== 'number' || !Number.isFinite(q.value)) return void exclude(ref, 'no-value', 'value is not a number', kind);
     if (q.comparator) return void exclude(ref, 'censored-value', `value is ${q.comparator}${q.value}: a limit, not a measurement`, kind);
     const unit = q.system === 'http://unitsofmeasure.org' && q.code ? q.code : (q.unit ?? q.code);
-    const conv = toCanonical(kind, q.value, unit);
+    const hinted = unit === undefined ? undefined : siteMap.unitHints.get(unit.trim());
+    const conv = toCanonical(kind, q.value, hinted ?? unit);
     if (!conv.ok) return void exclude(ref, conv.reason, conv.detail, kind);
     const [lo, hi] = KIND_BOUNDS[kind];
     if (conv.value < lo || conv.value > hi) return void exclude(ref, 'impossible-value', `${round(conv.value)} ${conv.unit} is outside ${lo}–${hi}`, kind);
     measurements.push({
       kind, value: conv.value, unit: conv.unit,
       original: { value: q.value, unit: unit ?? '', code: code?.code ?? '', system: code?.system ?? '' },
+      ...(site ? { readAs: { ...site.target, equivalence: site.equivalence, map: site.map } } : {}), ...(hinted ? { unitReadAs: hinted } : {}),
       effective, ...(periodStart ? { periodStart } : {}), ageMinutes: age(effective), ref,
     });
   }

@@ -15,7 +15,15 @@ export interface Measurement {
   value: number;
   /** Canonical UCUM unit of `kind`. */
   unit: string;
+  /** As the record carried it: value, unit text, and the code that was read (a site's own code when read through a map). */
   original: { value: number; unit: string; code: string; system: string };
+  /**
+   * Set when the code was read through a site ConceptMap (src/fhir/site-map.ts): the Tidemark code it was read as,
+   * with the map's equivalence and which map said so. `original` keeps the site's code.
+   */
+  readAs?: { system: string; code: string; equivalence: string; map: string };
+  /** Set when the unit text was read through the site's unit hints: the UCUM code it was taken to mean. */
+  unitReadAs?: string;
   /** ISO 8601 instant (UTC) of effectiveDateTime, or the end of effectivePeriod. */
   effective: string;
   /** Start of the period for amounts over a period (intake, output, urine), when the source had one. */

@@ -4,7 +4,7 @@
 // Checks, with their outside references: the FHIR R4 validator (src/fhir/validator.ts) on every chart; the FHIR
 // search semantics of each prefetch template (token OR lists, reference Patient/id, _sort=-date, _count, paging);
 // the CDS Hooks 2.0 card schema (src/hooks/schemas.ts); and the direction a careful intensivist would give
-// (each scenario's `expect`, the clinical reasoning in ../shared/clinical-references.md).
+// (each scenario's `expect`, the clinical reasoning in docs/clinical-logic/).
 import type { Bundle, Condition, FhirResource, MedicationRequest, Observation } from 'fhir/r4.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { SCENARIOS, hookContext, scenarioBundle, serviceIdFor } from '../../examples/scenarios/index.js';

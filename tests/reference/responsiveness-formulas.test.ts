@@ -1,6 +1,6 @@
 /**
  * Reference checks for the responsiveness formulas. Each expected value is worked out by hand from the published
- * formula (arithmetic shown beside it), with the source named; clinical-references.md §1–§6 lists the same values.
+ * formula (arithmetic shown beside it), with the source named.
  */
 import { describe, expect, it } from 'vitest';
 import { heartRateRespiratoryRateRatio } from '../../src/physiology/heart-rate-respiratory-rate-ratio.js';

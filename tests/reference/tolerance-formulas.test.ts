@@ -1,6 +1,6 @@
 /**
  * Published check values for the tolerance formulas, the source named beside each.
- * Arithmetic examples come from /work/shared/clinical-references.md §7, §9 and §5.
+ * Arithmetic examples are worked on the published formulas named beside each check.
  */
 import { describe, expect, it } from 'vitest';
 import { percentFluidOverload, fluidOverloadBand } from '../../src/physiology/fluid-overload.js';
@@ -74,7 +74,7 @@ describe('volume kinetics', () => {
     expect(crystalloidIntravascularAfterDistributionMl(500)).toBe(125);
     expect(intravascularEstimate(500, 'balanced-crystalloid', DEFAULT_ORDER_THRESHOLDS)?.values['intravascularAfterDistributionMl']).toBe(130); // 10-mL steps
   });
-  it('the rule of thumb (a third, common practice, clinical-references §11) is shown beside the published figure only', () => {
+  it('the rule of thumb (a third, common practice) is shown beside the published figure only', () => {
     const est = intravascularEstimate(500, 'balanced-crystalloid', DEFAULT_ORDER_THRESHOLDS);
     expect(roundToStep(crystalloidIntravascularAfterDistributionMl(500, 1 / 3), 10)).toBe(170);
     expect(est?.values['ruleOfThumbMl']).toBe(170);

@@ -121,7 +121,7 @@ describe('fluids: RxNorm clinical-drug names and codes', () => {
   it.each(FLUID_SET.fluids.filter((f) => f.rxcui).map((f) => [f.rxcui!, f.fluidClass] as const))('RxNorm %s is read by code as %s', (rxcui, cls) => {
     expect(classifyFluid({ coding: [{ system: FLUID_SET.rxnormSystem, code: rxcui }] })).toBe(cls);
   });
-  it('313002 is Sodium Chloride 9 MG/ML Injectable Solution (clinical-references §10, seen in a public data file)', () => {
+  it('313002 is Sodium Chloride 9 MG/ML Injectable Solution (seen in a public data file)', () => {
     expect(FLUID_SET.fluids.find((f) => f.rxcui === '313002')?.name).toBe('Sodium Chloride 9 MG/ML Injectable Solution');
   });
 });

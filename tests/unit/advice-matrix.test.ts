@@ -1,5 +1,5 @@
 /**
- * The advice in codes (clinical-references §12): the matrix cell by cell, early resuscitation before it, the need
+ * The advice in codes (docs/clinical-logic/index.md): the matrix cell by cell, early resuscitation before it, the need
  * check, critical only with harm signs, and the closed sets of headline keys and alternatives.
  */
 import { describe, expect, it } from 'vitest';

@@ -1,5 +1,5 @@
 /**
- * Truth tables for the need (perfusion) signs, the need verdict and the phase (clinical-references §12,
+ * Truth tables for the need (perfusion) signs, the need verdict and the phase (docs/clinical-logic/index.md,
  * "Responsiveness is not an indication" and "Phases of fluid therapy"). Each sign: present, absent, stale, boundary.
  * MAP < 65 mmHg (SSC 2021), lactate > 2 mmol/L (Sepsis-3), capillary refill > 3 s (ANDROMEDA-SHOCK), urine output
  * < 0.5 mL/kg/h over 6 h (KDIGO 2012), rising vasoactive support; shock index as context only.

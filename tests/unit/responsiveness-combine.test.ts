@@ -1,5 +1,5 @@
 /**
- * Evidence tiers and confidence (clinical-references §12, "Evidence tiers"): a dynamic test with a flow measurement or
+ * Evidence tiers and confidence (docs/clinical-logic/index.md, "Evidence tiers"): a dynamic test with a flow measurement or
  * a valid PPV/SVV decides; statics only corroborate — two agreeing statics give at most a LOW-confidence verdict, a
  * conflict gives indeterminate, a single static never decides. Plus the next test, defaults and rule-error isolation.
  */

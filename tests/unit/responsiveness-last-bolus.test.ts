@@ -1,5 +1,5 @@
 /**
- * Truth table for 'responsiveness.last-bolus' (clinical-references §12, "Events make evidence old"). Defaults: bolus
+ * Truth table for 'responsiveness.last-bolus' (docs/clinical-logic/index.md, "Events make evidence old"). Defaults: bolus
  * ≥ 250 mL over ≤ 60 min, completed, started within 240 min.
  * - Dense monitor data (Aya HD et al., Crit Care Med 2016;44:880: the flow response peaks ~1 min after the end and fades
  *   within ~10 min): a flow reading ≤ 10 min before the start, one ≤ 10 min after the end, no gap > 5 min → a

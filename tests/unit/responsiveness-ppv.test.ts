@@ -1,6 +1,6 @@
 /**
  * Truth tables for 'responsiveness.ppv' and 'responsiveness.svv' and their validity conditions, read by the direction
- * of the error (clinical-references §12; Michard, Chemla, Teboul, Crit Care 2015;19:144; Monnet, Marik, Teboul, Ann
+ * of the error (docs/clinical-logic/index.md; Michard, Chemla, Teboul, Crit Care 2015;19:144; Monnet, Marik, Teboul, Ann
  * Intensive Care 2016;6:111, Table 2). Boundaries (docs/clinical-logic/responsiveness.md): PPV ≥ 13 % for, < 9 %
  * against, 9 ≤ PPV < 13 grey zone; SVV ≥ 11.6 for, < 9.7 against; Vt ≥ 8 mL/kg PBW; HR/RR strictly > 3.6; IAP < 12
  * mmHg; fresh when age ≤ 60 min (§12) and not set aside by a later fluid or vasoactive change.

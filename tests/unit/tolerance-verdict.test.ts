@@ -11,7 +11,7 @@ import { SNOMED } from '../../src/fhir/codes.js';
 const f = (ruleId: string, domain: ToleranceDomain, l: ToleranceLimit, context = false) =>
   assessed({ ruleId, domain, limit: l, text: `${ruleId} ${l}`, evidence: [], source: 'test', context });
 
-describe('toleranceVerdict (clinical-references §12, "Tolerance")', () => {
+describe('toleranceVerdict (docs/clinical-logic/index.md, "Tolerance")', () => {
   it('a severe lung, venous or balance finding → poor, deciding rules named', () => {
     const v = toleranceVerdict([f('a', 'lungs', 'severe'), f('b', 'kidneys', 'moderate'), f('c', 'venous', 'none')], T);
     expect(v).toMatchObject({ value: 'poor', decidingRules: ['a', 'b'] });

@@ -1,6 +1,6 @@
 /**
  * adviseOrder: the verdicts (responsiveness with its confidence, tolerance, need, phase) and the findings → one
- * recommendation in codes. Pure; names options, never doses drugs. Order of precedence (clinical-references §12):
+ * recommendation in codes. Pure; names options, never doses drugs. Order of precedence (docs/clinical-logic/index.md):
  *   1. early resuscitation of shock → resuscitate-and-reassess; never a withdrawal (with harm signs: smaller aliquot);
  *   2. later, a response likely (or untested) but no current sign of hypoperfusion → question-need, never "give";
  *   3. the matrix (matrix.ts); a critical indicator only with poor tolerance and a harm sign.

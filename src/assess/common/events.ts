@@ -1,5 +1,5 @@
 /**
- * Events that make evidence old (clinical-references §12, "Events make evidence old"): a fluid of at least
+ * Events that make evidence old (docs/clinical-logic/index.md, "Events make evidence old"): a fluid of at least
  * `fluidEventMinMl` (default 100 mL) started, or a vasoactive started, stopped or changed in rate. A dynamic test or
  * a PPV/SVV taken before such an event no longer describes the patient and is set aside with that reason.
  */

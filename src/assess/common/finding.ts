@@ -24,7 +24,7 @@ export type Freshness = 'fresh' | 'stale' | 'missing';
 export type GapKind =
   | 'missing' | 'stale' | 'set-aside' | 'invalid' | 'outside-validity' | 'confounded' | 'too-few-readings' | 'not-applicable' | 'rule-error';
 
-/** A number that more than one question could use; it counts once (clinical-references §12). */
+/** A number that more than one question could use; it counts once (docs/clinical-logic/index.md). */
 export type SharedNumber = 'cvp';
 
 export type Figures = Record<string, number | string | boolean>;
@@ -58,7 +58,7 @@ export interface ResponsivenessFinding extends FindingBase {
   topic: 'responsiveness';
   marker: Marker;
   direction?: Direction;
-  /** dynamic decides; static only corroborates; context never votes (clinical-references §12, evidence tiers). */
+  /** dynamic decides; static only corroborates; context never votes (docs/clinical-logic/index.md, evidence tiers). */
   tier?: Tier;
   /** Conditions assumed because they were not charted (e.g. "chest closed"), said on the card. */
   assumptions?: string[];

@@ -1,7 +1,7 @@
 /**
  * The one way every rule picks data from a snapshot: usable readings of a kind (newest first), the latest one
  * judged against its window (fresh, stale, missing, invalid), and set aside when an event since then (a fluid of
- * ≥ 100 mL, a vasoactive change) means it no longer describes the patient (clinical-references §12).
+ * ≥ 100 mL, a vasoactive change) means it no longer describes the patient (docs/clinical-logic/index.md).
  * Age is computed from the injected `now`, never from the clock. Sorting is total (time, then reference, then
  * content) so that no result depends on the order of the snapshot arrays.
  */

@@ -1,5 +1,5 @@
 /**
- * Time windows shared by every question (clinical-references §12, "Windows that fit hourly charting": nurse-validated
+ * Time windows shared by every question (docs/clinical-logic/index.md, "Windows that fit hourly charting": nurse-validated
  * vitals hourly with some lag, CVP hourly, labs every 4–12 h). One window per kind of reading, used by all rules
  * that read it, so that one reading is fresh for one question exactly when it is fresh for the other. Each is a
  * site-overridable threshold (`thresholds.windows`), minutes unless the name says otherwise.

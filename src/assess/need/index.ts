@@ -1,6 +1,6 @@
 /**
  * Need and phase: is there anything to treat (a fresh sign of hypoperfusion), and is this early resuscitation of
- * shock or a later phase (clinical-references §12). Pure. May import: ../common, ../types, ../tolerance (weights,
+ * shock or a later phase (docs/clinical-logic/index.md). Pure. May import: ../common, ../types, ../tolerance (weights,
  * urine intervals), ../../physiology.
  */
 import type { PerfusionFinding, PhaseFinding } from '../common/finding.js';

@@ -1,5 +1,5 @@
 /**
- * Phase of fluid therapy (clinical-references §12; Malbrain MLNG et al., Ann Intensive Care 2018;8:66 [M]): early
+ * Phase of fluid therapy (docs/clinical-logic/index.md; Malbrain MLNG et al., Ann Intensive Care 2018;8:66 [M]): early
  * resuscitation of shock versus the later phases. Early resuscitation holds when
  *   - shock is present now: MAP below target (vitals window) or lactate ≥ `earlyLactateMmolL` (lactate window), and
  *   - it began at most `earlyPhaseHours` ago: the admission time, else the earliest such sign in `onsetLookbackHours`, and

@@ -1,5 +1,5 @@
 /**
- * Signs of hypoperfusion, each fresh by its own window (clinical-references §12, "Responsiveness is not an
+ * Signs of hypoperfusion, each fresh by its own window (docs/clinical-logic/index.md, "Responsiveness is not an
  * indication"): MAP below target (SSC 2021), lactate > 2 mmol/L (Sepsis-3), capillary refill > 3 s
  * (ANDROMEDA-SHOCK), urine output < 0.5 mL/kg/h over 6 h (KDIGO 2012), rising vasoactive support (common practice).
  * The shock index is shown as context and never counts as a sign.

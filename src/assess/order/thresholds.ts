@@ -8,7 +8,7 @@ export const orderThresholdsSchema = z
   .strictObject({
     /** Share of a crystalloid left in the vessels once distributed: about a quarter (published: saline PV:ISF ≈ 1:3, Ernest D et al., Crit Care Med 1999;27:46; 9 % after cardiac surgery, Ernest 2001). */
     crystalloidRetainedFraction: z.number().gt(0).max(1).default(0.25),
-    /** The bedside rule of thumb, shown beside the published figure only: about a third (common practice, clinical-references §11). */
+    /** The bedside rule of thumb, shown beside the published figure only: about a third (common practice). */
     crystalloidRuleOfThumbFraction: z.number().gt(0).max(1).default(1 / 3),
     /** Crystalloid plasma expansion while infusing: 50–60 % (Hahn RG, Acta Anaesthesiol Scand 2020). */
     crystalloidDuringInfusionLowFraction: z.number().gt(0).max(1).default(0.5),

@@ -1,6 +1,6 @@
 /**
  * Combination of the responsiveness findings into one verdict with its confidence, by evidence tier
- * (clinical-references §12, "Evidence tiers"):
+ * (docs/clinical-logic/index.md, "Evidence tiers"):
  *   dynamic — a test with a flow read-out (PLR, EEO, mini fluid challenge, tidal volume challenge, a bolus with dense
  *             flow data) or a valid PPV/SVV: decides. Agreeing votes → likely/unlikely, confidence 'high' when a flow
  *             test decides, 'moderate' when only PPV/SVV do; disagreeing votes → indeterminate (conflict named).

@@ -1,6 +1,6 @@
 /**
  * Validity conditions of the heart–lung interaction indices (PPV, SVV; in part the tidal volume challenge), each
- * with the direction of the error it causes when not met (clinical-references §12; Michard F, Chemla D, Teboul JL,
+ * with the direction of the error it causes when not met (docs/clinical-logic/index.md; Michard F, Chemla D, Teboul JL,
  * Crit Care 2015;19:144; Monnet X, Marik PE, Teboul JL, Ann Intensive Care 2016;6:111, Table 2):
  *   void            — spontaneous effort, arrhythmia: the index means nothing either way;
  *   false-negative  — tidal volume < 8 mL/kg PBW, HR/RR ≤ 3.6 (De Backer D et al., Anesthesiology 2009;110:1092),

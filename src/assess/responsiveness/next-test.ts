@@ -1,6 +1,6 @@
 /**
  * The test that would settle (or confirm) responsiveness, as a kind from a closed set; its wording is in the
- * catalogue. Chosen from the patient's state (clinical-references §12, Suggestions):
+ * catalogue. Chosen from the patient's state (docs/clinical-logic/index.md, Suggestions):
  * - a PPV or SVV charted under controlled ventilation, sinus rhythm and tidal volume below 8 mL/kg PBW → tidal
  *   volume challenge (Myatra SN et al., Crit Care Med 2017;45:415: made for low tidal volume);
  * - intra-abdominal hypertension → mini fluid challenge, not PLR (PLR false negatives with IAH: Mahjoub Y et al.,

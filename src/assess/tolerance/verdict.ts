@@ -1,5 +1,5 @@
 /**
- * Tidemark's tolerance scheme (docs/clinical-logic/tolerance.md; clinical-references §12, "Tolerance"):
+ * Tidemark's tolerance scheme (docs/clinical-logic/tolerance.md; docs/clinical-logic/index.md, "Tolerance"):
  *   poor      — a severe finding in the lungs, venous system or balance; or a severe finding elsewhere (abdomen,
  *               kidneys) together with at least a moderate lung, venous or balance finding; or moderate findings in
  *               at least `poorWhenModerateDomains` (3) domains, one of them lungs, venous or balance. "Poor" always
