@@ -17,6 +17,8 @@ import { authConfigSchema, type AuthConfig } from './auth/issuer-config.js';
 import { createClientVerifier } from './auth/client-verifier.js';
 import { requireAuditAccess, requireCdsClient, requireMetricsAccess } from './auth/middleware.js';
 import { InMemoryReplayCache } from './auth/replay-cache.js';
+import { adviceLinkUrl, ADVICE_LINK_LABEL, signerFromConfig } from './http/advice-link.js';
+import { mountPages } from './http/pages.js';
 
 export interface Service {
   app: ReturnType<typeof createApp>;
@@ -65,6 +67,13 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     // Shown at /readyz; the start-up log line comes from the CDS guard (src/auth/middleware.ts), once.
     warnings.push('local trial mode: CDS calls are accepted without a verified client JWT; never use with real patients');
   }
+  const links = signerFromConfig(cfg);
+  if (links.warning) {
+    warnings.push(links.warning);
+    log.warn({}, links.warning);
+  }
+  const now = opts.now ?? (() => new Date());
+  const signer = links.signer;
   if (!cfg.TIDEMARK_TRIAL_MODE && auth.issuers.length === 0) warnings.push('no trusted issuers configured: every CDS call is refused');
   if (!cfg.TIDEMARK_TRIAL_MODE && cfg.TIDEMARK_PUBLIC_URL === undefined) {
     const w = `TIDEMARK_PUBLIC_URL is not set: the expected token audience is ${publicUrl}/..., which no client behind a proxy or on another host will send`;
@@ -78,6 +87,11 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     cdsClientAuth: requireCdsClient({ verifier, publicUrl, trialMode: cfg.TIDEMARK_TRIAL_MODE, log }),
     auditAuth: requireAuditAccess({ ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), verifier: auditVerifier, publicUrl, log }),
     readinessWarnings: warnings,
+    pages: (a) => mountPages(a, {
+      store, catalogue, thresholds, rulesVersion: version, now, timeZone: cfg.TIDEMARK_TIME_ZONE, frameAncestors: cfg.TIDEMARK_FRAME_ANCESTORS, log,
+      ...(signer ? { signer } : {}),
+    }),
+    ...(signer ? { adviceLink: (id: string) => ({ label: ADVICE_LINK_LABEL, url: adviceLinkUrl(publicUrl, id, signer.sign(id, now().getTime())) }) } : {}),
     ...(cfg.file.corsOrigins ? { corsOrigins: cfg.file.corsOrigins } : {}),
     extraRoutes: (a) => {
       a.get('/metrics', requireMetricsAccess({ metricsToken: cfg.TIDEMARK_METRICS_TOKEN, log }), async (_req, res) => {
@@ -88,7 +102,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
     gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY,
       maxResponseBytes: cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES, maxCallBytes: cfg.TIDEMARK_FHIR_MAX_CALL_BYTES },
-    now: opts.now ?? (() => new Date()),
+    now,
     fhirServersFor: (issuer) => fhirServers.get(issuer),
     ...(opts.makeFetcher ? { makeFetcher: opts.makeFetcher } : {}),
   });

@@ -63,6 +63,8 @@ function cutEscaped(text: string, n: number): string {
 export interface RenderContext {
   hook: string;
   publicUrl: string;
+  /** The signed link to this advice's reasoning page (src/http/advice-link.ts), when links are on. */
+  adviceLink?: { label: string; url: string };
 }
 
 export function renderCard(model: CardModel, cat: Catalogue, ctx: RenderContext): Card {
@@ -98,13 +100,14 @@ export function renderCard(model: CardModel, cat: Catalogue, ctx: RenderContext)
     .filter((r): r is NonNullable<typeof r> => !!r)
     .map((r) => ({ code: r.code, system: cat.overrideReasonSystem, display: r.display }));
   const base = ctx.publicUrl.replace(/\/$/, '');
+  const docsUrl = `${base}/docs/${kind.docsPage.replace(/\.md$/, '')}`; // the page as HTML (GET /docs/{page})
   const card: Card = {
     uuid: randomUUID(),
     summary,
     detail: parts.join('\n\n'),
     indicator,
-    source: { label: cat.source.label, url: `${base}/docs/${kind.docsPage}`, ...(cat.source.topic ? { topic: cat.source.topic } : {}) },
-    links: [{ label: `How Tidemark reasons: ${kind.title}`, url: `${base}/docs/${kind.docsPage}`, type: 'absolute' }],
+    source: { label: cat.source.label, url: docsUrl, ...(cat.source.topic ? { topic: cat.source.topic } : {}) },
+    links: [...(ctx.adviceLink ? [{ ...ctx.adviceLink, type: 'absolute' as const }] : []), { label: `How Tidemark reasons: ${kind.title}`, url: docsUrl, type: 'absolute' }],
   };
   if (model.suggestions.length) {
     card.suggestions = model.suggestions;

@@ -42,7 +42,32 @@ export const envSchema = z.object({
   TIDEMARK_METRICS_TOKEN: z.string().min(16).optional(),
   /** Largest accepted request body. */
   TIDEMARK_BODY_LIMIT: z.string().regex(/^\d+(kb|mb)$/i).default('2mb'),
+  /**
+   * Key for the signed links to the reasoning pages (HMAC-SHA256), at least 32 characters. Without it the links
+   * are off, except in trial mode, where a key is made for the process (links then die with it).
+   */
+  TIDEMARK_LINK_KEY: z.string().min(32).optional(),
+  /** How long a reasoning-page link stays valid, minutes (default 12 h). */
+  TIDEMARK_LINK_LIFETIME_MIN: intFrom(1, 7 * 24 * 60).default(720),
+  /** The site's IANA time zone: times on the reasoning page are shown in it (default UTC). */
+  TIDEMARK_TIME_ZONE: z.string().min(1).refine(isTimeZone, 'not an IANA time zone known to this Node.js (e.g. Europe/Berlin)').default('UTC'),
+  /** EHR origins allowed to frame the reasoning page (CSP frame-ancestors), comma-separated; none by default. */
+  TIDEMARK_FRAME_ANCESTORS: z
+    .string()
+    .transform((v) => v.split(',').map((o) => o.trim()).filter(Boolean))
+    .pipe(z.array(z.string().regex(/^https?:\/\/[a-z0-9.-]+(:\d{1,5})?$/i, 'each entry must be an origin such as https://ehr.example.org')))
+    .default([]),
 });
+
+/** True for a time zone name Intl knows (IANA names; "UTC"). */
+function isTimeZone(zone: string): boolean {
+  try {
+    new Intl.DateTimeFormat('en-GB', { timeZone: zone });
+    return true;
+  } catch {
+    return false;
+  }
+}
 
 /**
  * The optional JSON file: site threshold overrides, trusted CDS clients, audit readers and the token rules.

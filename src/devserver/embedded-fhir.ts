@@ -241,6 +241,9 @@ export async function startEmbeddedFhir(opts: EmbeddedFhirOptions = {}): Promise
     const s = app.listen(opts.port ?? 0, '127.0.0.1', () => resolve(s));
     s.once('error', reject);
   });
+  // Keep idle connections open longer than the client keeps them (undici: 4 s; Node's server default is 5 s), so a
+  // client never reuses a socket the server is closing at that moment (ECONNRESET under load in the e2e tests).
+  server.keepAliveTimeout = 65_000;
   baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}/fhir`;
 
   return {

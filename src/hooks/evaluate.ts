@@ -26,6 +26,8 @@ export interface EvaluateDeps {
   publicUrl: string;
   now: () => Date;
   makeFetcher?: typeof fhirFetcher;
+  /** The signed link to an advice's reasoning page, put on its cards; none when links are off. */
+  adviceLink?: (adviceId: string) => { label: string; url: string } | undefined;
   /** The site's ConceptMaps and unit hints (src/fhir/site-map.ts); none by default. */
   siteMap?: SiteMap;
   /** The FHIR server origins a trusted issuer's calls may name (its `fhirServers`); undefined: any. */
@@ -125,10 +127,11 @@ async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: E
     hook, advice, snapshot, gathering: gathered.outcomes, purposes, catalogue: deps.catalogue,
     context: { patientId: ctx.patientId, userId: ctx.userId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}) },
   });
+  const link = deps.adviceLink?.(adviceId);
   const cards: Card[] = [];
   const cardKinds: Record<string, string> = {};
   for (const m of models) {
-    const card = renderCard(m, deps.catalogue, { hook, publicUrl: deps.publicUrl });
+    const card = renderCard(m, deps.catalogue, { hook, publicUrl: deps.publicUrl, ...(link ? { adviceLink: link } : {}) });
     cards.push(card);
     if (card.uuid) cardKinds[card.uuid] = m.kind;
   }

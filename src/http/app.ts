@@ -29,6 +29,8 @@ export interface AppDeps extends EvaluateDeps {
   catalogueDigest?: string;
   /** Extra readiness warnings (e.g. trial mode). */
   readinessWarnings?: string[];
+  /** The human pages (src/http/pages.ts), mounted before the raw /docs/*.md route. */
+  pages?: (app: express.Express) => void;
   /** Extra routes mounted before the error handler (metrics). */
   extraRoutes?: (app: express.Express) => void;
   /** Wraps each request for metrics: called with route label and status when the response finishes. */
@@ -174,6 +176,8 @@ export function createApp(deps: AppDeps): express.Express {
   app.get('/audit/verify', audit, async (_req, res) => {
     res.json(await deps.store.verifyChain());
   });
+
+  deps.pages?.(app);
 
   app.get(['/docs/:page', '/docs/:folder/:page'], async (req, res) => {
     const folder = req.params['folder'] === undefined ? '' : `${String(req.params['folder'])}/`;

@@ -190,11 +190,33 @@ describe('docs pages linked from cards', () => {
     expect((await get(`${s.url}/docs/..%2Fpackage.json`)).status).toBe(404);
     expect((await get(`${s.url}/docs/nope.md`)).status).toBe(404);
   });
+  it('serves the same docs as HTML pages without ".md", with the pages CSP', async () => {
+    const r = await fetch(`${s.url}/docs/clinical-logic/index`);
+    expect(r.status).toBe(200);
+    expect(r.headers.get('content-type')).toContain('text/html');
+    expect(r.headers.get('content-security-policy')).toContain("default-src 'self'");
+    expect(r.headers.get('content-security-policy')).toContain("frame-ancestors 'none'");
+    expect(r.headers.get('x-frame-options')).toBe('DENY');
+    expect(await r.text()).toMatch(/<h1>Clinical logic<\/h1>/);
+    expect((await fetch(`${s.url}/docs/nope`)).status).toBe(404);
+    // The screenshots the integration guide shows (docs/img/, made by tests/e2e/reasoning-page.test.ts).
+    const img = await fetch(`${s.url}/docs/img/reasoning-link-expired.png`);
+    expect(img.status).toBe(200);
+    expect(img.headers.get('content-type')).toBe('image/png');
+    expect((await fetch(`${s.url}/docs/img/..%2F..%2Fpackage.json`)).status).toBe(404);
+    // The reasoning page needs its signed query: none is 403 (a plain page, not JSON); an id of the wrong shape 404.
+    const refused = await fetch(`${s.url}/advice/3f2a6c1e-0b7d-4e59-8a41-6d2c9e7b5f03`);
+    expect(refused.status).toBe(403);
+    expect(refused.headers.get('content-type')).toContain('text/html');
+    expect((await fetch(`${s.url}/advice/${'x'.repeat(80)}?exp=1&sig=2`)).status).toBe(404);
+    expect((await fetch(`${s.url}/docs/..%2Fpackage`)).status).toBe(404);
+  });
   it('every card links to a page that exists', async () => {
     const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }));
     for (const link of r.body.cards[0].links) {
-      const path = new URL(link.url).pathname;
-      expect((await get(`${s.url}${path}`)).status).toBe(200);
+      // The service listens on port 0, so keep the link's path and query (the reasoning-page link is signed in its query).
+      const u = new URL(link.url);
+      expect((await get(`${s.url}${u.pathname}${u.search}`)).status).toBe(200);
     }
   });
 });
