@@ -2,7 +2,7 @@
  * An audit store that stores nothing (benchmark only): the same interface as the real stores, so the cost of
  * the durable audit write can be measured by difference. Never used by the service outside bench/.
  */
-import type { AuditStore } from '../src/audit/types.js';
+import type { AuditStore, StoredAdvice } from '../src/audit/types.js';
 
 export class NoopAuditStore implements AuditStore {
   readonly kind = 'noop';
@@ -17,6 +17,7 @@ export class NoopAuditStore implements AuditStore {
   async cardOwner(): Promise<undefined> { return undefined; }
   async addFeedback(rows: unknown[]): Promise<{ stored: number; duplicates: number }> { return { stored: 0, duplicates: rows.length }; }
   async feedbackFor(): Promise<[]> { return []; }
+  async *records(): AsyncGenerator<StoredAdvice> {}
   async feedbackStats(): Promise<{ byKind: []; byReason: [] }> { return { byKind: [], byReason: [] }; }
   async verifyChain(): Promise<{ ok: boolean; checked: number }> { return { ok: true, checked: 0 }; }
   async ping(): Promise<void> {}

@@ -18,7 +18,7 @@ import { chainHashOfText, GENESIS, parseRecordText, recordText, storedHashMatche
 import { rowToFeedback } from './sqlite-store.js';
 import { PostgresReplayCache, replayTableDdl, type PostgresReplayCacheOptions } from './postgres-replay-cache.js';
 import { feedbackKey, ownerOf, summarize } from './shared.js';
-import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
+import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, RecordStreamQuery, StoredAdvice } from './types.js';
 
 export interface PostgresAuditStoreOptions {
   /** Schema that holds the tables (default `tidemark`). Letters, digits and underscores only. */
@@ -225,11 +225,12 @@ export class PostgresAuditStore implements AuditStore {
     return r.rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
   }
 
+  /** Cards accepted and cards overridden per advice (distinct cards, as feedbackStats counts them; not feedback rows). */
   private async feedbackCounts(adviceIds: string[]): Promise<Map<string, { accepted: number; overridden: number }>> {
     const out = new Map<string, { accepted: number; overridden: number }>();
     if (!adviceIds.length) return out;
     const r = await this.pool.query<{ advice_id: string; outcome: string; n: number }>(
-      `SELECT c.advice_id, f.outcome, COUNT(*)::int AS n FROM ${this.s}.feedback f JOIN ${this.s}.advice_card c ON c.card_uuid = f.card_uuid
+      `SELECT c.advice_id, f.outcome, COUNT(DISTINCT f.card_uuid)::int AS n FROM ${this.s}.feedback f JOIN ${this.s}.advice_card c ON c.card_uuid = f.card_uuid
        WHERE c.advice_id = ANY($1::text[]) GROUP BY c.advice_id, f.outcome`,
       [adviceIds],
     );
@@ -240,6 +241,31 @@ export class PostgresAuditStore implements AuditStore {
       out.set(row.advice_id, c);
     }
     return out;
+  }
+
+  /** Keyset paging by seq: one short query per batch, no cursor or connection held between batches. */
+  async *records(q: RecordStreamQuery): AsyncGenerator<StoredAdvice> {
+    const args: Array<string | number> = ['0'];
+    const where = ['seq > $1::bigint'];
+    const add = (cond: (p: string) => string, v: string): void => {
+      args.push(v);
+      where.push(cond(`$${args.length}`));
+    };
+    if (q.service) add((p) => `service = ${p}`, q.service);
+    if (q.from) add((p) => `recorded_at >= ${p}`, q.from);
+    if (q.to) add((p) => `recorded_at <= ${p}`, q.to);
+    if (q.outcome) add((p) => `outcome = ${p}`, q.outcome);
+    const batch = Math.max(1, Math.min(Math.trunc(q.batchSize ?? VERIFY_PAGE), 10_000));
+    let after = String(Math.trunc(q.afterSeq ?? 0));
+    for (;;) {
+      args[0] = after;
+      const r = await this.pool.query<AdviceRow>(`SELECT seq, record, prev_hash, hash FROM ${this.s}.advice WHERE ${where.join(' AND ')} ORDER BY seq LIMIT ${batch}`, args);
+      for (const row of r.rows) {
+        after = row.seq;
+        yield { ...parseRecordText(row.record), seq: Number(row.seq), prevHash: row.prev_hash, hash: row.hash };
+      }
+      if (r.rows.length < batch) return;
+    }
   }
 
   async cardOwner(cardUuid: string): Promise<CardOwner | undefined> {

@@ -11,6 +11,17 @@ export function summarize(r: AdviceRecord & { seq: number }, feedback: Map<strin
   };
 }
 
+/**
+ * A time bound of an audit query as the UTC text `recordedAt` is compared with: a date alone is the start of that
+ * day (`from`) or its last millisecond (`to`, `endOfDay`), so both bounds include the whole day; an instant is
+ * converted to UTC. Undefined for text that is no date.
+ */
+export function auditInstant(v: string, endOfDay = false): string | undefined {
+  if (/^\d{4}-\d{2}-\d{2}$/.test(v)) return `${v}T${endOfDay ? '23:59:59.999' : '00:00:00.000'}Z`;
+  const t = new Date(v);
+  return Number.isNaN(t.getTime()) ? undefined : t.toISOString();
+}
+
 /** Idempotency key: the same card, outcome, timestamp and content is the same feedback, however often sent. */
 export function feedbackKey(f: FeedbackRow): string {
   return createHash('sha256')

@@ -12,7 +12,7 @@ import type Database from 'better-sqlite3';
 import { GENESIS, parseRecordText, storedHashMatches } from './chain.js';
 import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type AppendResult, type PreparedRecord } from './sqlite-append.js';
 import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
-import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, StoredAdvice } from './types.js';
+import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, RecordStreamQuery, StoredAdvice } from './types.js';
 import { summarize, feedbackKey, ownerOf } from './shared.js';
 
 /**
@@ -63,6 +63,9 @@ CREATE INDEX IF NOT EXISTS feedback_card ON feedback (card_uuid);
 `;
 
 interface AdviceRow { seq: number; record: string; prev_hash: string; hash: string }
+
+/** Records read per batch by records(). */
+const STREAM_BATCH = 500;
 
 interface Waiter {
   resolve: (v: { seq: number; hash: string }) => void;
@@ -226,12 +229,13 @@ export class SqliteAuditStore implements AuditStore {
     return rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
   }
 
+  /** Cards accepted and cards overridden per advice (distinct cards, as feedbackStats counts them; not feedback rows). */
   private feedbackCounts(adviceIds: string[]): Map<string, { accepted: number; overridden: number }> {
     const out = new Map<string, { accepted: number; overridden: number }>();
     if (!adviceIds.length) return out;
     const rows = this.db
       .prepare(
-        `SELECT c.advice_id AS advice_id, f.outcome AS outcome, COUNT(*) AS n FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid
+        `SELECT c.advice_id AS advice_id, f.outcome AS outcome, COUNT(DISTINCT f.card_uuid) AS n FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid
          WHERE c.advice_id IN (${adviceIds.map(() => '?').join(',')}) GROUP BY c.advice_id, f.outcome`,
       )
       .all(...adviceIds) as Array<{ advice_id: string; outcome: string; n: number }>;
@@ -242,6 +246,30 @@ export class SqliteAuditStore implements AuditStore {
       out.set(r.advice_id, c);
     }
     return out;
+  }
+
+  /**
+   * Keyset paging by seq (no statement stays open between batches: better-sqlite3 forbids other statements on a
+   * connection while one iterates, and the caller may do anything between two records).
+   */
+  async *records(q: RecordStreamQuery): AsyncGenerator<StoredAdvice> {
+    const where = ['seq > ?'];
+    const args: Array<string | number> = [];
+    if (q.service) (where.push('service = ?'), args.push(q.service));
+    if (q.from) (where.push('recorded_at >= ?'), args.push(q.from));
+    if (q.to) (where.push('recorded_at <= ?'), args.push(q.to));
+    if (q.outcome) (where.push('outcome = ?'), args.push(q.outcome));
+    const batch = Math.max(1, Math.min(q.batchSize ?? STREAM_BATCH, 10_000));
+    const stmt = this.db.prepare(`SELECT seq, record, prev_hash, hash FROM advice WHERE ${where.join(' AND ')} ORDER BY seq LIMIT ?`);
+    let after = q.afterSeq ?? 0;
+    for (;;) {
+      const rows = stmt.all(after, ...args, batch) as AdviceRow[];
+      for (const row of rows) {
+        after = row.seq;
+        yield { ...parseRecordText(row.record), seq: row.seq, prevHash: row.prev_hash, hash: row.hash };
+      }
+      if (rows.length < batch) return;
+    }
   }
 
   async cardOwner(cardUuid: string): Promise<CardOwner | undefined> {

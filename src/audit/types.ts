@@ -55,6 +55,10 @@ export interface AdviceSummary {
   cardCount: number;
   indicators: string[];
   latencyMs: number;
+  /**
+   * Cards of this answer with at least one accepted (overridden) feedback — cards, not feedback rows, so that the
+   * list agrees with feedbackStats: a card accepted twice counts once; a card both accepted and overridden, in both.
+   */
   feedback: { accepted: number; overridden: number };
 }
 
@@ -66,6 +70,18 @@ export interface AdviceQuery {
   limit: number;
   /** Opaque cursor from a previous page (the last seq seen). */
   cursor?: string;
+}
+
+/** Filters of a streamed read (records oldest first, by seq). */
+export interface RecordStreamQuery {
+  service?: string;
+  from?: string;
+  to?: string;
+  outcome?: AdviceOutcome;
+  /** Only records after this seq (resume a run; paging of the impact endpoint). */
+  afterSeq?: number;
+  /** Records fetched per round trip; the store holds at most this many at once. */
+  batchSize?: number;
 }
 
 export interface FeedbackRow {
@@ -88,6 +104,7 @@ export interface CardOwner {
 }
 
 export interface FeedbackStats {
+  /** Per card kind: cards shown, and cards with at least one accepted (overridden) feedback. */
   byKind: Array<{ cardKind: string; cards: number; accepted: number; overridden: number; overrideRate: number }>;
   byReason: Array<{ cardKind: string; reasonCode: string; reasonDisplay: string; count: number }>;
 }
@@ -102,6 +119,11 @@ export interface AuditStore {
   /** Stores feedback idempotently: a repeat of the same card, outcome and timestamp is a duplicate. */
   addFeedback(rows: FeedbackRow[]): Promise<{ stored: number; duplicates: number }>;
   feedbackFor(adviceId: string): Promise<FeedbackRow[]>;
+  /**
+   * Every matching record, oldest first (ascending seq), read in batches by seq so that a trail of any length
+   * is never held in memory at once. Stopping the loop early is fine: nothing stays open between batches.
+   */
+  records(q: RecordStreamQuery): AsyncIterable<StoredAdvice>;
   feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats>;
   /** Recomputes the hash chain; reports the first record that does not match. */
   verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }>;

@@ -10,6 +10,8 @@ import type { AuditStore } from '../audit/types.js';
 import { evaluateHook, type EvaluateDeps } from '../hooks/evaluate.js';
 import { recordFeedback } from '../hooks/feedback.js';
 import { replay } from '../audit/replay.js';
+import { impactPage, impactRequestSchema } from '../audit/impact-request.js';
+import { auditInstant } from '../audit/shared.js';
 import { discoveryDocument, findService, servicesFor } from '../hooks/services.js';
 import { withDepthLimit } from './body-shape.js';
 import { HttpError, operationOutcome, zodIssues } from './errors.js';
@@ -23,6 +25,8 @@ export interface AppDeps extends EvaluateDeps {
   auditAuth?: RequestHandler;
   /** Origins allowed to call from a browser (CORS); none by default. */
   corsOrigins?: readonly string[];
+  /** Digest of the loaded card catalogue, for the rules version of a candidate in an impact run. */
+  catalogueDigest?: string;
   /** Extra readiness warnings (e.g. trial mode). */
   readinessWarnings?: string[];
   /** The human pages (src/http/pages.ts), mounted before the raw /docs/*.md route. */
@@ -159,6 +163,16 @@ export function createApp(deps: AppDeps): express.Express {
       ...(q.data.service ? { service: q.data.service } : {}), ...(q.data.from ? { from: toInstant(q.data.from) } : {}), ...(q.data.to ? { to: toInstant(q.data.to, true) } : {}),
     }));
   });
+  app.post('/audit/impact', audit, json, async (req: Request, res: Response) => {
+    const body = impactRequestSchema.safeParse(req.body);
+    if (!body.success) throw new HttpError(400, 'invalid', 'invalid impact request', zodIssues(body.error.issues, 'body'));
+    const { from, to } = body.data;
+    const page = await impactPage(deps.store, { ...body.data, ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}) }, {
+      catalogue: deps.catalogue, ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}), ...(deps.siteMap ? { siteMap: deps.siteMap } : {}),
+    });
+    if (!page.ok) throw new HttpError(400, 'invalid', 'the candidate thresholds are invalid', [page.message.slice(0, 1000)]);
+    res.json(page.body);
+  });
   app.get('/audit/verify', audit, async (_req, res) => {
     res.json(await deps.store.verifyChain());
   });
@@ -209,9 +223,9 @@ export function createApp(deps: AppDeps): express.Express {
   return app;
 }
 
+/** A validated from/to bound (an ISO date or date-time, checked by the query schema) as the audit store compares it. */
 function toInstant(v: string, endOfDay = false): string {
-  if (/^\d{4}-\d{2}-\d{2}$/.test(v)) return `${v}T${endOfDay ? '23:59:59.999' : '00:00:00.000'}Z`;
-  return new Date(v).toISOString();
+  return auditInstant(v, endOfDay) as string;
 }
 
 function stringsOf(q: Request['query']): Record<string, string> {

@@ -413,6 +413,40 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     expect(alder.seqs).toEqual(seqs.filter((_, i) => i % 2 === 0).reverse());
   });
 
+  it('streams records oldest first across batch boundaries, with filters, a resume point and an early stop', async () => {
+    await open();
+    const recs = Array.from({ length: 11 }, (_, i) =>
+      ({ ...adviceRecord({ at: i, service: i % 3 === 0 ? 'fluid-overview' : 'bolus-select' }), ...(i === 5 ? { outcome: 'precondition-failed' as const } : {}) }));
+    const seqs = await appendAll(recs);
+    const walk = async (q: Parameters<AuditStore['records']>[0]): Promise<number[]> => {
+      const out: number[] = [];
+      for await (const r of store.records(q)) out.push(r.seq);
+      return out;
+    };
+    // Batches of 4 over 11 records: 4 + 4 + 3; batches of 11: one full batch, then an empty one.
+    expect(await walk({ batchSize: 4 })).toEqual(seqs);
+    expect(await walk({ batchSize: 11 })).toEqual(seqs);
+    expect(await walk({ batchSize: 4, outcome: 'answered' })).toEqual(seqs.filter((_, i) => i !== 5));
+    expect(await walk({ batchSize: 2, service: 'fluid-overview' })).toEqual([seqs[0], seqs[3], seqs[6], seqs[9]]);
+    expect(await walk({ batchSize: 3, from: at(2), to: at(7) })).toEqual(seqs.slice(2, 8));
+    expect(await walk({ batchSize: 3, afterSeq: seqs[7] ?? 0 })).toEqual(seqs.slice(8));
+    expect(await walk({ service: 'none-such' })).toEqual([]);
+
+    // A record read this way is the stored record, as get() reads it.
+    const first = (await store.records({ batchSize: 1 })[Symbol.asyncIterator]().next()).value;
+    expect(first).toEqual(await store.get(recs[0]?.id ?? ''));
+
+    // Stopping early leaves the store usable; other calls between two records are fine.
+    let n = 0;
+    for await (const r of store.records({ batchSize: 3 })) {
+      expect((await store.get(r.id))?.seq).toBe(r.seq);
+      expect((await store.list({ limit: 1 })).items).toHaveLength(1);
+      if ((n += 1) === 5) break;
+    }
+    expect(n).toBe(5);
+    expect(await store.verifyChain()).toMatchObject({ ok: true, checked: 11 });
+  });
+
   it('finds the advice and kind of a card', async () => {
     await open();
     const r = adviceRecord({ kinds: ['volume-ok', 'data-gap'], service: 'bolus-sign' });
@@ -470,8 +504,9 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const f3 = feedbackRow(c1, { outcomeTimestamp: at(12) });
     expect(await store.addFeedback([f3, f3])).toEqual({ stored: 1, duplicates: 1 });
     expect(await store.feedbackFor(r.id)).toEqual([f1, f2, f3]);
+    // The list counts cards (c1 has two accepted feedbacks: one card), as feedbackStats does.
     const listed = await store.list({ limit: 1 });
-    expect(listed.items[0]?.feedback).toEqual({ accepted: 2, overridden: 1 });
+    expect(listed.items[0]?.feedback).toEqual({ accepted: 1, overridden: 1 });
   });
 
   it('refuses a feedback batch naming an unknown card, storing none of it', async () => {
@@ -533,6 +568,15 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
         { cardKind: 'tolerance-limit', reasonCode: '(comment only)', reasonDisplay: '', count: 1 },
       ],
     });
+
+    // The list counts cards, as the statistics do (not feedback rows): a1's card accepted twice counts once.
+    const listed = (await store.list({ limit: 10 })).items;
+    expect(Object.fromEntries(listed.map((i) => [i.id, i.feedback]))).toEqual({
+      [a1.id]: { accepted: 1, overridden: 1 }, [a2.id]: { accepted: 0, overridden: 1 }, [a3.id]: { accepted: 0, overridden: 3 },
+    });
+    const stats = await store.feedbackStats({});
+    const sum = (xs: Array<{ accepted: number; overridden: number }>) => xs.reduce((t, x) => ({ accepted: t.accepted + x.accepted, overridden: t.overridden + x.overridden }), { accepted: 0, overridden: 0 });
+    expect(sum(listed.map((i) => i.feedback))).toEqual(sum(stats.byKind));
 
     expect(await store.feedbackStats({ service: 'bolus-select' })).toEqual({
       byKind: [
