@@ -4,6 +4,7 @@
  * alternatives, next-test kind); never looks at clinical thresholds (those live in assess/), never branches on card
  * ids, rule ids or the words of reasons. All wording comes from the catalogue.
  */
+import { sentenceStart } from '../assess/common/text.js';
 import type { NextTestKind } from '../assess/types.js';
 import type { Advice, Finding } from '../assess/types.js';
 import type { GatherOutcome } from '../fhir/gather.js';
@@ -104,9 +105,6 @@ function nothingToGoOn(advice: Advice, gathering: GatherOutcome[]): GatherOutcom
   return gathering.find((o) => GATHER_PROBLEM.has(o.status));
 }
 
-function capital(s: string): string {
-  return s ? `${s[0]?.toUpperCase()}${s.slice(1)}` : s;
-}
 
 const TEST_SUGGESTION: Record<NextTestKind, 'passive-leg-raise' | 'mini-fluid-challenge' | 'tidal-volume-challenge' | 'end-expiratory-occlusion'> = {
   'passive-leg-raise': 'passive-leg-raise', 'mini-fluid-challenge': 'mini-fluid-challenge',
@@ -176,8 +174,8 @@ export function composeCards(input: ComposeInput): CardModel[] {
   if (advice.responsiveness) {
     conclusion.push(`${responsivenessPhrase}${confidence ? ` (${ph.confidence[confidence]})` : ''}: ${advice.responsiveness.rationale}`);
   }
-  if (advice.tolerance) conclusion.push(`${capital(tolerancePhrase)}: ${advice.tolerance.rationale}`);
-  else conclusion.push(`${capital(tolerancePhrase)}: no marker of fluid tolerance could be assessed`);
+  if (advice.tolerance) conclusion.push(`${sentenceStart(tolerancePhrase)}: ${advice.tolerance.rationale}`);
+  else conclusion.push(`${sentenceStart(tolerancePhrase)}: no marker of fluid tolerance could be assessed`);
   if (advice.need) conclusion.push(`${ph.need[advice.need.value]}: ${advice.need.rationale}`);
   if (advice.phase) conclusion.push(`${ph.phase[advice.phase.value]}: ${advice.phase.rationale}`);
   const assumed = advice.responsiveness?.assumptions ?? [];

@@ -3,6 +3,7 @@
  * src/pages/ that reads the Advice, Finding and Verdict shapes (src/assess/types.ts): when assessment v2 changes
  * them, this file changes and the page does not. Everything here is plain data; escaping happens in page.ts.
  */
+import { sentenceStart } from '../assess/common/text.js';
 import type { Finding, Verdict } from '../assess/types.js';
 import type { AdviceRecord } from '../audit/types.js';
 import type { Catalogue } from '../cards/catalogue.js';
@@ -122,9 +123,6 @@ function coverageOf(v: Verdict<string> | undefined, findings: Finding[], topic: 
   return `${of.filter((f) => f.status === 'assessed').length} of ${of.length} findings assessed`;
 }
 
-function capital(s: string): string {
-  return s ? s[0]!.toUpperCase() + s.slice(1) : s;
-}
 
 function flatten(v: unknown, prefix = ''): Array<[string, string]> {
   if (v === null || v === undefined) return [];
@@ -161,14 +159,14 @@ export function toPageView(input: ViewInput): PageView {
     const tCov = coverageOf(t, advice.findings, 'tolerance');
     verdicts.push({
       key: 'responsiveness', question: 'Will the heart answer volume? (responsiveness)',
-      value: capital(r ? p.responsiveness[r.value] : p.responsiveness.unassessed),
+      value: sentenceStart(r ? p.responsiveness[r.value] : p.responsiveness.unassessed),
       rationale: r?.rationale ?? 'No responsiveness verdict was made.',
       ...(r?.confidence ? { confidence: p.confidence[r.confidence] } : {}), ...(rCov ? { coverage: rCov } : {}),
       decidingRules: r?.decidingRules ?? [], ...(r?.nextTest ? { nextTest: words.nextTests[r.nextTest] } : {}), assumptions: r?.assumptions ?? [],
     });
     verdicts.push({
       key: 'tolerance', question: 'Can the patient take it? (tolerance)',
-      value: capital(t ? p.tolerance[t.value] : p.tolerance.unassessed),
+      value: sentenceStart(t ? p.tolerance[t.value] : p.tolerance.unassessed),
       rationale: t?.rationale ?? 'No tolerance verdict was made.',
       ...(t?.confidence ? { confidence: p.confidence[t.confidence] } : {}), ...(tCov ? { coverage: tCov } : {}),
       decidingRules: t?.decidingRules ?? [], assumptions: t?.assumptions ?? [],
@@ -176,7 +174,7 @@ export function toPageView(input: ViewInput): PageView {
     if (n) {
       const nCov = coverageOf(n, advice.findings, 'perfusion');
       verdicts.push({
-        key: 'need', question: 'Is there anything to treat? (need, perfusion)', value: capital(p.need[n.value]), rationale: n.rationale,
+        key: 'need', question: 'Is there anything to treat? (need, perfusion)', value: sentenceStart(p.need[n.value]), rationale: n.rationale,
         ...(nCov ? { coverage: nCov } : {}), decidingRules: n.decidingRules, assumptions: n.assumptions ?? [],
       });
     }

@@ -76,3 +76,8 @@ export function preciseAge(minutes: number): string {
 export function staleText(ageMin: number, windowMin: number): string {
   return `stale (age ${preciseAge(ageMin)}, window ${preciseAge(windowMin)})`;
 }
+
+/** The text with its first letter in upper case (a sentence start). */
+export function sentenceStart(text: string): string {
+  return text ? `${text[0]?.toUpperCase()}${text.slice(1)}` : text;
+}

@@ -10,7 +10,7 @@
 import { mapSeries } from '../common/blood-pressure.js';
 import type { Evidence, PhaseFinding } from '../common/finding.js';
 import { ageMinutes, evidenceOfFluid, evidenceOfMeasurement, latestReading, readings, timeMs, usableTime } from '../common/select.js';
-import { ageText, fmt } from '../common/text.js';
+import { ageText, fmt, sentenceStart } from '../common/text.js';
 import type { PhaseValue, Verdict } from '../types.js';
 import { admissionWeight, encounterStartMs } from '../tolerance/weights.js';
 import type { NeedContext } from './context.js';
@@ -29,7 +29,7 @@ export function assessPhase(ctx: NeedContext): { verdict: Verdict<PhaseValue>; f
   if (highLactate && lac.state === 'fresh') evidence.push(evidenceOfMeasurement(lac.item, now));
 
   const later = (why: string): { verdict: Verdict<PhaseValue>; finding: PhaseFinding } => ({
-    verdict: { value: 'later', rationale: `Not early resuscitation: ${why}.`, decidingRules: [PHASE_RULE] },
+    verdict: { value: 'later', rationale: `${sentenceStart(why)}.`, decidingRules: [PHASE_RULE] },
     finding: { ruleId: PHASE_RULE, topic: 'phase', status: 'assessed', text: `Phase: after early resuscitation (${why})`, evidence, source: SOURCE },
   });
   if (!hypotension && !highLactate) {
@@ -70,7 +70,7 @@ export function assessPhase(ctx: NeedContext): { verdict: Verdict<PhaseValue>; f
     : `${fmt(givenMl)} mL given since; no admission weight to judge it per kg`;
   const why = `shock (${shock}) began ${ageText(hours * 60)} ago (${onsetBasis}); ${volume}`;
   return {
-    verdict: { value: 'early-resuscitation', rationale: `Early resuscitation: ${why}.`, decidingRules: [PHASE_RULE] },
+    verdict: { value: 'early-resuscitation', rationale: `${sentenceStart(why)}.`, decidingRules: [PHASE_RULE] },
     finding: { ruleId: PHASE_RULE, topic: 'phase', status: 'assessed', text: `Phase: early resuscitation (${why})`, evidence, source: SOURCE, values: { givenMl, hoursSinceOnset: Math.round(hours * 10) / 10 } },
   };
 }
