@@ -249,11 +249,12 @@ const opposite = (v: Responsiveness) => (v === 'likely' ? 'against' : 'for');
 
 /**
  * The removed data spoke against `after`: it supported an opposing finding, confounded one, set one aside (an event
- * since), or made one doubtful (a charted raised IAP makes a high PPV doubtful; uncharted, IAP is assumed normal, docs/clinical-logic).
+ * since, or one that set aside a better read-out of the same test), or made one doubtful (a charted raised IAP makes a high PPV doubtful; uncharted, IAP is assumed normal, docs/clinical-logic).
  */
 function spokeAgainst(findings: readonly Finding[], removed: Set<string>, after: Responsiveness): boolean {
   return findings.some((f) => f.topic === 'responsiveness' && f.evidence.some((e) => removed.has(e.ref)) && (
-    (f.status === 'assessed' && f.tier !== 'context' && f.direction === opposite(after)) || f.gap === 'confounded' || f.gap === 'set-aside' || f.gap === 'outside-validity'));
+    (f.status === 'assessed' && f.tier !== 'context' && f.direction === opposite(after)) || f.gap === 'confounded' || f.gap === 'set-aside' || f.gap === 'outside-validity'
+    || (f.topic === 'responsiveness' && f.betterSetAsideBy !== undefined)));
 }
 
 describe('property: removing evidence never makes the verdict more certain', () => {

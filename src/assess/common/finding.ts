@@ -62,6 +62,8 @@ export interface ResponsivenessFinding extends FindingBase {
   tier?: Tier;
   /** Conditions assumed because they were not charted (e.g. "chest closed"), said on the card. */
   assumptions?: string[];
+  /** The event that set aside a test with a better read-out, which is why this one was used. */
+  betterSetAsideBy?: string;
 }
 
 export type ToleranceLimit = 'none' | 'moderate' | 'severe';

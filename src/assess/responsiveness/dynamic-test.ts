@@ -59,6 +59,13 @@ export function selectDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Sele
   const opts = { events: ctx.events };
   const usable = all.filter((d) => judge(d, ctx.now, windowMin, opts).state === 'fresh');
   const best = usable.map((d, i) => ({ d, i, r: rank(spec, d) })).sort((a, b) => a.r - b.r || a.i - b.i)[0];
+  // A fresh test with no validated read-out decides nothing; a test with one that an event has set aside says more
+  // (and names the event), so it is reported instead.
+  if (best && best.r === 2) {
+    const readable = all.find((d) => rank(spec, d) < 2);
+    const judged = readable && judge(readable, ctx.now, windowMin, opts);
+    if (judged && judged.state === 'set-aside') return judged;
+  }
   if (best) return { state: 'fresh', item: best.d, ageMinutes: ageMinutes(best.d.effective, ctx.now), windowMin };
   return judge(all[0], ctx.now, windowMin, opts);
 }
@@ -68,7 +75,16 @@ export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Resp
   if (sel.state !== 'fresh') {
     return unusableFinding(sel, { ruleId: spec.ruleId, marker: spec.marker, label: spec.label, source: spec.source, evidenceOf: (d) => evidenceOfDynamicTest(d, ctx.now) });
   }
-  const d = sel.item;
+  const f = judgeChosen(ctx, spec, sel.item);
+  // A test with a better read-out that a later event set aside is why this one was used: the finding names that event.
+  const better = ctx.events.length ? dynamicTestsOf(ctx.snapshot, spec.kind, ctx.now).find((x) => rank(spec, x) < rank(spec, sel.item)) : undefined;
+  const judged = better && judge(better, ctx.now, ctx.w.dynamicTestMin, { events: ctx.events });
+  if (!judged || judged.state !== 'set-aside') return f;
+  const { event } = judged;
+  return { ...f, evidence: [...f.evidence, evidenceOfDynamicTest(judged.item, ctx.now), event.evidence, ...(event.previous ? [event.previous] : [])], betterSetAsideBy: event.text };
+}
+
+function judgeChosen(ctx: RuleContext, spec: DynamicTestSpec, d: DynamicTestResult): ResponsivenessFinding {
   const mLabel = MEASURED_LABEL[d.measured];
   const readOut = spec.readOuts[d.measured];
   const ev = [evidenceOfDynamicTest(d, ctx.now)];
