@@ -2,6 +2,7 @@
 import type { OrderRecommendation } from './advice/types.js';
 import type { Finding } from './common/finding.js';
 import type { RuleError } from './common/rule.js';
+import type { WhatIf } from './what-if/types.js';
 
 export type {
   Direction, Evidence, Figures, Finding, FindingTopic, Freshness, GapKind, Marker, NeedSign, OrderFinding, PerfusionFinding,
@@ -47,6 +48,8 @@ export interface Advice {
   phase?: Verdict<PhaseValue>;
   /** For order hooks with a fluid bolus selected: what the advice matrix recommends. */
   recommendation?: OrderRecommendation;
+  /** What the result of each feasible responsiveness test would do to the advice (src/assess/what-if/). */
+  whatIf?: WhatIf;
   /** Errors raised by single rules; the other findings still count. */
   ruleErrors: RuleError[];
 }
