@@ -75,7 +75,8 @@ export interface VasoactiveDrug {
   drug: string;
   /** Dose rate when recorded (original unit kept), for confounder detection. */
   rate?: { value: number; unit: string };
-  start: string;
+  /** When it started; absent when the record does not say (an active MedicationRequest without authoredOn). */
+  start?: string;
   end?: string;
   status: string;
 }

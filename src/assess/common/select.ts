@@ -158,9 +158,11 @@ export function evidenceOfFluid(f: FluidGiven, now: Date): Evidence {
   return { ref: f.ref, kind: `fluid:${f.fluidClass}`, value: f.volumeMl, unit: 'mL', effective: f.end, ageMinutes: round(ageMinutes(f.end, now), 1) };
 }
 
+/** A vasoactive as evidence, at its start; one running with no recorded start (an active order without authoredOn) is evidence as of `now`. */
 export function evidenceOfVasoactive(v: VasoactiveDrug, now: Date): Evidence {
   const value = v.rate ? `${v.drug} ${v.rate.value} ${v.rate.unit}` : v.drug;
-  return { ref: v.ref, kind: 'vasoactive', value, effective: v.start, ageMinutes: round(ageMinutes(v.start, now), 1) };
+  const at = v.start ?? now.toISOString();
+  return { ref: v.ref, kind: 'vasoactive', value, effective: at, ageMinutes: round(ageMinutes(at, now), 1) };
 }
 
 /** Evidence in one total order (newest first, then reference, then kind) with duplicates removed. */
