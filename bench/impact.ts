@@ -13,20 +13,12 @@ import { randomUUID } from 'node:crypto';
 import { mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { FhirResource } from 'fhir/r4.js';
-import { transaction } from '../examples/lib/fhir-builders.js';
 import { resolveThresholds } from '../src/assess/thresholds.js';
 import { impactOf } from '../src/audit/impact.js';
 import { SqliteAuditStore } from '../src/audit/sqlite-store.js';
 import type { AdviceRecord } from '../src/audit/types.js';
-import { loadCatalogue } from '../src/cards/catalogue.js';
 import { rulesVersion } from '../src/config/rules-version.js';
-import { startEmbeddedFhir } from '../src/devserver/embedded-fhir.js';
-import { prefetchFromServer } from '../src/devserver/prefetch-client.js';
-import { evaluateHook } from '../src/hooks/evaluate.js';
-import { findService } from '../src/hooks/services.js';
-import { NoopAuditStore } from './noop-store.js';
-import { benchContext, benchRequest, buildBenchPatient, type BenchHook } from './patient.js';
+import { answerTemplates } from './templates.js';
 
 const arg = (name: string): string | undefined => process.argv.find((a) => a.startsWith(`--${name}=`))?.split('=')[1];
 const N = Number(arg('records') ?? 20_000);
@@ -34,36 +26,8 @@ if (!Number.isInteger(N) || N < 100 || N > 1_000_000) throw new Error('--records
 const keep = process.argv.includes('--keep');
 const out = (s: string) => process.stdout.write(`${s}\n`);
 
-/** A store that keeps the one record it is given. */
-class CaptureStore extends NoopAuditStore {
-  last: AdviceRecord | undefined;
-  override append = async (...args: unknown[]): Promise<{ seq: number; hash: string }> => {
-    this.last = args[0] as AdviceRecord;
-    return { seq: 1, hash: '0'.repeat(64) };
-  };
-}
-
 const now = new Date();
-const patient = buildBenchPatient(now);
-const fhir = await startEmbeddedFhir();
-await fhir.load(transaction(patient.resources as FhirResource[]));
-const { catalogue, digest } = loadCatalogue();
-const thresholds = resolveThresholds({});
-const capture = new CaptureStore();
-const deps = {
-  store: capture, catalogue, thresholds, rulesVersion: rulesVersion(digest, thresholds), publicUrl: 'http://127.0.0.1:8080', now: () => now,
-  log: { info() {}, warn() {}, error() {} }, gatherOptions: { budgetMs: 2000, maxPages: 5, concurrency: 8 },
-};
-const templates: AdviceRecord[] = [];
-for (const [hook, id] of [['order-select', 'bolus-review-select'], ['patient-view', 'fluid-overview']] as Array<[BenchHook, string]>) {
-  const service = findService(id);
-  if (!service) throw new Error(`no service ${id}`);
-  const client = await prefetchFromServer(fhir.baseUrl, service, benchContext(patient, hook), {});
-  const r = await evaluateHook(service, benchRequest(patient, hook, { prefetch: client.prefetch }), deps as never);
-  if (r.status !== 200 || !capture.last) throw new Error(`template ${id}: status ${r.status}`);
-  templates.push(capture.last);
-}
-await fhir.close();
+const { templates, catalogue, digest } = await answerTemplates(now);
 
 const dir = mkdtempSync(join(tmpdir(), 'tidemark-bench-impact-'));
 const path = join(dir, 'audit.sqlite');

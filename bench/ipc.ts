@@ -6,9 +6,14 @@ export type ChildMessage =
   | { type: 'usage'; userUs: number; systemUs: number }
   /** Memory just after a full garbage collection of the main thread's heap (ran: false when gc is not exposed). */
   | { type: 'collected'; ran: boolean; rss: number; heapUsed: number }
+  /** bench/pg-append-child.ts: appends made and the time each took, ms. */
+  | { type: 'appended'; count: number; failed: number; latenciesMs: number[]; seconds: number }
   | { type: 'error'; message: string };
 
-export type ParentMessage = { type: 'stop' } | { type: 'load'; bundle: unknown } | { type: 'usage' } | { type: 'collect' };
+export type ParentMessage =
+  | { type: 'stop' } | { type: 'load'; bundle: unknown } | { type: 'usage' } | { type: 'collect' }
+  /** bench/pg-append-child.ts: append copies of `record` for `seconds`, `concurrency` at a time. */
+  | { type: 'append'; record: unknown; seconds: number; concurrency: number };
 
 export function send(m: ChildMessage): void {
   process.send?.(m);

@@ -18,6 +18,8 @@ export interface LoadOptions {
   /** Total requests per second; absent = closed loop. */
   rate?: number;
   shape?: 'paced' | 'autocannon-burst';
+  /** A fresh Authorization header value for each request (e.g. a newly signed JWT). */
+  authorization?: () => string;
 }
 
 export interface LoadResult {
@@ -60,6 +62,14 @@ export async function runLoad(o: LoadOptions): Promise<LoadResult> {
     method: 'POST',
     headers: { 'content-type': 'application/json' },
     body: o.body,
+    ...(o.authorization
+      ? {
+        requests: [{
+          method: 'POST' as const,
+          setupRequest: (req: autocannon.Request) => ({ ...req, headers: { ...req.headers, authorization: o.authorization!() } }),
+        }],
+      }
+      : {}),
     connections: o.connections,
     duration: o.durationSec,
     timeout: 10,

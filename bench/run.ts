@@ -1,6 +1,8 @@
 /**
  * `npm run bench` (tsx bench/run.ts): how fast an ordering-time advisory is, side by side with the ceiling of
- * this stack (a bare express app that parses the same body and answers a fixed small JSON), on loopback only.
+ * this stack (a bare express app that parses the same body and answers a fixed small JSON) and with the durable-audit
+ * limit (the same app that first appends the raw body to SQLite, synchronous=FULL, hash-chained, group-committed:
+ * bench/durable-limit.ts), on loopback only.
  *
  * Every process under load runs in a child of its own: the service (bench/serve-for-bench.ts, the real app from
  * buildService, local trial mode, a temporary SQLite audit file, log level warn), the ceiling (bench/ceiling.ts)
@@ -12,6 +14,7 @@
  *       FHIR wait vs own time comes from the audit records (timings) written during the run;
  *   (3) patient-view with a full prefetch;
  *   audit: case (1) against the same service with a store that stores nothing (bench/noop-store.ts);
+ *   jwt: case (1) with a fresh ES384-signed client JWT on every call (real deployments verify one per call);
  *   soak: case (1) at a steady rate; RSS of the service at the start and the end.
  *
  * Flags (or environment variables):
@@ -26,14 +29,16 @@
  *                                    server answers about 150–200 searches a second on this machine, 12 per call)
  *   --fhir-concurrency=N             TIDEMARK_FHIR_CONCURRENCY of case (2)'s service (default: the service's, 8)
  *   --soak-seconds=S BENCH_SOAK_SECONDS  (default 300)   --soak-rate=N (default 100)
- *   --only=select,fhir,view,audit,soak  run only these parts (the ceiling runs when a case needs it)
+ *   --only=select,fhir,view,audit,jwt,soak  run only these parts (the ceiling and the durable limit run when a case needs them)
  *   --cpu-prof                       profile the service children (node --cpu-prof) and print the top entries
  *   --keep                           keep the temporary folder (audit files, logs, profiles)
  */
 import { mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { availableParallelism, cpus, freemem, loadavg, release, tmpdir, totalmem } from 'node:os';
 import { join } from 'node:path';
+import { randomUUID } from 'node:crypto';
 import Database from 'better-sqlite3';
+import { calculateJwkThumbprint, exportJWK, generateKeyPair, SignJWT } from 'jose';
 import type { FhirResource } from 'fhir/r4.js';
 import { transaction } from '../examples/lib/fhir-builders.js';
 import { prefetchFromServer } from '../src/devserver/prefetch-client.js';
@@ -72,10 +77,10 @@ const opts = {
   soakRate: num('soak-rate', undefined, 100),
   cpuProf: flag('cpu-prof') === 'true',
   keep: flag('keep') === 'true',
-  only: new Set((flag('only') ?? 'select,fhir,view,audit,soak').split(',').map((s) => s.trim())),
+  only: new Set((flag('only') ?? 'select,fhir,view,audit,jwt,soak').split(',').map((s) => s.trim())),
 };
 if (opts.rateShape !== 'paced' && opts.rateShape !== 'autocannon-burst') throw new Error('--rate-shape: paced or autocannon-burst');
-for (const part of opts.only) if (!['select', 'fhir', 'view', 'audit', 'soak'].includes(part)) throw new Error(`--only: unknown part ${part}`);
+for (const part of opts.only) if (!['select', 'fhir', 'view', 'audit', 'jwt', 'soak'].includes(part)) throw new Error(`--only: unknown part ${part}`);
 // Hard bounds, whatever the flags say: the benchmark must stop by itself.
 if (opts.duration > 120 || opts.warmup > 60 || opts.soakSeconds > 3600) throw new Error('durations are bounded: --duration ≤ 120, --warmup ≤ 60, --soak-seconds ≤ 3600');
 
@@ -144,8 +149,13 @@ async function measure(child: Child, url: string, body: string, rate: number): P
   return { closed, rate: fixed };
 }
 
-async function checkOnce(url: string, body: string): Promise<{ status: number; cards: number; text: string }> {
-  const r = await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json' }, body });
+/** The durable-audit limit's own count of commits and rows (bench/durable-limit.ts), for its mean batch size. */
+async function durableBatches(base: string): Promise<{ batches: number; rows: number }> {
+  return (await (await fetch(`${base}/batches`)).json()) as { batches: number; rows: number };
+}
+
+async function checkOnce(url: string, body: string, authorization?: () => string): Promise<{ status: number; cards: number; text: string }> {
+  const r = await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json', ...(authorization ? { authorization: authorization() } : {}) }, body });
   const text = await r.text();
   let cards = 0;
   try {
@@ -212,21 +222,27 @@ function row(label: string, r: LoadResult): string {
   const late = r.late ? `  (${r.late} sent late)` : '';
   return `    ${label.padEnd(22)}${f1(r.rps).padStart(9)}${f2(r.p50).padStart(9)}${f2(r.p90).padStart(9)}${f2(r.p99).padStart(9)}${f1(r.max).padStart(9)}   ${r.non2xx}/${r.errors + r.timeouts}${late}`;
 }
-function ratioRow(a: LoadResult, c: LoadResult): string {
+function ratioRow(a: LoadResult, c: LoadResult, label = 'Tidemark/ceiling'): string {
   const x = (p: number, q: number) => `${(p / q).toFixed(2)}×`;
-  return `    ${'Tidemark/ceiling'.padEnd(22)}${x(a.rps, c.rps).padStart(9)}${x(a.p50, c.p50).padStart(9)}${x(a.p90, c.p90).padStart(9)}${x(a.p99, c.p99).padStart(9)}`;
+  return `    ${label.padEnd(22)}${x(a.rps, c.rps).padStart(9)}${x(a.p50, c.p50).padStart(9)}${x(a.p90, c.p90).padStart(9)}${x(a.p99, c.p99).padStart(9)}`;
 }
 const rateLabel = (rate = opts.rate) => `${rate} req/s ${opts.rateShape === 'paced' ? 'paced' : 'autocannon overallRate'} over ${Math.min(opts.rateConnections, rate)} connections`;
 
-function printCase(title: string, t: Run, c: Run | undefined, rate = opts.rate): void {
+function printCase(title: string, t: Run, c: Run | undefined, rate = opts.rate, d?: Run, cLabel = 'ceiling'): void {
   out(title);
   out(HEAD);
+  const side = (mode: 'closed' | 'rate') => {
+    out(row('Tidemark', t[mode]));
+    if (c) out(row(cLabel, c[mode]));
+    if (d) out(row('durable-audit limit', d[mode]));
+    if (c) out(ratioRow(t[mode], c[mode], `Tidemark/${cLabel}`));
+    if (d) out(ratioRow(t[mode], d[mode], 'Tidemark/durable'));
+    if (c && d) out(ratioRow(d[mode], c[mode], 'durable/ceiling'));
+  };
   out(`  ${opts.connections} connections, closed loop, ${opts.duration} s`);
-  out(row('Tidemark', t.closed));
-  if (c) (out(row('ceiling', c.closed)), out(ratioRow(t.closed, c.closed)));
+  side('closed');
   out(`  ${rateLabel(rate)}, ${opts.duration} s`);
-  out(row('Tidemark', t.rate));
-  if (c) (out(row('ceiling', c.rate)), out(ratioRow(t.rate, c.rate)));
+  side('rate');
   const cpu = (label: string, a: Measured, b: Measured | undefined) =>
     out(`    CPU per answer, ${label}: Tidemark ${f2(a.cpuMsPerAnswer)} ms${b ? `, ceiling ${f2(b.cpuMsPerAnswer)} ms: ${(a.cpuMsPerAnswer / b.cpuMsPerAnswer).toFixed(2)}×` : ''}`);
   out('  (CPU: user + system time of the whole process, every thread, over the run, divided by its 2xx answers)');
@@ -292,19 +308,40 @@ async function main(): Promise<void> {
     return run;
   };
 
+  // The durable-audit limit: one SQLite file for the whole run (its rows only grow, as an audit trail does).
+  const durable = await startChild({ name: 'durable-audit limit', script: 'durable-limit.ts', logFile: join(dir, 'durable.log'), env: { BENCH_DURABLE_PATH: join(dir, 'durable-limit.sqlite') } });
+  children.push(durable);
+  const durableRuns = new Map<string, Run>();
+  const durableFor = async (key: 'select' | 'view'): Promise<Run> => {
+    const have = durableRuns.get(key);
+    if (have) return have;
+    const b0 = await durableBatches(durable.url);
+    const run = await measure(durable, `${durable.url}/cds-services/bolus-review-select`, bodies[key], opts.rate);
+    const b1 = await durableBatches(durable.url);
+    out(`    (durable-audit limit, ${key}: ${b1.rows - b0.rows} rows in ${b1.batches - b0.batches} commits, ${f2((b1.rows - b0.rows) / Math.max(1, b1.batches - b0.batches))} rows per commit, warm-up included)`);
+    durableRuns.set(key, run);
+    return run;
+  };
+
   const profiles: Array<{ label: string; profDir: string }> = [];
-  const serviceCase = async (label: string, key: 'select' | 'fhir' | 'view', path: string, store: 'sqlite' | 'noop', rateValue = opts.rate, env: Record<string, string> = {}) => {
+  const serviceCase = async (
+    label: string, key: 'select' | 'fhir' | 'view', path: string, store: 'sqlite' | 'noop', rateValue = opts.rate, env: Record<string, string> = {},
+    authorization?: () => string,
+  ) => {
     const svc = await startService(label, store, env);
     const url = `${svc.child.url}${path}`;
-    const once = await checkOnce(url, bodies[key]);
+    const once = await checkOnce(url, bodies[key], authorization);
     if (once.status !== 200) throw new Error(`${label}: expected 200, got ${once.status}: ${once.text}`);
-    await runLoad({ url, body: bodies[key], connections: opts.connections, durationSec: opts.warmup });
+    const auth = authorization ? { authorization } : {};
+    await runLoad({ url, body: bodies[key], connections: opts.connections, durationSec: opts.warmup, ...auth });
     const a0 = await auditWriteStats(svc.child.url);
     const seqA = store === 'sqlite' ? maxSeq(svc.dbPath) : 0;
-    const closed = await loadWithCpu(svc.child, { url, body: bodies[key], connections: opts.connections, durationSec: opts.duration });
+    const closed = await loadWithCpu(svc.child, { url, body: bodies[key], connections: opts.connections, durationSec: opts.duration, ...auth });
     const a1 = await auditWriteStats(svc.child.url);
     const seqB = store === 'sqlite' ? maxSeq(svc.dbPath) : 0;
-    const rate = await loadWithCpu(svc.child, { url, body: bodies[key], connections: Math.min(opts.rateConnections, rateValue), durationSec: opts.duration, rate: rateValue, shape: opts.rateShape });
+    const rate = await loadWithCpu(svc.child, {
+      url, body: bodies[key], connections: Math.min(opts.rateConnections, rateValue), durationSec: opts.duration, rate: rateValue, shape: opts.rateShape, ...auth,
+    });
     const a2 = await auditWriteStats(svc.child.url);
     const timings = store === 'sqlite' ? { closed: recordTimings(svc.dbPath, seqA, seqB), rate: recordTimings(svc.dbPath, seqB) } : undefined;
     const dbBytes = store === 'sqlite' ? statSync(svc.dbPath).size : 0;
@@ -322,9 +359,14 @@ async function main(): Promise<void> {
     const r = await serviceCase('select-prefetch', 'select', '/cds-services/bolus-review-select', 'sqlite');
     results['select'] = r;
     const c = await ceilingFor('select');
-    printCase(`(1) order-select, full prefetch (${r.cards} cards per answer; SQLite audit, synchronous=FULL)`, r.run, c);
-    if (r.timings) (printTimings('closed loop', r.timings.closed), printTimings('fixed rate', r.timings.rate));
+    const d = await durableFor('select');
+    printCase(`(1) order-select, full prefetch (${r.cards} cards per answer; SQLite audit, synchronous=FULL)`, r.run, c, opts.rate, d);
+    if (r.timings) {
+      printTimings('closed loop', r.timings.closed);
+      printTimings('fixed rate', r.timings.rate);
+    }
     out(`    audit write, from the service's metrics (mean, including the wait for its group commit): ${f2(r.audit.closed)} ms closed loop, ${f2(r.audit.rate)} ms fixed rate; ${r.records} records of ${(r.recordBytes / 1024).toFixed(0)} kB each in ${mb(r.dbBytes)} (WAL not counted)`);
+    out(`    audit size: ${(r.dbBytes / Math.max(1, r.records) / 1024).toFixed(1)} kB of database per answer, ${f1((r.dbBytes / Math.max(1, r.records)) * 1000 / 1024 / 1024)} MB per 1,000 answers; request body ${(bodies.select.length / 1024).toFixed(1)} kB`);
     out();
   }
 
@@ -344,7 +386,8 @@ async function main(): Promise<void> {
     const r = await serviceCase('view-prefetch', 'view', '/cds-services/fluid-overview', 'sqlite');
     results['view'] = r;
     const c = await ceilingFor('view');
-    printCase(`(3) patient-view, full prefetch (${r.cards} cards per answer)`, r.run, c);
+    const d = await durableFor('view');
+    printCase(`(3) patient-view, full prefetch (${r.cards} cards per answer)`, r.run, c, opts.rate, d);
     if (r.timings) (printTimings('closed loop', r.timings.closed), printTimings('fixed rate', r.timings.rate));
     out();
   }
@@ -367,6 +410,37 @@ async function main(): Promise<void> {
       }
       out();
     }
+  }
+
+  if (opts.only.has('jwt')) {
+    // A CDS client with an ES384 key (jose), trusted through the config file's `issuers`; every call carries a
+    // token signed for it alone (a fresh jti: the service refuses a replay). Tokens are signed before the runs, so
+    // the load generator's own signing does not share the cores with the service while it is measured.
+    const iss = 'https://ehr.bench.invalid';
+    const aud = 'https://tidemark.bench.invalid';
+    const pair = await generateKeyPair('ES384', { extractable: true });
+    const jwk = { ...(await exportJWK(pair.publicKey)), alg: 'ES384', use: 'sig' };
+    const kid = await calculateJwkThumbprint(jwk);
+    const configFile = join(dir, 'jwt-config.json');
+    writeFileSync(configFile, JSON.stringify({ issuers: [{ iss, jwks: { keys: [{ ...jwk, kid }] } }] }));
+    const need = Math.ceil((opts.warmup + opts.duration) * 1500 + opts.duration * opts.rate * 1.2) + 10;
+    const signStarted = performance.now();
+    const tokens: string[] = [];
+    const iat = Math.floor(Date.now() / 1000);
+    for (let i = 0; i < need; i += 1) {
+      tokens.push(await new SignJWT({}).setProtectedHeader({ alg: 'ES384', kid, typ: 'JWT' }).setIssuer(iss).setAudience(`${aud}/cds-services/bolus-review-select`)
+        .setIssuedAt(iat).setExpirationTime(iat + 290).setJti(randomUUID()).sign(pair.privateKey));
+    }
+    const signMs = (performance.now() - signStarted) / need;
+    let used = 0;
+    const authorization = () => `Bearer ${tokens[used++ % tokens.length]}`;
+    const env = { TIDEMARK_TRIAL_MODE: 'false', TIDEMARK_CONFIG_FILE: configFile, TIDEMARK_PUBLIC_URL: aud };
+    const r = await serviceCase('select-jwt', 'select', '/cds-services/bolus-review-select', 'sqlite', opts.rate, env, authorization);
+    const plain = results['select'];
+    printCase(`(1j) order-select, full prefetch, a fresh ES384 client JWT verified on every call (${r.cards} cards per answer)`, r.run, plain?.run, opts.rate, undefined, 'no token');
+    if (plain) out('    ("no token" is case (1) as measured above, in trial mode: the ratio prices the signature check and the jti record)');
+    out(`    ${used} tokens used of ${tokens.length} signed${used > tokens.length ? ' (some were reused and refused as replays: sign more)' : ''}; signing one took ${f2(signMs)} ms in the load generator`);
+    out();
   }
 
   if (opts.only.has('soak')) {
