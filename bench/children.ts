@@ -48,8 +48,13 @@ export async function startChild(o: StartOptions): Promise<Child> {
     for (let i = waiters.length - 1; i >= 0; i -= 1) {
       const w = waiters[i];
       if (!w) continue;
-      if (m.type === 'error') (waiters.splice(i, 1), w.reject(new Error(`${o.name}: ${m.message} (log: ${o.logFile})`)));
-      else if (m.type === w.type) (waiters.splice(i, 1), w.resolve(m));
+      if (m.type === 'error') {
+        waiters.splice(i, 1);
+        w.reject(new Error(`${o.name}: ${m.message} (log: ${o.logFile})`));
+      } else if (m.type === w.type) {
+        waiters.splice(i, 1);
+        w.resolve(m);
+      }
     }
   });
   proc.on('exit', (code, signal) => {
@@ -58,7 +63,11 @@ export async function startChild(o: StartOptions): Promise<Child> {
   });
   const next = (type: ChildMessage['type'], timeoutMs = 60_000) => new Promise<ChildMessage>((resolve, reject) => {
     const timer = setTimeout(() => reject(new Error(`${o.name}: no '${type}' message within ${timeoutMs} ms (log: ${o.logFile})`)), timeoutMs);
-    waiters.push({ type, resolve: (m) => (clearTimeout(timer), resolve(m)), reject: (e) => (clearTimeout(timer), reject(e)) });
+    const settle = <A>(f: (a: A) => void) => (a: A) => {
+      clearTimeout(timer);
+      f(a);
+    };
+    waiters.push({ type, resolve: settle(resolve), reject: settle(reject) });
   });
   const ready = await next('ready');
   const child: Child = {
@@ -68,7 +77,10 @@ export async function startChild(o: StartOptions): Promise<Child> {
     stop: () => new Promise<void>((resolve) => {
       if (proc.exitCode !== null || proc.signalCode !== null) return resolve();
       const kill = setTimeout(() => proc.kill('SIGKILL'), 15_000);
-      proc.once('exit', () => (clearTimeout(kill), resolve()));
+      proc.once('exit', () => {
+        clearTimeout(kill);
+        resolve();
+      });
       proc.send({ type: 'stop' } satisfies ParentMessage);
     }),
   };

@@ -30,7 +30,10 @@ export function reportRss(): void {
       // Two full collections (the second frees what the first's finalisers let go), then a pause for V8 to hand
       // freed pages back, so that RSS shows what is still held rather than where the saw-tooth happens to be.
       const gc = (globalThis as { gc?: () => void }).gc;
-      if (gc) (gc(), gc());
+      if (gc) {
+        gc();
+        gc();
+      }
       setTimeout(() => {
         const mem = process.memoryUsage();
         send({ type: 'collected', ran: !!gc, rss: mem.rss, heapUsed: mem.heapUsed });

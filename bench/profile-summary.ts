@@ -61,7 +61,7 @@ export function summarise(file: string, top = 25): { total: number; byFunction: 
     const f = fn.get(key) ?? { name, where, ms: 0, pct: 0 };
     f.ms += ms;
     fn.set(key, f);
-    const ok = name === '(garbage collector)' ? '(garbage collector)' : name === '(program)' ? '(program)' : owner(n.callFrame.url);
+    const ok = name === '(garbage collector)' || name === '(program)' ? name : owner(n.callFrame.url);
     const o = own.get(ok) ?? { name: ok, where: '', ms: 0, pct: 0 };
     o.ms += ms;
     own.set(ok, o);

@@ -7,5 +7,8 @@ register();
 const { run } = await import('../src/cli/audit.ts');
 run(process.argv.slice(2)).then(
   (code) => process.exit(code),
-  (e) => (process.stderr.write(`${e?.message ?? e}\n`), process.exit(1)),
+  (e) => {
+    process.stderr.write(`${e?.message ?? e}\n`);
+    process.exit(1);
+  },
 );

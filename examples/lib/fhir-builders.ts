@@ -29,7 +29,8 @@ export function encounter(id: string, patientId: string, start: string): Encount
 }
 
 function category(kind: string): Observation['category'] {
-  const code = VITAL_KINDS.includes(kind as NumericKind) ? 'vital-signs' : LAB_KINDS.includes(kind as NumericKind) ? 'laboratory' : 'procedure';
+  let code = LAB_KINDS.includes(kind as NumericKind) ? 'laboratory' : 'procedure';
+  if (VITAL_KINDS.includes(kind as NumericKind)) code = 'vital-signs';
   return [{ coding: [{ system: 'http://terminology.hl7.org/CodeSystem/observation-category', code }] }];
 }
 

@@ -3,7 +3,7 @@
  * after the hour; CVP hourly when there is a line; ventilator settings with the vitals; labs every 4–12 h; urine
  * hourly; intake and output per 12-h shift. No cardiac-output monitor unless a scenario adds one.
  */
-import { Chart } from './chart.js';
+import type { Chart } from './chart.js';
 
 export interface OrdinaryChart {
   /** Hours of charting back from now (default 12). */

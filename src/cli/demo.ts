@@ -45,7 +45,8 @@ const MAX_LINES = 6;
 
 function indicatorBadge(indicator: string): string {
   const label = ` ${indicator.toUpperCase()} `;
-  return indicator === 'critical' ? red(bold(label)) : indicator === 'warning' ? yellow(bold(label)) : cyan(bold(label));
+  const colour: Record<string, (s: string) => string> = { critical: red, warning: yellow };
+  return (colour[indicator] ?? cyan)(bold(label));
 }
 
 /** Markdown of a card detail → its sections' bullet lines, by section title (escapes removed). */

@@ -148,7 +148,10 @@ export function loadSiteMap(file: FileConfig, baseDir: string): SiteMap | undefi
   if (!file.conceptMaps?.length && !file.unitHints) return undefined;
   const names: string[] = [];
   const maps = (file.conceptMaps ?? []).map((m, i) => {
-    if (typeof m !== 'string') return (names.push(''), m);
+    if (typeof m !== 'string') {
+      names.push('');
+      return m;
+    }
     names.push(m);
     try {
       return JSON.parse(readFileSync(resolve(baseDir, m), 'utf8')) as unknown;

@@ -214,7 +214,7 @@ export async function startEmbeddedFhir(opts: EmbeddedFhirOptions = {}): Promise
         const query: Record<string, string | string[]> = {};
         for (const [k, v] of url.searchParams) {
           const prev = query[k];
-          query[k] = prev === undefined ? v : Array.isArray(prev) ? [...prev, v] : [prev, v];
+          query[k] = prev === undefined ? v : [...[prev].flat(), v];
         }
         const [result, resource] = await router.handleRequest(
           {

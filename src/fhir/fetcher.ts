@@ -104,12 +104,8 @@ export function fhirFetcher(baseUrl: string, accessToken?: string, caps: ByteCap
         if (done) break;
         bytes += value.byteLength;
         callBytes += value.byteLength;
-        const over =
-          bytes > caps.maxResponseBytes
-            ? `an answer was larger than ${mb(caps.maxResponseBytes)}`
-            : callBytes > caps.maxCallBytes
-              ? `the call's answers passed ${mb(caps.maxCallBytes)} in all`
-              : undefined;
+        let over = callBytes > caps.maxCallBytes ? `the call's answers passed ${mb(caps.maxCallBytes)} in all` : undefined;
+        if (bytes > caps.maxResponseBytes) over = `an answer was larger than ${mb(caps.maxResponseBytes)}`;
         if (over !== undefined) {
           stop.abort();
           throw new FhirFetchError('too-large', `${over}: reading stopped`);

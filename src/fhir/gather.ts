@@ -65,8 +65,14 @@ function withinBudget<T>(p: Promise<T>, signal: AbortSignal): Promise<T> {
     const onAbort = () => reject(signal.reason as Error);
     signal.addEventListener('abort', onAbort, { once: true });
     p.then(
-      (v) => (signal.removeEventListener('abort', onAbort), resolve(v)),
-      (e: unknown) => (signal.removeEventListener('abort', onAbort), reject(e as Error)),
+      (v) => {
+        signal.removeEventListener('abort', onAbort);
+        resolve(v);
+      },
+      (e: unknown) => {
+        signal.removeEventListener('abort', onAbort);
+        reject(e as Error);
+      },
     );
   });
 }

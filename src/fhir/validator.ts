@@ -31,7 +31,12 @@ function ensureIndexed(): void {
     if (r?.url) byUrl.set(r.url.split('|')[0] as string, r);
   }
   const collect = (cs: CodeSystem, into: Set<string>) => {
-    const walk = (cs2: CodeSystem['concept']) => (cs2 ?? []).forEach((c) => (into.add(c.code), walk(c.concept)));
+    const walk = (cs2: CodeSystem['concept']): void => {
+      for (const c of cs2 ?? []) {
+        into.add(c.code);
+        walk(c.concept);
+      }
+    };
     walk(cs.concept);
   };
   for (const [type, vsUrl] of Object.entries(STATUS_BINDINGS)) {

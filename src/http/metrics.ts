@@ -28,7 +28,8 @@ export function createMetrics(): Metrics {
     registry,
     onResponse(route, service, status, seconds) {
       // Only known service ids become label values: an attacker must not grow the label set.
-      const svc = known.has(service) ? service : service ? 'unknown' : '';
+      let svc = service ? 'unknown' : '';
+      if (known.has(service)) svc = service;
       requests.inc({ route, service: svc, status: String(status) });
       latency.observe({ route, service: svc }, seconds);
     },

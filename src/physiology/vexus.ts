@@ -27,7 +27,8 @@ export function hepaticSeverity(pattern: 'normal' | 'mild' | 'severe'): DopplerS
 
 /** Intrarenal vein: continuous normal; discontinuous biphasic mild; discontinuous monophasic severe. */
 export function renalSeverity(pattern: 'continuous' | 'biphasic' | 'monophasic'): DopplerSeverity {
-  return pattern === 'monophasic' ? 'severe' : pattern === 'biphasic' ? 'mild' : 'normal';
+  const severity = { continuous: 'normal', biphasic: 'mild', monophasic: 'severe' } as const;
+  return severity[pattern];
 }
 
 export interface VexusParts {
@@ -49,7 +50,8 @@ export interface VexusResult {
 
 function gradeOf(ivcWide: boolean, severe: number): VexusGrade {
   if (!ivcWide) return 0;
-  return severe >= 2 ? 3 : severe === 1 ? 2 : 1;
+  if (severe >= 2) return 3;
+  return severe === 1 ? 2 : 1;
 }
 
 /**

@@ -83,7 +83,11 @@ export function patientReadiness(patientId: string, runs: readonly ServiceRun[],
   const coded: PatientSnapshot['coded'] = [];
   const dynamic: PatientSnapshot['dynamicTests'] = [];
   const excluded: PatientSnapshot['excluded'] = [];
-  const once = (id: string) => (seen.has(id) ? false : (seen.add(id), true));
+  const once = (id: string): boolean => {
+    if (seen.has(id)) return false;
+    seen.add(id);
+    return true;
+  };
   for (const r of runs) {
     measurements.push(...r.snapshot.measurements.filter((m) => once(`m|${m.ref}|${m.kind}|${m.effective}`)));
     coded.push(...r.snapshot.coded.filter((m) => once(`c|${m.ref}|${m.kind}`)));
@@ -102,7 +106,8 @@ export function patientReadiness(patientId: string, runs: readonly ServiceRun[],
   const markers: MarkerLine[] = [...NUMERIC_KINDS, ...CODED_KINDS, ...DYNAMIC_TESTS].map((marker) => {
     const found = [...measurements.filter((m) => m.kind === marker), ...coded.filter((m) => m.kind === marker), ...dynamic.filter((m) => m.kind === marker)];
     const left = excluded.filter((e) => e.kind === marker);
-    const line: MarkerLine = { marker, status: found.length ? 'read' : left.length ? 'excluded' : 'absent' };
+    const line: MarkerLine = { marker, status: left.length ? 'excluded' : 'absent' };
+    if (found.length) line.status = 'read';
     if (found.length) {
       line.read = {
         count: found.length,
@@ -166,7 +171,10 @@ const clean = (t: string): string => {
   return s.length > 120 ? `${s.slice(0, 120)}…` : s;
 };
 
-const age = (min: number): string => (min < 120 ? `${min} min` : min < 2880 ? `${Math.round(min / 60)} h` : `${Math.round(min / 1440)} d`);
+function age(min: number): string {
+  if (min < 120) return `${min} min`;
+  return min < 2880 ? `${Math.round(min / 60)} h` : `${Math.round(min / 1440)} d`;
+}
 
 /** Writes the report as text (for people) or JSON (for machines) to `write`. */
 export function writeReport(report: ReadinessReport, format: 'text' | 'json', write: (text: string) => void): void {
@@ -188,7 +196,9 @@ export function writeReport(report: ReadinessReport, format: 'text' | 'json', wr
       write(`  Left out before reading (${p.leftOut.reduce((n, e) => n + e.count, 0)}):\n`);
       for (const e of p.leftOut) write(`    ${String(e.count).padStart(4)} × ${e.reason}: ${clean(e.example)}\n`);
     }
-    const surveyed = p.survey ? (p.survey.problem ? `; the search of all Observations failed: ${p.survey.problem}, so this list may be incomplete` : `; from the newest ${p.survey.count} Observations`) : '';
+    let surveyed = '';
+    if (p.survey?.problem) surveyed = `; the search of all Observations failed: ${p.survey.problem}, so this list may be incomplete`;
+    else if (p.survey) surveyed = `; from the newest ${p.survey.count} Observations`;
     write(`  Present under a code no map covers (${p.unmapped.length}${surveyed}):\n`);
     for (const u of p.unmapped) write(`    ${clean(u.system)} | ${clean(u.code)}${u.display ? ` "${clean(u.display)}"` : ''} × ${u.count}${u.note ? ` (${u.note})` : ''}\n`);
     write(`  Absent (${absent.length}): ${absent.map((m) => m.marker).join(', ') || '(none)'}\n`);

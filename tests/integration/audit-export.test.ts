@@ -21,12 +21,24 @@ function parseCsv(text: string): string[][] {
   for (let i = 0; i < text.length; i += 1) {
     const ch = text[i] as string;
     if (quoted) {
-      if (ch === '"' && text[i + 1] === '"') (cell += '"', (i += 1));
+      if (ch === '"' && text[i + 1] === '"') {
+        cell += '"';
+        i += 1;
+      }
       else if (ch === '"') quoted = false;
       else cell += ch;
     } else if (ch === '"') quoted = true;
-    else if (ch === ',') (row.push(cell), (cell = ''));
-    else if (ch === '\r' && text[i + 1] === '\n') (row.push(cell), rows.push(row), (row = []), (cell = ''), (i += 1));
+    else if (ch === ',') {
+      row.push(cell);
+      cell = '';
+    }
+    else if (ch === '\r' && text[i + 1] === '\n') {
+      row.push(cell);
+      rows.push(row);
+      row = [];
+      cell = '';
+      i += 1;
+    }
     else cell += ch;
   }
   return rows;

@@ -168,6 +168,7 @@ async function connectAdmin(): Promise<pg.Client> {
     throw new Error(
       `PostgreSQL is required for the audit contract tests and could not be reached at ${PG_URL} (${(e as Error).message}). ` +
         'Start PostgreSQL or set TIDEMARK_TEST_PG_URL.',
+      { cause: e },
     );
   }
   return c;

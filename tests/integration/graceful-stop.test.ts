@@ -58,17 +58,26 @@ function start(command: string, args: string[], sqlitePath: string): Promise<{ p
     proc.stdout?.on('data', (d: Buffer) => {
       seen += d.toString();
       const m = /"port":(\d+)/.exec(seen);
-      if (m) (clearTimeout(timer), resolve({ proc, port: Number(m[1]) }));
+      if (m) {
+        clearTimeout(timer);
+        resolve({ proc, port: Number(m[1]) });
+      }
     });
     proc.stderr?.on('data', (d: Buffer) => (seen += d.toString()));
-    proc.on('exit', (code) => (clearTimeout(timer), reject(new Error(`the built service exited ${code}: ${seen}`))));
+    proc.on('exit', (code) => {
+      clearTimeout(timer);
+      reject(new Error(`the built service exited ${code}: ${seen}`));
+    });
   });
 }
 
 function refusesConnections(port: number): Promise<boolean> {
   return new Promise((resolve) => {
     const s = connect(port, '127.0.0.1');
-    s.once('connect', () => (s.destroy(), resolve(false)));
+    s.once('connect', () => {
+      s.destroy();
+      resolve(false);
+    });
     s.once('error', () => resolve(true));
   });
 }

@@ -46,9 +46,18 @@ beforeAll(async () => {
   let n = 0;
   const hi = () => `00000000-0000-4000-8000-${String((n += 1)).padStart(12, '0')}`;
   const made: Array<[string, string]> = [];
-  for (let i = 0; i < 3; i += 1) made.push(['ppv14', hi()]), await answer(prefetchOf(ppvCase(14)), made[made.length - 1]![1]);
-  for (let i = 0; i < 2; i += 1) made.push(['ppv17', hi()]), await answer(prefetchOf(ppvCase(17)), made[made.length - 1]![1]);
-  for (const c of Object.values(ADVICE_CASES)) made.push(['matrix', hi()]), await answer(prefetchOf(c), made[made.length - 1]![1]);
+  for (let i = 0; i < 3; i += 1) {
+    made.push(['ppv14', hi()]);
+    await answer(prefetchOf(ppvCase(14)), made[made.length - 1]![1]);
+  }
+  for (let i = 0; i < 2; i += 1) {
+    made.push(['ppv17', hi()]);
+    await answer(prefetchOf(ppvCase(17)), made[made.length - 1]![1]);
+  }
+  for (const c of Object.values(ADVICE_CASES)) {
+    made.push(['matrix', hi()]);
+    await answer(prefetchOf(c), made[made.length - 1]![1]);
+  }
   const list = (await s.svc.store.list({ limit: 50 })).items;
   for (const [group, instance] of made) ids[group]!.push(list.find((x) => x.hookInstance === instance)!.id);
 });

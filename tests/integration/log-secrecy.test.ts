@@ -2,6 +2,7 @@
 // patient's name never reaches the logs. CDS Hooks 2.0 §Security: treat the access token as transient.
 import { readdirSync, readFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
+import type { Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import express from 'express';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -14,7 +15,7 @@ const NAME_FAMILY = 'Quarringtonova';
 const NAME_GIVEN = 'Zebedina';
 
 let s: Running;
-let fhir: import('node:http').Server;
+let fhir: Server;
 let fhirUrl = '';
 const seenAuth: string[] = [];
 

@@ -187,7 +187,10 @@ describe('the start-up line and where the service listens', () => {
         child.stdout.on('data', (d: Buffer) => {
           buf += d.toString();
           const found = buf.split('\n').find((l) => l.includes('"Tidemark listening'));
-          if (found) (clearTimeout(timer), resolve(JSON.parse(found) as Record<string, unknown>));
+          if (found) {
+            clearTimeout(timer);
+            resolve(JSON.parse(found) as Record<string, unknown>);
+          }
         });
         child.on('exit', (code) => reject(new Error(`exited ${code}: ${buf}`)));
       });

@@ -206,7 +206,8 @@ describe('tolerance properties', () => {
             ...s.measurements,
             ...stale.map((x, i) => {
               // A value inside the kind's plausible range, in its canonical unit.
-              const [lo, hi] = x.kind === 'fio2' ? [21, 100] : x.kind === 'edemaGrade' ? [0, 4] : [0, 100];
+              const range: Record<string, [number, number]> = { fio2: [21, 100], edemaGrade: [0, 4] };
+              const [lo, hi] = range[x.kind] ?? [0, 100];
               return m(x.kind, lo + x.frac * (hi - lo), x.ago, { ref: `Observation/stale-${i}`, ...(x.period ? { periodMinutes: x.period } : {}) });
             }),
           ],

@@ -37,7 +37,11 @@ const state: GuardState = ((globalThis as Record<symbol, unknown>)[KEY] as Guard
 (globalThis as Record<symbol, unknown>)[KEY] = state;
 
 function preview(args: unknown[]): string {
-  const s = args.map((a) => (typeof a === 'string' ? a : a instanceof Uint8Array ? Buffer.from(a).toString('utf8') : safeString(a))).join(' ');
+  const text = (a: unknown): string => {
+    if (typeof a === 'string') return a;
+    return a instanceof Uint8Array ? Buffer.from(a).toString('utf8') : safeString(a);
+  };
+  const s = args.map(text).join(' ');
   return s.length > 200 ? `${s.slice(0, 200)}…` : s;
 }
 

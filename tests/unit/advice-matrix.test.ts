@@ -36,7 +36,8 @@ describe('the matrix, later phase, with signs of hypoperfusion', () => {
   for (const [cell, action] of Object.entries(EXPECTED)) {
     it(`${cell} → ${action}, headline key ${cell}`, () => {
       const [row, t] = cell.split('/') as [string, Tolerance];
-      const r = row === 'likely-low' ? rv('likely', 'low') : row === 'unlikely-low' ? rv('unlikely', 'low') : rv(row as Responsiveness, row === 'indeterminate' ? undefined : 'high');
+      const low: Record<string, ReturnType<typeof rv>> = { 'likely-low': rv('likely', 'low'), 'unlikely-low': rv('unlikely', 'low') };
+      const r = low[row] ?? rv(row as Responsiveness, row === 'indeterminate' ? undefined : 'high');
       const rec = advise({ r, t });
       expect(rec).toMatchObject({ action, headline: cell, cell });
     });

@@ -2,9 +2,10 @@
 import { describe, expect, it, vi } from 'vitest';
 import { loadCatalogue } from '../../src/cards/catalogue.js';
 import { SnapshotBuilder } from '../helpers/snapshot-builder.js';
+import type * as Plots from '../../src/pages/plots.js';
 
 vi.mock('../../src/pages/plots.js', async (orig) => ({
-  ...(await orig<typeof import('../../src/pages/plots.js')>()),
+  ...(await orig<typeof Plots>()),
   plotSvg: async () => { throw new Error('cannot draw'); },
 }));
 const { renderAdvicePage } = await import('../../src/pages/index.js');

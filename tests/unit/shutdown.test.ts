@@ -51,7 +51,11 @@ async function rig(opts: { graceMs?: number; storeFails?: boolean } = {}): Promi
       if (opts.storeFails) throw new Error('the writer thread did not answer');
     },
   }, { graceMs: opts.graceMs ?? 60_000, exit: exited });
-  cleanups.push(() => (release(), server.closeAllConnections(), server.close()));
+  cleanups.push(() => {
+    release();
+    server.closeAllConnections();
+    server.close();
+  });
   return r;
 }
 

@@ -16,7 +16,8 @@ function unique<T>(xs: T[]): T[] {
 
 export function matrixRow(r: Verdict<Responsiveness>): MatrixRow {
   if (r.value === 'indeterminate') return 'indeterminate';
-  return r.confidence === 'low' ? (r.value === 'likely' ? 'likely-low' : 'unlikely-low') : r.value;
+  if (r.confidence !== 'low') return r.value;
+  return r.value === 'likely' ? 'likely-low' : 'unlikely-low';
 }
 
 export interface AdviseInput {
@@ -53,17 +54,19 @@ export function adviseOrder(a: AdviseInput): OrderRecommendation {
       alternatives = row === 'unlikely' ? ['vasopressor', 'echo', 'cause'] : ['vasopressor'];
     }
   } else if (critical) {
-    headline = r.value === 'likely' ? 'congestion/likely' : r.value === 'unlikely' ? 'congestion/unlikely' : 'congestion/indeterminate';
+    headline = `congestion/${r.value}`;
   } else if (need.value !== 'present' && (r.value === 'likely' || (r.value === 'indeterminate' && need.value === 'absent'))) {
     action = 'question-need';
-    headline = need.value === 'unknown' ? 'need-unknown/responsive' : r.value === 'likely' ? 'no-need/responsive' : 'no-need/untested';
+    if (need.value === 'unknown') headline = 'need-unknown/responsive';
+    else headline = r.value === 'likely' ? 'no-need/responsive' : 'no-need/untested';
     alternatives = ['perfusion-check'];
   } else if (onlyStale) {
     headline = 'stale-data/any';
   }
 
-  const indicator: AdviceIndicator = critical ? 'critical'
-    : tol.value === 'limited' || tol.value === 'poor' || r.value === 'unlikely' || action === 'question-need' ? 'warning' : 'info';
+  const cautious = tol.value === 'limited' || tol.value === 'poor' || r.value === 'unlikely' || action === 'question-need';
+  let indicator: AdviceIndicator = cautious ? 'warning' : 'info';
+  if (critical) indicator = 'critical';
 
   const reasons: string[] = [r.rationale, tol.rationale, need.rationale, phase.rationale];
   if (critical) reasons.push(`Signs that volume is likely to harm: ${harm.map((f) => f.text).join('; ')}.`);

@@ -31,7 +31,7 @@ export function usableTime(iso: string | undefined, now: Date): boolean {
 }
 
 export function compareText(a: string, b: string): number {
-  return a < b ? -1 : a > b ? 1 : 0;
+  return Number(a > b) - Number(a < b);
 }
 
 /** Newest first; ties by reference, then by content, so the order is total. */

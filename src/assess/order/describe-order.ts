@@ -71,7 +71,7 @@ function perKgFinding(order: DraftOrder, snapshot: PatientSnapshot, now: Date, t
   const w = weightForPerKg(snapshot, now, t);
   if (!w) return notAssessed(ORDER_VOLUME_PER_KG, 'Volume per kg not given', 'no body weight recorded', ev);
   const perKg = order.volumeMl / w.m.value;
-  const basis = w.basis === 'latest' ? 'latest weight' : w.basis === 'admission' ? 'admission weight' : 'earliest recorded weight';
+  const basis = { latest: 'latest weight', admission: 'admission weight', 'earliest-recorded': 'earliest recorded weight' }[w.basis];
   return {
     ruleId: ORDER_VOLUME_PER_KG, topic: 'order', part: 'volume-per-kg', status: 'assessed',
     text: `${fmt(perKg, 1)} mL/kg (${basis} ${fmt(w.m.value, 1)} kg)`,

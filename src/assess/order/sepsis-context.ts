@@ -32,7 +32,7 @@ export function fluidGivenWithin(snapshot: PatientSnapshot, now: Date, hours: nu
       const end = timeMs(f.end);
       return { f, id: f.ref, volumeMl: f.volumeMl, startMs, endMs: Number.isFinite(end) && end >= startMs ? end : startMs };
     })
-    .sort((a, b) => a.endMs - b.endMs || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+    .sort((a, b) => a.endMs - b.endMs || (Number(a.id > b.id) - Number(a.id < b.id)));
   const inWin = recs.filter((r) => volumeInWindowMl([r], fromMs, toMs) > 0);
   const crystalloid = inWin.filter((r) => r.f.fluidClass === 'balanced-crystalloid' || r.f.fluidClass === 'saline');
   return {

@@ -46,7 +46,8 @@ export const MEASURED_LABEL: Record<DynamicMeasured, string> = {
 
 function rank(spec: DynamicTestSpec, d: DynamicTestResult): number {
   const r = spec.readOuts[d.measured];
-  return r === undefined ? 2 : r.tier === 'dynamic' ? 0 : 1;
+  if (r === undefined) return 2;
+  return r.tier === 'dynamic' ? 0 : 1;
 }
 
 /**

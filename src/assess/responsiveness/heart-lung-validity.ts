@@ -57,8 +57,11 @@ export function checkVentilation(ctx: RuleContext): Condition {
   const ev = (c: Parameters<typeof evidenceOfCoded>[0]) => evidenceOfCoded(c, ctx.now);
   if (sel.state !== 'fresh') return { id: 'ventilation', label, state: 'unknown', error: 'void', detail: why(sel, 'ventilation state'), evidence: seen(sel, ev), values: {} };
   const answer = sel.item.answer;
-  const detail = answer === 'controlled-no-effort' ? 'controlled ventilation, no spontaneous effort'
-    : answer === 'controlled-with-effort' ? 'spontaneous breathing effort on the ventilator' : 'spontaneous breathing';
+  const details: Record<string, string> = {
+    'controlled-no-effort': 'controlled ventilation, no spontaneous effort',
+    'controlled-with-effort': 'spontaneous breathing effort on the ventilator',
+  };
+  const detail = details[answer] ?? 'spontaneous breathing';
   return { id: 'ventilation', label, state: answer === 'controlled-no-effort' ? 'met' : 'failed', error: 'void', detail, evidence: [ev(sel.item)], values: { ventilationMode: answer } };
 }
 

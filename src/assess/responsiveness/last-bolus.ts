@@ -137,7 +137,8 @@ export const lastBolusRule: ResponsivenessRule = {
 
     if (flow) {
       const positive = flow.changePercent >= t.bolusFlowRisePercent;
-      const label = flow.kind === 'cardiacOutput' ? 'cardiac output' : flow.kind === 'cardiacIndex' ? 'cardiac index' : 'stroke volume';
+      const labels: Partial<Record<NumericKind, string>> = { cardiacOutput: 'cardiac output', cardiacIndex: 'cardiac index' };
+      const label = labels[flow.kind] ?? 'stroke volume';
       return assessed({
         ...base, direction: positive ? 'for' : 'against', tier: 'dynamic',
         text: `${head}: ${label} ${fmt(flow.before.value, 2)} → ${fmt(flow.after.value, 2)} (${signed(flow.changePercent)} %; threshold ≥ ${fmt(t.bolusFlowRisePercent, 1)} %, dense monitor data): `
@@ -172,8 +173,9 @@ export const lastBolusRule: ResponsivenessRule = {
     const extra = secondary(ctx, startMs, endMs);
     const changeText = `MAP ${fmt(mapPre.mapMmHg)} → ${fmt(mapPost.mapMmHg)} mmHg (${signed(dMap)}), HR ${fmt(hrPre.value)} → ${fmt(hrPost.value)}/min (${signed(dHr)})`
       + (extra.text.length ? `; ${extra.text.join('; ')}` : '');
-    const direction = mapUp && hrDown ? 'for' : !mapUp && !hrDown ? 'against' : 'neutral';
-    const reading = direction === 'for' ? 'read as a response' : direction === 'against' ? 'no response' : 'partial response, inconclusive';
+    let direction: 'for' | 'against' | 'neutral' = mapUp === hrDown ? 'against' : 'neutral';
+    if (mapUp && hrDown) direction = 'for';
+    const reading = { for: 'read as a response', against: 'no response', neutral: 'partial response, inconclusive' }[direction];
     return assessed({
       ...base, direction, tier: 'static',
       text: `${head}: ${changeText}: ${reading} (hourly pressure change: a weak static marker, corroborates only)`,

@@ -11,7 +11,7 @@ import type { Measurement, PatientSnapshot } from '../../snapshot/types.js';
 import { meanArterialPressureMmHg } from '../../physiology/mean-arterial-pressure.js';
 import { abdominalPerfusionPressure, filtrationGradient, iahGrade, iahGradeLabel } from '../../physiology/intra-abdominal-pressure.js';
 import type { Evidence, ToleranceFinding } from '../common/finding.js';
-import { assessed, unusableTolerance } from './finding.js';
+import { assessed, unusableTolerance, limitFrom } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
 import { DEFAULT_WINDOWS, type Windows } from '../common/windows.js';
 import { evidenceOfMeasurement, latestReading, readingsOldestFirst, timeMs } from '../common/select.js';
@@ -48,7 +48,7 @@ export function abdominalPressureRule(snapshot: PatientSnapshot, now: Date, t: T
   }
   const iap = pick.item.value;
   const grade = iahGrade(iap, t.iahMmHg);
-  const limit = grade >= t.iahSevereGrade ? 'severe' : grade >= 1 ? 'moderate' : 'none';
+  const limit = limitFrom(grade, t.iahSevereGrade, 1);
   const map = mapNear(snapshot, now, timeMs(pick.item.effective), t.mapPairMinutes * 60_000);
   const values: Record<string, number | string | boolean> = { iapMmHg: iap, iahGrade: grade };
   let perfusion = '';

@@ -27,10 +27,13 @@ export function albuminRule(snapshot: PatientSnapshot, now: Date, t: ToleranceTh
   }
   const severe = m.value < t.albuminSevereLowGPerL;
   const low = m.value < t.albuminLowGPerL;
+  let band = low ? 'low' : 'normal';
+  let bandText = low ? ` (low, < ${t.albuminLowGPerL} g/L)` : '';
+  if (severe) [band, bandText] = ['severely-low', ` (severely low, < ${t.albuminSevereLowGPerL} g/L)`];
   return [assessed({
     ruleId: ALBUMIN, domain: 'oncotic', limit: 'none', context: true,
-    text: `Serum albumin ${fmt(m.value)} g/L${severe ? ` (severely low, < ${t.albuminSevereLowGPerL} g/L)` : low ? ` (low, < ${t.albuminLowGPerL} g/L)` : ''}: context, not a limit of tolerance`,
-    values: { albuminGPerL: m.value, band: severe ? 'severely-low' : low ? 'low' : 'normal' },
+    text: `Serum albumin ${fmt(m.value)} g/L${bandText}: context, not a limit of tolerance`,
+    values: { albuminGPerL: m.value, band },
     evidence: [evidenceOfMeasurement(m, now)], source: SOURCE,
   })];
 }

@@ -69,7 +69,7 @@ function administrationRecords(snapshot: PatientSnapshot, now: Date): Rec[] {
       evidence: { ref: f.ref, kind: `fluid:${f.fluidClass}`, value: f.volumeMl, unit: 'mL', effective: f.end, ageMinutes: ageMinutesRounded(f.end, now) },
     });
   }
-  return out.sort((a, b) => a.endMs - b.endMs || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+  return out.sort((a, b) => a.endMs - b.endMs || (Number(a.id > b.id) - Number(a.id < b.id)));
 }
 
 function inWindow(recs: readonly Rec[], fromMs: number, toMs: number): Rec[] {
@@ -109,10 +109,15 @@ export function balanceOver(snapshot: PatientSnapshot, now: Date, fromMs: number
 
   // Overlapping records are reported only when they fall in the window (older ones do not concern it).
   const droppedIn = (d: Rec[]) => inWindow(d, fromMs, toMs).length;
-  const intake = intakeW.length > 0 ? { recs: intakeW, source: 'intake-observations' as const, dropped: droppedIn(intakeObs.dropped) }
-    : adminW.length > 0 ? { recs: adminW, source: 'administrations' as const, dropped: 0 } : undefined;
-  const output = outputW.length > 0 ? { recs: outputW, source: 'output-observations' as const, dropped: droppedIn(outputObs.dropped) }
-    : urineW.length > 0 ? { recs: urineW, source: 'urine-observations' as const, dropped: droppedIn(urineObs.dropped) } : undefined;
+  const firstWith = <S extends string>(...options: Array<{ recs: Rec[]; source: S; dropped: number }>) => options.find((o) => o.recs.length > 0);
+  const intake = firstWith(
+    { recs: intakeW, source: 'intake-observations' as const, dropped: droppedIn(intakeObs.dropped) },
+    { recs: adminW, source: 'administrations' as const, dropped: 0 },
+  );
+  const output = firstWith(
+    { recs: outputW, source: 'output-observations' as const, dropped: droppedIn(outputObs.dropped) },
+    { recs: urineW, source: 'urine-observations' as const, dropped: droppedIn(urineObs.dropped) },
+  );
 
   let result: BalanceWindowResult | undefined;
   if (intake && output) {
@@ -137,10 +142,11 @@ export function balanceOver(snapshot: PatientSnapshot, now: Date, fromMs: number
     };
   }
   if (!result) {
-    const missing = !intake && !output ? 'no intake or output recorded' : !intake ? 'no intake recorded (no intake observations or IV administrations)' : 'no output recorded (no output or urine observations)';
+    let missing = 'no output recorded (no output or urine observations)';
+    if (!intake) missing = output ? 'no intake recorded (no intake observations or IV administrations)' : 'no intake or output recorded';
     return { ok: false, reason: `${missing} in the window, and no charted balance` };
   }
-  result.evidence.sort((a, b) => timeMs(a.effective) - timeMs(b.effective) || (a.ref < b.ref ? -1 : a.ref > b.ref ? 1 : 0));
+  result.evidence.sort((a, b) => timeMs(a.effective) - timeMs(b.effective) || (Number(a.ref > b.ref) - Number(a.ref < b.ref)));
   if ((now.getTime() - result.latestEndMs) / 60_000 > recencyMinutes) {
     return {
       ok: false,

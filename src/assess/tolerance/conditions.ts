@@ -27,7 +27,7 @@ export function matchConditionSets(entry: ConditionEntry, sets: ConditionSets = 
 export function conditionsRule(snapshot: PatientSnapshot, now: Date, _t: ToleranceThresholds): ToleranceFinding[] {
   const active = snapshot.conditions
     .filter((c) => CONDITION_SETS.activeStatuses.includes(c.clinicalStatus))
-    .sort((a, b) => (a.ref < b.ref ? -1 : a.ref > b.ref ? 1 : 0));
+    .sort((a, b) => (Number(a.ref > b.ref) - Number(a.ref < b.ref)));
   if (active.length === 0) {
     const reason = snapshot.conditions.length === 0 ? 'no conditions recorded' : 'no active condition recorded';
     return [notAssessed(CONDITIONS, 'conditions', 'Conditions that lower tolerance not assessed', reason, SOURCE)];

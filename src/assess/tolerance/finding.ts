@@ -10,6 +10,12 @@ import type { CodedMeasurement, Measurement } from '../../snapshot/types.js';
 
 export type { ToleranceDomain, ToleranceLimit } from '../common/finding.js';
 
+/** A graded value as a limit: severe from `severeFrom`, moderate from `moderateFrom` (both ≥), else none. */
+export function limitFrom(value: number, severeFrom: number, moderateFrom: number): ToleranceLimit {
+  if (value >= severeFrom) return 'severe';
+  return value >= moderateFrom ? 'moderate' : 'none';
+}
+
 export interface AssessedArgs {
   ruleId: string;
   domain: ToleranceDomain;

@@ -5,8 +5,8 @@
  * Am J Kidney Dis 2010 [M]) — bands from children on CRRT, applied only below `paediatricBelowAgeYears`.
  */
 import type { PatientSnapshot } from '../../snapshot/types.js';
-import { fluidOverloadBand, percentFluidOverloadFromBalance } from '../../physiology/fluid-overload.js';
-import type { ToleranceFinding } from '../common/finding.js';
+import { fluidOverloadBand, percentFluidOverloadFromBalance, type FluidOverloadBand } from '../../physiology/fluid-overload.js';
+import type { ToleranceFinding, ToleranceLimit } from '../common/finding.js';
 import { balanceOver, cumulativeStartMs } from './balance-data.js';
 import { assessed, notAssessed } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
@@ -29,13 +29,15 @@ export function fluidOverloadRule(snapshot: PatientSnapshot, now: Date, t: Toler
   const r = out.result;
   const percent = percentFluidOverloadFromBalance(r.balanceMl, weight.m.value);
   const child = snapshot.patient.ageYears !== undefined && snapshot.patient.ageYears < t.paediatricBelowAgeYears;
-  const band = child
-    ? fluidOverloadBand(percent, t.fluidOverloadModeratePercent, t.fluidOverloadSeverePercent)
-    : fluidOverloadBand(percent, t.adultFluidOverloadPercent, t.adultFluidOverloadPercent) === 'below' ? 'below' : 'severe';
-  const limit = band === 'severe' ? 'severe' : band === 'moderate' ? 'moderate' : 'none';
-  const bandText = child
-    ? (band === 'severe' ? ` (≥ ${t.fluidOverloadSeverePercent} %, paediatric band)` : band === 'moderate' ? ` (≥ ${t.fluidOverloadModeratePercent} %, paediatric band)` : '')
-    : band === 'severe' ? ` (≥ ${t.adultFluidOverloadPercent} %, adult band)` : '';
+  const adultOver = fluidOverloadBand(percent, t.adultFluidOverloadPercent, t.adultFluidOverloadPercent) !== 'below';
+  let band: FluidOverloadBand = adultOver ? 'severe' : 'below';
+  if (child) band = fluidOverloadBand(percent, t.fluidOverloadModeratePercent, t.fluidOverloadSeverePercent);
+  const limit: ToleranceLimit = band === 'below' ? 'none' : band;
+  const from: Record<FluidOverloadBand, number | undefined> = child
+    ? { severe: t.fluidOverloadSeverePercent, moderate: t.fluidOverloadModeratePercent, below: undefined }
+    : { severe: t.adultFluidOverloadPercent, moderate: undefined, below: undefined };
+  const bandFrom = from[band];
+  const bandText = bandFrom === undefined ? '' : ` (≥ ${bandFrom} %, ${child ? 'paediatric' : 'adult'} band)`;
   const weightText = weight.basis === 'admission' ? 'admission weight' : 'earliest recorded weight';
   return [assessed({
     ruleId: FLUID_OVERLOAD, domain: 'balance', limit,

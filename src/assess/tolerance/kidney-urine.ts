@@ -10,7 +10,7 @@ import type { PatientSnapshot } from '../../snapshot/types.js';
 import { coveredMs, volumeInWindowMl, withoutOverlaps, type VolumeRecord } from '../../physiology/fluid-balance.js';
 import { kdigoStageFromUrineOutput, urineOutputMlPerKgPerHour, type UrineWindow } from '../../physiology/kdigo.js';
 import type { Evidence, ToleranceFinding } from '../common/finding.js';
-import { assessed, notAssessed } from './finding.js';
+import { assessed, notAssessed, limitFrom } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
 import { weightForPerKg } from './weights.js';
 import { evidenceOfMeasurement, readingsOldestFirst, timeMs } from '../common/select.js';
@@ -29,7 +29,7 @@ export function urineIntervals(snapshot: PatientSnapshot, now: Date, maxGapMinut
     const s = m.periodStart !== undefined ? timeMs(m.periodStart) : endMs;
     return { id: m.ref, volumeMl: m.value, startMs: Number.isFinite(s) && s <= endMs ? s : endMs, endMs, evidence: evidenceOfMeasurement(m, now) };
   });
-  const kept = withoutOverlaps(recs).kept.sort((a, b) => a.endMs - b.endMs || a.startMs - b.startMs || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
+  const kept = withoutOverlaps(recs).kept.sort((a, b) => a.endMs - b.endMs || a.startMs - b.startMs || (Number(a.id > b.id) - Number(a.id < b.id)));
   const intervals: UrineRec[] = [];
   const unplaced: UrineRec[] = [];
   let prev: { endMs: number; startMs: number; placed: boolean } | undefined;
@@ -85,7 +85,7 @@ export function kidneyUrineRule(snapshot: PatientSnapshot, now: Date, t: Toleran
   }
   // The window shown: the longest one that gives the stage (or the longest judged when stage 0).
   const shown = [...windows].reverse().find((w) => kdigoStageFromUrineOutput([w]) === stage) ?? windows.at(-1)!;
-  const limit = stage >= 3 ? 'severe' : stage >= 1 ? 'moderate' : 'none';
+  const limit = limitFrom(stage, 3, 1);
   return [assessed({
     ruleId: KIDNEY_URINE, domain: 'kidneys', limit,
     text: `Urine output ${fmt(shown.mlPerKgPerHour, 2)} mL/kg/h over ${fmt(shown.hours)} h (${fmt(shown.volumeMl)} mL, ${fmt(kg, 1)} kg)${stage > 0 ? `: KDIGO stage ${stage} by urine output` : ''}`,

@@ -34,6 +34,14 @@ function cappedLimit(n: number, t: ToleranceThresholds): ToleranceLimit {
   return n >= t.bLineModerateRegions ? 'moderate' : 'none';
 }
 
+/** The B-pattern's spread: both sides positive, one side, scattered (≥ the moderate count in all), a few regions, none. */
+function lungPattern(diffuse: boolean, oneSide: boolean, sum: number, t: ToleranceThresholds): string {
+  if (diffuse) return 'diffuse';
+  if (oneSide) return 'one-sided';
+  if (sum >= t.bLineModerateRegions) return 'scattered';
+  return sum > 0 ? 'focal' : 'none';
+}
+
 const LIMIT_ORDER: Record<ToleranceLimit, number> = { none: 0, moderate: 1, severe: 2 };
 
 function bySide(left: Measurement, right: Measurement, whole: Measurement | undefined, now: Date, t: ToleranceThresholds): ToleranceFinding {
@@ -43,7 +51,7 @@ function bySide(left: Measurement, right: Measurement, whole: Measurement | unde
   const positive = (n: number) => n >= per;
   const diffuse = positive(l) && positive(r);
   const sum = l + r;
-  const pattern = diffuse ? 'diffuse' : positive(l) || positive(r) ? 'one-sided' : sum >= t.bLineModerateRegions ? 'scattered' : sum > 0 ? 'focal' : 'none';
+  const pattern = lungPattern(diffuse, positive(l) || positive(r), sum, t);
   const sideLimit: ToleranceLimit = diffuse ? 'severe' : cappedLimit(sum, t);
   // A whole-chest count charted after both sides describes a later examination: it may raise the limit, never lower it.
   const later = whole && timeMs(whole.effective) > Math.max(timeMs(left.effective), timeMs(right.effective)) ? whole : undefined;
@@ -82,8 +90,9 @@ function sideUnknown(whole: Measurement | undefined, one: { side: Side; item: Me
   }
   const limit = cappedLimit(worst, t);
   const couldBeBilateral = worst >= 2 * t.bLineBilateralPerSide || (one !== undefined && one.item.value >= t.bLineBilateralPerSide);
-  const tail = limit === 'none' ? (worst > 0 ? ' (focal)' : '')
-    : `: ${couldBeBilateral ? `diffuse lung water needs ≥ ${fmt(t.bLineBilateralPerSide)} regions on each side, so ` : ''}read as a moderate limit`;
+  const why = couldBeBilateral ? `diffuse lung water needs ≥ ${fmt(t.bLineBilateralPerSide)} regions on each side, so ` : '';
+  let tail = `: ${why}read as a moderate limit`;
+  if (limit === 'none') tail = worst > 0 ? ' (focal)' : '';
   return assessed({
     ruleId: LUNG_ULTRASOUND, domain: 'lungs', limit, congestionSign: false,
     text: `Lung ultrasound: ${parts.join('; ')}${tail}`,
@@ -103,11 +112,13 @@ export function lungUltrasoundRule(snapshot: PatientSnapshot, now: Date, t: Tole
   const right = latestReading(snapshot, 'bLineRegionsRight', now, window);
   const [w, l, r] = [freshItem(whole), freshItem(left), freshItem(right)];
   if (l && r) return [bySide(l, r, w, now, t)];
-  const one = l ? { side: 'left' as const, item: l } : r ? { side: 'right' as const, item: r } : undefined;
+  const one = [{ side: 'left' as const, item: l }, { side: 'right' as const, item: r }].find((o): o is { side: 'left' | 'right'; item: Measurement } => o.item !== undefined);
   if (w || one) return [sideUnknown(w, one, now, t)];
   // Nothing fresh: say why by the first reading that exists (stale, invalid), else none recorded.
   const unusable = [whole, left, right].filter((s): s is Unusable<Measurement> => s.state !== 'fresh');
   const sel = unusable.find((s) => s.state !== 'missing') ?? { state: 'missing' as const, windowMin: window };
-  const label = sel === left ? 'Lung ultrasound (left lung)' : sel === right ? 'Lung ultrasound (right lung)' : 'Lung ultrasound';
+  let label = 'Lung ultrasound';
+  if (sel === left) label = 'Lung ultrasound (left lung)';
+  else if (sel === right) label = 'Lung ultrasound (right lung)';
   return [unusableTolerance(sel, { ruleId: LUNG_ULTRASOUND, domain: 'lungs', label, source: SOURCE, now })];
 }

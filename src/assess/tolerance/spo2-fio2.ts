@@ -93,7 +93,8 @@ export function spo2Fio2TrendRule(snapshot: PatientSnapshot, now: Date, t: Toler
   const latestOnPlateau = latest.spo2.value > t.spo2PlateauPercent;
   const falling = fall >= t.spo2Fio2FallPercent && !latestOnPlateau;
   const span = ageText((latest.timeMs - earliest.timeMs) / 60_000);
-  const move = fall > 0 ? `fell ${fmt(fall)} %` : fall < 0 ? `rose ${fmt(-fall)} %` : 'unchanged';
+  let move = fall > 0 ? `fell ${fmt(fall)} %` : 'unchanged';
+  if (fall < 0) move = `rose ${fmt(-fall)} %`;
   return [assessed({
     ruleId: SPO2_FIO2_TREND, domain: 'lungs', limit: falling ? 'moderate' : 'none', congestionSign: falling,
     text: `SpO2/FiO2 ${fmt(earliest.ratio)} → ${fmt(latest.ratio)} over ${span} (${move})${falling ? ': falling oxygenation' : ''}`,

@@ -8,7 +8,7 @@
 import type { PatientSnapshot } from '../../snapshot/types.js';
 import { hepaticSeverity, portalSeverity, renalSeverity, vexusGrade, type DopplerSeverity } from '../../physiology/vexus.js';
 import type { Evidence, ToleranceFinding } from '../common/finding.js';
-import { assessed, notAssessed, unusableTolerance } from './finding.js';
+import { assessed, limitFrom, notAssessed, unusableTolerance } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
 import { DEFAULT_WINDOWS, type Windows } from '../common/windows.js';
 import { evidenceOfCoded, evidenceOfMeasurement, latestCoded, latestReading } from '../common/select.js';
@@ -63,7 +63,7 @@ export function vexusRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThre
       `${ivcText} (≥ ${t.vexusIvcCm} cm) but no recent hepatic, portal or intrarenal Doppler pattern`, SOURCE, evidence, values)];
   }
   const definite = g.min === g.max;
-  const limit = g.min >= 3 ? 'severe' : g.min === 2 ? 'moderate' : 'none';
+  const limit = limitFrom(g.min, 3, 2); // grades are whole numbers 0–3
   const missingText = definite || g.missing.length === 0 ? '' : `; not recorded: ${g.missing.map((p) => PART_LABEL[p]).join(', ')}`;
   return [assessed({
     ruleId: VEXUS, domain: 'venous', limit, congestionSign: g.min >= 3,

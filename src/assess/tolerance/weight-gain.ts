@@ -6,7 +6,7 @@
 import type { PatientSnapshot } from '../../snapshot/types.js';
 import { weightGainPercent } from '../../physiology/fluid-overload.js';
 import type { ToleranceFinding } from '../common/finding.js';
-import { assessed, notAssessed } from './finding.js';
+import { assessed, notAssessed, limitFrom } from './finding.js';
 import type { ToleranceThresholds } from './thresholds.js';
 import { admissionWeight, latestWeight } from './weights.js';
 import { evidenceOfMeasurement, timeMs } from '../common/select.js';
@@ -31,8 +31,8 @@ export function weightGainRule(snapshot: PatientSnapshot, now: Date, t: Toleranc
   // Adults: the adult fluid-overload band (Bouchard 2009); children: the paediatric bands (Selewski 2011).
   const child = snapshot.patient.ageYears !== undefined && snapshot.patient.ageYears < t.paediatricBelowAgeYears;
   const limit = child
-    ? (percent >= t.weightGainSeverePercent ? 'severe' : percent >= t.weightGainModeratePercent ? 'moderate' : 'none')
-    : percent >= t.adultFluidOverloadPercent ? 'severe' : 'none';
+    ? limitFrom(percent, t.weightGainSeverePercent, t.weightGainModeratePercent)
+    : limitFrom(percent, t.adultFluidOverloadPercent, Infinity);
   const change = last.value - first.m.value;
   return [assessed({
     ruleId: WEIGHT_GAIN, domain: 'balance', limit,
