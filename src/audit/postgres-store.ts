@@ -15,9 +15,11 @@ import { createHash } from 'node:crypto';
 import pg from 'pg';
 import type { PoolClient } from 'pg';
 import { chainHashOfText, GENESIS, parseRecordText, recordText, storedHashMatches } from './chain.js';
-import { rowToFeedback } from './sqlite-store.js';
-import { PostgresReplayCache, replayTableDdl, type PostgresReplayCacheOptions } from './postgres-replay-cache.js';
+import { PostgresReplayCache, type PostgresReplayCacheOptions } from './postgres-replay-cache.js';
 import { feedbackKey, ownerOf, summarize } from './shared.js';
+import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
+import { feedbackCountsOf, feedbackStatsOf, feedbackStatsSql, rowToFeedback, type KindRow, type ReasonRow } from './sql/rows.js';
+import { adviceFilters, Where } from './sql/where.js';
 import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, RecordStreamQuery, StoredAdvice } from './types.js';
 
 export interface PostgresAuditStoreOptions {
@@ -36,55 +38,6 @@ const VERIFY_PAGE = 500;
 function lockKey(purpose: string, schema: string): string {
   return createHash('sha256').update(`tidemark-audit:${purpose}:${schema}`).digest().readBigInt64BE(0).toString();
 }
-
-function ddl(s: string): string[] {
-  return [
-    `CREATE TABLE IF NOT EXISTS ${s}.advice (
-      seq BIGINT GENERATED ALWAYS AS IDENTITY PRIMARY KEY,
-      id TEXT NOT NULL UNIQUE,
-      recorded_at TEXT COLLATE "C" NOT NULL,
-      service TEXT NOT NULL,
-      hook TEXT NOT NULL,
-      hook_instance TEXT NOT NULL,
-      patient_id TEXT,
-      encounter_id TEXT,
-      outcome TEXT NOT NULL,
-      rules_version TEXT NOT NULL,
-      record TEXT NOT NULL,
-      prev_hash TEXT NOT NULL,
-      hash TEXT NOT NULL,
-      issuer TEXT
-    )`,
-    `CREATE INDEX IF NOT EXISTS advice_patient_time ON ${s}.advice (patient_id, recorded_at)`,
-    `CREATE INDEX IF NOT EXISTS advice_time ON ${s}.advice (recorded_at)`,
-    `CREATE TABLE IF NOT EXISTS ${s}.advice_card (
-      card_uuid TEXT PRIMARY KEY,
-      advice_id TEXT NOT NULL REFERENCES ${s}.advice(id),
-      card_kind TEXT COLLATE "C" NOT NULL,
-      service TEXT NOT NULL
-    )`,
-    `CREATE INDEX IF NOT EXISTS advice_card_advice ON ${s}.advice_card (advice_id)`,
-    `CREATE TABLE IF NOT EXISTS ${s}.feedback (
-      feedback_key TEXT PRIMARY KEY,
-      card_uuid TEXT NOT NULL REFERENCES ${s}.advice_card(card_uuid),
-      outcome TEXT NOT NULL,
-      accepted_suggestions TEXT NOT NULL,
-      reason_system TEXT,
-      reason_code TEXT COLLATE "C",
-      reason_display TEXT,
-      user_comment TEXT,
-      outcome_timestamp TEXT COLLATE "C" NOT NULL,
-      received_at TEXT NOT NULL,
-      service TEXT NOT NULL,
-      arrival BIGINT GENERATED ALWAYS AS IDENTITY
-    )`,
-    `CREATE INDEX IF NOT EXISTS feedback_card ON ${s}.feedback (card_uuid)`,
-    replayTableDdl(s),
-  ];
-}
-
-/** Every table and index ddl() makes. */
-const RELATIONS = ['advice', 'advice_patient_time', 'advice_time', 'advice_card', 'advice_card_advice', 'feedback', 'feedback_card', 'jti_seen'];
 
 interface AdviceRow { seq: string; record: string; prev_hash: string; hash: string }
 
@@ -146,24 +99,37 @@ export class PostgresAuditStore implements AuditStore {
       const found = await c.query('SELECT 1 FROM pg_namespace WHERE nspname = $1', [this.schema]);
       // Only create the schema when it is absent, so a pre-created schema needs no CREATE right on the database.
       if (!found.rowCount) await c.query(`CREATE SCHEMA ${this.s}`);
-      // Likewise the DDL runs only when a table or index is missing, so a role with no CREATE right on the
-      // schema (only SELECT and INSERT on the tables: append-only) can start against tables made beforehand.
-      const have = await c.query<{ n: number }>(
-        'SELECT COUNT(*)::int AS n FROM pg_class r JOIN pg_namespace s ON s.oid = r.relnamespace WHERE s.nspname = $1 AND r.relname = ANY($2::text[])',
-        [this.schema, RELATIONS],
-      );
-      if ((have.rows[0]?.n ?? 0) < RELATIONS.length) for (const stmt of ddl(this.s)) await c.query(stmt).catch(explain(stmt));
-      // advice.issuer came with Tidemark 0.3 (the issuer that received the cards, for feedback): added to an older
-      // table, where it stays empty for the old rows (cardOwner then reads the issuer from the record text).
-      const col = await c.query(
-        "SELECT 1 FROM information_schema.columns WHERE table_schema = $1 AND table_name = 'advice' AND column_name = 'issuer'",
-        [this.schema],
-      );
-      if (!col.rowCount) {
-        const alter = `ALTER TABLE ${this.s}.advice ADD COLUMN issuer TEXT`;
-        await c.query(alter).catch(explain(alter));
-      }
+      // Likewise the migrations run only when the schema's recorded version is behind this Tidemark's, so a role
+      // with no CREATE right on the schema (only SELECT and INSERT on the tables: append-only) can start against
+      // tables the owner role has brought up to date.
+      const have = await this.schemaVersionIn(c);
+      if (have > SCHEMA_VERSION) throw new Error(`audit schema ${this.schema} has version ${have}, newer than this Tidemark's ${SCHEMA_VERSION}: upgrade Tidemark`);
+      if (have === SCHEMA_VERSION) return;
+      const statements = [
+        ...MIGRATIONS.filter((m) => m.version > have).flatMap((m) => m.postgres(this.s)),
+        `CREATE TABLE IF NOT EXISTS ${this.s}.schema_version (version INTEGER NOT NULL)`,
+        `DELETE FROM ${this.s}.schema_version`,
+        `INSERT INTO ${this.s}.schema_version (version) VALUES (${SCHEMA_VERSION})`,
+      ];
+      for (const stmt of statements) await c.query(stmt).catch(explain(stmt));
     });
+  }
+
+  /** The schema version recorded in this schema (0 when written before versions were kept, or not there yet). */
+  async schemaVersion(): Promise<number> {
+    const c = await this.pool.connect();
+    try {
+      return await this.schemaVersionIn(c);
+    } finally {
+      c.release();
+    }
+  }
+
+  private async schemaVersionIn(c: PoolClient): Promise<number> {
+    const t = await c.query("SELECT 1 FROM information_schema.tables WHERE table_schema = $1 AND table_name = 'schema_version'", [this.schema]);
+    if (!t.rowCount) return 0;
+    const r = await c.query<{ version: number }>(`SELECT MAX(version) AS version FROM ${this.s}.schema_version`);
+    return Number(r.rows[0]?.version ?? 0);
   }
 
   async append(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
@@ -197,27 +163,14 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
-    const where: string[] = [];
-    const args: Array<string | number> = [];
-    const add = (cond: (p: string) => string, v: string | number): void => {
-      args.push(v);
-      where.push(cond(`$${args.length}`));
-    };
-    if (q.patientId) add((p) => `patient_id = ${p}`, q.patientId);
-    if (q.service) add((p) => `service = ${p}`, q.service);
-    if (q.from) add((p) => `recorded_at >= ${p}`, q.from);
-    if (q.to) add((p) => `recorded_at <= ${p}`, q.to);
+    const w = adviceFilters(new Where('postgres'), q);
     if (q.cursor) {
       const n = Number(q.cursor);
       // As in SQLite, a cursor that is not a number matches nothing (PostgreSQL would rank NaN above every seq).
       if (Number.isNaN(n)) return { items: [] };
-      add((p) => `seq < ${p}::float8`, String(n));
+      w.add((p) => `seq < ${p}::float8`, String(n));
     }
-    args.push(q.limit + 1);
-    const r = await this.pool.query<AdviceRow>(
-      `SELECT seq, record, prev_hash, hash FROM ${this.s}.advice ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY seq DESC LIMIT $${args.length}`,
-      args,
-    );
+    const r = await this.pool.query<AdviceRow>(`SELECT seq, record, prev_hash, hash FROM ${this.s}.advice ${w.sql} ORDER BY seq DESC LIMIT ${w.param(q.limit + 1)}`, w.args);
     const page = r.rows.slice(0, q.limit).map((row) => ({ ...parseRecordText(row.record), seq: Number(row.seq) }));
     const counts = await this.feedbackCounts(page.map((p) => p.id));
     const items = page.map((p) => summarize(p, counts));
@@ -227,39 +180,25 @@ export class PostgresAuditStore implements AuditStore {
 
   /** Cards accepted and cards overridden per advice (distinct cards, as feedbackStats counts them; not feedback rows). */
   private async feedbackCounts(adviceIds: string[]): Promise<Map<string, { accepted: number; overridden: number }>> {
-    const out = new Map<string, { accepted: number; overridden: number }>();
-    if (!adviceIds.length) return out;
+    if (!adviceIds.length) return new Map();
     const r = await this.pool.query<{ advice_id: string; outcome: string; n: number }>(
       `SELECT c.advice_id, f.outcome, COUNT(DISTINCT f.card_uuid)::int AS n FROM ${this.s}.feedback f JOIN ${this.s}.advice_card c ON c.card_uuid = f.card_uuid
        WHERE c.advice_id = ANY($1::text[]) GROUP BY c.advice_id, f.outcome`,
       [adviceIds],
     );
-    for (const row of r.rows) {
-      const c = out.get(row.advice_id) ?? { accepted: 0, overridden: 0 };
-      if (row.outcome === 'accepted') c.accepted += row.n;
-      else c.overridden += row.n;
-      out.set(row.advice_id, c);
-    }
-    return out;
+    return feedbackCountsOf(r.rows);
   }
 
   /** Keyset paging by seq: one short query per batch, no cursor or connection held between batches. */
   async *records(q: RecordStreamQuery): AsyncGenerator<StoredAdvice> {
-    const args: Array<string | number> = ['0'];
-    const where = ['seq > $1::bigint'];
-    const add = (cond: (p: string) => string, v: string): void => {
-      args.push(v);
-      where.push(cond(`$${args.length}`));
-    };
-    if (q.service) add((p) => `service = ${p}`, q.service);
-    if (q.from) add((p) => `recorded_at >= ${p}`, q.from);
-    if (q.to) add((p) => `recorded_at <= ${p}`, q.to);
-    if (q.outcome) add((p) => `outcome = ${p}`, q.outcome);
+    const w = new Where('postgres');
+    w.raw(`seq > ${w.param('0')}::bigint`); // the keyset bound, set per batch below
+    adviceFilters(w, q);
     const batch = Math.max(1, Math.min(Math.trunc(q.batchSize ?? VERIFY_PAGE), 10_000));
     let after = String(Math.trunc(q.afterSeq ?? 0));
     for (;;) {
-      args[0] = after;
-      const r = await this.pool.query<AdviceRow>(`SELECT seq, record, prev_hash, hash FROM ${this.s}.advice WHERE ${where.join(' AND ')} ORDER BY seq LIMIT ${batch}`, args);
+      w.args[0] = after;
+      const r = await this.pool.query<AdviceRow>(`SELECT seq, record, prev_hash, hash FROM ${this.s}.advice ${w.sql} ORDER BY seq LIMIT ${batch}`, w.args);
       for (const row of r.rows) {
         after = row.seq;
         yield { ...parseRecordText(row.record), seq: Number(row.seq), prevHash: row.prev_hash, hash: row.hash };
@@ -313,33 +252,11 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats> {
-    const where: string[] = [];
-    const args: string[] = [];
-    if (q.service) (args.push(q.service), where.push(`c.service = $${args.length}`));
-    if (q.from) (args.push(q.from), where.push(`a.recorded_at >= $${args.length}`));
-    if (q.to) (args.push(q.to), where.push(`a.recorded_at <= $${args.length}`));
-    const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
-    const kinds = await this.pool.query<{ kind: string; cards: number; accepted: number; overridden: number }>(
-      `SELECT c.card_kind AS kind, COUNT(DISTINCT c.card_uuid)::int AS cards,
-         COUNT(DISTINCT CASE WHEN f.outcome = 'accepted' THEN f.card_uuid END)::int AS accepted,
-         COUNT(DISTINCT CASE WHEN f.outcome = 'overridden' THEN f.card_uuid END)::int AS overridden
-       FROM ${this.s}.advice_card c JOIN ${this.s}.advice a ON a.id = c.advice_id LEFT JOIN ${this.s}.feedback f ON f.card_uuid = c.card_uuid ${w}
-       GROUP BY c.card_kind ORDER BY c.card_kind`,
-      args,
-    );
-    const reasons = await this.pool.query<{ kind: string; code: string | null; display: string | null; n: number }>(
-      `SELECT c.card_kind AS kind, f.reason_code AS code, MAX(f.reason_display) AS display, COUNT(DISTINCT f.card_uuid)::int AS n
-       FROM ${this.s}.feedback f JOIN ${this.s}.advice_card c ON c.card_uuid = f.card_uuid JOIN ${this.s}.advice a ON a.id = c.advice_id
-       ${w ? `${w} AND` : 'WHERE'} f.outcome = 'overridden' GROUP BY c.card_kind, f.reason_code ORDER BY n DESC, kind, code NULLS LAST`,
-      args,
-    );
-    return {
-      byKind: kinds.rows.map((k) => ({
-        cardKind: k.kind, cards: k.cards, accepted: k.accepted, overridden: k.overridden,
-        overrideRate: k.accepted + k.overridden ? Math.round((k.overridden / (k.accepted + k.overridden)) * 1000) / 1000 : 0,
-      })),
-      byReason: reasons.rows.map((r) => ({ cardKind: r.kind, reasonCode: r.code ?? '(comment only)', reasonDisplay: r.display ?? '', count: r.n })),
-    };
+    const w = new Where('postgres').maybe(q.service, (p) => `c.service = ${p}`).maybe(q.from, (p) => `a.recorded_at >= ${p}`).maybe(q.to, (p) => `a.recorded_at <= ${p}`);
+    const sql = feedbackStatsSql((t) => `${this.s}.${t}`, '::int', w.sql, w.and);
+    const kinds = await this.pool.query<KindRow>(sql.kinds, w.args);
+    const reasons = await this.pool.query<ReasonRow>(sql.reasons, w.args);
+    return feedbackStatsOf(kinds.rows, reasons.rows);
   }
 
   async verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }> {

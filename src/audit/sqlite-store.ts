@@ -14,6 +14,9 @@ import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type Append
 import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
 import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, RecordStreamQuery, StoredAdvice } from './types.js';
 import { summarize, feedbackKey, ownerOf } from './shared.js';
+import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
+import { feedbackCountsOf, feedbackStatsOf, feedbackStatsSql, rowToFeedback, type KindRow, type ReasonRow } from './sql/rows.js';
+import { adviceFilters, Where } from './sql/where.js';
 
 /**
  * The writer thread's entry. Built (dist/, `npm start`) this module is JavaScript and the compiled writer runs as is;
@@ -21,46 +24,6 @@ import { summarize, feedbackKey, ownerOf } from './shared.js';
  */
 const WRITER_ENTRY = import.meta.url.endsWith('.ts') ? './sqlite-writer.mjs' : './sqlite-writer.js';
 
-const SCHEMA = `
-CREATE TABLE IF NOT EXISTS advice (
-  seq INTEGER PRIMARY KEY AUTOINCREMENT,
-  id TEXT NOT NULL UNIQUE,
-  recorded_at TEXT NOT NULL,
-  service TEXT NOT NULL,
-  hook TEXT NOT NULL,
-  hook_instance TEXT NOT NULL,
-  patient_id TEXT,
-  encounter_id TEXT,
-  outcome TEXT NOT NULL,
-  rules_version TEXT NOT NULL,
-  record TEXT NOT NULL,
-  prev_hash TEXT NOT NULL,
-  hash TEXT NOT NULL,
-  issuer TEXT
-);
-CREATE INDEX IF NOT EXISTS advice_patient_time ON advice (patient_id, recorded_at);
-CREATE INDEX IF NOT EXISTS advice_time ON advice (recorded_at);
-CREATE TABLE IF NOT EXISTS advice_card (
-  card_uuid TEXT PRIMARY KEY,
-  advice_id TEXT NOT NULL REFERENCES advice(id),
-  card_kind TEXT NOT NULL,
-  service TEXT NOT NULL
-);
-CREATE TABLE IF NOT EXISTS feedback (
-  feedback_key TEXT PRIMARY KEY,
-  card_uuid TEXT NOT NULL REFERENCES advice_card(card_uuid),
-  outcome TEXT NOT NULL,
-  accepted_suggestions TEXT NOT NULL,
-  reason_system TEXT,
-  reason_code TEXT,
-  reason_display TEXT,
-  user_comment TEXT,
-  outcome_timestamp TEXT NOT NULL,
-  received_at TEXT NOT NULL,
-  service TEXT NOT NULL
-);
-CREATE INDEX IF NOT EXISTS feedback_card ON feedback (card_uuid);
-`;
 
 interface AdviceRow { seq: number; record: string; prev_hash: string; hash: string }
 
@@ -90,14 +53,33 @@ export class SqliteAuditStore implements AuditStore {
   }
 
   async init(): Promise<void> {
-    this.db.exec(SCHEMA);
-    // advice.issuer came with Tidemark 0.3 (the issuer that received the cards, for feedback): added to an older
-    // file, where it stays empty for the old rows (cardOwner then reads the issuer from the record text).
-    const columns = this.db.pragma('table_info(advice)') as Array<{ name: string }>;
-    if (!columns.some((c) => c.name === 'issuer')) this.db.exec('ALTER TABLE advice ADD COLUMN issuer TEXT');
+    this.migrate();
     const check = this.db.pragma('quick_check', { simple: true });
     if (check !== 'ok') throw new Error(`audit database ${this.path} failed its integrity check: ${String(check)}`);
     if (this.path !== ':memory:') this.startWriter();
+  }
+
+  /** The schema version this file has (PRAGMA user_version; 0 for a file written before versions were kept). */
+  schemaVersion(): number {
+    return Number(this.db.pragma('user_version', { simple: true }));
+  }
+
+  /**
+   * Applies the migrations this file has not had (src/audit/sql/migrations.ts), in one IMMEDIATE transaction, and
+   * records the version reached. A newer file than this Tidemark knows is refused rather than written to.
+   */
+  private migrate(): void {
+    const have = this.schemaVersion();
+    if (have > SCHEMA_VERSION) throw new Error(`audit database ${this.path} has schema version ${have}, newer than this Tidemark's ${SCHEMA_VERSION}: upgrade Tidemark`);
+    if (have === SCHEMA_VERSION) return;
+    const target = {
+      run: (sql: string) => void this.db.exec(sql),
+      hasColumn: (table: string, column: string) => (this.db.pragma(`table_info(${table})`) as Array<{ name: string }>).some((c) => c.name === column),
+    };
+    this.db.transaction(() => {
+      for (const m of MIGRATIONS) if (m.version > have) m.sqlite(target);
+      this.db.pragma(`user_version = ${SCHEMA_VERSION}`);
+    }).immediate();
   }
 
   // ------------------------------------------------------------ appends on the writer thread (file databases)
@@ -211,16 +193,9 @@ export class SqliteAuditStore implements AuditStore {
   }
 
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
-    const where: string[] = [];
-    const args: Array<string | number> = [];
-    if (q.patientId) (where.push('patient_id = ?'), args.push(q.patientId));
-    if (q.service) (where.push('service = ?'), args.push(q.service));
-    if (q.from) (where.push('recorded_at >= ?'), args.push(q.from));
-    if (q.to) (where.push('recorded_at <= ?'), args.push(q.to));
-    if (q.cursor) (where.push('seq < ?'), args.push(Number(q.cursor)));
-    const rows = this.db
-      .prepare(`SELECT seq, record, prev_hash, hash FROM advice ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY seq DESC LIMIT ?`)
-      .all(...args, q.limit + 1) as AdviceRow[];
+    const w = adviceFilters(new Where('sqlite'), q);
+    if (q.cursor) w.add((p) => `seq < ${p}`, Number(q.cursor));
+    const rows = this.db.prepare(`SELECT seq, record, prev_hash, hash FROM advice ${w.sql} ORDER BY seq DESC LIMIT ${w.param(q.limit + 1)}`).all(...w.args) as AdviceRow[];
     const page = rows.slice(0, q.limit);
     const records = page.map((r) => ({ ...parseRecordText(r.record), seq: r.seq }));
     const counts = this.feedbackCounts(records.map((r) => r.id));
@@ -231,21 +206,14 @@ export class SqliteAuditStore implements AuditStore {
 
   /** Cards accepted and cards overridden per advice (distinct cards, as feedbackStats counts them; not feedback rows). */
   private feedbackCounts(adviceIds: string[]): Map<string, { accepted: number; overridden: number }> {
-    const out = new Map<string, { accepted: number; overridden: number }>();
-    if (!adviceIds.length) return out;
+    if (!adviceIds.length) return new Map();
     const rows = this.db
       .prepare(
         `SELECT c.advice_id AS advice_id, f.outcome AS outcome, COUNT(DISTINCT f.card_uuid) AS n FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid
          WHERE c.advice_id IN (${adviceIds.map(() => '?').join(',')}) GROUP BY c.advice_id, f.outcome`,
       )
       .all(...adviceIds) as Array<{ advice_id: string; outcome: string; n: number }>;
-    for (const r of rows) {
-      const c = out.get(r.advice_id) ?? { accepted: 0, overridden: 0 };
-      if (r.outcome === 'accepted') c.accepted += r.n;
-      else c.overridden += r.n;
-      out.set(r.advice_id, c);
-    }
-    return out;
+    return feedbackCountsOf(rows);
   }
 
   /**
@@ -253,17 +221,15 @@ export class SqliteAuditStore implements AuditStore {
    * connection while one iterates, and the caller may do anything between two records).
    */
   async *records(q: RecordStreamQuery): AsyncGenerator<StoredAdvice> {
-    const where = ['seq > ?'];
-    const args: Array<string | number> = [];
-    if (q.service) (where.push('service = ?'), args.push(q.service));
-    if (q.from) (where.push('recorded_at >= ?'), args.push(q.from));
-    if (q.to) (where.push('recorded_at <= ?'), args.push(q.to));
-    if (q.outcome) (where.push('outcome = ?'), args.push(q.outcome));
+    const w = new Where('sqlite');
+    w.param(0); // the keyset bound, set per batch below
+    adviceFilters(w.raw('seq > ?'), q);
     const batch = Math.max(1, Math.min(q.batchSize ?? STREAM_BATCH, 10_000));
-    const stmt = this.db.prepare(`SELECT seq, record, prev_hash, hash FROM advice WHERE ${where.join(' AND ')} ORDER BY seq LIMIT ?`);
+    const stmt = this.db.prepare(`SELECT seq, record, prev_hash, hash FROM advice ${w.sql} ORDER BY seq LIMIT ${batch}`);
     let after = q.afterSeq ?? 0;
     for (;;) {
-      const rows = stmt.all(after, ...args, batch) as AdviceRow[];
+      w.args[0] = after;
+      const rows = stmt.all(...w.args) as AdviceRow[];
       for (const row of rows) {
         after = row.seq;
         yield { ...parseRecordText(row.record), seq: row.seq, prevHash: row.prev_hash, hash: row.hash };
@@ -310,35 +276,11 @@ export class SqliteAuditStore implements AuditStore {
   }
 
   async feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats> {
-    const where: string[] = [];
-    const args: string[] = [];
-    if (q.service) (where.push('c.service = ?'), args.push(q.service));
-    if (q.from) (where.push('a.recorded_at >= ?'), args.push(q.from));
-    if (q.to) (where.push('a.recorded_at <= ?'), args.push(q.to));
-    const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
-    const kinds = this.db
-      .prepare(
-        `SELECT c.card_kind AS kind, COUNT(DISTINCT c.card_uuid) AS cards,
-           COUNT(DISTINCT CASE WHEN f.outcome = 'accepted' THEN f.card_uuid END) AS accepted,
-           COUNT(DISTINCT CASE WHEN f.outcome = 'overridden' THEN f.card_uuid END) AS overridden
-         FROM advice_card c JOIN advice a ON a.id = c.advice_id LEFT JOIN feedback f ON f.card_uuid = c.card_uuid ${w}
-         GROUP BY c.card_kind ORDER BY c.card_kind`,
-      )
-      .all(...args) as Array<{ kind: string; cards: number; accepted: number; overridden: number }>;
-    const reasons = this.db
-      .prepare(
-        `SELECT c.card_kind AS kind, f.reason_code AS code, MAX(f.reason_display) AS display, COUNT(DISTINCT f.card_uuid) AS n
-         FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid JOIN advice a ON a.id = c.advice_id
-         ${w ? `${w} AND` : 'WHERE'} f.outcome = 'overridden' GROUP BY c.card_kind, f.reason_code ORDER BY n DESC, kind, code NULLS LAST`,
-      )
-      .all(...args) as Array<{ kind: string; code: string | null; display: string | null; n: number }>;
-    return {
-      byKind: kinds.map((k) => ({
-        cardKind: k.kind, cards: k.cards, accepted: k.accepted, overridden: k.overridden,
-        overrideRate: k.accepted + k.overridden ? Math.round((k.overridden / (k.accepted + k.overridden)) * 1000) / 1000 : 0,
-      })),
-      byReason: reasons.map((r) => ({ cardKind: r.kind, reasonCode: r.code ?? '(comment only)', reasonDisplay: r.display ?? '', count: r.n })),
-    };
+    const w = new Where('sqlite').maybe(q.service, (p) => `c.service = ${p}`).maybe(q.from, (p) => `a.recorded_at >= ${p}`).maybe(q.to, (p) => `a.recorded_at <= ${p}`);
+    const sql = feedbackStatsSql((t) => t, '', w.sql, w.and);
+    const kinds = this.db.prepare(sql.kinds).all(...w.args) as KindRow[];
+    const reasons = this.db.prepare(sql.reasons).all(...w.args) as ReasonRow[];
+    return feedbackStatsOf(kinds, reasons);
   }
 
   async verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }> {
@@ -375,18 +317,3 @@ export class SqliteAuditStore implements AuditStore {
     }
   }
 }
-
-
-function rowToFeedback(r: Record<string, string | null>): FeedbackRow {
-  const reason = r['reason_code'] || r['reason_system'] || r['reason_display']
-    ? { ...(r['reason_system'] ? { system: r['reason_system'] } : {}), ...(r['reason_code'] ? { code: r['reason_code'] } : {}), ...(r['reason_display'] ? { display: r['reason_display'] } : {}) }
-    : undefined;
-  return {
-    cardUuid: String(r['card_uuid']), outcome: r['outcome'] === 'accepted' ? 'accepted' : 'overridden',
-    acceptedSuggestions: JSON.parse(String(r['accepted_suggestions'] ?? '[]')) as string[],
-    ...(reason ? { overrideReason: reason } : {}), ...(r['user_comment'] ? { userComment: r['user_comment'] } : {}),
-    outcomeTimestamp: String(r['outcome_timestamp']), receivedAt: String(r['received_at']), service: String(r['service']),
-  };
-}
-
-export { rowToFeedback };

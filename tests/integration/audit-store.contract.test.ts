@@ -149,7 +149,8 @@ function sqliteHarness(): Harness {
       });
     },
     async dropIssuerColumn() {
-      raw((db) => db.exec('ALTER TABLE advice DROP COLUMN issuer'));
+      // As Tidemark 0.2.0 left a file: no issuer column, no card index, no schema version recorded.
+      raw((db) => db.exec('ALTER TABLE advice DROP COLUMN issuer; DROP INDEX IF EXISTS advice_card_advice; PRAGMA user_version = 0'));
     },
     async reopen() {
       const s = new SqliteAuditStore(path);
@@ -213,7 +214,9 @@ function postgresHarness(): Harness {
       await q(`DELETE FROM "${schema}".advice WHERE id = $1`, [id]);
     },
     async dropIssuerColumn() {
+      // As Tidemark 0.2.0 left a schema: no issuer column, no schema version recorded.
       await q(`ALTER TABLE "${schema}".advice DROP COLUMN issuer`);
+      await q(`DROP TABLE IF EXISTS "${schema}".schema_version`);
     },
     async reopen() {
       const s = new PostgresAuditStore(PG_URL, { schema, poolSize: 4 });
@@ -643,7 +646,7 @@ describe('PostgreSQL audit store shared by several replicas', () => {
     const schema = newSchema('init');
     await Promise.all(replicas(schema, 4).map((s) => s.init()));
     const t = await admin.query(`SELECT table_name FROM information_schema.tables WHERE table_schema = $1 ORDER BY table_name`, [schema]);
-    expect(t.rows.map((r: { table_name: string }) => r.table_name)).toEqual(['advice', 'advice_card', 'feedback', 'jti_seen']);
+    expect(t.rows.map((r: { table_name: string }) => r.table_name)).toEqual(['advice', 'advice_card', 'feedback', 'jti_seen', 'schema_version']);
   });
 
   it('four replicas appending 50 records each in parallel keep one linear chain', async () => {
@@ -714,9 +717,10 @@ describe('PostgreSQL audit store shared by several replicas', () => {
       await expect(direct.query(`UPDATE "${schema}".advice SET record = '{}'`)).rejects.toThrow(/permission denied/);
       await direct.end();
 
-      // The schema as an older Tidemark made it: no issuer column, no jti_seen. The app role cannot add them.
+      // The schema as an older Tidemark made it: no issuer column, no jti_seen, no version. The app role cannot add them.
       await admin.query(`ALTER TABLE "${schema}".advice DROP COLUMN issuer`);
       await admin.query(`DROP TABLE "${schema}".jti_seen`);
+      await admin.query(`DROP TABLE "${schema}".schema_version`);
       const before = new PostgresAuditStore(asApp, { schema, poolSize: 2 });
       stores.push(before);
       await expect(before.init()).rejects.toThrow(/audit store set-up failed at .*run the service once as the owner of the audit schema/);
