@@ -12,7 +12,8 @@ import type { PatientSnapshot } from '../snapshot/types.js';
 
 export type AdviceOutcome = 'answered' | 'precondition-failed';
 
-export interface AdviceRecord {
+/** What every record holds, whatever its outcome. */
+interface RecordBase {
   id: string;
   recordedAt: string;
   service: string;
@@ -23,9 +24,7 @@ export interface AdviceRecord {
   encounterId?: string;
   outcome: AdviceOutcome;
   rulesVersion: string;
-  snapshot?: PatientSnapshot;
   findings: Finding[];
-  advice?: Advice;
   cards: Card[];
   /** Card uuid → card kind, for joining feedback. */
   cardKinds: Record<string, string>;
@@ -35,11 +34,28 @@ export interface AdviceRecord {
   client?: { issuer?: string; tenant?: string; jti?: string };
 }
 
-export interface StoredAdvice extends AdviceRecord {
+/** A call that was answered with cards (200): the snapshot the rules saw and the advice they gave. */
+export interface AnsweredRecord extends RecordBase {
+  outcome: 'answered';
+  snapshot: PatientSnapshot;
+  advice: Advice;
+}
+
+/** A call refused with 412 (required data with no route to it, decision 0001): no snapshot, no advice, no cards. */
+export interface PreconditionFailedRecord extends RecordBase {
+  outcome: 'precondition-failed';
+  snapshot?: undefined;
+  advice?: undefined;
+}
+
+/** One audit record, told apart by `outcome`. */
+export type AdviceRecord = AnsweredRecord | PreconditionFailedRecord;
+
+export type StoredAdvice = AdviceRecord & {
   seq: number;
   hash: string;
   prevHash: string;
-}
+};
 
 export interface AdviceSummary {
   id: string;

@@ -16,7 +16,7 @@ import { chainHashOfText, GENESIS, recordText } from '../../src/audit/chain.js';
 import { PostgresAuditStore } from '../../src/audit/postgres-store.js';
 import { SCHEMA_VERSION } from '../../src/audit/sql/migrations.js';
 import { SqliteAuditStore } from '../../src/audit/sqlite-store.js';
-import type { AdviceRecord } from '../../src/audit/types.js';
+import type { AdviceRecord, AnsweredRecord } from '../../src/audit/types.js';
 
 const PG_URL = process.env['TIDEMARK_TEST_PG_URL'] ?? 'postgres://postgres@127.0.0.1:5432/test';
 const RUN = `tm_migr_${process.pid}_${randomUUID().slice(0, 8)}`;
@@ -59,12 +59,17 @@ const postgres020 = (s: string): string[] => [
 
 function record(i: number): AdviceRecord {
   const uuid = randomUUID();
-  return {
+  const rec: Omit<AnsweredRecord, 'snapshot' | 'advice'> = {
     id: randomUUID(), recordedAt: new Date(Date.parse('2026-06-01T08:00:00Z') + i * 60_000).toISOString(), service: 'bolus-review-select', hook: 'order-select',
     hookInstance: randomUUID(), patientId: 'pt-heron-3', outcome: 'answered', rulesVersion: '0.2.0+rules.0a1b2c3d', findings: [],
     cards: [{ uuid, summary: 'Invented card', indicator: 'info', source: { label: 'Tidemark' } }], cardKinds: { [uuid]: 'volume-ok' },
     gathering: [], timings: { totalMs: 12, gatherMs: 1, fhirWaitMs: 0, assessMs: 3 }, client: { issuer: 'https://ehr.heron-invented.example' },
   };
+  const snapshot = {
+    patient: { ref: 'Patient/pt-heron-3', sex: 'unknown' as const }, now: rec.recordedAt, measurements: [], coded: [], dynamicTests: [], fluids: [],
+    vasoactives: [], conditions: [], draftOrders: [], excluded: [],
+  };
+  return { ...rec, snapshot, advice: { rulesVersion: rec.rulesVersion, now: rec.recordedAt, findings: [], ruleErrors: [] } };
 }
 
 /** Rows as 0.2.0 wrote them: the record's text, chained by sha256(previous hash + text) (decision 0003). */

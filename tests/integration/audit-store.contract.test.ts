@@ -15,7 +15,7 @@ import { chainHash, GENESIS } from '../../src/audit/chain.js';
 import { openAuditStore } from '../../src/audit/open-store.js';
 import { PostgresAuditStore } from '../../src/audit/postgres-store.js';
 import { SqliteAuditStore } from '../../src/audit/sqlite-store.js';
-import type { AdviceRecord, AuditStore, FeedbackRow } from '../../src/audit/types.js';
+import type { AdviceRecord, AnsweredRecord, AuditStore, FeedbackRow } from '../../src/audit/types.js';
 
 const PG_URL = process.env['TIDEMARK_TEST_PG_URL'] ?? 'postgres://postgres@127.0.0.1:5432/test';
 /** Unique per test file run, so parallel files and earlier crashed runs never collide. */
@@ -36,7 +36,7 @@ interface AdviceOpts {
 }
 
 /** An invented advice record with one card per kind. */
-function adviceRecord(o: AdviceOpts = {}): AdviceRecord {
+function adviceRecord(o: AdviceOpts = {}): AnsweredRecord {
   const kinds = o.kinds ?? ['volume-ok'];
   const cards = kinds.map((k, i) => ({
     uuid: randomUUID(),
@@ -46,7 +46,7 @@ function adviceRecord(o: AdviceOpts = {}): AdviceRecord {
     detail: `Kind **${k}**.\nLine two with "quotes" and a tab\t.`,
   }));
   const patientId = o.patientId === undefined ? 'pt-alder' : o.patientId;
-  return {
+  const rec: Omit<AnsweredRecord, 'snapshot' | 'advice'> = {
     id: randomUUID(),
     recordedAt: at(o.at ?? 0),
     service: o.service ?? 'bolus-select',
@@ -69,6 +69,12 @@ function adviceRecord(o: AdviceOpts = {}): AdviceRecord {
     timings: { totalMs: o.totalMs ?? 41.26, gatherMs: 20.5, fhirWaitMs: 0, assessMs: 3.75 },
     client: { issuer: 'https://ehr.invented.example', jti: randomUUID() },
   };
+  // The store keeps whatever an answered record holds; a minimal snapshot and advice stand for the rules' output.
+  const snapshot: AnsweredRecord['snapshot'] = {
+    patient: { ref: `Patient/${patientId ?? 'none'}`, sex: 'unknown' }, now: rec.recordedAt, measurements: [], coded: [], dynamicTests: [], fluids: [],
+    vasoactives: [], conditions: [], draftOrders: [], excluded: [],
+  };
+  return { ...rec, snapshot, advice: { rulesVersion: rec.rulesVersion, now: rec.recordedAt, findings: [], ruleErrors: [] } };
 }
 
 const sha256Hex = (s: string): string => createHash('sha256').update(s, 'utf8').digest('hex');
@@ -419,8 +425,11 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
 
   it('streams records oldest first across batch boundaries, with filters, a resume point and an early stop', async () => {
     await open();
-    const recs = Array.from({ length: 11 }, (_, i) =>
-      ({ ...adviceRecord({ at: i, service: i % 3 === 0 ? 'fluid-overview' : 'bolus-select' }), ...(i === 5 ? { outcome: 'precondition-failed' as const } : {}) }));
+    const recs = Array.from({ length: 11 }, (_, i): AdviceRecord => {
+      const answered = adviceRecord({ at: i, service: i % 3 === 0 ? 'fluid-overview' : 'bolus-select' });
+      const { snapshot: _s, advice: _a, ...rest } = answered;
+      return i === 5 ? { ...rest, outcome: 'precondition-failed' } : answered;
+    });
     const seqs = await appendAll(recs);
     const walk = async (q: Parameters<AuditStore['records']>[0]): Promise<number[]> => {
       const out: number[] = [];
