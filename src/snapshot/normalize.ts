@@ -8,8 +8,8 @@ import type {
   Condition, Encounter, FhirResource, MedicationAdministration, MedicationRequest, Observation, ObservationComponent, Patient, Quantity, ServiceRequest,
 } from 'fhir/r4.js';
 import {
-  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
-  kindAtSite, type DynamicMeasured, type NumericKind,
+  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_MEASURED_UNITS, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
+  kindAtSite, type NumericKind,
 } from '../fhir/codes.js';
 import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClassFromText, isIntravenous } from '../fhir/medications.js';
 import { convert, MAX_UNIT_LENGTH, toCanonical } from '../fhir/units.js';
@@ -32,9 +32,7 @@ export interface SnapshotContext {
 }
 
 /** Canonical unit of each dynamic-test measured variable. */
-const MEASURED_UNITS: Record<DynamicMeasured, string> = {
-  cardiacOutput: 'L/min', cardiacIndex: 'L/min/m2', strokeVolume: 'mL', pulsePressure: 'mm[Hg]', vti: 'cm', ppv: '%', svv: '%',
-};
+const MEASURED_UNITS = DYNAMIC_MEASURED_UNITS;
 
 /** A period start as an ISO instant; an unreadable one throws as `new Date(NaN).toISOString()` does (the resource is then excluded as malformed). */
 function periodStartIso(raw: string): string {
