@@ -4,7 +4,9 @@
  *   responsiveness/  likely | unlikely | indeterminate, with its confidence and the test that would settle it;
  *   tolerance/       adequate | limited | poor | not known (a CVP that decided responsiveness counts once);
  *   order/           the reading of each selected fluid order;
- *   advice/          the matrix that joins them, in codes.
+ *   advice/          the matrix that joins them, in codes;
+ *   what-if/         what a positive or negative result of each feasible test would do to the verdict and advice
+ *                    (the engine re-run on a copy of the snapshot; the re-runs compute no what-if of their own).
  * All on the common rule core (common/). Failures are isolated: a group that throws is recorded in
  * ruleErrors and the other findings still count.
  */
@@ -19,8 +21,30 @@ import { assessResponsiveness } from './responsiveness/index.js';
 import type { Thresholds } from './thresholds.js';
 import { assessTolerance } from './tolerance/index.js';
 import type { Advice } from './types.js';
+import { computeWhatIf } from './what-if/index.js';
 
-export function assess(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: string): Advice {
+export interface AssessOptions {
+  /** Compute Advice.whatIf (default true). The what-if's own re-runs pass false. */
+  whatIf?: boolean;
+}
+
+export function assess(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: string, opts: AssessOptions = {}): Advice {
+  const advice = assessOnce(s, now, t, rulesVersion);
+  if (advice.responsiveness && opts.whatIf !== false) {
+    const w = guarded('what-if', advice.ruleErrors, () => {
+      const events = evidenceEvents(s, now, t.windows.fluidEventMinMl);
+      return computeWhatIf({
+        ctx: { snapshot: s, now, t: t.responsiveness, w: t.windows, events }, advice,
+        rerun: (x) => assessOnce(x, now, t, rulesVersion),
+      });
+    });
+    if (w) advice.whatIf = w;
+  }
+  return advice;
+}
+
+/** The engine without the what-if step. */
+function assessOnce(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: string): Advice {
   const findings: Finding[] = [];
   const ruleErrors: Advice['ruleErrors'] = [];
   const advice: Advice = { rulesVersion, now: now.toISOString(), findings, ruleErrors };

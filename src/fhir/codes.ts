@@ -186,6 +186,10 @@ export const DYNAMIC_COMPONENT = { before: 'before', after: 'after', measured: '
 /** What a dynamic test measured (component `measured-variable`, valueCodeableConcept in TIDEMARK_ANSWERS). */
 export const DYNAMIC_MEASURED = ['cardiacOutput', 'cardiacIndex', 'strokeVolume', 'pulsePressure', 'vti', 'ppv', 'svv'] as const;
 export type DynamicMeasured = (typeof DYNAMIC_MEASURED)[number];
+/** Canonical unit of each dynamic-test measured variable (before and after are normalised to it). */
+export const DYNAMIC_MEASURED_UNITS: Readonly<Record<DynamicMeasured, string>> = {
+  cardiacOutput: 'L/min', cardiacIndex: 'L/min/m2', strokeVolume: 'mL', pulsePressure: 'mm[Hg]', vti: 'cm', ppv: '%', svv: '%',
+};
 
 export function findNumericKind(codings: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>): NumericKind | undefined {
   for (const c of codings) {

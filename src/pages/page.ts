@@ -1,6 +1,7 @@
 /**
- * The reasoning page of one piece of advice, as HTML: verdicts first, then the trend plots, the findings with their
- * provenance, what was missing, stale or set aside, the ordered bolus, thresholds and rules version, the cautions.
+ * The reasoning page of one piece of advice, as HTML: verdicts first, then what would change the advice (the what-if
+ * table), the trend plots, the findings with their provenance, what was missing, stale or set aside, the ordered
+ * bolus, thresholds and rules version, the cautions.
  * Pure: a PageView (view.ts) and the rendered plots in, a string out. Every value goes through the escaping `html`
  * template (escape.ts); only our own markup and vega's SVG are inserted raw.
  */
@@ -8,7 +9,7 @@ import { html, raw, type Raw } from './escape.js';
 import { describeRow } from './plots.js';
 import { clock, clockWithAge, fullClock } from './time.js';
 import type { Trends, TrendPlot } from './trends.js';
-import type { PageFinding, PageView } from './view.js';
+import type { PageFinding, PageView, PageWhatIf, PageWhatIfOutcome } from './view.js';
 
 export const STYLESHEET_PATH = '/pages/style.css';
 
@@ -40,6 +41,29 @@ function valuesList(f: PageFinding): Raw {
 function finding(f: PageFinding, zone: string, at: string): Raw {
   return html`<div class="finding"><p class="text">${f.direction ? html`<span class="tag">${f.direction === 'for' ? 'for volume' : f.direction === 'against' ? 'against volume' : 'neutral'}</span>` : ''}${f.tier ? html`<span class="tag">${f.tier}</span>` : ''}${f.assessed ? '' : html`<span class="tag">not assessed</span>`}${f.text}</p>${
     f.reason ? html`<p>Why: ${f.reason}</p>` : ''}${evidenceTable(f, zone, at)}${valuesList(f)}<p class="meta">Rule <code>${f.ruleId}</code>${f.source ? html` · Source: ${f.source}` : ''}</p></div>`;
+}
+
+function whatIfOutcome(o: PageWhatIfOutcome | undefined, result: 'positive' | 'negative'): Raw {
+  if (!o) return html`<td class="empty">—</td>`;
+  return html`<td data-result="${result}" data-changes="${o.changes ? 'yes' : 'no'}"><p class="meta">${o.assumed}</p><p><strong>${o.verdict}</strong></p>${
+    o.action ? html`<p>${o.action}</p>` : ''}<p>${o.changes ? html`<span class="tag">changes the advice</span>` : html`<span class="meta">no change</span>`}</p></td>`;
+}
+
+function whatIfSection(w: PageWhatIf | undefined): Raw {
+  const head = html`<h2 id="what-if-h">What would change the advice</h2>`;
+  if (!w) return html`<section id="what-if" aria-labelledby="what-if-h">${head}<p class="empty">Not worked out for this advice (no responsiveness verdict, or made by an earlier rules version).</p></section>`;
+  const lead = w.decisive
+    ? html`<p id="what-if-decisive">The test that would settle it: <strong>${w.decisive}</strong> (the first feasible test, in the order the advice prefers for this patient, whose result would change the verdict or the advice).</p>`
+    : w.settled
+      ? html`<p id="what-if-decisive">The responsiveness verdict already rests on a test with a flow measurement, so no further test is named as deciding; the table still shows what each result would do.</p>`
+      : html`<p id="what-if-decisive">No feasible test would change the verdict or the advice now.</p>`;
+  return html`<section id="what-if" aria-labelledby="what-if-h">${head}${lead}<p class="meta">For each test the advice can offer: whether it can be done for this patient now, and if so what a result just past its published threshold (positive) or clearly below it (negative) would do, worked out by re-running the same rules with that one result added. These results are hypothetical; nothing in this table was measured.</p>
+<table class="what-if"><thead><tr><th>Test</th><th>Feasible now</th><th>If positive</th><th>If negative</th></tr></thead><tbody>${w.rows.map((r) => html`<tr data-test="${r.code}" data-feasible="${r.feasible ? 'yes' : 'no'}"${r.decisive ? raw(' data-decisive="yes"') : ''}><td><strong>${r.test}</strong>${r.decisive ? html` <span class="tag">decisive</span>` : ''}${
+    r.source ? html`<p class="meta">Threshold: ${r.source}</p>` : ''}</td>${
+    r.feasible
+      ? html`<td>Yes${r.readOn ? html`, read on ${r.readOn}` : ''}</td>${whatIfOutcome(r.outcomes.find((o) => o.result === 'positive'), 'positive')}${whatIfOutcome(r.outcomes.find((o) => o.result === 'negative'), 'negative')}`
+      : html`<td colspan="3">No: ${r.why.join('; ')}.</td>`
+  }</tr>`)}</tbody></table></section>`;
 }
 
 function plotFigure(p: RenderedPlot, zone: string, trends: Trends, n: number): Raw {
@@ -83,6 +107,7 @@ ${d.confidence ? html`<dt>Confidence</dt><dd>${d.confidence}</dd>` : ''}${d.cove
 ${v.reasons.length ? html`<h3>Why</h3><ul>${v.reasons.map((r) => html`<li>${r}</li>`)}</ul>` : ''}
 ${v.alternatives.length ? html`<h3>Options to consider instead of, or before, the bolus</h3><ul>${v.alternatives.map((r) => html`<li>${r}</li>`)}</ul>` : ''}
 </section>
+${whatIfSection(v.whatIf)}
 ${trends ? html`<section id="trends" aria-labelledby="trends-h"><h2 id="trends-h">Trends, last ${trends.hours} h</h2><p class="meta">All plots share one time axis, ${clock(trends.from, zone, trends.now)} to ${clock(trends.to, zone, trends.from)} site time (${zone}); the dashed line is the moment of the advice. Values as stored with the advice.</p>${plots.map((p, i) => plotFigure(p, zone, trends, i + 1))}</section>` : ''}
 <section id="findings" aria-labelledby="findings-h"><h2 id="findings-h">Findings</h2>${byTopic.map(([t, fs]) => html`<h3>${TOPIC_TITLE[t] ?? t}</h3>${fs.map((f) => finding(f, zone, at))}`)}${byTopic.length ? '' : html`<p class="empty">No marker could be assessed.</p>`}${unassessed ? html`<p class="meta">${unassessed} more could not be assessed: see <a href="#gaps">Missing, stale or set aside</a>.</p>` : ''}</section>
 <section id="gaps" aria-labelledby="gaps-h"><h2 id="gaps-h">Missing, stale or set aside</h2>${

@@ -3,12 +3,14 @@
  * src/pages/ that reads the Advice, Finding and Verdict shapes (src/assess/types.ts): when assessment v2 changes
  * them, this file changes and the page does not. Everything here is plain data; escaping happens in page.ts.
  */
-import { sentenceStart } from '../assess/common/text.js';
-import type { Finding, Verdict } from '../assess/types.js';
+import { fmt, sentenceStart } from '../assess/common/text.js';
+import type { Advice, Finding, Verdict } from '../assess/types.js';
+import type { WhatIfOutcome } from '../assess/what-if/types.js';
 import type { AdviceRecord } from '../audit/types.js';
 import type { Catalogue } from '../cards/catalogue.js';
 import { kindLabel, unitDisplay } from '../cards/render.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
+import { CONFIDENCE_SHORT, NOT_FEASIBLE_WORDS, READ_ON_WORDS, WHAT_IF_TEST_WORDS } from './what-if-words.js';
 
 export interface PageEvidence { label: string; value: string; unit: string; effective: string; ref: string }
 export interface PageFinding {
@@ -43,6 +45,37 @@ export interface PageVerdict {
 export type GapKind = 'missing' | 'stale' | 'set aside' | 'not obtained';
 export interface PageGap { kind: GapKind; what: string; why: string; ref?: string; /** Values the rule saw but could not use (stale, invalid, confounded). */ evidence: PageEvidence[] }
 
+export interface PageWhatIfOutcome {
+  result: 'positive' | 'negative';
+  /** The hypothetical result, e.g. "cardiac output +11 % (threshold ≥ 10 %)". */
+  assumed: string;
+  /** The verdict after the re-run, e.g. "Likely fluid responsive, high confidence". */
+  verdict: string;
+  /** The recommended action after the re-run, when there is an ordered bolus. */
+  action?: string;
+  changes: boolean;
+}
+export interface PageWhatIfRow {
+  /** The test's code (data attribute) and name. */
+  code: string;
+  test: string;
+  feasible: boolean;
+  /** Why not, in words (empty when feasible). */
+  why: string[];
+  /** What a hypothetical result is read on, e.g. "VTI by echo". */
+  readOn?: string;
+  source?: string;
+  decisive: boolean;
+  outcomes: PageWhatIfOutcome[];
+}
+export interface PageWhatIf {
+  rows: PageWhatIfRow[];
+  /** The decisive test's name. */
+  decisive?: string;
+  /** The current verdict has high confidence: settled, so no test is named as deciding. */
+  settled: boolean;
+}
+
 export interface PageView {
   adviceId: string;
   service: string;
@@ -68,6 +101,8 @@ export interface PageView {
   /** The active thresholds flattened (key, value), when they are those of the record's rules version. */
   thresholds?: Array<[string, string]>;
   cautions: string[];
+  /** What would change the advice, when the record has it (advice made by rules that compute it, with a responsiveness verdict). */
+  whatIf?: PageWhatIf;
   snapshot?: PatientSnapshot;
 }
 
@@ -146,6 +181,39 @@ function gapsOf(rec: AdviceRecord): PageGap[] {
   return gaps;
 }
 
+function assumedText(o: WhatIfOutcome): string {
+  const on = READ_ON_WORDS[o.assumed.measured] ?? o.assumed.measured;
+  const relative = o.assumed.changePercent !== undefined;
+  const change = relative ? o.assumed.changePercent! : (o.assumed.changeAbsolute ?? 0);
+  const unit = relative ? ' %' : ' points';
+  const sign = change > 0 ? '+' : change < 0 ? '−' : '±';
+  const thr = o.assumed.threshold !== undefined ? ` (threshold ${o.assumed.strict ? '>' : '≥'} ${fmt(o.assumed.threshold, 2)}${unit})` : '';
+  return `${on} ${sign}${fmt(Math.abs(change), 2)}${unit}${thr}`;
+}
+
+function whatIfOf(advice: Advice, words: ViewInput['words']): PageWhatIf | undefined {
+  const w = advice.whatIf;
+  if (!w) return undefined;
+  const p = words.phrases;
+  return {
+    rows: w.rows.map((r) => ({
+      code: r.test, test: WHAT_IF_TEST_WORDS[r.test] ?? r.test, feasible: r.feasible,
+      why: r.notFeasible.map((n) => NOT_FEASIBLE_WORDS[n] ?? n),
+      ...(r.outcomes[0] ? { readOn: READ_ON_WORDS[r.outcomes[0].assumed.measured] ?? r.outcomes[0].assumed.measured } : {}),
+      ...(r.source ? { source: r.source } : {}),
+      decisive: w.decisive === r.test,
+      outcomes: r.outcomes.map((o) => ({
+        result: o.result, assumed: assumedText(o),
+        verdict: `${sentenceStart(p.responsiveness[o.responsiveness] ?? o.responsiveness)}${o.confidence ? `, ${CONFIDENCE_SHORT[o.confidence] ?? o.confidence}` : ''}`,
+        ...(o.action ? { action: ACTION_WORDS[o.action] ?? o.action } : {}),
+        changes: o.changes,
+      })),
+    })),
+    ...(w.decisive ? { decisive: WHAT_IF_TEST_WORDS[w.decisive] ?? w.decisive } : {}),
+    settled: advice.responsiveness?.confidence === 'high',
+  };
+}
+
 export function toPageView(input: ViewInput): PageView {
   const { record: rec, words } = input;
   const p = words.phrases;
@@ -181,6 +249,7 @@ export function toPageView(input: ViewInput): PageView {
   }
   const order = advice?.recommendation;
   const findings = rec.findings.filter((f) => f.topic !== 'order').map(pageFinding);
+  const whatIf = advice ? whatIfOf(advice, words) : undefined;
   return {
     adviceId: rec.id, service: rec.service, hook: rec.hook,
     ...(rec.snapshot?.patient.ref ? { patientRef: rec.snapshot.patient.ref } : rec.patientId ? { patientRef: `Patient/${rec.patientId}` } : {}),
@@ -199,6 +268,7 @@ export function toPageView(input: ViewInput): PageView {
     rulesVersion: rec.rulesVersion,
     ...(input.running.rulesVersion === rec.rulesVersion ? { thresholds: flatten(input.running.thresholds) } : {}),
     cautions: [...input.cautions],
+    ...(whatIf ? { whatIf } : {}),
     ...(rec.snapshot ? { snapshot: rec.snapshot } : {}),
   };
 }

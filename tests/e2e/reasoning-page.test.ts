@@ -14,6 +14,7 @@ import catalogue from '../../cards/catalogue.json' with { type: 'json' };
 import { SCENARIOS, scenarioBundle } from '../../examples/scenarios/index.js';
 import { runScenario, type ScenarioRun } from '../../examples/scenarios/run.js';
 import { startEmbeddedFhir, type EmbeddedFhir } from '../../src/devserver/embedded-fhir.js';
+import { NOT_FEASIBLE_WORDS, WHAT_IF_TEST_WORDS } from '../../src/pages/what-if-words.js';
 import { startService, type Running } from '../helpers/server.js';
 
 const CHROMIUM = process.env['TIDEMARK_CHROMIUM'] ?? '/usr/bin/chromium';
@@ -144,6 +145,45 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
       expect(await page.textContent('[data-verdict="tolerance"]')).toContain(`${c.assessed} of ${c.total} markers assessed`);
     }
     expect(await page.textContent('#cautions')).toContain(catalogue.cautions[1]);
+  });
+
+  it('shows the what-if table: one row per test as the stored advice has it, feasibility, outcomes and the decisive test', async () => {
+    const w = rec.advice.whatIf as { rows: Array<{ test: keyof typeof WHAT_IF_TEST_WORDS; feasible: boolean; notFeasible: Array<keyof typeof NOT_FEASIBLE_WORDS>; outcomes: Array<{ result: string; changes: boolean; responsiveness: string }> }>; decisive?: string };
+    expect(w.rows).toHaveLength(4);
+    const rows = await page.$$eval('#what-if table.what-if tbody tr', (trs) => trs.map((tr) => ({
+      test: tr.getAttribute('data-test'), feasible: tr.getAttribute('data-feasible'), decisive: tr.getAttribute('data-decisive'), text: tr.textContent ?? '',
+      cells: [...tr.querySelectorAll('td[data-result]')].map((td) => ({ result: td.getAttribute('data-result'), changes: td.getAttribute('data-changes'), text: td.textContent ?? '' })),
+    })));
+    expect(rows.map((r) => r.test)).toEqual(w.rows.map((r) => r.test));
+    for (const [i, r] of w.rows.entries()) {
+      const shown = rows[i]!;
+      expect(shown.feasible).toBe(r.feasible ? 'yes' : 'no');
+      expect(shown.decisive).toBe(w.decisive === r.test ? 'yes' : null);
+      expect(shown.text).toContain(WHAT_IF_TEST_WORDS[r.test]);
+      for (const n of r.notFeasible) expect(shown.text).toContain(NOT_FEASIBLE_WORDS[n]);
+      expect(shown.cells.map((c) => [c.result, c.changes])).toEqual(r.outcomes.map((o) => [o.result, o.changes ? 'yes' : 'no']));
+      for (const [j, o] of r.outcomes.entries()) {
+        expect(shown.cells[j]!.text).toContain(catalogue.phrases.responsiveness[o.responsiveness as keyof typeof catalogue.phrases.responsiveness]);
+      }
+    }
+    if (id === 'responder-poor-tolerance') {
+      // A valid PPV of 15 % (≥ 13 %, Michard 2000) decides "likely" (moderate); no flow monitor, spontaneous breathing: the mini fluid challenge with VTI by echo
+      // (ΔVTI ≥ 10 %, Muller 2011) is the test offered, and a negative one would make it unclear (a conflict): decisive.
+      expect(w.decisive).toBe('mini-fluid-challenge');
+      expect(rows[0]).toMatchObject({ test: 'mini-fluid-challenge', feasible: 'yes', decisive: 'yes' });
+      expect(rows[0]!.cells[0]!.text).toContain('VTI by echo +11 % (threshold ≥ 10 %)');
+      expect(rows[0]!.cells[1]).toMatchObject({ result: 'negative', changes: 'yes' });
+      expect(rows[0]!.cells[1]!.text).toContain('Responsiveness unclear');
+      expect(rows.find((r) => r.test === 'passive-leg-raise')?.text).toContain(NOT_FEASIBLE_WORDS['no-flow-monitor']);
+      expect(await page.textContent('#what-if-decisive')).toContain(WHAT_IF_TEST_WORDS['mini-fluid-challenge']);
+      await page.locator('#what-if').screenshot({ path: `${IMG}reasoning-what-if-${id}.png` });
+    }
+    if (id === 'tidal-volume-challenge') {
+      // A positive tidal volume challenge (ΔPPV ≥ 3.5 points, Myatra 2017) decided it with high confidence: settled.
+      expect(w.decisive).toBeUndefined();
+      expect(rows.find((r) => r.test === 'tidal-volume-challenge')?.text).toContain(NOT_FEASIBLE_WORDS['already-done']);
+      expect(await page.textContent('#what-if-decisive')).toContain('no further test is named as deciding');
+    }
   });
 
   it('has a window of 12 or 24 h and every numeric plot point matches the snapshot (value and time)', async () => {

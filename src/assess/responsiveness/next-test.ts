@@ -14,19 +14,41 @@ import { latestReading, readings } from '../common/select.js';
 import type { RuleContext } from './context.js';
 import { checkIntraAbdominalPressure, checkRhythm, checkTidalVolume, checkVentilation } from './heart-lung-validity.js';
 
-export function chooseNextTest(ctx: RuleContext): NextTestKind {
+/** Flow readings that show a flow monitor in use (cardiac output, cardiac index, stroke volume). */
+export const FLOW_MONITOR_KINDS = ['cardiacOutput', 'cardiacIndex', 'strokeVolume'] as const;
+export type FlowMonitorKind = (typeof FLOW_MONITOR_KINDS)[number];
+
+/**
+ * The flow variable of the newest reading within `flowMonitorRecentMin`, when a flow monitor is in use; ties go to
+ * the order of FLOW_MONITOR_KINDS.
+ */
+export function flowMonitorKind(ctx: RuleContext): FlowMonitorKind | undefined {
   const { t, snapshot: s, now } = ctx;
+  let best: { kind: FlowMonitorKind; ms: number } | undefined;
+  for (const k of FLOW_MONITOR_KINDS) {
+    const newest = readings(s, k, now).items[0];
+    if (newest === undefined) continue;
+    const ms = Date.parse(newest.effective);
+    if (now.getTime() - ms > t.flowMonitorRecentMin * 60_000) continue;
+    if (!best || ms > best.ms) best = { kind: k, ms };
+  }
+  return best?.kind;
+}
+
+/**
+ * The heart–lung index read from the arterial line now: PPV (else SVV) within its window, fresh or set aside by a
+ * later event (the arterial line is there either way); a stale one says nothing about the patient now.
+ */
+export function currentHeartLungIndex(ctx: RuleContext): 'ppv' | 'svv' | undefined {
+  const current = (k: 'ppv' | 'svv') => { const st = latestReading(ctx.snapshot, k, ctx.now, ctx.w.ppvSvvMin).state; return st === 'fresh' || st === 'set-aside'; };
+  return current('ppv') ? 'ppv' : current('svv') ? 'svv' : undefined;
+}
+
+export function chooseNextTest(ctx: RuleContext): NextTestKind {
   const vent = checkVentilation(ctx);
-  // A PPV or SVV within its window (fresh, or set aside by a later event: the arterial line is there either way);
-  // a stale one says nothing about the patient now and does not choose the test.
-  const current = (k: 'ppv' | 'svv') => { const st = latestReading(s, k, now, ctx.w.ppvSvvMin).state; return st === 'fresh' || st === 'set-aside'; };
-  const hasIndex = current('ppv') || current('svv');
+  const hasIndex = currentHeartLungIndex(ctx) !== undefined;
   if (vent.state === 'met' && hasIndex && checkRhythm(ctx).state === 'met' && checkTidalVolume(ctx).state === 'failed') return 'tidal-volume-challenge';
   if (checkIntraAbdominalPressure(ctx).state === 'failed') return 'mini-fluid-challenge';
-  const flowMonitor = (['cardiacOutput', 'cardiacIndex', 'strokeVolume'] as const).some((k) => {
-    const newest = readings(s, k, now).items[0];
-    return newest !== undefined && now.getTime() - Date.parse(newest.effective) <= t.flowMonitorRecentMin * 60_000;
-  });
-  if (!flowMonitor) return 'mini-fluid-challenge';
+  if (flowMonitorKind(ctx) === undefined) return 'mini-fluid-challenge';
   return 'passive-leg-raise';
 }

@@ -5,8 +5,8 @@
  */
 import type { Observation, ObservationComponent, Quantity } from 'fhir/r4.js';
 import {
-  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES, TIDEMARK_ANSWERS, TIDEMARK_MARKERS,
-  kindAtSite, type DynamicMeasured, type NumericKind,
+  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_MEASURED_UNITS, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES,
+  TIDEMARK_ANSWERS, TIDEMARK_MARKERS, kindAtSite, type NumericKind,
 } from '../../fhir/codes.js';
 import { conceptText } from '../../fhir/medications.js';
 import { siteCodeOf, type SiteCode, type SiteMap } from '../../fhir/site-map.js';
@@ -16,10 +16,6 @@ import { isoInstant } from '../time.js';
 import type { DynamicTestResult, Exclusion, Measurement } from '../types.js';
 import { exclusion, left, NOTHING, readTime, round2, type Read, type ReadContext } from './context.js';
 
-/** Canonical unit of each dynamic-test measured variable. */
-const MEASURED_UNITS: Record<DynamicMeasured, string> = {
-  cardiacOutput: 'L/min', cardiacIndex: 'L/min/m2', strokeVolume: 'mL', pulsePressure: 'mm[Hg]', vti: 'cm', ppv: '%', svv: '%',
-};
 const USABLE_STATUS: ReadonlySet<string> = new Set(['final', 'amended', 'corrected', 'preliminary']);
 
 type Codings = ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>;
@@ -153,7 +149,7 @@ function readDynamic(o: Observation, ref: string, kind: DynamicTestResult['kind'
   const measuredCode = comp(DYNAMIC_COMPONENT.measured)?.valueCodeableConcept?.coding?.find((c) => c.system === TIDEMARK_ANSWERS)?.code;
   const measured = DYNAMIC_MEASURED.find((m) => m === measuredCode);
   if (!measured) return left(ref, 'unknown-answer', `measured-variable ${measuredCode ?? '(none)'} is not one Tidemark reads`, kind);
-  const unit = MEASURED_UNITS[measured];
+  const unit = DYNAMIC_MEASURED_UNITS[measured];
   const values: number[] = [];
   for (const code of [DYNAMIC_COMPONENT.before, DYNAMIC_COMPONENT.after]) {
     const q = comp(code)?.valueQuantity;
