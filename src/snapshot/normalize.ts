@@ -15,7 +15,7 @@ import { classifyFluid, classifyVasoactive, conceptLabel, conceptText, fluidClas
 import { convert, MAX_UNIT_LENGTH, toCanonical } from '../fhir/units.js';
 import { EMPTY_SITE_MAP, siteCodeOf, type SiteCode, type SiteMap } from '../fhir/site-map.js';
 import { rhythmAnswerOf } from '../fhir/value-sets.js';
-import { isoInstant, parseTimeMs } from './time.js';
+import { fhirDateTime, isoInstant, parseTimeMs } from './time.js';
 import type {
   CodedMeasurement, ConditionEntry, DraftOrder, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
 } from './types.js';
@@ -77,6 +77,13 @@ function codingRead(codings: ReadonlyArray<{ system?: string | undefined; code?:
   return c?.system && c.code ? { system: c.system, code: c.code } : CODE_OF_KIND.get(kind);
 }
 
+/**
+ * Numeric kinds whose time may be a date alone (taken as the start of that day, UTC, and marked timeAssumed): a
+ * weight or height is read for per-kg doses and the overload against admission weight, where a day is precise
+ * enough (our own decision, docs/integration.md). Every other kind needs a clock time with its offset.
+ */
+const DATE_ONLY_KINDS: ReadonlySet<string> = new Set(['bodyWeight', 'bodyHeight']);
+
 /** FHIR R4 id datatype: [A-Za-z0-9\-\.]{1,64} (FHIR R4, Datatypes "id"). */
 const FHIR_ID = /^[A-Za-z0-9\-.]{1,64}$/;
 /** The resource types buildSnapshot reads. */
@@ -106,10 +113,12 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     excluded.push(kind ? { ref, reason, detail: d, kind } : { ref, reason, detail: d });
   };
   /** Checks a time: returns the UTC ISO instant, or undefined after recording why it is unusable. */
-  const checkTime = (ref: string, raw: string | undefined, kind?: string): string | undefined => {
+  const checkTime = (ref: string, raw: string | undefined, kind?: string, dateOk = false): string | undefined => {
     if (!raw) return void exclude(ref, 'no-time', 'no effective time', kind);
-    const t = isoInstant(raw);
-    if (!t) return void exclude(ref, 'no-time', `"${raw}" is not a date-time`, kind);
+    const t = fhirDateTime(raw);
+    if (!t) return void exclude(ref, 'no-time', `"${raw}" is not a FHIR date-time (a date, or a date and time with seconds and an offset Z or ±hh:mm)`, kind);
+    // A date without a clock time is used only where a day's precision is enough (DATE_ONLY_KINDS), taken as its start.
+    if (t.precision !== 'second' && !(dateOk && t.precision === 'day')) return void exclude(ref, 'no-time', `"${raw}" has no clock time and offset`, kind);
     if (t.ms > nowMs + FUTURE_SKEW_MS) return void exclude(ref, 'future-time', `${raw} is in the future`, kind);
     return t.iso;
   };
@@ -177,8 +186,11 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     if (o.status !== 'final' && o.status !== 'amended' && o.status !== 'corrected' && o.status !== 'preliminary') {
       return void exclude(ref, 'no-value', `status ${String(o.status)} has no usable result`, kindName);
     }
-    const effective = checkTime(ref, o.effectiveDateTime ?? o.effectiveInstant ?? o.effectivePeriod?.end ?? o.effectivePeriod?.start, kindName);
+    const rawTime = o.effectiveDateTime ?? o.effectiveInstant ?? o.effectivePeriod?.end ?? o.effectivePeriod?.start;
+    const dateOk = DATE_ONLY_KINDS.has(kindName) && !componentKinds.some((x) => x.kind);
+    const effective = checkTime(ref, rawTime, kindName, dateOk);
     if (!effective) return;
+    const assumed = dateOk && rawTime !== undefined && fhirDateTime(rawTime)?.precision === 'day';
     const periodStart = o.effectivePeriod?.start && o.effectivePeriod.end ? periodStartIso(o.effectivePeriod.start) : undefined;
 
     if (dynamicKind) return readDynamic(o, ref, dynamicKind, effective);
@@ -194,7 +206,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
       return;
     }
     // A whole-chest B-pattern count whose bodySite names one lung is that side's count (fhir/codes.ts kindAtSite).
-    if (numericKind && o.valueQuantity) addQuantity(kindAtSite(numericKind, o.bodySite), o.valueQuantity, ref, effective, periodStart, numeric.site ?? codingRead(codings, numericKind));
+    if (numericKind && o.valueQuantity) addQuantity(kindAtSite(numericKind, o.bodySite), o.valueQuantity, ref, effective, periodStart, numeric.site ?? codingRead(codings, numericKind), assumed);
     else if (numericKind && !componentKinds.some((x) => x.kind)) {
       exclude(ref, 'no-value', o.dataAbsentReason ? `no value: ${conceptText(o.dataAbsentReason) || 'data absent'}` : 'no valueQuantity', numericKind);
     }
@@ -205,7 +217,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     }
   }
 
-  function addQuantity(kind: NumericKind, q: Quantity, ref: string, effective: string, periodStart: string | undefined, read: { system: string; code: string } | SiteCode | undefined): void {
+  function addQuantity(kind: NumericKind, q: Quantity, ref: string, effective: string, periodStart: string | undefined, read: { system: string; code: string } | SiteCode | undefined, dateOnly = false): void {
     const site = read && 'source' in read ? read : undefined;
     const code = read && 'source' in read ? read.source : read;
     if (typeof q.value !== 'number' || !Number.isFinite(q.value)) return void exclude(ref, 'no-value', 'value is not a number', kind);
@@ -220,7 +232,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
       kind, value: conv.value, unit: conv.unit,
       original: { value: q.value, unit: unit ?? '', code: code?.code ?? '', system: code?.system ?? '' },
       ...(site ? { readAs: { ...site.target, equivalence: site.equivalence, map: site.map } } : {}), ...(hinted ? { unitReadAs: hinted } : {}),
-      effective, ...(periodStart ? { periodStart } : {}), ageMinutes: age(effective), ref,
+      effective, ...(periodStart ? { periodStart } : {}), ageMinutes: age(effective), ref, ...(dateOnly ? { timeAssumed: 'date-only' as const } : {}),
     });
   }
 
@@ -275,7 +287,7 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     let volumeMl = convert(m.dosage?.dose?.value ?? NaN, m.dosage?.dose?.code ?? m.dosage?.dose?.unit, 'mL');
     if ((volumeMl === undefined || Number.isNaN(volumeMl)) && m.dosage?.rateQuantity && end && m.effectivePeriod?.end) {
       const perMin = convert(m.dosage.rateQuantity.value ?? NaN, m.dosage.rateQuantity.code ?? m.dosage.rateQuantity.unit, 'mL/min');
-      if (perMin !== undefined) volumeMl = perMin * ((Date.parse(end) - Date.parse(start)) / 60_000);
+      if (perMin !== undefined) volumeMl = perMin * ((parseTimeMs(end) - parseTimeMs(start)) / 60_000);
     }
     if (volumeMl === undefined || !Number.isFinite(volumeMl)) return void exclude(ref, 'no-value', 'no volume (dosage.dose in mL, or rate over a period)', 'fluid');
     if (volumeMl <= 0 || volumeMl > 10_000) return void exclude(ref, 'impossible-value', `${round(volumeMl)} mL is not a plausible single administration`, 'fluid');
@@ -324,8 +336,10 @@ function readPatient(p: Patient, ref: string, now: Date): PatientSnapshot['patie
 }
 
 function readEncounter(e: Encounter, ref: string): PatientSnapshot['encounter'] {
-  const start = e.period?.start && !Number.isNaN(Date.parse(e.period.start)) ? new Date(Date.parse(e.period.start)).toISOString() : undefined;
-  return { ref, ...(start ? { start } : {}), ...(e.status ? { status: e.status } : {}) };
+  // The start of the stay dates the shock (phase rules count hours from it): a date alone is taken as the start of that day.
+  const t = e.period?.start ? fhirDateTime(e.period.start) : undefined;
+  const start = t && (t.precision === 'second' || t.precision === 'day') ? t.iso : undefined;
+  return { ref, ...(start ? { start } : {}), ...(start && t?.precision === 'day' ? { timeAssumed: 'date-only' as const } : {}), ...(e.status ? { status: e.status } : {}) };
 }
 
 /** Reads the draft orders of order-select / order-sign. Non-fluid orders are kept (isFluid false) so the caller can tell. */
