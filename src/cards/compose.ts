@@ -200,10 +200,15 @@ function questionLines(advice: Advice, cat: Catalogue): DetailLine[] {
   return lines;
 }
 
-/** Data the FHIR server could not give, by purpose (the reasons are on the reasoning page). */
-function dataMissingLine(gathering: GatherOutcome[], purposes: Record<string, string>, cat: Catalogue): DetailLine | undefined {
-  const failed = [...new Set(gathering.filter((o) => GATHER_PROBLEM.has(o.status)).map((o) => purposes[o.key] ?? o.key))];
-  return failed.length ? { text: fill(cat.popup.dataMissing, { what: clip(failed.join(', '), 120) }) } : undefined;
+/** Data the FHIR server could not give, by purpose, with why when the card says it nowhere else (the full list is on the reasoning page). */
+function dataMissingLine(gathering: GatherOutcome[], purposes: Record<string, string>, cat: Catalogue, withReasons: boolean): DetailLine | undefined {
+  const byPurpose = new Map<string, string>();
+  for (const o of gathering) {
+    if (!GATHER_PROBLEM.has(o.status)) continue;
+    const what = purposes[o.key] ?? o.key;
+    if (!byPurpose.has(what)) byPurpose.set(what, withReasons ? `${what} (${clip(gatherWhy(o), CLIENT_TEXT_MAX)})` : what);
+  }
+  return byPurpose.size ? { text: fill(cat.popup.dataMissing, { what: clip([...byPurpose.values()].join(withReasons ? '; ' : ', '), 160) }) } : undefined;
 }
 
 /** True when the data the advice depends on could not be gathered at all. */
@@ -268,7 +273,7 @@ export function composeCards(input: ComposeInput): CardModel[] {
 
   const failed = nothingToGoOn(advice, gathering);
   if (failed) {
-    const missing = dataMissingLine(gathering, purposes, catalogue);
+    const missing = dataMissingLine(gathering, purposes, catalogue, false);
     return [{
       kind: 'assessment-gap', vars: { gapReason: clip(gatherWhy(failed), CLIENT_TEXT_MAX) },
       lines: [{ text: fill(P.notAvailable, { reason: clip(gatherWhy(failed), CLIENT_TEXT_MAX) }), keep: true }, ...(missing ? [missing] : [])],
@@ -295,7 +300,7 @@ export function composeCards(input: ComposeInput): CardModel[] {
   for (const o of fluidOrders.filter((x) => x.volumeProblem)) {
     lines.push({ text: fill(P.orderProblem, { text: clip(`${o.display ?? 'IV fluid'}: ${o.volumeProblem ?? ''}`, 120) }), priority: 3 });
   }
-  const missing = dataMissingLine(gathering, purposes, catalogue);
+  const missing = dataMissingLine(gathering, purposes, catalogue, true);
   if (missing) lines.push({ ...missing, priority: 3 });
 
   const headline = rec ? catalogue.headlines[rec.headline] : '';
