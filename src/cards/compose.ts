@@ -101,9 +101,11 @@ function findingLine(f: Finding, snapshot: PatientSnapshot, cat: Catalogue, t: T
   const test = f.evidence.map((e) => snapshot.dynamicTests.find((d) => d.ref === e.ref)).find((d) => d !== undefined);
   const main = test ? f.evidence.find((e) => e.ref === test.ref) : f.evidence[0];
   if (!main) return f.text ? shortText(f.text) : undefined;
-  const newest = f.evidence.filter((e) => e.kind === main.kind).sort((a, b) => a.ageMinutes - b.ageMinutes)[0] ?? main;
-  // A figure worked out at the moment of the advice (a balance) has no time of its own to show.
-  const time = Math.abs(Date.parse(newest.effective) - Date.parse(snapshot.now)) < 1000 ? '' : when(newest, assumedRefs.has(newest.ref), t);
+  // A figure worked out at the moment of the advice (a balance) has no time of its own: the newest reading behind it is shown.
+  const atNow = (e: Evidence) => Math.abs(Date.parse(e.effective) - Date.parse(snapshot.now)) < 1000;
+  const timeOf = (e: Evidence | undefined) => (e && !atNow(e) ? when(e, assumedRefs.has(e.ref), t) : '');
+  const time = timeOf(main);
+  const newestTime = timeOf([...f.evidence].filter((e) => !atNow(e)).sort((a, b) => a.ageMinutes - b.ageMinutes)[0]);
   if (test) {
     // A test by its change, as its threshold is read (Monnet 2016, Muller 2011, Monnet 2009: relative; Myatra 2017: absolute PPV points).
     const change = test.kind === 'tidalVolumeChallenge'
@@ -123,7 +125,7 @@ function findingLine(f: Finding, snapshot: PatientSnapshot, cat: Catalogue, t: T
     return withTime(`${kindLabel(m.kind)} ${num(m.value)}${unit ? ` ${unit}` : ''}`, time);
   }
   // Several readings or a derived figure (a balance, an IVC with its collapsibility): the rule's own sentence, shortened.
-  return withTime(clip(shortText(f.text), 90), time);
+  return withTime(clip(shortText(f.text), 90), newestTime);
 }
 
 const withTime = (what: string, time: string) => (time ? `${what}, ${time}` : what);
@@ -233,7 +235,7 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
   const reassessAt = new Date(nowMs + ((order.durationMin ?? 0) + REASSESS_MIN) * 60_000).toISOString();
   const aliquotReassessAt = new Date(nowMs + ((aliquotMin ?? 0) + REASSESS_MIN) * 60_000).toISOString();
   const out: Array<Suggestion | undefined> = [];
-  const reassess = (at = reassessAt) => requestTest('reassess-after-bolus', ctx, T['reassess-after-bolus'], vars, now, at);
+  const reassess = (at = reassessAt, ml = vars.orderedMl) => requestTest('reassess-after-bolus', ctx, T['reassess-after-bolus'], { ...vars, reassessMl: ml }, now, at);
   const test = (k: TestKind) => requestTest(k, ctx, T[k], vars, now, now);
   const next = testToOffer(advice);
   const critical = rec.indicator === 'critical';
@@ -247,7 +249,7 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
     case 'smaller-aliquot': {
       const s = aliquot !== undefined ? smallerAliquot(order, aliquot, aliquotMin, T['smaller-aliquot'], vars) : undefined;
       // A critical card never recommends giving (docs/clinical-logic): there the decisive test, if any, is recommended.
-      out.push(s ? (critical ? s : { ...s, isRecommended: true }) : undefined, reassess(s ? aliquotReassessAt : reassessAt));
+      out.push(s ? (critical ? s : { ...s, isRecommended: true }) : undefined, s ? reassess(aliquotReassessAt, vars.aliquotMl) : reassess());
       if (next) out.push(critical ? { ...test(next), isRecommended: true } : test(next));
       if (critical) out.push(withdraw());
       break;

@@ -105,7 +105,7 @@ describe('the pop-up reads in seconds; its reasoning page holds the rest', () =>
     const detail: string = card.detail;
     expect(detail.length).toBeLessThanOrEqual(900);
     expect(lines(detail).length).toBeLessThanOrEqual(12);
-    expect(detail).toMatch(/^- \*\*Responsiveness:\*\* likely \(high confidence: a test with a flow reading\)$/m);
+    expect(detail).toMatch(/^- \*\*Responsiveness:\*\* likely \(high confidence: a dynamic test result\)$/m);
     expect(detail).toMatch(/^- \*\*Tolerance:\*\* poor \(\d+ of \d+ markers assessed\)$/m);
     expect(detail).toMatch(/^- \*\*Perfusion:\*\* signs of hypoperfusion$/m);
     // PLR 4.0 → 4.6 L/min is +15 % (Monnet 2016 reads the relative rise), 12 min before NOW (hook-fixtures), in UTC (no zone configured).

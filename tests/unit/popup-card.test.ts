@@ -157,6 +157,7 @@ describe('suggestions', () => {
   it('after a smaller aliquot (250 mL over 15 min) the reassessment is at now + 15 + 15 min', () => {
     const sug = run('smaller-aliquot').cards[0]?.suggestions ?? [];
     expect(sug[0]?.label).toBe('Give 250 mL over 15 min instead of 500 mL, then reassess');
+    expect(sug[1]?.label).toBe('Reassess 15 min after the 250 mL bolus');
     expect(srOf(sug[1]!).occurrenceDateTime).toBe(at(30));
   });
 
