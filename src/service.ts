@@ -98,7 +98,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
         res.type(metrics.registry.contentType).send(await metrics.registry.metrics());
       });
     },
-    store, catalogue, catalogueDigest: digest, thresholds, rulesVersion: version, publicUrl, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
+    store, catalogue, catalogueDigest: digest, thresholds, rulesVersion: version, publicUrl, timeZone: cfg.TIDEMARK_TIME_ZONE, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
     ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
     gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY,
       maxResponseBytes: cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES, maxCallBytes: cfg.TIDEMARK_FHIR_MAX_CALL_BYTES },

@@ -7,8 +7,9 @@ import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { z } from 'zod';
-import { ALTERNATIVES, HEADLINE_KEYS } from '../assess/advice/types.js';
+import { ADVICE_ACTIONS, ALTERNATIVES, HEADLINE_KEYS } from '../assess/advice/types.js';
 import { NEXT_TESTS } from '../assess/types.js';
+import { CODED_ANSWERS } from '../fhir/codes.js';
 
 const text = z.string().min(1);
 
@@ -24,6 +25,34 @@ export const SUGGESTION_KINDS = [
 ] as const;
 export type SuggestionKind = (typeof SUGGESTION_KINDS)[number];
 const indicator = z.enum(['info', 'warning', 'critical']);
+/** One line of the pop-up's detail (our own bound, well under the 900 characters of the whole detail). */
+const line = text.max(160);
+
+/** Wording of each answer code of each coded kind (closed sets: src/fhir/codes.ts CODED_ANSWERS): no code reaches a card. */
+const answersSchema = z.strictObject(
+  Object.fromEntries(Object.entries(CODED_ANSWERS).map(([kind, codes]) => [kind, closedSet(codes)])) as Record<keyof typeof CODED_ANSWERS, z.ZodType<Record<string, string>>>,
+);
+
+/** The pop-up card's words (src/cards/compose.ts builds its lines from these; docs/integration.md shows one). */
+const popupSchema = z.strictObject({
+  labels: z.strictObject({ responsiveness: text, tolerance: text, need: text }),
+  responsiveness: z.strictObject({ likely: text, unlikely: text, indeterminate: text, unassessed: text }),
+  confidence: z.strictObject({ high: text, moderate: text, low: text }),
+  tolerance: z.strictObject({ adequate: text, limited: text, poor: text, 'not-known': text, unassessed: text }),
+  coverage: text,
+  need: z.strictObject({ present: text, absent: text, unknown: text }),
+  earlyPhase: text,
+  assumed: line,
+  timeAssumed: text,
+  settle: line,
+  settleFallback: line,
+  caution: line,
+  reasoningLink: text,
+  docsLink: text,
+  orderProblem: line,
+  notAvailable: line,
+  dataMissing: line,
+});
 
 export const catalogueSchema = z
   .object({
@@ -69,6 +98,18 @@ export const catalogueSchema = z
     /** Suggestion wording per suggestion kind: label, action description, text of the FHIR resource. */
     suggestions: z.strictObject(Object.fromEntries(SUGGESTION_KINDS.map((k) => [k, z.object({ label: text.max(120), description: text, text })])) as
       Record<SuggestionKind, z.ZodObject<{ label: z.ZodString; description: z.ZodString; text: z.ZodString }>>),
+    /** The pop-up card's words. */
+    popup: popupSchema,
+    /** Each test as the gap line names it, sentence start (closed set: NEXT_TESTS). */
+    testNames: closedSet(NEXT_TESTS),
+    /** Each test's positive and negative result at its published threshold, in the gap line's words. */
+    testResults: z.strictObject(Object.fromEntries(NEXT_TESTS.map((k) => [k, z.strictObject({ positive: text, negative: text })])) as
+      Record<(typeof NEXT_TESTS)[number], z.ZodObject<{ positive: z.ZodString; negative: z.ZodString }>>),
+    /** What the advice would then be, per action (closed set: ADVICE_ACTIONS). */
+    actionWords: closedSet(ADVICE_ACTIONS),
+    /** What responsiveness would then be (patient view: no action). */
+    verdictWords: z.strictObject({ likely: text, unlikely: text, indeterminate: text }),
+    answers: answersSchema,
     overrideReasonSystem: z.url(),
     sectionTitles: z.record(z.string(), text),
   })

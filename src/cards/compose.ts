@@ -1,20 +1,24 @@
 /**
  * What to say: Advice + snapshot + gathering outcomes → card models (rendered by render.ts with the catalogue).
  * Decides which card kinds apply and which suggestions to offer from the advice's codes (action, headline key,
- * alternatives, next-test kind); never looks at clinical thresholds (those live in assess/), never branches on card
- * ids, rule ids or the words of reasons. All wording comes from the catalogue.
+ * alternatives, next-test kind, what-if outcomes); never looks at clinical thresholds (those live in assess/), never
+ * branches on card ids, rule ids or the words of reasons. All wording comes from the catalogue.
+ *
+ * The card is a pop-up read in seconds while ordering (issue 16): one line per question, up to three deciding
+ * findings with their local time and age, the one test that would change the advice, one caution with the link to
+ * the reasoning page, which shows everything else (every finding with its reference, what was missing, the order).
  */
-import { sentenceStart } from '../assess/common/text.js';
-import type { NextTestKind } from '../assess/types.js';
-import type { Advice, Finding } from '../assess/types.js';
+import type { Advice, Evidence, Finding, NextTestKind } from '../assess/types.js';
+import type { WhatIfOutcome } from '../assess/what-if/types.js';
+import { absoluteChange, relativeChangePercent } from '../physiology/dynamic-tests.js';
 import type { GatherOutcome } from '../fhir/gather.js';
 import type { HookName, Suggestion } from '../hooks/schemas.js';
 import type { DraftOrder, PatientSnapshot } from '../snapshot/types.js';
 import type { Catalogue } from './catalogue.js';
-import type { CardModel } from './render.js';
-import { kindLabel } from './render.js';
-import { formatAge } from './format.js';
-import { fill } from './markdown.js';
+import type { CardModel, DetailLine } from './render.js';
+import { kindLabel, unitDisplay } from './render.js';
+import { clockAndAge, utcDay } from './format.js';
+import { clip, fill } from './markdown.js';
 import { requestTest, smallerAliquot, withdrawDraft, type SuggestionContext, type TestKind } from './suggestions.js';
 
 const GATHER_PROBLEM = new Set(['unavailable', 'http-error', 'timeout', 'network-error', 'not-fhir', 'truncated', 'too-large', 'redirect']);
@@ -59,44 +63,154 @@ export interface ComposeInput {
   purposes: Record<string, string>;
   catalogue: Catalogue;
   context: SuggestionContext;
+  /** The site's IANA time zone for the times on the card (TIDEMARK_TIME_ZONE); UTC when not given. */
+  timeZone?: string;
 }
 
-/** Strips a rule's own "X: not assessed (…)" suffix so the gap line reads "X: reason". */
-function gapWhat(f: Finding): string {
-  return f.text.replace(/:?\s*not assessed.*$/i, '').trim() || f.ruleId;
+/** Longest piece of client text kept in one line of the pop-up (a display, a reason quoted from the FHIR server). */
+const CLIENT_TEXT_MAX = 80;
+/** Deciding findings shown on the pop-up (issue 16: up to three). */
+const MAX_FINDINGS = 3;
+
+/** A number as the card shows it: at most two decimals, no trailing zeros. */
+function num(v: number): string {
+  return String(Number.isInteger(v) ? v : Number(v.toFixed(Math.abs(v) >= 10 ? 1 : 2)));
 }
 
-
-/** One gap line without saying the same thing twice ("PPV: PPV stale …" → "PPV stale …"). */
-function gapLine(what: string, why: string): CardModel['gaps'][number] {
-  const w = what.toLowerCase();
-  const y = why.toLowerCase();
-  if (y.startsWith(w)) return { what: why, why: '' };
-  const lead = y.split(/[\s:(]+/).filter(Boolean).slice(0, 2).join(' ');
-  if (lead && w.includes(lead)) return { what, why: '' };
-  return { what, why };
+/**
+ * A finding's own sentence, shortened for one line: up to the first ";", without parenthesised asides, and without a
+ * trailing comment after a colon (": points to …", lower case), keeping a colon followed by data (": MAP 58 → 65").
+ */
+function shortText(text: string): string {
+  const first = (text.split(';')[0] ?? text).replace(/\s*\([^()]*\)/g, '').replace(/\s+/g, ' ').trim();
+  const comment = /:\s+[a-z]/.exec(first);
+  return clip(comment ? first.slice(0, comment.index) : first, 100);
 }
 
-export function gapsOf(advice: Advice, snapshot: PatientSnapshot, gathering: GatherOutcome[], purposes: Record<string, string>): CardModel['gaps'] {
-  const gaps: CardModel['gaps'] = [];
-  for (const o of gathering) if (GATHER_PROBLEM.has(o.status)) gaps.push({ what: `Data: ${purposes[o.key] ?? o.key}`, why: gatherWhy(o) });
-  // Stale, invalid or confounded markers one by one (they explain why a value on the chart was not used) …
-  const absent: string[] = [];
-  for (const f of advice.findings) {
-    if (f.status !== 'not-assessed') continue;
-    if (f.gap === 'missing') {
-      if (!absent.includes(gapWhat(f))) absent.push(gapWhat(f));
-    } else gaps.push(gapLine(gapWhat(f), f.reason ?? 'not assessed'));
+interface TimeWords { zone: string; at: string; dateOnly: string }
+
+/** "14:05, 18 min ago", or "1 Dec, date only, time assumed" when the record gave a date alone. */
+function when(e: Evidence, assumed: boolean, t: TimeWords): string {
+  return assumed ? `${utcDay(e.effective)}, ${t.dateOnly}` : clockAndAge(e.effective, t.zone, t.at);
+}
+
+/** One line for one deciding finding: what was measured, its value and unit, its local time and age. */
+function findingLine(f: Finding, snapshot: PatientSnapshot, cat: Catalogue, t: TimeWords, assumedRefs: ReadonlySet<string>): string | undefined {
+  // The finding's own reading: a dynamic test it judged, else its first piece of evidence (the rules list what they
+  // read first, then the context that made it valid: rhythm, ventilation).
+  const test = f.evidence.map((e) => snapshot.dynamicTests.find((d) => d.ref === e.ref)).find((d) => d !== undefined);
+  const main = test ? f.evidence.find((e) => e.ref === test.ref) : f.evidence[0];
+  if (!main) return f.text ? shortText(f.text) : undefined;
+  // A figure worked out at the moment of the advice (a balance) has no time of its own: the newest reading behind it is shown.
+  const atNow = (e: Evidence) => Math.abs(Date.parse(e.effective) - Date.parse(snapshot.now)) < 1000;
+  const timeOf = (e: Evidence | undefined) => (e && !atNow(e) ? when(e, assumedRefs.has(e.ref), t) : '');
+  const time = timeOf(main);
+  const newestTime = timeOf([...f.evidence].filter((e) => !atNow(e)).sort((a, b) => a.ageMinutes - b.ageMinutes)[0]);
+  if (test) {
+    // A test by its change, as its threshold is read (Monnet 2016, Muller 2011, Monnet 2009: relative; Myatra 2017: absolute PPV points).
+    const change = test.kind === 'tidalVolumeChallenge'
+      ? `${absoluteChange(test.before, test.after) >= 0 ? '+' : '−'}${num(Math.abs(absoluteChange(test.before, test.after)))} points`
+      : test.before > 0 ? `${relativeChangePercent(test.before, test.after) >= 0 ? '+' : '−'}${num(Math.abs(Math.round(relativeChangePercent(test.before, test.after) * 10) / 10))} %` : '';
+    return withTime(`${kindLabel(`${test.kind}:${test.measured}`)} ${change} (${num(test.before)} → ${num(test.after)} ${unitDisplay(test.unit)})`.replace(/\s+/g, ' '), time);
   }
-  // … and markers never recorded on one line, so the card stays readable.
-  if (absent.length) gaps.push({ what: 'Not recorded', why: absent.join(', ') });
-  for (const e of snapshot.excluded) gaps.push({ what: `${e.kind ? kindLabel(e.kind) : 'Resource'} (${e.ref})`, why: `left out: ${e.detail}` });
-  for (const e of advice.ruleErrors) gaps.push({ what: `Rule ${e.ruleId}`, why: 'failed on this data and was skipped' });
-  return gaps;
+  const coded = snapshot.coded.find((c) => c.ref === main.ref && c.kind === main.kind);
+  if (coded) {
+    const words = (cat.answers as Record<string, Record<string, string>>)[coded.kind]?.[coded.answer];
+    return words ? withTime(`${kindLabel(coded.kind)}: ${words}`, time) : undefined;
+  }
+  const numericKinds = new Set(f.evidence.filter((e) => snapshot.measurements.some((x) => x.ref === e.ref && x.kind === e.kind)).map((e) => e.kind));
+  const m = snapshot.measurements.find((x) => x.ref === main.ref && x.kind === main.kind);
+  if (m && numericKinds.size === 1 && f.evidence.filter((e) => e.kind === main.kind).length === 1) {
+    const unit = unitDisplay(m.unit);
+    return withTime(`${kindLabel(m.kind)} ${num(m.value)}${unit ? ` ${unit}` : ''}`, time);
+  }
+  // Several readings or a derived figure (a balance, an IVC with its collapsibility): the rule's own sentence, shortened.
+  return withTime(clip(shortText(f.text), 90), newestTime);
 }
 
-function evidenceRows(findings: Finding[]): CardModel['evidence'] {
-  return findings.filter((f) => f.status === 'assessed' && f.evidence.length).map((f) => ({ finding: f.text, evidence: f.evidence }));
+const withTime = (what: string, time: string) => (time ? `${what}, ${time}` : what);
+
+/**
+ * How strongly a deciding finding speaks, by its typed fields, strongest first: a dynamic test before a static
+ * marker before context (responsiveness); a harm sign, then a severe, then a moderate limit (tolerance); a sign of
+ * hypoperfusion before a normal sign, context last (perfusion).
+ */
+function weight(f: Finding): number {
+  switch (f.topic) {
+    case 'responsiveness': return (f.tier === 'dynamic' ? 0 : f.tier === 'static' ? 10 : 20) + (f.direction === 'for' || f.direction === 'against' ? 0 : 5);
+    case 'tolerance': return f.harmSign ? 0 : f.limit === 'severe' ? 1 : f.limit === 'moderate' ? 2 : f.contextOnly ? 4 : 3;
+    case 'perfusion': return f.contextOnly ? 3 : f.hypoperfusion ? 0 : 1;
+    default: return 9;
+  }
+}
+
+/** The deciding findings of the verdicts, strongest first, taken in turn from responsiveness, tolerance and perfusion. */
+function decidingFindings(advice: Advice): Finding[] {
+  const assessed = advice.findings.filter((f) => f.status === 'assessed');
+  const lists = [advice.responsiveness, advice.tolerance, advice.need].map((v) =>
+    (v?.decidingRules ?? []).flatMap((id) => assessed.filter((f) => f.ruleId === id)).sort((a, b) => weight(a) - weight(b)));
+  const out: Finding[] = [];
+  for (let i = 0; lists.some((l) => l.length > i); i++) {
+    for (const l of lists) {
+      const f = l[i];
+      if (f && !out.includes(f)) out.push(f);
+    }
+  }
+  return out;
+}
+
+/** What the result of `test` would lead to, in words: the action after the re-run, else the responsiveness verdict. */
+function outcomeWords(o: WhatIfOutcome | undefined, cat: Catalogue): string | undefined {
+  if (!o) return undefined;
+  return o.action ? cat.actionWords[o.action] : cat.verdictWords[o.responsiveness];
+}
+
+/** The one gap that would change the advice: from the counterfactual engine when it ran, else the verdict's next-test kind. */
+function settleLine(advice: Advice, cat: Catalogue): string | undefined {
+  const P = cat.popup;
+  if (advice.whatIf) {
+    const k = advice.whatIf.decisive;
+    if (!k) return undefined;
+    const row = advice.whatIf.rows.find((r) => r.test === k);
+    const pos = outcomeWords(row?.outcomes.find((o) => o.result === 'positive'), cat);
+    const neg = outcomeWords(row?.outcomes.find((o) => o.result === 'negative'), cat);
+    if (!pos || !neg) return fill(P.settleFallback, { test: cat.testNames[k] });
+    return fill(P.settle, { test: cat.testNames[k], positive: cat.testResults[k].positive, positiveOutcome: pos, negative: cat.testResults[k].negative, negativeOutcome: neg });
+  }
+  const k = advice.recommendation ? advice.recommendation.nextTest : advice.responsiveness?.value === 'indeterminate' ? advice.responsiveness.nextTest : undefined;
+  return k ? fill(P.settleFallback, { test: cat.testNames[k] }) : undefined;
+}
+
+/** The test a suggestion should recommend: the decisive one when the engine ran, else the verdict's next-test kind. */
+function testToOffer(advice: Advice): NextTestKind | undefined {
+  if (advice.whatIf) return advice.whatIf.decisive;
+  return advice.recommendation?.nextTest ?? (advice.responsiveness?.value === 'indeterminate' ? advice.responsiveness.nextTest : undefined);
+}
+
+/** The question lines: responsiveness with its confidence, tolerance with its coverage, perfusion (and the phase). */
+function questionLines(advice: Advice, cat: Catalogue): DetailLine[] {
+  const P = cat.popup;
+  const r = advice.responsiveness;
+  const t = advice.tolerance;
+  const lines: DetailLine[] = [];
+  lines.push({ label: P.labels.responsiveness, text: `${P.responsiveness[r?.value ?? 'unassessed']}${r?.confidence ? ` (${P.confidence[r.confidence]})` : ''}`, keep: true });
+  const cov = t?.coverage ? fill(P.coverage, { assessed: String(t.coverage.assessed), total: String(t.coverage.total) }) : '';
+  lines.push({ label: P.labels.tolerance, text: `${P.tolerance[t?.value ?? 'unassessed']}${cov ? ` (${cov})` : ''}`, keep: true });
+  if (advice.need) {
+    lines.push({ label: P.labels.need, text: `${P.need[advice.need.value]}${advice.phase?.value === 'early-resuscitation' ? `; ${P.earlyPhase}` : ''}`, keep: true });
+  }
+  return lines;
+}
+
+/** Data the FHIR server could not give, by purpose, with why when the card says it nowhere else (the full list is on the reasoning page). */
+function dataMissingLine(gathering: GatherOutcome[], purposes: Record<string, string>, cat: Catalogue, withReasons: boolean): DetailLine | undefined {
+  const byPurpose = new Map<string, string>();
+  for (const o of gathering) {
+    if (!GATHER_PROBLEM.has(o.status)) continue;
+    const what = purposes[o.key] ?? o.key;
+    if (!byPurpose.has(what)) byPurpose.set(what, withReasons ? `${what} (${clip(gatherWhy(o), CLIENT_TEXT_MAX)})` : what);
+  }
+  return byPurpose.size ? { text: fill(cat.popup.dataMissing, { what: clip([...byPurpose.values()].join(withReasons ? '; ' : ', '), 160) }) } : undefined;
 }
 
 /** True when the data the advice depends on could not be gathered at all. */
@@ -104,12 +218,6 @@ function nothingToGoOn(advice: Advice, gathering: GatherOutcome[]): GatherOutcom
   if (advice.findings.some((f) => f.status === 'assessed' && f.topic !== 'order')) return undefined;
   return gathering.find((o) => GATHER_PROBLEM.has(o.status));
 }
-
-
-const TEST_SUGGESTION: Record<NextTestKind, 'passive-leg-raise' | 'mini-fluid-challenge' | 'tidal-volume-challenge' | 'end-expiratory-occlusion'> = {
-  'passive-leg-raise': 'passive-leg-raise', 'mini-fluid-challenge': 'mini-fluid-challenge',
-  'tidal-volume-challenge': 'tidal-volume-challenge', 'end-expiratory-occlusion': 'end-expiratory-occlusion',
-};
 
 function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Catalogue, ctx: SuggestionContext, now: string): Suggestion[] {
   const rec = advice.recommendation;
@@ -122,10 +230,14 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
     aliquotMl: String(aliquot ?? ''), orderedMl: String(Math.round(orderedMl ?? 0)), reassessMin: String(REASSESS_MIN),
     aliquotRate: aliquotMin !== undefined ? ` over ${aliquotMin} min` : '',
   };
+  const nowMs = Date.parse(now);
+  // A test is wanted before any volume (now); a reassessment when the bolus has run and the interval has passed.
+  const reassessAt = new Date(nowMs + ((order.durationMin ?? 0) + REASSESS_MIN) * 60_000).toISOString();
+  const aliquotReassessAt = new Date(nowMs + ((aliquotMin ?? 0) + REASSESS_MIN) * 60_000).toISOString();
   const out: Array<Suggestion | undefined> = [];
-  const reassess = () => requestTest('reassess-after-bolus', ctx, T['reassess-after-bolus'], vars, now);
-  const test = (k: TestKind) => requestTest(k, ctx, T[k], vars, now);
-  const next = rec.nextTest ? TEST_SUGGESTION[rec.nextTest] : undefined;
+  const reassess = (at = reassessAt, ml = vars.orderedMl) => requestTest('reassess-after-bolus', ctx, T['reassess-after-bolus'], { ...vars, reassessMl: ml }, now, at);
+  const test = (k: TestKind) => requestTest(k, ctx, T[k], vars, now, now);
+  const next = testToOffer(advice);
   const critical = rec.indicator === 'critical';
   const withdraw = () => (rec.phase === 'early-resuscitation' ? undefined : withdrawDraft(order, T['withdraw-bolus'], vars));
   switch (rec.action) {
@@ -136,9 +248,9 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
       break;
     case 'smaller-aliquot': {
       const s = aliquot !== undefined ? smallerAliquot(order, aliquot, aliquotMin, T['smaller-aliquot'], vars) : undefined;
-      // A critical card never recommends giving (docs/clinical-logic).
-      out.push(s ? (critical ? s : { ...s, isRecommended: true }) : undefined, reassess());
-      if (next) out.push(test(next));
+      // A critical card never recommends giving (docs/clinical-logic): there the decisive test, if any, is recommended.
+      out.push(s ? (critical ? s : { ...s, isRecommended: true }) : undefined, s ? reassess(aliquotReassessAt, vars.aliquotMl) : reassess());
+      if (next) out.push(critical ? { ...test(next), isRecommended: true } : test(next));
       if (critical) out.push(withdraw());
       break;
     }
@@ -156,40 +268,42 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
 export function composeCards(input: ComposeInput): CardModel[] {
   const { hook, advice, snapshot, gathering, purposes, catalogue } = input;
   const ph = catalogue.phrases;
+  const P = catalogue.popup;
   const orderHook = hook === 'order-select' || hook === 'order-sign';
   const fluidOrders = snapshot.draftOrders.filter((o) => o.selected && o.isFluid);
   if (orderHook && fluidOrders.length === 0) return []; // not a fluid bolus: no fluid card
 
-  const gaps = gapsOf(advice, snapshot, gathering, purposes);
   const failed = nothingToGoOn(advice, gathering);
-  if (failed) return [{ kind: 'assessment-gap', vars: { gapReason: gatherWhy(failed) }, conclusion: [], evidence: [], gaps, order: [], suggestions: [] }];
+  if (failed) {
+    const missing = dataMissingLine(gathering, purposes, catalogue, false);
+    return [{
+      kind: 'assessment-gap', vars: { gapReason: clip(gatherWhy(failed), CLIENT_TEXT_MAX) },
+      lines: [{ text: fill(P.notAvailable, { reason: clip(gatherWhy(failed), CLIENT_TEXT_MAX) }), keep: true }, ...(missing ? [missing] : [])],
+      suggestions: [],
+    }];
+  }
 
   const r = advice.responsiveness?.value ?? 'unassessed';
   const t = advice.tolerance?.value ?? 'unassessed';
   const rec = advice.recommendation;
   const responsivenessPhrase = ph.responsiveness[r];
   const tolerancePhrase = ph.tolerance[t];
-  const conclusion: string[] = [];
-  const confidence = advice.responsiveness?.confidence;
-  if (advice.responsiveness) {
-    conclusion.push(`${responsivenessPhrase}${confidence ? ` (${ph.confidence[confidence]})` : ''}: ${advice.responsiveness.rationale}`);
-  }
-  if (advice.tolerance) conclusion.push(`${sentenceStart(tolerancePhrase)}: ${advice.tolerance.rationale}`);
-  else conclusion.push(`${sentenceStart(tolerancePhrase)}: no marker of fluid tolerance could be assessed`);
-  if (advice.need) conclusion.push(`${ph.need[advice.need.value]}: ${advice.need.rationale}`);
-  if (advice.phase) conclusion.push(`${ph.phase[advice.phase.value]}: ${advice.phase.rationale}`);
+  const times: TimeWords = { zone: input.timeZone ?? 'UTC', at: snapshot.now, dateOnly: P.timeAssumed };
+  const assumedRefs = new Set(snapshot.measurements.filter((m) => m.timeAssumed).map((m) => m.ref));
+
+  const lines: DetailLine[] = questionLines(advice, catalogue);
+  // One line per finding, a number that two questions used (a CVP) once, at most three.
+  const findings = [...new Set(decidingFindings(advice).map((f) => findingLine(f, snapshot, catalogue, times, assumedRefs)).filter((x): x is string => !!x))].slice(0, MAX_FINDINGS);
+  for (const f of findings) lines.push({ text: f, bullet: true, priority: 2 });
+  const settle = settleLine(advice, catalogue);
+  if (settle) lines.push({ text: settle, keep: true });
   const assumed = advice.responsiveness?.assumptions ?? [];
-  if (assumed.length) conclusion.push(`${ph.assumed}: ${assumed.join('; ')}`);
-  const nextTest = rec ? rec.nextTest : advice.responsiveness?.value === 'indeterminate' ? advice.responsiveness.nextTest : undefined;
-  if (nextTest) conclusion.push(`${ph.settle}: ${catalogue.nextTests[nextTest]}`);
-  if (!orderHook) {
-    // The overview names the newest evidence behind the responsiveness verdict and its age.
-    const deciding = advice.findings.filter((f) => f.status === 'assessed' && advice.responsiveness?.decidingRules.includes(f.ruleId));
-    const newest = deciding.flatMap((f) => f.evidence.map((e) => ({ f, e }))).sort((a, b) => a.e.ageMinutes - b.e.ageMinutes)[0];
-    if (newest) conclusion.push(`Latest responsiveness evidence: ${newest.f.text} (${formatAge(newest.e.ageMinutes)} ago)`);
+  if (assumed.length) lines.push({ text: fill(P.assumed, { what: assumed.join('; ') }), priority: 1 });
+  for (const o of fluidOrders.filter((x) => x.volumeProblem)) {
+    lines.push({ text: fill(P.orderProblem, { text: clip(`${o.display ?? 'IV fluid'}: ${o.volumeProblem ?? ''}`, 120) }), priority: 3 });
   }
-  const options = (rec?.alternatives ?? []).map((a) => catalogue.alternatives[a]);
-  if (options.length) conclusion.push(`${ph.options}: ${options.join('; ')}`);
+  const missing = dataMissingLine(gathering, purposes, catalogue, true);
+  if (missing) lines.push({ ...missing, priority: 3 });
 
   const headline = rec ? catalogue.headlines[rec.headline] : '';
   const quantity = advice.findings.flatMap((f) => (f.topic === 'tolerance' && f.status === 'assessed' && f.quantity ? [f.quantity] : []));
@@ -201,22 +315,6 @@ export function composeCards(input: ComposeInput): CardModel[] {
     responsivenessPhrase, responsivenessPhraseLower: responsivenessPhrase.toLowerCase(), tolerancePhrase,
     tolerance: t, responsiveness: r, headline, balancePhrase, indicator: rec?.indicator ?? 'info',
   };
-  const clinical = advice.findings.filter((f) => f.topic !== 'order');
-  const orderLines = [
-    ...fluidOrders.filter((o) => o.volumeProblem).map((o) => `${o.display ?? 'IV fluid'}: ${o.volumeProblem}`),
-    ...advice.findings.filter((f) => f.topic === 'order' && f.status === 'assessed').map((f) => f.text),
-  ];
   const suggestions = orderHook ? suggestionsFor(advice, fluidOrders[0], catalogue, input.context, snapshot.now) : [];
-  return [
-    {
-      kind: orderHook ? 'bolus-review' : 'fluid-overview',
-      vars,
-      conclusion,
-      evidence: evidenceRows(clinical),
-      gaps,
-      order: orderLines,
-      suggestions,
-      selectionBehavior: 'at-most-one',
-    },
-  ];
+  return [{ kind: orderHook ? 'bolus-review' : 'fluid-overview', vars, lines, suggestions, selectionBehavior: 'at-most-one' }];
 }

@@ -1,4 +1,6 @@
 /** Presentation helpers for card text. */
+import { TZDate } from '@date-fns/tz';
+import { format } from 'date-fns';
 
 /** "12 min", "3 h 5 min", "2 d 4 h": ages as a prescriber reads them. */
 export function formatAge(minutes: number): string {
@@ -11,4 +13,26 @@ export function formatAge(minutes: number): string {
   const d = Math.floor(minutes / 1440);
   const h = Math.round((minutes - d * 1440) / 60);
   return h ? `${d} d ${h} h` : `${d} d`;
+}
+
+/**
+ * Local clock time in the site's IANA time zone (configured, TIDEMARK_TIME_ZONE), never the server's own zone:
+ * "14:05" on the day of `refIso`, else "19 Nov 14:05". date-fns with @date-fns/tz (the zone's offsets come from the
+ * ICU data of Node.js, which follows the IANA tz database). The reasoning page formats the same way.
+ */
+export function localClock(iso: string, zone: string, refIso: string): string {
+  const t = new TZDate(Date.parse(iso), zone);
+  const sameDay = format(new TZDate(Date.parse(refIso), zone), 'yyyy-MM-dd') === format(t, 'yyyy-MM-dd');
+  return format(t, sameDay ? 'HH:mm' : 'd MMM HH:mm');
+}
+
+/** "14:05, 18 min ago" (the age counted back from `atIso`, the moment of the advice). */
+export function clockAndAge(iso: string, zone: string, atIso: string): string {
+  const minutes = (Date.parse(atIso) - Date.parse(iso)) / 60_000;
+  return `${localClock(iso, zone, atIso)}, ${minutes >= 0 ? `${formatAge(minutes)} ago` : `in ${formatAge(-minutes)}`}`;
+}
+
+/** "1 Dec": the day of a date-only time (kept as the start of that day in UTC, so shown in UTC). */
+export function utcDay(iso: string): string {
+  return format(new TZDate(Date.parse(iso), 'UTC'), 'd MMM');
 }

@@ -4,22 +4,35 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { Card, Suggestion } from '../hooks/schemas.js';
-import { formatAge } from './format.js';
-import type { Evidence } from '../assess/types.js';
 import { findKind, type Catalogue } from './catalogue.js';
-import { fill, inline, md, table } from './markdown.js';
+import { fill, inline, md } from './markdown.js';
+
+/** One line of the pop-up's detail: plain text (escaped here), an optional bold label, a bullet. */
+export interface DetailLine {
+  label?: string;
+  text: string;
+  bullet?: boolean;
+  /** Never dropped to fit the limits (the questions, the gap that would change the advice). */
+  keep?: boolean;
+  /** Lines are dropped from the highest priority number down when the detail would pass its limits. */
+  priority?: number;
+}
 
 export interface CardModel {
   kind: string;
-  /** Template variables (plain text; escaped here where they go into Markdown). */
+  /** Template variables of the summary (plain text; escaped here). */
   vars: Record<string, string>;
-  conclusion: string[];
-  evidence: Array<{ finding: string; evidence: Evidence[] }>;
-  gaps: Array<{ what: string; why: string }>;
-  order: string[];
+  /** The detail's lines, in order (the caution line with the links is added here). */
+  lines: DetailLine[];
   suggestions: Suggestion[];
   selectionBehavior?: 'at-most-one' | 'any';
 }
+
+/** The pop-up's limits (issue 16): a detail a prescriber reads in seconds. */
+export const DETAIL_MAX_CHARS = 900;
+export const DETAIL_MAX_LINES = 12;
+/** Longest line of the detail (our own bound). */
+const LINE_MAX = 200;
 
 const UNIT_DISPLAY: Record<string, string> = { 'mm[Hg]': 'mmHg', 'cm[H2O]': 'cmH2O', '{grade}': '', '{regions}': 'regions', 'L/min/m2': 'L/min/m²', 'mL/m2': 'mL/m²' };
 export const unitDisplay = (u: string | undefined): string => (u === undefined ? '' : (UNIT_DISPLAY[u] ?? u));
@@ -44,11 +57,6 @@ export function kindLabel(k: string): string {
   return KIND_LABEL[k] ?? k;
 }
 
-/** "2026-12-01 18:05Z" */
-export function shortTime(iso: string): string {
-  return iso.slice(0, 16).replace('T', ' ') + 'Z';
-}
-
 /**
  * The first `n` characters of escaped text, never ending inside an escape: not after the lone backslash of a
  * backslash escape, not inside an entity (&amp; &lt; &gt;), not after the first half of a surrogate pair.
@@ -68,6 +76,47 @@ export interface RenderContext {
   adviceLink?: { label: string; url: string };
 }
 
+/** A URL of ours inside a Markdown link destination: nothing in it may close the link. */
+function linkUrl(url: string): string {
+  return encodeURI(decodeURI(url)).replace(/[()<>\[\]]/g, (c) => `%${c.charCodeAt(0).toString(16).toUpperCase()}`);
+}
+
+/** Markdown of one line: every text escaped (md), our own structure (bullet, bold label) added around it. */
+function lineMarkdown(l: DetailLine): string {
+  const body = `${l.label ? `**${md(l.label)}:** ` : ''}${md(l.text, LINE_MAX)}`;
+  // Two markers, so the questions and the findings stay two lists (CommonMark 0.31 §5.3: a new bullet character starts a new list).
+  return l.label ? `- ${body}` : l.bullet ? `* ${body}` : body;
+}
+
+/** Groups lines into Markdown blocks: consecutive list lines form one list; other lines stand as paragraphs. */
+function detailMarkdown(lines: DetailLine[], caution: string): string {
+  const blocks: string[][] = [];
+  let prevList: 'label' | 'bullet' | undefined;
+  for (const l of lines) {
+    const kind = l.label ? 'label' : l.bullet ? 'bullet' : undefined;
+    if (kind && kind === prevList) blocks[blocks.length - 1]?.push(lineMarkdown(l));
+    else blocks.push([lineMarkdown(l)]);
+    prevList = kind;
+  }
+  blocks.push([caution]);
+  return blocks.map((b) => b.join('\n')).join('\n\n');
+}
+
+const nonEmptyLines = (s: string) => s.split('\n').filter((l) => l.trim()).length;
+
+/** The detail within the pop-up's limits: lines dropped by priority (highest number first, the last of a kind first) until it fits. */
+function fitted(lines: DetailLine[], caution: string): string {
+  let kept = [...lines];
+  let text = detailMarkdown(kept, caution);
+  while ((text.length > DETAIL_MAX_CHARS || nonEmptyLines(text) > DETAIL_MAX_LINES) && kept.some((l) => !l.keep)) {
+    const worst = Math.max(...kept.filter((l) => !l.keep).map((l) => l.priority ?? 0));
+    const at = kept.map((l, i) => ({ l, i })).filter(({ l }) => !l.keep && (l.priority ?? 0) === worst).pop()?.i ?? -1;
+    kept = kept.filter((_l, i) => i !== at);
+    text = detailMarkdown(kept, caution);
+  }
+  return text.length > DETAIL_MAX_CHARS ? `${cutEscaped(text, DETAIL_MAX_CHARS - 1)}…` : text;
+}
+
 export function renderCard(model: CardModel, cat: Catalogue, ctx: RenderContext): Card {
   const kind = findKind(cat, model.kind);
   // Variables can carry client text (the reason of an assessment-gap card quotes what a prefetch OperationOutcome
@@ -77,23 +126,6 @@ export function renderCard(model: CardModel, cat: Catalogue, ctx: RenderContext)
   if (summary.length >= 140) summary = fill(kind.shortSummary, summaryVars).replace(/\s+/g, ' ').trim();
   if (summary.length >= 140) summary = `${cutEscaped(summary, 136)}…`;
 
-  const parts: string[] = [];
-  for (const section of kind.sections) {
-    const title = cat.sectionTitles[section] ?? section;
-    if (section === 'conclusion' && model.conclusion.length) parts.push(`**${title}**\n\n${model.conclusion.map((c) => `- ${md(c)}`).join('\n')}`);
-    if (section === 'evidence' && model.evidence.length) {
-      const rows = model.evidence.flatMap((f) =>
-        f.evidence.map((e) => [md(kindLabel(e.kind)), md(`${e.value}${unitDisplay(e.unit) ? ` ${unitDisplay(e.unit)}` : ''}`), md(`${shortTime(e.effective)} (${formatAge(e.ageMinutes)} ago)`), md(e.ref)]),
-      );
-      const seen = new Set<string>();
-      const unique = rows.filter((r) => (seen.has(r.join('|')) ? false : (seen.add(r.join('|')), true)));
-      if (unique.length) parts.push(`**${title}**\n\n${table(['Marker', 'Value', 'Time (age)', 'Source'], unique)}`);
-    }
-    if (section === 'gaps' && model.gaps.length) parts.push(`**${title}**\n\n${model.gaps.map((g) => `- ${md(g.what)}${g.why ? `: ${md(g.why)}` : ''}`).join('\n')}`);
-    if (section === 'order' && model.order.length) parts.push(`**${title}**\n\n${model.order.map((c) => `- ${md(c)}`).join('\n')}`);
-    if (section === 'cautions') parts.push(`**${title}**\n\n${cat.cautions.map((c) => `- ${md(c)}`).join('\n')}`);
-  }
-
   const rule = kind.indicatorRules.find((r) => Object.entries(r.if).every(([k, v]) => model.vars[k] === v));
   const indicator = rule?.then ?? kind.defaultIndicator;
   const reasons = (kind.overrideReasons ?? [])
@@ -102,10 +134,13 @@ export function renderCard(model: CardModel, cat: Catalogue, ctx: RenderContext)
     .map((r) => ({ code: r.code, system: cat.overrideReasonSystem, display: r.display }));
   const base = ctx.publicUrl.replace(/\/$/, '');
   const docsUrl = `${base}/docs/${kind.docsPage.replace(/\.md$/, '')}`; // the page as HTML (GET /docs/{page})
+  const P = cat.popup;
+  const link = ctx.adviceLink ? `[${md(P.reasoningLink)}](${linkUrl(ctx.adviceLink.url)})` : `[${md(P.docsLink)}](${linkUrl(docsUrl)})`;
+  const caution = `*${md(P.caution)}* ${link}`;
   const card: Card = {
     uuid: randomUUID(),
     summary,
-    detail: parts.join('\n\n'),
+    detail: fitted(model.lines, caution),
     indicator,
     source: { label: cat.source.label, url: docsUrl, ...(cat.source.topic ? { topic: cat.source.topic } : {}) },
     links: [...(ctx.adviceLink ? [{ ...ctx.adviceLink, type: 'absolute' as const }] : []), { label: `How Tidemark reasons: ${kind.title}`, url: docsUrl, type: 'absolute' }],

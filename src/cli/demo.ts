@@ -41,7 +41,6 @@ function out(line = ''): void {
 
 const ROUTE_LABEL: Record<RouteKind, string> = { 'fhir-server': 'via FHIR server', prefetch: 'via prefetch' };
 const ROUTE_SHORT: Record<RouteKind, string> = { 'fhir-server': 'fhir', prefetch: 'prefetch' };
-const MAX_LINES = 6;
 
 function indicatorBadge(indicator: string): string {
   const label = ` ${indicator.toUpperCase()} `;
@@ -49,43 +48,11 @@ function indicatorBadge(indicator: string): string {
   return (colour[indicator] ?? cyan)(bold(label));
 }
 
-/** Markdown of a card detail → its sections' bullet lines, by section title (escapes removed). */
-function sections(detail: string | undefined): Map<string, string[]> {
-  const map = new Map<string, string[]>();
-  if (!detail) return map;
-  const unescape = (s: string) => s.replace(/\\([\\`*_{}[\]()#+\-.!|>~<])/g, '$1').replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&amp;/g, '&');
-  for (const m of detail.matchAll(/\*\*([^*]+)\*\*\n\n([\s\S]*?)(?=\n\n\*\*[^*]+\*\*\n\n|$)/g)) {
-    const title = m[1] ?? '';
-    const body = m[2] ?? '';
-    const lines = body.split('\n').filter((l) => l.startsWith('- ')).map((l) => unescape(l.slice(2)));
-    const rows = body.split('\n').filter((l) => l.startsWith('|') && !/^\|\s*-/.test(l)).slice(1).map((l) => unescape(l).split('|').map((c) => c.trim()).filter(Boolean).join('  '));
-    map.set(title, lines.length ? lines : rows);
-  }
-  return map;
-}
-
-function capped(lines: string[], max = MAX_LINES): string[] {
-  return lines.length <= max ? lines : [...lines.slice(0, max), dim(`… and ${lines.length - max} more`)];
-}
-
-interface FindingLike { topic?: string; status?: string; direction?: string; weight?: string; text?: string; values?: Record<string, unknown> }
-
-/** The findings that carried the verdicts: responsiveness markers that point a way, tolerance markers that limit. */
-function keyEvidence(record: Record<string, unknown> | undefined): string[] {
-  const advice = record?.['advice'] as { findings?: FindingLike[] } | undefined;
-  const findings = advice?.findings ?? (record?.['findings'] as FindingLike[] | undefined) ?? [];
-  const assessed = findings.filter((f) => f.status === 'assessed' && f.text);
-  const lines: string[] = [];
-  for (const f of assessed) {
-    if (f.topic === 'responsiveness' && f.weight !== 'context' && (f.direction === 'for' || f.direction === 'against')) {
-      lines.push(`${f.direction === 'for' ? green('+') : red('−')} ${f.text}`);
-    } else if (f.topic === 'tolerance' && f.direction === 'against') {
-      lines.push(`${yellow('!')} ${f.text}`);
-    }
-  }
-  // Nothing points a way: show what was weighed (responsiveness markers and perfusion context).
-  if (lines.length === 0) for (const f of assessed) if (f.topic === 'responsiveness' || f.topic === 'perfusion') lines.push(`· ${f.text}`);
-  return lines;
+/** Markdown of a card detail → its lines as a prescriber reads them (escapes and emphasis removed, links as their label). */
+function detailLines(detail: string | undefined): string[] {
+  if (!detail) return [];
+  const unescape = (s: string) => s.replace(/\\([\\`*_{}[\]()#+\-.!|>~<:/])/g, '$1').replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&amp;/g, '&');
+  return detail.split('\n').filter((l) => l.trim()).map((l) => unescape(l.replace(/\[([^\]]+)\]\([^)]*\)/g, '[$1]').replace(/\*\*([^*]+)\*\*/g, '$1').replace(/^\* /, '· ').replace(/^\*(.+)\*( |$)/, '$1$2')));
 }
 
 function printCards(run: ScenarioRun): void {
@@ -102,20 +69,9 @@ function printCards(run: ScenarioRun): void {
   for (const card of cards) {
     const valid = cardSchema.safeParse(card);
     out(`   ${indicatorBadge(String(card['indicator']))} ${bold(String(card['summary']))}${valid.success ? '' : red('  (card does not pass the CDS Hooks card schema)')}`);
-    const sec = sections(card['detail'] as string | undefined);
-    const conclusion = sec.get('Conclusion') ?? [];
-    if (conclusion.length) {
-      out(`     ${bold('Conclusion')}`);
-      for (const l of capped(conclusion, 4)) out(`       ${l}`);
-    }
-    const evidence = keyEvidence(run.record);
-    if (evidence.length) {
-      out(`     ${bold('Key evidence')}`);
-      for (const l of capped(evidence)) out(`       ${l}`);
-    }
-    const gaps = sec.get('Missing, stale or not usable') ?? [];
-    out(`     ${bold(`Missing, stale or not usable (${gaps.length})`)}`);
-    for (const l of capped(gaps)) out(`       · ${l}`);
+    const detail = String(card['detail'] ?? '');
+    for (const l of detailLines(detail)) out(`     ${l}`);
+    out(dim(`     (detail: ${detail.length} characters, ${detail.split('\n').filter((l) => l.trim()).length} lines)`));
     const suggestions = (card['suggestions'] as Array<{ label?: string; isRecommended?: boolean }> | undefined) ?? [];
     out(`     ${bold('Suggestions')} ${suggestions.length ? suggestions.map((s) => `[${s.label ?? ''}${s.isRecommended ? ' (recommended)' : ''}]`).join(' ') : dim('none')}`);
   }
@@ -179,10 +135,12 @@ async function main(): Promise<number> {
     const cfg = loadConfig({
       PORT: String(port), HOST: '127.0.0.1', TIDEMARK_PUBLIC_URL: publicUrl, TIDEMARK_TRIAL_MODE: 'true',
       TIDEMARK_SQLITE_PATH: join(dir, 'audit.sqlite'), TIDEMARK_AUDIT_TOKEN: auditToken, TIDEMARK_LOG_LEVEL: 'silent',
+      // The cards show local clock times in the site's zone: the demo takes TIDEMARK_TIME_ZONE from the environment.
+      ...(process.env['TIDEMARK_TIME_ZONE'] ? { TIDEMARK_TIME_ZONE: process.env['TIDEMARK_TIME_ZONE'] } : {}),
     });
     svc = await buildService(cfg, { log: createLogger('silent') });
     app = svc.app;
-    out(`  Tidemark         ${publicUrl}/cds-services  ${dim(`(trial mode, audit ${svc.store.kind} in ${dir})`)}`);
+    out(`  Tidemark         ${publicUrl}/cds-services  ${dim(`(trial mode, audit ${svc.store.kind} in ${dir}; card times in ${cfg.TIDEMARK_TIME_ZONE})`)}`);
 
     const now = new Date();
     const built = new Map<string, BuiltScenario>();

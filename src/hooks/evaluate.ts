@@ -26,6 +26,8 @@ export interface EvaluateDeps {
   publicUrl: string;
   now: () => Date;
   makeFetcher?: typeof fhirFetcher;
+  /** The site's IANA time zone for the times on the cards (TIDEMARK_TIME_ZONE); UTC when not given. */
+  timeZone?: string;
   /** The signed link to an advice's reasoning page, put on its cards; none when links are off. */
   adviceLink?: (adviceId: string) => { label: string; url: string } | undefined;
   /** The site's ConceptMaps and unit hints (src/fhir/site-map.ts); none by default. */
@@ -124,7 +126,7 @@ async function adviseAndStore(service: ServiceDefinition, body: unknown, deps: E
   for (const e of advice.ruleErrors) deps.log.error({ hookInstance: req.hookInstance, ruleId: e.ruleId }, 'a rule failed; its findings are left out');
   const purposes = Object.fromEntries(Object.entries(service.prefetch).map(([k, q]) => [k, q.purpose]));
   const models = composeCards({
-    hook, advice, snapshot, gathering: gathered.outcomes, purposes, catalogue: deps.catalogue,
+    hook, advice, snapshot, gathering: gathered.outcomes, purposes, catalogue: deps.catalogue, ...(deps.timeZone ? { timeZone: deps.timeZone } : {}),
     context: { patientId: ctx.patientId, userId: ctx.userId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}) },
   });
   const link = deps.adviceLink?.(adviceId);

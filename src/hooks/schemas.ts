@@ -2,6 +2,7 @@
  * CDS Hooks 2.0 wire contracts, one zod schema each. Types come from z.infer.
  * Source: CDS Hooks 2.0 (STU2), https://cds-hooks.hl7.org/2.0/.
  */
+import type { FhirResource } from 'fhir/r4.js';
 import { z } from 'zod';
 import { httpsOrLoopbackUrl } from '../auth/issuer-config.js';
 
@@ -130,17 +131,20 @@ export type HookContext = PatientViewContext | OrderSelectContext | OrderSignCon
 export const codingSchema = z.object({ code: text, system: text, display: text.optional() });
 export const overrideReasonSchema = codingSchema.required({ display: true });
 
-export const actionSchema = z
-  .object({
-    type: z.enum(['create', 'update', 'delete']),
-    description: text,
-    resource: fhirResourceSchema.optional(),
-    resourceId: referenceString.optional(),
-  })
-  .refine((a) => a.type !== 'delete' || (a.resourceId && !a.resource), {
-    message: 'a delete action has resourceId and no resource',
-  })
-  .refine((a) => a.type === 'delete' || a.resource, { message: 'create and update actions carry the whole resource' });
+/** A FHIR resource in an action: resourceType and, when it has one, a FHIR id (typed as the R4 resource union). */
+const actionResource = z.custom<FhirResource>((v) => fhirResourceSchema.safeParse(v).success, {
+  message: 'must be a FHIR resource (resourceType, and a FHIR id when it has one)',
+});
+
+/**
+ * CDS Hooks 2.0 Action, one shape per `type`: create and update carry the whole resource (an update's has its id);
+ * a delete names `resourceId` (Type/id) and carries no resource (CDS Hooks 2.0; cds-hooks/docs#400).
+ */
+export const actionSchema = z.discriminatedUnion('type', [
+  z.object({ type: z.literal('create'), description: text, resource: actionResource }),
+  z.object({ type: z.literal('update'), description: text, resource: actionResource }),
+  z.object({ type: z.literal('delete'), description: text, resourceId: referenceString, resource: z.undefined({ error: 'a delete action has resourceId and no resource' }).optional() }),
+]);
 
 export const suggestionSchema = z.object({
   label: text,

@@ -31,6 +31,8 @@ export interface Measurement {
   /** Minutes between effective and `now`. */
   ageMinutes: number;
   ref: FhirRef;
+  /** Set when the record gave a date without a clock time: `effective` is the start of that day (UTC), assumed. */
+  timeAssumed?: 'date-only';
 }
 
 export interface CodedMeasurement {
@@ -122,7 +124,7 @@ export interface Exclusion {
 
 export interface PatientSnapshot {
   patient: { ref: FhirRef; sex: 'male' | 'female' | 'other' | 'unknown'; birthDate?: string; ageYears?: number };
-  encounter?: { ref: FhirRef; start?: string; status?: string };
+  encounter?: { ref: FhirRef; start?: string; status?: string; /** The period start was a date alone, taken as the start of that day (UTC). */ timeAssumed?: 'date-only' };
   /** Instant the snapshot was built for (the injected clock). */
   now: string;
   /** All usable numeric measurements, newest first within each kind. */

@@ -15,6 +15,7 @@ import { nonUtcTimes, startEmbeddedFhir, type EmbeddedFhir } from '../../src/dev
 import { resolvePrefetchTemplate } from '../../src/hooks/prefetch-tokens.js';
 import { cardSchema } from '../../src/hooks/schemas.js';
 import { checkCdsResponse } from '../helpers/cds-conformance.js';
+import { loadCatalogue } from '../../src/cards/catalogue.js';
 import { PREFETCH } from '../../src/hooks/services.js';
 import { validateFhir } from '../../src/fhir/validator.js';
 import { get, startService, type Running } from '../helpers/server.js';
@@ -224,6 +225,59 @@ describe.each(ROUTES.map((r) => [r] as const))('Tidemark via %s', (route) => {
   it.each(SCENARIOS.map((s) => [s.id, s] as const))('%s: the direction a careful intensivist would give', (_id, s) => {
     const run = runOf(s, route);
     expect(mismatches(s.expect, observedVerdicts(run.record, run.body.cards ?? []))).toEqual([]);
+  });
+});
+
+// ---------------------------------------------------------------- the pop-up (issue 16 §1)
+
+/** Every code key of the catalogue with a hyphen or a slash (a word never is one): none may reach a prescriber. */
+function catalogueCodes(): string[] {
+  const c = loadCatalogue().catalogue;
+  const keys = new Set<string>();
+  const walk = (o: unknown) => {
+    if (!o || typeof o !== 'object' || Array.isArray(o)) return;
+    for (const [k, v] of Object.entries(o)) {
+      if (/[-/]/.test(k)) keys.add(k);
+      walk(v);
+    }
+  };
+  walk(c);
+  for (const k of c.overrideReasons.map((r) => r.code)) keys.add(k);
+  return [...keys];
+}
+const CODES = catalogueCodes();
+/** Markdown escapes undone, so that an escaped id or code is still found. */
+const plain = (d: string) => d.replace(/\\(.)/g, '$1');
+const measured: Array<{ id: string; chars: number; lines: number }> = [];
+
+describe.each(ROUTES.map((r) => [r] as const))('the pop-up via %s', (route) => {
+  it('the check has codes to look for (so it can fail)', () => {
+    expect(CODES).toEqual(expect.arrayContaining(['controlled-no-effort', 'likely/adequate', 'smaller-aliquot', 'passive-leg-raise', 'not-known']));
+  });
+
+  it.each(SCENARIOS.map((s) => [s.id, s] as const))('%s: within 900 characters and 12 lines, no FHIR id, no resource id, no raw code', (_id, s) => {
+    const run = runOf(s, route);
+    const ids = chart(s).resources.map((r) => r.id ?? '').filter((id) => id.length >= 4);
+    for (const card of (run.body.cards ?? []) as Array<{ detail?: string; summary: string; suggestions?: Array<{ label: string }> }>) {
+      const d = card.detail ?? '';
+      const lines = d.split('\n').filter((l) => l.trim()).length;
+      if (route === 'prefetch') measured.push({ id: s.id, chars: d.length, lines });
+      expect(d.length).toBeLessThanOrEqual(900);
+      expect(lines).toBeLessThanOrEqual(12);
+      const text = plain(d).replace(/\]\([^)]*\)/g, ']'); // our own link's URL carries the advice id, not a FHIR id
+      expect(text).not.toMatch(/\b(Observation|Patient|Encounter|Condition|MedicationAdministration|MedicationRequest|ServiceRequest)\//);
+      for (const id of ids) expect(text, id).not.toContain(id);
+      for (const code of CODES) expect(text, code).not.toMatch(new RegExp(`(^|[^\\w-])${code.replace(/[.*+?^${}()|[\]\\/]/g, '\\$&')}($|[^\\w-])`));
+      for (const t of [card.summary, ...(card.suggestions ?? []).map((x) => x.label)]) for (const code of CODES) expect(t, code).not.toContain(code);
+      expect(d).toMatch(/Advisory only/);
+    }
+  });
+
+  it('the sizes measured over all scenarios stay within the limits', () => {
+    if (route !== 'prefetch') return;
+    expect(measured.length).toBeGreaterThanOrEqual(SCENARIOS.length - 1);
+    expect(Math.max(...measured.map((m) => m.chars))).toBeLessThanOrEqual(900);
+    expect(Math.max(...measured.map((m) => m.lines))).toBeLessThanOrEqual(12);
   });
 });
 

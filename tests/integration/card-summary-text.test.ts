@@ -34,7 +34,7 @@ describe('the summary of the advice-not-available card', () => {
     expect(card.summary).toContain('click');
     // … with no raw link, no raw HTML and no bidi control.
     expect(card.summary).not.toContain('[click](');
-    expect(card.summary).toContain('\\[click\\](javascript:alert(1))');
+    expect(card.summary).toContain('\\[click\\](javascript\\:alert(1))');
     expect(card.summary).not.toMatch(/[<>]/);
     expect(card.summary).not.toContain('\u202E');
     expect(card.summary.length).toBeLessThan(140);

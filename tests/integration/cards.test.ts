@@ -19,11 +19,24 @@ const cases = Object.keys(ADVICE_CASES) as AdviceCase[];
 const expected: Record<AdviceCase, { action: string; indicator: string; firstLabel: RegExp; types: string[] }> = {
   // No flow monitor on the chart: a mini fluid challenge with VTI by echo (docs/clinical-logic), following the next-test kind.
   'test-first': { action: 'test-first', indicator: 'info', firstLabel: /mini fluid challenge/i, types: ['create', 'create', 'delete'] },
-  proceed: { action: 'proceed-and-reassess', indicator: 'info', firstLabel: /reassessment/i, types: ['create'] },
+  proceed: { action: 'proceed-and-reassess', indicator: 'info', firstLabel: /^Reassess 15 min after the 500 mL bolus$/, types: ['create'] },
   'smaller-aliquot': { action: 'smaller-aliquot', indicator: 'warning', firstLabel: /^Give 250 mL over 15 min instead of 500 mL/, types: ['update', 'create'] },
   critical: { action: 'smaller-aliquot', indicator: 'critical', firstLabel: /Give 250 mL/, types: ['update', 'create', 'delete'] },
   question: { action: 'question-bolus', indicator: 'warning', firstLabel: /ultrasound/i, types: ['create', 'delete'] },
 };
+
+/** The card's reasoning page (the service listens on port 0, so the link's origin is not its address: keep path and query). */
+async function page(card: { links?: Array<{ url: string }> }, base = s.url): Promise<string> {
+  const link = card.links?.find((l) => l.url.includes('/advice/'));
+  expect(link, 'the card links to its reasoning page').toBeDefined();
+  const u = new URL(link?.url ?? '');
+  const r = await fetch(`${base}${u.pathname}${u.search}`);
+  expect(r.status).toBe(200);
+  return (await r.text()).replace(/&#39;/g, "'").replace(/&amp;/g, '&').replace(/&quot;/g, '"');
+}
+
+/** The non-empty lines of a card detail. */
+const lines = (d: string) => d.split('\n').filter((l) => l.trim());
 
 async function call(c: AdviceCase) {
   const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES[c]) }));
@@ -85,24 +98,39 @@ describe('each advice cell gives a conformant card with real FHIR suggestions', 
   });
 });
 
-describe('the detail reads the reasoning', () => {
-  it('names each marker used (with value, time and reference) and each one missing', async () => {
+describe('the pop-up reads in seconds; its reasoning page holds the rest', () => {
+  it('the pop-up: one line per question, the deciding findings with local time and age, one caution with the link', async () => {
+    const { body } = await call('critical');
+    const card = body.cards[0];
+    const detail: string = card.detail;
+    expect(detail.length).toBeLessThanOrEqual(900);
+    expect(lines(detail).length).toBeLessThanOrEqual(12);
+    expect(detail).toMatch(/^- \*\*Responsiveness:\*\* likely \(high confidence: a dynamic test result\)$/m);
+    expect(detail).toMatch(/^- \*\*Tolerance:\*\* poor \(\d+ of \d+ markers assessed\)$/m);
+    expect(detail).toMatch(/^- \*\*Perfusion:\*\* signs of hypoperfusion$/m);
+    // PLR 4.0 → 4.6 L/min is +15 % (Monnet 2016 reads the relative rise), 12 min before NOW (hook-fixtures), in UTC (no zone configured).
+    expect(detail).toContain('* Passive leg raise (cardiac output) +15 % (4 → 4.6 L/min), 13:48, 12 min ago');
+    expect(detail).toContain('* EVLWI 14 mL/kg, 13:00, 1 h ago');
+    expect(detail).toMatch(/\*Advisory only: local protocol and your own judgement come first\.\* \[Full reasoning\]\(http/);
+    expect(detail).not.toMatch(/Observation\/|Not recorded|<[a-z]/i);
+  });
+
+  it('the page names each marker used (with value, time and reference), each one missing, the order and the cautions', async () => {
     const { body, rec } = await call('critical');
-    const detail: string = body.cards[0].detail;
-    expect(detail).toContain('| Passive leg raise (cardiac output) | 4 → 4.6 L/min |');
-    expect(detail).toContain('Observation/plr-pos');
-    expect(detail).toContain('| EVLWI | 14 mL/kg |');
-    expect(detail).toMatch(/Not recorded: .*PPV/);
-    expect(detail).toMatch(/Not recorded: .*VExUS/);
-    expect(detail).toContain('**The ordered bolus**');
-    expect(detail).toMatch(/500 mL/);
-    expect(detail).toMatch(/stays in the vessels/);
-    expect(detail).toContain('Advisory only');
-    expect(detail).toContain('local protocol prevails');
-    expect(detail).not.toMatch(/<[a-z]/i);
-    // Every assessed finding with evidence is in the table; every not-assessed one is named in the gaps.
+    const html = await page(body.cards[0]);
+    expect(html).toContain('Passive leg raise (cardiac output)');
+    expect(html).toContain('4 → 4.6');
+    expect(html).toContain('Observation/plr-pos');
+    expect(html).toContain('EVLWI');
+    expect(html).toMatch(/PPV: not assessed \(none recorded\)/);
+    expect(html).toMatch(/VExUS/);
+    expect(html).toMatch(/500 mL/);
+    expect(html).toMatch(/stays in the vessels/);
+    expect(html).toContain('Advisory only');
+    expect(html).toContain('local protocol prevails');
+    // Every assessed finding with evidence is on the page with its reference.
     for (const f of rec.advice.findings.filter((x: any) => x.status === 'assessed' && x.topic !== 'order')) {
-      for (const e of f.evidence) expect(detail).toContain(e.ref);
+      for (const e of f.evidence) expect(html).toContain(e.ref);
     }
   });
 
@@ -114,6 +142,7 @@ describe('the detail reads the reasoning', () => {
     const detail: string = r.body.cards[0].detail;
     expect(detail).not.toContain('<img');
     expect(detail).not.toContain('**bold**');
+    for (const sug of r.body.cards[0].suggestions) expect(sug.label).not.toMatch(/<img|\*\*bold|\]\(http/);
     expect(checkCdsResponse(r.body)).toEqual([]);
   });
 });
@@ -147,8 +176,10 @@ describe('patient-view overview', () => {
     const card = view.body.cards[0];
     expect(checkCdsResponse(view.body)).toEqual([]);
     expect(card.summary).toMatch(/^Fluid overview: tolerance poor, overload 11\.4 %; likely fluid responsive$/);
-    expect(card.detail).toMatch(/Fluid overload 11\.4 %/);
-    expect(card.detail).toMatch(/Latest responsiveness evidence: .*Passive leg rais.* \(25 min ago\)/);
+    // The deciding findings: the leg raise with its time and age, the overload behind the poor tolerance.
+    expect(card.detail).toContain('* Passive leg raise (cardiac output) +15 % (4 → 4.6 L/min), 13:35, 25 min ago');
+    expect(card.detail).toMatch(/^\* Fluid overload 11\.4 %/m);
+    expect(card.detail).toMatch(/^- \*\*Tolerance:\*\* poor/m);
   });
 });
 
@@ -161,8 +192,11 @@ describe('stale data only', () => {
       const card = r.body.cards[0];
       expect(checkCdsResponse(r.body)).toEqual([]);
       expect(card.summary).toBe('No current data on the chart: re-examine and re-measure before deciding on this bolus');
-      expect(card.detail).toMatch(/- MAP stale \(age 13 h 10 min, window 90 min\)/);
-      expect(card.detail).not.toMatch(/MAP: MAP stale/);
+      // The stale markers, each with its age, are on the reasoning page; the pop-up says nothing could be judged.
+      expect(card.detail).toMatch(/^- \*\*Responsiveness:\*\* unclear$/m);
+      const html = await page(card, late.url);
+      expect(html).toMatch(/MAP stale \(age 13 h 10 min, window 90 min\)/);
+      expect(html).not.toMatch(/MAP: MAP stale/);
     } finally {
       await late.stop();
     }

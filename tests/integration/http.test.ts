@@ -45,8 +45,11 @@ describe('hook calls', () => {
     expect(card.summary.length).toBeLessThan(140);
     expect(card.uuid).toBeTruthy();
     expect(card.source.label).toBeTruthy();
-    expect(card.detail).toContain('Observation/map-1');
     expect(card.detail).toContain('Advisory only');
+    // The FHIR references are on the reasoning page the card links to, not in the pop-up.
+    expect(card.detail).not.toContain('Observation/map-1');
+    const link = new URL(card.links?.find((l) => l.url.includes('/advice/'))?.url ?? '');
+    expect(await (await fetch(`${s.url}${link.pathname}${link.search}`)).text()).toContain('Observation/map-1');
     const after = rows();
     expect(after).toHaveLength(before + 1);
     const last = after[after.length - 1]!;
@@ -145,6 +148,7 @@ describe('errors are OperationOutcomes', () => {
     expect(card.indicator).toBe('info');
     expect(card.summary).toMatch(/^Fluid advice not available: the FHIR server could not be reached/);
     expect(card.detail).toContain('vital signs');
+    expect(card.detail).toMatch(/^Could not be assessed: the FHIR server could not be reached\.$/m);
   });
 });
 

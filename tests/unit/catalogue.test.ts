@@ -6,7 +6,8 @@ import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { ALTERNATIVES, HEADLINE_KEYS } from '../../src/assess/advice/types.js';
+import { ADVICE_ACTIONS, ALTERNATIVES, HEADLINE_KEYS } from '../../src/assess/advice/types.js';
+import { CODED_ANSWERS } from '../../src/fhir/codes.js';
 import { NEXT_TESTS } from '../../src/assess/types.js';
 import { DEFAULT_CATALOGUE_PATH, loadCatalogue, SUGGESTION_KINDS } from '../../src/cards/catalogue.js';
 
@@ -37,6 +38,19 @@ describe('card catalogue against the closed sets', () => {
     expect(loadEdited((c) => { delete c['alternatives']!['perfusion-check']; })).toThrow(/alternatives\.perfusion-check/);
     expect(loadEdited((c) => { delete c['nextTests']!['tidal-volume-challenge']; })).toThrow(/nextTests\.tidal-volume-challenge/);
     expect(loadEdited((c) => { delete c['suggestions']!['tidal-volume-challenge']; })).toThrow(/suggestions\.tidal-volume-challenge/);
+  });
+  it('the pop-up words are checked too: test names and results, action words, answer words, the pop-up lines (issue 16)', () => {
+    const { catalogue } = loadCatalogue();
+    for (const k of NEXT_TESTS) expect(catalogue.testNames[k] && catalogue.testResults[k].positive && catalogue.testResults[k].negative, k).toBeTruthy();
+    for (const k of ADVICE_ACTIONS) expect(catalogue.actionWords[k], k).toBeTruthy();
+    for (const [kind, codes] of Object.entries(CODED_ANSWERS)) for (const a of codes) expect((catalogue.answers as Record<string, Record<string, string>>)[kind]?.[a], `${kind}.${a}`).toBeTruthy();
+    expect(loadEdited((c) => { delete c['testNames']!['passive-leg-raise']; })).toThrow(/testNames\.passive-leg-raise/);
+    expect(loadEdited((c) => { delete (c['testResults']!['end-expiratory-occlusion'] as Record<string, unknown>)['negative']; })).toThrow(/testResults\.end-expiratory-occlusion\.negative/);
+    expect(loadEdited((c) => { delete c['actionWords']!['question-need']; })).toThrow(/actionWords\.question-need/);
+    expect(loadEdited((c) => { delete (c['answers']!['ventilationMode'] as Record<string, unknown>)['controlled-no-effort']; })).toThrow(/answers\.ventilationMode\.controlled-no-effort/);
+    expect(loadEdited((c) => { c['answers']!['heartRhythm'] = { ...(c['answers']!['heartRhythm'] as object), 'atrial-flutter': 'x' }; })).toThrow(/answers\.heartRhythm/);
+    expect(loadEdited((c) => { delete c['popup']!['caution']; })).toThrow(/popup\.caution/);
+    expect(loadEdited((c) => { c['popup']!['caution'] = 'x'.repeat(161); })).toThrow(/popup\.caution/);
   });
   it('every headline is short enough for a card summary (< 140 characters)', () => {
     for (const h of Object.values(loadCatalogue().catalogue.headlines)) expect(h.length).toBeLessThan(140);

@@ -4,7 +4,7 @@
  * read but could not use. `buildSnapshot` (../normalize.ts) only dispatches, merges and sorts.
  */
 import type { SiteMap } from '../../fhir/site-map.js';
-import { isoInstant } from '../time.js';
+import { fhirDateTime } from '../time.js';
 import type {
   CodedMeasurement, ConditionEntry, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
 } from '../types.js';
@@ -47,15 +47,23 @@ export function exclusion(ref: string, reason: Exclusion['reason'], detail: stri
 /** A Read of one exclusion. */
 export const left = (ref: string, reason: Exclusion['reason'], detail: string, kind?: string): Read => ({ excluded: [exclusion(ref, reason, detail, kind)] });
 
-/** A usable time (UTC ISO instant, its milliseconds and its age in whole minutes at `now`), or why it is not usable. */
-export type TimeRead = { ok: true; iso: string; ms: number; ageMinutes: number } | { ok: false; excluded: Exclusion };
+/**
+ * A usable time (UTC ISO instant, its milliseconds, its age in whole minutes at `now`, and whether only its date was
+ * given), or why it is not usable.
+ */
+export type TimeRead = { ok: true; iso: string; ms: number; ageMinutes: number; dateOnly: boolean } | { ok: false; excluded: Exclusion };
 
-export function readTime(ctx: ReadContext, ref: string, raw: string | undefined, kind?: string): TimeRead {
+/**
+ * A FHIR R4 dateTime read strictly (src/snapshot/time.ts): a clock time needs its offset. A date alone is accepted only
+ * when `dateOk` (where a day's precision is enough), taken as the start of that day (UTC).
+ */
+export function readTime(ctx: ReadContext, ref: string, raw: string | undefined, kind?: string, dateOk = false): TimeRead {
   if (!raw) return { ok: false, excluded: exclusion(ref, 'no-time', 'no effective time', kind) };
-  const t = isoInstant(raw);
-  if (!t) return { ok: false, excluded: exclusion(ref, 'no-time', `"${raw}" is not a date-time`, kind) };
+  const t = fhirDateTime(raw);
+  if (!t) return { ok: false, excluded: exclusion(ref, 'no-time', `"${raw}" is not a FHIR date-time (a date, or a date and time with seconds and an offset Z or ±hh:mm)`, kind) };
+  if (t.precision !== 'second' && !(dateOk && t.precision === 'day')) return { ok: false, excluded: exclusion(ref, 'no-time', `"${raw}" has no clock time and offset`, kind) };
   if (t.ms > ctx.nowMs + FUTURE_SKEW_MS) return { ok: false, excluded: exclusion(ref, 'future-time', `${raw} is in the future`, kind) };
-  return { ok: true, iso: t.iso, ms: t.ms, ageMinutes: Math.round((ctx.nowMs - t.ms) / 60_000) };
+  return { ok: true, iso: t.iso, ms: t.ms, ageMinutes: Math.round((ctx.nowMs - t.ms) / 60_000), dateOnly: t.precision === 'day' };
 }
 
 /** Volumes to 0.1 mL: unit conversion leaves binary fractions (249.99999…) that mean nothing clinically. */

@@ -17,6 +17,12 @@ import type { DynamicTestResult, Exclusion, Measurement } from '../types.js';
 import { exclusion, left, NOTHING, readTime, round2, type Read, type ReadContext } from './context.js';
 
 const USABLE_STATUS: ReadonlySet<string> = new Set(['final', 'amended', 'corrected', 'preliminary']);
+/**
+ * Numeric kinds whose time may be a date alone (taken as the start of that day, UTC, and marked timeAssumed): a
+ * weight or height is read for per-kg doses and the overload against admission weight, where a day is precise
+ * enough (our own decision, docs/integration.md). Every other kind needs a clock time with its offset.
+ */
+const DATE_ONLY_KINDS: ReadonlySet<string> = new Set(['bodyWeight', 'bodyHeight']);
 
 type Codings = ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>;
 
@@ -62,7 +68,7 @@ function numericOf(codings: Codings, siteMap: SiteMap): { kind: NumericKind | un
   return { kind: own ?? site?.kind, site };
 }
 
-interface Timed { iso: string; ageMinutes: number; periodStart: string | undefined }
+interface Timed { iso: string; ageMinutes: number; periodStart: string | undefined; dateOnly: boolean }
 
 export function readObservation(o: Observation, ref: string, ctx: ReadContext): Read {
   const codings = o.code?.coding ?? [];
@@ -77,7 +83,8 @@ export function readObservation(o: Observation, ref: string, ctx: ReadContext): 
   if (o.status === 'entered-in-error') return left(ref, 'entered-in-error', 'status is entered-in-error', kindName);
   if (o.status === 'cancelled') return left(ref, 'cancelled', 'status is cancelled', kindName);
   if (!USABLE_STATUS.has(o.status)) return left(ref, 'no-value', `status ${String(o.status)} has no usable result`, kindName);
-  const time = readTime(ctx, ref, o.effectiveDateTime ?? o.effectiveInstant ?? o.effectivePeriod?.end ?? o.effectivePeriod?.start, kindName);
+  const dateOk = DATE_ONLY_KINDS.has(kindName) && !componentKinds.some((x) => x.kind);
+  const time = readTime(ctx, ref, o.effectiveDateTime ?? o.effectiveInstant ?? o.effectivePeriod?.end ?? o.effectivePeriod?.start, kindName, dateOk);
   if (!time.ok) return { excluded: [time.excluded] };
   let periodStart: string | undefined;
   if (o.effectivePeriod?.start && o.effectivePeriod.end) {
@@ -85,7 +92,7 @@ export function readObservation(o: Observation, ref: string, ctx: ReadContext): 
     if (!start) return left(ref, 'malformed', 'could not be read: the period start is not a date-time');
     periodStart = start.iso;
   }
-  const at: Timed = { iso: time.iso, ageMinutes: time.ageMinutes, periodStart };
+  const at: Timed = { iso: time.iso, ageMinutes: time.ageMinutes, periodStart, dateOnly: time.dateOnly };
 
   if (dynamicKind) return readDynamic(o, ref, dynamicKind, at);
   if (codedKind) {
@@ -139,6 +146,7 @@ function quantity(
       original: { value: q.value, unit: unit ?? '', code: code?.code ?? '', system: code?.system ?? '' },
       ...(site ? { readAs: { ...site.target, equivalence: site.equivalence, map: site.map } } : {}), ...(hinted ? { unitReadAs: hinted } : {}),
       effective: at.iso, ...(at.periodStart ? { periodStart: at.periodStart } : {}), ageMinutes: at.ageMinutes, ref,
+      ...(at.dateOnly ? { timeAssumed: 'date-only' as const } : {}),
     },
   };
 }
