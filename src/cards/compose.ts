@@ -7,7 +7,7 @@
 import { sentenceStart } from '../assess/common/text.js';
 import type { NextTestKind } from '../assess/types.js';
 import type { Advice, Finding } from '../assess/types.js';
-import type { GatherOutcome } from '../fhir/gather-types.js';
+import type { GatherOutcome } from '../hooks/gather-types.js';
 import type { HookName, Suggestion } from '../hooks/schemas.js';
 import type { DraftOrder, PatientSnapshot } from '../snapshot/types.js';
 import type { Catalogue } from './catalogue.js';

@@ -14,8 +14,9 @@ import type { AuditStore, AdviceRecord } from '../audit/types.js';
 import type { Catalogue } from '../cards/catalogue.js';
 import { composeCards } from '../cards/compose.js';
 import { renderCard } from '../cards/render.js';
-import { gather, fhirFetcher } from '../fhir/gather.js';
-import type { GatherOptions, GatherOutcome, Gathered } from '../fhir/gather-types.js';
+import type { fhirFetcher } from '../fhir/fetcher.js';
+import { gather } from './gather.js';
+import type { GatherOptions, GatherOutcome, Gathered } from './gather-types.js';
 import type { SiteMap } from '../fhir/site-map.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
 import { buildSnapshot } from '../snapshot/normalize.js';
@@ -128,7 +129,7 @@ export function parseCall(service: ServiceDefinition, body: unknown, deps: Pick<
   return { req, hook, ctx: ctxParsed.data } as ParsedCall;
 }
 
-/** Stage 2: the service's prefetch keys from the call's prefetch or its FHIR server (src/fhir/gather.ts). */
+/** Stage 2: the service's prefetch keys from the call's prefetch or its FHIR server (src/hooks/gather.ts). */
 export async function gatherData(call: ParsedCall, service: ServiceDefinition, deps: Pick<EvaluateDeps, 'gatherOptions' | 'makeFetcher' | 'metrics'>): Promise<Gathered> {
   const gathered = await gather(call.req, service, deps.gatherOptions, deps.makeFetcher);
   deps.metrics?.observeGather(gathered.outcomes);

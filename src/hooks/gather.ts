@@ -11,13 +11,12 @@
  * - searchset Bundle: use it, following link[next] (bounded) when it is paged.
  */
 import type { FhirResource, Bundle, OperationOutcome } from 'fhir/r4.js';
-import type { HookRequest } from '../hooks/schemas.js';
-import { resolvePrefetchTemplate } from '../hooks/prefetch-tokens.js';
-import type { ServiceDefinition } from '../hooks/services.js';
-import { DEFAULT_BYTE_CAPS, FhirFetchError, fhirFetcher, resolveUnderBase, type ByteCaps, type Fetcher } from './fetcher.js';
+import type { HookRequest } from './schemas.js';
+import { resolvePrefetchTemplate } from './prefetch-tokens.js';
+import type { ServiceDefinition } from './services.js';
+import { DEFAULT_BYTE_CAPS, FhirFetchError, fhirFetcher, resolveUnderBase, type ByteCaps, type Fetcher } from '../fhir/fetcher.js';
 import type { GatherOptions, GatherOutcome, GatherStatus, Gathered } from './gather-types.js';
 
-export { fhirFetcher, type Fetcher } from './fetcher.js';
 
 /** Settles when `p` does or when the budget runs out, whichever is first, even if the fetcher ignores the signal. */
 function withinBudget<T>(p: Promise<T>, signal: AbortSignal): Promise<T> {

@@ -1,4 +1,4 @@
-/** What gathering (src/fhir/gather.ts, the I/O) is asked and answers: plain data, for the rooms that read it. */
+/** What gathering (src/hooks/gather.ts, the I/O) is asked and answers: plain data, for the rooms that read it. */
 import type { FhirResource } from 'fhir/r4.js';
 
 /** `too-large`: an answer, or all answers of the call, passed a byte cap; `redirect`: a 3xx, not followed. */
