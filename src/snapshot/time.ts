@@ -23,8 +23,8 @@ const isoMemo = new Map<string, string>();
 /**
  * A FHIR dateTime or instant as the snapshot stores it: milliseconds and the UTC ISO string (toISOString), or
  * undefined when it is not a date-time. UTC inputs are remembered as parseTimeMs remembers them: the same
- * observations arrive on every call for a patient, and parsing and formatting their times was a fifth of the
- * snapshot's cost.
+ * observations arrive on every call for a patient, and parsing and formatting their times is costly
+ * (docs/benchmarks.md).
  */
 export function isoInstant(raw: string): { ms: number; iso: string } | undefined {
   const ms = parseTimeMs(raw);
