@@ -5,7 +5,7 @@
  * oedema and a B-pattern in 5 of 8 lung regions, on both sides: 2 of 4 on the left, 3 of 4 on the right, charted
  * per side. Asked on order-sign.
  *
- * Assessment v2 (clinical-references docs/clinical-logic) first lowered this card to a warning, because the B-pattern was charted
+ * Assessment v2 (docs/clinical-logic) first lowered this card to a warning, because the B-pattern was charted
  * without its side and could not show diffuse lung water. Charted per side, ≥ 2 positive regions on each side is
  * diffuse interstitial syndrome (Volpicelli G et al., Intensive Care Med 2012;38:577): a severe lung finding and a
  * sign that volume is likely to harm. With +8.6 L (12.6 % of the admission weight, ≥ 10 % in an adult: Bouchard

@@ -4,7 +4,7 @@
  * with lactate and capillary refill improving; since then MAP is drifting down again. A new IVC look shows a
  * small IVC collapsing by 45 % with breathing.
  *
- * Expectation changed with assessment v2 (clinical-references docs/clinical-logic): an hourly pressure change after a bolus and an
+ * Expectation changed with assessment v2 (docs/clinical-logic): an hourly pressure change after a bolus and an
  * IVC in spontaneous breathing are static markers; two agreeing give "likely" with LOW confidence, and the advice
  * is to confirm with a test before more volume rather than to give.
  */

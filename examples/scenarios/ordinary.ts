@@ -1,5 +1,5 @@
 /**
- * Charting the ordinary way (clinical-references docs/clinical-logic): nurse-validated vitals hourly, each validated about 20 min
+ * Charting the ordinary way (docs/clinical-logic): nurse-validated vitals hourly, each validated about 20 min
  * after the hour; CVP hourly when there is a line; ventilator settings with the vitals; labs every 4–12 h; urine
  * hourly; intake and output per 12-h shift. No cardiac-output monitor unless a scenario adds one.
  */

@@ -5,7 +5,7 @@
 import type { FhirResource, Resource } from 'fhir/r4.js';
 
 export type ExpectedResponsiveness = 'likely' | 'unlikely' | 'indeterminate';
-/** 'not-known': too few tolerance markers could be assessed to call tolerance adequate (clinical-references docs/clinical-logic). */
+/** 'not-known': too few tolerance markers could be assessed to call tolerance adequate (docs/clinical-logic). */
 export type ExpectedTolerance = 'adequate' | 'limited' | 'poor' | 'not-known';
 /** 'no-card': Tidemark should stay silent (not a fluid order). */
 export type ExpectedIndicator = 'info' | 'warning' | 'critical' | 'no-card';

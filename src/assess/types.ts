@@ -3,18 +3,14 @@ import type { OrderRecommendation } from './advice/types.js';
 import type { Finding } from './common/finding.js';
 import type { RuleError } from './common/rule.js';
 import type { WhatIf } from './what-if/types.js';
+import type { Confidence, Need, NextTestKind, PhaseValue, Responsiveness, Tolerance } from './common/verdicts.js';
+
+export { NEXT_TESTS, type Confidence, type Need, type NextTestKind, type PhaseValue, type Responsiveness, type Tolerance } from './common/verdicts.js';
 
 export type {
   Direction, Evidence, Figures, Finding, FindingTopic, Freshness, GapKind, Marker, NeedSign, OrderFinding, PerfusionFinding,
   Phase, PhaseFinding, ResponsivenessFinding, SharedNumber, Tier, ToleranceDomain, ToleranceFinding, ToleranceLimit,
 } from './common/finding.js';
-
-/** How much the evidence that decided a verdict can bear (docs/clinical-logic/index.md, evidence tiers). */
-export type Confidence = 'high' | 'moderate' | 'low';
-
-/** The test that would settle or confirm responsiveness (closed set; wording in cards/catalogue.json). */
-export const NEXT_TESTS = ['passive-leg-raise', 'mini-fluid-challenge', 'tidal-volume-challenge', 'end-expiratory-occlusion'] as const;
-export type NextTestKind = (typeof NEXT_TESTS)[number];
 
 export interface Verdict<V extends string> {
   value: V;
@@ -31,12 +27,6 @@ export interface Verdict<V extends string> {
   /** Tolerance: markers assessed and markers in all. */
   coverage?: { assessed: number; total: number };
 }
-
-export type Responsiveness = 'likely' | 'unlikely' | 'indeterminate';
-export type Tolerance = 'adequate' | 'limited' | 'poor' | 'not-known';
-/** Is there anything to treat: a fresh sign of hypoperfusion (present), none among those assessed (absent), or too little data. */
-export type Need = 'present' | 'absent' | 'unknown';
-export type PhaseValue = 'early-resuscitation' | 'later';
 
 export interface Advice {
   rulesVersion: string;

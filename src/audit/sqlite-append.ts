@@ -10,9 +10,9 @@ import type { AdviceRecord } from './types.js';
 /** WAL journal and synchronous=FULL: a committed record survives a process kill or power loss. */
 export function openAuditDb(path: string): Database.Database {
   const db = new Database(path);
-  // 16 KB pages for a new database (an existing one keeps its page size): a record of about 50 kB spans 4 overflow
-  // pages instead of 13, and each commit writes fewer WAL frames; about a quarter less CPU per append than 4 KB
-  // pages when measured on the benchmark machine (docs/benchmarks.md). SQLite applies it only before the first table exists.
+  // 16 KB pages for a new database (an existing one keeps its page size): a record of about 50 kB spans fewer
+  // overflow pages and each commit writes fewer WAL frames (measured: docs/benchmarks.md). SQLite applies it only
+  // before the first table exists.
   db.pragma('page_size = 16384');
   db.pragma('journal_mode = WAL');
   db.pragma('synchronous = FULL');
@@ -46,8 +46,8 @@ function metaOf(r: AdviceRecord): RecordMeta {
 }
 
 /**
- * A record made ready to append, on the caller's thread: its columns and its text. One JSON.stringify (0.13–0.2 ms
- * for the benchmark's 53 kB record) costs this thread about what a structured clone of the record object would,
+ * A record made ready to append, on the caller's thread: its columns and its text. One JSON.stringify costs this
+ * thread about what a structured clone of the record object would (docs/benchmarks.md),
  * and spares the writer thread reading that clone back and serialising it again: it hashes and binds the text as
  * it is, and a string crosses to the writer in one copy.
  */

@@ -1,6 +1,6 @@
 /**
  * The SQLite audit store's writer thread: owns the connection that appends, so that a commit (its WAL write and
- * the fsync that synchronous=FULL asks for, 1.4–2 ms on the benchmark machine) does not hold up the event loop
+ * the fsync that synchronous=FULL asks for; times in docs/benchmarks.md) does not hold up the event loop
  * that answers CDS calls. A record is acknowledged only after its transaction has committed; records that
  * arrive while a commit is under way are committed together in the next one (group commit).
  *
@@ -41,10 +41,10 @@ let db: ReturnType<typeof openAuditDb>;
 let appendBatch: ReturnType<typeof createBatchAppender>;
 try {
   db = openAuditDb((workerData as { path: string }).path);
-  // Checkpoints (WAL → database file, about 13 ms for SQLite's default 1000 pages here) are run by this thread
+  // Checkpoints (WAL → database file; their time: docs/benchmarks.md) are run by this thread
   // after it has acknowledged a batch, not inside the commit of whichever record crosses the threshold; the
   // automatic one stays as a backstop far above it (about 40 MB of WAL, in pages of this file's size). Durability is
-  // the WAL's fsync at commit, as before.
+  // the WAL's fsync at commit.
   const pageSize = Number(db.pragma('page_size', { simple: true })) || 4096;
   db.pragma(`wal_autocheckpoint = ${Math.max(1000, Math.round((40 * 1024 * 1024) / pageSize))}`);
   appendBatch = createBatchAppender(db);

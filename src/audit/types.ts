@@ -6,7 +6,7 @@
  */
 import type { Advice, Finding } from '../assess/types.js';
 import type { ReplayCache } from '../auth/replay-cache.js';
-import type { GatherOutcome } from '../fhir/gather.js';
+import type { GatherOutcome } from '../hooks/gather-types.js';
 import type { Card } from '../hooks/schemas.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
 

@@ -11,7 +11,7 @@
 import type { Advice, Evidence, Finding, NextTestKind } from '../assess/types.js';
 import type { WhatIfOutcome } from '../assess/what-if/types.js';
 import { absoluteChange, relativeChangePercent } from '../physiology/dynamic-tests.js';
-import type { GatherOutcome } from '../fhir/gather.js';
+import type { GatherOutcome } from '../hooks/gather-types.js';
 import type { HookName, Suggestion } from '../hooks/schemas.js';
 import type { DraftOrder, PatientSnapshot } from '../snapshot/types.js';
 import type { Catalogue } from './catalogue.js';

@@ -6,9 +6,9 @@
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { canonicalJson } from '../audit/chain.js';
 import type { SiteMap } from '../fhir/site-map.js';
 import { VALUE_SETS } from '../fhir/value-sets.js';
+import { canonicalJson } from '../util/canonical-json.js';
 
 const pkg = JSON.parse(readFileSync(fileURLToPath(new URL('../../package.json', import.meta.url)), 'utf8')) as { version: string };
 export const PACKAGE_VERSION = pkg.version;

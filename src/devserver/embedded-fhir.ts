@@ -56,8 +56,8 @@ let indexed = false;
 /**
  * One SearchParameter per base type, its FHIRPath cut to the terms of that type. The shared R4 definitions
  * union the paths of every base (`AllergyIntolerance.patient | CarePlan.subject… | Observation.subject…`), and the
- * in-memory repository parses the whole expression again for every resource and every sort comparison: a search
- * over a hundred Observations took seconds. Cut per base it is the same search, about fifty times faster.
+ * in-memory repository parses the whole expression again for every resource and every sort comparison. Cut per
+ * base it is the same search at a fraction of the cost (docs/benchmarks.md).
  */
 export function searchParametersPerBase(bundle: Bundle): Bundle {
   const entry: NonNullable<Bundle['entry']> = [];

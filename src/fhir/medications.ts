@@ -4,9 +4,8 @@
  * Text patterns use generic names only.
  */
 import type { CodeableConcept } from 'fhir/r4.js';
-import type { FluidClass } from '../snapshot/types.js';
 import { RXNORM, SNOMED } from './codes.js';
-import { FLUID_SET } from './value-sets.js';
+import { FLUID_SET, type FluidClass } from './value-sets.js';
 
 /** RxNorm clinical drugs read by code (value-sets/fluids.json, each with its source); the rest by generic name. */
 const RXNORM_FLUIDS: ReadonlyMap<string, FluidClass> = new Map(

@@ -5,7 +5,6 @@
  * They are part of the rules version (src/config/rules-version.ts): changing one changes the output.
  */
 import { z } from 'zod';
-import type { ConditionEntry, FluidClass } from '../snapshot/types.js';
 import { CODED_ANSWERS } from './codes.js';
 import { icd10Matches, isSnomedConceptId, normaliseIcd10 } from './code-match.js';
 import rawConditions from './value-sets/conditions.json' with { type: 'json' };
@@ -113,6 +112,13 @@ export function matchConditionGroups(codings: readonly Coding[], sets: Condition
   return hits;
 }
 
+/** What the matcher reads of a condition (the snapshot's ConditionEntry has it). */
+export interface ConditionLike {
+  ref: string;
+  codings: readonly Coding[];
+  clinicalStatus: string;
+}
+
 export interface ActiveConditionGroup {
   id: ConditionGroupId;
   label: string;
@@ -127,7 +133,7 @@ export interface ActiveConditionGroup {
  * The groups present among the active conditions (clinical status in `activeStatuses`), in file order.
  * For the rules: `activeConditionGroups(snapshot.conditions).filter((g) => g.effects.includes('high-ppv-doubtful'))`.
  */
-export function activeConditionGroups(conditions: readonly ConditionEntry[], sets: ConditionSets = CONDITION_SETS): ActiveConditionGroup[] {
+export function activeConditionGroups(conditions: readonly ConditionLike[], sets: ConditionSets = CONDITION_SETS): ActiveConditionGroup[] {
   const found = new Map<ConditionGroupId, ActiveConditionGroup>();
   for (const c of conditions) {
     if (!sets.activeStatuses.includes(c.clinicalStatus)) continue;
@@ -166,7 +172,8 @@ export function rhythmAnswerOf(c: { system?: string | undefined; code?: string |
 
 // ---- Fluids ----
 
-const FLUID_CLASSES = ['balanced-crystalloid', 'saline', 'albumin-iso', 'albumin-hyper', 'other-colloid', 'other'] as const satisfies readonly FluidClass[];
+export const FLUID_CLASSES = ['balanced-crystalloid', 'saline', 'albumin-iso', 'albumin-hyper', 'other-colloid', 'other'] as const;
+export type FluidClass = (typeof FLUID_CLASSES)[number];
 const fluidsSchema = z.strictObject({
   provenance: z.string().min(1),
   version: z.string(),

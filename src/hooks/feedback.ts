@@ -13,7 +13,7 @@
  * of the card's own overrideReasons (system and code). Anything else is a 400 and nothing of the batch is stored.
  */
 import type { AuditStore, FeedbackRow, StoredAdvice } from '../audit/types.js';
-import { HttpError, zodIssues } from '../http/errors.js';
+import { outcomeError, zodIssues } from './outcome-error.js';
 import { feedbackRequestSchema, type Card, type FeedbackItem } from './schemas.js';
 import type { ServiceDefinition } from './services.js';
 
@@ -31,7 +31,7 @@ export async function recordFeedback(
   caller?: FeedbackCaller,
 ): Promise<{ stored: number; duplicates: number }> {
   const parsed = feedbackRequestSchema.safeParse(body);
-  if (!parsed.success) throw new HttpError(400, 'invalid', 'the body is not valid CDS Hooks 2.0 feedback', zodIssues(parsed.error.issues));
+  if (!parsed.success) throw outcomeError('invalid', 'invalid', 'the body is not valid CDS Hooks 2.0 feedback', zodIssues(parsed.error.issues));
   const receivedAt = now().toISOString();
   const known: Array<{ item: FeedbackItem; index: number; card: Card | undefined }> = [];
   const unknown: string[] = [];
@@ -50,7 +50,7 @@ export async function recordFeedback(
   }
 
   const problems = known.flatMap(({ item, index, card }) => cardProblems(item, card).map((p) => `feedback.${index}.${p}`));
-  if (problems.length) throw new HttpError(400, 'invalid', 'the feedback does not match the card it names; nothing was stored', problems);
+  if (problems.length) throw outcomeError('invalid', 'invalid', 'the feedback does not match the card it names; nothing was stored', problems);
 
   const rows: FeedbackRow[] = known.map(({ item: f }) => {
     const reason = f.overrideReason?.reason;
@@ -63,7 +63,7 @@ export async function recordFeedback(
   });
   const result = rows.length ? await store.addFeedback(rows) : { stored: 0, duplicates: 0 };
   if (unknown.length) {
-    throw new HttpError(404, 'not-found', `no card with uuid ${unknown.slice(0, 10).join(', ')} was issued by ${service.id} to this client; ${result.stored} other feedback item(s) stored`);
+    throw outcomeError('not-found', 'not-found', `no card with uuid ${unknown.slice(0, 10).join(', ')} was issued by ${service.id} to this client; ${result.stored} other feedback item(s) stored`);
   }
   return result;
 }

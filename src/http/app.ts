@@ -14,7 +14,8 @@ import { impactPage, impactRequestSchema } from '../audit/impact-request.js';
 import { auditInstant } from '../audit/shared.js';
 import { discoveryDocument, findService, servicesFor } from '../hooks/services.js';
 import { withDepthLimit } from './body-shape.js';
-import { HttpError, operationOutcome, zodIssues } from './errors.js';
+import { OutcomeError, outcomeError, zodIssues } from '../hooks/outcome-error.js';
+import { httpOf, operationOutcome } from './errors.js';
 
 export interface AppDeps extends EvaluateDeps {
   store: AuditStore;
@@ -114,26 +115,24 @@ export function createApp(deps: AppDeps): express.Express {
 
   app.post('/cds-services/:id', cds, json, async (req: Request, res: Response) => {
     const service = findService(String(req.params['id']), services);
-    if (!service) throw new HttpError(404, 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
+    if (!service) throw outcomeError('not-found', 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
     const pending = evaluateHook(service, req.body, deps, res.locals['client'] as never);
-    // The parsed body (about 100 KB of objects for the benchmark's full prefetch) is not needed while the audit commit is
-    // awaited; dropping express's reference lets it go in the next young-generation collection.
-    req.body = undefined;
+    req.body = undefined; // not held through the audit commit wait (docs/benchmarks.md)
     const result = await pending;
     res.status(result.status).json(result.body);
   });
 
   app.post('/cds-services/:id/feedback', cds, json, async (req: Request, res: Response) => {
     const service = findService(String(req.params['id']));
-    if (!service) throw new HttpError(404, 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
+    if (!service) throw outcomeError('not-found', 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
     // The caller the guard verified: feedback is taken only from the issuer that received the card.
-    const result = await recordFeedback(service, req.body, deps.store, () => new Date(), res.locals['client'] as { issuer?: string; tenant?: string } | undefined);
+    const result = await recordFeedback(service, req.body, deps.store, deps.now, res.locals['client'] as { issuer?: string; tenant?: string } | undefined);
     res.status(200).json(result);
   });
 
   app.get('/audit/advice', audit, async (req: Request, res: Response) => {
     const q = auditQuerySchema.safeParse(req.query);
-    if (!q.success) throw new HttpError(400, 'invalid', 'invalid audit query', zodIssues(q.error.issues, 'query'));
+    if (!q.success) throw outcomeError('invalid', 'invalid', 'invalid audit query', zodIssues(q.error.issues, 'query'));
     const { patient, service, from, to, limit, cursor } = q.data;
     const page = await deps.store.list({
       limit, ...(patient ? { patientId: patient } : {}), ...(service ? { service } : {}),
@@ -146,31 +145,31 @@ export function createApp(deps: AppDeps): express.Express {
   });
   app.get('/audit/advice/:id', audit, async (req: Request, res: Response) => {
     const rec = await deps.store.get(String(req.params['id']));
-    if (!rec) throw new HttpError(404, 'not-found', 'no advice record with that id');
+    if (!rec) throw outcomeError('not-found', 'not-found', 'no advice record with that id');
     res.json({ ...rec, feedback: await deps.store.feedbackFor(rec.id) });
   });
   app.get('/audit/advice/:id/replay', audit, async (req: Request, res: Response) => {
     const rec = await deps.store.get(String(req.params['id']));
-    if (!rec) throw new HttpError(404, 'not-found', 'no advice record with that id');
+    if (!rec) throw outcomeError('not-found', 'not-found', 'no advice record with that id');
     const diff = replay(rec, deps.thresholds, deps.rulesVersion);
-    if (!diff) throw new HttpError(422, 'not-supported', 'this record has no snapshot to replay (a 412 answer)');
+    if (!diff) throw outcomeError('not-replayable', 'not-supported', 'this record has no snapshot to replay (a 412 answer)');
     res.json(diff);
   });
   app.get('/audit/feedback-stats', audit, async (req: Request, res: Response) => {
     const q = auditQuerySchema.pick({ service: true, from: true, to: true }).safeParse(req.query);
-    if (!q.success) throw new HttpError(400, 'invalid', 'invalid audit query', zodIssues(q.error.issues, 'query'));
+    if (!q.success) throw outcomeError('invalid', 'invalid', 'invalid audit query', zodIssues(q.error.issues, 'query'));
     res.json(await deps.store.feedbackStats({
       ...(q.data.service ? { service: q.data.service } : {}), ...(q.data.from ? { from: toInstant(q.data.from) } : {}), ...(q.data.to ? { to: toInstant(q.data.to, true) } : {}),
     }));
   });
   app.post('/audit/impact', audit, json, async (req: Request, res: Response) => {
     const body = impactRequestSchema.safeParse(req.body);
-    if (!body.success) throw new HttpError(400, 'invalid', 'invalid impact request', zodIssues(body.error.issues, 'body'));
+    if (!body.success) throw outcomeError('invalid', 'invalid', 'invalid impact request', zodIssues(body.error.issues, 'body'));
     const { from, to } = body.data;
     const page = await impactPage(deps.store, { ...body.data, ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}) }, {
       catalogue: deps.catalogue, ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}), ...(deps.siteMap ? { siteMap: deps.siteMap } : {}),
     });
-    if (!page.ok) throw new HttpError(400, 'invalid', 'the candidate thresholds are invalid', [page.message.slice(0, 1000)]);
+    if (!page.ok) throw outcomeError('invalid', 'invalid', 'the candidate thresholds are invalid', [page.message.slice(0, 1000)]);
     res.json(page.body);
   });
   app.get('/audit/verify', audit, async (_req, res) => {
@@ -182,25 +181,24 @@ export function createApp(deps: AppDeps): express.Express {
   app.get(['/docs/:page', '/docs/:folder/:page'], async (req, res) => {
     const folder = req.params['folder'] === undefined ? '' : `${String(req.params['folder'])}/`;
     const page = `${folder}${String(req.params['page'])}`;
-    if (!/^([a-z0-9-]+\/)?[a-z0-9-]+\.md$/.test(page)) throw new HttpError(404, 'not-found', 'no such page');
+    if (!/^([a-z0-9-]+\/)?[a-z0-9-]+\.md$/.test(page)) throw outcomeError('not-found', 'not-found', 'no such page');
     try {
       res.type('text/markdown; charset=utf-8').send(await readFile(`${DOCS_DIR}${page}`, 'utf8'));
     } catch {
-      throw new HttpError(404, 'not-found', 'no such page');
+      throw outcomeError('not-found', 'not-found', 'no such page');
     }
   });
 
   deps.extraRoutes?.(app);
 
-  app.use((_req, _res, next) => next(new HttpError(404, 'not-found', 'no such route')));
-  // The one place errors become a status and an OperationOutcome.
+  app.use((_req, _res, next) => next(outcomeError('not-found', 'not-found', 'no such route')));
+  // The one place errors become a status and an OperationOutcome (domain outcomes through httpOf).
   app.use((err: unknown, req: Request, res: Response, _next: NextFunction) => {
     const e = err as { type?: string; status?: number; message?: string };
     let status = 500;
     let body;
-    if (err instanceof HttpError) {
-      status = err.status;
-      body = operationOutcome(err.code, err.message, err.diagnostics, status >= 500 ? 'fatal' : 'error');
+    if (err instanceof OutcomeError) {
+      ({ status, body } = httpOf(err));
     } else if (e?.type === 'entity.parse.failed') {
       status = 400;
       body = operationOutcome('structure', 'the body is not valid JSON');
@@ -215,7 +213,7 @@ export function createApp(deps: AppDeps): express.Express {
       body = operationOutcome('invalid', 'the request could not be read');
     } else {
       deps.log.error({ err: e?.message?.slice(0, 300), path: req.path }, 'unexpected error');
-      body = operationOutcome('exception', 'internal error', [], 'fatal');
+      body = operationOutcome('exception', 'internal error', 'fatal');
     }
     if (status >= 500) deps.log.error({ status, path: req.path }, 'request failed');
     res.status(status).type('application/json').json(body);

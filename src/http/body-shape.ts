@@ -7,7 +7,7 @@
  */
 import type { RequestHandler } from 'express';
 import { MAX_JSON_DEPTH } from '../hooks/schemas.js';
-import { HttpError } from './errors.js';
+import { outcomeError, type OutcomeError } from '../hooks/outcome-error.js';
 
 interface Frame {
   v: Record<string, unknown> | unknown[];
@@ -42,11 +42,11 @@ export function pathTooDeep(value: unknown, limit: number): Array<string | numbe
 }
 
 /** Why a body is refused for its nesting, or undefined if it is within the limit (MAX_JSON_DEPTH). */
-export function tooDeep(body: unknown, limit = MAX_JSON_DEPTH): HttpError | undefined {
+export function tooDeep(body: unknown, limit = MAX_JSON_DEPTH): OutcomeError | undefined {
   const path = pathTooDeep(body, limit);
   if (!path) return undefined;
   const shown = path.slice(0, 12).map((k) => (typeof k === 'number' ? `[${k}]` : `.${k.slice(0, 40)}`)).join('').replace(/^\./, '');
-  return new HttpError(400, 'structure', `the body nests deeper than ${limit} levels of objects and arrays`, [`too deep under ${shown}${path.length > 12 ? '…' : ''}`]);
+  return outcomeError('invalid', 'structure', `the body nests deeper than ${limit} levels of objects and arrays`, [`too deep under ${shown}${path.length > 12 ? '…' : ''}`]);
 }
 
 /** Wraps a body parser (express.json) so that a body nested deeper than the limit goes to the error handler as a 400. */

@@ -1,6 +1,6 @@
 /** Prometheus metrics (prom-client): requests by service and status, latency, FHIR fetch errors by kind, audit write latency. */
 import { Counter, Histogram, Registry, collectDefaultMetrics } from 'prom-client';
-import type { GatherOutcome } from '../fhir/gather.js';
+import type { GatherOutcome } from '../hooks/gather-types.js';
 
 export interface Metrics {
   registry: Registry;

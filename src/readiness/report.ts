@@ -6,7 +6,7 @@
 import type { FhirResource, Observation } from 'fhir/r4.js';
 import type { Advice } from '../assess/types.js';
 import { CODED_KINDS, CODED_OBSERVATION_CODES, DYNAMIC_TEST_CODES, DYNAMIC_TESTS, NUMERIC_KINDS, OBSERVATION_CODES } from '../fhir/codes.js';
-import type { GatherOutcome } from '../fhir/gather.js';
+import type { GatherOutcome } from '../hooks/gather-types.js';
 import { siteCodeOf, type SiteMap } from '../fhir/site-map.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
 

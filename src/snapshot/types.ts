@@ -5,6 +5,7 @@
  * The snapshot is plain JSON: it is stored in the audit record and can be replayed.
  */
 import type { CodedKind, DynamicMeasured, DynamicTestKind, NumericKind } from '../fhir/codes.js';
+import type { FluidClass } from '../fhir/value-sets.js';
 
 /** "Observation/abc" (relative reference), or "draftOrders#MedicationRequest/x" for draft resources. */
 export type FhirRef = string;
@@ -57,7 +58,7 @@ export interface DynamicTestResult {
   ref: FhirRef;
 }
 
-export type FluidClass = 'balanced-crystalloid' | 'saline' | 'albumin-iso' | 'albumin-hyper' | 'other-colloid' | 'other';
+export type { FluidClass };
 
 export interface FluidGiven {
   ref: FhirRef;

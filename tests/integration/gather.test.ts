@@ -3,7 +3,7 @@
 import nock from 'nock';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import * as b from '../../examples/lib/fhir-builders.js';
-import { gather } from '../../src/fhir/gather.js';
+import { gather } from '../../src/hooks/gather.js';
 import { hookRequestSchema } from '../../src/hooks/schemas.js';
 import { findService, PREFETCH } from '../../src/hooks/services.js';
 import { basicResources, orderSelectRequest, PID, prefetchOf } from '../helpers/hook-fixtures.js';

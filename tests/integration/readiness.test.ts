@@ -11,7 +11,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadConfig } from '../../src/config/config.js';
 import { startEmbeddedFhir, type EmbeddedFhir } from '../../src/devserver/embedded-fhir.js';
 import { FhirFetchError } from '../../src/fhir/fetcher.js';
-import { fhirFetcher } from '../../src/fhir/gather.js';
+import { fhirFetcher } from '../../src/fhir/fetcher.js';
 import { SERVICES } from '../../src/hooks/services.js';
 import type { ReadinessReport } from '../../src/readiness/report.js';
 import { runReadiness } from '../../src/readiness/run.js';

@@ -17,6 +17,19 @@ describe('rulesVersion', () => {
     edited.conditions.sets[0]!.snomed.pop();
     expect(rulesVersion(CAT, T, edited)).not.toBe(rulesVersion(CAT, T));
   });
+  it('changes with any part of the condition value sets: an ICD-10 range, an effect, the statuses read as active', () => {
+    type Sets = { conditions: { activeStatuses: string[]; sets: Array<{ icd10: Array<{ to?: string; code?: string }>; effects: string[] }> } };
+    const range = structuredClone(VALUE_SETS) as Sets;
+    const entry = range.conditions.sets.flatMap((s) => s.icd10).find((e) => e.to !== undefined)!;
+    entry.to = `${entry.to}9`;
+    expect(rulesVersion(CAT, T, range)).not.toBe(rulesVersion(CAT, T));
+    const effect = structuredClone(VALUE_SETS) as Sets;
+    effect.conditions.sets[0]!.effects.push('high-ppv-doubtful');
+    expect(rulesVersion(CAT, T, effect)).not.toBe(rulesVersion(CAT, T));
+    const statuses = structuredClone(VALUE_SETS) as Sets;
+    statuses.conditions.activeStatuses.push('remission');
+    expect(rulesVersion(CAT, T, statuses)).not.toBe(rulesVersion(CAT, T));
+  });
   it('changes when a rhythm concept is read as another answer, or a fluid changes class', () => {
     const r = structuredClone(VALUE_SETS) as { rhythm: { concepts: Array<{ answer: string }> }; fluids: { fluids: Array<{ fluidClass: string }> } };
     r.rhythm.concepts[0]!.answer = 'other-irregular';

@@ -2,7 +2,7 @@
  * The recommendation for one ordered bolus: codes from closed sets, no prose. All wording lives in
  * cards/catalogue.json and is checked against these sets when the catalogue loads (src/cards/catalogue.ts).
  */
-import type { Confidence, Need, NextTestKind, PhaseValue, Responsiveness, Tolerance } from '../types.js';
+import type { Confidence, Need, NextTestKind, PhaseValue, Responsiveness, Tolerance } from '../common/verdicts.js';
 
 /**
  * proceed-and-reassess     — give the bolus as ordered, then reassess response and tolerance;

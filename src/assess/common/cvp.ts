@@ -3,7 +3,7 @@
  * made from it. A number counts once (docs/clinical-logic): when the responsiveness verdict rests on the CVP, the tolerance finding
  * from the same CVP is turned into context (tolerance/verdict.ts, countOnce).
  *   responsiveness.cvp — extremes only, static (corroborates, never decides alone): ≤ 3 mmHg for, ≥ 12 mmHg against
- *                        (common practice §11; no CVP value predicts response well: Eskesen TG et al., Intensive Care
+ *                        (common practice; no CVP value predicts response well: Eskesen TG et al., Intensive Care
  *                        Med 2016;42:324; Marik PE et al., Chest 2008;134:172). Measured RA pressure stands in.
  *   tolerance.cvp      — CVP ≥ 12 mmHg a moderate venous limit (common practice; Boyd JH et al., Crit Care Med
  *                        2011;39:259: CVP > 12 mmHg at 12 h with the highest mortality).

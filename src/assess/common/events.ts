@@ -4,23 +4,12 @@
  * a PPV/SVV taken before such an event no longer describes the patient and is set aside with that reason.
  */
 import type { PatientSnapshot } from '../../snapshot/types.js';
-import type { Evidence } from './finding.js';
+import type { EvidenceEvent } from './evidence.js';
 import { compareText, evidenceOfFluid, evidenceOfVasoactive, timeMs, usableTime } from './select.js';
 import { fmt } from './text.js';
 import { vasoactiveChangesBetween } from './vasoactive-changes.js';
 
-export interface EvidenceEvent {
-  kind: 'fluid' | 'vasoactive-change';
-  /** For a vasoactive change: which kind (a start sorts before a rate change at the same moment). */
-  change?: 'started' | 'stopped' | 'rate changed';
-  at: string;
-  atMs: number;
-  /** "500 mL balanced-crystalloid started 2026-…", "norepinephrine rate changed at …". */
-  text: string;
-  evidence: Evidence;
-  /** For a rate change: the entry before it, cited too (the change is read from the pair). */
-  previous?: Evidence;
-}
+export type { EvidenceEvent };
 
 /** All events, newest first (ties by reference). */
 export function evidenceEvents(s: PatientSnapshot, now: Date, fluidEventMinMl: number): EvidenceEvent[] {

@@ -3,20 +3,11 @@
  * holds derived figures for the record and the card detail only: no code reads them back (enforced by
  * tests/unit/architecture.test.ts). Plain JSON, stored in the audit record.
  */
-import type { FluidClass, FhirRef } from '../../snapshot/types.js';
-import type { Selection, Unusable } from './select.js';
+import type { FluidClass } from '../../snapshot/types.js';
+import type { Evidence, Selection, Unusable } from './evidence.js';
 import { inSentence, staleText } from './text.js';
 
-/** One piece of evidence a finding used: which resource, which value, when. */
-export interface Evidence {
-  ref: FhirRef;
-  /** Measurement kind or a description (e.g. 'heartRate', 'plr:cardiacOutput'). */
-  kind: string;
-  value: number | string;
-  unit?: string;
-  effective: string;
-  ageMinutes: number;
-}
+export type { Evidence };
 
 export type Freshness = 'fresh' | 'stale' | 'missing';
 

@@ -8,9 +8,10 @@
 import { KIND_UNITS, type CodedKind, type DynamicTestKind, type NumericKind } from '../../fhir/codes.js';
 import { parseTimeMs } from '../../snapshot/time.js';
 import type { CodedMeasurement, DynamicTestResult, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug } from '../../snapshot/types.js';
-import type { Evidence } from './finding.js';
-import type { EvidenceEvent } from './events.js';
+import type { Evidence, EvidenceEvent, Selection } from './evidence.js';
 import { round } from './text.js';
+
+export type { Selection, Unusable } from './evidence.js';
 
 /** A time up to this far after `now` is clock skew and counts as age 0 (common practice). */
 export const CLOCK_SKEW_MIN = 5;
@@ -38,15 +39,6 @@ export function compareText(a: string, b: string): number {
 export function newestFirst<T extends { effective: string; ref: string }>(a: T, b: T): number {
   return timeMs(b.effective) - timeMs(a.effective) || compareText(a.ref, b.ref) || compareText(JSON.stringify(a), JSON.stringify(b));
 }
-
-export type Selection<T> =
-  | { state: 'fresh'; item: T; ageMinutes: number; windowMin: number }
-  | { state: 'stale'; item: T; ageMinutes: number; windowMin: number }
-  | { state: 'set-aside'; item: T; ageMinutes: number; windowMin: number; event: EvidenceEvent }
-  | { state: 'invalid'; item: T; ageMinutes: number; windowMin: number; detail: string }
-  | { state: 'missing'; windowMin: number };
-
-export type Unusable<T> = Exclude<Selection<T>, { state: 'fresh' }>;
 
 export interface Readings {
   /** Usable readings (canonical unit, finite value, not in the future), newest first. */

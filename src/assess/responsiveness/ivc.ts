@@ -3,7 +3,7 @@
  * Which index applies follows the recorded ventilation state at the time of the measurement:
  * - spontaneous breathing: collapsibility (Dmax − Dmin)/Dmax. > 40 % points for (Muller 2012); ≤ 40 % does
  *   not exclude (neutral), except a wide IVC (> 2.1 cm, Rudski 2010) collapsing < 10 %, which points against
- *   (common practice §11).
+ *   (common practice).
  * - controlled ventilation without effort: distensibility, Barbier (Dmax − Dmin)/Dmin > 18 % or Feissel
  *   (Dmax − Dmin)/mean > 12 % → for, otherwise against (static; the method is a threshold setting).
  * - controlled ventilation with effort, or state unknown or changed since the measurement: not assessed.

@@ -89,10 +89,10 @@ export const responsivenessThresholdsSchema = z
     ivcDistensibilityFeisselPercent: percent().default(12),
     /** IVC diameter cut, cm: ≤ is small, > is wide (Rudski et al., J Am Soc Echocardiogr 2010, 2.1 cm). */
     ivcDiameterCutCm: z.number().min(0.5).max(5).default(2.1),
-    /** Wide IVC (> ivcDiameterCutCm) collapsing strictly less than this, percent ("no respiratory variation"): static against (common practice §11; our reading: < 10 %). */
+    /** Wide IVC (> ivcDiameterCutCm) collapsing strictly less than this, percent ("no respiratory variation"): static against (common practice; our reading: < 10 %). */
     ivcNoVariationPercent: percent().default(10),
 
-    // ── CVP, at the extremes only, static (§11; it never decides alone: Eskesen TG et al., Intensive Care Med 2016;42:324) ─
+    // ── CVP, at the extremes only, static (common practice; it never decides alone: Eskesen TG et al., Intensive Care Med 2016;42:324) ─
     /** CVP ≤ this, mmHg: static-extreme for (common practice: about 2–3 mmHg or less). */
     cvpLowMmHg: z.number().min(-10).max(20).default(3),
     /** CVP ≥ this, mmHg: static-extreme against (common practice: about 12 mmHg or more). */

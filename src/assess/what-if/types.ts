@@ -4,7 +4,7 @@
  * Codes only; wording lives in cards/catalogue.json (the card's gap line) and src/pages/ (the page's table).
  */
 import type { AdviceAction, HeadlineKey } from '../advice/types.js';
-import type { Confidence, NextTestKind, Responsiveness } from '../types.js';
+import type { Confidence, NextTestKind, Responsiveness } from '../common/verdicts.js';
 
 /** Why a test is not offered for this patient (closed set; wording in the catalogue). */
 export const NOT_FEASIBLE = [

@@ -11,51 +11,12 @@
  * - searchset Bundle: use it, following link[next] (bounded) when it is paged.
  */
 import type { FhirResource, Bundle, OperationOutcome } from 'fhir/r4.js';
-import type { HookRequest } from '../hooks/schemas.js';
-import { resolvePrefetchTemplate } from '../hooks/prefetch-tokens.js';
-import type { ServiceDefinition } from '../hooks/services.js';
-import { DEFAULT_BYTE_CAPS, FhirFetchError, fhirFetcher, resolveUnderBase, type ByteCaps, type Fetcher } from './fetcher.js';
+import type { HookRequest } from './schemas.js';
+import { resolvePrefetchTemplate } from './prefetch-tokens.js';
+import type { ServiceDefinition } from './services.js';
+import { DEFAULT_BYTE_CAPS, FhirFetchError, fhirFetcher, resolveUnderBase, type ByteCaps, type Fetcher } from '../fhir/fetcher.js';
+import type { GatherOptions, GatherOutcome, GatherStatus, Gathered } from './gather-types.js';
 
-export { fhirFetcher, type Fetcher } from './fetcher.js';
-
-/** `too-large`: an answer, or all answers of the call, passed a byte cap; `redirect`: a 3xx, not followed. */
-export type GatherStatus =
-  | 'ok' | 'no-data' | 'not-applicable' | 'unavailable' | 'http-error' | 'timeout' | 'network-error' | 'not-fhir' | 'truncated'
-  | 'too-large' | 'redirect';
-
-export interface GatherOutcome {
-  key: string;
-  source: 'prefetch' | 'fhir-server' | 'none';
-  status: GatherStatus;
-  /** Resources kept from this key. */
-  count: number;
-  pages?: number;
-  ms?: number;
-  httpStatus?: number;
-  detail?: string;
-}
-
-export interface Gathered {
-  /** All resources, de-duplicated by type/id (the first copy wins). */
-  resources: FhirResource[];
-  outcomes: GatherOutcome[];
-  /** Required keys that neither prefetch nor a FHIR server could supply (→ 412). */
-  unobtainableRequired: string[];
-  /** Wall time of the gathering step, ms; fhirWaitMs = the longest single query. */
-  ms: number;
-  fhirWaitMs: number;
-}
-
-export interface GatherOptions {
-  budgetMs: number;
-  maxPages: number;
-  concurrency: number;
-  /** Byte caps on the answers (TIDEMARK_FHIR_MAX_RESPONSE_BYTES, TIDEMARK_FHIR_MAX_CALL_BYTES). */
-  maxResponseBytes?: number;
-  maxCallBytes?: number;
-  /** For tests: a fixed clock for timings. */
-  clock?: () => number;
-}
 
 /** Settles when `p` does or when the budget runs out, whichever is first, even if the fetcher ignores the signal. */
 function withinBudget<T>(p: Promise<T>, signal: AbortSignal): Promise<T> {
