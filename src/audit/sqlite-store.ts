@@ -12,8 +12,8 @@ import type Database from 'better-sqlite3';
 import { GENESIS, parseRecordText, storedHashMatches } from './chain.js';
 import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type AppendResult, type PreparedRecord } from './sqlite-append.js';
 import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
-import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, RecordStreamQuery, StoredAdvice } from './types.js';
-import { summarize, feedbackKey, ownerOf } from './shared.js';
+import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, OverviewAggregates, OverviewQuery, RecordStreamQuery, StoredAdvice } from './types.js';
+import { normaliseOverview, summarize, feedbackKey, ownerOf } from './shared.js';
 
 /**
  * The writer thread's entry. Built (dist/, `npm start`) this module is JavaScript and the compiled writer runs as is;
@@ -63,6 +63,16 @@ CREATE INDEX IF NOT EXISTS feedback_card ON feedback (card_uuid);
 `;
 
 interface AdviceRow { seq: number; record: string; prev_hash: string; hash: string }
+
+/** The most urgent indicator of the cards of the advice row aliased `a` (see TopIndicator). */
+const TOP_INDICATOR = `(SELECT CASE MAX(CASE json_extract(x.value, '$.indicator') WHEN 'critical' THEN 3 WHEN 'warning' THEN 2 WHEN 'info' THEN 1 ELSE 0 END)
+  WHEN 3 THEN 'critical' WHEN 2 THEN 'warning' WHEN 1 THEN 'info' ELSE 'none' END FROM json_each(a.record, '$.cards') x)`;
+const verdictOf = (v: 'responsiveness' | 'tolerance') => `COALESCE(json_extract(a.record, '$.advice.${v}.value'), 'none')`;
+/** UTC day and ISO week (its Monday) of the advice row aliased `a`. */
+const DAY = 'substr(a.recorded_at, 1, 10)';
+const WEEK = `date(substr(a.recorded_at, 1, 10), '-6 days', 'weekday 1')`;
+const feedbackExists = (outcome?: string) =>
+  `EXISTS (SELECT 1 FROM advice_card c JOIN feedback f ON f.card_uuid = c.card_uuid WHERE c.advice_id = a.id${outcome ? ` AND f.outcome = '${outcome}'` : ''})`;
 
 /** Records read per batch by records(). */
 const STREAM_BATCH = 500;
@@ -213,13 +223,17 @@ export class SqliteAuditStore implements AuditStore {
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
     const where: string[] = [];
     const args: Array<string | number> = [];
-    if (q.patientId) (where.push('patient_id = ?'), args.push(q.patientId));
-    if (q.service) (where.push('service = ?'), args.push(q.service));
-    if (q.from) (where.push('recorded_at >= ?'), args.push(q.from));
-    if (q.to) (where.push('recorded_at <= ?'), args.push(q.to));
-    if (q.cursor) (where.push('seq < ?'), args.push(Number(q.cursor)));
+    if (q.patientId) (where.push('a.patient_id = ?'), args.push(q.patientId));
+    if (q.service) (where.push('a.service = ?'), args.push(q.service));
+    if (q.from) (where.push('a.recorded_at >= ?'), args.push(q.from));
+    if (q.to) (where.push('a.recorded_at <= ?'), args.push(q.to));
+    if (q.cursor) (where.push('a.seq < ?'), args.push(Number(q.cursor)));
+    if (q.indicator) (where.push(`${TOP_INDICATOR} = ?`), args.push(q.indicator));
+    if (q.responsiveness) (where.push(`${verdictOf('responsiveness')} = ?`), args.push(q.responsiveness));
+    if (q.tolerance) (where.push(`${verdictOf('tolerance')} = ?`), args.push(q.tolerance));
+    if (q.feedback) where.push(q.feedback === 'none' ? `NOT ${feedbackExists()}` : feedbackExists(q.feedback));
     const rows = this.db
-      .prepare(`SELECT seq, record, prev_hash, hash FROM advice ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY seq DESC LIMIT ?`)
+      .prepare(`SELECT a.seq, a.record, a.prev_hash, a.hash FROM advice a ${where.length ? `WHERE ${where.join(' AND ')}` : ''} ORDER BY a.seq DESC LIMIT ?`)
       .all(...args, q.limit + 1) as AdviceRow[];
     const page = rows.slice(0, q.limit);
     const records = page.map((r) => ({ ...parseRecordText(r.record), seq: r.seq }));
@@ -227,6 +241,44 @@ export class SqliteAuditStore implements AuditStore {
     const items = records.map((r) => summarize(r, counts));
     const last = page[page.length - 1];
     return rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
+  }
+
+  async overview(q: OverviewQuery): Promise<OverviewAggregates> {
+    const where: string[] = [];
+    const args: string[] = [];
+    if (q.service) (where.push('a.service = ?'), args.push(q.service));
+    if (q.from) (where.push('a.recorded_at >= ?'), args.push(q.from));
+    if (q.to) (where.push('a.recorded_at <= ?'), args.push(q.to));
+    const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
+    const all = <T>(sql: string) => this.db.prepare(sql).all(...args) as T[];
+    const answersByDay = all<OverviewAggregates['answersByDay'][number]>(
+      `SELECT ${DAY} AS day, a.service AS service, ${TOP_INDICATOR} AS indicator, COUNT(*) AS answers FROM advice a ${w} GROUP BY 1, 2, 3`,
+    );
+    const feedbackByWeek = all<OverviewAggregates['feedbackByWeek'][number]>(
+      `WITH per_card AS (
+         SELECT ${WEEK} AS week, c.card_kind AS kind, c.card_uuid AS card,
+           MAX(CASE f.outcome WHEN 'overridden' THEN 2 WHEN 'accepted' THEN 1 ELSE 0 END) AS o
+         FROM advice_card c JOIN advice a ON a.id = c.advice_id LEFT JOIN feedback f ON f.card_uuid = c.card_uuid ${w}
+         GROUP BY c.card_uuid, week, kind)
+       SELECT week, kind AS cardKind, COUNT(*) AS cards, SUM(o = 1) AS accepted, SUM(o = 2) AS overridden, SUM(o = 0) AS noFeedback
+       FROM per_card GROUP BY week, kind`,
+    );
+    const overrideReasonsByWeek = all<OverviewAggregates['overrideReasonsByWeek'][number]>(
+      `SELECT ${WEEK} AS week, COALESCE(f.reason_code, '(comment only)') AS reasonCode, COALESCE(MAX(f.reason_display), '') AS reasonDisplay, COUNT(DISTINCT f.card_uuid) AS cards
+       FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid JOIN advice a ON a.id = c.advice_id
+       ${w ? `${w} AND` : 'WHERE'} f.outcome = 'overridden' GROUP BY 1, 2`,
+    );
+    const verdictsByWeek = all<OverviewAggregates['verdictsByWeek'][number]>(
+      `SELECT ${WEEK} AS week, ${verdictOf('responsiveness')} AS responsiveness, ${verdictOf('tolerance')} AS tolerance, COUNT(*) AS answers FROM advice a ${w} GROUP BY 1, 2, 3`,
+    );
+    // SQLite has no percentile function: nearest rank from ROW_NUMBER and the day's count (⌈p·n⌉ = (p%·n + 99) / 100 in integers).
+    const latencyByDay = all<OverviewAggregates['latencyByDay'][number]>(
+      `WITH l AS (SELECT ${DAY} AS day, CAST(json_extract(a.record, '$.timings.totalMs') AS REAL) AS ms FROM advice a ${w}),
+       r AS (SELECT day, ms, ROW_NUMBER() OVER (PARTITION BY day ORDER BY ms) AS rn, COUNT(*) OVER (PARTITION BY day) AS n FROM l WHERE ms IS NOT NULL)
+       SELECT day, MAX(n) AS answers, MIN(CASE WHEN rn >= (n * 50 + 99) / 100 THEN ms END) AS p50Ms, MIN(CASE WHEN rn >= (n * 99 + 99) / 100 THEN ms END) AS p99Ms
+       FROM r GROUP BY day`,
+    );
+    return normaliseOverview({ answersByDay, feedbackByWeek, overrideReasonsByWeek, verdictsByWeek, latencyByDay });
   }
 
   /** Cards accepted and cards overridden per advice (distinct cards, as feedbackStats counts them; not feedback rows). */
