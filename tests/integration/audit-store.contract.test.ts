@@ -615,7 +615,7 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
           rulesVersion: r.rulesVersion, now: iso, findings: [], ruleErrors: [],
           responsiveness: { value: o.verdicts[0], rationale: 'invented', decidingRules: [] },
           tolerance: { value: o.verdicts[1], rationale: 'invented', decidingRules: [] },
-        } as unknown as AdviceRecord['advice'];
+        } as unknown as NonNullable<AdviceRecord['advice']>;
       }
       return r;
     };
