@@ -46,7 +46,7 @@ export function chartSpec(c: ChartInput): TopLevelSpec {
   const colour = {
     field: 'series', type: 'nominal', title: null,
     scale: { domain: c.series.map((s) => s.name), range: c.series.map((s) => s.colour) },
-    legend: { orient: 'top', direction: 'horizontal', labelFontSize: 12, labelLimit: 280, symbolType: 'square', columns: 4 },
+    legend: { orient: 'top', direction: 'horizontal', labelFontSize: 12, labelLimit: 420, symbolType: 'square', columns: 3 },
   };
   const y = { field: 'value', type: 'quantitative', title: c.yTitle, axis: { format: c.kind === 'share' ? '.0%' : '~s', labelFontSize: 11, titleFontSize: 12 } };
   const encoding = c.kind === 'lines'

@@ -198,9 +198,9 @@ ${select('responsiveness', 'Responsiveness', RESPONSIVENESS, f.responsiveness)}
 ${select('tolerance', 'Tolerance', TOLERANCE, f.tolerance)}
 ${select('feedback', 'Feedback', FEEDBACK, f.feedback)}
 <button type="submit">Filter</button></form>
-<p class="meta">Newest first. ${o.zoneNote} Feedback counts cards: accepted / overridden.</p>
+<p class="meta">Latest stored first (the trail's order). ${o.zoneNote} Feedback counts cards: accepted / overridden.</p>
 ${o.items.length
-    ? html`<table id="advice-list"><thead><tr><th>Recorded</th><th>Service</th><th>Patient</th><th>Cards</th><th>Responsiveness</th><th>Tolerance</th><th class="num">Feedback</th><th class="num">ms</th><th></th></tr></thead><tbody>${o.items.map((i) => html`<tr data-id="${i.id}"><td>${i.recordedAt.replace('T', ' ').slice(0, 19)}</td><td>${i.service}</td><td class="ref">${i.patientId ?? '–'}</td><td>${i.outcome === 'answered' ? (i.indicators.length ? i.indicators.join(', ') : 'none') : 'refused (missing data)'}</td><td>${i.responsiveness ?? '–'}</td><td>${i.tolerance ?? '–'}</td><td class="num">${i.feedback.accepted} / ${i.feedback.overridden}</td><td class="num">${i.latencyMs}</td><td><a href="/console/advice/${encodeURIComponent(i.id)}">Open</a></td></tr>`)}</tbody></table>`
+    ? html`<table id="advice-list"><thead><tr><th>Recorded</th><th>Service</th><th>Patient</th><th>Card indicators</th><th>Responsiveness</th><th>Tolerance</th><th class="num">Feedback</th><th class="num">ms</th><th></th></tr></thead><tbody>${o.items.map((i) => html`<tr data-id="${i.id}"><td>${i.recordedAt.replace('T', ' ').slice(0, 19)}</td><td>${i.service}</td><td class="ref">${i.patientId ?? '–'}</td><td>${i.outcome === 'answered' ? (i.indicators.length ? i.indicators.join(', ') : 'none') : 'refused (missing data)'}</td><td>${i.responsiveness ?? '–'}</td><td>${i.tolerance ?? '–'}</td><td class="num">${i.feedback.accepted} / ${i.feedback.overridden}</td><td class="num">${i.latencyMs}</td><td><a href="/console/advice/${encodeURIComponent(i.id)}">Open</a></td></tr>`)}</tbody></table>`
     : html`<p class="empty" id="advice-list-empty">No advice matches these filters.</p>`}
 <p class="pager">${o.firstHref ? html`<a href="${o.firstHref}">Newest</a> ` : ''}${o.nextHref ? html`<a href="${o.nextHref}" id="next-page">Older</a>` : ''}</p>`;
   return page('Advice list', 'advice', o.chrome, body);
