@@ -2,7 +2,7 @@
  * An audit store that stores nothing (benchmark only): the same interface as the real stores, so the cost of
  * the durable audit write can be measured by difference. Never used by the service outside bench/.
  */
-import type { AuditStore, StoredAdvice } from '../src/audit/types.js';
+import type { AuditStore, OverviewAggregates, StoredAdvice } from '../src/audit/types.js';
 
 export class NoopAuditStore implements AuditStore {
   readonly kind = 'noop';
@@ -19,6 +19,7 @@ export class NoopAuditStore implements AuditStore {
   async feedbackFor(): Promise<[]> { return []; }
   async *records(): AsyncGenerator<StoredAdvice> {}
   async feedbackStats(): Promise<{ byKind: []; byReason: [] }> { return { byKind: [], byReason: [] }; }
+  async overview(): Promise<OverviewAggregates> { return { answersByDay: [], feedbackByWeek: [], overrideReasonsByWeek: [], verdictsByWeek: [], latencyByDay: [] }; }
   async verifyChain(): Promise<{ ok: boolean; checked: number }> { return { ok: true, checked: 0 }; }
   async ping(): Promise<void> {}
   async close(): Promise<void> {}

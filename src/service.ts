@@ -18,6 +18,7 @@ import { createClientVerifier } from './auth/client-verifier.js';
 import { requireAuditAccess, requireCdsClient, requireMetricsAccess } from './auth/middleware.js';
 import { InMemoryReplayCache } from './auth/replay-cache.js';
 import { adviceLinkUrl, ADVICE_LINK_LABEL, signerFromConfig } from './http/advice-link.js';
+import { mountConsole } from './http/console.js';
 import { mountPages } from './http/pages.js';
 
 export interface Service {
@@ -81,16 +82,24 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     log.warn({ publicUrl }, w);
   }
   const metrics = createMetrics();
+  const auditAuth = requireAuditAccess({ ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), verifier: auditVerifier, publicUrl, log });
   const app = createApp({
     metrics,
     onResponse: metrics.onResponse,
     cdsClientAuth: requireCdsClient({ verifier, publicUrl, trialMode: cfg.TIDEMARK_TRIAL_MODE, log }),
-    auditAuth: requireAuditAccess({ ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), verifier: auditVerifier, publicUrl, log }),
+    auditAuth,
     readinessWarnings: warnings,
-    pages: (a) => mountPages(a, {
-      store, catalogue, thresholds, rulesVersion: version, now, timeZone: cfg.TIDEMARK_TIME_ZONE, frameAncestors: cfg.TIDEMARK_FRAME_ANCESTORS, log,
-      ...(signer ? { signer } : {}),
-    }),
+    pages: (a) => {
+      mountPages(a, {
+        store, catalogue, thresholds, rulesVersion: version, now, timeZone: cfg.TIDEMARK_TIME_ZONE, frameAncestors: cfg.TIDEMARK_FRAME_ANCESTORS, log,
+        ...(signer ? { signer } : {}),
+      });
+      mountConsole(a, {
+        store, catalogue, catalogueDigest: digest, thresholds, rulesVersion: version, now, timeZone: cfg.TIDEMARK_TIME_ZONE, publicUrl, auditAuth,
+        sessionMinutes: cfg.TIDEMARK_CONSOLE_SESSION_MIN, bodyLimit: cfg.TIDEMARK_BODY_LIMIT, log,
+        ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
+      });
+    },
     ...(signer ? { adviceLink: (id: string) => ({ label: ADVICE_LINK_LABEL, url: adviceLinkUrl(publicUrl, id, signer.sign(id, now().getTime())) }) } : {}),
     ...(cfg.file.corsOrigins ? { corsOrigins: cfg.file.corsOrigins } : {}),
     extraRoutes: (a) => {

@@ -16,11 +16,11 @@ import pg from 'pg';
 import type { PoolClient } from 'pg';
 import { chainHashOfText, GENESIS, parseRecordText, recordText, storedHashMatches } from './chain.js';
 import { PostgresReplayCache, type PostgresReplayCacheOptions } from './postgres-replay-cache.js';
-import { feedbackKey, ownerOf, summarize } from './shared.js';
+import { feedbackKey, normaliseOverview, ownerOf, summarize } from './shared.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
 import { feedbackCountsOf, feedbackStatsOf, feedbackStatsSql, rowToFeedback, type KindRow, type ReasonRow } from './sql/rows.js';
 import { adviceFilters, Where } from './sql/where.js';
-import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, RecordStreamQuery, StoredAdvice } from './types.js';
+import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, OverviewAggregates, OverviewQuery, RecordStreamQuery, StoredAdvice } from './types.js';
 
 export interface PostgresAuditStoreOptions {
   /** Schema that holds the tables (default `tidemark`). Letters, digits and underscores only. */
@@ -40,6 +40,15 @@ function lockKey(purpose: string, schema: string): string {
 }
 
 interface AdviceRow { seq: string; record: string; prev_hash: string; hash: string }
+
+// The record text read as json (not jsonb, which refuses a \u0000 anywhere in the text), for the advice row aliased `a`.
+/** The most urgent indicator of the answer's cards (see TopIndicator). */
+const TOP_INDICATOR = `(SELECT CASE MAX(CASE x->>'indicator' WHEN 'critical' THEN 3 WHEN 'warning' THEN 2 WHEN 'info' THEN 1 ELSE 0 END)
+  WHEN 3 THEN 'critical' WHEN 2 THEN 'warning' WHEN 1 THEN 'info' ELSE 'none' END FROM json_array_elements(a.record::json -> 'cards') x)`;
+const verdictOf = (v: 'responsiveness' | 'tolerance') => `COALESCE(a.record::json #>> '{advice,${v},value}', 'none')`;
+/** UTC day and ISO week (its Monday) of the advice row `a`, as text; date arithmetic only, no time zone involved. */
+const DAY = 'substr(a.recorded_at, 1, 10)';
+const WEEK = `to_char(substr(a.recorded_at, 1, 10)::date - (extract(isodow FROM substr(a.recorded_at, 1, 10)::date)::int - 1), 'YYYY-MM-DD')`;
 
 /**
  * A failed set-up statement, rethrown naming it and the way out: a role with only SELECT and INSERT cannot create
@@ -163,19 +172,66 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
-    const w = adviceFilters(new Where('postgres'), q);
+    const s = this.s;
+    const feedbackExists = (outcome?: string) =>
+      `EXISTS (SELECT 1 FROM ${s}.advice_card c JOIN ${s}.feedback f ON f.card_uuid = c.card_uuid WHERE c.advice_id = a.id${outcome ? ` AND f.outcome = '${outcome}'` : ''})`;
+    const w = adviceFilters(new Where('postgres'), q, 'a.');
     if (q.cursor) {
       const n = Number(q.cursor);
       // As in SQLite, a cursor that is not a number matches nothing (PostgreSQL would rank NaN above every seq).
       if (Number.isNaN(n)) return { items: [] };
-      w.add((p) => `seq < ${p}::float8`, String(n));
+      w.add((p) => `a.seq < ${p}::float8`, String(n));
     }
-    const r = await this.pool.query<AdviceRow>(`SELECT seq, record, prev_hash, hash FROM ${this.s}.advice ${w.sql} ORDER BY seq DESC LIMIT ${w.param(q.limit + 1)}`, w.args);
+    w.maybe(q.indicator, (p) => `${TOP_INDICATOR} = ${p}`).maybe(q.responsiveness, (p) => `${verdictOf('responsiveness')} = ${p}`);
+    w.maybe(q.tolerance, (p) => `${verdictOf('tolerance')} = ${p}`);
+    if (q.feedback) w.raw(q.feedback === 'none' ? `NOT ${feedbackExists()}` : feedbackExists(q.feedback));
+    const r = await this.pool.query<AdviceRow>(`SELECT a.seq, a.record, a.prev_hash, a.hash FROM ${s}.advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`, w.args);
     const page = r.rows.slice(0, q.limit).map((row) => ({ ...parseRecordText(row.record), seq: Number(row.seq) }));
     const counts = await this.feedbackCounts(page.map((p) => p.id));
     const items = page.map((p) => summarize(p, counts));
     const last = page[page.length - 1];
     return r.rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
+  }
+
+  async overview(q: OverviewQuery): Promise<OverviewAggregates> {
+    const where: string[] = [];
+    const args: string[] = [];
+    if (q.service) (args.push(q.service), where.push(`a.service = $${args.length}`));
+    if (q.from) (args.push(q.from), where.push(`a.recorded_at >= $${args.length}`));
+    if (q.to) (args.push(q.to), where.push(`a.recorded_at <= $${args.length}`));
+    const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
+    const s = this.s;
+    const all = async <T extends object>(sql: string): Promise<T[]> => (await this.pool.query<T>(sql, args)).rows;
+    const [answersByDay, feedbackByWeek, overrideReasonsByWeek, verdictsByWeek, latencyByDay] = await Promise.all([
+      all<OverviewAggregates['answersByDay'][number]>(
+        `SELECT ${DAY} AS day, a.service AS service, ${TOP_INDICATOR} AS indicator, COUNT(*)::int AS answers FROM ${s}.advice a ${w} GROUP BY 1, 2, 3`,
+      ),
+      all<OverviewAggregates['feedbackByWeek'][number]>(
+        `WITH per_card AS (
+           SELECT ${WEEK} AS week, c.card_kind AS kind, c.card_uuid AS card,
+             MAX(CASE f.outcome WHEN 'overridden' THEN 2 WHEN 'accepted' THEN 1 ELSE 0 END) AS o
+           FROM ${s}.advice_card c JOIN ${s}.advice a ON a.id = c.advice_id LEFT JOIN ${s}.feedback f ON f.card_uuid = c.card_uuid ${w}
+           GROUP BY c.card_uuid, 1, 2)
+         SELECT week, kind AS "cardKind", COUNT(*)::int AS cards, COUNT(*) FILTER (WHERE o = 1)::int AS accepted,
+           COUNT(*) FILTER (WHERE o = 2)::int AS overridden, COUNT(*) FILTER (WHERE o = 0)::int AS "noFeedback"
+         FROM per_card GROUP BY week, kind`,
+      ),
+      all<OverviewAggregates['overrideReasonsByWeek'][number]>(
+        `SELECT ${WEEK} AS week, COALESCE(f.reason_code, '(comment only)') AS "reasonCode", COALESCE(MAX(f.reason_display), '') AS "reasonDisplay", COUNT(DISTINCT f.card_uuid)::int AS cards
+         FROM ${s}.feedback f JOIN ${s}.advice_card c ON c.card_uuid = f.card_uuid JOIN ${s}.advice a ON a.id = c.advice_id
+         ${w ? `${w} AND` : 'WHERE'} f.outcome = 'overridden' GROUP BY 1, 2`,
+      ),
+      all<OverviewAggregates['verdictsByWeek'][number]>(
+        `SELECT ${WEEK} AS week, ${verdictOf('responsiveness')} AS responsiveness, ${verdictOf('tolerance')} AS tolerance, COUNT(*)::int AS answers FROM ${s}.advice a ${w} GROUP BY 1, 2, 3`,
+      ),
+      // Nearest rank: percentile_disc(p) is the first value whose cumulative share reaches p, the value at rank ⌈p·n⌉.
+      all<OverviewAggregates['latencyByDay'][number]>(
+        `WITH l AS (SELECT ${DAY} AS day, (a.record::json #>> '{timings,totalMs}')::float8 AS ms FROM ${s}.advice a ${w})
+         SELECT day, COUNT(*)::int AS answers, percentile_disc(0.5) WITHIN GROUP (ORDER BY ms) AS "p50Ms", percentile_disc(0.99) WITHIN GROUP (ORDER BY ms) AS "p99Ms"
+         FROM l WHERE ms IS NOT NULL GROUP BY day`,
+      ),
+    ]);
+    return normaliseOverview({ answersByDay, feedbackByWeek, overrideReasonsByWeek, verdictsByWeek, latencyByDay });
   }
 
   /** Cards accepted and cards overridden per advice (distinct cards, as feedbackStats counts them; not feedback rows). */

@@ -1,6 +1,6 @@
 /** Helpers shared by the audit adapters. */
 import { createHash } from 'node:crypto';
-import type { AdviceRecord, AdviceSummary, CardOwner, FeedbackRow } from './types.js';
+import type { AdviceRecord, AdviceSummary, CardOwner, FeedbackRow, OverviewAggregates } from './types.js';
 
 export function summarize(r: AdviceRecord & { seq: number }, feedback: Map<string, { accepted: number; overridden: number }>): AdviceSummary {
   return {
@@ -8,6 +8,8 @@ export function summarize(r: AdviceRecord & { seq: number }, feedback: Map<strin
     ...(r.patientId ? { patientId: r.patientId } : {}), ...(r.encounterId ? { encounterId: r.encounterId } : {}),
     outcome: r.outcome, rulesVersion: r.rulesVersion, cardCount: r.cards.length, indicators: r.cards.map((c) => c.indicator),
     latencyMs: Math.round(r.timings.totalMs * 10) / 10, feedback: feedback.get(r.id) ?? { accepted: 0, overridden: 0 },
+    ...(r.advice?.responsiveness ? { responsiveness: r.advice.responsiveness.value } : {}),
+    ...(r.advice?.tolerance ? { tolerance: r.advice.tolerance.value } : {}),
   };
 }
 
@@ -32,4 +34,31 @@ export function feedbackKey(f: FeedbackRow): string {
 /** A card-owner row of either store as a CardOwner (no `issuer` when the record names none). */
 export function ownerOf(r: { advice_id: string; card_kind: string; service: string; issuer: string | null }): CardOwner {
   return { adviceId: r.advice_id, cardKind: r.card_kind, service: r.service, ...(r.issuer !== null ? { issuer: r.issuer } : {}) };
+}
+
+/** Code-unit order of the named keys (not locale order), so that both stores' aggregates sort alike. */
+function byKeys<T>(keys: Array<keyof T>): (a: T, b: T) => number {
+  return (a, b) => {
+    for (const k of keys) {
+      const x = String(a[k]);
+      const y = String(b[k]);
+      if (x !== y) return x < y ? -1 : 1;
+    }
+    return 0;
+  };
+}
+
+/** Counts as numbers (PostgreSQL returns bigint sums as text), latencies rounded to 0.1 ms, every list sorted by its keys. */
+export function normaliseOverview(o: OverviewAggregates): OverviewAggregates {
+  const n = (v: unknown) => Number(v);
+  const ms = (v: unknown) => Math.round(Number(v) * 10) / 10;
+  return {
+    answersByDay: o.answersByDay.map((r) => ({ ...r, answers: n(r.answers) })).sort(byKeys(['day', 'service', 'indicator'])),
+    feedbackByWeek: o.feedbackByWeek
+      .map((r) => ({ ...r, cards: n(r.cards), accepted: n(r.accepted), overridden: n(r.overridden), noFeedback: n(r.noFeedback) }))
+      .sort(byKeys(['week', 'cardKind'])),
+    overrideReasonsByWeek: o.overrideReasonsByWeek.map((r) => ({ ...r, cards: n(r.cards) })).sort(byKeys(['week', 'reasonCode'])),
+    verdictsByWeek: o.verdictsByWeek.map((r) => ({ ...r, answers: n(r.answers) })).sort(byKeys(['week', 'responsiveness', 'tolerance'])),
+    latencyByDay: o.latencyByDay.map((r) => ({ day: r.day, answers: n(r.answers), p50Ms: ms(r.p50Ms), p99Ms: ms(r.p99Ms) })).sort(byKeys(['day'])),
+  };
 }

@@ -12,8 +12,8 @@ import type Database from 'better-sqlite3';
 import { GENESIS, parseRecordText, storedHashMatches } from './chain.js';
 import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type AppendResult, type PreparedRecord } from './sqlite-append.js';
 import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
-import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, RecordStreamQuery, StoredAdvice } from './types.js';
-import { summarize, feedbackKey, ownerOf } from './shared.js';
+import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, OverviewAggregates, OverviewQuery, RecordStreamQuery, StoredAdvice } from './types.js';
+import { normaliseOverview, summarize, feedbackKey, ownerOf } from './shared.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
 import { feedbackCountsOf, feedbackStatsOf, feedbackStatsSql, rowToFeedback, type KindRow, type ReasonRow } from './sql/rows.js';
 import { adviceFilters, Where } from './sql/where.js';
@@ -26,6 +26,16 @@ const WRITER_ENTRY = import.meta.url.endsWith('.ts') ? './sqlite-writer.mjs' : '
 
 
 interface AdviceRow { seq: number; record: string; prev_hash: string; hash: string }
+
+/** The most urgent indicator of the cards of the advice row aliased `a` (see TopIndicator). */
+const TOP_INDICATOR = `(SELECT CASE MAX(CASE json_extract(x.value, '$.indicator') WHEN 'critical' THEN 3 WHEN 'warning' THEN 2 WHEN 'info' THEN 1 ELSE 0 END)
+  WHEN 3 THEN 'critical' WHEN 2 THEN 'warning' WHEN 1 THEN 'info' ELSE 'none' END FROM json_each(a.record, '$.cards') x)`;
+const verdictOf = (v: 'responsiveness' | 'tolerance') => `COALESCE(json_extract(a.record, '$.advice.${v}.value'), 'none')`;
+/** UTC day and ISO week (its Monday) of the advice row aliased `a`. */
+const DAY = 'substr(a.recorded_at, 1, 10)';
+const WEEK = `date(substr(a.recorded_at, 1, 10), '-6 days', 'weekday 1')`;
+const feedbackExists = (outcome?: string) =>
+  `EXISTS (SELECT 1 FROM advice_card c JOIN feedback f ON f.card_uuid = c.card_uuid WHERE c.advice_id = a.id${outcome ? ` AND f.outcome = '${outcome}'` : ''})`;
 
 /** Records read per batch by records(). */
 const STREAM_BATCH = 500;
@@ -193,15 +203,56 @@ export class SqliteAuditStore implements AuditStore {
   }
 
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
-    const w = adviceFilters(new Where('sqlite'), q);
-    if (q.cursor) w.add((p) => `seq < ${p}`, Number(q.cursor));
-    const rows = this.db.prepare(`SELECT seq, record, prev_hash, hash FROM advice ${w.sql} ORDER BY seq DESC LIMIT ${w.param(q.limit + 1)}`).all(...w.args) as AdviceRow[];
+    const w = adviceFilters(new Where('sqlite'), q, 'a.');
+    if (q.cursor) w.add((p) => `a.seq < ${p}`, Number(q.cursor));
+    w.maybe(q.indicator, (p) => `${TOP_INDICATOR} = ${p}`).maybe(q.responsiveness, (p) => `${verdictOf('responsiveness')} = ${p}`);
+    w.maybe(q.tolerance, (p) => `${verdictOf('tolerance')} = ${p}`);
+    if (q.feedback) w.raw(q.feedback === 'none' ? `NOT ${feedbackExists()}` : feedbackExists(q.feedback));
+    const rows = this.db.prepare(`SELECT a.seq, a.record, a.prev_hash, a.hash FROM advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`).all(...w.args) as AdviceRow[];
     const page = rows.slice(0, q.limit);
     const records = page.map((r) => ({ ...parseRecordText(r.record), seq: r.seq }));
     const counts = this.feedbackCounts(records.map((r) => r.id));
     const items = records.map((r) => summarize(r, counts));
     const last = page[page.length - 1];
     return rows.length > q.limit && last ? { items, nextCursor: String(last.seq) } : { items };
+  }
+
+  async overview(q: OverviewQuery): Promise<OverviewAggregates> {
+    const where: string[] = [];
+    const args: string[] = [];
+    if (q.service) (where.push('a.service = ?'), args.push(q.service));
+    if (q.from) (where.push('a.recorded_at >= ?'), args.push(q.from));
+    if (q.to) (where.push('a.recorded_at <= ?'), args.push(q.to));
+    const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
+    const all = <T>(sql: string) => this.db.prepare(sql).all(...args) as T[];
+    const answersByDay = all<OverviewAggregates['answersByDay'][number]>(
+      `SELECT ${DAY} AS day, a.service AS service, ${TOP_INDICATOR} AS indicator, COUNT(*) AS answers FROM advice a ${w} GROUP BY 1, 2, 3`,
+    );
+    const feedbackByWeek = all<OverviewAggregates['feedbackByWeek'][number]>(
+      `WITH per_card AS (
+         SELECT ${WEEK} AS week, c.card_kind AS kind, c.card_uuid AS card,
+           MAX(CASE f.outcome WHEN 'overridden' THEN 2 WHEN 'accepted' THEN 1 ELSE 0 END) AS o
+         FROM advice_card c JOIN advice a ON a.id = c.advice_id LEFT JOIN feedback f ON f.card_uuid = c.card_uuid ${w}
+         GROUP BY c.card_uuid, week, kind)
+       SELECT week, kind AS cardKind, COUNT(*) AS cards, SUM(o = 1) AS accepted, SUM(o = 2) AS overridden, SUM(o = 0) AS noFeedback
+       FROM per_card GROUP BY week, kind`,
+    );
+    const overrideReasonsByWeek = all<OverviewAggregates['overrideReasonsByWeek'][number]>(
+      `SELECT ${WEEK} AS week, COALESCE(f.reason_code, '(comment only)') AS reasonCode, COALESCE(MAX(f.reason_display), '') AS reasonDisplay, COUNT(DISTINCT f.card_uuid) AS cards
+       FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid JOIN advice a ON a.id = c.advice_id
+       ${w ? `${w} AND` : 'WHERE'} f.outcome = 'overridden' GROUP BY 1, 2`,
+    );
+    const verdictsByWeek = all<OverviewAggregates['verdictsByWeek'][number]>(
+      `SELECT ${WEEK} AS week, ${verdictOf('responsiveness')} AS responsiveness, ${verdictOf('tolerance')} AS tolerance, COUNT(*) AS answers FROM advice a ${w} GROUP BY 1, 2, 3`,
+    );
+    // SQLite has no percentile function: nearest rank from ROW_NUMBER and the day's count (⌈p·n⌉ = (p%·n + 99) / 100 in integers).
+    const latencyByDay = all<OverviewAggregates['latencyByDay'][number]>(
+      `WITH l AS (SELECT ${DAY} AS day, CAST(json_extract(a.record, '$.timings.totalMs') AS REAL) AS ms FROM advice a ${w}),
+       r AS (SELECT day, ms, ROW_NUMBER() OVER (PARTITION BY day ORDER BY ms) AS rn, COUNT(*) OVER (PARTITION BY day) AS n FROM l WHERE ms IS NOT NULL)
+       SELECT day, MAX(n) AS answers, MIN(CASE WHEN rn >= (n * 50 + 99) / 100 THEN ms END) AS p50Ms, MIN(CASE WHEN rn >= (n * 99 + 99) / 100 THEN ms END) AS p99Ms
+       FROM r GROUP BY day`,
+    );
+    return normaliseOverview({ answersByDay, feedbackByWeek, overrideReasonsByWeek, verdictsByWeek, latencyByDay });
   }
 
   /** Cards accepted and cards overridden per advice (distinct cards, as feedbackStats counts them; not feedback rows). */

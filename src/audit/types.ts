@@ -76,7 +76,16 @@ export interface AdviceSummary {
    * list agrees with feedbackStats: a card accepted twice counts once; a card both accepted and overridden, in both.
    */
   feedback: { accepted: number; overridden: number };
+  /** The answer's verdicts, when it has them (a 412 answer has none). */
+  responsiveness?: string;
+  tolerance?: string;
 }
+
+/** The most urgent indicator of an answer's cards (critical > warning > info); `none` for an answer without cards. */
+export type TopIndicator = 'critical' | 'warning' | 'info' | 'none';
+export const TOP_INDICATORS: readonly TopIndicator[] = ['critical', 'warning', 'info', 'none'];
+/** An answer's feedback: some card accepted, some card overridden, or no feedback on any of its cards. */
+export type FeedbackFilter = 'accepted' | 'overridden' | 'none';
 
 export interface AdviceQuery {
   patientId?: string;
@@ -86,6 +95,43 @@ export interface AdviceQuery {
   limit: number;
   /** Opaque cursor from a previous page (the last seq seen). */
   cursor?: string;
+  /** The answer's most urgent card indicator. */
+  indicator?: TopIndicator;
+  /** Verdict values as stored (`none`: the answer has no such verdict). */
+  responsiveness?: string;
+  tolerance?: string;
+  feedback?: FeedbackFilter;
+}
+
+/** Filters of the console's aggregates (recorded time, inclusive, as UTC text; service). */
+export interface OverviewQuery {
+  from?: string;
+  to?: string;
+  service?: string;
+}
+
+/**
+ * The console overview, computed in SQL by the store (GROUP BY day or week; nothing is loaded record by record).
+ * Days are UTC calendar days of `recordedAt` (YYYY-MM-DD); weeks are ISO weeks named by their Monday (YYYY-MM-DD).
+ * Every list is sorted by its keys in code-unit order, so both stores give the same arrays.
+ */
+export interface OverviewAggregates {
+  /** Answers (every stored record, 412s included) per day, service and most urgent card indicator. */
+  answersByDay: Array<{ day: string; service: string; indicator: TopIndicator; answers: number }>;
+  /**
+   * Cards per week of their answer and card kind, each counted once by its feedback: overridden (any overriding
+   * feedback, even if also accepted), accepted (accepted, never overridden), or none.
+   */
+  feedbackByWeek: Array<{ week: string; cardKind: string; cards: number; accepted: number; overridden: number; noFeedback: number }>;
+  /** Overridden cards per week of their answer and override reason code (`(comment only)` for none). */
+  overrideReasonsByWeek: Array<{ week: string; reasonCode: string; reasonDisplay: string; cards: number }>;
+  /** Answers per week by responsiveness × tolerance verdict (`none` where the answer has no such verdict). */
+  verdictsByWeek: Array<{ week: string; responsiveness: string; tolerance: string; answers: number }>;
+  /**
+   * Total latency (timings.totalMs) per day: p50 and p99 by the nearest-rank method (the value at rank ⌈p·n⌉ of the
+   * day's sorted latencies; PostgreSQL percentile_disc, SQLite ROW_NUMBER over the day), rounded to 0.1 ms.
+   */
+  latencyByDay: Array<{ day: string; answers: number; p50Ms: number; p99Ms: number }>;
 }
 
 /** Filters of a streamed read (records oldest first, by seq). */
@@ -141,6 +187,8 @@ export interface AuditStore {
    */
   records(q: RecordStreamQuery): AsyncIterable<StoredAdvice>;
   feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats>;
+  /** The console overview's aggregates, computed in SQL. */
+  overview(q: OverviewQuery): Promise<OverviewAggregates>;
   /** Recomputes the hash chain; reports the first record that does not match. */
   verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }>;
   ping(): Promise<void>;

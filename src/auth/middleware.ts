@@ -135,7 +135,7 @@ export interface RequireAuditAccessOptions {
 const digest = (s: string): Buffer => createHash('sha256').update(s, 'utf8').digest();
 
 /** Matches a presented static token in constant time (over SHA-256 digests, so its length does not leak). */
-function staticTokenMatcher(token: string): (presented: string) => boolean {
+export function staticTokenMatcher(token: string): (presented: string) => boolean {
   const expected = digest(token);
   return (presented) => timingSafeEqual(digest(presented), expected);
 }

@@ -49,6 +49,8 @@ export const envSchema = z.object({
   TIDEMARK_LINK_KEY: z.string().min(32).optional(),
   /** How long a reasoning-page link stays valid, minutes (default 12 h). */
   TIDEMARK_LINK_LIFETIME_MIN: intFrom(1, 7 * 24 * 60).default(720),
+  /** How long a console session lasts after sign-in, minutes (default 30; the console is at /console). */
+  TIDEMARK_CONSOLE_SESSION_MIN: intFrom(1, 12 * 60).default(30),
   /** The site's IANA time zone: times on the reasoning page are shown in it (default UTC). */
   TIDEMARK_TIME_ZONE: z.string().min(1).refine(isTimeZone, 'not an IANA time zone known to this Node.js (e.g. Europe/Berlin)').default('UTC'),
   /** EHR origins allowed to frame the reasoning page (CSP frame-ancestors), comma-separated; none by default. */

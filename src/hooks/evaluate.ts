@@ -160,7 +160,7 @@ export function advise(snapshot: PatientSnapshot, now: Date, deps: Pick<Evaluate
 
 /** Stage 5: which cards, in the catalogue's words, each with the link to its reasoning page when links are on. */
 export function compose(call: ParsedCall, service: ServiceDefinition, snapshot: PatientSnapshot, advice: Advice, gathered: Gathered,
-  deps: Pick<EvaluateDeps, 'catalogue' | 'publicUrl' | 'adviceLink'>, adviceId: string): Composed {
+  deps: Pick<EvaluateDeps, 'catalogue' | 'publicUrl' | 'adviceLink' | 'timeZone'>, adviceId: string): Composed {
   const { hook, ctx } = call;
   const purposes = Object.fromEntries(Object.entries(service.prefetch).map(([k, q]) => [k, q.purpose]));
   const models = composeCards({

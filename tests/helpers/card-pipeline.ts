@@ -9,7 +9,7 @@ import type { Advice } from '../../src/assess/types.js';
 import { loadCatalogue } from '../../src/cards/catalogue.js';
 import { composeCards } from '../../src/cards/compose.js';
 import { renderCard } from '../../src/cards/render.js';
-import type { GatherOutcome } from '../../src/fhir/gather.js';
+import type { GatherOutcome } from '../../src/hooks/gather-types.js';
 import type { Card, HookName } from '../../src/hooks/schemas.js';
 import { buildSnapshot } from '../../src/snapshot/normalize.js';
 import type { PatientSnapshot } from '../../src/snapshot/types.js';

@@ -615,6 +615,126 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     expect(await store.feedbackStats({ to: at(-1) })).toEqual({ byKind: [], byReason: [] });
   });
 
+  describe('the console overview and the list filters (computed in SQL)', () => {
+    // An invented trail with counts known by construction. 2031-03-02 is a Sunday (ISO week of Monday 2031-02-24),
+    // 2031-03-03 a Monday and 2031-03-09 the Sunday of that week, 2031-03-10 the next Monday.
+    const rec = (iso: string, o: { service?: string; kinds?: string[]; indicators?: Array<'info' | 'warning' | 'critical'>; ms: number; verdicts?: [string, string]; failed?: boolean }): AdviceRecord => {
+      const r = adviceRecord({ service: o.service ?? 'bolus-select', kinds: o.kinds ?? ['volume-ok'], totalMs: o.ms });
+      r.recordedAt = iso;
+      r.cards.forEach((c, i) => (c.indicator = o.indicators?.[i] ?? c.indicator));
+      if (o.failed) {
+        const { snapshot: _s, advice: _a, ...rest } = r;
+        return { ...rest, outcome: 'precondition-failed' };
+      }
+      if (o.verdicts) {
+        r.advice = {
+          rulesVersion: r.rulesVersion, now: iso, findings: [], ruleErrors: [],
+          responsiveness: { value: o.verdicts[0], rationale: 'invented', decidingRules: [] },
+          tolerance: { value: o.verdicts[1], rationale: 'invented', decidingRules: [] },
+        } as unknown as NonNullable<AdviceRecord['advice']>;
+      }
+      return r;
+    };
+    const r1 = rec('2031-03-02T08:00:00.000Z', { ms: 10, verdicts: ['likely', 'adequate'] });
+    const r2 = rec('2031-03-02T09:00:00.000Z', { ms: 30, kinds: ['volume-ok', 'check-tolerance'], verdicts: ['likely', 'limited'] });
+    const r3 = rec('2031-03-02T23:59:59.999Z', { ms: 20, service: 'fluid-overview', kinds: [], failed: true });
+    const r4 = rec('2031-03-03T00:00:00.000Z', { ms: 4, verdicts: ['unlikely', 'poor'] });
+    const r5 = rec('2031-03-03T01:00:00.000Z', { ms: 100, indicators: ['critical'], verdicts: ['likely', 'adequate'] });
+    const r6to8 = [1, 2, 3].map((ms, i) => rec(`2031-03-03T0${2 + i}:00:00.000Z`, { ms, verdicts: ['likely', 'adequate'] }));
+    const r9 = rec('2031-03-09T12:00:00.000Z', { ms: 7.25, indicators: ['info'], verdicts: ['indeterminate', 'not-known'] });
+    // 100 answers on one day with latencies 1..100 ms: nearest rank gives p50 = 50 and p99 = 99 (interpolation would not).
+    const hundred = Array.from({ length: 100 }, (_, i) => rec(`2031-03-10T10:${String(Math.floor(i / 2)).padStart(2, '0')}:0${i % 2}.000Z`, { ms: 100 - i, service: 'fluid-overview', kinds: [] }));
+    const all = [r1, r2, r3, r4, r5, ...r6to8, r9, ...hundred];
+
+    async function seeded(): Promise<void> {
+      await open();
+      await appendAll(all);
+      const [c1] = cardsOf(r1) as [string];
+      const [c2a, c2b] = cardsOf(r2) as [string, string];
+      const [c4] = cardsOf(r4) as [string];
+      const notHypo = { code: 'not-hypovolaemic', display: 'Judged not hypovolaemic' };
+      await store.addFeedback([
+        feedbackRow(c1),
+        feedbackRow(c2a, { outcome: 'overridden', overrideReason: notHypo }),
+        // accepted and then overridden: counts once, as overridden
+        feedbackRow(c2b, { outcomeTimestamp: at(40) }),
+        feedbackRow(c2b, { outcome: 'overridden', userComment: 'changed my mind', outcomeTimestamp: at(41) }),
+        feedbackRow(c4, { outcome: 'overridden', overrideReason: notHypo }),
+      ]);
+    }
+
+    it('answers per day by service and indicator, feedback per card kind per week, reasons, verdict mix, latency percentiles', async () => {
+      await seeded();
+      expect(await store.overview({})).toEqual({
+        answersByDay: [
+          { day: '2031-03-02', service: 'bolus-select', indicator: 'warning', answers: 2 },
+          { day: '2031-03-02', service: 'fluid-overview', indicator: 'none', answers: 1 },
+          { day: '2031-03-03', service: 'bolus-select', indicator: 'critical', answers: 1 },
+          { day: '2031-03-03', service: 'bolus-select', indicator: 'warning', answers: 4 },
+          { day: '2031-03-09', service: 'bolus-select', indicator: 'info', answers: 1 },
+          { day: '2031-03-10', service: 'fluid-overview', indicator: 'none', answers: 100 },
+        ],
+        feedbackByWeek: [
+          { week: '2031-02-24', cardKind: 'check-tolerance', cards: 1, accepted: 0, overridden: 1, noFeedback: 0 },
+          { week: '2031-02-24', cardKind: 'volume-ok', cards: 2, accepted: 1, overridden: 1, noFeedback: 0 },
+          { week: '2031-03-03', cardKind: 'volume-ok', cards: 6, accepted: 0, overridden: 1, noFeedback: 5 },
+        ],
+        overrideReasonsByWeek: [
+          { week: '2031-02-24', reasonCode: '(comment only)', reasonDisplay: '', cards: 1 },
+          { week: '2031-02-24', reasonCode: 'not-hypovolaemic', reasonDisplay: 'Judged not hypovolaemic', cards: 1 },
+          { week: '2031-03-03', reasonCode: 'not-hypovolaemic', reasonDisplay: 'Judged not hypovolaemic', cards: 1 },
+        ],
+        verdictsByWeek: [
+          { week: '2031-02-24', responsiveness: 'likely', tolerance: 'adequate', answers: 1 },
+          { week: '2031-02-24', responsiveness: 'likely', tolerance: 'limited', answers: 1 },
+          { week: '2031-02-24', responsiveness: 'none', tolerance: 'none', answers: 1 },
+          { week: '2031-03-03', responsiveness: 'indeterminate', tolerance: 'not-known', answers: 1 },
+          { week: '2031-03-03', responsiveness: 'likely', tolerance: 'adequate', answers: 4 },
+          { week: '2031-03-03', responsiveness: 'unlikely', tolerance: 'poor', answers: 1 },
+          { week: '2031-03-10', responsiveness: 'none', tolerance: 'none', answers: 100 },
+        ],
+        latencyByDay: [
+          { day: '2031-03-02', answers: 3, p50Ms: 20, p99Ms: 30 },
+          { day: '2031-03-03', answers: 5, p50Ms: 3, p99Ms: 100 },
+          { day: '2031-03-09', answers: 1, p50Ms: 7.3, p99Ms: 7.3 },
+          { day: '2031-03-10', answers: 100, p50Ms: 50, p99Ms: 99 },
+        ],
+      });
+      // Bounds on the recorded time (inclusive) and the service.
+      const week = await store.overview({ from: '2031-03-03T00:00:00.000Z', to: '2031-03-09T23:59:59.999Z', service: 'bolus-select' });
+      expect(week.answersByDay.map((d) => [d.day, d.indicator, d.answers])).toEqual([['2031-03-03', 'critical', 1], ['2031-03-03', 'warning', 4], ['2031-03-09', 'info', 1]]);
+      expect(week.latencyByDay).toEqual([{ day: '2031-03-03', answers: 5, p50Ms: 3, p99Ms: 100 }, { day: '2031-03-09', answers: 1, p50Ms: 7.3, p99Ms: 7.3 }]);
+      expect(week.feedbackByWeek).toEqual([{ week: '2031-03-03', cardKind: 'volume-ok', cards: 6, accepted: 0, overridden: 1, noFeedback: 5 }]);
+      expect((await store.overview({ service: 'fluid-overview' })).feedbackByWeek).toEqual([]);
+      expect(await store.overview({ to: '2031-03-01T00:00:00.000Z' })).toEqual({ answersByDay: [], feedbackByWeek: [], overrideReasonsByWeek: [], verdictsByWeek: [], latencyByDay: [] });
+    });
+
+    it('the list filters by most urgent indicator, verdicts and feedback outcome, newest first, and carries the verdicts', async () => {
+      await seeded();
+      const ids = async (q: Omit<Parameters<AuditStore['list']>[0], 'limit'>): Promise<string[]> => (await store.list({ limit: 200, ...q })).items.map((i) => i.id);
+      expect(await ids({ indicator: 'critical' })).toEqual([r5.id]);
+      expect(await ids({ indicator: 'warning', from: '2031-03-02T00:00:00.000Z', to: '2031-03-02T23:59:59.999Z' })).toEqual([r2.id, r1.id]);
+      expect(await ids({ indicator: 'none' })).toHaveLength(101);
+      expect(await ids({ responsiveness: 'likely', tolerance: 'adequate' })).toEqual([...r6to8].reverse().map((r) => r.id).concat([r5.id, r1.id]));
+      expect(await ids({ responsiveness: 'none', service: 'fluid-overview', to: '2031-03-03T00:00:00.000Z' })).toEqual([r3.id]);
+      expect(await ids({ feedback: 'overridden' })).toEqual([r4.id, r2.id]);
+      expect(await ids({ feedback: 'accepted' })).toEqual([r2.id, r1.id]);
+      const none = await ids({ feedback: 'none' });
+      expect(none).toHaveLength(all.length - 3);
+      expect(none).not.toContain(r1.id);
+      expect(await ids({ feedback: 'overridden', indicator: 'warning', responsiveness: 'unlikely' })).toEqual([r4.id]);
+      // Filters and the cursor together: pages of 2 over the five likely/adequate answers.
+      const p1 = await store.list({ limit: 2, responsiveness: 'likely', tolerance: 'adequate' });
+      const p2 = await store.list({ limit: 2, responsiveness: 'likely', tolerance: 'adequate', ...(p1.nextCursor ? { cursor: p1.nextCursor } : {}) });
+      const p3 = await store.list({ limit: 2, responsiveness: 'likely', tolerance: 'adequate', ...(p2.nextCursor ? { cursor: p2.nextCursor } : {}) });
+      expect([...p1.items, ...p2.items, ...p3.items].map((i) => i.id)).toEqual(await ids({ responsiveness: 'likely', tolerance: 'adequate' }));
+      expect(p3.nextCursor).toBeUndefined();
+      const [one] = (await store.list({ limit: 1, indicator: 'critical' })).items;
+      expect(one).toMatchObject({ id: r5.id, responsiveness: 'likely', tolerance: 'adequate', indicators: ['critical'] });
+      expect((await store.list({ limit: 1, responsiveness: 'none', service: 'fluid-overview', to: '2031-03-03T00:00:00.000Z' })).items[0]).not.toHaveProperty('responsiveness');
+    });
+  });
+
   it('closes cleanly, twice', async () => {
     await open();
     await store.close();
