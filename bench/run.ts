@@ -376,7 +376,10 @@ async function main(): Promise<void> {
     results['fhir'] = r;
     const c = await ceilingFor('fhir', opts.fhirRate);
     printCase(`(2) order-select, no prefetch: the service queries the embedded FHIR server, 12 queries a call, at most ${opts.fhirConcurrency ?? 8} at once (${r.cards} cards per answer)`, r.run, c, opts.fhirRate);
-    if (r.timings) (printFhirTimings('closed loop', r.timings.closed), printFhirTimings('fixed rate', r.timings.rate));
+    if (r.timings) {
+      printFhirTimings('closed loop', r.timings.closed);
+      printFhirTimings('fixed rate', r.timings.rate);
+    }
     out('    (the ceiling parses the small body and does no FHIR query: the ratio shows the whole cost of gathering; under the closed loop the');
     out('    embedded FHIR server, one process, is the bottleneck and its queue is in every query time)');
     out();
@@ -388,7 +391,10 @@ async function main(): Promise<void> {
     const c = await ceilingFor('view');
     const d = await durableFor('view');
     printCase(`(3) patient-view, full prefetch (${r.cards} cards per answer)`, r.run, c, opts.rate, d);
-    if (r.timings) (printTimings('closed loop', r.timings.closed), printTimings('fixed rate', r.timings.rate));
+    if (r.timings) {
+      printTimings('closed loop', r.timings.closed);
+      printTimings('fixed rate', r.timings.rate);
+    }
     out();
   }
 

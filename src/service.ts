@@ -9,7 +9,7 @@ import { openAuditStore } from './audit/open-store.js';
 import type { AuditStore } from './audit/types.js';
 import { loadCatalogue } from './cards/catalogue.js';
 import { ConfigError, type AppConfig } from './config/config.js';
-import { fhirFetcher } from './fhir/fetcher.js';
+import type { fhirFetcher } from './fhir/fetcher.js';
 import { createApp } from './http/app.js';
 import { createLogger } from './log.js';
 import { createMetrics } from './http/metrics.js';

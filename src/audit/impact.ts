@@ -190,11 +190,20 @@ export class ImpactTally {
           kindSeen.add('card');
           continue;
         }
-        if (x.indicator !== y.indicator) (note('indicator', kind, x.indicator, y.indicator), kindSeen.add('indicator'));
-        if (x.summary !== y.summary) (note('headline', kind, x.summary, y.summary), kindSeen.add('headline'));
+        if (x.indicator !== y.indicator) {
+          note('indicator', kind, x.indicator, y.indicator);
+          kindSeen.add('indicator');
+        }
+        if (x.summary !== y.summary) {
+          note('headline', kind, x.summary, y.summary);
+          kindSeen.add('headline');
+        }
         const sx = x.suggestions.join(' | ') || NONE;
         const sy = y.suggestions.join(' | ') || NONE;
-        if (sx !== sy) (note('suggestions', kind, sx, sy), kindSeen.add('suggestions'));
+        if (sx !== sy) {
+          note('suggestions', kind, sx, sy);
+          kindSeen.add('suggestions');
+        }
       }
       if (kindSeen.has('indicator')) k.indicator += 1;
       if (kindSeen.has('headline')) k.headline += 1;

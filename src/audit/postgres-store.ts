@@ -194,12 +194,9 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async overview(q: OverviewQuery): Promise<OverviewAggregates> {
-    const where: string[] = [];
-    const args: string[] = [];
-    if (q.service) (args.push(q.service), where.push(`a.service = $${args.length}`));
-    if (q.from) (args.push(q.from), where.push(`a.recorded_at >= $${args.length}`));
-    if (q.to) (args.push(q.to), where.push(`a.recorded_at <= $${args.length}`));
-    const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
+    const filters = adviceFilters(new Where('postgres'), q, 'a.');
+    const { args } = filters;
+    const w = filters.sql;
     const s = this.s;
     const all = async <T extends object>(sql: string): Promise<T[]> => (await this.pool.query<T>(sql, args)).rows;
     const [answersByDay, feedbackByWeek, overrideReasonsByWeek, verdictsByWeek, latencyByDay] = await Promise.all([

@@ -128,7 +128,10 @@ export class SqliteAuditStore implements AuditStore {
   }
 
   private failAll(e: unknown): void {
-    for (const [id, waiter] of this.waiting) (this.waiting.delete(id), waiter.reject(e));
+    for (const [id, waiter] of this.waiting) {
+      this.waiting.delete(id);
+      waiter.reject(e);
+    }
     this.settled();
   }
 
@@ -218,12 +221,9 @@ export class SqliteAuditStore implements AuditStore {
   }
 
   async overview(q: OverviewQuery): Promise<OverviewAggregates> {
-    const where: string[] = [];
-    const args: string[] = [];
-    if (q.service) (where.push('a.service = ?'), args.push(q.service));
-    if (q.from) (where.push('a.recorded_at >= ?'), args.push(q.from));
-    if (q.to) (where.push('a.recorded_at <= ?'), args.push(q.to));
-    const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
+    const filters = adviceFilters(new Where('sqlite'), q, 'a.');
+    const { args } = filters;
+    const w = filters.sql;
     const all = <T>(sql: string) => this.db.prepare(sql).all(...args) as T[];
     const answersByDay = all<OverviewAggregates['answersByDay'][number]>(
       `SELECT ${DAY} AS day, a.service AS service, ${TOP_INDICATOR} AS indicator, COUNT(*) AS answers FROM advice a ${w} GROUP BY 1, 2, 3`,
@@ -358,7 +358,10 @@ export class SqliteAuditStore implements AuditStore {
       this.writer = undefined;
       await new Promise<void>((resolve) => {
         const kill = setTimeout(() => void w.terminate(), 5000);
-        w.once('exit', () => (clearTimeout(kill), resolve()));
+        w.once('exit', () => {
+          clearTimeout(kill);
+          resolve();
+        });
         w.postMessage({ type: 'close' } satisfies WriterIn);
       });
     }

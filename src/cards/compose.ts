@@ -108,9 +108,15 @@ function findingLine(f: Finding, snapshot: PatientSnapshot, cat: Catalogue, t: T
   const newestTime = timeOf([...f.evidence].filter((e) => !atNow(e)).sort((a, b) => a.ageMinutes - b.ageMinutes)[0]);
   if (test) {
     // A test by its change, as its threshold is read (Monnet 2016, Muller 2011, Monnet 2009: relative; Myatra 2017: absolute PPV points).
-    const change = test.kind === 'tidalVolumeChallenge'
-      ? `${absoluteChange(test.before, test.after) >= 0 ? '+' : '−'}${num(Math.abs(absoluteChange(test.before, test.after)))} points`
-      : test.before > 0 ? `${relativeChangePercent(test.before, test.after) >= 0 ? '+' : '−'}${num(Math.abs(Math.round(relativeChangePercent(test.before, test.after) * 10) / 10))} %` : '';
+    const signOf = (x: number) => (x >= 0 ? '+' : '−');
+    let change = '';
+    if (test.kind === 'tidalVolumeChallenge') {
+      const points = absoluteChange(test.before, test.after);
+      change = `${signOf(points)}${num(Math.abs(points))} points`;
+    } else if (test.before > 0) {
+      const pct = relativeChangePercent(test.before, test.after);
+      change = `${signOf(pct)}${num(Math.abs(Math.round(pct * 10) / 10))} %`;
+    }
     return withTime(`${kindLabel(`${test.kind}:${test.measured}`)} ${change} (${num(test.before)} → ${num(test.after)} ${unitDisplay(test.unit)})`.replace(/\s+/g, ' '), time);
   }
   const coded = snapshot.coded.find((c) => c.ref === main.ref && c.kind === main.kind);
@@ -135,11 +141,18 @@ const withTime = (what: string, time: string) => (time ? `${what}, ${time}` : wh
  * marker before context (responsiveness); a harm sign, then a severe, then a moderate limit (tolerance); a sign of
  * hypoperfusion before a normal sign, context last (perfusion).
  */
+const TIER_RANK: Record<string, number> = { dynamic: 0, static: 10 };
+const LIMIT_RANK: Record<string, number> = { severe: 1, moderate: 2 };
+
 function weight(f: Finding): number {
   switch (f.topic) {
-    case 'responsiveness': return (f.tier === 'dynamic' ? 0 : f.tier === 'static' ? 10 : 20) + (f.direction === 'for' || f.direction === 'against' ? 0 : 5);
-    case 'tolerance': return f.harmSign ? 0 : f.limit === 'severe' ? 1 : f.limit === 'moderate' ? 2 : f.contextOnly ? 4 : 3;
-    case 'perfusion': return f.contextOnly ? 3 : f.hypoperfusion ? 0 : 1;
+    case 'responsiveness': return (TIER_RANK[f.tier ?? ''] ?? 20) + (f.direction === 'for' || f.direction === 'against' ? 0 : 5);
+    case 'tolerance':
+      if (f.harmSign) return 0;
+      return LIMIT_RANK[f.limit] ?? (f.contextOnly ? 4 : 3);
+    case 'perfusion':
+      if (f.contextOnly) return 3;
+      return f.hypoperfusion ? 0 : 1;
     default: return 9;
   }
 }
@@ -177,7 +190,8 @@ function settleLine(advice: Advice, cat: Catalogue): string | undefined {
     if (!pos || !neg) return fill(P.settleFallback, { test: cat.testNames[k] });
     return fill(P.settle, { test: cat.testNames[k], positive: cat.testResults[k].positive, positiveOutcome: pos, negative: cat.testResults[k].negative, negativeOutcome: neg });
   }
-  const k = advice.recommendation ? advice.recommendation.nextTest : advice.responsiveness?.value === 'indeterminate' ? advice.responsiveness.nextTest : undefined;
+  const indeterminate = advice.responsiveness?.value === 'indeterminate' ? advice.responsiveness.nextTest : undefined;
+  const k = advice.recommendation ? advice.recommendation.nextTest : indeterminate;
   return k ? fill(P.settleFallback, { test: cat.testNames[k] }) : undefined;
 }
 
@@ -249,7 +263,8 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
     case 'smaller-aliquot': {
       const s = aliquot !== undefined ? smallerAliquot(order, aliquot, aliquotMin, T['smaller-aliquot'], vars) : undefined;
       // A critical card never recommends giving (docs/clinical-logic): there the decisive test, if any, is recommended.
-      out.push(s ? (critical ? s : { ...s, isRecommended: true }) : undefined, s ? reassess(aliquotReassessAt, vars.aliquotMl) : reassess());
+      const give = s && !critical ? { ...s, isRecommended: true } : s;
+      out.push(give, s ? reassess(aliquotReassessAt, vars.aliquotMl) : reassess());
       if (next) out.push(critical ? { ...test(next), isRecommended: true } : test(next));
       if (critical) out.push(withdraw());
       break;
@@ -309,8 +324,8 @@ export function composeCards(input: ComposeInput): CardModel[] {
   const quantity = advice.findings.flatMap((f) => (f.topic === 'tolerance' && f.status === 'assessed' && f.quantity ? [f.quantity] : []));
   const overload = quantity.find((q) => q.kind === 'fluid-overload-percent');
   const balanceQ = quantity.find((q) => q.kind === 'balance-ml');
-  const balancePhrase = overload ? fill(ph.overloadPercent, { value: overload.value.toFixed(1) })
-    : balanceQ ? fill(ph.balanceMl, { value: `${balanceQ.value >= 0 ? '+' : '−'}${Math.abs(Math.round(balanceQ.value))}` }) : '';
+  let balancePhrase = balanceQ ? fill(ph.balanceMl, { value: `${balanceQ.value >= 0 ? '+' : '−'}${Math.abs(Math.round(balanceQ.value))}` }) : '';
+  if (overload) balancePhrase = fill(ph.overloadPercent, { value: overload.value.toFixed(1) });
   const vars: Record<string, string> = {
     responsivenessPhrase, responsivenessPhraseLower: responsivenessPhrase.toLowerCase(), tolerancePhrase,
     tolerance: t, responsiveness: r, headline, balancePhrase, indicator: rec?.indicator ?? 'info',

@@ -78,14 +78,15 @@ export interface RenderContext {
 
 /** A URL of ours inside a Markdown link destination: nothing in it may close the link. */
 function linkUrl(url: string): string {
-  return encodeURI(decodeURI(url)).replace(/[()<>\[\]]/g, (c) => `%${c.charCodeAt(0).toString(16).toUpperCase()}`);
+  return encodeURI(decodeURI(url)).replace(/[()<>[\]]/g, (c) => `%${c.charCodeAt(0).toString(16).toUpperCase()}`);
 }
 
 /** Markdown of one line: every text escaped (md), our own structure (bullet, bold label) added around it. */
 function lineMarkdown(l: DetailLine): string {
   const body = `${l.label ? `**${md(l.label)}:** ` : ''}${md(l.text, LINE_MAX)}`;
   // Two markers, so the questions and the findings stay two lists (CommonMark 0.31 §5.3: a new bullet character starts a new list).
-  return l.label ? `- ${body}` : l.bullet ? `* ${body}` : body;
+  if (l.label) return `- ${body}`;
+  return l.bullet ? `* ${body}` : body;
 }
 
 /** Groups lines into Markdown blocks: consecutive list lines form one list; other lines stand as paragraphs. */
@@ -93,7 +94,8 @@ function detailMarkdown(lines: DetailLine[], caution: string): string {
   const blocks: string[][] = [];
   let prevList: 'label' | 'bullet' | undefined;
   for (const l of lines) {
-    const kind = l.label ? 'label' : l.bullet ? 'bullet' : undefined;
+    let kind: 'label' | 'bullet' | undefined = l.bullet ? 'bullet' : undefined;
+    if (l.label) kind = 'label';
     if (kind && kind === prevList) blocks[blocks.length - 1]?.push(lineMarkdown(l));
     else blocks.push([lineMarkdown(l)]);
     prevList = kind;

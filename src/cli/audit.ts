@@ -43,7 +43,10 @@ export async function exportRecords(
     const page = await store.list({ ...q, limit: 200, ...(cursor ? { cursor } : {}) });
     for (const item of page.items) {
       const rec = await store.get(item.id);
-      if (rec) (write(rec, await store.feedbackFor(rec.id)), (n += 1));
+      if (rec) {
+        write(rec, await store.feedbackFor(rec.id));
+        n += 1;
+      }
     }
     cursor = page.nextCursor;
   } while (cursor);
@@ -152,7 +155,10 @@ export async function run(argv: string[], io: Io = { out: process.stdout, err: p
   }
   const cfg = loadConfig(io.env);
   const missing = missingAuditFile(cfg);
-  if (missing) return (io.err.write(`${missing}\n`), 1);
+  if (missing) {
+    io.err.write(`${missing}\n`);
+    return 1;
+  }
   const store = openAuditStore(cfg);
   try {
     await store.init();
@@ -178,7 +184,10 @@ export async function run(argv: string[], io: Io = { out: process.stdout, err: p
     if (command === 'replay') {
       const id = args[0] as string;
       const rec = await store.get(id);
-      if (!rec) return (io.err.write(`no advice record ${id}\n`), 1);
+      if (!rec) {
+        io.err.write(`no advice record ${id}\n`);
+        return 1;
+      }
       const thresholds = resolveThresholds(cfg.file.thresholds ?? {});
       const diff = replay(rec, thresholds, rulesVersion(loadCatalogue().digest, thresholds, undefined, cfg.siteMap));
       io.out.write(`${JSON.stringify(diff ?? { note: 'no snapshot to replay (a 412 answer)' }, null, 2)}\n`);
@@ -186,7 +195,10 @@ export async function run(argv: string[], io: Io = { out: process.stdout, err: p
     }
     return await impact(store, cfg, args, io);
   } catch (e) {
-    if (e instanceof UsageError) return (io.err.write(`${e.message}\n`), 2);
+    if (e instanceof UsageError) {
+      io.err.write(`${e.message}\n`);
+      return 2;
+    }
     throw e;
   } finally {
     await store.close();
@@ -195,5 +207,11 @@ export async function run(argv: string[], io: Io = { out: process.stdout, err: p
 
 const invoked = process.argv[1] ? `file://${process.argv[1]}` : '';
 if (import.meta.url === invoked) {
-  run(process.argv.slice(2)).then((code) => process.exit(code), (e: unknown) => (process.stderr.write(`${(e as Error).message}\n`), process.exit(1)));
+  run(process.argv.slice(2)).then(
+    (code) => process.exit(code),
+    (e: unknown) => {
+      process.stderr.write(`${(e as Error).message}\n`);
+      process.exit(1);
+    },
+  );
 }

@@ -35,7 +35,10 @@ export function dayRange(fromQ: unknown, toQ: unknown, now: Date): { ok: true; r
   const today = dayOf(now.getTime());
   if (fromQ !== undefined && fromQ !== '' && !isDate(fromQ)) return { ok: false, message: 'The start date must be a date such as 2031-03-01.' };
   if (toQ !== undefined && toQ !== '' && !isDate(toQ)) return { ok: false, message: 'The end date must be a date such as 2031-03-30.' };
-  const to = isDate(toQ) ? toQ : isDate(fromQ) ? dayOf(Math.min(Date.parse(`${fromQ}T00:00:00Z`) + (DEFAULT_RANGE_DAYS - 1) * DAY_MS, Date.parse(`${today}T00:00:00Z`))) : today;
+  // No end: the default span after the start, not past today; neither: the span up to today.
+  let to = today;
+  if (isDate(toQ)) to = toQ;
+  else if (isDate(fromQ)) to = dayOf(Math.min(Date.parse(`${fromQ}T00:00:00Z`) + (DEFAULT_RANGE_DAYS - 1) * DAY_MS, Date.parse(`${today}T00:00:00Z`)));
   const from = isDate(fromQ) ? fromQ : dayOf(Date.parse(`${to}T00:00:00Z`) - (DEFAULT_RANGE_DAYS - 1) * DAY_MS);
   const a = Date.parse(`${from}T00:00:00Z`);
   const b = Date.parse(`${to}T00:00:00Z`);

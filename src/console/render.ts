@@ -23,6 +23,12 @@ function doc(title: string, body: Raw): string {
 }
 
 /** The bar at the top of each signed-in page: the tabs and sign-out (plain links and one form). */
+/** The list's indicator cell: the answer's card indicators, or why it has none. */
+function indicatorsCell(i: { outcome: string; indicators: string[] }): string {
+  if (i.outcome !== 'answered') return 'refused (missing data)';
+  return i.indicators.length ? i.indicators.join(', ') : 'none';
+}
+
 export function consoleBar(active: ConsoleTab | undefined, chrome: Chrome): Raw {
   const tab = (t: ConsoleTab, href: string, label: string) => html`<a href="${href}"${t === active ? raw(' aria-current="page"') : ''}>${label}</a>`;
   return html`<nav class="console-bar" aria-label="Console"><span class="brand">Tidemark · audit console</span>${tab('overview', '/console', 'Overview')}${tab('advice', '/console/advice', 'Advice list')}${tab('impact', '/console/impact', 'Impact of a rule change')}${
@@ -139,8 +145,9 @@ async function figureHtml(f: Figure): Promise<Raw> {
       svg = undefined; // the table below still carries the numbers
     }
   }
+  const failed = f.chart.data.length ? html`<p class="empty">This plot could not be drawn; its numbers are in the table.</p>` : '';
   return html`<figure id="${f.id}" class="chart"><figcaption id="${f.id}-title">${f.title}</figcaption>${
-    svg ? html`<div role="img" aria-labelledby="${f.id}-title ${f.id}-summary" class="plot">${raw(svg)}</div>` : f.chart.data.length ? html`<p class="empty">This plot could not be drawn; its numbers are in the table.</p>` : ''
+    svg ? html`<div role="img" aria-labelledby="${f.id}-title ${f.id}-summary" class="plot">${raw(svg)}</div>` : failed
   }<p id="${f.id}-summary" class="summary">${f.summary}</p>${f.note ? html`<p class="meta">${f.note}</p>` : ''}<details><summary>Numbers of this plot as a table</summary>${f.table}</details></figure>`;
 }
 
@@ -200,7 +207,7 @@ ${select('feedback', 'Feedback', FEEDBACK, f.feedback)}
 <button type="submit">Filter</button></form>
 <p class="meta">Latest stored first (the trail's order). ${o.zoneNote} Feedback counts cards: accepted / overridden.</p>
 ${o.items.length
-    ? html`<table id="advice-list"><thead><tr><th>Recorded</th><th>Service</th><th>Patient</th><th>Card indicators</th><th>Responsiveness</th><th>Tolerance</th><th class="num">Feedback</th><th class="num">ms</th><th></th></tr></thead><tbody>${o.items.map((i) => html`<tr data-id="${i.id}"><td>${i.recordedAt.replace('T', ' ').slice(0, 19)}</td><td>${i.service}</td><td class="ref">${i.patientId ?? '–'}</td><td>${i.outcome === 'answered' ? (i.indicators.length ? i.indicators.join(', ') : 'none') : 'refused (missing data)'}</td><td>${i.responsiveness ?? '–'}</td><td>${i.tolerance ?? '–'}</td><td class="num">${i.feedback.accepted} / ${i.feedback.overridden}</td><td class="num">${i.latencyMs}</td><td><a href="/console/advice/${encodeURIComponent(i.id)}">Open</a></td></tr>`)}</tbody></table>`
+    ? html`<table id="advice-list"><thead><tr><th>Recorded</th><th>Service</th><th>Patient</th><th>Card indicators</th><th>Responsiveness</th><th>Tolerance</th><th class="num">Feedback</th><th class="num">ms</th><th></th></tr></thead><tbody>${o.items.map((i) => html`<tr data-id="${i.id}"><td>${i.recordedAt.replace('T', ' ').slice(0, 19)}</td><td>${i.service}</td><td class="ref">${i.patientId ?? '–'}</td><td>${indicatorsCell(i)}</td><td>${i.responsiveness ?? '–'}</td><td>${i.tolerance ?? '–'}</td><td class="num">${i.feedback.accepted} / ${i.feedback.overridden}</td><td class="num">${i.latencyMs}</td><td><a href="/console/advice/${encodeURIComponent(i.id)}">Open</a></td></tr>`)}</tbody></table>`
     : html`<p class="empty" id="advice-list-empty">No advice matches these filters.</p>`}
 <p class="pager">${o.firstHref ? html`<a href="${o.firstHref}">Newest</a> ` : ''}${o.nextHref ? html`<a href="${o.nextHref}" id="next-page">Older</a>` : ''}</p>`;
   return page('Advice list', 'advice', o.chrome, body);

@@ -38,8 +38,10 @@ function valuesList(f: PageFinding): Raw {
   return html`<details><summary>Derived values</summary><table><tbody>${f.figures.map(([k, v]) => html`<tr><td class="ref">${k}</td><td class="num">${v}</td></tr>`)}</tbody></table></details>`;
 }
 
+const DIRECTION_WORDS: Record<string, string> = { for: 'for volume', against: 'against volume' };
+
 function finding(f: PageFinding, zone: string, at: string): Raw {
-  return html`<div class="finding"><p class="text">${f.direction ? html`<span class="tag">${f.direction === 'for' ? 'for volume' : f.direction === 'against' ? 'against volume' : 'neutral'}</span>` : ''}${f.tier ? html`<span class="tag">${f.tier}</span>` : ''}${f.assessed ? '' : html`<span class="tag">not assessed</span>`}${f.text}</p>${
+  return html`<div class="finding"><p class="text">${f.direction ? html`<span class="tag">${DIRECTION_WORDS[f.direction] ?? 'neutral'}</span>` : ''}${f.tier ? html`<span class="tag">${f.tier}</span>` : ''}${f.assessed ? '' : html`<span class="tag">not assessed</span>`}${f.text}</p>${
     f.reason ? html`<p>Why: ${f.reason}</p>` : ''}${evidenceTable(f, zone, at)}${valuesList(f)}<p class="meta">Rule <code>${f.ruleId}</code>${f.source ? html` · Source: ${f.source}` : ''}</p></div>`;
 }
 
@@ -52,11 +54,9 @@ function whatIfOutcome(o: PageWhatIfOutcome | undefined, result: 'positive' | 'n
 function whatIfSection(w: PageWhatIf | undefined): Raw {
   const head = html`<h2 id="what-if-h">What would change the advice</h2>`;
   if (!w) return html`<section id="what-if" aria-labelledby="what-if-h">${head}<p class="empty">Not worked out for this advice (no responsiveness verdict, or made by an earlier rules version).</p></section>`;
-  const lead = w.decisive
-    ? html`<p id="what-if-decisive">The test that would settle it: <strong>${w.decisive}</strong> (the first feasible test, in the order the advice prefers for this patient, whose result would change the verdict or the advice).</p>`
-    : w.settled
-      ? html`<p id="what-if-decisive">The responsiveness verdict already rests on a test with a flow measurement, so no further test is named as deciding; the table still shows what each result would do.</p>`
-      : html`<p id="what-if-decisive">No feasible test would change the verdict or the advice now.</p>`;
+  let lead = html`<p id="what-if-decisive">No feasible test would change the verdict or the advice now.</p>`;
+  if (w.settled) lead = html`<p id="what-if-decisive">The responsiveness verdict already rests on a test with a flow measurement, so no further test is named as deciding; the table still shows what each result would do.</p>`;
+  if (w.decisive) lead = html`<p id="what-if-decisive">The test that would settle it: <strong>${w.decisive}</strong> (the first feasible test, in the order the advice prefers for this patient, whose result would change the verdict or the advice).</p>`;
   return html`<section id="what-if" aria-labelledby="what-if-h">${head}${lead}<p class="meta">For each test the advice can offer: whether it can be done for this patient now, and if so what a result just past its published threshold (positive) or clearly below it (negative) would do, worked out by re-running the same rules with that one result added. These results are hypothetical; nothing in this table was measured.</p>
 <table class="what-if"><thead><tr><th>Test</th><th>Feasible now</th><th>If positive</th><th>If negative</th></tr></thead><tbody>${w.rows.map((r) => html`<tr data-test="${r.code}" data-feasible="${r.feasible ? 'yes' : 'no'}"${r.decisive ? raw(' data-decisive="yes"') : ''}><td><strong>${r.test}</strong>${r.decisive ? html` <span class="tag">decisive</span>` : ''}${
     r.source ? html`<p class="meta">Threshold: ${r.source}</p>` : ''}</td>${

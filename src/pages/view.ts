@@ -174,11 +174,17 @@ function gapsOf(rec: AdviceRecord): PageGap[] {
   for (const f of rec.findings) {
     if (f.status !== 'not-assessed') continue;
     const why = f.reason ?? 'not assessed';
-    const kind: GapKind = f.gap ? (GAP_WORDS[f.gap] ?? 'set aside') : NOT_RECORDED.test(why) ? 'missing' : STALE.test(why) ? 'stale' : 'set aside';
+    const kind: GapKind = f.gap ? (GAP_WORDS[f.gap] ?? 'set aside') : gapKindOfText(why);
     gaps.push({ kind, what: f.text, why: f.gap && !GAP_WORDS[f.gap] ? `${f.gap.replace(/-/g, ' ')}: ${why}` : why, evidence: evidenceOf(f) });
   }
   for (const x of rec.snapshot?.excluded ?? []) gaps.push({ kind: 'set aside', what: x.kind ? kindLabel(x.kind) : x.ref, why: `${x.reason}: ${x.detail}`, ref: x.ref, evidence: [] });
   return gaps;
+}
+
+/** A gap with no typed kind (an older record), by the words of its reason. */
+function gapKindOfText(why: string): GapKind {
+  if (NOT_RECORDED.test(why)) return 'missing';
+  return STALE.test(why) ? 'stale' : 'set aside';
 }
 
 function assumedText(o: WhatIfOutcome): string {
@@ -186,7 +192,7 @@ function assumedText(o: WhatIfOutcome): string {
   const relative = o.assumed.changePercent !== undefined;
   const change = relative ? o.assumed.changePercent! : (o.assumed.changeAbsolute ?? 0);
   const unit = relative ? ' %' : ' points';
-  const sign = change > 0 ? '+' : change < 0 ? '−' : '±';
+  const sign = ['−', '±', '+'][Math.sign(change) + 1];
   const thr = o.assumed.threshold !== undefined ? ` (threshold ${o.assumed.strict ? '>' : '≥'} ${fmt(o.assumed.threshold, 2)}${unit})` : '';
   return `${on} ${sign}${fmt(Math.abs(change), 2)}${unit}${thr}`;
 }
@@ -212,6 +218,12 @@ function whatIfOf(advice: Advice, words: ViewInput['words']): PageWhatIf | undef
     ...(w.decisive ? { decisive: WHAT_IF_TEST_WORDS[w.decisive] ?? w.decisive } : {}),
     settled: advice.responsiveness?.confidence === 'high',
   };
+}
+
+/** The patient's reference: the snapshot's, else the one the call named. */
+function patientRefOf(rec: AdviceRecord): { patientRef?: string } {
+  if (rec.snapshot?.patient.ref) return { patientRef: rec.snapshot.patient.ref };
+  return rec.patientId ? { patientRef: `Patient/${rec.patientId}` } : {};
 }
 
 export function toPageView(input: ViewInput): PageView {
@@ -252,7 +264,7 @@ export function toPageView(input: ViewInput): PageView {
   const whatIf = advice ? whatIfOf(advice, words) : undefined;
   return {
     adviceId: rec.id, service: rec.service, hook: rec.hook,
-    ...(rec.snapshot?.patient.ref ? { patientRef: rec.snapshot.patient.ref } : rec.patientId ? { patientRef: `Patient/${rec.patientId}` } : {}),
+    ...patientRefOf(rec),
     ...(rec.snapshot?.encounter?.ref ? { encounterRef: rec.snapshot.encounter.ref } : {}),
     recordedAt: rec.recordedAt,
     adviceAt: advice?.now ?? rec.snapshot?.now ?? rec.recordedAt,

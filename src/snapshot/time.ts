@@ -47,7 +47,8 @@ function parse(raw: string): FhirTime | undefined {
     const d = new Date(0);
     d.setUTCFullYear(year, (month ?? 1) - 1, day ?? 1); // setUTCFullYear: years 0–99 are not shifted to 19xx
     ms = d.getTime();
-    precision = day !== undefined ? 'day' : month !== undefined ? 'month' : 'year';
+    precision = month !== undefined ? 'month' : 'year';
+    if (day !== undefined) precision = 'day';
   } else {
     const frac = m[9] ? Math.floor(Number(`0${m[9]}`) * 1000) : 0;
     const d = new Date(0);

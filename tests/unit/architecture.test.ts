@@ -9,7 +9,8 @@ const SRC = resolve(__dirname, '../../src');
 function files(dir: string): string[] {
   return readdirSync(dir).flatMap((n) => {
     const p = join(dir, n);
-    return statSync(p).isDirectory() ? files(p) : p.endsWith('.ts') && !p.endsWith('.d.ts') ? [p] : [];
+    if (statSync(p).isDirectory()) return files(p);
+    return p.endsWith('.ts') && !p.endsWith('.d.ts') ? [p] : [];
   });
 }
 const all = files(SRC);

@@ -41,7 +41,8 @@ export function flowMonitorKind(ctx: RuleContext): FlowMonitorKind | undefined {
  */
 export function currentHeartLungIndex(ctx: RuleContext): 'ppv' | 'svv' | undefined {
   const current = (k: 'ppv' | 'svv') => { const st = latestReading(ctx.snapshot, k, ctx.now, ctx.w.ppvSvvMin).state; return st === 'fresh' || st === 'set-aside'; };
-  return current('ppv') ? 'ppv' : current('svv') ? 'svv' : undefined;
+  if (current('ppv')) return 'ppv';
+  return current('svv') ? 'svv' : undefined;
 }
 
 export function chooseNextTest(ctx: RuleContext): NextTestKind {
