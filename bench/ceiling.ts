@@ -23,7 +23,10 @@ const server: Server = app.listen(0, '127.0.0.1', () => {
   send({ type: 'ready', url: `http://127.0.0.1:${(server.address() as AddressInfo).port}` });
 });
 server.keepAliveTimeout = 30_000;
-onStop(() => new Promise<void>((r) => {
-  server.close(() => r());
-  server.closeAllConnections();
-}));
+onStop(
+  () =>
+    new Promise<void>((r) => {
+      server.close(() => r());
+      server.closeAllConnections();
+    }),
+);

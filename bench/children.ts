@@ -61,28 +61,38 @@ export async function startChild(o: StartOptions): Promise<Child> {
     live.delete(proc);
     for (const w of waiters.splice(0)) w.reject(new Error(`${o.name} exited (${code ?? signal}); see ${o.logFile}`));
   });
-  const next = (type: ChildMessage['type'], timeoutMs = 60_000) => new Promise<ChildMessage>((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`${o.name}: no '${type}' message within ${timeoutMs} ms (log: ${o.logFile})`)), timeoutMs);
-    const settle = <A>(f: (a: A) => void) => (a: A) => {
-      clearTimeout(timer);
-      f(a);
-    };
-    waiters.push({ type, resolve: settle(resolve), reject: settle(reject) });
-  });
+  const next = (type: ChildMessage['type'], timeoutMs = 60_000) =>
+    new Promise<ChildMessage>((resolve, reject) => {
+      const timer = setTimeout(
+        () => reject(new Error(`${o.name}: no '${type}' message within ${timeoutMs} ms (log: ${o.logFile})`)),
+        timeoutMs,
+      );
+      const settle =
+        <A>(f: (a: A) => void) =>
+        (a: A) => {
+          clearTimeout(timer);
+          f(a);
+        };
+      waiters.push({ type, resolve: settle(resolve), reject: settle(reject) });
+    });
   const ready = await next('ready');
   const child: Child = {
-    name: o.name, proc, rss, next,
+    name: o.name,
+    proc,
+    rss,
+    next,
     url: ready.type === 'ready' ? ready.url : '',
     send: (m) => void proc.send(m),
-    stop: () => new Promise<void>((resolve) => {
-      if (proc.exitCode !== null || proc.signalCode !== null) return resolve();
-      const kill = setTimeout(() => proc.kill('SIGKILL'), 15_000);
-      proc.once('exit', () => {
-        clearTimeout(kill);
-        resolve();
-      });
-      proc.send({ type: 'stop' } satisfies ParentMessage);
-    }),
+    stop: () =>
+      new Promise<void>((resolve) => {
+        if (proc.exitCode !== null || proc.signalCode !== null) return resolve();
+        const kill = setTimeout(() => proc.kill('SIGKILL'), 15_000);
+        proc.once('exit', () => {
+          clearTimeout(kill);
+          resolve();
+        });
+        proc.send({ type: 'stop' } satisfies ParentMessage);
+      }),
   };
   return child;
 }

@@ -19,11 +19,16 @@ if (!path) throw new Error('BENCH_DURABLE_PATH is required');
 const db = new Database(path);
 db.pragma('journal_mode = WAL');
 db.pragma('synchronous = FULL');
-db.exec('CREATE TABLE IF NOT EXISTS received (seq INTEGER PRIMARY KEY, at TEXT NOT NULL, body TEXT NOT NULL, prev TEXT NOT NULL, hash TEXT NOT NULL)');
+db.exec(
+  'CREATE TABLE IF NOT EXISTS received (seq INTEGER PRIMARY KEY, at TEXT NOT NULL, body TEXT NOT NULL, prev TEXT NOT NULL, hash TEXT NOT NULL)',
+);
 const insert = db.prepare('INSERT INTO received (at, body, prev, hash) VALUES (?, ?, ?, ?)');
 let prev = '0'.repeat(64);
 
-interface Pending { body: string; res: Response }
+interface Pending {
+  body: string;
+  res: Response;
+}
 let pending: Pending[] = [];
 let batches = 0;
 let rows = 0;
@@ -55,7 +60,9 @@ const answer = { cards: [] };
 const json = express.json({
   limit: '2mb',
   type: ['application/json', 'application/fhir+json', 'application/*+json'],
-  verify: (req: IncomingMessage, _res, buf) => { (req as IncomingMessage & { rawText?: string }).rawText = buf.toString('utf8'); },
+  verify: (req: IncomingMessage, _res, buf) => {
+    (req as IncomingMessage & { rawText?: string }).rawText = buf.toString('utf8');
+  },
 });
 app.post('/cds-services/:id', json, (req, res) => {
   const raw = (req as unknown as { rawText?: string }).rawText;
@@ -66,17 +73,22 @@ app.post('/cds-services/:id', json, (req, res) => {
   if (pending.length === 0) setImmediate(flush);
   pending.push({ body: raw, res });
 });
-app.get('/batches', (_req, res) => { res.json({ batches, rows }); });
+app.get('/batches', (_req, res) => {
+  res.json({ batches, rows });
+});
 
 const server: Server = app.listen(0, '127.0.0.1', () => {
   reportRss();
   send({ type: 'ready', url: `http://127.0.0.1:${(server.address() as AddressInfo).port}` });
 });
 server.keepAliveTimeout = 30_000;
-onStop(() => new Promise<void>((r) => {
-  server.close(() => {
-    db.close();
-    r();
-  });
-  server.closeAllConnections();
-}));
+onStop(
+  () =>
+    new Promise<void>((r) => {
+      server.close(() => {
+        db.close();
+        r();
+      });
+      server.closeAllConnections();
+    }),
+);

@@ -42,8 +42,12 @@ function copy(i: number): AdviceRecord {
   const cards = tpl.cards.map((c) => ({ ...c, uuid: randomUUID() }));
   const kinds = Object.values(tpl.cardKinds);
   return {
-    ...tpl, id: randomUUID(), hookInstance: randomUUID(), recordedAt: new Date(t0 + Math.floor((i / N) * year)).toISOString(),
-    cards, cardKinds: Object.fromEntries(cards.map((c, k) => [c.uuid as string, kinds[k] ?? 'unknown'])),
+    ...tpl,
+    id: randomUUID(),
+    hookInstance: randomUUID(),
+    recordedAt: new Date(t0 + Math.floor((i / N) * year)).toISOString(),
+    cards,
+    cardKinds: Object.fromEntries(cards.map((c, k) => [c.uuid as string, kinds[k] ?? 'unknown'])),
   };
 }
 
@@ -63,20 +67,29 @@ let peakRss = process.memoryUsage().rss;
 const baseHeap = peakHeap;
 const runStart = performance.now();
 const cpuStart = process.cpuUsage();
-const report = await impactOf(store.records({ outcome: 'answered' }), { thresholds: candidate, catalogue, rulesVersion: rulesVersion(digest, candidate) }, {
-  onProgress: (n) => {
-    if (n % 1000) return;
-    const m = process.memoryUsage();
-    peakHeap = Math.max(peakHeap, m.heapUsed);
-    peakRss = Math.max(peakRss, m.rss);
+const report = await impactOf(
+  store.records({ outcome: 'answered' }),
+  { thresholds: candidate, catalogue, rulesVersion: rulesVersion(digest, candidate) },
+  {
+    onProgress: (n) => {
+      if (n % 1000) return;
+      const m = process.memoryUsage();
+      peakHeap = Math.max(peakHeap, m.heapUsed);
+      peakRss = Math.max(peakRss, m.rss);
+    },
   },
-});
+);
 const runS = (performance.now() - runStart) / 1000;
 const cpu = process.cpuUsage(cpuStart);
 const cpuS = (cpu.user + cpu.system) / 1e6;
 if (report.replayed !== N) throw new Error(`replayed ${report.replayed} of ${N}`);
-out(`impact: ${report.replayed} records in ${runS.toFixed(1)} s = ${Math.round(N / runS)} records/s (CPU ${cpuS.toFixed(1)} s: ${(cpuS * 1000 / N).toFixed(2)} ms a record); ` +
-  `changed ${report.changed.any} (${report.changes.slice(0, 3).map((c) => `${c.dimension} ${c.from.slice(0, 30)} → ${c.to.slice(0, 30)}: ${c.count}`).join('; ')}); ` +
-  `heap ${mb(baseHeap)} MB before, peak ${mb(peakHeap)} MB; peak RSS ${mb(peakRss)} MB; node ${process.version}`);
+out(
+  `impact: ${report.replayed} records in ${runS.toFixed(1)} s = ${Math.round(N / runS)} records/s (CPU ${cpuS.toFixed(1)} s: ${((cpuS * 1000) / N).toFixed(2)} ms a record); ` +
+    `changed ${report.changed.any} (${report.changes
+      .slice(0, 3)
+      .map((c) => `${c.dimension} ${c.from.slice(0, 30)} → ${c.to.slice(0, 30)}: ${c.count}`)
+      .join('; ')}); ` +
+    `heap ${mb(baseHeap)} MB before, peak ${mb(peakHeap)} MB; peak RSS ${mb(peakRss)} MB; node ${process.version}`,
+);
 await store.close();
 if (!keep) rmSync(dir, { recursive: true, force: true });

@@ -11,7 +11,10 @@ export type ChildMessage =
   | { type: 'error'; message: string };
 
 export type ParentMessage =
-  | { type: 'stop' } | { type: 'load'; bundle: unknown } | { type: 'usage' } | { type: 'collect' }
+  | { type: 'stop' }
+  | { type: 'load'; bundle: unknown }
+  | { type: 'usage' }
+  | { type: 'collect' }
   /** bench/pg-append-child.ts: append copies of `record` for `seconds`, `concurrency` at a time. */
   | { type: 'append'; record: unknown; seconds: number; concurrency: number };
 

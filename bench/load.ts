@@ -64,11 +64,13 @@ export async function runLoad(o: LoadOptions): Promise<LoadResult> {
     body: o.body,
     ...(o.authorization
       ? {
-        requests: [{
-          method: 'POST' as const,
-          setupRequest: (req: autocannon.Request) => ({ ...req, headers: { ...req.headers, authorization: o.authorization!() } }),
-        }],
-      }
+          requests: [
+            {
+              method: 'POST' as const,
+              setupRequest: (req: autocannon.Request) => ({ ...req, headers: { ...req.headers, authorization: o.authorization!() } }),
+            },
+          ],
+        }
       : {}),
     connections: o.connections,
     duration: o.durationSec,
@@ -76,25 +78,25 @@ export async function runLoad(o: LoadOptions): Promise<LoadResult> {
     ...(o.rate !== undefined && !paced ? { overallRate: rate, ignoreCoordinatedOmission: true } : {}),
     ...(paced
       ? {
-        setupClient: (client: autocannon.Client) => {
-          // Pace this connection: its k-th request is due at t0 + i/rate + k·period (autocannon internals, 9.0.0).
-          const c = client as unknown as PacedClient;
-          const send = c._doRequest.bind(c);
-          let due = t0 + (clientIndex * 1000) / rate;
-          clientIndex += 1;
-          c._doRequest = (...args: unknown[]) => {
-            const now = performance.now();
-            const wait = due - now;
-            if (wait < -1) {
-              late += 1;
-              due = now; // behind: send now, and do not try to catch up with a burst
-            }
-            due += period;
-            if (wait > 0) setTimeout(() => (c.destroyed ? undefined : send(...args)), wait);
-            else send(...args);
-          };
-        },
-      }
+          setupClient: (client: autocannon.Client) => {
+            // Pace this connection: its k-th request is due at t0 + i/rate + k·period (autocannon internals, 9.0.0).
+            const c = client as unknown as PacedClient;
+            const send = c._doRequest.bind(c);
+            let due = t0 + (clientIndex * 1000) / rate;
+            clientIndex += 1;
+            c._doRequest = (...args: unknown[]) => {
+              const now = performance.now();
+              const wait = due - now;
+              if (wait < -1) {
+                late += 1;
+                due = now; // behind: send now, and do not try to catch up with a burst
+              }
+              due += period;
+              if (wait > 0) setTimeout(() => (c.destroyed ? undefined : send(...args)), wait);
+              else send(...args);
+            };
+          },
+        }
       : {}),
   };
   const started = performance.now();

@@ -12,15 +12,31 @@ export class NoopAuditStore implements AuditStore {
     this.seq += 1;
     return { seq: this.seq, hash: '0'.repeat(64) };
   }
-  async get(): Promise<undefined> { return undefined; }
-  async list(): Promise<{ items: [] }> { return { items: [] }; }
-  async cardOwner(): Promise<undefined> { return undefined; }
-  async addFeedback(rows: unknown[]): Promise<{ stored: number; duplicates: number }> { return { stored: 0, duplicates: rows.length }; }
-  async feedbackFor(): Promise<[]> { return []; }
+  async get(): Promise<undefined> {
+    return undefined;
+  }
+  async list(): Promise<{ items: [] }> {
+    return { items: [] };
+  }
+  async cardOwner(): Promise<undefined> {
+    return undefined;
+  }
+  async addFeedback(rows: unknown[]): Promise<{ stored: number; duplicates: number }> {
+    return { stored: 0, duplicates: rows.length };
+  }
+  async feedbackFor(): Promise<[]> {
+    return [];
+  }
   async *records(): AsyncGenerator<StoredAdvice> {}
-  async feedbackStats(): Promise<{ byKind: []; byReason: [] }> { return { byKind: [], byReason: [] }; }
-  async overview(): Promise<OverviewAggregates> { return { answersByDay: [], feedbackByWeek: [], overrideReasonsByWeek: [], verdictsByWeek: [], latencyByDay: [] }; }
-  async verifyChain(): Promise<{ ok: boolean; checked: number }> { return { ok: true, checked: 0 }; }
+  async feedbackStats(): Promise<{ byKind: []; byReason: [] }> {
+    return { byKind: [], byReason: [] };
+  }
+  async overview(): Promise<OverviewAggregates> {
+    return { answersByDay: [], feedbackByWeek: [], overrideReasonsByWeek: [], verdictsByWeek: [], latencyByDay: [] };
+  }
+  async verifyChain(): Promise<{ ok: boolean; checked: number }> {
+    return { ok: true, checked: 0 };
+  }
   async ping(): Promise<void> {}
   async close(): Promise<void> {}
 }

@@ -32,18 +32,45 @@ export function buildBenchPatient(now: Date): BenchPatient {
     c.num('heartRate', 98 + Math.round(i / 3) + wobble(i, 2), at);
     c.num('meanBp', 70 - Math.round(i / 4) + wobble(i, 1), at);
   }
-  c.series('cvp', [[18 * 60, 5], [12 * 60, 6], [6 * 60, 6], [20, 7]]);
-  c.series('lactate', [[20 * 60, 2.2], [8 * 60, 3.0], [35, 3.6]]);
-  c.series('albumin', [[20 * 60, 34]]).series('creatinine', [[20 * 60, 0.9], [35, 1.0]]);
+  c.series('cvp', [
+    [18 * 60, 5],
+    [12 * 60, 6],
+    [6 * 60, 6],
+    [20, 7],
+  ]);
+  c.series('lactate', [
+    [20 * 60, 2.2],
+    [8 * 60, 3.0],
+    [35, 3.6],
+  ]);
+  c.series('albumin', [[20 * 60, 34]]).series('creatinine', [
+    [20 * 60, 0.9],
+    [35, 1.0],
+  ]);
   c.codedSeries('ventilationMode', 'controlled-no-effort', [6 * 60, 60]);
   c.codedSeries('heartRhythm', 'sinus', [6 * 60, 60]);
-  c.series('tidalVolume', [[6 * 60, 480], [60, 480]]);
-  c.series('peep', [[6 * 60, 8], [60, 8]]).series('fio2', [[6 * 60, 40], [60, 40]]);
+  c.series('tidalVolume', [
+    [6 * 60, 480],
+    [60, 480],
+  ]);
+  c.series('peep', [
+    [6 * 60, 8],
+    [60, 8],
+  ]).series('fio2', [
+    [6 * 60, 40],
+    [60, 40],
+  ]);
   c.coded('chestStatus', 'closed', 10 * 60);
   c.num('intraAbdominalPressure', 9, 3 * 60);
-  c.series('ppv', [[90, 14], [12, 16]]);
+  c.series('ppv', [
+    [90, 14],
+    [12, 16],
+  ]);
   c.fluidGiven(b.FLUIDS.lactatedRinger, 1000, 22 * 60, 21 * 60);
-  c.shifts([[24 * 60, 12 * 60, 1800, 700], [12 * 60, 0, 900, 520]]);
+  c.shifts([
+    [24 * 60, 12 * 60, 1800, 700],
+    [12 * 60, 0, 900, 520],
+  ]);
   c.hourlyUrine(6 * 60, 0, (i) => 48 + wobble(i, 5));
   const draft = Chart.bolusDraft(BENCH_DRAFT_ID, BENCH_PATIENT, now, b.FLUIDS.lactatedRinger, 500, 20);
   const counts: Record<string, number> = {};
@@ -76,13 +103,17 @@ export function benchRequest(
     hookInstance: BENCH_HOOK_INSTANCE,
     ...('fhirServer' in route
       ? {
-        fhirServer: route.fhirServer,
-        fhirAuthorization: {
-          access_token: route.accessToken, token_type: 'Bearer', expires_in: 3600,
-          scope: 'patient/Patient.read patient/Encounter.read patient/Observation.read patient/Condition.read patient/MedicationAdministration.read patient/MedicationRequest.read',
-          subject: 'tidemark-bench-client', patient: BENCH_PATIENT,
-        },
-      }
+          fhirServer: route.fhirServer,
+          fhirAuthorization: {
+            access_token: route.accessToken,
+            token_type: 'Bearer',
+            expires_in: 3600,
+            scope:
+              'patient/Patient.read patient/Encounter.read patient/Observation.read patient/Condition.read patient/MedicationAdministration.read patient/MedicationRequest.read',
+            subject: 'tidemark-bench-client',
+            patient: BENCH_PATIENT,
+          },
+        }
       : {}),
     context: benchContext(p, hook),
     ...('prefetch' in route ? { prefetch: route.prefetch } : {}),

@@ -17,8 +17,12 @@ function copy(tpl: AdviceRecord): AdviceRecord {
   const cards = tpl.cards.map((c) => ({ ...c, uuid: randomUUID() }));
   const kinds = Object.values(tpl.cardKinds);
   return {
-    ...tpl, id: randomUUID(), hookInstance: randomUUID(), recordedAt: new Date().toISOString(),
-    cards, cardKinds: Object.fromEntries(cards.map((c, k) => [c.uuid as string, kinds[k] ?? 'unknown'])),
+    ...tpl,
+    id: randomUUID(),
+    hookInstance: randomUUID(),
+    recordedAt: new Date().toISOString(),
+    cards,
+    cardKinds: Object.fromEntries(cards.map((c, k) => [c.uuid as string, kinds[k] ?? 'unknown'])),
   };
 }
 

@@ -21,7 +21,8 @@ const replicaCounts = (arg('replicas') ?? '1,2').split(',').map(Number);
 const seconds = Number(arg('seconds') ?? 10);
 const concurrency = Number(arg('concurrency') ?? 10);
 if (replicaCounts.some((n) => !Number.isInteger(n) || n < 1 || n > 8)) throw new Error('--replicas: whole numbers from 1 to 8');
-if (!(seconds > 0 && seconds <= 120) || !(Number.isInteger(concurrency) && concurrency >= 1 && concurrency <= 64)) throw new Error('--seconds ≤ 120, --concurrency 1–64');
+if (!(seconds > 0 && seconds <= 120) || !(Number.isInteger(concurrency) && concurrency >= 1 && concurrency <= 64))
+  throw new Error('--seconds ≤ 120, --concurrency 1–64');
 const PG_URL = process.env['TIDEMARK_TEST_PG_URL'] ?? 'postgres://postgres@127.0.0.1:5432/test';
 const out = (s: string) => process.stdout.write(`${s}\n`);
 const quantile = (xs: number[], q: number) => {
@@ -35,17 +36,23 @@ if (!record) throw new Error('no template record');
 const dir = mkdtempSync(join(tmpdir(), 'tidemark-bench-pg-'));
 const admin = new pg.Client({ connectionString: PG_URL });
 await admin.connect();
-out(`PostgreSQL audit appends (bench/pg-appends.ts): ${seconds} s per run, ${concurrency} appends in flight per replica, record of ${(JSON.stringify(record).length / 1024).toFixed(0)} kB`);
+out(
+  `PostgreSQL audit appends (bench/pg-appends.ts): ${seconds} s per run, ${concurrency} appends in flight per replica, record of ${(JSON.stringify(record).length / 1024).toFixed(0)} kB`,
+);
 try {
   for (const n of replicaCounts) {
     const schema = `tm_bench_appends_${process.pid}_${randomUUID().slice(0, 8)}`;
     const replicas: Child[] = [];
     try {
       for (let i = 0; i < n; i += 1) {
-        replicas.push(await startChild({
-          name: `replica ${i + 1}`, script: 'pg-append-child.ts', logFile: join(dir, `replica-${n}-${i + 1}.log`),
-          env: { BENCH_PG_URL: PG_URL, BENCH_PG_SCHEMA: schema },
-        }));
+        replicas.push(
+          await startChild({
+            name: `replica ${i + 1}`,
+            script: 'pg-append-child.ts',
+            logFile: join(dir, `replica-${n}-${i + 1}.log`),
+            env: { BENCH_PG_URL: PG_URL, BENCH_PG_SCHEMA: schema },
+          }),
+        );
       }
       const results = replicas.map((r) => r.next('appended', (seconds + 60) * 1000));
       for (const r of replicas) r.send({ type: 'append', record, seconds, concurrency });
@@ -58,8 +65,10 @@ try {
       await check.init();
       const v = await check.verifyChain();
       await check.close();
-      out(`  ${n} replica${n > 1 ? 's' : ' '}: ${(count / span).toFixed(0).padStart(5)} appends/s, p50 ${quantile(all, 0.5).toFixed(1)} ms, p99 ${quantile(all, 0.99).toFixed(1)} ms, `
-        + `${failed} failed; chain ${v.ok ? 'intact' : 'BROKEN'} over ${v.checked} records`);
+      out(
+        `  ${n} replica${n > 1 ? 's' : ' '}: ${(count / span).toFixed(0).padStart(5)} appends/s, p50 ${quantile(all, 0.5).toFixed(1)} ms, p99 ${quantile(all, 0.99).toFixed(1)} ms, ` +
+          `${failed} failed; chain ${v.ok ? 'intact' : 'BROKEN'} over ${v.checked} records`,
+      );
     } finally {
       await Promise.all(replicas.map((r) => r.stop()));
       await admin.query(`DROP SCHEMA IF EXISTS "${schema}" CASCADE`);

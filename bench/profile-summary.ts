@@ -10,9 +10,20 @@ interface ProfileNode {
   callFrame: { functionName: string; url: string; lineNumber: number; columnNumber: number };
   children?: number[];
 }
-interface Profile { nodes: ProfileNode[]; samples: number[]; timeDeltas: number[]; startTime: number; endTime: number }
+interface Profile {
+  nodes: ProfileNode[];
+  samples: number[];
+  timeDeltas: number[];
+  startTime: number;
+  endTime: number;
+}
 
-export interface SelfTime { name: string; where: string; ms: number; pct: number }
+export interface SelfTime {
+  name: string;
+  where: string;
+  ms: number;
+  pct: number;
+}
 
 function shortUrl(url: string): string {
   if (!url) return '(native)';
@@ -66,7 +77,11 @@ export function summarise(file: string, top = 25): { total: number; byFunction: 
     o.ms += ms;
     own.set(ok, o);
   }
-  const rank = (m: Map<string, SelfTime>) => [...m.values()].map((x) => ({ ...x, pct: (100 * x.ms) / total })).sort((a, b) => b.ms - a.ms).slice(0, top);
+  const rank = (m: Map<string, SelfTime>) =>
+    [...m.values()]
+      .map((x) => ({ ...x, pct: (100 * x.ms) / total }))
+      .sort((a, b) => b.ms - a.ms)
+      .slice(0, top);
   return { total, byFunction: rank(fn), byOwner: rank(own) };
 }
 

@@ -80,9 +80,11 @@ const opts = {
   only: new Set((flag('only') ?? 'select,fhir,view,audit,jwt,soak').split(',').map((s) => s.trim())),
 };
 if (opts.rateShape !== 'paced' && opts.rateShape !== 'autocannon-burst') throw new Error('--rate-shape: paced or autocannon-burst');
-for (const part of opts.only) if (!['select', 'fhir', 'view', 'audit', 'jwt', 'soak'].includes(part)) throw new Error(`--only: unknown part ${part}`);
+for (const part of opts.only)
+  if (!['select', 'fhir', 'view', 'audit', 'jwt', 'soak'].includes(part)) throw new Error(`--only: unknown part ${part}`);
 // Hard bounds, whatever the flags say: the benchmark must stop by itself.
-if (opts.duration > 120 || opts.warmup > 60 || opts.soakSeconds > 3600) throw new Error('durations are bounded: --duration ≤ 120, --warmup ≤ 60, --soak-seconds ≤ 3600');
+if (opts.duration > 120 || opts.warmup > 60 || opts.soakSeconds > 3600)
+  throw new Error('durations are bounded: --duration ≤ 120, --warmup ≤ 60, --soak-seconds ≤ 3600');
 
 const out = (line = '') => process.stdout.write(`${line}\n`);
 const f1 = (n: number) => (Number.isFinite(n) ? n.toFixed(1) : '–');
@@ -102,7 +104,12 @@ const FHIR_TOKEN = 'bench-fhir-token-7f3a9c';
 const children: Child[] = [];
 let serviceCount = 0;
 
-async function startService(label: string, store: 'sqlite' | 'noop', extraEnv: Record<string, string> = {}, extraArgv: string[] = []): Promise<{ child: Child; dbPath: string; profDir: string }> {
+async function startService(
+  label: string,
+  store: 'sqlite' | 'noop',
+  extraEnv: Record<string, string> = {},
+  extraArgv: string[] = [],
+): Promise<{ child: Child; dbPath: string; profDir: string }> {
   serviceCount += 1;
   const dbPath = join(dir, `${serviceCount}-${label}.sqlite`);
   const profDir = join(dir, `${serviceCount}-${label}-prof`);
@@ -111,7 +118,11 @@ async function startService(label: string, store: 'sqlite' | 'noop', extraEnv: R
     script: 'serve-for-bench.ts',
     logFile: join(dir, `${serviceCount}-${label}.log`),
     env: {
-      TIDEMARK_TRIAL_MODE: 'true', TIDEMARK_SQLITE_PATH: dbPath, TIDEMARK_LOG_LEVEL: 'warn', PORT: '0', HOST: '127.0.0.1',
+      TIDEMARK_TRIAL_MODE: 'true',
+      TIDEMARK_SQLITE_PATH: dbPath,
+      TIDEMARK_LOG_LEVEL: 'warn',
+      PORT: '0',
+      HOST: '127.0.0.1',
       ...(store === 'noop' ? { BENCH_STORE: 'noop' } : {}),
       ...extraEnv,
     },
@@ -125,7 +136,10 @@ async function startService(label: string, store: 'sqlite' | 'noop', extraEnv: R
 
 /** A load run and the CPU time (user + system, every thread of the process under load) it cost per 2xx answer. */
 type Measured = LoadResult & { cpuMsPerAnswer: number };
-interface Run { closed: Measured; rate: Measured }
+interface Run {
+  closed: Measured;
+  rate: Measured;
+}
 
 async function cpuUsedMs(child: Child): Promise<number> {
   const answer = child.next('usage', 5000);
@@ -145,7 +159,14 @@ async function loadWithCpu(child: Child, o: Parameters<typeof runLoad>[0]): Prom
 async function measure(child: Child, url: string, body: string, rate: number): Promise<Run> {
   await runLoad({ url, body, connections: opts.connections, durationSec: opts.warmup });
   const closed = await loadWithCpu(child, { url, body, connections: opts.connections, durationSec: opts.duration });
-  const fixed = await loadWithCpu(child, { url, body, connections: Math.min(opts.rateConnections, rate), durationSec: opts.duration, rate, shape: opts.rateShape });
+  const fixed = await loadWithCpu(child, {
+    url,
+    body,
+    connections: Math.min(opts.rateConnections, rate),
+    durationSec: opts.duration,
+    rate,
+    shape: opts.rateShape,
+  });
   return { closed, rate: fixed };
 }
 
@@ -154,13 +175,23 @@ async function durableBatches(base: string): Promise<{ batches: number; rows: nu
   return (await (await fetch(`${base}/batches`)).json()) as { batches: number; rows: number };
 }
 
-async function checkOnce(url: string, body: string, authorization?: () => string): Promise<{ status: number; cards: number; text: string }> {
-  const r = await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json', ...(authorization ? { authorization: authorization() } : {}) }, body });
+async function checkOnce(
+  url: string,
+  body: string,
+  authorization?: () => string,
+): Promise<{ status: number; cards: number; text: string }> {
+  const r = await fetch(url, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', ...(authorization ? { authorization: authorization() } : {}) },
+    body,
+  });
   const text = await r.text();
   let cards = 0;
   try {
     cards = ((JSON.parse(text) as { cards?: unknown[] }).cards ?? []).length;
-  } catch { /* not JSON */ }
+  } catch {
+    /* not JSON */
+  }
   return { status: r.status, cards, text: text.slice(0, 300) };
 }
 
@@ -172,7 +203,13 @@ async function auditWriteStats(base: string): Promise<{ sum: number; count: numb
   return { sum, count };
 }
 
-interface Timings { n: number; totalMs: number; gatherMs: number; fhirWaitMs: number; assessMs: number }
+interface Timings {
+  n: number;
+  totalMs: number;
+  gatherMs: number;
+  fhirWaitMs: number;
+  assessMs: number;
+}
 
 function maxSeq(dbPath: string): number {
   const db = new Database(dbPath, { readonly: true, fileMustExist: true });
@@ -187,7 +224,10 @@ function maxSeq(dbPath: string): number {
 function lastRecordBytes(dbPath: string): number {
   const db = new Database(dbPath, { readonly: true, fileMustExist: true });
   try {
-    return Number((db.prepare('SELECT length(CAST(record AS BLOB)) AS n FROM advice ORDER BY seq DESC LIMIT 1').get() as { n: number } | undefined)?.n ?? 0);
+    return Number(
+      (db.prepare('SELECT length(CAST(record AS BLOB)) AS n FROM advice ORDER BY seq DESC LIMIT 1').get() as { n: number } | undefined)
+        ?.n ?? 0,
+    );
   } finally {
     db.close();
   }
@@ -207,8 +247,11 @@ function recordTimings(dbPath: string, afterSeq: number, upToSeq = Number.MAX_SA
       )
       .all(afterSeq, upToSeq, afterSeq, step) as Array<{ t: number; g: number; w: number; a: number }>;
     return {
-      n: rows.length, totalMs: median(rows.map((r) => r.t)), gatherMs: median(rows.map((r) => r.g)),
-      fhirWaitMs: median(rows.map((r) => r.w)), assessMs: median(rows.map((r) => r.a)),
+      n: rows.length,
+      totalMs: median(rows.map((r) => r.t)),
+      gatherMs: median(rows.map((r) => r.g)),
+      fhirWaitMs: median(rows.map((r) => r.w)),
+      assessMs: median(rows.map((r) => r.a)),
     };
   } finally {
     db.close();
@@ -226,7 +269,8 @@ function ratioRow(a: LoadResult, c: LoadResult, label = 'Tidemark/ceiling'): str
   const x = (p: number, q: number) => `${(p / q).toFixed(2)}×`;
   return `    ${label.padEnd(22)}${x(a.rps, c.rps).padStart(9)}${x(a.p50, c.p50).padStart(9)}${x(a.p90, c.p90).padStart(9)}${x(a.p99, c.p99).padStart(9)}`;
 }
-const rateLabel = (rate = opts.rate) => `${rate} req/s ${opts.rateShape === 'paced' ? 'paced' : 'autocannon overallRate'} over ${Math.min(opts.rateConnections, rate)} connections`;
+const rateLabel = (rate = opts.rate) =>
+  `${rate} req/s ${opts.rateShape === 'paced' ? 'paced' : 'autocannon overallRate'} over ${Math.min(opts.rateConnections, rate)} connections`;
 
 function printCase(title: string, t: Run, c: Run | undefined, rate = opts.rate, d?: Run, cLabel = 'ceiling'): void {
   out(title);
@@ -244,23 +288,33 @@ function printCase(title: string, t: Run, c: Run | undefined, rate = opts.rate, 
   out(`  ${rateLabel(rate)}, ${opts.duration} s`);
   side('rate');
   const cpu = (label: string, a: Measured, b: Measured | undefined) =>
-    out(`    CPU per answer, ${label}: Tidemark ${f2(a.cpuMsPerAnswer)} ms${b ? `, ceiling ${f2(b.cpuMsPerAnswer)} ms: ${(a.cpuMsPerAnswer / b.cpuMsPerAnswer).toFixed(2)}×` : ''}`);
+    out(
+      `    CPU per answer, ${label}: Tidemark ${f2(a.cpuMsPerAnswer)} ms${b ? `, ceiling ${f2(b.cpuMsPerAnswer)} ms: ${(a.cpuMsPerAnswer / b.cpuMsPerAnswer).toFixed(2)}×` : ''}`,
+    );
   out('  (CPU: user + system time of the whole process, every thread, over the run, divided by its 2xx answers)');
   cpu('closed loop', t.closed, c?.closed);
   cpu('fixed rate', t.rate, c?.rate);
   if (t.rate.late > 0.01 * (t.rate.ok + t.rate.late)) {
-    out(`    (Tidemark did not keep up with ${rate} req/s: ${t.rate.late} requests went out late, and their wait to be sent is not in the latency)`);
+    out(
+      `    (Tidemark did not keep up with ${rate} req/s: ${t.rate.late} requests went out late, and their wait to be sent is not in the latency)`,
+    );
   }
 }
 
 function printTimings(label: string, t: Timings): void {
-  out(`    audit timings, ${label} (median of ${t.n} records): total ${f2(t.totalMs)} ms = gather ${f2(t.gatherMs)} + assess and render ${f2(t.assessMs)} + rest ${f2(t.totalMs - t.gatherMs - t.assessMs)}`);
+  out(
+    `    audit timings, ${label} (median of ${t.n} records): total ${f2(t.totalMs)} ms = gather ${f2(t.gatherMs)} + assess and render ${f2(t.assessMs)} + rest ${f2(t.totalMs - t.gatherMs - t.assessMs)}`,
+  );
 }
 
 function printFhirTimings(label: string, t: Timings): void {
-  out(`    FHIR, ${label} (median of ${t.n} records): slowest single query (fhirWaitMs) ${f2(t.fhirWaitMs)} ms, all queries (gather) ${f2(t.gatherMs)} ms: `
-    + `gather/slowest ${(t.gatherMs / t.fhirWaitMs).toFixed(2)}×`);
-  out(`      of total ${f2(t.totalMs)} ms: waiting on FHIR (gather) ${f2(t.gatherMs)} ms, own work ${f2(t.totalMs - t.gatherMs)} ms (snapshot, rules, cards ${f2(t.assessMs)} ms)`);
+  out(
+    `    FHIR, ${label} (median of ${t.n} records): slowest single query (fhirWaitMs) ${f2(t.fhirWaitMs)} ms, all queries (gather) ${f2(t.gatherMs)} ms: ` +
+      `gather/slowest ${(t.gatherMs / t.fhirWaitMs).toFixed(2)}×`,
+  );
+  out(
+    `      of total ${f2(t.totalMs)} ms: waiting on FHIR (gather) ${f2(t.gatherMs)} ms, own work ${f2(t.totalMs - t.gatherMs)} ms (snapshot, rules, cards ${f2(t.assessMs)} ms)`,
+  );
 }
 
 // ---------------------------------------------------------------- main
@@ -271,21 +325,41 @@ async function main(): Promise<void> {
   const patient: BenchPatient = buildBenchPatient(now);
   const cpuModel = cpus()[0]?.model ?? 'unknown CPU';
   out('Tidemark benchmark (bench/run.ts)');
-  out(`  machine: ${availableParallelism()} cores available (nproc), ${cpuModel}, ${mb(totalmem())} memory (${mb(freemem())} free), Linux ${release()}`);
-  out(`  node ${process.version}; load average at start ${loadavg().map((l) => l.toFixed(2)).join(' ')}`);
-  out(`  runs: ${opts.warmup} s warm-up + ${opts.duration} s measured; closed loop at ${opts.connections} connections; ${rateLabel()} (case 2: ${opts.fhirRate} req/s); soak ${opts.soakSeconds} s at ${opts.soakRate} req/s`);
-  out(`  invented patient: ${Object.entries(patient.counts).map(([k, v]) => `${v} ${k}`).join(', ')} (charted over 24 h)`);
+  out(
+    `  machine: ${availableParallelism()} cores available (nproc), ${cpuModel}, ${mb(totalmem())} memory (${mb(freemem())} free), Linux ${release()}`,
+  );
+  out(
+    `  node ${process.version}; load average at start ${loadavg()
+      .map((l) => l.toFixed(2))
+      .join(' ')}`,
+  );
+  out(
+    `  runs: ${opts.warmup} s warm-up + ${opts.duration} s measured; closed loop at ${opts.connections} connections; ${rateLabel()} (case 2: ${opts.fhirRate} req/s); soak ${opts.soakSeconds} s at ${opts.soakRate} req/s`,
+  );
+  out(
+    `  invented patient: ${Object.entries(patient.counts)
+      .map(([k, v]) => `${v} ${k}`)
+      .join(', ')} (charted over 24 h)`,
+  );
   out(`  temporary folder: ${dir}`);
   out();
 
   // The embedded FHIR server with the patient; the prefetch is what a CDS client would build from it.
-  const fhir = await startChild({ name: 'embedded FHIR', script: 'fhir-for-bench.ts', logFile: join(dir, 'fhir.log'), env: { BENCH_FHIR_TOKEN: FHIR_TOKEN } });
+  const fhir = await startChild({
+    name: 'embedded FHIR',
+    script: 'fhir-for-bench.ts',
+    logFile: join(dir, 'fhir.log'),
+    env: { BENCH_FHIR_TOKEN: FHIR_TOKEN },
+  });
   children.push(fhir);
   const loaded = fhir.next('ready');
   fhir.send({ type: 'load', bundle: transaction(patient.resources as FhirResource[]) });
   await loaded;
   const bodies: Record<'select' | 'fhir' | 'view', string> = { select: '', fhir: '', view: '' };
-  for (const [key, hook, serviceId] of [['select', 'order-select', 'bolus-review-select'], ['view', 'patient-view', 'fluid-overview']] as const) {
+  for (const [key, hook, serviceId] of [
+    ['select', 'order-select', 'bolus-review-select'],
+    ['view', 'patient-view', 'fluid-overview'],
+  ] as const) {
     const service = findService(serviceId);
     if (!service) throw new Error(`no service ${serviceId}`);
     const client = await prefetchFromServer(fhir.url, service, benchContext(patient, hook as BenchHook), { accessToken: FHIR_TOKEN });
@@ -294,7 +368,9 @@ async function main(): Promise<void> {
     bodies[key] = JSON.stringify(benchRequest(patient, hook, { prefetch: client.prefetch }));
   }
   bodies.fhir = JSON.stringify(benchRequest(patient, 'order-select', { fhirServer: fhir.url, accessToken: FHIR_TOKEN }));
-  out(`  request bodies: order-select with prefetch ${(bodies.select.length / 1024).toFixed(1)} kB, patient-view with prefetch ${(bodies.view.length / 1024).toFixed(1)} kB, order-select without prefetch ${(bodies.fhir.length / 1024).toFixed(1)} kB`);
+  out(
+    `  request bodies: order-select with prefetch ${(bodies.select.length / 1024).toFixed(1)} kB, patient-view with prefetch ${(bodies.view.length / 1024).toFixed(1)} kB, order-select without prefetch ${(bodies.fhir.length / 1024).toFixed(1)} kB`,
+  );
   out();
 
   const ceiling = await startChild({ name: 'ceiling', script: 'ceiling.ts', logFile: join(dir, 'ceiling.log'), env: {} });
@@ -309,7 +385,12 @@ async function main(): Promise<void> {
   };
 
   // The durable-audit limit: one SQLite file for the whole run (its rows only grow, as an audit trail does).
-  const durable = await startChild({ name: 'durable-audit limit', script: 'durable-limit.ts', logFile: join(dir, 'durable.log'), env: { BENCH_DURABLE_PATH: join(dir, 'durable-limit.sqlite') } });
+  const durable = await startChild({
+    name: 'durable-audit limit',
+    script: 'durable-limit.ts',
+    logFile: join(dir, 'durable.log'),
+    env: { BENCH_DURABLE_PATH: join(dir, 'durable-limit.sqlite') },
+  });
   children.push(durable);
   const durableRuns = new Map<string, Run>();
   const durableFor = async (key: 'select' | 'view'): Promise<Run> => {
@@ -318,14 +399,21 @@ async function main(): Promise<void> {
     const b0 = await durableBatches(durable.url);
     const run = await measure(durable, `${durable.url}/cds-services/bolus-review-select`, bodies[key], opts.rate);
     const b1 = await durableBatches(durable.url);
-    out(`    (durable-audit limit, ${key}: ${b1.rows - b0.rows} rows in ${b1.batches - b0.batches} commits, ${f2((b1.rows - b0.rows) / Math.max(1, b1.batches - b0.batches))} rows per commit, warm-up included)`);
+    out(
+      `    (durable-audit limit, ${key}: ${b1.rows - b0.rows} rows in ${b1.batches - b0.batches} commits, ${f2((b1.rows - b0.rows) / Math.max(1, b1.batches - b0.batches))} rows per commit, warm-up included)`,
+    );
     durableRuns.set(key, run);
     return run;
   };
 
   const profiles: Array<{ label: string; profDir: string }> = [];
   const serviceCase = async (
-    label: string, key: 'select' | 'fhir' | 'view', path: string, store: 'sqlite' | 'noop', rateValue = opts.rate, env: Record<string, string> = {},
+    label: string,
+    key: 'select' | 'fhir' | 'view',
+    path: string,
+    store: 'sqlite' | 'noop',
+    rateValue = opts.rate,
+    env: Record<string, string> = {},
     authorization?: () => string,
   ) => {
     const svc = await startService(label, store, env);
@@ -336,21 +424,43 @@ async function main(): Promise<void> {
     await runLoad({ url, body: bodies[key], connections: opts.connections, durationSec: opts.warmup, ...auth });
     const a0 = await auditWriteStats(svc.child.url);
     const seqA = store === 'sqlite' ? maxSeq(svc.dbPath) : 0;
-    const closed = await loadWithCpu(svc.child, { url, body: bodies[key], connections: opts.connections, durationSec: opts.duration, ...auth });
+    const closed = await loadWithCpu(svc.child, {
+      url,
+      body: bodies[key],
+      connections: opts.connections,
+      durationSec: opts.duration,
+      ...auth,
+    });
     const a1 = await auditWriteStats(svc.child.url);
     const seqB = store === 'sqlite' ? maxSeq(svc.dbPath) : 0;
     const rate = await loadWithCpu(svc.child, {
-      url, body: bodies[key], connections: Math.min(opts.rateConnections, rateValue), durationSec: opts.duration, rate: rateValue, shape: opts.rateShape, ...auth,
+      url,
+      body: bodies[key],
+      connections: Math.min(opts.rateConnections, rateValue),
+      durationSec: opts.duration,
+      rate: rateValue,
+      shape: opts.rateShape,
+      ...auth,
     });
     const a2 = await auditWriteStats(svc.child.url);
-    const timings = store === 'sqlite' ? { closed: recordTimings(svc.dbPath, seqA, seqB), rate: recordTimings(svc.dbPath, seqB) } : undefined;
+    const timings =
+      store === 'sqlite' ? { closed: recordTimings(svc.dbPath, seqA, seqB), rate: recordTimings(svc.dbPath, seqB) } : undefined;
     const dbBytes = store === 'sqlite' ? statSync(svc.dbPath).size : 0;
     const records = store === 'sqlite' ? maxSeq(svc.dbPath) : 0;
     const recordBytes = store === 'sqlite' ? lastRecordBytes(svc.dbPath) : 0;
     await svc.child.stop();
     if (opts.cpuProf) profiles.push({ label, profDir: svc.profDir });
-    const writeMs = (x: { sum: number; count: number }, y: { sum: number; count: number }) => (y.count > x.count ? ((y.sum - x.sum) / (y.count - x.count)) * 1000 : Number.NaN);
-    return { run: { closed, rate }, cards: once.cards, timings, audit: { closed: writeMs(a0, a1), rate: writeMs(a1, a2) }, dbBytes, records, recordBytes };
+    const writeMs = (x: { sum: number; count: number }, y: { sum: number; count: number }) =>
+      y.count > x.count ? ((y.sum - x.sum) / (y.count - x.count)) * 1000 : Number.NaN;
+    return {
+      run: { closed, rate },
+      cards: once.cards,
+      timings,
+      audit: { closed: writeMs(a0, a1), rate: writeMs(a1, a2) },
+      dbBytes,
+      records,
+      recordBytes,
+    };
   };
 
   const results: Record<string, Awaited<ReturnType<typeof serviceCase>>> = {};
@@ -365,8 +475,12 @@ async function main(): Promise<void> {
       printTimings('closed loop', r.timings.closed);
       printTimings('fixed rate', r.timings.rate);
     }
-    out(`    audit write, from the service's metrics (mean, including the wait for its group commit): ${f2(r.audit.closed)} ms closed loop, ${f2(r.audit.rate)} ms fixed rate; ${r.records} records of ${(r.recordBytes / 1024).toFixed(0)} kB each in ${mb(r.dbBytes)} (WAL not counted)`);
-    out(`    audit size: ${(r.dbBytes / Math.max(1, r.records) / 1024).toFixed(1)} kB of database per answer, ${f1((r.dbBytes / Math.max(1, r.records)) * 1000 / 1024 / 1024)} MB per 1,000 answers; request body ${(bodies.select.length / 1024).toFixed(1)} kB`);
+    out(
+      `    audit write, from the service's metrics (mean, including the wait for its group commit): ${f2(r.audit.closed)} ms closed loop, ${f2(r.audit.rate)} ms fixed rate; ${r.records} records of ${(r.recordBytes / 1024).toFixed(0)} kB each in ${mb(r.dbBytes)} (WAL not counted)`,
+    );
+    out(
+      `    audit size: ${(r.dbBytes / Math.max(1, r.records) / 1024).toFixed(1)} kB of database per answer, ${f1(((r.dbBytes / Math.max(1, r.records)) * 1000) / 1024 / 1024)} MB per 1,000 answers; request body ${(bodies.select.length / 1024).toFixed(1)} kB`,
+    );
     out();
   }
 
@@ -375,12 +489,19 @@ async function main(): Promise<void> {
     const r = await serviceCase('select-fhir', 'fhir', '/cds-services/bolus-review-select', 'sqlite', opts.fhirRate, env);
     results['fhir'] = r;
     const c = await ceilingFor('fhir', opts.fhirRate);
-    printCase(`(2) order-select, no prefetch: the service queries the embedded FHIR server, 12 queries a call, at most ${opts.fhirConcurrency ?? 8} at once (${r.cards} cards per answer)`, r.run, c, opts.fhirRate);
+    printCase(
+      `(2) order-select, no prefetch: the service queries the embedded FHIR server, 12 queries a call, at most ${opts.fhirConcurrency ?? 8} at once (${r.cards} cards per answer)`,
+      r.run,
+      c,
+      opts.fhirRate,
+    );
     if (r.timings) {
       printFhirTimings('closed loop', r.timings.closed);
       printFhirTimings('fixed rate', r.timings.rate);
     }
-    out('    (the ceiling parses the small body and does no FHIR query: the ratio shows the whole cost of gathering; under the closed loop the');
+    out(
+      '    (the ceiling parses the small body and does no FHIR query: the ratio shows the whole cost of gathering; under the closed loop the',
+    );
     out('    embedded FHIR server, one process, is the bottleneck and its queue is in every query time)');
     out();
   }
@@ -412,7 +533,9 @@ async function main(): Promise<void> {
         out(row('no-op store', n));
         const perReq = mode === 'closed' ? `per request ${f2(1000 / s.rps - 1000 / n.rps)} ms more service time (1/throughput), ` : '';
         out(`    ${'difference'.padEnd(22)}${perReq}p50 ${f2(s.p50 - n.p50)} ms, p99 ${f2(s.p99 - n.p99)} ms`);
-        out(`    ${'CPU per answer'.padEnd(22)}SQLite store ${f2(s.cpuMsPerAnswer)} ms, no-op store ${f2(n.cpuMsPerAnswer)} ms: the audit write costs ${f2(s.cpuMsPerAnswer - n.cpuMsPerAnswer)} ms of CPU (all threads)`);
+        out(
+          `    ${'CPU per answer'.padEnd(22)}SQLite store ${f2(s.cpuMsPerAnswer)} ms, no-op store ${f2(n.cpuMsPerAnswer)} ms: the audit write costs ${f2(s.cpuMsPerAnswer - n.cpuMsPerAnswer)} ms of CPU (all threads)`,
+        );
       }
       out();
     }
@@ -434,8 +557,16 @@ async function main(): Promise<void> {
     const tokens: string[] = [];
     const iat = Math.floor(Date.now() / 1000);
     for (let i = 0; i < need; i += 1) {
-      tokens.push(await new SignJWT({}).setProtectedHeader({ alg: 'ES384', kid, typ: 'JWT' }).setIssuer(iss).setAudience(`${aud}/cds-services/bolus-review-select`)
-        .setIssuedAt(iat).setExpirationTime(iat + 290).setJti(randomUUID()).sign(pair.privateKey));
+      tokens.push(
+        await new SignJWT({})
+          .setProtectedHeader({ alg: 'ES384', kid, typ: 'JWT' })
+          .setIssuer(iss)
+          .setAudience(`${aud}/cds-services/bolus-review-select`)
+          .setIssuedAt(iat)
+          .setExpirationTime(iat + 290)
+          .setJti(randomUUID())
+          .sign(pair.privateKey),
+      );
     }
     const signMs = (performance.now() - signStarted) / need;
     let used = 0;
@@ -443,9 +574,19 @@ async function main(): Promise<void> {
     const env = { TIDEMARK_TRIAL_MODE: 'false', TIDEMARK_CONFIG_FILE: configFile, TIDEMARK_PUBLIC_URL: aud };
     const r = await serviceCase('select-jwt', 'select', '/cds-services/bolus-review-select', 'sqlite', opts.rate, env, authorization);
     const plain = results['select'];
-    printCase(`(1j) order-select, full prefetch, a fresh ES384 client JWT verified on every call (${r.cards} cards per answer)`, r.run, plain?.run, opts.rate, undefined, 'no token');
-    if (plain) out('    ("no token" is case (1) as measured above, in trial mode: the ratio prices the signature check and the jti record)');
-    out(`    ${used} tokens used of ${tokens.length} signed${used > tokens.length ? ' (some were reused and refused as replays: sign more)' : ''}; signing one took ${f2(signMs)} ms in the load generator`);
+    printCase(
+      `(1j) order-select, full prefetch, a fresh ES384 client JWT verified on every call (${r.cards} cards per answer)`,
+      r.run,
+      plain?.run,
+      opts.rate,
+      undefined,
+      'no token',
+    );
+    if (plain)
+      out('    ("no token" is case (1) as measured above, in trial mode: the ratio prices the signature check and the jti record)');
+    out(
+      `    ${used} tokens used of ${tokens.length} signed${used > tokens.length ? ' (some were reused and refused as replays: sign more)' : ''}; signing one took ${f2(signMs)} ms in the load generator`,
+    );
     out();
   }
 
@@ -460,11 +601,25 @@ async function main(): Promise<void> {
     };
     const url = `${svc.child.url}/cds-services/bolus-review-select`;
     const soakWarm = Math.min(30, Math.max(2, Math.round(opts.soakSeconds / 10)));
-    await runLoad({ url, body: bodies.select, connections: opts.rateConnections, durationSec: soakWarm, rate: opts.soakRate, shape: opts.rateShape });
+    await runLoad({
+      url,
+      body: bodies.select,
+      connections: opts.rateConnections,
+      durationSec: soakWarm,
+      rate: opts.soakRate,
+      shape: opts.rateShape,
+    });
     const heldStart = await collected();
     await new Promise((r) => setTimeout(r, 1100));
     const t0 = Date.now();
-    const r = await runLoad({ url, body: bodies.select, connections: opts.rateConnections, durationSec: opts.soakSeconds, rate: opts.soakRate, shape: opts.rateShape });
+    const r = await runLoad({
+      url,
+      body: bodies.select,
+      connections: opts.rateConnections,
+      durationSec: opts.soakSeconds,
+      rate: opts.soakRate,
+      shape: opts.rateShape,
+    });
     await new Promise((res) => setTimeout(res, 1100));
     const t1 = Date.now();
     // Held memory at the two ends: RSS after a full collection, once after the warm-up and once after the soak
@@ -496,15 +651,29 @@ async function main(): Promise<void> {
       const low1 = Math.min(...ys.slice(0, half));
       const low2 = Math.min(...ys.slice(half));
       const peak = Math.max(...ys);
-      out(`    RSS at start ${mb(fitStart)}, at end ${mb(fitEnd)}: ${growth >= 0 ? '+' : ''}${growth.toFixed(1)} % (least-squares line through ${samples.length} one-second samples, ${(slope * 60 / 1024 / 1024).toFixed(2)} MB/min)`);
-      out(`    lowest RSS in the first half ${mb(low1)}, in the second half ${mb(low2)}; peak ${mb(peak)}; single samples first ${mb(first.rss)}, last ${mb(last.rss)}`);
-      const marks = [0.2, 0.4, 0.6, 0.8].map((q) => samples[Math.floor(q * (samples.length - 1))]).filter((s): s is NonNullable<typeof s> => !!s);
-      out(`    RSS along the soak: ${[first, ...marks, last].map((s) => `${Math.round((s.at - first.at) / 1000)} s ${mb(s.rss)}`).join(', ')}; V8 heap used ${mb(first.heapUsed)} → ${mb(last.heapUsed)}`);
+      out(
+        `    RSS at start ${mb(fitStart)}, at end ${mb(fitEnd)}: ${growth >= 0 ? '+' : ''}${growth.toFixed(1)} % (least-squares line through ${samples.length} one-second samples, ${((slope * 60) / 1024 / 1024).toFixed(2)} MB/min)`,
+      );
+      out(
+        `    lowest RSS in the first half ${mb(low1)}, in the second half ${mb(low2)}; peak ${mb(peak)}; single samples first ${mb(first.rss)}, last ${mb(last.rss)}`,
+      );
+      const marks = [0.2, 0.4, 0.6, 0.8]
+        .map((q) => samples[Math.floor(q * (samples.length - 1))])
+        .filter((s): s is NonNullable<typeof s> => !!s);
+      out(
+        `    RSS along the soak: ${[first, ...marks, last].map((s) => `${Math.round((s.at - first.at) / 1000)} s ${mb(s.rss)}`).join(', ')}; V8 heap used ${mb(first.heapUsed)} → ${mb(last.heapUsed)}`,
+      );
       if (heldStart && heldEnd) {
         const g = ((heldEnd.rss - heldStart.rss) / heldStart.rss) * 100;
-        out(`    after a full garbage collection: RSS ${mb(heldStart.rss)} at the start, ${mb(heldEnd.rss)} at the end: ${g >= 0 ? '+' : ''}${g.toFixed(1)} %; V8 heap used ${mb(heldStart.heapUsed)} → ${mb(heldEnd.heapUsed)}`);
+        out(
+          `    after a full garbage collection: RSS ${mb(heldStart.rss)} at the start, ${mb(heldEnd.rss)} at the end: ${g >= 0 ? '+' : ''}${g.toFixed(1)} %; V8 heap used ${mb(heldStart.heapUsed)} → ${mb(heldEnd.heapUsed)}`,
+        );
       } else out('    (no reading after a full garbage collection: the child could not run one)');
-      if (opts.keep) writeFileSync(join(dir, 'soak-rss.csv'), `seconds,rss_bytes,heap_used_bytes\n${samples.map((s) => `${((s.at - t0) / 1000).toFixed(0)},${s.rss},${s.heapUsed}`).join('\n')}\n`);
+      if (opts.keep)
+        writeFileSync(
+          join(dir, 'soak-rss.csv'),
+          `seconds,rss_bytes,heap_used_bytes\n${samples.map((s) => `${((s.at - t0) / 1000).toFixed(0)},${s.rss},${s.heapUsed}`).join('\n')}\n`,
+        );
     }
     out(`    ${records} audit records written in all`);
     out();
@@ -513,9 +682,12 @@ async function main(): Promise<void> {
   for (const p of profiles) {
     let files: string[] = [];
     try {
-      files = readdirSync(p.profDir).filter((f) => f.endsWith('.cpuprofile'))
+      files = readdirSync(p.profDir)
+        .filter((f) => f.endsWith('.cpuprofile'))
         .sort((a, b) => statSync(join(p.profDir, b)).size - statSync(join(p.profDir, a)).size);
-    } catch { /* none written */ }
+    } catch {
+      /* none written */
+    }
     // One profile per thread: the largest is the main thread's; of the others (tsx's loader threads, the audit
     // writer thread) only those that were busy for a second or more are shown.
     files.forEach((f, i) => {
@@ -527,7 +699,11 @@ async function main(): Promise<void> {
     });
   }
 
-  out(`done in ${Math.round((Date.now() - started) / 1000)} s; load average at the end ${loadavg().map((l) => l.toFixed(2)).join(' ')}${opts.keep ? `; files kept in ${dir}` : ''}`);
+  out(
+    `done in ${Math.round((Date.now() - started) / 1000)} s; load average at the end ${loadavg()
+      .map((l) => l.toFixed(2))
+      .join(' ')}${opts.keep ? `; files kept in ${dir}` : ''}`,
+  );
 }
 
 main()

@@ -21,7 +21,8 @@ import { NoopAuditStore } from './noop-store.js';
 import { benchContext, benchRequest, buildBenchPatient } from './patient.js';
 
 const iterations = Number(process.argv[2] ?? 2000);
-if (!Number.isInteger(iterations) || iterations < 10 || iterations > 100_000) throw new Error('iterations: a whole number from 10 to 100000');
+if (!Number.isInteger(iterations) || iterations < 10 || iterations > 100_000)
+  throw new Error('iterations: a whole number from 10 to 100000');
 
 const service = findService('bolus-review-select');
 if (!service) throw new Error('no service bolus-review-select');
@@ -48,13 +49,23 @@ class TextOnlyStore extends NoopAuditStore {
 }
 
 const STAGES: ReadonlyArray<[Stage, string]> = [
-  ['parse', 'parse the call (zod schemas)'], ['gather', 'gather (prefetch checks)'], ['snapshot', 'snapshot (normalize)'],
-  ['advise', 'advise (rules)'], ['compose', 'compose (cards)'], ['record', 'record (its text; no store)'],
+  ['parse', 'parse the call (zod schemas)'],
+  ['gather', 'gather (prefetch checks)'],
+  ['snapshot', 'snapshot (normalize)'],
+  ['advise', 'advise (rules)'],
+  ['compose', 'compose (cards)'],
+  ['record', 'record (its text; no store)'],
 ];
 const samples = new Map<string, number[]>([['body', []], ...STAGES.map(([s]) => [s, []] as [string, number[]]), ['answer', []]]);
 let recording = false;
 const deps: EvaluateDeps = {
-  store: new TextOnlyStore(), catalogue, thresholds, rulesVersion: version, publicUrl: 'http://127.0.0.1:8080', now: () => now, log: silent,
+  store: new TextOnlyStore(),
+  catalogue,
+  thresholds,
+  rulesVersion: version,
+  publicUrl: 'http://127.0.0.1:8080',
+  now: () => now,
+  log: silent,
   gatherOptions: { budgetMs: 2000, maxPages: 5, concurrency: 8 },
   observe: (stage, ms) => {
     if (recording) samples.get(stage)?.push(ms);
@@ -87,7 +98,9 @@ const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.len
 const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / Math.max(1, xs.length);
 const us = (ms: number) => `${(ms * 1000).toFixed(0).padStart(7)} µs`;
 const rows: Array<[string, string]> = [['body', 'JSON.parse of the body'], ...STAGES, ['answer', 'JSON.stringify of the answer']];
-console.log(`Stages of one order-select call, full prefetch (${(body.length / 1024).toFixed(1)} kB body), ${iterations} times after ${warm} warm-up, node ${process.version}`);
+console.log(
+  `Stages of one order-select call, full prefetch (${(body.length / 1024).toFixed(1)} kB body), ${iterations} times after ${warm} warm-up, node ${process.version}`,
+);
 console.log(`${'stage'.padEnd(40)}   median      mean`);
 let sumMedian = 0;
 let sumMean = 0;

@@ -26,7 +26,9 @@ class CaptureStore extends NoopAuditStore {
 }
 
 /** [order-select record, patient-view record], and the catalogue they were rendered with. */
-export async function answerTemplates(now: Date): Promise<{ templates: AdviceRecord[]; catalogue: ReturnType<typeof loadCatalogue>['catalogue']; digest: string }> {
+export async function answerTemplates(
+  now: Date,
+): Promise<{ templates: AdviceRecord[]; catalogue: ReturnType<typeof loadCatalogue>['catalogue']; digest: string }> {
   const patient = buildBenchPatient(now);
   const fhir = await startEmbeddedFhir();
   try {
@@ -35,11 +37,20 @@ export async function answerTemplates(now: Date): Promise<{ templates: AdviceRec
     const thresholds = resolveThresholds({});
     const capture = new CaptureStore();
     const deps = {
-      store: capture, catalogue, thresholds, rulesVersion: rulesVersion(digest, thresholds), publicUrl: 'http://127.0.0.1:8080', now: () => now,
-      log: { info() {}, warn() {}, error() {} }, gatherOptions: { budgetMs: 2000, maxPages: 5, concurrency: 8 },
+      store: capture,
+      catalogue,
+      thresholds,
+      rulesVersion: rulesVersion(digest, thresholds),
+      publicUrl: 'http://127.0.0.1:8080',
+      now: () => now,
+      log: { info() {}, warn() {}, error() {} },
+      gatherOptions: { budgetMs: 2000, maxPages: 5, concurrency: 8 },
     };
     const templates: AdviceRecord[] = [];
-    for (const [hook, id] of [['order-select', 'bolus-review-select'], ['patient-view', 'fluid-overview']] as Array<[BenchHook, string]>) {
+    for (const [hook, id] of [
+      ['order-select', 'bolus-review-select'],
+      ['patient-view', 'fluid-overview'],
+    ] as Array<[BenchHook, string]>) {
       const service = findService(id);
       if (!service) throw new Error(`no service ${id}`);
       const client = await prefetchFromServer(fhir.baseUrl, service, benchContext(patient, hook), {});

@@ -17,11 +17,16 @@ const now = new Date('2026-11-20T14:00:00Z');
 const t = resolveThresholds({});
 const snapshots = SCENARIOS.map((s) => {
   const built = s.build(now);
-  return buildSnapshot(built.resources, {
-    patientId: s.patientId, encounterId: s.encounterId,
-    ...(built.hook === 'order-select' ? { selections: built.selections } : {}),
-    draftOrders: { entry: built.draftOrders.map((resource) => ({ resource })) },
-  }, now);
+  return buildSnapshot(
+    built.resources,
+    {
+      patientId: s.patientId,
+      encounterId: s.encounterId,
+      ...(built.hook === 'order-select' ? { selections: built.selections } : {}),
+      draftOrders: { entry: built.draftOrders.map((resource) => ({ resource })) },
+    },
+    now,
+  );
 });
 
 function msPerCall(whatIf: boolean): number {
@@ -35,7 +40,11 @@ console.log(`assess() over ${snapshots.length} demo scenarios, ${calls} calls pe
 for (let round = 1; round <= 3; round += 1) {
   const without = msPerCall(false);
   const withIt = msPerCall(true);
-  console.log(`round ${round}: without what-if ${without.toFixed(3)} ms/call, with ${withIt.toFixed(3)} ms/call (+${(withIt - without).toFixed(3)})`);
+  console.log(
+    `round ${round}: without what-if ${without.toFixed(3)} ms/call, with ${withIt.toFixed(3)} ms/call (+${(withIt - without).toFixed(3)})`,
+  );
 }
 const feasible = snapshots.map((s) => assess(s, now, t, 'bench').whatIf?.rows.filter((r) => r.feasible).length ?? 0);
-console.log(`feasible tests per scenario: ${feasible.join(' ')} (mean ${(feasible.reduce((a, b) => a + b, 0) / feasible.length).toFixed(2)}; re-runs = 2 × that)`);
+console.log(
+  `feasible tests per scenario: ${feasible.join(' ')} (mean ${(feasible.reduce((a, b) => a + b, 0) / feasible.length).toFixed(2)}; re-runs = 2 × that)`,
+);

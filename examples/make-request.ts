@@ -11,8 +11,12 @@ const t = (m: number) => b.minutesAgo(now, m);
 const P = 'quickstart-pat-1';
 const byKey: Record<string, unknown[]> = {
   vitals: [
-    b.numeric('qs-hr', P, 'heartRate', 118, t(8)), b.numeric('qs-sbp', P, 'systolicBp', 88, t(8)), b.numeric('qs-dbp', P, 'diastolicBp', 46, t(8)),
-    b.numeric('qs-map', P, 'meanBp', 60, t(8)), b.numeric('qs-rr', P, 'respiratoryRate', 18, t(8)), b.numeric('qs-cvp', P, 'cvp', 4, t(8)),
+    b.numeric('qs-hr', P, 'heartRate', 118, t(8)),
+    b.numeric('qs-sbp', P, 'systolicBp', 88, t(8)),
+    b.numeric('qs-dbp', P, 'diastolicBp', 46, t(8)),
+    b.numeric('qs-map', P, 'meanBp', 60, t(8)),
+    b.numeric('qs-rr', P, 'respiratoryRate', 18, t(8)),
+    b.numeric('qs-cvp', P, 'cvp', 4, t(8)),
     b.numeric('qs-spo2', P, 'spo2', 95, t(8)),
   ],
   labs: [b.numeric('qs-lac', P, 'lactate', 3.8, t(40)), b.numeric('qs-alb', P, 'albumin', 3.4, t(600), { unit: 'g/dL' })],
@@ -20,8 +24,10 @@ const byKey: Record<string, unknown[]> = {
   hemodynamics: [b.numeric('qs-ppv', P, 'ppv', 17, t(6))],
   ventilation: [b.numeric('qs-vt', P, 'tidalVolume', 600, t(10)), b.numeric('qs-fio2', P, 'fio2', 35, t(10))],
   assessments: [
-    b.coded('qs-vent', P, 'ventilationMode', 'controlled-no-effort', t(10)), b.coded('qs-rhythm', P, 'heartRhythm', 'sinus', t(10)),
-    b.coded('qs-chest', P, 'chestStatus', 'closed', t(240)), b.numeric('qs-iap', P, 'intraAbdominalPressure', 8, t(120)),
+    b.coded('qs-vent', P, 'ventilationMode', 'controlled-no-effort', t(10)),
+    b.coded('qs-rhythm', P, 'heartRhythm', 'sinus', t(10)),
+    b.coded('qs-chest', P, 'chestStatus', 'closed', t(240)),
+    b.numeric('qs-iap', P, 'intraAbdominalPressure', 8, t(120)),
   ],
 };
 const prefetch: Record<string, unknown> = {};
@@ -36,8 +42,11 @@ process.stdout.write(
     hook: 'order-select',
     hookInstance: crypto.randomUUID(),
     context: {
-      userId: 'Practitioner/quickstart-prescriber', patientId: P, encounterId: 'quickstart-enc-1',
-      selections: ['MedicationRequest/quickstart-bolus'], draftOrders: { resourceType: 'Bundle', entry: [{ resource: draft }] },
+      userId: 'Practitioner/quickstart-prescriber',
+      patientId: P,
+      encounterId: 'quickstart-enc-1',
+      selections: ['MedicationRequest/quickstart-bolus'],
+      draftOrders: { resourceType: 'Bundle', entry: [{ resource: draft }] },
     },
     prefetch,
   }),

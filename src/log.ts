@@ -9,7 +9,16 @@ export function createLogger(level: string, destination?: NodeJS.WritableStream)
       level,
       base: { service: 'tidemark' },
       redact: {
-        paths: ['authorization', 'req.headers.authorization', 'headers.authorization', 'access_token', '*.access_token', 'fhirAuthorization', '*.fhirAuthorization', 'token'],
+        paths: [
+          'authorization',
+          'req.headers.authorization',
+          'headers.authorization',
+          'access_token',
+          '*.access_token',
+          'fhirAuthorization',
+          '*.fhirAuthorization',
+          'token',
+        ],
         censor: '[redacted]',
       },
     },

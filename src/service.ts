@@ -27,7 +27,14 @@ export interface Service {
   log: Logger;
   rulesVersion: string;
   /** What the start-up line reports. */
-  startup: { publicUrl: string; publicUrlFromEnv: boolean; trustedIssuers: number; auditReaders: number; auditStore: string; replayCache: 'shared' | 'per-process' };
+  startup: {
+    publicUrl: string;
+    publicUrlFromEnv: boolean;
+    trustedIssuers: number;
+    auditReaders: number;
+    auditStore: string;
+    replayCache: 'shared' | 'per-process';
+  };
   close(): Promise<void>;
 }
 
@@ -62,7 +69,11 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
   const auditVerifier = createClientVerifier(auditReaders, { replayCache });
   const fhirServers = new Map(auth.issuers.flatMap((i) => (i.fhirServers ? [[i.iss, i.fhirServers] as const] : [])));
   const unlisted = auth.issuers.filter((i) => !i.fhirServers).map((i) => i.iss);
-  if (unlisted.length) log.warn({ issuers: unlisted }, 'trusted issuers without a fhirServers list: any https FHIR server their calls name gets the call\'s token (docs/security.md)');
+  if (unlisted.length)
+    log.warn(
+      { issuers: unlisted },
+      "trusted issuers without a fhirServers list: any https FHIR server their calls name gets the call's token (docs/security.md)",
+    );
   const warnings: string[] = [];
   if (cfg.TIDEMARK_TRIAL_MODE) {
     // Shown at /readyz; the start-up log line comes from the CDS guard (src/auth/middleware.ts), once.
@@ -82,7 +93,12 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     log.warn({ publicUrl }, w);
   }
   const metrics = createMetrics();
-  const auditAuth = requireAuditAccess({ ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), verifier: auditVerifier, publicUrl, log });
+  const auditAuth = requireAuditAccess({
+    ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}),
+    verifier: auditVerifier,
+    publicUrl,
+    log,
+  });
   const app = createApp({
     metrics,
     onResponse: metrics.onResponse,
@@ -91,33 +107,70 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     readinessWarnings: warnings,
     pages: (a) => {
       mountPages(a, {
-        store, catalogue, thresholds, rulesVersion: version, now, timeZone: cfg.TIDEMARK_TIME_ZONE, frameAncestors: cfg.TIDEMARK_FRAME_ANCESTORS, log,
+        store,
+        catalogue,
+        thresholds,
+        rulesVersion: version,
+        now,
+        timeZone: cfg.TIDEMARK_TIME_ZONE,
+        frameAncestors: cfg.TIDEMARK_FRAME_ANCESTORS,
+        log,
         ...(signer ? { signer } : {}),
       });
       mountConsole(a, {
-        store, catalogue, catalogueDigest: digest, thresholds, rulesVersion: version, now, timeZone: cfg.TIDEMARK_TIME_ZONE, publicUrl, auditAuth,
-        sessionMinutes: cfg.TIDEMARK_CONSOLE_SESSION_MIN, bodyLimit: cfg.TIDEMARK_BODY_LIMIT, log,
-        ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}), ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
+        store,
+        catalogue,
+        catalogueDigest: digest,
+        thresholds,
+        rulesVersion: version,
+        now,
+        timeZone: cfg.TIDEMARK_TIME_ZONE,
+        publicUrl,
+        auditAuth,
+        sessionMinutes: cfg.TIDEMARK_CONSOLE_SESSION_MIN,
+        bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
+        log,
+        ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}),
+        ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
       });
     },
-    ...(signer ? { adviceLink: (id: string) => ({ label: ADVICE_LINK_LABEL, url: adviceLinkUrl(publicUrl, id, signer.sign(id, now().getTime())) }) } : {}),
+    ...(signer
+      ? { adviceLink: (id: string) => ({ label: ADVICE_LINK_LABEL, url: adviceLinkUrl(publicUrl, id, signer.sign(id, now().getTime())) }) }
+      : {}),
     ...(cfg.file.corsOrigins ? { corsOrigins: cfg.file.corsOrigins } : {}),
     extraRoutes: (a) => {
       a.get('/metrics', requireMetricsAccess({ metricsToken: cfg.TIDEMARK_METRICS_TOKEN, log }), async (_req, res) => {
         res.type(metrics.registry.contentType).send(await metrics.registry.metrics());
       });
     },
-    store, catalogue, catalogueDigest: digest, thresholds, rulesVersion: version, publicUrl, timeZone: cfg.TIDEMARK_TIME_ZONE, log, bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
+    store,
+    catalogue,
+    catalogueDigest: digest,
+    thresholds,
+    rulesVersion: version,
+    publicUrl,
+    timeZone: cfg.TIDEMARK_TIME_ZONE,
+    log,
+    bodyLimit: cfg.TIDEMARK_BODY_LIMIT,
     ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
-    gatherOptions: { budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY,
-      maxResponseBytes: cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES, maxCallBytes: cfg.TIDEMARK_FHIR_MAX_CALL_BYTES },
+    gatherOptions: {
+      budgetMs: cfg.TIDEMARK_FHIR_BUDGET_MS,
+      maxPages: cfg.TIDEMARK_FHIR_MAX_PAGES,
+      concurrency: cfg.TIDEMARK_FHIR_CONCURRENCY,
+      maxResponseBytes: cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES,
+      maxCallBytes: cfg.TIDEMARK_FHIR_MAX_CALL_BYTES,
+    },
     now,
     fhirServersFor: (issuer) => fhirServers.get(issuer),
     ...(opts.makeFetcher ? { makeFetcher: opts.makeFetcher } : {}),
   });
   const startup = {
-    publicUrl, publicUrlFromEnv: cfg.TIDEMARK_PUBLIC_URL !== undefined, trustedIssuers: verifier.issuerCount, auditReaders: auditVerifier.issuerCount,
-    auditStore: store.kind, replayCache: sharedReplay ? ('shared' as const) : ('per-process' as const),
+    publicUrl,
+    publicUrlFromEnv: cfg.TIDEMARK_PUBLIC_URL !== undefined,
+    trustedIssuers: verifier.issuerCount,
+    auditReaders: auditVerifier.issuerCount,
+    auditStore: store.kind,
+    replayCache: sharedReplay ? ('shared' as const) : ('per-process' as const),
   };
   return { app, store, log, rulesVersion: version, startup, close: () => store.close() };
 }
@@ -136,7 +189,9 @@ function authConfigOf(cfg: AppConfig, list: 'issuers' | 'auditReaders'): AuthCon
   });
   if (!parsed.success) {
     const where = (path: PropertyKey[]) => (path[0] === 'issuers' ? [list, ...path.slice(1)] : path).join('.');
-    throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE ${parsed.error.issues.map((i) => `${where(i.path)}: ${i.message}`).join('; ')}`);
+    throw new ConfigError(
+      `invalid configuration: TIDEMARK_CONFIG_FILE ${parsed.error.issues.map((i) => `${where(i.path)}: ${i.message}`).join('; ')}`,
+    );
   }
   return parsed.data;
 }

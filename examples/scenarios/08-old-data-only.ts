@@ -20,21 +20,46 @@ export const scenario: Scenario = {
   userId: 'Practitioner/hg-dr-fenwright',
   expect: { responsiveness: 'indeterminate', tolerance: 'not-known', indicator: 'info' },
   conclusion:
-    'Nothing on the chart is current, so neither responsiveness nor tolerance can be judged from it: examine the patient and re-measure '
-    + '(blood pressure, lactate, a dynamic test) before deciding on the bolus; old reassuring values are no basis for advice.',
+    'Nothing on the chart is current, so neither responsiveness nor tolerance can be judged from it: examine the patient and re-measure ' +
+    '(blood pressure, lactate, a dynamic test) before deciding on the bolus; old reassuring values are no basis for advice.',
   build(now) {
     const c = new Chart('odo', P, now);
     c.patient('male', '1985-12-04', 'Kittering', 'Anselm').encounter(E, 48 * H, 'Tern ICU, bed 8');
     c.num('bodyWeight', 77, 49 * H).num('bodyHeight', 183, 49 * H);
-    c.vitals(every(14 * H, 7 * H, 30).map((at, i) => ({ at, hr: 92 + wobble(i, 3), sbp: 112 + wobble(i, 3), dbp: 60, map: 76 + wobble(i, 2), rr: 16, spo2: 97 })));
-    c.series('cvp', every(14 * H, 7 * H, 60).map((at) => [at, 7] as const));
-    c.series('lactate', [[9 * H, 1.6]]).series('albumin', [[50 * H, 35]]).series('creatinine', [[26 * H, 0.9]]);
+    c.vitals(
+      every(14 * H, 7 * H, 30).map((at, i) => ({
+        at,
+        hr: 92 + wobble(i, 3),
+        sbp: 112 + wobble(i, 3),
+        dbp: 60,
+        map: 76 + wobble(i, 2),
+        rr: 16,
+        spo2: 97,
+      })),
+    );
+    c.series(
+      'cvp',
+      every(14 * H, 7 * H, 60).map((at) => [at, 7] as const),
+    );
+    c.series('lactate', [[9 * H, 1.6]])
+      .series('albumin', [[50 * H, 35]])
+      .series('creatinine', [[26 * H, 0.9]]);
     c.codedSeries('ventilationMode', 'controlled-no-effort', every(14 * H, 7 * H, 60));
     c.codedSeries('heartRhythm', 'sinus', every(14 * H, 7 * H, 60));
-    c.series('tidalVolume', every(14 * H, 7 * H, 60).map((at) => [at, 620] as const));
-    c.series('fio2', every(14 * H, 7 * H, 60).map((at) => [at, 30] as const));
+    c.series(
+      'tidalVolume',
+      every(14 * H, 7 * H, 60).map((at) => [at, 620] as const),
+    );
+    c.series(
+      'fio2',
+      every(14 * H, 7 * H, 60).map((at) => [at, 30] as const),
+    );
     c.series('ppv', [[8 * H, 6]]);
-    c.shifts([[48 * H, 37 * H, 2600, 1900], [37 * H, 25 * H, 1900, 1700], [25 * H, 13 * H, 1700, 1600]]);
+    c.shifts([
+      [48 * H, 37 * H, 2600, 1900],
+      [37 * H, 25 * H, 1900, 1700],
+      [25 * H, 13 * H, 1700, 1600],
+    ]);
     c.hourlyUrine(21 * H, 13 * H, () => 80);
     c.num('edemaGrade', 0, 26 * H).num('bLineRegions', 0, 8 * H);
     const draft = Chart.bolusDraft('odo-order-bolus', P, now, b.FLUIDS.lactatedRinger, 250, 15);

@@ -23,10 +23,28 @@ export const scenario: Scenario = {
     c.patient('female', '1990-01-19', 'Oakhurst', 'Delphine').encounter(E, 30 * 60, 'Kestrel ICU, bed 12');
     c.condition(CONDITIONS.pneumonia, 40 * 60);
     c.num('bodyWeight', 61, 30 * 60).num('bodyHeight', 166, 30 * 60);
-    c.vitals(every(180, 0, 30).map((at, i) => ({ at: at + 2, hr: 98 + wobble(i, 3), sbp: 118 + wobble(i, 3), dbp: 64, map: 82 + wobble(i, 2), rr: 19, spo2: 96 })));
+    c.vitals(
+      every(180, 0, 30).map((at, i) => ({
+        at: at + 2,
+        hr: 98 + wobble(i, 3),
+        sbp: 118 + wobble(i, 3),
+        dbp: 64,
+        map: 82 + wobble(i, 2),
+        rr: 19,
+        spo2: 96,
+      })),
+    );
     c.series('lactate', [[3 * 60, 1.3]]);
-    c.codedSeries('ventilationMode', 'spontaneous', every(180, 0, 60).map((m) => m + 5));
-    c.shifts([[30 * 60, 18 * 60, 1800, 1500], [18 * 60, 6 * 60, 1600, 1400], [6 * 60, 0, 700, 600]]);
+    c.codedSeries(
+      'ventilationMode',
+      'spontaneous',
+      every(180, 0, 60).map((m) => m + 5),
+    );
+    c.shifts([
+      [30 * 60, 18 * 60, 1800, 1500],
+      [18 * 60, 6 * 60, 1600, 1400],
+      [6 * 60, 0, 700, 600],
+    ]);
     const order = b.otherOrder('naf-order-paracetamol', P, 'Paracetamol 1 g intravenous infusion over 15 min', b.minutesAgo(now, 1));
     return { resources: c.resources, draftOrders: [order], selections: ['MedicationRequest/naf-order-paracetamol'], hook: 'order-select' };
   },

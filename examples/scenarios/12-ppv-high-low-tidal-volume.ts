@@ -18,21 +18,51 @@ export const scenario: Scenario = {
   patientId: P,
   encounterId: E,
   userId: 'Practitioner/hg-dr-amberley',
-  expect: { responsiveness: 'likely', tolerance: 'limited', indicator: 'warning', action: 'smaller-aliquot', nextTest: 'tidal-volume-challenge' },
+  expect: {
+    responsiveness: 'likely',
+    tolerance: 'limited',
+    indicator: 'warning',
+    action: 'smaller-aliquot',
+    nextTest: 'tidal-volume-challenge',
+  },
   conclusion:
-    'Low tidal volume makes PPV read low, not high, so 16 % still argues for responsiveness; MAP 60 and lactate 2.8 show a need. Oxygenation '
-    + '(SpO2/FiO2 184) limits tolerance: give a smaller aliquot and reassess; a tidal volume challenge (6 → 8 mL/kg) would confirm.',
+    'Low tidal volume makes PPV read low, not high, so 16 % still argues for responsiveness; MAP 60 and lactate 2.8 show a need. Oxygenation ' +
+    '(SpO2/FiO2 184) limits tolerance: give a smaller aliquot and reassess; a tidal volume challenge (6 → 8 mL/kg) would confirm.',
   build(now) {
     const c = new Chart('pht', P, now);
     c.patient('male', '1963-10-05', 'Caddow', 'Fergus').encounter(E, 30 * 60, 'Plover ICU, bed 6');
     c.condition(CONDITIONS.pneumonia, 34 * 60).condition(CONDITIONS.sepsis, 32 * 60);
     c.num('bodyWeight', 84, 30 * 60).num('bodyHeight', 178, 30 * 60);
-    chartOrdinary(c, { map: 60, hr: 104, rr: 24, spo2: 92, cvp: 9, ventilation: 'controlled-no-effort', tidalVolumeMl: 440, peep: 10, fio2: 50, urineMlPerHour: 45 });
+    chartOrdinary(c, {
+      map: 60,
+      hr: 104,
+      rr: 24,
+      spo2: 92,
+      cvp: 9,
+      ventilation: 'controlled-no-effort',
+      tidalVolumeMl: 440,
+      peep: 10,
+      fio2: 50,
+      urineMlPerHour: 45,
+    });
     c.coded('chestStatus', 'closed', 30 * 60);
-    c.series('ppv', [[80, 15], [20, 16]]);
+    c.series('ppv', [
+      [80, 15],
+      [20, 16],
+    ]);
     c.norepinephrineRunning(10 * 60, 0.1);
-    c.series('lactate', [[8 * 60, 3.1], [2 * 60, 2.8]]).series('creatinine', [[26 * 60, 1.0], [6 * 60, 1.1]]);
-    c.shifts([[30 * 60, 18 * 60, 2600, 1300], [18 * 60, 6 * 60, 1900, 1200], [6 * 60, 20, 700, 300]]);
+    c.series('lactate', [
+      [8 * 60, 3.1],
+      [2 * 60, 2.8],
+    ]).series('creatinine', [
+      [26 * 60, 1.0],
+      [6 * 60, 1.1],
+    ]);
+    c.shifts([
+      [30 * 60, 18 * 60, 2600, 1300],
+      [18 * 60, 6 * 60, 1900, 1200],
+      [6 * 60, 20, 700, 300],
+    ]);
     const draft = Chart.bolusDraft('pht-order-bolus', P, now, b.FLUIDS.lactatedRinger, 500, 30);
     return { resources: c.resources, draftOrders: [draft], selections: ['MedicationRequest/pht-order-bolus'], hook: 'order-sign' };
   },

@@ -20,9 +20,9 @@ export const scenario: Scenario = {
   userId: 'Practitioner/hg-dr-penhallow',
   expect: { responsiveness: 'indeterminate', tolerance: 'not-known', indicator: 'info', action: 'resuscitate-and-reassess' },
   conclusion:
-    'First hour of septic shock with MAP 58 and lactate 4.8 and only 500 of 2,400 mL (30 mL/kg admission weight) given: continue '
-    + 'resuscitation in steps with reassessment after each, and start a vasopressor early if MAP stays low; do not withhold the bolus '
-    + 'for want of a dynamic test. Too little is charted yet to judge tolerance.',
+    'First hour of septic shock with MAP 58 and lactate 4.8 and only 500 of 2,400 mL (30 mL/kg admission weight) given: continue ' +
+    'resuscitation in steps with reassessment after each, and start a vasopressor early if MAP stays low; do not withhold the bolus ' +
+    'for want of a dynamic test. Too little is charted yet to judge tolerance.',
   build(now) {
     const c = new Chart('ess', P, now);
     c.patient('male', '1960-05-27', 'Quennell', 'Barnaby').encounter(E, 50, 'Sanderling ICU, bed 1');

@@ -31,18 +31,48 @@ export const CONDITIONS = {
 } as const;
 
 const SHORT: Partial<Record<NumericKind, string>> = {
-  heartRate: 'hr', systolicBp: 'sbp', diastolicBp: 'dbp', meanBp: 'map', respiratoryRate: 'rr', spo2: 'spo2', fio2: 'fio2',
-  bodyWeight: 'wt', bodyHeight: 'ht', cvp: 'cvp', lactate: 'lac', albumin: 'alb', creatinine: 'cre', urineOutput: 'uo',
-  fluidIntake: 'in', fluidOutput: 'out', fluidBalance: 'bal', cardiacOutput: 'co', ppv: 'ppv', svv: 'svv',
-  ivcDiameterMax: 'ivcmax', ivcDiameterMin: 'ivcmin', capillaryRefill: 'crt', tidalVolume: 'vt', peep: 'peep',
-  intraAbdominalPressure: 'iap', edemaGrade: 'oed', bLineRegions: 'blines', bLineRegionsLeft: 'blinesl', bLineRegionsRight: 'blinesr', portalPulsatility: 'portal',
+  heartRate: 'hr',
+  systolicBp: 'sbp',
+  diastolicBp: 'dbp',
+  meanBp: 'map',
+  respiratoryRate: 'rr',
+  spo2: 'spo2',
+  fio2: 'fio2',
+  bodyWeight: 'wt',
+  bodyHeight: 'ht',
+  cvp: 'cvp',
+  lactate: 'lac',
+  albumin: 'alb',
+  creatinine: 'cre',
+  urineOutput: 'uo',
+  fluidIntake: 'in',
+  fluidOutput: 'out',
+  fluidBalance: 'bal',
+  cardiacOutput: 'co',
+  ppv: 'ppv',
+  svv: 'svv',
+  ivcDiameterMax: 'ivcmax',
+  ivcDiameterMin: 'ivcmin',
+  capillaryRefill: 'crt',
+  tidalVolume: 'vt',
+  peep: 'peep',
+  intraAbdominalPressure: 'iap',
+  edemaGrade: 'oed',
+  bLineRegions: 'blines',
+  bLineRegionsLeft: 'blinesl',
+  bLineRegionsRight: 'blinesr',
+  portalPulsatility: 'portal',
 };
 
 export class Chart {
   readonly resources: FhirResource[] = [];
   private n = 0;
 
-  constructor(readonly prefix: string, readonly patientId: string, readonly now: Date) {}
+  constructor(
+    readonly prefix: string,
+    readonly patientId: string,
+    readonly now: Date,
+  ) {}
 
   /** ISO instant `minutes` before now. */
   t(minutes: number): string {
@@ -148,7 +178,8 @@ export class Chart {
 
   condition(c: { code: string; display: string }, onsetMinAgo?: number, clinicalStatus: 'active' | 'resolved' = 'active'): this {
     const cond: Condition = b.condition(this.id('cond'), this.patientId, SNOMED, c.code, c.display);
-    if (clinicalStatus !== 'active') cond.clinicalStatus = { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/condition-clinical', code: clinicalStatus }] };
+    if (clinicalStatus !== 'active')
+      cond.clinicalStatus = { coding: [{ system: 'http://terminology.hl7.org/CodeSystem/condition-clinical', code: clinicalStatus }] };
     this.add(onsetMinAgo === undefined ? cond : { ...cond, onsetDateTime: this.t(onsetMinAgo) });
     return this;
   }
@@ -161,29 +192,57 @@ export class Chart {
 
   /** A running norepinephrine infusion since `startMinAgo` at a steady rate (MedicationAdministration in progress). */
   norepinephrineRunning(startMinAgo: number, mcgPerKgPerMin: number): this {
-    const ma = b.administration(this.id('ma'), this.patientId, b.FLUIDS.norepinephrine, undefined, this.t(startMinAgo), this.t(0), { value: mcgPerKgPerMin, unit: 'ug/kg/min' });
+    const ma = b.administration(this.id('ma'), this.patientId, b.FLUIDS.norepinephrine, undefined, this.t(startMinAgo), this.t(0), {
+      value: mcgPerKgPerMin,
+      unit: 'ug/kg/min',
+    });
     const running: MedicationAdministration = { ...ma, status: 'in-progress', effectivePeriod: { start: this.t(startMinAgo) } };
     this.add(running);
     return this;
   }
 
   /** A standing (signed) medication order: an active norepinephrine infusion, or a finished one. */
-  order(medication: (typeof b.FLUIDS)[keyof typeof b.FLUIDS], authoredMinAgo: number, status: 'active' | 'completed' | 'stopped', rate?: { value: number; unit: string }): this {
+  order(
+    medication: (typeof b.FLUIDS)[keyof typeof b.FLUIDS],
+    authoredMinAgo: number,
+    status: 'active' | 'completed' | 'stopped',
+    rate?: { value: number; unit: string },
+  ): this {
     const req: MedicationRequest = {
-      resourceType: 'MedicationRequest', id: this.id('mr'), status, intent: 'order', subject: { reference: `Patient/${this.patientId}` },
-      authoredOn: this.t(authoredMinAgo), medicationCodeableConcept: structuredClone(medication) as MedicationRequest['medicationCodeableConcept'],
-      dosageInstruction: [{
-        text: rate ? `${rate.value} ${rate.unit} IV, titrated to MAP` : 'IV as directed',
-        route: { coding: [{ system: SNOMED, code: '47625008', display: 'Intravenous route' }] },
-        ...(rate ? { doseAndRate: [{ rateQuantity: { value: rate.value, unit: rate.unit, system: 'http://unitsofmeasure.org', code: rate.unit } }] } : {}),
-      }],
+      resourceType: 'MedicationRequest',
+      id: this.id('mr'),
+      status,
+      intent: 'order',
+      subject: { reference: `Patient/${this.patientId}` },
+      authoredOn: this.t(authoredMinAgo),
+      medicationCodeableConcept: structuredClone(medication) as MedicationRequest['medicationCodeableConcept'],
+      dosageInstruction: [
+        {
+          text: rate ? `${rate.value} ${rate.unit} IV, titrated to MAP` : 'IV as directed',
+          route: { coding: [{ system: SNOMED, code: '47625008', display: 'Intravenous route' }] },
+          ...(rate
+            ? {
+                doseAndRate: [
+                  { rateQuantity: { value: rate.value, unit: rate.unit, system: 'http://unitsofmeasure.org', code: rate.unit } },
+                ],
+              }
+            : {}),
+        },
+      ],
     };
     this.add(req);
     return this;
   }
 
   /** The bolus being ordered now (a draft MedicationRequest, not on the server). */
-  static bolusDraft(id: string, patientId: string, now: Date, medication: (typeof b.FLUIDS)[keyof typeof b.FLUIDS], ml: number, minutes: number): MedicationRequest {
+  static bolusDraft(
+    id: string,
+    patientId: string,
+    now: Date,
+    medication: (typeof b.FLUIDS)[keyof typeof b.FLUIDS],
+    ml: number,
+    minutes: number,
+  ): MedicationRequest {
     return b.bolusOrder(id, patientId, medication, ml, minutes, b.minutesAgo(now, 1));
   }
 }

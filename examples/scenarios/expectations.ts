@@ -17,8 +17,12 @@ export interface ObservedVerdicts {
   nextTest: string | null;
 }
 
-interface VerdictLike { value?: unknown }
-interface RecordLike { advice?: { responsiveness?: VerdictLike; tolerance?: VerdictLike; recommendation?: { action?: unknown; nextTest?: unknown } } }
+interface VerdictLike {
+  value?: unknown;
+}
+interface RecordLike {
+  advice?: { responsiveness?: VerdictLike; tolerance?: VerdictLike; recommendation?: { action?: unknown; nextTest?: unknown } };
+}
 
 const SEVERITY = ['info', 'warning', 'critical'];
 
@@ -30,8 +34,11 @@ export function observedVerdicts(record: unknown, cards: ReadonlyArray<{ indicat
   const indicators = cards.map((c) => String(c.indicator)).sort((a, b) => SEVERITY.indexOf(b) - SEVERITY.indexOf(a));
   const rec = advice?.recommendation;
   return {
-    responsiveness: r && typeof r.value === 'string' ? r.value : null, tolerance, indicator: indicators[0] ?? 'no-card',
-    action: typeof rec?.action === 'string' ? rec.action : null, nextTest: typeof rec?.nextTest === 'string' ? rec.nextTest : null,
+    responsiveness: r && typeof r.value === 'string' ? r.value : null,
+    tolerance,
+    indicator: indicators[0] ?? 'no-card',
+    action: typeof rec?.action === 'string' ? rec.action : null,
+    nextTest: typeof rec?.nextTest === 'string' ? rec.nextTest : null,
   };
 }
 
@@ -44,12 +51,15 @@ export function mismatches(expected: ScenarioExpectation, observed: ObservedVerd
   }
   if (expected.tolerance !== null) {
     // "not-known" also matches a record that leaves the tolerance verdict out while giving a responsiveness verdict.
-    const ok = expected.tolerance === observed.tolerance
-      || (expected.tolerance === 'not-known' && observed.tolerance === null && observed.responsiveness !== null);
+    const ok =
+      expected.tolerance === observed.tolerance ||
+      (expected.tolerance === 'not-known' && observed.tolerance === null && observed.responsiveness !== null);
     if (!ok) out.push(`tolerance ${observed.tolerance ?? 'not given'}, expected ${expected.tolerance}`);
   }
-  if (expected.action !== undefined && expected.action !== observed.action) out.push(`action ${observed.action ?? 'none'}, expected ${expected.action}`);
-  if (expected.nextTest !== undefined && expected.nextTest !== observed.nextTest) out.push(`test offered ${observed.nextTest ?? 'none'}, expected ${expected.nextTest ?? 'none'}`);
+  if (expected.action !== undefined && expected.action !== observed.action)
+    out.push(`action ${observed.action ?? 'none'}, expected ${expected.action}`);
+  if (expected.nextTest !== undefined && expected.nextTest !== observed.nextTest)
+    out.push(`test offered ${observed.nextTest ?? 'none'}, expected ${expected.nextTest ?? 'none'}`);
   return out;
 }
 

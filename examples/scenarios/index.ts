@@ -31,10 +31,25 @@ import type { BuiltScenario, OrderHook, Scenario } from './types.js';
 export type { BuiltScenario, Scenario, ScenarioExpectation } from './types.js';
 
 export const SCENARIOS: readonly Scenario[] = [
-  clearResponder, responderPoorTolerance, fixedFullIvc, ppvNotValid, legRaiseFirst,
-  bolusAnswered, bolusUnanswered, oldDataOnly, notAFluidOrder, tidalVolumeChallenge,
-  responsiveWellPerfused, ppvHighLowTidalVolume, cvpOnPeep, legRaiseBeforeBolus, raisedAbdominalPressure,
-  oneSidedLungUltrasound, perfusedAfIvcOnly, earlySepticShock, cirrhosisLungWater,
+  clearResponder,
+  responderPoorTolerance,
+  fixedFullIvc,
+  ppvNotValid,
+  legRaiseFirst,
+  bolusAnswered,
+  bolusUnanswered,
+  oldDataOnly,
+  notAFluidOrder,
+  tidalVolumeChallenge,
+  responsiveWellPerfused,
+  ppvHighLowTidalVolume,
+  cvpOnPeep,
+  legRaiseBeforeBolus,
+  raisedAbdominalPressure,
+  oneSidedLungUltrasound,
+  perfusedAfIvcOnly,
+  earlySepticShock,
+  cirrhosisLungWater,
 ];
 
 /** The Tidemark service that answers a hook (from the registry, not hard-coded). */
@@ -61,8 +76,7 @@ export function hookContext(s: Scenario, built: BuiltScenario): Record<string, u
 }
 
 export type DataRoute =
-  | { kind: 'fhir-server'; fhirServer: string; accessToken: string }
-  | { kind: 'prefetch'; prefetch: Record<string, unknown> };
+  { kind: 'fhir-server'; fhirServer: string; accessToken: string } | { kind: 'prefetch'; prefetch: Record<string, unknown> };
 
 /** A CDS Hooks 2.0 request for the scenario: either Tidemark queries the FHIR server, or everything is in prefetch. */
 export function hookRequest(s: Scenario, built: BuiltScenario, route: DataRoute): Record<string, unknown> {
@@ -71,13 +85,17 @@ export function hookRequest(s: Scenario, built: BuiltScenario, route: DataRoute)
     hookInstance: randomUUID(),
     ...(route.kind === 'fhir-server'
       ? {
-        fhirServer: route.fhirServer,
-        fhirAuthorization: {
-          access_token: route.accessToken, token_type: 'Bearer', expires_in: 300,
-          scope: 'patient/Patient.read patient/Encounter.read patient/Observation.read patient/Condition.read patient/MedicationAdministration.read patient/MedicationRequest.read',
-          subject: 'tidemark-demo-client', patient: s.patientId,
-        },
-      }
+          fhirServer: route.fhirServer,
+          fhirAuthorization: {
+            access_token: route.accessToken,
+            token_type: 'Bearer',
+            expires_in: 300,
+            scope:
+              'patient/Patient.read patient/Encounter.read patient/Observation.read patient/Condition.read patient/MedicationAdministration.read patient/MedicationRequest.read',
+            subject: 'tidemark-demo-client',
+            patient: s.patientId,
+          },
+        }
       : {}),
     context: hookContext(s, built),
     ...(route.kind === 'prefetch' ? { prefetch: route.prefetch } : {}),

@@ -50,9 +50,16 @@ async function json(url: string, init: RequestInit = {}): Promise<{ status: numb
 }
 
 /** The audit record of one call: the newest of this patient and service, if it carries the call's hookInstance. */
-export async function latestRecord(t: RunTargets, patientId: string, serviceId: string, hookInstance: string): Promise<Record<string, unknown> | undefined> {
+export async function latestRecord(
+  t: RunTargets,
+  patientId: string,
+  serviceId: string,
+  hookInstance: string,
+): Promise<Record<string, unknown> | undefined> {
   const headers: Record<string, string> = t.auditToken ? { authorization: `Bearer ${t.auditToken}` } : {};
-  const list = await json(`${t.serviceUrl}/audit/advice?${new URLSearchParams({ patient: patientId, service: serviceId, limit: '1' })}`, { headers });
+  const list = await json(`${t.serviceUrl}/audit/advice?${new URLSearchParams({ patient: patientId, service: serviceId, limit: '1' })}`, {
+    headers,
+  });
   const id = list.status === 200 ? (list.body?.items?.[0]?.id as string | undefined) : undefined;
   if (!id) return undefined;
   const rec = await json(`${t.serviceUrl}/audit/advice/${encodeURIComponent(id)}`, { headers });
@@ -74,12 +81,19 @@ export async function runScenario(t: RunTargets, s: Scenario, built: BuiltScenar
   }
   const t0 = performance.now();
   const res = await json(`${t.serviceUrl}/cds-services/${serviceId}`, {
-    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(request),
+    method: 'POST',
+    headers: { 'content-type': 'application/json' },
+    body: JSON.stringify(request),
   });
   const ms = performance.now() - t0;
   const record = await latestRecord(t, s.patientId, serviceId, String(request['hookInstance']));
   return {
-    route, serviceId, status: res.status, body: res.body, ms,
-    ...(record ? { record } : {}), ...(prefetchQueries ? { prefetchQueries } : {}),
+    route,
+    serviceId,
+    status: res.status,
+    body: res.body,
+    ms,
+    ...(record ? { record } : {}),
+    ...(prefetchQueries ? { prefetchQueries } : {}),
   };
 }

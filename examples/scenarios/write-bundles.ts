@@ -34,7 +34,8 @@ async function main(): Promise<void> {
       if (!service) throw new Error(`no service ${serviceId}`);
       const { prefetch, queries } = await prefetchFromServer(fhir.baseUrl, service, hookContext(s, built));
       const failed = queries.filter((q) => q.status !== 200);
-      if (failed.length) throw new Error(`${s.id}: prefetch queries failed: ${failed.map((q) => `${q.key} ${q.status} ${q.detail ?? ''}`).join('; ')}`);
+      if (failed.length)
+        throw new Error(`${s.id}: prefetch queries failed: ${failed.map((q) => `${q.key} ${q.status} ${q.detail ?? ''}`).join('; ')}`);
       const request = hookRequest(s, built, { kind: 'prefetch', prefetch });
       const stem = `${String(i + 1).padStart(2, '0')}-${s.id}`;
       writeFileSync(join(outDir, `${stem}.bundle.json`), `${JSON.stringify(bundle, null, 2)}\n`);

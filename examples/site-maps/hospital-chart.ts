@@ -13,9 +13,21 @@ export const SITE_CONFIG = 'examples/site-maps/tidemark-config.json';
 
 const at = (now: Date, minutesAgo: number) => new Date(now.getTime() - minutesAgo * 60_000).toISOString().replace(/\.\d{3}Z$/, 'Z');
 
-function obs(id: string, system: string, code: string, display: string, value: number, unit: string, minutesAgo: number, now: Date, ucum = false): Observation {
+function obs(
+  id: string,
+  system: string,
+  code: string,
+  display: string,
+  value: number,
+  unit: string,
+  minutesAgo: number,
+  now: Date,
+  ucum = false,
+): Observation {
   return {
-    resourceType: 'Observation', id, status: 'final',
+    resourceType: 'Observation',
+    id,
+    status: 'final',
     code: { coding: [{ system, code, display }] },
     subject: { reference: `Patient/${SITE_PATIENT}` },
     effectiveDateTime: at(now, minutesAgo),

@@ -7,4 +7,7 @@ import { writeFileSync } from 'node:fs';
 import { siteChart } from './hospital-chart.js';
 
 const out = process.argv[2] ?? 'hospital-coded.bundle.json';
-writeFileSync(out, `${JSON.stringify({ resourceType: 'Bundle', type: 'collection', entry: siteChart(new Date()).map((resource) => ({ resource })) }, null, 2)}\n`);
+writeFileSync(
+  out,
+  `${JSON.stringify({ resourceType: 'Bundle', type: 'collection', entry: siteChart(new Date()).map((resource) => ({ resource })) }, null, 2)}\n`,
+);

@@ -34,7 +34,8 @@ export function assess(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersio
     const w = guarded('what-if', advice.ruleErrors, () => {
       const events = evidenceEvents(s, now, t.windows.fluidEventMinMl);
       return computeWhatIf({
-        ctx: { snapshot: s, now, t: t.responsiveness, w: t.windows, events }, advice,
+        ctx: { snapshot: s, now, t: t.responsiveness, w: t.windows, events },
+        advice,
         rerun: (x) => assessOnce(x, now, t, rulesVersion),
       });
     });
@@ -52,11 +53,19 @@ function assessOnce(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: 
   const ctx = <T>(x: T): RuleContext<T> => ({ snapshot: s, now, t: x, w: t.windows, events });
 
   const tol = t.tolerance;
-  const need = guarded('need', ruleErrors, () => assessNeed(ctx({
-    ...t.need, weightMaxAgeHours: tol.weightMaxAgeHours, admissionWeightWindowHours: tol.admissionWeightWindowHours,
-    balanceFallbackLookbackHours: tol.balanceFallbackLookbackHours, urinePointMaxGapMinutes: tol.urinePointMaxGapMinutes,
-    urineRecencyMinutes: tol.urineRecencyMinutes, urineCoverageFraction: tol.urineCoverageFraction,
-  })));
+  const need = guarded('need', ruleErrors, () =>
+    assessNeed(
+      ctx({
+        ...t.need,
+        weightMaxAgeHours: tol.weightMaxAgeHours,
+        admissionWeightWindowHours: tol.admissionWeightWindowHours,
+        balanceFallbackLookbackHours: tol.balanceFallbackLookbackHours,
+        urinePointMaxGapMinutes: tol.urinePointMaxGapMinutes,
+        urineRecencyMinutes: tol.urineRecencyMinutes,
+        urineCoverageFraction: tol.urineCoverageFraction,
+      }),
+    ),
+  );
   if (need) {
     findings.push(...need.findings);
     ruleErrors.push(...need.ruleErrors);
@@ -72,7 +81,13 @@ function assessOnce(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: 
   }
   // A number counts once: the shared numbers of the findings that decided responsiveness.
   const counted: SharedNumber[] = r
-    ? [...new Set(r.findings.filter((f) => r.verdict.decidingRules.includes(f.ruleId) && r.verdict.value !== 'indeterminate').flatMap((f) => f.uses ?? []))]
+    ? [
+        ...new Set(
+          r.findings
+            .filter((f) => r.verdict.decidingRules.includes(f.ruleId) && r.verdict.value !== 'indeterminate')
+            .flatMap((f) => f.uses ?? []),
+        ),
+      ]
     : [];
   const tv = guarded('tolerance', ruleErrors, () => assessTolerance(ctx(t.tolerance), counted));
   if (tv) {
@@ -86,9 +101,16 @@ function assessOnce(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: 
     const orderFindings = guarded('order', ruleErrors, () => orders.flatMap((o) => describeOrder(o, s, now, t.order))) ?? [];
     findings.push(...orderFindings);
     if (r && tv && need && need.phase) {
-      const rec = guarded('advice', ruleErrors, () => adviseOrder({
-        responsiveness: r.verdict, tolerance: tv.verdict, need: need.need, phase: need.phase!, findings, orderFindings,
-      }));
+      const rec = guarded('advice', ruleErrors, () =>
+        adviseOrder({
+          responsiveness: r.verdict,
+          tolerance: tv.verdict,
+          need: need.need,
+          phase: need.phase!,
+          findings,
+          orderFindings,
+        }),
+      );
       if (rec) advice.recommendation = rec;
     }
   }

@@ -5,11 +5,36 @@ import type { RuleError } from './common/rule.js';
 import type { WhatIf } from './what-if/types.js';
 import type { Confidence, Need, NextTestKind, PhaseValue, Responsiveness, Tolerance } from './common/verdicts.js';
 
-export { NEXT_TESTS, type Confidence, type Need, type NextTestKind, type PhaseValue, type Responsiveness, type Tolerance } from './common/verdicts.js';
+export {
+  NEXT_TESTS,
+  type Confidence,
+  type Need,
+  type NextTestKind,
+  type PhaseValue,
+  type Responsiveness,
+  type Tolerance,
+} from './common/verdicts.js';
 
 export type {
-  Direction, Evidence, Figures, Finding, FindingTopic, Freshness, GapKind, Marker, NeedSign, OrderFinding, PerfusionFinding,
-  Phase, PhaseFinding, ResponsivenessFinding, SharedNumber, Tier, ToleranceDomain, ToleranceFinding, ToleranceLimit,
+  Direction,
+  Evidence,
+  Figures,
+  Finding,
+  FindingTopic,
+  Freshness,
+  GapKind,
+  Marker,
+  NeedSign,
+  OrderFinding,
+  PerfusionFinding,
+  Phase,
+  PhaseFinding,
+  ResponsivenessFinding,
+  SharedNumber,
+  Tier,
+  ToleranceDomain,
+  ToleranceFinding,
+  ToleranceLimit,
 } from './common/finding.js';
 
 export interface Verdict<V extends string> {

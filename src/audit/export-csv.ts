@@ -7,8 +7,21 @@ import { outcomeOfRecord } from './outcome.js';
 import type { FeedbackRow, StoredAdvice } from './types.js';
 
 export const CSV_EXPORT_COLUMNS = [
-  'advice_id', 'recorded_at', 'service', 'outcome', 'patient_id', 'encounter_id', 'user_id', 'responsiveness', 'tolerance',
-  'indicator', 'card_kinds', 'feedback_outcome', 'override_reason', 'rules_version', 'latency_ms',
+  'advice_id',
+  'recorded_at',
+  'service',
+  'outcome',
+  'patient_id',
+  'encounter_id',
+  'user_id',
+  'responsiveness',
+  'tolerance',
+  'indicator',
+  'card_kinds',
+  'feedback_outcome',
+  'override_reason',
+  'rules_version',
+  'latency_ms',
 ] as const;
 
 const RANK: Record<string, number> = { info: 1, warning: 2, critical: 3 };
@@ -28,8 +41,20 @@ export function csvExportRow(rec: StoredAdvice, feedback: readonly FeedbackRow[]
     .map((f) => f.overrideReason?.display ?? f.overrideReason?.code ?? (f.userComment ? `comment: ${f.userComment}` : ''))
     .filter(Boolean);
   return csvRow([
-    rec.id, rec.recordedAt, rec.service, rec.outcome, rec.patientId, rec.encounterId, rec.userId, o.responsiveness, o.tolerance,
-    indicator, list(o.cards.map((c) => c.kind)), list(feedback.map((f) => f.outcome)), list(reasons), rec.rulesVersion,
+    rec.id,
+    rec.recordedAt,
+    rec.service,
+    rec.outcome,
+    rec.patientId,
+    rec.encounterId,
+    rec.userId,
+    o.responsiveness,
+    o.tolerance,
+    indicator,
+    list(o.cards.map((c) => c.kind)),
+    list(feedback.map((f) => f.outcome)),
+    list(reasons),
+    rec.rulesVersion,
     Math.round(rec.timings.totalMs * 10) / 10,
   ]);
 }

@@ -37,12 +37,21 @@ export async function impactPage(
   const cand = candidateThresholds(req.thresholds);
   if (!cand.ok) return cand;
   const records = store.records({
-    outcome: 'answered', batchSize: Math.min(req.limit + 1, 500),
-    ...(req.service ? { service: req.service } : {}), ...(req.from ? { from: req.from } : {}), ...(req.to ? { to: req.to } : {}),
+    outcome: 'answered',
+    batchSize: Math.min(req.limit + 1, 500),
+    ...(req.service ? { service: req.service } : {}),
+    ...(req.from ? { from: req.from } : {}),
+    ...(req.to ? { to: req.to } : {}),
     ...(req.after !== undefined ? { afterSeq: req.after } : {}),
   });
-  const report = await impactOf(records, {
-    thresholds: cand.thresholds, catalogue: ctx.catalogue, rulesVersion: rulesVersion(ctx.catalogueDigest ?? 'unknown', cand.thresholds, undefined, ctx.siteMap),
-  }, { maxRecords: req.limit });
+  const report = await impactOf(
+    records,
+    {
+      thresholds: cand.thresholds,
+      catalogue: ctx.catalogue,
+      rulesVersion: rulesVersion(ctx.catalogueDigest ?? 'unknown', cand.thresholds, undefined, ctx.siteMap),
+    },
+    { maxRecords: req.limit },
+  );
   return { ok: true, body: { report, ...(report.more && report.lastSeq !== undefined ? { next: { after: report.lastSeq } } : {}) } };
 }

@@ -17,10 +17,17 @@ import type { StoredAdvice } from './types.js';
  * schema: unknown keys, out-of-range values and inverted bands refused), over the published defaults.
  */
 export function candidateThresholds(raw: unknown): { ok: true; thresholds: Thresholds } | { ok: false; message: string } {
-  if (typeof raw !== 'object' || raw === null || Array.isArray(raw)) return { ok: false, message: 'must be a JSON object (the shape of the configuration file\'s "thresholds")' };
+  if (typeof raw !== 'object' || raw === null || Array.isArray(raw))
+    return { ok: false, message: 'must be a JSON object (the shape of the configuration file\'s "thresholds")' };
   const r = thresholdsSchema.safeParse(raw);
   if (r.success) return { ok: true, thresholds: r.data };
-  return { ok: false, message: r.error.issues.slice(0, 10).map((i) => `${i.path.join('.') || '(root)'}: ${i.message}`).join('; ') };
+  return {
+    ok: false,
+    message: r.error.issues
+      .slice(0, 10)
+      .map((i) => `${i.path.join('.') || '(root)'}: ${i.message}`)
+      .join('; '),
+  };
 }
 
 export interface CandidateRules {
@@ -34,12 +41,25 @@ export interface CandidateRules {
  * indicator, its summary (the headline as shown) and its suggestion labels.
  */
 export type ChangeDimension =
-  | 'responsiveness' | 'confidence' | 'tolerance' | 'action' | 'next-test' | 'headline-key' | 'card' | 'indicator' | 'headline' | 'suggestions';
+  | 'responsiveness'
+  | 'confidence'
+  | 'tolerance'
+  | 'action'
+  | 'next-test'
+  | 'headline-key'
+  | 'card'
+  | 'indicator'
+  | 'headline'
+  | 'suggestions';
 
 /** The advice-level dimensions and the field of the comparable outcome each compares. */
 const ADVICE_DIMENSIONS = [
-  ['responsiveness', 'responsiveness'], ['confidence', 'confidence'], ['tolerance', 'tolerance'], ['action', 'action'],
-  ['next-test', 'nextTest'], ['headline-key', 'headlineKey'],
+  ['responsiveness', 'responsiveness'],
+  ['confidence', 'confidence'],
+  ['tolerance', 'tolerance'],
+  ['action', 'action'],
+  ['next-test', 'nextTest'],
+  ['headline-key', 'headlineKey'],
 ] as const satisfies ReadonlyArray<readonly [ChangeDimension, keyof ComparableOutcome]>;
 
 /** Counts of records in which at least one thing of that sort changed. */
@@ -112,8 +132,16 @@ export const EXAMPLES = 5;
 export const MAX_CHANGE_ROWS = 1000;
 /** Which count of records a change of each dimension adds to. */
 const COUNTED_AS: Record<ChangeDimension, keyof ChangedCounts> = {
-  responsiveness: 'responsiveness', confidence: 'confidence', tolerance: 'tolerance', action: 'action', 'next-test': 'nextTest',
-  'headline-key': 'headline', card: 'cards', indicator: 'indicator', headline: 'headline', suggestions: 'suggestions',
+  responsiveness: 'responsiveness',
+  confidence: 'confidence',
+  tolerance: 'tolerance',
+  action: 'action',
+  'next-test': 'nextTest',
+  'headline-key': 'headline',
+  card: 'cards',
+  indicator: 'indicator',
+  headline: 'headline',
+  suggestions: 'suggestions',
 };
 
 /** Records re-run between two turns of the event loop. */
@@ -132,7 +160,18 @@ export class ImpactTally {
   private notReplayable = 0;
   private failed = 0;
   private readonly failedExamples: string[] = [];
-  private readonly changed: ChangedCounts = { any: 0, responsiveness: 0, confidence: 0, tolerance: 0, action: 0, nextTest: 0, indicator: 0, headline: 0, suggestions: 0, cards: 0 };
+  private readonly changed: ChangedCounts = {
+    any: 0,
+    responsiveness: 0,
+    confidence: 0,
+    tolerance: 0,
+    action: 0,
+    nextTest: 0,
+    indicator: 0,
+    headline: 0,
+    suggestions: 0,
+    cards: 0,
+  };
   private readonly rows = new Map<string, ChangeRow>();
   private readonly kinds = new Map<string, KindRow>();
   private lastSeq: number | undefined;
@@ -238,13 +277,27 @@ export class ImpactTally {
     const order = Object.keys(COUNTED_AS);
     const changes = [...this.rows.values()]
       .map((r) => ({ ...r, examples: [...r.examples] }))
-      .sort((a, b) => b.count - a.count || order.indexOf(a.dimension) - order.indexOf(b.dimension) || a.cardKind.localeCompare(b.cardKind) || a.from.localeCompare(b.from) || a.to.localeCompare(b.to));
+      .sort(
+        (a, b) =>
+          b.count - a.count ||
+          order.indexOf(a.dimension) - order.indexOf(b.dimension) ||
+          a.cardKind.localeCompare(b.cardKind) ||
+          a.from.localeCompare(b.from) ||
+          a.to.localeCompare(b.to),
+      );
     return {
       candidateRulesVersion: this.rules.rulesVersion,
-      read: this.read, replayed: this.replayed, unchanged: this.unchanged, notReplayable: this.notReplayable,
-      failed: this.failed, failedExamples: [...this.failedExamples], changed: { ...this.changed },
+      read: this.read,
+      replayed: this.replayed,
+      unchanged: this.unchanged,
+      notReplayable: this.notReplayable,
+      failed: this.failed,
+      failedExamples: [...this.failedExamples],
+      changed: { ...this.changed },
       byCardKind: [...this.kinds.values()].map((k) => ({ ...k })).sort((a, b) => a.cardKind.localeCompare(b.cardKind)),
-      changes, ...(this.lastSeq !== undefined ? { lastSeq: this.lastSeq } : {}), more,
+      changes,
+      ...(this.lastSeq !== undefined ? { lastSeq: this.lastSeq } : {}),
+      more,
     };
   }
 }
@@ -263,7 +316,11 @@ export interface ImpactOptions {
 }
 
 /** Runs the tally over a stream of records (the store's records(), filtered to answered records). */
-export async function impactOf(records: AsyncIterable<StoredAdvice>, rules: CandidateRules, opts: ImpactOptions = {}): Promise<ImpactReport> {
+export async function impactOf(
+  records: AsyncIterable<StoredAdvice>,
+  rules: CandidateRules,
+  opts: ImpactOptions = {},
+): Promise<ImpactReport> {
   const tally = new ImpactTally(rules);
   let n = 0;
   for await (const rec of records) {
@@ -287,9 +344,15 @@ const CSV_HEADER = ['dimension', 'card_kind', 'from', 'to', 'count', 'examples']
 export function formatImpact(r: ImpactReport, format: ImpactFormat): string {
   if (format === 'ndjson') {
     const { changes, ...totals } = r;
-    return [JSON.stringify({ type: 'totals', ...totals }), ...changes.map((c) => JSON.stringify({ type: 'change', ...c }))].map((l) => `${l}\n`).join('');
+    return [JSON.stringify({ type: 'totals', ...totals }), ...changes.map((c) => JSON.stringify({ type: 'change', ...c }))]
+      .map((l) => `${l}\n`)
+      .join('');
   }
-  if (format === 'csv') return [csvRow(CSV_HEADER), ...r.changes.map((c) => csvRow([c.dimension, c.cardKind, c.from, c.to, c.count, c.examples.join(' ')]))].join('');
+  if (format === 'csv')
+    return [
+      csvRow(CSV_HEADER),
+      ...r.changes.map((c) => csvRow([c.dimension, c.cardKind, c.from, c.to, c.count, c.examples.join(' ')])),
+    ].join('');
   return table(r);
 }
 
@@ -301,7 +364,14 @@ const plain = (s: string, max = 60): string => {
 
 function columns(rows: string[][]): string {
   const widths = rows[0]?.map((_, i) => Math.max(...rows.map((r) => (r[i] ?? '').length))) ?? [];
-  return rows.map((r) => r.map((c, i) => (i === r.length - 1 ? c : c.padEnd(widths[i] ?? 0))).join('  ').trimEnd()).join('\n');
+  return rows
+    .map((r) =>
+      r
+        .map((c, i) => (i === r.length - 1 ? c : c.padEnd(widths[i] ?? 0)))
+        .join('  ')
+        .trimEnd(),
+    )
+    .join('\n');
 }
 
 function table(r: ImpactReport): string {
@@ -309,18 +379,33 @@ function table(r: ImpactReport): string {
   const out = [
     `Impact of candidate rules ${r.candidateRulesVersion}`,
     `records read ${r.read}, replayed ${r.replayed}, unchanged ${r.unchanged}, changed ${c.any}, not replayable ${r.notReplayable}, failed ${r.failed}` +
-      (r.failedExamples.length ? ` (e.g. ${r.failedExamples.join(' ')})` : '') + (r.more ? `; stopped at the record limit after seq ${r.lastSeq}` : ''),
+      (r.failedExamples.length ? ` (e.g. ${r.failedExamples.join(' ')})` : '') +
+      (r.more ? `; stopped at the record limit after seq ${r.lastSeq}` : ''),
     `records changed in: responsiveness ${c.responsiveness}, confidence ${c.confidence}, tolerance ${c.tolerance}, action ${c.action}, next test ${c.nextTest}, ` +
       `indicator ${c.indicator}, headline ${c.headline}, suggestions ${c.suggestions}, cards shown/absent ${c.cards}`,
     '',
     'By card kind (records changed)',
-    columns([['card kind', 'records', 'indicator', 'headline', 'suggestions', 'shown/absent'], ...r.byCardKind.map((k) => [k.cardKind, ...[k.records, k.indicator, k.headline, k.suggestions, k.shownOrAbsent].map(String)])]),
+    columns([
+      ['card kind', 'records', 'indicator', 'headline', 'suggestions', 'shown/absent'],
+      ...r.byCardKind.map((k) => [k.cardKind, ...[k.records, k.indicator, k.headline, k.suggestions, k.shownOrAbsent].map(String)]),
+    ]),
     '',
   ];
   if (!r.changes.length) out.push('No changes.');
   else {
     out.push('By change');
-    out.push(columns([['what', 'card kind', 'change', 'count', 'examples'], ...r.changes.map((x) => [x.dimension, x.cardKind || '-', `${plain(x.from)} → ${plain(x.to)}`, String(x.count), x.examples.join(' ')])]));
+    out.push(
+      columns([
+        ['what', 'card kind', 'change', 'count', 'examples'],
+        ...r.changes.map((x) => [
+          x.dimension,
+          x.cardKind || '-',
+          `${plain(x.from)} → ${plain(x.to)}`,
+          String(x.count),
+          x.examples.join(' '),
+        ]),
+      ]),
+    );
   }
   return `${out.join('\n')}\n`;
 }

@@ -1,7 +1,8 @@
 /**
  * The comparable outcome of one answer: what a prescriber was shown, reduced to values that can be compared
  * between the stored record and a replay under other rules — the verdict values and confidence, the action, the
- * test offered and the headline key (each when the advice carries it), and per card its kind, indicator, summary as shown and suggestion labels (no uuids, no
+ * test offered and the headline key (each when the advice carries it), and per card its kind, indicator, summary as shown and suggestion
+ * labels (no uuids, no
  * links, no times). The one place that knows where these live in a record and in an advice, so that a change
  * of the advice's shape (verdict confidence, tolerance "not known", headline codes) is adapted here only. Pure.
  */
@@ -60,13 +61,20 @@ export function outcomeOf(advice: AdviceLike | undefined, cards: ReadonlyArray<{
   const nextTest = str(advice?.recommendation?.nextTest) ?? str(advice?.responsiveness?.nextTest);
   const headlineKey = headlineKeyOf(advice);
   return {
-    ...(responsiveness ? { responsiveness } : {}), ...(confidence ? { confidence } : {}), ...(tolerance ? { tolerance } : {}),
-    ...(action ? { action } : {}), ...(nextTest ? { nextTest } : {}), ...(headlineKey ? { headlineKey } : {}),
+    ...(responsiveness ? { responsiveness } : {}),
+    ...(confidence ? { confidence } : {}),
+    ...(tolerance ? { tolerance } : {}),
+    ...(action ? { action } : {}),
+    ...(nextTest ? { nextTest } : {}),
+    ...(headlineKey ? { headlineKey } : {}),
     cards: cards.map((c) => cardOutcome(c.card, c.kind)),
   };
 }
 
 /** From a stored record: its advice and the cards it answered with (kinds from cardKinds; `unknown` if absent). */
 export function outcomeOfRecord(rec: Pick<AdviceRecord, 'advice' | 'cards' | 'cardKinds'>): ComparableOutcome {
-  return outcomeOf(rec.advice as AdviceLike | undefined, rec.cards.map((card) => ({ card, kind: (card.uuid && rec.cardKinds[card.uuid]) || 'unknown' })));
+  return outcomeOf(
+    rec.advice as AdviceLike | undefined,
+    rec.cards.map((card) => ({ card, kind: (card.uuid && rec.cardKinds[card.uuid]) || 'unknown' })),
+  );
 }

@@ -20,7 +20,19 @@ import { feedbackKey, normaliseOverview, ownerOf, summarize } from './shared.js'
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
 import { feedbackCountsOf, feedbackStatsOf, feedbackStatsSql, rowToFeedback, type KindRow, type ReasonRow } from './sql/rows.js';
 import { adviceFilters, Where } from './sql/where.js';
-import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, OverviewAggregates, OverviewQuery, RecordStreamQuery, StoredAdvice } from './types.js';
+import type {
+  AdviceQuery,
+  AdviceRecord,
+  AdviceSummary,
+  AuditStore,
+  CardOwner,
+  FeedbackRow,
+  FeedbackStats,
+  OverviewAggregates,
+  OverviewQuery,
+  RecordStreamQuery,
+  StoredAdvice,
+} from './types.js';
 
 export interface PostgresAuditStoreOptions {
   /** Schema that holds the tables (default `tidemark`). Letters, digits and underscores only. */
@@ -39,7 +51,12 @@ function lockKey(purpose: string, schema: string): string {
   return createHash('sha256').update(`tidemark-audit:${purpose}:${schema}`).digest().readBigInt64BE(0).toString();
 }
 
-interface AdviceRow { seq: string; record: string; prev_hash: string; hash: string }
+interface AdviceRow {
+  seq: string;
+  record: string;
+  prev_hash: string;
+  hash: string;
+}
 
 // The record text read as json (not jsonb, which refuses a \u0000 anywhere in the text), for the advice row aliased `a`.
 /** The most urgent indicator of the answer's cards (see TopIndicator). */
@@ -54,11 +71,13 @@ const WEEK = `to_char(substr(a.recorded_at, 1, 10)::date - (extract(isodow FROM 
  * A failed set-up statement, rethrown naming it and the way out: a role with only SELECT and INSERT cannot create
  * what a newer Tidemark adds to an older schema (jti_seen, advice.issuer); the owner role runs the service once.
  */
-const explain = (stmt: string) => (e: unknown): never => {
-  throw new Error(
-    `audit store set-up failed at "${stmt.replace(/\s+/g, ' ').slice(0, 80)}" (${(e as Error).message}): run the service once as the owner of the audit schema to create or update its tables`,
-  );
-};
+const explain =
+  (stmt: string) =>
+  (e: unknown): never => {
+    throw new Error(
+      `audit store set-up failed at "${stmt.replace(/\s+/g, ' ').slice(0, 80)}" (${(e as Error).message}): run the service once as the owner of the audit schema to create or update its tables`,
+    );
+  };
 
 export class PostgresAuditStore implements AuditStore {
   readonly kind = 'postgres';
@@ -72,7 +91,8 @@ export class PostgresAuditStore implements AuditStore {
 
   constructor(connectionString: string, opts: PostgresAuditStoreOptions = {}) {
     const schema = opts.schema ?? 'tidemark';
-    if (!SCHEMA_NAME.test(schema)) throw new Error(`audit schema name ${JSON.stringify(schema)} must be letters, digits and underscores (at most 63)`);
+    if (!SCHEMA_NAME.test(schema))
+      throw new Error(`audit schema name ${JSON.stringify(schema)} must be letters, digits and underscores (at most 63)`);
     this.schema = schema;
     this.s = `"${schema}"`;
     this.chainLock = lockKey('chain', schema);
@@ -112,7 +132,8 @@ export class PostgresAuditStore implements AuditStore {
       // with no CREATE right on the schema (only SELECT and INSERT on the tables: append-only) can start against
       // tables the owner role has brought up to date.
       const have = await this.schemaVersionIn(c);
-      if (have > SCHEMA_VERSION) throw new Error(`audit schema ${this.schema} has version ${have}, newer than this Tidemark's ${SCHEMA_VERSION}: upgrade Tidemark`);
+      if (have > SCHEMA_VERSION)
+        throw new Error(`audit schema ${this.schema} has version ${have}, newer than this Tidemark's ${SCHEMA_VERSION}: upgrade Tidemark`);
       if (have === SCHEMA_VERSION) return;
       const statements = [
         ...MIGRATIONS.filter((m) => m.version > have).flatMap((m) => m.postgres(this.s)),
@@ -135,7 +156,9 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   private async schemaVersionIn(c: PoolClient): Promise<number> {
-    const t = await c.query("SELECT 1 FROM information_schema.tables WHERE table_schema = $1 AND table_name = 'schema_version'", [this.schema]);
+    const t = await c.query("SELECT 1 FROM information_schema.tables WHERE table_schema = $1 AND table_name = 'schema_version'", [
+      this.schema,
+    ]);
     if (!t.rowCount) return 0;
     const r = await c.query<{ version: number }>(`SELECT MAX(version) AS version FROM ${this.s}.schema_version`);
     return Number(r.rows[0]?.version ?? 0);
@@ -154,12 +177,28 @@ export class PostgresAuditStore implements AuditStore {
         `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer)
          VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13) RETURNING seq`,
         [
-          rec.id, rec.recordedAt, rec.service, rec.hook, rec.hookInstance, rec.patientId ?? null, rec.encounterId ?? null, rec.outcome, rec.rulesVersion, json, prev, hash,
+          rec.id,
+          rec.recordedAt,
+          rec.service,
+          rec.hook,
+          rec.hookInstance,
+          rec.patientId ?? null,
+          rec.encounterId ?? null,
+          rec.outcome,
+          rec.rulesVersion,
+          json,
+          prev,
+          hash,
           rec.client?.issuer ?? null,
         ],
       );
       for (const [uuid, kind] of Object.entries(rec.cardKinds)) {
-        await c.query(`INSERT INTO ${this.s}.advice_card (card_uuid, advice_id, card_kind, service) VALUES ($1, $2, $3, $4)`, [uuid, rec.id, kind, rec.service]);
+        await c.query(`INSERT INTO ${this.s}.advice_card (card_uuid, advice_id, card_kind, service) VALUES ($1, $2, $3, $4)`, [
+          uuid,
+          rec.id,
+          kind,
+          rec.service,
+        ]);
       }
       return { seq: Number(ins.rows[0]?.seq), hash };
     });
@@ -185,7 +224,10 @@ export class PostgresAuditStore implements AuditStore {
     w.maybe(q.indicator, (p) => `${TOP_INDICATOR} = ${p}`).maybe(q.responsiveness, (p) => `${verdictOf('responsiveness')} = ${p}`);
     w.maybe(q.tolerance, (p) => `${verdictOf('tolerance')} = ${p}`);
     if (q.feedback) w.raw(q.feedback === 'none' ? `NOT ${feedbackExists()}` : feedbackExists(q.feedback));
-    const r = await this.pool.query<AdviceRow>(`SELECT a.seq, a.record, a.prev_hash, a.hash FROM ${s}.advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`, w.args);
+    const r = await this.pool.query<AdviceRow>(
+      `SELECT a.seq, a.record, a.prev_hash, a.hash FROM ${s}.advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`,
+      w.args,
+    );
     const page = r.rows.slice(0, q.limit).map((row) => ({ ...parseRecordText(row.record), seq: Number(row.seq) }));
     const counts = await this.feedbackCounts(page.map((p) => p.id));
     const items = page.map((p) => summarize(p, counts));
@@ -251,7 +293,10 @@ export class PostgresAuditStore implements AuditStore {
     let after = String(Math.trunc(q.afterSeq ?? 0));
     for (;;) {
       w.args[0] = after;
-      const r = await this.pool.query<AdviceRow>(`SELECT seq, record, prev_hash, hash FROM ${this.s}.advice ${w.sql} ORDER BY seq LIMIT ${batch}`, w.args);
+      const r = await this.pool.query<AdviceRow>(
+        `SELECT seq, record, prev_hash, hash FROM ${this.s}.advice ${w.sql} ORDER BY seq LIMIT ${batch}`,
+        w.args,
+      );
       for (const row of r.rows) {
         after = row.seq;
         yield { ...parseRecordText(row.record), seq: Number(row.seq), prevHash: row.prev_hash, hash: row.hash };
@@ -285,8 +330,17 @@ export class PostgresAuditStore implements AuditStore {
           `INSERT INTO ${this.s}.feedback (feedback_key, card_uuid, outcome, accepted_suggestions, reason_system, reason_code, reason_display, user_comment, outcome_timestamp, received_at, service)
            VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11) ON CONFLICT (feedback_key) DO NOTHING`,
           [
-            feedbackKey(f), f.cardUuid, f.outcome, JSON.stringify(f.acceptedSuggestions), f.overrideReason?.system ?? null, f.overrideReason?.code ?? null,
-            f.overrideReason?.display ?? null, f.userComment ?? null, f.outcomeTimestamp, f.receivedAt, f.service,
+            feedbackKey(f),
+            f.cardUuid,
+            f.outcome,
+            JSON.stringify(f.acceptedSuggestions),
+            f.overrideReason?.system ?? null,
+            f.overrideReason?.code ?? null,
+            f.overrideReason?.display ?? null,
+            f.userComment ?? null,
+            f.outcomeTimestamp,
+            f.receivedAt,
+            f.service,
           ],
         );
         stored += r.rowCount ?? 0;
@@ -305,7 +359,10 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats> {
-    const w = new Where('postgres').maybe(q.service, (p) => `c.service = ${p}`).maybe(q.from, (p) => `a.recorded_at >= ${p}`).maybe(q.to, (p) => `a.recorded_at <= ${p}`);
+    const w = new Where('postgres')
+      .maybe(q.service, (p) => `c.service = ${p}`)
+      .maybe(q.from, (p) => `a.recorded_at >= ${p}`)
+      .maybe(q.to, (p) => `a.recorded_at <= ${p}`);
     const sql = feedbackStatsSql((t) => `${this.s}.${t}`, '::int', w.sql, w.and);
     const kinds = await this.pool.query<KindRow>(sql.kinds, w.args);
     const reasons = await this.pool.query<ReasonRow>(sql.reasons, w.args);
@@ -324,7 +381,8 @@ export class PostgresAuditStore implements AuditStore {
       );
       for (const row of r.rows) {
         checked += 1;
-        if (row.prev_hash !== prev || !storedHashMatches(prev, row.record, row.hash)) return { ok: false, checked, firstBadSeq: Number(row.seq) };
+        if (row.prev_hash !== prev || !storedHashMatches(prev, row.record, row.hash))
+          return { ok: false, checked, firstBadSeq: Number(row.seq) };
         prev = row.hash;
         after = row.seq;
       }
@@ -342,4 +400,3 @@ export class PostgresAuditStore implements AuditStore {
     await this.pool.end();
   }
 }
-

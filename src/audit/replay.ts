@@ -49,11 +49,18 @@ export function rerun(
   if (!advice || !rec.snapshot) return undefined;
   const prefetch = findService(rec.service)?.prefetch ?? {};
   const models = composeCards({
-    hook: rec.hook as HookName, advice, snapshot: rec.snapshot, gathering: rec.gathering, catalogue: rules.catalogue,
+    hook: rec.hook as HookName,
+    advice,
+    snapshot: rec.snapshot,
+    gathering: rec.gathering,
+    catalogue: rules.catalogue,
     purposes: Object.fromEntries(Object.entries(prefetch).map(([k, q]) => [k, q.purpose])),
     context: { patientId: rec.patientId ?? '', userId: rec.userId ?? '', ...(rec.encounterId ? { encounterId: rec.encounterId } : {}) },
   });
-  return { advice, cards: models.map((m) => ({ kind: m.kind, card: renderCard(m, rules.catalogue, { hook: rec.hook, publicUrl: REPLAY_URL }) })) };
+  return {
+    advice,
+    cards: models.map((m) => ({ kind: m.kind, card: renderCard(m, rules.catalogue, { hook: rec.hook, publicUrl: REPLAY_URL }) })),
+  };
 }
 
 export function replay(rec: StoredAdvice, thresholds: Thresholds, rulesVersion: string): ReplayDiff | undefined {
@@ -67,7 +74,8 @@ export function replay(rec: StoredAdvice, thresholds: Thresholds, rulesVersion: 
   const changed: ReplayDiff['findings']['changed'] = [];
   for (const [k, f] of byNow) {
     const old = byThen.get(k);
-    if (old && (old.text !== f.text || old.status !== f.status || direction(old) !== direction(f))) changed.push({ ruleId: k, then: old.text, now: f.text });
+    if (old && (old.text !== f.text || old.status !== f.status || direction(old) !== direction(f)))
+      changed.push({ ruleId: k, then: old.text, now: f.text });
   }
   const pair = (a?: string, b?: string) => ({ ...(a ? { then: a } : {}), ...(b ? { now: b } : {}) });
   const diff: ReplayDiff = {
@@ -82,6 +90,7 @@ export function replay(rec: StoredAdvice, thresholds: Thresholds, rulesVersion: 
     findings: { added, removed, changed },
   };
   diff.changed =
-    [diff.responsiveness, diff.tolerance, diff.action, diff.indicator].some((p) => p.then !== p.now) || added.length + removed.length + changed.length > 0;
+    [diff.responsiveness, diff.tolerance, diff.action, diff.indicator].some((p) => p.then !== p.now) ||
+    added.length + removed.length + changed.length > 0;
   return diff;
 }

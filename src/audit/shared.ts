@@ -2,12 +2,25 @@
 import { createHash } from 'node:crypto';
 import type { AdviceRecord, AdviceSummary, CardOwner, FeedbackRow, OverviewAggregates } from './types.js';
 
-export function summarize(r: AdviceRecord & { seq: number }, feedback: Map<string, { accepted: number; overridden: number }>): AdviceSummary {
+export function summarize(
+  r: AdviceRecord & { seq: number },
+  feedback: Map<string, { accepted: number; overridden: number }>,
+): AdviceSummary {
   return {
-    id: r.id, seq: r.seq, recordedAt: r.recordedAt, service: r.service, hook: r.hook, hookInstance: r.hookInstance,
-    ...(r.patientId ? { patientId: r.patientId } : {}), ...(r.encounterId ? { encounterId: r.encounterId } : {}),
-    outcome: r.outcome, rulesVersion: r.rulesVersion, cardCount: r.cards.length, indicators: r.cards.map((c) => c.indicator),
-    latencyMs: Math.round(r.timings.totalMs * 10) / 10, feedback: feedback.get(r.id) ?? { accepted: 0, overridden: 0 },
+    id: r.id,
+    seq: r.seq,
+    recordedAt: r.recordedAt,
+    service: r.service,
+    hook: r.hook,
+    hookInstance: r.hookInstance,
+    ...(r.patientId ? { patientId: r.patientId } : {}),
+    ...(r.encounterId ? { encounterId: r.encounterId } : {}),
+    outcome: r.outcome,
+    rulesVersion: r.rulesVersion,
+    cardCount: r.cards.length,
+    indicators: r.cards.map((c) => c.indicator),
+    latencyMs: Math.round(r.timings.totalMs * 10) / 10,
+    feedback: feedback.get(r.id) ?? { accepted: 0, overridden: 0 },
     ...(r.advice?.responsiveness ? { responsiveness: r.advice.responsiveness.value } : {}),
     ...(r.advice?.tolerance ? { tolerance: r.advice.tolerance.value } : {}),
   };
@@ -27,7 +40,16 @@ export function auditInstant(v: string, endOfDay = false): string | undefined {
 /** Idempotency key: the same card, outcome, timestamp and content is the same feedback, however often sent. */
 export function feedbackKey(f: FeedbackRow): string {
   return createHash('sha256')
-    .update(JSON.stringify([f.cardUuid, f.outcome, f.outcomeTimestamp, [...f.acceptedSuggestions].sort(), f.overrideReason?.code ?? null, f.userComment ?? null]))
+    .update(
+      JSON.stringify([
+        f.cardUuid,
+        f.outcome,
+        f.outcomeTimestamp,
+        [...f.acceptedSuggestions].sort(),
+        f.overrideReason?.code ?? null,
+        f.userComment ?? null,
+      ]),
+    )
     .digest('hex');
 }
 
@@ -59,6 +81,8 @@ export function normaliseOverview(o: OverviewAggregates): OverviewAggregates {
       .sort(byKeys(['week', 'cardKind'])),
     overrideReasonsByWeek: o.overrideReasonsByWeek.map((r) => ({ ...r, cards: n(r.cards) })).sort(byKeys(['week', 'reasonCode'])),
     verdictsByWeek: o.verdictsByWeek.map((r) => ({ ...r, answers: n(r.answers) })).sort(byKeys(['week', 'responsiveness', 'tolerance'])),
-    latencyByDay: o.latencyByDay.map((r) => ({ day: r.day, answers: n(r.answers), p50Ms: ms(r.p50Ms), p99Ms: ms(r.p99Ms) })).sort(byKeys(['day'])),
+    latencyByDay: o.latencyByDay
+      .map((r) => ({ day: r.day, answers: n(r.answers), p50Ms: ms(r.p50Ms), p99Ms: ms(r.p99Ms) }))
+      .sort(byKeys(['day'])),
   };
 }

@@ -22,7 +22,10 @@ export function openAuditDb(path: string): Database.Database {
 }
 
 /** The columns of a record besides its text; `issuer` is the record's `client.issuer`. */
-export type RecordMeta = Pick<AdviceRecord, 'id' | 'recordedAt' | 'service' | 'hook' | 'hookInstance' | 'patientId' | 'encounterId' | 'outcome' | 'rulesVersion' | 'cardKinds'> & {
+export type RecordMeta = Pick<
+  AdviceRecord,
+  'id' | 'recordedAt' | 'service' | 'hook' | 'hookInstance' | 'patientId' | 'encounterId' | 'outcome' | 'rulesVersion' | 'cardKinds'
+> & {
   issuer?: string;
 };
 
@@ -39,9 +42,17 @@ export const MAX_BATCH = 64;
 
 function metaOf(r: AdviceRecord): RecordMeta {
   return {
-    id: r.id, recordedAt: r.recordedAt, service: r.service, hook: r.hook, hookInstance: r.hookInstance,
-    ...(r.patientId !== undefined ? { patientId: r.patientId } : {}), ...(r.encounterId !== undefined ? { encounterId: r.encounterId } : {}),
-    outcome: r.outcome, rulesVersion: r.rulesVersion, cardKinds: r.cardKinds, ...(r.client?.issuer !== undefined ? { issuer: r.client.issuer } : {}),
+    id: r.id,
+    recordedAt: r.recordedAt,
+    service: r.service,
+    hook: r.hook,
+    hookInstance: r.hookInstance,
+    ...(r.patientId !== undefined ? { patientId: r.patientId } : {}),
+    ...(r.encounterId !== undefined ? { encounterId: r.encounterId } : {}),
+    outcome: r.outcome,
+    rulesVersion: r.rulesVersion,
+    cardKinds: r.cardKinds,
+    ...(r.client?.issuer !== undefined ? { issuer: r.client.issuer } : {}),
   };
 }
 
@@ -70,7 +81,21 @@ export function createBatchAppender(db: Database.Database): (batch: readonly Pre
   const card = db.prepare('INSERT INTO advice_card (card_uuid, advice_id, card_kind, service) VALUES (?, ?, ?, ?)');
   const one = db.transaction(({ meta: r, text }: PreparedRecord, prev: string) => {
     const hash = chainHashOfText(prev, text);
-    const info = insert.run(r.id, r.recordedAt, r.service, r.hook, r.hookInstance, r.patientId ?? null, r.encounterId ?? null, r.outcome, r.rulesVersion, text, prev, hash, r.issuer ?? null);
+    const info = insert.run(
+      r.id,
+      r.recordedAt,
+      r.service,
+      r.hook,
+      r.hookInstance,
+      r.patientId ?? null,
+      r.encounterId ?? null,
+      r.outcome,
+      r.rulesVersion,
+      text,
+      prev,
+      hash,
+      r.issuer ?? null,
+    );
     for (const [uuid, kind] of Object.entries(r.cardKinds)) card.run(uuid, r.id, kind, r.service);
     return { seq: Number(info.lastInsertRowid), hash };
   });

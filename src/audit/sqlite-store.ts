@@ -12,7 +12,19 @@ import type Database from 'better-sqlite3';
 import { GENESIS, parseRecordText, storedHashMatches } from './chain.js';
 import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type AppendResult, type PreparedRecord } from './sqlite-append.js';
 import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
-import type { AdviceQuery, AdviceRecord, AdviceSummary, AuditStore, CardOwner, FeedbackRow, FeedbackStats, OverviewAggregates, OverviewQuery, RecordStreamQuery, StoredAdvice } from './types.js';
+import type {
+  AdviceQuery,
+  AdviceRecord,
+  AdviceSummary,
+  AuditStore,
+  CardOwner,
+  FeedbackRow,
+  FeedbackStats,
+  OverviewAggregates,
+  OverviewQuery,
+  RecordStreamQuery,
+  StoredAdvice,
+} from './types.js';
 import { normaliseOverview, summarize, feedbackKey, ownerOf } from './shared.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
 import { feedbackCountsOf, feedbackStatsOf, feedbackStatsSql, rowToFeedback, type KindRow, type ReasonRow } from './sql/rows.js';
@@ -24,8 +36,12 @@ import { adviceFilters, Where } from './sql/where.js';
  */
 const WRITER_ENTRY = import.meta.url.endsWith('.ts') ? './sqlite-writer.mjs' : './sqlite-writer.js';
 
-
-interface AdviceRow { seq: number; record: string; prev_hash: string; hash: string }
+interface AdviceRow {
+  seq: number;
+  record: string;
+  prev_hash: string;
+  hash: string;
+}
 
 /** The most urgent indicator of the cards of the advice row aliased `a` (see TopIndicator). */
 const TOP_INDICATOR = `(SELECT CASE MAX(CASE json_extract(x.value, '$.indicator') WHEN 'critical' THEN 3 WHEN 'warning' THEN 2 WHEN 'info' THEN 1 ELSE 0 END)
@@ -80,16 +96,22 @@ export class SqliteAuditStore implements AuditStore {
    */
   private migrate(): void {
     const have = this.schemaVersion();
-    if (have > SCHEMA_VERSION) throw new Error(`audit database ${this.path} has schema version ${have}, newer than this Tidemark's ${SCHEMA_VERSION}: upgrade Tidemark`);
+    if (have > SCHEMA_VERSION)
+      throw new Error(
+        `audit database ${this.path} has schema version ${have}, newer than this Tidemark's ${SCHEMA_VERSION}: upgrade Tidemark`,
+      );
     if (have === SCHEMA_VERSION) return;
     const target = {
       run: (sql: string) => void this.db.exec(sql),
-      hasColumn: (table: string, column: string) => (this.db.pragma(`table_info(${table})`) as Array<{ name: string }>).some((c) => c.name === column),
+      hasColumn: (table: string, column: string) =>
+        (this.db.pragma(`table_info(${table})`) as Array<{ name: string }>).some((c) => c.name === column),
     };
-    this.db.transaction(() => {
-      for (const m of MIGRATIONS) if (m.version > have) m.sqlite(target);
-      this.db.pragma(`user_version = ${SCHEMA_VERSION}`);
-    }).immediate();
+    this.db
+      .transaction(() => {
+        for (const m of MIGRATIONS) if (m.version > have) m.sqlite(target);
+        this.db.pragma(`user_version = ${SCHEMA_VERSION}`);
+      })
+      .immediate();
   }
 
   // ------------------------------------------------------------ appends on the writer thread (file databases)
@@ -211,7 +233,9 @@ export class SqliteAuditStore implements AuditStore {
     w.maybe(q.indicator, (p) => `${TOP_INDICATOR} = ${p}`).maybe(q.responsiveness, (p) => `${verdictOf('responsiveness')} = ${p}`);
     w.maybe(q.tolerance, (p) => `${verdictOf('tolerance')} = ${p}`);
     if (q.feedback) w.raw(q.feedback === 'none' ? `NOT ${feedbackExists()}` : feedbackExists(q.feedback));
-    const rows = this.db.prepare(`SELECT a.seq, a.record, a.prev_hash, a.hash FROM advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`).all(...w.args) as AdviceRow[];
+    const rows = this.db
+      .prepare(`SELECT a.seq, a.record, a.prev_hash, a.hash FROM advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`)
+      .all(...w.args) as AdviceRow[];
     const page = rows.slice(0, q.limit);
     const records = page.map((r) => ({ ...parseRecordText(r.record), seq: r.seq }));
     const counts = this.feedbackCounts(records.map((r) => r.id));
@@ -309,8 +333,17 @@ export class SqliteAuditStore implements AuditStore {
       let stored = 0;
       for (const f of all) {
         const info = ins.run(
-          feedbackKey(f), f.cardUuid, f.outcome, JSON.stringify(f.acceptedSuggestions), f.overrideReason?.system ?? null, f.overrideReason?.code ?? null,
-          f.overrideReason?.display ?? null, f.userComment ?? null, f.outcomeTimestamp, f.receivedAt, f.service,
+          feedbackKey(f),
+          f.cardUuid,
+          f.outcome,
+          JSON.stringify(f.acceptedSuggestions),
+          f.overrideReason?.system ?? null,
+          f.overrideReason?.code ?? null,
+          f.overrideReason?.display ?? null,
+          f.userComment ?? null,
+          f.outcomeTimestamp,
+          f.receivedAt,
+          f.service,
         );
         stored += info.changes;
       }
@@ -321,13 +354,18 @@ export class SqliteAuditStore implements AuditStore {
 
   async feedbackFor(adviceId: string): Promise<FeedbackRow[]> {
     const rows = this.db
-      .prepare(`SELECT f.* FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid WHERE c.advice_id = ? ORDER BY f.outcome_timestamp, f.rowid`)
+      .prepare(
+        `SELECT f.* FROM feedback f JOIN advice_card c ON c.card_uuid = f.card_uuid WHERE c.advice_id = ? ORDER BY f.outcome_timestamp, f.rowid`,
+      )
       .all(adviceId) as Array<Record<string, string | null>>;
     return rows.map(rowToFeedback);
   }
 
   async feedbackStats(q: { from?: string; to?: string; service?: string }): Promise<FeedbackStats> {
-    const w = new Where('sqlite').maybe(q.service, (p) => `c.service = ${p}`).maybe(q.from, (p) => `a.recorded_at >= ${p}`).maybe(q.to, (p) => `a.recorded_at <= ${p}`);
+    const w = new Where('sqlite')
+      .maybe(q.service, (p) => `c.service = ${p}`)
+      .maybe(q.from, (p) => `a.recorded_at >= ${p}`)
+      .maybe(q.to, (p) => `a.recorded_at <= ${p}`);
     const sql = feedbackStatsSql((t) => t, '', w.sql, w.and);
     const kinds = this.db.prepare(sql.kinds).all(...w.args) as KindRow[];
     const reasons = this.db.prepare(sql.reasons).all(...w.args) as ReasonRow[];
@@ -337,7 +375,9 @@ export class SqliteAuditStore implements AuditStore {
   async verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }> {
     let prev = GENESIS;
     let checked = 0;
-    for (const row of this.db.prepare('SELECT seq, record, prev_hash, hash FROM advice ORDER BY seq').iterate() as IterableIterator<AdviceRow>) {
+    for (const row of this.db
+      .prepare('SELECT seq, record, prev_hash, hash FROM advice ORDER BY seq')
+      .iterate() as IterableIterator<AdviceRow>) {
       checked += 1;
       if (row.prev_hash !== prev || !storedHashMatches(prev, row.record, row.hash)) return { ok: false, checked, firstBadSeq: row.seq };
       prev = row.hash;

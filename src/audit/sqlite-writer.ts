@@ -12,11 +12,13 @@
 import { parentPort, workerData } from 'node:worker_threads';
 import { createBatchAppender, MAX_BATCH, openAuditDb, type PreparedRecord } from './sqlite-append.js';
 
-export interface WriterError { message: string; name?: string; code?: string }
+export interface WriterError {
+  message: string;
+  name?: string;
+  code?: string;
+}
 
-export type WriterIn =
-  | { type: 'append'; id: number; prepared: PreparedRecord }
-  | { type: 'close' };
+export type WriterIn = { type: 'append'; id: number; prepared: PreparedRecord } | { type: 'close' };
 
 export type WriterOut =
   | { type: 'ready' }
@@ -86,7 +88,9 @@ function flush(): void {
       type: 'done',
       results: batch.map((p, i) => {
         const r = results[i];
-        return r?.ok ? { id: p.id, ok: true as const, seq: r.seq, hash: r.hash } : { id: p.id, ok: false as const, error: errorOf(r ? r.error : new Error('audit append lost')) };
+        return r?.ok
+          ? { id: p.id, ok: true as const, seq: r.seq, hash: r.hash }
+          : { id: p.id, ok: false as const, error: errorOf(r ? r.error : new Error('audit append lost')) };
       }),
     });
     for (const p of batch) sinceCheckpoint += p.prepared.text.length; // characters: close enough to bytes for pacing checkpoints

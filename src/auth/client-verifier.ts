@@ -7,7 +7,15 @@
  * aud, exp, iat (age cap) → jti, tenant, scope → jti replay. The failure reason is a short fixed
  * string for the log; it never contains the token or any claim value.
  */
-import { createLocalJWKSet, decodeJwt, decodeProtectedHeader, jwtVerify, type JWTPayload, type JSONWebKeySet, type JWTVerifyGetKey } from 'jose';
+import {
+  createLocalJWKSet,
+  decodeJwt,
+  decodeProtectedHeader,
+  jwtVerify,
+  type JWTPayload,
+  type JSONWebKeySet,
+  type JWTVerifyGetKey,
+} from 'jose';
 import { authConfigSchema, type AuthConfig, type TrustedIssuer } from './issuer-config.js';
 import { fetchJwksOverHttp, RemoteKeySet, type FetchJwks, type RemoteKeySetOptions } from './jwks-source.js';
 import { InMemoryReplayCache, type ReplayCache } from './replay-cache.js';

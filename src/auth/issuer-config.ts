@@ -30,10 +30,13 @@ const keySetUrl = httpsOrLoopbackUrl;
 
 /** An origin only (scheme, host, port), as listed in an issuer's `fhirServers`; kept in its normal form. */
 const fhirServerOrigin = httpsOrLoopbackUrl
-  .refine((v) => {
-    const u = new URL(v);
-    return (u.pathname === '/' || u.pathname === '') && u.search === '';
-  }, { message: 'must be an origin only (scheme, host and port), with no path or query' })
+  .refine(
+    (v) => {
+      const u = new URL(v);
+      return (u.pathname === '/' || u.pathname === '') && u.search === '';
+    },
+    { message: 'must be an origin only (scheme, host and port), with no path or query' },
+  )
   .transform((v) => new URL(v).origin);
 
 /** Members of a JWK that only a private or symmetric key has (RFC 7518 §6.2.2, §6.3.2, §6.4). */

@@ -71,7 +71,7 @@ export function publicSignatureKeys(doc: unknown): JSONWebKeySet {
   if (typeof doc !== 'object' || doc === null || !Array.isArray((doc as { keys?: unknown }).keys)) {
     throw new KeySetUnavailableError('JWKS document has no keys array');
   }
-  const keys = ((doc as { keys: unknown[] }).keys)
+  const keys = (doc as { keys: unknown[] }).keys
     .filter((k): k is Record<string, unknown> => typeof k === 'object' && k !== null && !Array.isArray(k))
     .filter((k) => (k['kty'] === 'EC' || k['kty'] === 'RSA') && !('d' in k) && typeof k['kid'] === 'string')
     .slice(0, MAX_KEYS);

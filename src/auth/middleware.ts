@@ -30,12 +30,7 @@ export const UNAUTHORIZED_BODY = {
 const UNAUTHORIZED_JSON = JSON.stringify(UNAUTHORIZED_BODY);
 
 function refuse(res: Response): void {
-  res
-    .status(401)
-    .set('WWW-Authenticate', 'Bearer')
-    .set('Cache-Control', 'no-store')
-    .type('application/json')
-    .send(UNAUTHORIZED_JSON);
+  res.status(401).set('WWW-Authenticate', 'Bearer').set('Cache-Control', 'no-store').type('application/json').send(UNAUTHORIZED_JSON);
 }
 
 /** Path of the request as the client addressed it, without query string or fragment. */
@@ -100,7 +95,9 @@ export function requireCdsClient(opts: RequireCdsClientOptions): RequestHandler 
       return;
     }
     const client: ClientIdentity =
-      result.tenant === undefined ? { issuer: result.issuer, jti: result.jti } : { issuer: result.issuer, tenant: result.tenant, jti: result.jti };
+      result.tenant === undefined
+        ? { issuer: result.issuer, jti: result.jti }
+        : { issuer: result.issuer, tenant: result.tenant, jti: result.jti };
     res.locals['client'] = client;
     next();
   };
@@ -155,12 +152,16 @@ export function requireAuditAccess(opts: RequireAuditAccessOptions): RequestHand
   const expected = auditToken === undefined ? undefined : staticTokenMatcher(auditToken);
   const jwtAudience = publicUrl === undefined ? undefined : audienceFor(publicUrl, '/audit');
   const jwtUsable = verifier !== undefined && verifier.issuerCount > 0 && jwtAudience !== undefined;
-  if (expected === undefined && !jwtUsable) log?.warn({ audit: 'closed' }, 'no audit credential configured: the audit API refuses every call');
+  if (expected === undefined && !jwtUsable)
+    log?.warn({ audit: 'closed' }, 'no audit credential configured: the audit API refuses every call');
 
   return async (req, res, next) => {
     const path = pathOf(req);
     const denied = (reason: string, issuer?: string): void => {
-      log?.warn({ ...refusalFields(issuer === undefined ? { reason } : { reason, issuer }, jwtAudience ?? ''), method: req.method, path }, 'audit access refused');
+      log?.warn(
+        { ...refusalFields(issuer === undefined ? { reason } : { reason, issuer }, jwtAudience ?? ''), method: req.method, path },
+        'audit access refused',
+      );
       refuse(res);
     };
     if (expected === undefined && !jwtUsable) return denied('no audit credential configured');
@@ -206,7 +207,10 @@ export function requireMetricsAccess(opts: RequireMetricsAccessOptions): Request
   return (req, res, next) => {
     const presented = bearerCredential(req.get('authorization') ?? '');
     if (presented !== undefined && matches(presented)) return next();
-    log.warn({ reason: presented === undefined ? 'missing authorization' : 'metrics token mismatch', method: req.method, path: pathOf(req) }, 'metrics access refused');
+    log.warn(
+      { reason: presented === undefined ? 'missing authorization' : 'metrics token mismatch', method: req.method, path: pathOf(req) },
+      'metrics access refused',
+    );
     refuse(res);
   };
 }

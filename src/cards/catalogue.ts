@@ -15,13 +15,21 @@ const text = z.string().min(1);
 
 /** An object with exactly these keys, each a text: a missing or unknown key stops start-up. */
 function closedSet<K extends string>(keys: readonly K[], value: z.ZodType<string> = text): z.ZodType<Record<K, string>> {
-  return z.strictObject(Object.fromEntries(keys.map((k) => [k, value])) as Record<K, z.ZodType<string>>) as unknown as z.ZodType<Record<K, string>>;
+  return z.strictObject(Object.fromEntries(keys.map((k) => [k, value])) as Record<K, z.ZodType<string>>) as unknown as z.ZodType<
+    Record<K, string>
+  >;
 }
 
 /** Suggestion kinds the composer can offer (closed set). */
 export const SUGGESTION_KINDS = [
-  'smaller-aliquot', 'reassess-after-bolus', 'passive-leg-raise', 'mini-fluid-challenge', 'tidal-volume-challenge', 'end-expiratory-occlusion',
-  'bedside-ultrasound', 'withdraw-bolus',
+  'smaller-aliquot',
+  'reassess-after-bolus',
+  'passive-leg-raise',
+  'mini-fluid-challenge',
+  'tidal-volume-challenge',
+  'end-expiratory-occlusion',
+  'bedside-ultrasound',
+  'withdraw-bolus',
 ] as const;
 export type SuggestionKind = (typeof SUGGESTION_KINDS)[number];
 const indicator = z.enum(['info', 'warning', 'critical']);
@@ -30,7 +38,10 @@ const line = text.max(160);
 
 /** Wording of each answer code of each coded kind (closed sets: src/fhir/codes.ts CODED_ANSWERS): no code reaches a card. */
 const answersSchema = z.strictObject(
-  Object.fromEntries(Object.entries(CODED_ANSWERS).map(([kind, codes]) => [kind, closedSet(codes)])) as Record<keyof typeof CODED_ANSWERS, z.ZodType<Record<string, string>>>,
+  Object.fromEntries(Object.entries(CODED_ANSWERS).map(([kind, codes]) => [kind, closedSet(codes)])) as Record<
+    keyof typeof CODED_ANSWERS,
+    z.ZodType<Record<string, string>>
+  >,
 );
 
 /** The pop-up card's words (src/cards/compose.ts builds its lines from these; docs/integration.md shows one). */
@@ -96,15 +107,23 @@ export const catalogueSchema = z
     /** Wording of each next-test kind, as the card names it (closed set: NEXT_TESTS). */
     nextTests: closedSet(NEXT_TESTS),
     /** Suggestion wording per suggestion kind: label, action description, text of the FHIR resource. */
-    suggestions: z.strictObject(Object.fromEntries(SUGGESTION_KINDS.map((k) => [k, z.object({ label: text.max(120), description: text, text })])) as
-      Record<SuggestionKind, z.ZodObject<{ label: z.ZodString; description: z.ZodString; text: z.ZodString }>>),
+    suggestions: z.strictObject(
+      Object.fromEntries(SUGGESTION_KINDS.map((k) => [k, z.object({ label: text.max(120), description: text, text })])) as Record<
+        SuggestionKind,
+        z.ZodObject<{ label: z.ZodString; description: z.ZodString; text: z.ZodString }>
+      >,
+    ),
     /** The pop-up card's words. */
     popup: popupSchema,
     /** Each test as the gap line names it, sentence start (closed set: NEXT_TESTS). */
     testNames: closedSet(NEXT_TESTS),
     /** Each test's positive and negative result at its published threshold, in the gap line's words. */
-    testResults: z.strictObject(Object.fromEntries(NEXT_TESTS.map((k) => [k, z.strictObject({ positive: text, negative: text })])) as
-      Record<(typeof NEXT_TESTS)[number], z.ZodObject<{ positive: z.ZodString; negative: z.ZodString }>>),
+    testResults: z.strictObject(
+      Object.fromEntries(NEXT_TESTS.map((k) => [k, z.strictObject({ positive: text, negative: text })])) as Record<
+        (typeof NEXT_TESTS)[number],
+        z.ZodObject<{ positive: z.ZodString; negative: z.ZodString }>
+      >,
+    ),
     /** What the advice would then be, per action (closed set: ADVICE_ACTIONS). */
     actionWords: closedSet(ADVICE_ACTIONS),
     /** What responsiveness would then be (patient view: no action). */
@@ -116,7 +135,8 @@ export const catalogueSchema = z
   .superRefine((c, ctx) => {
     const codes = new Set(c.overrideReasons.map((r) => r.code));
     for (const k of c.kinds) {
-      for (const r of k.overrideReasons ?? []) if (!codes.has(r)) ctx.addIssue({ code: 'custom', message: `kind ${k.id}: unknown override reason ${r}` });
+      for (const r of k.overrideReasons ?? [])
+        if (!codes.has(r)) ctx.addIssue({ code: 'custom', message: `kind ${k.id}: unknown override reason ${r}` });
     }
     const ids = c.kinds.map((k) => k.id);
     if (new Set(ids).size !== ids.length) ctx.addIssue({ code: 'custom', message: 'card kind ids must be unique' });

@@ -32,7 +32,9 @@ export function aliquotMl(orderedMl: number): number | undefined {
   return v < orderedMl ? v : undefined;
 }
 
-/** The aliquot keeps the ordered rate (docs/clinical-logic: 500 mL over 30 min → 250 mL over 15 min): its duration scales with its volume. */
+/**
+ * The aliquot keeps the ordered rate (docs/clinical-logic: 500 mL over 30 min → 250 mL over 15 min): its duration scales with its volume.
+ */
 export function aliquotDurationMin(orderedMl: number, orderedMin: number | undefined, aliquot: number): number | undefined {
   if (orderedMin === undefined || !(orderedMin > 0) || !(orderedMl > 0)) return undefined;
   return Math.max(1, Math.round((orderedMin * aliquot) / orderedMl));
@@ -43,15 +45,24 @@ const REASSESS_MIN = 15;
 /** Why a gathering key failed, in a prescriber's words. */
 function gatherWhy(o: GatherOutcome): string {
   switch (o.status) {
-    case 'timeout': return 'the FHIR server did not answer within the time budget';
-    case 'http-error': return `the FHIR server answered with an error (${o.httpStatus ?? '?'})`;
-    case 'network-error': return 'the FHIR server could not be reached';
-    case 'not-fhir': return 'the FHIR server sent something that is not FHIR';
-    case 'truncated': return `only part of the data was read (${o.detail ?? 'paging stopped'})`;
-    case 'too-large': return `the FHIR server's answer was too large to read (${o.detail ?? 'size limit'})`;
-    case 'redirect': return `the FHIR server redirected the query elsewhere, which is not followed (${o.httpStatus ?? '3xx'})`;
-    case 'unavailable': return o.detail ?? 'not sent and no FHIR server to ask';
-    default: return o.detail ?? o.status;
+    case 'timeout':
+      return 'the FHIR server did not answer within the time budget';
+    case 'http-error':
+      return `the FHIR server answered with an error (${o.httpStatus ?? '?'})`;
+    case 'network-error':
+      return 'the FHIR server could not be reached';
+    case 'not-fhir':
+      return 'the FHIR server sent something that is not FHIR';
+    case 'truncated':
+      return `only part of the data was read (${o.detail ?? 'paging stopped'})`;
+    case 'too-large':
+      return `the FHIR server's answer was too large to read (${o.detail ?? 'size limit'})`;
+    case 'redirect':
+      return `the FHIR server redirected the query elsewhere, which is not followed (${o.httpStatus ?? '3xx'})`;
+    case 'unavailable':
+      return o.detail ?? 'not sent and no FHIR server to ask';
+    default:
+      return o.detail ?? o.status;
   }
 }
 
@@ -82,12 +93,19 @@ function num(v: number): string {
  * trailing comment after a colon (": points to …", lower case), keeping a colon followed by data (": MAP 58 → 65").
  */
 function shortText(text: string): string {
-  const first = (text.split(';')[0] ?? text).replace(/\s*\([^()]*\)/g, '').replace(/\s+/g, ' ').trim();
+  const first = (text.split(';')[0] ?? text)
+    .replace(/\s*\([^()]*\)/g, '')
+    .replace(/\s+/g, ' ')
+    .trim();
   const comment = /:\s+[a-z]/.exec(first);
   return clip(comment ? first.slice(0, comment.index) : first, 100);
 }
 
-interface TimeWords { zone: string; at: string; dateOnly: string }
+interface TimeWords {
+  zone: string;
+  at: string;
+  dateOnly: string;
+}
 
 /** "14:05, 18 min ago", or "1 Dec, date only, time assumed" when the record gave a date alone. */
 function when(e: Evidence, assumed: boolean, t: TimeWords): string {
@@ -95,7 +113,13 @@ function when(e: Evidence, assumed: boolean, t: TimeWords): string {
 }
 
 /** One line for one deciding finding: what was measured, its value and unit, its local time and age. */
-function findingLine(f: Finding, snapshot: PatientSnapshot, cat: Catalogue, t: TimeWords, assumedRefs: ReadonlySet<string>): string | undefined {
+function findingLine(
+  f: Finding,
+  snapshot: PatientSnapshot,
+  cat: Catalogue,
+  t: TimeWords,
+  assumedRefs: ReadonlySet<string>,
+): string | undefined {
   // The finding's own reading: a dynamic test it judged, else its first piece of evidence (the rules list what they
   // read first, then the context that made it valid: rhythm, ventilation).
   const test = f.evidence.map((e) => snapshot.dynamicTests.find((d) => d.ref === e.ref)).find((d) => d !== undefined);
@@ -117,14 +141,22 @@ function findingLine(f: Finding, snapshot: PatientSnapshot, cat: Catalogue, t: T
       const pct = relativeChangePercent(test.before, test.after);
       change = `${signOf(pct)}${num(Math.abs(Math.round(pct * 10) / 10))} %`;
     }
-    return withTime(`${kindLabel(`${test.kind}:${test.measured}`)} ${change} (${num(test.before)} → ${num(test.after)} ${unitDisplay(test.unit)})`.replace(/\s+/g, ' '), time);
+    return withTime(
+      `${kindLabel(`${test.kind}:${test.measured}`)} ${change} (${num(test.before)} → ${num(test.after)} ${unitDisplay(test.unit)})`.replace(
+        /\s+/g,
+        ' ',
+      ),
+      time,
+    );
   }
   const coded = snapshot.coded.find((c) => c.ref === main.ref && c.kind === main.kind);
   if (coded) {
     const words = (cat.answers as Record<string, Record<string, string>>)[coded.kind]?.[coded.answer];
     return words ? withTime(`${kindLabel(coded.kind)}: ${words}`, time) : undefined;
   }
-  const numericKinds = new Set(f.evidence.filter((e) => snapshot.measurements.some((x) => x.ref === e.ref && x.kind === e.kind)).map((e) => e.kind));
+  const numericKinds = new Set(
+    f.evidence.filter((e) => snapshot.measurements.some((x) => x.ref === e.ref && x.kind === e.kind)).map((e) => e.kind),
+  );
   const m = snapshot.measurements.find((x) => x.ref === main.ref && x.kind === main.kind);
   if (m && numericKinds.size === 1 && f.evidence.filter((e) => e.kind === main.kind).length === 1) {
     const unit = unitDisplay(m.unit);
@@ -146,14 +178,16 @@ const LIMIT_RANK: Record<string, number> = { severe: 1, moderate: 2 };
 
 function weight(f: Finding): number {
   switch (f.topic) {
-    case 'responsiveness': return (TIER_RANK[f.tier ?? ''] ?? 20) + (f.direction === 'for' || f.direction === 'against' ? 0 : 5);
+    case 'responsiveness':
+      return (TIER_RANK[f.tier ?? ''] ?? 20) + (f.direction === 'for' || f.direction === 'against' ? 0 : 5);
     case 'tolerance':
       if (f.harmSign) return 0;
       return LIMIT_RANK[f.limit] ?? (f.contextOnly ? 4 : 3);
     case 'perfusion':
       if (f.contextOnly) return 3;
       return f.hypoperfusion ? 0 : 1;
-    default: return 9;
+    default:
+      return 9;
   }
 }
 
@@ -161,7 +195,8 @@ function weight(f: Finding): number {
 function decidingFindings(advice: Advice): Finding[] {
   const assessed = advice.findings.filter((f) => f.status === 'assessed');
   const lists = [advice.responsiveness, advice.tolerance, advice.need].map((v) =>
-    (v?.decidingRules ?? []).flatMap((id) => assessed.filter((f) => f.ruleId === id)).sort((a, b) => weight(a) - weight(b)));
+    (v?.decidingRules ?? []).flatMap((id) => assessed.filter((f) => f.ruleId === id)).sort((a, b) => weight(a) - weight(b)),
+  );
   const out: Finding[] = [];
   for (let i = 0; lists.some((l) => l.length > i); i++) {
     for (const l of lists) {
@@ -185,10 +220,22 @@ function settleLine(advice: Advice, cat: Catalogue): string | undefined {
     const k = advice.whatIf.decisive;
     if (!k) return undefined;
     const row = advice.whatIf.rows.find((r) => r.test === k);
-    const pos = outcomeWords(row?.outcomes.find((o) => o.result === 'positive'), cat);
-    const neg = outcomeWords(row?.outcomes.find((o) => o.result === 'negative'), cat);
+    const pos = outcomeWords(
+      row?.outcomes.find((o) => o.result === 'positive'),
+      cat,
+    );
+    const neg = outcomeWords(
+      row?.outcomes.find((o) => o.result === 'negative'),
+      cat,
+    );
     if (!pos || !neg) return fill(P.settleFallback, { test: cat.testNames[k] });
-    return fill(P.settle, { test: cat.testNames[k], positive: cat.testResults[k].positive, positiveOutcome: pos, negative: cat.testResults[k].negative, negativeOutcome: neg });
+    return fill(P.settle, {
+      test: cat.testNames[k],
+      positive: cat.testResults[k].positive,
+      positiveOutcome: pos,
+      negative: cat.testResults[k].negative,
+      negativeOutcome: neg,
+    });
   }
   const indeterminate = advice.responsiveness?.value === 'indeterminate' ? advice.responsiveness.nextTest : undefined;
   const k = advice.recommendation ? advice.recommendation.nextTest : indeterminate;
@@ -207,24 +254,41 @@ function questionLines(advice: Advice, cat: Catalogue): DetailLine[] {
   const r = advice.responsiveness;
   const t = advice.tolerance;
   const lines: DetailLine[] = [];
-  lines.push({ label: P.labels.responsiveness, text: `${P.responsiveness[r?.value ?? 'unassessed']}${r?.confidence ? ` (${P.confidence[r.confidence]})` : ''}`, keep: true });
+  lines.push({
+    label: P.labels.responsiveness,
+    text: `${P.responsiveness[r?.value ?? 'unassessed']}${r?.confidence ? ` (${P.confidence[r.confidence]})` : ''}`,
+    keep: true,
+  });
   const cov = t?.coverage ? fill(P.coverage, { assessed: String(t.coverage.assessed), total: String(t.coverage.total) }) : '';
   lines.push({ label: P.labels.tolerance, text: `${P.tolerance[t?.value ?? 'unassessed']}${cov ? ` (${cov})` : ''}`, keep: true });
   if (advice.need) {
-    lines.push({ label: P.labels.need, text: `${P.need[advice.need.value]}${advice.phase?.value === 'early-resuscitation' ? `; ${P.earlyPhase}` : ''}`, keep: true });
+    lines.push({
+      label: P.labels.need,
+      text: `${P.need[advice.need.value]}${advice.phase?.value === 'early-resuscitation' ? `; ${P.earlyPhase}` : ''}`,
+      keep: true,
+    });
   }
   return lines;
 }
 
-/** Data the FHIR server could not give, by purpose, with why when the card says it nowhere else (the full list is on the reasoning page). */
-function dataMissingLine(gathering: GatherOutcome[], purposes: Record<string, string>, cat: Catalogue, withReasons: boolean): DetailLine | undefined {
+/**
+ * Data the FHIR server could not give, by purpose, with why when the card says it nowhere else (the full list is on the reasoning page).
+ */
+function dataMissingLine(
+  gathering: GatherOutcome[],
+  purposes: Record<string, string>,
+  cat: Catalogue,
+  withReasons: boolean,
+): DetailLine | undefined {
   const byPurpose = new Map<string, string>();
   for (const o of gathering) {
     if (!GATHER_PROBLEM.has(o.status)) continue;
     const what = purposes[o.key] ?? o.key;
     if (!byPurpose.has(what)) byPurpose.set(what, withReasons ? `${what} (${clip(gatherWhy(o), CLIENT_TEXT_MAX)})` : what);
   }
-  return byPurpose.size ? { text: fill(cat.popup.dataMissing, { what: clip([...byPurpose.values()].join(withReasons ? '; ' : ', '), 160) }) } : undefined;
+  return byPurpose.size
+    ? { text: fill(cat.popup.dataMissing, { what: clip([...byPurpose.values()].join(withReasons ? '; ' : ', '), 160) }) }
+    : undefined;
 }
 
 /** True when the data the advice depends on could not be gathered at all. */
@@ -239,9 +303,12 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
   const T = cat.suggestions;
   const orderedMl = order.volumeMl;
   const aliquot = orderedMl !== undefined ? aliquotMl(orderedMl) : undefined;
-  const aliquotMin = aliquot !== undefined && orderedMl !== undefined ? aliquotDurationMin(orderedMl, order.durationMin, aliquot) : undefined;
+  const aliquotMin =
+    aliquot !== undefined && orderedMl !== undefined ? aliquotDurationMin(orderedMl, order.durationMin, aliquot) : undefined;
   const vars = {
-    aliquotMl: String(aliquot ?? ''), orderedMl: String(Math.round(orderedMl ?? 0)), reassessMin: String(REASSESS_MIN),
+    aliquotMl: String(aliquot ?? ''),
+    orderedMl: String(Math.round(orderedMl ?? 0)),
+    reassessMin: String(REASSESS_MIN),
     aliquotRate: aliquotMin !== undefined ? ` over ${aliquotMin} min` : '',
   };
   const nowMs = Date.parse(now);
@@ -249,7 +316,8 @@ function suggestionsFor(advice: Advice, order: DraftOrder | undefined, cat: Cata
   const reassessAt = new Date(nowMs + ((order.durationMin ?? 0) + REASSESS_MIN) * 60_000).toISOString();
   const aliquotReassessAt = new Date(nowMs + ((aliquotMin ?? 0) + REASSESS_MIN) * 60_000).toISOString();
   const out: Array<Suggestion | undefined> = [];
-  const reassess = (at = reassessAt, ml = vars.orderedMl) => requestTest('reassess-after-bolus', ctx, T['reassess-after-bolus'], { ...vars, reassessMl: ml }, now, at);
+  const reassess = (at = reassessAt, ml = vars.orderedMl) =>
+    requestTest('reassess-after-bolus', ctx, T['reassess-after-bolus'], { ...vars, reassessMl: ml }, now, at);
   const test = (k: TestKind) => requestTest(k, ctx, T[k], vars, now, now);
   const next = testToOffer(advice);
   const critical = rec.indicator === 'critical';
@@ -291,11 +359,17 @@ export function composeCards(input: ComposeInput): CardModel[] {
   const failed = nothingToGoOn(advice, gathering);
   if (failed) {
     const missing = dataMissingLine(gathering, purposes, catalogue, false);
-    return [{
-      kind: 'assessment-gap', vars: { gapReason: clip(gatherWhy(failed), CLIENT_TEXT_MAX) },
-      lines: [{ text: fill(P.notAvailable, { reason: clip(gatherWhy(failed), CLIENT_TEXT_MAX) }), keep: true }, ...(missing ? [missing] : [])],
-      suggestions: [],
-    }];
+    return [
+      {
+        kind: 'assessment-gap',
+        vars: { gapReason: clip(gatherWhy(failed), CLIENT_TEXT_MAX) },
+        lines: [
+          { text: fill(P.notAvailable, { reason: clip(gatherWhy(failed), CLIENT_TEXT_MAX) }), keep: true },
+          ...(missing ? [missing] : []),
+        ],
+        suggestions: [],
+      },
+    ];
   }
 
   const r = advice.responsiveness?.value ?? 'unassessed';
@@ -308,7 +382,13 @@ export function composeCards(input: ComposeInput): CardModel[] {
 
   const lines: DetailLine[] = questionLines(advice, catalogue);
   // One line per finding, a number that two questions used (a CVP) once, at most three.
-  const findings = [...new Set(decidingFindings(advice).map((f) => findingLine(f, snapshot, catalogue, times, assumedRefs)).filter((x): x is string => !!x))].slice(0, MAX_FINDINGS);
+  const findings = [
+    ...new Set(
+      decidingFindings(advice)
+        .map((f) => findingLine(f, snapshot, catalogue, times, assumedRefs))
+        .filter((x): x is string => !!x),
+    ),
+  ].slice(0, MAX_FINDINGS);
   for (const f of findings) lines.push({ text: f, bullet: true, priority: 2 });
   const settle = settleLine(advice, catalogue);
   if (settle) lines.push({ text: settle, keep: true });
@@ -324,11 +404,19 @@ export function composeCards(input: ComposeInput): CardModel[] {
   const quantity = advice.findings.flatMap((f) => (f.topic === 'tolerance' && f.status === 'assessed' && f.quantity ? [f.quantity] : []));
   const overload = quantity.find((q) => q.kind === 'fluid-overload-percent');
   const balanceQ = quantity.find((q) => q.kind === 'balance-ml');
-  let balancePhrase = balanceQ ? fill(ph.balanceMl, { value: `${balanceQ.value >= 0 ? '+' : '−'}${Math.abs(Math.round(balanceQ.value))}` }) : '';
+  let balancePhrase = balanceQ
+    ? fill(ph.balanceMl, { value: `${balanceQ.value >= 0 ? '+' : '−'}${Math.abs(Math.round(balanceQ.value))}` })
+    : '';
   if (overload) balancePhrase = fill(ph.overloadPercent, { value: overload.value.toFixed(1) });
   const vars: Record<string, string> = {
-    responsivenessPhrase, responsivenessPhraseLower: responsivenessPhrase.toLowerCase(), tolerancePhrase,
-    tolerance: t, responsiveness: r, headline, balancePhrase, indicator: rec?.indicator ?? 'info',
+    responsivenessPhrase,
+    responsivenessPhraseLower: responsivenessPhrase.toLowerCase(),
+    tolerancePhrase,
+    tolerance: t,
+    responsiveness: r,
+    headline,
+    balancePhrase,
+    indicator: rec?.indicator ?? 'info',
   };
   const suggestions = orderHook ? suggestionsFor(advice, fluidOrders[0], catalogue, input.context, snapshot.now) : [];
   return [{ kind: orderHook ? 'bolus-review' : 'fluid-overview', vars, lines, suggestions, selectionBehavior: 'at-most-one' }];

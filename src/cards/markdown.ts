@@ -19,7 +19,8 @@ export const MAX_VALUE_LENGTH = 300;
  * `-` `+` `*` `1.` `1)`, block quote `>`, setext underline `=`; CommonMark 0.31 §4.2, §5.1–5.3), a dot inside a
  * word (a bare domain becomes a link under GFM's autolink extension), a colon after a letter or `:/` (a scheme).
  */
-const NEEDS_ESCAPE = /[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069&<>\\`*_[\]|~]|^\s|^(?:[#>=]|[+-](?=[\s-]|$)|\d+[.)](?=\s|$))|[A-Za-z0-9]\.[A-Za-z]|[A-Za-z]:\S|:\//;
+const NEEDS_ESCAPE =
+  /[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069&<>\\`*_[\]|~]|^\s|^(?:[#>=]|[+-](?=[\s-]|$)|\d+[.)](?=\s|$))|[A-Za-z0-9]\.[A-Za-z]|[A-Za-z]:\S|:\//;
 
 /** The first `max` characters, never ending in the first half of a surrogate pair, with an ellipsis when cut. */
 export function clip(s: string, max: number): string {
@@ -39,17 +40,19 @@ export function md(value: unknown, max = MAX_VALUE_LENGTH): string {
   const raw = String(value);
   if (raw.length <= max && !NEEDS_ESCAPE.test(raw)) return raw;
   const s = clip(raw.replace(INVISIBLE, (c) => (c === '\t' || c === '\n' || c === '\r' ? ' ' : '')).trimStart(), max);
-  return s
-    .replace(/&/g, '&amp;')
-    .replace(/</g, '&lt;')
-    .replace(/>/g, '&gt;')
-    .replace(/[\\`*_[\]|~]/g, (c) => `\\${c}`)
-    // A `>` at the start is an entity by now (no block quote); a list marker needs a space after it (CommonMark 0.31 §5.2).
-    .replace(/^(?:[#=]|[+-](?=[\s-]|$))/, (c) => `\\${c}`)
-    .replace(/^(\d+)([.)])(?=\s|$)/, '$1\\$2')
-    .replace(/([A-Za-z0-9])\.(?=[A-Za-z])/g, '$1\\.')
-    .replace(/([A-Za-z]):(?=\S)/g, '$1\\:')
-    .replace(/:\//g, ':\\/');
+  return (
+    s
+      .replace(/&/g, '&amp;')
+      .replace(/</g, '&lt;')
+      .replace(/>/g, '&gt;')
+      .replace(/[\\`*_[\]|~]/g, (c) => `\\${c}`)
+      // A `>` at the start is an entity by now (no block quote); a list marker needs a space after it (CommonMark 0.31 §5.2).
+      .replace(/^(?:[#=]|[+-](?=[\s-]|$))/, (c) => `\\${c}`)
+      .replace(/^(\d+)([.)])(?=\s|$)/, '$1\\$2')
+      .replace(/([A-Za-z0-9])\.(?=[A-Za-z])/g, '$1\\.')
+      .replace(/([A-Za-z]):(?=\S)/g, '$1\\:')
+      .replace(/:\//g, ':\\/')
+  );
 }
 
 /** Client text inside one line of our own text (a card summary, a suggestion label): the same as md(). */

@@ -34,26 +34,78 @@ export const DETAIL_MAX_LINES = 12;
 /** Longest line of the detail (our own bound). */
 const LINE_MAX = 200;
 
-const UNIT_DISPLAY: Record<string, string> = { 'mm[Hg]': 'mmHg', 'cm[H2O]': 'cmH2O', '{grade}': '', '{regions}': 'regions', 'L/min/m2': 'L/min/m²', 'mL/m2': 'mL/m²' };
+const UNIT_DISPLAY: Record<string, string> = {
+  'mm[Hg]': 'mmHg',
+  'cm[H2O]': 'cmH2O',
+  '{grade}': '',
+  '{regions}': 'regions',
+  'L/min/m2': 'L/min/m²',
+  'mL/m2': 'mL/m²',
+};
 export const unitDisplay = (u: string | undefined): string => (u === undefined ? '' : (UNIT_DISPLAY[u] ?? u));
 
 const KIND_LABEL: Record<string, string> = {
-  heartRate: 'Heart rate', systolicBp: 'Systolic BP', diastolicBp: 'Diastolic BP', meanBp: 'Mean arterial pressure', respiratoryRate: 'Respiratory rate',
-  spo2: 'SpO2', fio2: 'FiO2', bodyWeight: 'Weight', bodyHeight: 'Height', cvp: 'CVP', rightAtrialPressure: 'Right atrial pressure', lactate: 'Lactate',
-  albumin: 'Albumin', creatinine: 'Creatinine', urineOutput: 'Urine output', fluidIntake: 'Fluid intake', fluidOutput: 'Fluid output', fluidBalance: 'Fluid balance',
-  cardiacOutput: 'Cardiac output', cardiacIndex: 'Cardiac index', strokeVolume: 'Stroke volume', strokeVolumeIndex: 'Stroke volume index', ppv: 'PPV', svv: 'SVV',
-  ivcDiameterMax: 'IVC diameter (max)', ivcDiameterMin: 'IVC diameter (min)', capillaryRefill: 'Capillary refill time', tidalVolume: 'Tidal volume', peep: 'PEEP',
-  intraAbdominalPressure: 'Intra-abdominal pressure', evlwi: 'EVLWI', portalPulsatility: 'Portal pulsatility fraction', edemaGrade: 'Oedema grade',
-  bLineRegions: 'Lung ultrasound B-pattern', bLineRegionsLeft: 'Lung ultrasound B-pattern (left)', bLineRegionsRight: 'Lung ultrasound B-pattern (right)',
-  ventilationMode: 'Ventilation', heartRhythm: 'Rhythm', hepaticVeinPattern: 'Hepatic vein Doppler',
-  renalVeinPattern: 'Intrarenal venous Doppler', lvFunction: 'LV function (echo)', chestStatus: 'Chest', plr: 'Passive leg raise',
-  miniFluidChallenge: 'Mini fluid challenge', endExpiratoryOcclusion: 'End-expiratory occlusion', tidalVolumeChallenge: 'Tidal volume challenge',
+  heartRate: 'Heart rate',
+  systolicBp: 'Systolic BP',
+  diastolicBp: 'Diastolic BP',
+  meanBp: 'Mean arterial pressure',
+  respiratoryRate: 'Respiratory rate',
+  spo2: 'SpO2',
+  fio2: 'FiO2',
+  bodyWeight: 'Weight',
+  bodyHeight: 'Height',
+  cvp: 'CVP',
+  rightAtrialPressure: 'Right atrial pressure',
+  lactate: 'Lactate',
+  albumin: 'Albumin',
+  creatinine: 'Creatinine',
+  urineOutput: 'Urine output',
+  fluidIntake: 'Fluid intake',
+  fluidOutput: 'Fluid output',
+  fluidBalance: 'Fluid balance',
+  cardiacOutput: 'Cardiac output',
+  cardiacIndex: 'Cardiac index',
+  strokeVolume: 'Stroke volume',
+  strokeVolumeIndex: 'Stroke volume index',
+  ppv: 'PPV',
+  svv: 'SVV',
+  ivcDiameterMax: 'IVC diameter (max)',
+  ivcDiameterMin: 'IVC diameter (min)',
+  capillaryRefill: 'Capillary refill time',
+  tidalVolume: 'Tidal volume',
+  peep: 'PEEP',
+  intraAbdominalPressure: 'Intra-abdominal pressure',
+  evlwi: 'EVLWI',
+  portalPulsatility: 'Portal pulsatility fraction',
+  edemaGrade: 'Oedema grade',
+  bLineRegions: 'Lung ultrasound B-pattern',
+  bLineRegionsLeft: 'Lung ultrasound B-pattern (left)',
+  bLineRegionsRight: 'Lung ultrasound B-pattern (right)',
+  ventilationMode: 'Ventilation',
+  heartRhythm: 'Rhythm',
+  hepaticVeinPattern: 'Hepatic vein Doppler',
+  renalVeinPattern: 'Intrarenal venous Doppler',
+  lvFunction: 'LV function (echo)',
+  chestStatus: 'Chest',
+  plr: 'Passive leg raise',
+  miniFluidChallenge: 'Mini fluid challenge',
+  endExpiratoryOcclusion: 'End-expiratory occlusion',
+  tidalVolumeChallenge: 'Tidal volume challenge',
 };
-const MEASURED_LABEL: Record<string, string> = { pulsePressure: 'pulse pressure', vti: 'VTI', cardiacOutput: 'cardiac output', cardiacIndex: 'cardiac index', strokeVolume: 'stroke volume', ppv: 'PPV', svv: 'SVV' };
+const MEASURED_LABEL: Record<string, string> = {
+  pulsePressure: 'pulse pressure',
+  vti: 'VTI',
+  cardiacOutput: 'cardiac output',
+  cardiacIndex: 'cardiac index',
+  strokeVolume: 'stroke volume',
+  ppv: 'PPV',
+  svv: 'SVV',
+};
 /** "heartRate" → "Heart rate"; "plr:cardiacOutput" (a dynamic test and what it measured) → "Passive leg raise (cardiac output)". */
 export function kindLabel(k: string): string {
   const [test, measured] = k.split(':');
-  if (measured && test) return `${KIND_LABEL[test] ?? test} (${MEASURED_LABEL[measured] ?? KIND_LABEL[measured]?.toLowerCase() ?? measured})`;
+  if (measured && test)
+    return `${KIND_LABEL[test] ?? test} (${MEASURED_LABEL[measured] ?? KIND_LABEL[measured]?.toLowerCase() ?? measured})`;
   return KIND_LABEL[k] ?? k;
 }
 
@@ -112,7 +164,11 @@ function fitted(lines: DetailLine[], caution: string): string {
   let text = detailMarkdown(kept, caution);
   while ((text.length > DETAIL_MAX_CHARS || nonEmptyLines(text) > DETAIL_MAX_LINES) && kept.some((l) => !l.keep)) {
     const worst = Math.max(...kept.filter((l) => !l.keep).map((l) => l.priority ?? 0));
-    const at = kept.map((l, i) => ({ l, i })).filter(({ l }) => !l.keep && (l.priority ?? 0) === worst).pop()?.i ?? -1;
+    const at =
+      kept
+        .map((l, i) => ({ l, i }))
+        .filter(({ l }) => !l.keep && (l.priority ?? 0) === worst)
+        .pop()?.i ?? -1;
     kept = kept.filter((_l, i) => i !== at);
     text = detailMarkdown(kept, caution);
   }
@@ -145,7 +201,10 @@ export function renderCard(model: CardModel, cat: Catalogue, ctx: RenderContext)
     detail: fitted(model.lines, caution),
     indicator,
     source: { label: cat.source.label, url: docsUrl, ...(cat.source.topic ? { topic: cat.source.topic } : {}) },
-    links: [...(ctx.adviceLink ? [{ ...ctx.adviceLink, type: 'absolute' as const }] : []), { label: `How Tidemark reasons: ${kind.title}`, url: docsUrl, type: 'absolute' }],
+    links: [
+      ...(ctx.adviceLink ? [{ ...ctx.adviceLink, type: 'absolute' as const }] : []),
+      { label: `How Tidemark reasons: ${kind.title}`, url: docsUrl, type: 'absolute' },
+    ],
   };
   if (model.suggestions.length) {
     card.suggestions = model.suggestions;

@@ -15,7 +15,12 @@ import { fill } from './markdown.js';
 export const TIDEMARK_PROCEDURES = 'https://tidemark.invalid/fhir/CodeSystem/procedure';
 
 export type TestKind =
-  | 'passive-leg-raise' | 'bedside-ultrasound' | 'reassess-after-bolus' | 'mini-fluid-challenge' | 'tidal-volume-challenge' | 'end-expiratory-occlusion';
+  | 'passive-leg-raise'
+  | 'bedside-ultrasound'
+  | 'reassess-after-bolus'
+  | 'mini-fluid-challenge'
+  | 'tidal-volume-challenge'
+  | 'end-expiratory-occlusion';
 
 /**
  * The code of what each request asks for: a standard code where one exists, with the display its code system gives
@@ -58,7 +63,13 @@ function isMedicationRequest(r: Record<string, unknown>): r is Record<string, un
  * Update the draft MedicationRequest to `volumeMl` given over `durationMin` (the ordered rate kept), keeping everything
  * else, with a note to reassess. A rate in the order stays as it was; a duration is shortened in proportion.
  */
-export function smallerAliquot(order: DraftOrder, volumeMl: number, durationMin: number | undefined, t: SuggestionText, vars: Record<string, string>): Suggestion | undefined {
+export function smallerAliquot(
+  order: DraftOrder,
+  volumeMl: number,
+  durationMin: number | undefined,
+  t: SuggestionText,
+  vars: Record<string, string>,
+): Suggestion | undefined {
   const draft = order.resource;
   if (!isMedicationRequest(draft) || !order.id) return undefined;
   const mr: MedicationRequest = structuredClone(draft);
@@ -66,10 +77,14 @@ export function smallerAliquot(order: DraftOrder, volumeMl: number, durationMin:
   if (!dose) return undefined;
   const dr = dose.doseAndRate?.[0];
   const rest = (dose.doseAndRate ?? []).slice(1);
-  dose.doseAndRate = [{
-    ...(dr?.type ? { type: dr.type } : {}), doseQuantity: { value: volumeMl, unit: 'mL', system: UCUM, code: 'mL' },
-    ...(dr?.rateQuantity ? { rateQuantity: dr.rateQuantity } : {}),
-  }, ...rest];
+  dose.doseAndRate = [
+    {
+      ...(dr?.type ? { type: dr.type } : {}),
+      doseQuantity: { value: volumeMl, unit: 'mL', system: UCUM, code: 'mL' },
+      ...(dr?.rateQuantity ? { rateQuantity: dr.rateQuantity } : {}),
+    },
+    ...rest,
+  ];
   if (durationMin !== undefined) {
     dose.timing = { ...dose.timing, repeat: { ...dose.timing?.repeat, duration: durationMin, durationUnit: 'min' } };
   }
@@ -86,7 +101,14 @@ export function smallerAliquot(order: DraftOrder, volumeMl: number, durationMin:
  * Create a draft ServiceRequest for a test or reassessment, to be done at `occurrence` (from the injected clock:
  * a test now, before any volume; a reassessment when the bolus has run and the interval has passed).
  */
-export function requestTest(kind: TestKind, ctx: SuggestionContext, t: SuggestionText, vars: Record<string, string>, authoredOn: string, occurrence: string): Suggestion {
+export function requestTest(
+  kind: TestKind,
+  ctx: SuggestionContext,
+  t: SuggestionText,
+  vars: Record<string, string>,
+  authoredOn: string,
+  occurrence: string,
+): Suggestion {
   const c = TEST_CODES[kind];
   const sr: ServiceRequest = {
     resourceType: 'ServiceRequest',
@@ -99,11 +121,19 @@ export function requestTest(kind: TestKind, ctx: SuggestionContext, t: Suggestio
     authoredOn,
     ...(/^(Practitioner|PractitionerRole)\//.test(ctx.userId) ? { requester: { reference: ctx.userId } } : {}),
   };
-  return { label: fill(t.label, vars), uuid: randomUUID(), actions: [{ type: 'create', description: fill(t.description, vars), resource: sr }] };
+  return {
+    label: fill(t.label, vars),
+    uuid: randomUUID(),
+    actions: [{ type: 'create', description: fill(t.description, vars), resource: sr }],
+  };
 }
 
 /** Delete the draft order (resourceId only). */
 export function withdrawDraft(order: DraftOrder, t: SuggestionText, vars: Record<string, string>): Suggestion | undefined {
   if (!order.id) return undefined;
-  return { label: fill(t.label, vars), uuid: randomUUID(), actions: [{ type: 'delete', description: fill(t.description, vars), resourceId: `${order.resourceType}/${order.id}` }] };
+  return {
+    label: fill(t.label, vars),
+    uuid: randomUUID(),
+    actions: [{ type: 'delete', description: fill(t.description, vars), resourceId: `${order.resourceType}/${order.id}` }],
+  };
 }

@@ -94,7 +94,8 @@ function readJson(path: string, what: string): unknown {
 
 /** A SQLite audit file that does not exist is an error here: opening it would create an empty trail. */
 function missingAuditFile(cfg: AppConfig): string | undefined {
-  if (cfg.TIDEMARK_AUDIT_STORE !== 'sqlite' || cfg.TIDEMARK_SQLITE_PATH === ':memory:' || existsSync(cfg.TIDEMARK_SQLITE_PATH)) return undefined;
+  if (cfg.TIDEMARK_AUDIT_STORE !== 'sqlite' || cfg.TIDEMARK_SQLITE_PATH === ':memory:' || existsSync(cfg.TIDEMARK_SQLITE_PATH))
+    return undefined;
   return `no audit file exists at ${cfg.TIDEMARK_SQLITE_PATH} (TIDEMARK_SQLITE_PATH); nothing to read`;
 }
 
@@ -121,7 +122,8 @@ type Io = { out: NodeJS.WritableStream; err: NodeJS.WriteStream; env: NodeJS.Pro
 
 async function impact(store: AuditStore, cfg: AppConfig, args: string[], io: Io): Promise<number> {
   const path = flag(args, 'thresholds');
-  if (!path) throw new UsageError('impact needs --thresholds FILE (candidate thresholds, the shape of the configuration file\'s "thresholds")');
+  if (!path)
+    throw new UsageError('impact needs --thresholds FILE (candidate thresholds, the shape of the configuration file\'s "thresholds")');
   const format = oneOf<ImpactFormat>(args, 'format', ['table', 'csv', 'ndjson'], 'table');
   const cand = candidateThresholds(readJson(path, 'candidate thresholds'));
   if (!cand.ok) throw new UsageError(`candidate thresholds ${path} are invalid: ${cand.message}`);
@@ -138,7 +140,11 @@ async function impact(store: AuditStore, cfg: AppConfig, args: string[], io: Io)
   const bar = progressBar(io.err);
   const report = await impactOf(
     store.records({ outcome: 'answered', ...(from ? { from } : {}), ...(to ? { to } : {}), ...(service ? { service } : {}) }),
-    { thresholds: cand.thresholds, catalogue: loaded.catalogue, rulesVersion: rulesVersion(loaded.digest, cand.thresholds, undefined, cfg.siteMap) },
+    {
+      thresholds: cand.thresholds,
+      catalogue: loaded.catalogue,
+      rulesVersion: rulesVersion(loaded.digest, cand.thresholds, undefined, cfg.siteMap),
+    },
     { onProgress: (n) => bar.tick(n) },
   );
   bar.done();
@@ -164,7 +170,9 @@ export async function run(argv: string[], io: Io = { out: process.stdout, err: p
     await store.init();
     if (command === 'verify') {
       const r = await store.verifyChain();
-      io.out.write(r.ok ? `audit chain intact: ${r.checked} records\n` : `audit chain BROKEN at record seq ${r.firstBadSeq} (${r.checked} checked)\n`);
+      io.out.write(
+        r.ok ? `audit chain intact: ${r.checked} records\n` : `audit chain BROKEN at record seq ${r.firstBadSeq} (${r.checked} checked)\n`,
+      );
       return r.ok ? 0 : 1;
     }
     if (command === 'export') {

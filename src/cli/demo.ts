@@ -51,8 +51,25 @@ function indicatorBadge(indicator: string): string {
 /** Markdown of a card detail → its lines as a prescriber reads them (escapes and emphasis removed, links as their label). */
 function detailLines(detail: string | undefined): string[] {
   if (!detail) return [];
-  const unescape = (s: string) => s.replace(/\\([\\`*_{}[\]()#+\-.!|>~<:/])/g, '$1').replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&quot;/g, '"').replace(/&amp;/g, '&');
-  return detail.split('\n').filter((l) => l.trim()).map((l) => unescape(l.replace(/\[([^\]]+)\]\([^)]*\)/g, '[$1]').replace(/\*\*([^*]+)\*\*/g, '$1').replace(/^\* /, '· ').replace(/^\*(.+)\*( |$)/, '$1$2')));
+  const unescape = (s: string) =>
+    s
+      .replace(/\\([\\`*_{}[\]()#+\-.!|>~<:/])/g, '$1')
+      .replace(/&lt;/g, '<')
+      .replace(/&gt;/g, '>')
+      .replace(/&quot;/g, '"')
+      .replace(/&amp;/g, '&');
+  return detail
+    .split('\n')
+    .filter((l) => l.trim())
+    .map((l) =>
+      unescape(
+        l
+          .replace(/\[([^\]]+)\]\([^)]*\)/g, '[$1]')
+          .replace(/\*\*([^*]+)\*\*/g, '$1')
+          .replace(/^\* /, '· ')
+          .replace(/^\*(.+)\*( |$)/, '$1$2'),
+      ),
+    );
 }
 
 function printCards(run: ScenarioRun): void {
@@ -68,12 +85,16 @@ function printCards(run: ScenarioRun): void {
   }
   for (const card of cards) {
     const valid = cardSchema.safeParse(card);
-    out(`   ${indicatorBadge(String(card['indicator']))} ${bold(String(card['summary']))}${valid.success ? '' : red('  (card does not pass the CDS Hooks card schema)')}`);
+    out(
+      `   ${indicatorBadge(String(card['indicator']))} ${bold(String(card['summary']))}${valid.success ? '' : red('  (card does not pass the CDS Hooks card schema)')}`,
+    );
     const detail = String(card['detail'] ?? '');
     for (const l of detailLines(detail)) out(`     ${l}`);
     out(dim(`     (detail: ${detail.length} characters, ${detail.split('\n').filter((l) => l.trim()).length} lines)`));
     const suggestions = (card['suggestions'] as Array<{ label?: string; isRecommended?: boolean }> | undefined) ?? [];
-    out(`     ${bold('Suggestions')} ${suggestions.length ? suggestions.map((s) => `[${s.label ?? ''}${s.isRecommended ? ' (recommended)' : ''}]`).join(' ') : dim('none')}`);
+    out(
+      `     ${bold('Suggestions')} ${suggestions.length ? suggestions.map((s) => `[${s.label ?? ''}${s.isRecommended ? ' (recommended)' : ''}]`).join(' ') : dim('none')}`,
+    );
   }
 }
 
@@ -89,11 +110,20 @@ interface Row {
 function table(rows: Row[]): void {
   const head = ['scenario', 'path', 'responsiveness', 'tolerance', 'indicator', 'expected', 'match'];
   const cells = rows.map((r) => [
-    r.scenario, ROUTE_SHORT[r.route], r.status === 200 ? (r.observed.responsiveness ?? 'not given') : `HTTP ${r.status}`,
-    r.status === 200 ? (r.observed.tolerance ?? 'not given') : '-', r.observed.indicator, r.expected, r.problems.length ? 'NO' : 'yes',
+    r.scenario,
+    ROUTE_SHORT[r.route],
+    r.status === 200 ? (r.observed.responsiveness ?? 'not given') : `HTTP ${r.status}`,
+    r.status === 200 ? (r.observed.tolerance ?? 'not given') : '-',
+    r.observed.indicator,
+    r.expected,
+    r.problems.length ? 'NO' : 'yes',
   ]);
   const widths = head.map((h, i) => Math.max(h.length, ...cells.map((c) => (c[i] ?? '').length)));
-  const line = (c: string[]) => c.map((x, i) => x.padEnd(widths[i] ?? 0)).join('  ').trimEnd();
+  const line = (c: string[]) =>
+    c
+      .map((x, i) => x.padEnd(widths[i] ?? 0))
+      .join('  ')
+      .trimEnd();
   out(bold(line(head)));
   out(widths.map((w) => '-'.repeat(w)).join('  '));
   for (const c of cells) {
@@ -133,14 +163,21 @@ async function main(): Promise<number> {
     const port = (server.address() as AddressInfo).port;
     const publicUrl = `http://127.0.0.1:${port}`;
     const cfg = loadConfig({
-      PORT: String(port), HOST: '127.0.0.1', TIDEMARK_PUBLIC_URL: publicUrl, TIDEMARK_TRIAL_MODE: 'true',
-      TIDEMARK_SQLITE_PATH: join(dir, 'audit.sqlite'), TIDEMARK_AUDIT_TOKEN: auditToken, TIDEMARK_LOG_LEVEL: 'silent',
+      PORT: String(port),
+      HOST: '127.0.0.1',
+      TIDEMARK_PUBLIC_URL: publicUrl,
+      TIDEMARK_TRIAL_MODE: 'true',
+      TIDEMARK_SQLITE_PATH: join(dir, 'audit.sqlite'),
+      TIDEMARK_AUDIT_TOKEN: auditToken,
+      TIDEMARK_LOG_LEVEL: 'silent',
       // The cards show local clock times in the site's zone: the demo takes TIDEMARK_TIME_ZONE from the environment.
       ...(process.env['TIDEMARK_TIME_ZONE'] ? { TIDEMARK_TIME_ZONE: process.env['TIDEMARK_TIME_ZONE'] } : {}),
     });
     svc = await buildService(cfg, { log: createLogger('silent') });
     app = svc.app;
-    out(`  Tidemark         ${publicUrl}/cds-services  ${dim(`(trial mode, audit ${svc.store.kind} in ${dir}; card times in ${cfg.TIDEMARK_TIME_ZONE})`)}`);
+    out(
+      `  Tidemark         ${publicUrl}/cds-services  ${dim(`(trial mode, audit ${svc.store.kind} in ${dir}; card times in ${cfg.TIDEMARK_TIME_ZONE})`)}`,
+    );
 
     const now = new Date();
     const built = new Map<string, BuiltScenario>();
@@ -163,7 +200,9 @@ async function main(): Promise<number> {
       out(`   ${dim('A careful intensivist:')} ${dim(s.conclusion)}`);
       const runs: ScenarioRun[] = [];
       for (const route of ['fhir-server', 'prefetch'] as const) runs.push(await runScenario(targets, s, b, route));
-      out(`   ${runs.map((r) => `${ROUTE_LABEL[r.route]}: HTTP ${r.status}, ${(r.body.cards ?? []).length} card(s), ${Math.round(r.ms)} ms`).join('   ')}`);
+      out(
+        `   ${runs.map((r) => `${ROUTE_LABEL[r.route]}: HTTP ${r.status}, ${(r.body.cards ?? []).length} card(s), ${Math.round(r.ms)} ms`).join('   ')}`,
+      );
       const first = runs[0] as ScenarioRun;
       printCards(first);
       for (const r of runs) {
@@ -172,7 +211,8 @@ async function main(): Promise<number> {
         rows.push({ scenario: s.id, route: r.route, observed, expected: expectationText(s.expect), problems, status: r.status });
       }
       const [a, c] = rows.slice(-2) as [Row, Row];
-      const verdictText = (o: ObservedVerdicts) => `responsiveness ${o.responsiveness ?? 'not given'} · tolerance ${o.tolerance ?? 'not given'} · indicator ${o.indicator}`;
+      const verdictText = (o: ObservedVerdicts) =>
+        `responsiveness ${o.responsiveness ?? 'not given'} · tolerance ${o.tolerance ?? 'not given'} · indicator ${o.indicator}`;
       out(`   ${bold('Verdicts')} ${verdictText(a.observed)}   ${dim(`expected ${expectationText(s.expect)}`)}`);
       if (verdictText(a.observed) !== verdictText(c.observed)) out(`   ${yellow('prefetch path differs:')} ${verdictText(c.observed)}`);
       for (const r of [a, c]) if (r.problems.length) out(`   ${red(`MISMATCH (${ROUTE_SHORT[r.route]}):`)} ${r.problems.join('; ')}`);
@@ -184,10 +224,18 @@ async function main(): Promise<number> {
     table(rows);
     const bad = rows.filter((r) => r.problems.length).length;
     out();
-    out(bad === 0
-      ? green(`All ${rows.length} answers match what a careful intensivist would conclude.`)
-      : yellow(`${rows.length - bad} of ${rows.length} answers match; ${bad} do not (see MISMATCH above). A demo: exit code 0 all the same.`));
-    out(dim(`Done in ${((performance.now() - started) / 1000).toFixed(1)} s. The servers, the audit file and the tokens existed only for this run.`));
+    out(
+      bad === 0
+        ? green(`All ${rows.length} answers match what a careful intensivist would conclude.`)
+        : yellow(
+            `${rows.length - bad} of ${rows.length} answers match; ${bad} do not (see MISMATCH above). A demo: exit code 0 all the same.`,
+          ),
+    );
+    out(
+      dim(
+        `Done in ${((performance.now() - started) / 1000).toFixed(1)} s. The servers, the audit file and the tokens existed only for this run.`,
+      ),
+    );
     return 0;
   } finally {
     if (server) {

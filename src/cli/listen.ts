@@ -20,7 +20,14 @@ export function listen(svc: Service, cfg: Pick<AppConfig, 'PORT' | 'HOST' | 'hos
       const loopbackOnly = cfg.TIDEMARK_TRIAL_MODE && !cfg.hostFromEnv;
       svc.log.info(
         {
-          host, port, publicUrl, trustedIssuers, auditReaders, auditStore, replayCache, rulesVersion: svc.rulesVersion,
+          host,
+          port,
+          publicUrl,
+          trustedIssuers,
+          auditReaders,
+          auditStore,
+          replayCache,
+          rulesVersion: svc.rulesVersion,
           ...(cfg.TIDEMARK_TRIAL_MODE && { trialMode: true }),
         },
         `Tidemark listening on ${host}:${port}, public URL ${publicUrl}, ${trustedIssuers} trusted issuer(s), audit store ${auditStore}` +

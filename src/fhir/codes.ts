@@ -20,29 +20,83 @@ export const TIDEMARK_ANSWERS = 'https://tidemark.invalid/fhir/CodeSystem/answer
 
 /** Numeric measurement kinds. The name says what it is; the canonical unit is in KIND_UNITS. */
 export const NUMERIC_KINDS = [
-  'heartRate', 'systolicBp', 'diastolicBp', 'meanBp', 'respiratoryRate', 'spo2', 'fio2',
-  'bodyWeight', 'bodyHeight', 'cvp', 'rightAtrialPressure',
-  'lactate', 'albumin', 'creatinine',
-  'urineOutput', 'fluidIntake', 'fluidOutput', 'fluidBalance',
-  'cardiacOutput', 'cardiacIndex', 'strokeVolume', 'strokeVolumeIndex',
-  'ppv', 'svv', 'ivcDiameterMax', 'ivcDiameterMin', 'capillaryRefill',
-  'tidalVolume', 'peep', 'intraAbdominalPressure', 'evlwi', 'portalPulsatility', 'edemaGrade',
-  'bLineRegions', 'bLineRegionsLeft', 'bLineRegionsRight',
+  'heartRate',
+  'systolicBp',
+  'diastolicBp',
+  'meanBp',
+  'respiratoryRate',
+  'spo2',
+  'fio2',
+  'bodyWeight',
+  'bodyHeight',
+  'cvp',
+  'rightAtrialPressure',
+  'lactate',
+  'albumin',
+  'creatinine',
+  'urineOutput',
+  'fluidIntake',
+  'fluidOutput',
+  'fluidBalance',
+  'cardiacOutput',
+  'cardiacIndex',
+  'strokeVolume',
+  'strokeVolumeIndex',
+  'ppv',
+  'svv',
+  'ivcDiameterMax',
+  'ivcDiameterMin',
+  'capillaryRefill',
+  'tidalVolume',
+  'peep',
+  'intraAbdominalPressure',
+  'evlwi',
+  'portalPulsatility',
+  'edemaGrade',
+  'bLineRegions',
+  'bLineRegionsLeft',
+  'bLineRegionsRight',
 ] as const;
 export type NumericKind = (typeof NUMERIC_KINDS)[number];
 
 /** Canonical UCUM unit of each numeric kind; every value in a snapshot is in this unit. */
 export const KIND_UNITS: Record<NumericKind, string> = {
-  heartRate: '/min', systolicBp: 'mm[Hg]', diastolicBp: 'mm[Hg]', meanBp: 'mm[Hg]',
-  respiratoryRate: '/min', spo2: '%', fio2: '%', bodyWeight: 'kg', bodyHeight: 'cm',
-  cvp: 'mm[Hg]', rightAtrialPressure: 'mm[Hg]',
-  lactate: 'mmol/L', albumin: 'g/L', creatinine: 'mg/dL',
-  urineOutput: 'mL', fluidIntake: 'mL', fluidOutput: 'mL', fluidBalance: 'mL',
-  cardiacOutput: 'L/min', cardiacIndex: 'L/min/m2', strokeVolume: 'mL', strokeVolumeIndex: 'mL/m2',
-  ppv: '%', svv: '%', ivcDiameterMax: 'cm', ivcDiameterMin: 'cm', capillaryRefill: 's',
-  tidalVolume: 'mL', peep: 'cm[H2O]', intraAbdominalPressure: 'mm[Hg]', evlwi: 'mL/kg',
-  portalPulsatility: '%', edemaGrade: '{grade}', bLineRegions: '{regions}',
-  bLineRegionsLeft: '{regions}', bLineRegionsRight: '{regions}',
+  heartRate: '/min',
+  systolicBp: 'mm[Hg]',
+  diastolicBp: 'mm[Hg]',
+  meanBp: 'mm[Hg]',
+  respiratoryRate: '/min',
+  spo2: '%',
+  fio2: '%',
+  bodyWeight: 'kg',
+  bodyHeight: 'cm',
+  cvp: 'mm[Hg]',
+  rightAtrialPressure: 'mm[Hg]',
+  lactate: 'mmol/L',
+  albumin: 'g/L',
+  creatinine: 'mg/dL',
+  urineOutput: 'mL',
+  fluidIntake: 'mL',
+  fluidOutput: 'mL',
+  fluidBalance: 'mL',
+  cardiacOutput: 'L/min',
+  cardiacIndex: 'L/min/m2',
+  strokeVolume: 'mL',
+  strokeVolumeIndex: 'mL/m2',
+  ppv: '%',
+  svv: '%',
+  ivcDiameterMax: 'cm',
+  ivcDiameterMin: 'cm',
+  capillaryRefill: 's',
+  tidalVolume: 'mL',
+  peep: 'cm[H2O]',
+  intraAbdominalPressure: 'mm[Hg]',
+  evlwi: 'mL/kg',
+  portalPulsatility: '%',
+  edemaGrade: '{grade}',
+  bLineRegions: '{regions}',
+  bLineRegionsLeft: '{regions}',
+  bLineRegionsRight: '{regions}',
 };
 
 /**
@@ -50,20 +104,50 @@ export const KIND_UNITS: Record<NumericKind, string> = {
  * excluded as impossible (a typo or a unit error), not clamped. Bounds: common practice, chosen wide.
  */
 export const KIND_BOUNDS: Record<NumericKind, readonly [number, number]> = {
-  heartRate: [0, 350], systolicBp: [0, 350], diastolicBp: [0, 250], meanBp: [0, 300],
-  respiratoryRate: [0, 120], spo2: [0, 100], fio2: [21, 100], bodyWeight: [0.3, 500], bodyHeight: [20, 260],
-  cvp: [-15, 60], rightAtrialPressure: [-15, 60],
-  lactate: [0, 40], albumin: [0, 80], creatinine: [0, 30],
-  urineOutput: [0, 50_000], fluidIntake: [0, 50_000], fluidOutput: [0, 50_000], fluidBalance: [-50_000, 50_000],
-  cardiacOutput: [0, 30], cardiacIndex: [0, 15], strokeVolume: [0, 300], strokeVolumeIndex: [0, 150],
-  ppv: [0, 100], svv: [0, 100], ivcDiameterMax: [0, 5], ivcDiameterMin: [0, 5], capillaryRefill: [0, 60],
-  tidalVolume: [0, 3000], peep: [0, 40], intraAbdominalPressure: [-5, 80], evlwi: [0, 60],
-  portalPulsatility: [0, 100], edemaGrade: [0, 4], bLineRegions: [0, 8],
+  heartRate: [0, 350],
+  systolicBp: [0, 350],
+  diastolicBp: [0, 250],
+  meanBp: [0, 300],
+  respiratoryRate: [0, 120],
+  spo2: [0, 100],
+  fio2: [21, 100],
+  bodyWeight: [0.3, 500],
+  bodyHeight: [20, 260],
+  cvp: [-15, 60],
+  rightAtrialPressure: [-15, 60],
+  lactate: [0, 40],
+  albumin: [0, 80],
+  creatinine: [0, 30],
+  urineOutput: [0, 50_000],
+  fluidIntake: [0, 50_000],
+  fluidOutput: [0, 50_000],
+  fluidBalance: [-50_000, 50_000],
+  cardiacOutput: [0, 30],
+  cardiacIndex: [0, 15],
+  strokeVolume: [0, 300],
+  strokeVolumeIndex: [0, 150],
+  ppv: [0, 100],
+  svv: [0, 100],
+  ivcDiameterMax: [0, 5],
+  ivcDiameterMin: [0, 5],
+  capillaryRefill: [0, 60],
+  tidalVolume: [0, 3000],
+  peep: [0, 40],
+  intraAbdominalPressure: [-5, 80],
+  evlwi: [0, 60],
+  portalPulsatility: [0, 100],
+  edemaGrade: [0, 4],
+  bLineRegions: [0, 8],
   // Per side: 4 regions each in the 8-region examination (Volpicelli G et al., Intensive Care Med 2012;38:577).
-  bLineRegionsLeft: [0, 4], bLineRegionsRight: [0, 4],
+  bLineRegionsLeft: [0, 4],
+  bLineRegionsRight: [0, 4],
 };
 
-export interface CodeRef { system: string; code: string; display: string }
+export interface CodeRef {
+  system: string;
+  code: string;
+  display: string;
+}
 
 /** Observation codes → numeric kind. LOINC first; our own codes where LOINC has none (docs/codes.md). */
 export const OBSERVATION_CODES: ReadonlyArray<CodeRef & { kind: NumericKind }> = [
@@ -93,8 +177,18 @@ export const OBSERVATION_CODES: ReadonlyArray<CodeRef & { kind: NumericKind }> =
   { system: LOINC, code: '19239-3', display: 'Lactate [Moles/volume] in Capillary blood', kind: 'lactate' },
   { system: LOINC, code: '19240-1', display: 'Lactate [Moles/volume] in Mixed venous blood', kind: 'lactate' },
   { system: LOINC, code: '1751-7', display: 'Albumin [Mass/volume] in Serum or Plasma', kind: 'albumin' },
-  { system: LOINC, code: '61151-7', display: 'Albumin [Mass/volume] in Serum or Plasma by Bromocresol green (BCG) dye binding method', kind: 'albumin' },
-  { system: LOINC, code: '61152-5', display: 'Albumin [Mass/volume] in Serum or Plasma by Bromocresol purple (BCP) dye binding method', kind: 'albumin' },
+  {
+    system: LOINC,
+    code: '61151-7',
+    display: 'Albumin [Mass/volume] in Serum or Plasma by Bromocresol green (BCG) dye binding method',
+    kind: 'albumin',
+  },
+  {
+    system: LOINC,
+    code: '61152-5',
+    display: 'Albumin [Mass/volume] in Serum or Plasma by Bromocresol purple (BCP) dye binding method',
+    kind: 'albumin',
+  },
   { system: LOINC, code: '2160-0', display: 'Creatinine [Mass/volume] in Serum or Plasma', kind: 'creatinine' },
   { system: LOINC, code: '14682-9', display: 'Creatinine [Moles/volume] in Serum or Plasma', kind: 'creatinine' },
   { system: LOINC, code: '9187-6', display: 'Urine output', kind: 'urineOutput' },
@@ -112,15 +206,40 @@ export const OBSERVATION_CODES: ReadonlyArray<CodeRef & { kind: NumericKind }> =
   { system: LOINC, code: '76248-4', display: 'PEEP Respiratory system --on ventilator', kind: 'peep' },
   { system: TIDEMARK_MARKERS, code: 'ppv', display: 'Pulse pressure variation', kind: 'ppv' },
   { system: TIDEMARK_MARKERS, code: 'svv', display: 'Stroke volume variation', kind: 'svv' },
-  { system: TIDEMARK_MARKERS, code: 'ivc-diameter-max', display: 'Inferior vena cava diameter, maximum over the breath', kind: 'ivcDiameterMax' },
-  { system: TIDEMARK_MARKERS, code: 'ivc-diameter-min', display: 'Inferior vena cava diameter, minimum over the breath', kind: 'ivcDiameterMin' },
-  { system: TIDEMARK_MARKERS, code: 'intra-abdominal-pressure', display: 'Intra-abdominal pressure (bladder)', kind: 'intraAbdominalPressure' },
+  {
+    system: TIDEMARK_MARKERS,
+    code: 'ivc-diameter-max',
+    display: 'Inferior vena cava diameter, maximum over the breath',
+    kind: 'ivcDiameterMax',
+  },
+  {
+    system: TIDEMARK_MARKERS,
+    code: 'ivc-diameter-min',
+    display: 'Inferior vena cava diameter, minimum over the breath',
+    kind: 'ivcDiameterMin',
+  },
+  {
+    system: TIDEMARK_MARKERS,
+    code: 'intra-abdominal-pressure',
+    display: 'Intra-abdominal pressure (bladder)',
+    kind: 'intraAbdominalPressure',
+  },
   { system: TIDEMARK_MARKERS, code: 'evlwi', display: 'Extravascular lung water index (per predicted body weight)', kind: 'evlwi' },
   { system: TIDEMARK_MARKERS, code: 'portal-pulsatility', display: 'Portal vein pulsatility fraction', kind: 'portalPulsatility' },
   { system: TIDEMARK_MARKERS, code: 'edema-grade', display: 'Peripheral oedema grade (0-4)', kind: 'edemaGrade' },
   { system: TIDEMARK_MARKERS, code: 'lung-us-b-regions', display: 'Lung ultrasound regions with B-pattern (of 8)', kind: 'bLineRegions' },
-  { system: TIDEMARK_MARKERS, code: 'lung-us-b-regions-left', display: 'Lung ultrasound regions with B-pattern, left lung (of 4)', kind: 'bLineRegionsLeft' },
-  { system: TIDEMARK_MARKERS, code: 'lung-us-b-regions-right', display: 'Lung ultrasound regions with B-pattern, right lung (of 4)', kind: 'bLineRegionsRight' },
+  {
+    system: TIDEMARK_MARKERS,
+    code: 'lung-us-b-regions-left',
+    display: 'Lung ultrasound regions with B-pattern, left lung (of 4)',
+    kind: 'bLineRegionsLeft',
+  },
+  {
+    system: TIDEMARK_MARKERS,
+    code: 'lung-us-b-regions-right',
+    display: 'Lung ultrasound regions with B-pattern, right lung (of 4)',
+    kind: 'bLineRegionsRight',
+  },
 ];
 
 /**
@@ -139,16 +258,26 @@ export const LUNG_SIDE_SITES: ReadonlyArray<CodeRef & { kind: 'bLineRegionsLeft'
  * side's count; every other kind, and a count with no one-lung bodySite, is unchanged. Two different lungs named at
  * once leave the side unknown.
  */
-export function kindAtSite(kind: NumericKind, bodySite: { coding?: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }> | undefined } | undefined): NumericKind {
+export function kindAtSite(
+  kind: NumericKind,
+  bodySite: { coding?: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }> | undefined } | undefined,
+): NumericKind {
   if (kind !== 'bLineRegions' || !bodySite?.coding) return kind;
-  const sides = new Set(bodySite.coding.flatMap((c) => LUNG_SIDE_SITES.filter((s) => s.system === c.system && s.code === c.code).map((s) => s.kind)));
+  const sides = new Set(
+    bodySite.coding.flatMap((c) => LUNG_SIDE_SITES.filter((s) => s.system === c.system && s.code === c.code).map((s) => s.kind)),
+  );
   const [only] = sides;
   return sides.size === 1 && only ? only : kind;
 }
 
 /** Coded (non-numeric) observation kinds: the Observation carries a valueCodeableConcept from TIDEMARK_ANSWERS. */
 export const CODED_KINDS = [
-  'ventilationMode', 'heartRhythm', 'hepaticVeinPattern', 'renalVeinPattern', 'lvFunction', 'chestStatus',
+  'ventilationMode',
+  'heartRhythm',
+  'hepaticVeinPattern',
+  'renalVeinPattern',
+  'lvFunction',
+  'chestStatus',
 ] as const;
 export type CodedKind = (typeof CODED_KINDS)[number];
 
@@ -177,9 +306,19 @@ export const DYNAMIC_TESTS = ['plr', 'miniFluidChallenge', 'endExpiratoryOcclusi
 export type DynamicTestKind = (typeof DYNAMIC_TESTS)[number];
 export const DYNAMIC_TEST_CODES: ReadonlyArray<CodeRef & { kind: DynamicTestKind }> = [
   { system: TIDEMARK_MARKERS, code: 'passive-leg-raise', display: 'Passive leg raising test', kind: 'plr' },
-  { system: TIDEMARK_MARKERS, code: 'mini-fluid-challenge', display: 'Mini fluid challenge (100 mL over 1 min)', kind: 'miniFluidChallenge' },
+  {
+    system: TIDEMARK_MARKERS,
+    code: 'mini-fluid-challenge',
+    display: 'Mini fluid challenge (100 mL over 1 min)',
+    kind: 'miniFluidChallenge',
+  },
   { system: TIDEMARK_MARKERS, code: 'end-expiratory-occlusion', display: 'End-expiratory occlusion test', kind: 'endExpiratoryOcclusion' },
-  { system: TIDEMARK_MARKERS, code: 'tidal-volume-challenge', display: 'Tidal volume challenge (6 to 8 mL/kg PBW)', kind: 'tidalVolumeChallenge' },
+  {
+    system: TIDEMARK_MARKERS,
+    code: 'tidal-volume-challenge',
+    display: 'Tidal volume challenge (6 to 8 mL/kg PBW)',
+    kind: 'tidalVolumeChallenge',
+  },
 ];
 /** Component codes of a dynamic test Observation. */
 export const DYNAMIC_COMPONENT = { before: 'before', after: 'after', measured: 'measured-variable' } as const;
@@ -188,10 +327,18 @@ export const DYNAMIC_MEASURED = ['cardiacOutput', 'cardiacIndex', 'strokeVolume'
 export type DynamicMeasured = (typeof DYNAMIC_MEASURED)[number];
 /** Canonical unit of each dynamic-test measured variable (before and after are normalised to it). */
 export const DYNAMIC_MEASURED_UNITS: Readonly<Record<DynamicMeasured, string>> = {
-  cardiacOutput: 'L/min', cardiacIndex: 'L/min/m2', strokeVolume: 'mL', pulsePressure: 'mm[Hg]', vti: 'cm', ppv: '%', svv: '%',
+  cardiacOutput: 'L/min',
+  cardiacIndex: 'L/min/m2',
+  strokeVolume: 'mL',
+  pulsePressure: 'mm[Hg]',
+  vti: 'cm',
+  ppv: '%',
+  svv: '%',
 };
 
-export function findNumericKind(codings: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>): NumericKind | undefined {
+export function findNumericKind(
+  codings: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>,
+): NumericKind | undefined {
   for (const c of codings) {
     const hit = OBSERVATION_CODES.find((o) => o.system === c.system && o.code === c.code);
     if (hit) return hit.kind;

@@ -17,10 +17,16 @@ const RXNORM_FLUIDS: ReadonlyMap<string, FluidClass> = new Map(
  * norepinephrine 7512, epinephrine 3992, vasopressin 11149, phenylephrine 8163, dopamine 3628, dobutamine 3616.
  */
 const RXNORM_VASOACTIVE: Record<string, string> = {
-  '7512': 'norepinephrine', '3992': 'epinephrine', '11149': 'vasopressin', '8163': 'phenylephrine', '3628': 'dopamine', '3616': 'dobutamine',
+  '7512': 'norepinephrine',
+  '3992': 'epinephrine',
+  '11149': 'vasopressin',
+  '8163': 'phenylephrine',
+  '3628': 'dopamine',
+  '3616': 'dobutamine',
 };
 
-const VASOACTIVE_TEXT = /\b(nor-?epinephrine|noradrenaline|epinephrine|adrenaline|vasopressin|phenylephrine|dopamine|dobutamine|angiotensin ii|terlipressin)\b/i;
+const VASOACTIVE_TEXT =
+  /\b(nor-?epinephrine|noradrenaline|epinephrine|adrenaline|vasopressin|phenylephrine|dopamine|dobutamine|angiotensin ii|terlipressin)\b/i;
 
 /**
  * Hartmann's solution (compound sodium lactate) is the UK name of a lactated Ringer's composition. The same name is
@@ -37,8 +43,14 @@ export function fluidClassFromText(text: string): FluidClass | undefined {
     return 'albumin-iso';
   }
   if (/gelatin|starch|dextran/.test(t)) return 'other-colloid';
-  if (/ringer|sodium lactate|balanced (crystalloid|solution)|multiple electrolytes|acetate.*gluconate/.test(t) || HARTMANN_FLUID.test(t)) return 'balanced-crystalloid';
-  if (/sodium chloride\s*(0\.9|9\s*mg\/ml)|0\.9\s*%\s*(sodium chloride|nacl|saline)|normal saline|\bnacl\s*0\.9|\bns\b.*bolus|saline\s*0\.9/.test(t)) return 'saline';
+  if (/ringer|sodium lactate|balanced (crystalloid|solution)|multiple electrolytes|acetate.*gluconate/.test(t) || HARTMANN_FLUID.test(t))
+    return 'balanced-crystalloid';
+  if (
+    /sodium chloride\s*(0\.9|9\s*mg\/ml)|0\.9\s*%\s*(sodium chloride|nacl|saline)|normal saline|\bnacl\s*0\.9|\bns\b.*bolus|saline\s*0\.9/.test(
+      t,
+    )
+  )
+    return 'saline';
   if (/\b(crystalloid|fluid bolus|iv fluid|volume bolus)\b/.test(t)) return 'other';
   return undefined;
 }

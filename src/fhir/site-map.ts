@@ -62,7 +62,12 @@ export interface SiteMap {
   configured: { conceptMaps: readonly unknown[]; unitHints: Readonly<Record<string, string>> };
 }
 
-export const EMPTY_SITE_MAP: SiteMap = { read: new Map(), unread: new Map(), unitHints: new Map(), configured: { conceptMaps: [], unitHints: {} } };
+export const EMPTY_SITE_MAP: SiteMap = {
+  read: new Map(),
+  unread: new Map(),
+  unitHints: new Map(),
+  configured: { conceptMaps: [], unitHints: {} },
+};
 
 export class SiteMapError extends Error {
   override name = 'SiteMapError';
@@ -71,7 +76,9 @@ export class SiteMapError extends Error {
 const TARGET_SYSTEMS: ReadonlySet<string> = new Set([LOINC, TIDEMARK_MARKERS]);
 const NUMERIC_TARGET = new Map(OBSERVATION_CODES.map((c) => [`${c.system}|${c.code}`, c.kind]));
 /** Every Observation code Tidemark reads of itself: a map may not redefine one. */
-const BUILT_IN = new Map<string, string>([...OBSERVATION_CODES, ...CODED_OBSERVATION_CODES, ...DYNAMIC_TEST_CODES].map((c) => [`${c.system}|${c.code}`, c.kind]));
+const BUILT_IN = new Map<string, string>(
+  [...OBSERVATION_CODES, ...CODED_OBSERVATION_CODES, ...DYNAMIC_TEST_CODES].map((c) => [`${c.system}|${c.code}`, c.kind]),
+);
 /**
  * A site system or code goes into the services' FHIR searches (`code=system|code,…`), so it may not hold what a
  * FHIR token search would need escaped (`,` `|` `$` `\`, FHIR R4 Search §2.1.1.7) nor URL syntax (`&` `#` `?` `%`)
@@ -91,21 +98,31 @@ function fail(at: string, why: string): never {
  * Checks the configured maps and unit hints and builds the look-ups. Throws SiteMapError naming the element at
  * fault (`conceptMaps[0].group[1].element[3].target[0].code: …`).
  */
-export function parseSiteMap(conceptMaps: readonly unknown[] = [], unitHints: Readonly<Record<string, string>> = {}, names: readonly string[] = []): SiteMap {
+export function parseSiteMap(
+  conceptMaps: readonly unknown[] = [],
+  unitHints: Readonly<Record<string, string>> = {},
+  names: readonly string[] = [],
+): SiteMap {
   const read = new Map<string, SiteCode>();
   const unread = new Map<string, UnreadSiteCode>();
   conceptMaps.forEach((raw, i) => {
     const where = `conceptMaps[${i}]`;
     const named = names[i] ? ` (${names[i]})` : '';
-    if (!raw || typeof raw !== 'object' || (raw as { resourceType?: unknown }).resourceType !== 'ConceptMap') fail(where, `is not a FHIR ConceptMap${named}`);
+    if (!raw || typeof raw !== 'object' || (raw as { resourceType?: unknown }).resourceType !== 'ConceptMap')
+      fail(where, `is not a FHIR ConceptMap${named}`);
     const problems = validateFhir(raw);
     if (problems.length) fail(where, `is not a valid FHIR R4 ConceptMap${named}: ${problems.slice(0, 3).join('; ')}`);
     const cm = raw as ConceptMap;
     const mapName = cm.url ?? where;
     (cm.group ?? []).forEach((g: ConceptMapGroup, gi) => {
       const gAt = `${where}.group[${gi}]`;
-      if (!g.source || !SEARCHABLE.test(g.source)) fail(`${gAt}.source`, 'a source system (URI) is required, without spaces or , | $ \\ & # ? %');
-      if (!g.target || !TARGET_SYSTEMS.has(g.target)) fail(`${gAt}.target`, `must be ${LOINC} or ${TIDEMARK_MARKERS} (the codes Tidemark reads), not ${JSON.stringify(g.target ?? null)}`);
+      if (!g.source || !SEARCHABLE.test(g.source))
+        fail(`${gAt}.source`, 'a source system (URI) is required, without spaces or , | $ \\ & # ? %');
+      if (!g.target || !TARGET_SYSTEMS.has(g.target))
+        fail(
+          `${gAt}.target`,
+          `must be ${LOINC} or ${TIDEMARK_MARKERS} (the codes Tidemark reads), not ${JSON.stringify(g.target ?? null)}`,
+        );
       if (g.unmapped) fail(`${gAt}.unmapped`, 'is not supported: every site code Tidemark reads must be listed as an element');
       g.element.forEach((e, ei) => {
         const eAt = `${gAt}.element[${ei}]`;
@@ -116,13 +133,16 @@ export function parseSiteMap(conceptMaps: readonly unknown[] = [], unitHints: Re
         if (!e.target?.length) fail(`${eAt}.target`, 'at least one target is required (say unmatched if the code has none)');
         (e.target ?? []).forEach((t, ti) => {
           const tAt = `${eAt}.target[${ti}]`;
-          if (t.dependsOn?.length) fail(`${tAt}.dependsOn`, 'is not supported: a target that depends on other elements cannot be read from the code alone');
+          if (t.dependsOn?.length)
+            fail(`${tAt}.dependsOn`, 'is not supported: a target that depends on other elements cannot be read from the code alone');
           if (t.product?.length) fail(`${tAt}.product`, 'is not supported');
           const eq = t.equivalence as string;
           if (!(READ_EQUIVALENCES as readonly string[]).includes(eq)) {
-            if (!(UNREAD_EQUIVALENCES as readonly string[]).includes(eq)) fail(`${tAt}.equivalence`, `${JSON.stringify(eq ?? null)} is not a FHIR R4 ConceptMap equivalence`);
+            if (!(UNREAD_EQUIVALENCES as readonly string[]).includes(eq))
+              fail(`${tAt}.equivalence`, `${JSON.stringify(eq ?? null)} is not a FHIR R4 ConceptMap equivalence`);
             if (eq !== 'unmatched' && eq !== 'disjoint') checkTarget(g.target as string, t.code, tAt);
-            if (!read.has(src) && !unread.has(src)) unread.set(src, { source: { system: g.source as string, code: e.code as string }, equivalence: eq, at: tAt });
+            if (!read.has(src) && !unread.has(src))
+              unread.set(src, { source: { system: g.source as string, code: e.code as string }, equivalence: eq, at: tAt });
             return;
           }
           const kind = checkTarget(g.target as string, t.code, tAt);
@@ -132,7 +152,11 @@ export function parseSiteMap(conceptMaps: readonly unknown[] = [], unitHints: Re
           if (!before) {
             read.set(src, {
               source: { system: g.source as string, code: e.code as string, ...(e.display ? { display: e.display } : {}) },
-              target: { system: g.target as string, code: t.code as string }, kind, equivalence: eq as ReadEquivalence, map: mapName, at: tAt,
+              target: { system: g.target as string, code: t.code as string },
+              kind,
+              equivalence: eq as ReadEquivalence,
+              map: mapName,
+              at: tAt,
             });
           }
         });
@@ -155,10 +179,13 @@ function parseUnitHints(hints: Readonly<Record<string, string>>): Map<string, st
   for (const [text, ucum] of Object.entries(hints)) {
     const at = `unitHints[${JSON.stringify(text)}]`;
     const t = text.trim();
-    if (!t || t.length > MAX_UNIT_LENGTH || !UNIT_TEXT.test(t)) throw new SiteMapError(`${at}: unit text must be 1-${MAX_UNIT_LENGTH} characters with no control character`);
-    if (typeof ucum !== 'string' || toUcum(ucum) !== ucum) throw new SiteMapError(`${at}: ${JSON.stringify(ucum)} is not a UCUM code (give the code itself, e.g. mm[Hg], /min, %)`);
+    if (!t || t.length > MAX_UNIT_LENGTH || !UNIT_TEXT.test(t))
+      throw new SiteMapError(`${at}: unit text must be 1-${MAX_UNIT_LENGTH} characters with no control character`);
+    if (typeof ucum !== 'string' || toUcum(ucum) !== ucum)
+      throw new SiteMapError(`${at}: ${JSON.stringify(ucum)} is not a UCUM code (give the code itself, e.g. mm[Hg], /min, %)`);
     const already = toUcum(t);
-    if (already !== undefined && already !== ucum) throw new SiteMapError(`${at}: "${t}" is already read as the UCUM unit ${already}; a hint may not change what it means`);
+    if (already !== undefined && already !== ucum)
+      throw new SiteMapError(`${at}: "${t}" is already read as the UCUM unit ${already}; a hint may not change what it means`);
     if (out.has(t)) throw new SiteMapError(`${at}: the same unit text is listed twice`);
     out.set(t, ucum);
   }
@@ -166,7 +193,10 @@ function parseUnitHints(hints: Readonly<Record<string, string>>): Map<string, st
 }
 
 /** The first coding (in record order) that a map reads, and how. */
-export function siteCodeOf(map: SiteMap, codings: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>): SiteCode | undefined {
+export function siteCodeOf(
+  map: SiteMap,
+  codings: ReadonlyArray<{ system?: string | undefined; code?: string | undefined }>,
+): SiteCode | undefined {
   if (map.read.size === 0) return undefined;
   for (const c of codings) {
     if (c.system === undefined || c.code === undefined) continue;

@@ -63,14 +63,40 @@ const MOLAR_MASS: Partial<Record<NumericKind, number>> = { lactate: 90.08, creat
  * Anything not here must already be valid UCUM.
  */
 const ALIASES: Record<string, string> = {
-  mmhg: 'mm[Hg]', 'mm hg': 'mm[Hg]', cmh2o: 'cm[H2O]', 'cm h2o': 'cm[H2O]',
-  bpm: '/min', 'beats/min': '/min', 'breaths/min': '/min', '/minute': '/min', 'per min': '/min',
-  lb: '[lb_av]', lbs: '[lb_av]', sec: 's', secs: 's', seconds: 's', ml: 'mL', l: 'L', 'l/min': 'L/min', 'ml/kg': 'mL/kg',
-  'mg/dl': 'mg/dL', 'g/dl': 'g/dL', 'g/l': 'g/L', 'mmol/l': 'mmol/L', 'umol/l': 'umol/L', 'µmol/l': 'umol/L', 'μmol/l': 'umol/L',
-  'in': '[in_i]', inch: '[in_i]', inches: '[in_i]', ratio: '1', fraction: '1',
+  mmhg: 'mm[Hg]',
+  'mm hg': 'mm[Hg]',
+  cmh2o: 'cm[H2O]',
+  'cm h2o': 'cm[H2O]',
+  bpm: '/min',
+  'beats/min': '/min',
+  'breaths/min': '/min',
+  '/minute': '/min',
+  'per min': '/min',
+  lb: '[lb_av]',
+  lbs: '[lb_av]',
+  sec: 's',
+  secs: 's',
+  seconds: 's',
+  ml: 'mL',
+  l: 'L',
+  'l/min': 'L/min',
+  'ml/kg': 'mL/kg',
+  'mg/dl': 'mg/dL',
+  'g/dl': 'g/dL',
+  'g/l': 'g/L',
+  'mmol/l': 'mmol/L',
+  'umol/l': 'umol/L',
+  'µmol/l': 'umol/L',
+  'μmol/l': 'umol/L',
+  in: '[in_i]',
+  inch: '[in_i]',
+  inches: '[in_i]',
+  ratio: '1',
+  fraction: '1',
 };
 
-export type Conversion = { ok: true; value: number; unit: string } | { ok: false; reason: 'unknown-unit' | 'incompatible-unit'; detail: string };
+export type Conversion =
+  { ok: true; value: number; unit: string } | { ok: false; reason: 'unknown-unit' | 'incompatible-unit'; detail: string };
 
 /** The UCUM code for a unit as sent (Quantity.code when system is UCUM, else Quantity.unit), or undefined if unknown. */
 export function toUcum(unit: string): string | undefined {
@@ -94,7 +120,8 @@ export function toCanonical(kind: NumericKind, value: number, unit: string | und
   const target = KIND_UNITS[kind];
   // Counts and grades: an annotation-only unit ({grade}), "1" or no unit at all are the same dimensionless unit.
   if (target.startsWith('{')) {
-    if (unit === undefined || unit.trim() === '' || unit.trim() === '1' || /^\{[^}]*\}$/.test(unit.trim())) return { ok: true, value, unit: target };
+    if (unit === undefined || unit.trim() === '' || unit.trim() === '1' || /^\{[^}]*\}$/.test(unit.trim()))
+      return { ok: true, value, unit: target };
     return { ok: false, reason: 'incompatible-unit', detail: `${quoted(unit)} is not a count or grade` };
   }
   if (unit === undefined || unit.trim() === '') return { ok: false, reason: 'unknown-unit', detail: `no unit given (expected ${target})` };

@@ -67,8 +67,17 @@ export function validateFhir(resource: unknown): string[] {
   }
   const r = resource as { resourceType?: string; status?: string; entry?: Array<{ resource?: unknown }> };
   const allowed = r.resourceType ? statusCodes.get(r.resourceType) : undefined;
-  if (allowed && r.status !== undefined && !allowed.has(r.status)) problems.push(`${r.resourceType}.status "${r.status}" is not in ${STATUS_BINDINGS[r.resourceType as string]}`);
-  if (r.resourceType === 'Bundle') for (const e of r.entry ?? []) if (e.resource) problems.push(...validateFhir(e.resource).map((p) => `entry ${(e.resource as { resourceType?: string; id?: string }).resourceType}/${(e.resource as { id?: string }).id}: ${p}`));
+  if (allowed && r.status !== undefined && !allowed.has(r.status))
+    problems.push(`${r.resourceType}.status "${r.status}" is not in ${STATUS_BINDINGS[r.resourceType as string]}`);
+  if (r.resourceType === 'Bundle')
+    for (const e of r.entry ?? [])
+      if (e.resource)
+        problems.push(
+          ...validateFhir(e.resource).map(
+            (p) =>
+              `entry ${(e.resource as { resourceType?: string; id?: string }).resourceType}/${(e.resource as { id?: string }).id}: ${p}`,
+          ),
+        );
   return problems;
 }
 

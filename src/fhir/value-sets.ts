@@ -13,7 +13,12 @@ import rawFluids from './value-sets/fluids.json' with { type: 'json' };
 
 /** The condition groups, in the order the file lists them (and texts name them). */
 export const CONDITION_GROUP_IDS = [
-  'advanced-liver-disease', 'heart-failure', 'end-stage-kidney-disease', 'ards', 'right-ventricular-failure', 'pulmonary-hypertension',
+  'advanced-liver-disease',
+  'heart-failure',
+  'end-stage-kidney-disease',
+  'ards',
+  'right-ventricular-failure',
+  'pulmonary-hypertension',
 ] as const;
 export type ConditionGroupId = (typeof CONDITION_GROUP_IDS)[number];
 
@@ -22,56 +27,74 @@ export const CONDITION_EFFECTS = ['lowers-tolerance', 'high-ppv-doubtful'] as co
 export type ConditionEffect = (typeof CONDITION_EFFECTS)[number];
 
 const sourced = { display: z.string().min(1), source: z.string().min(1) };
-const snomedEntry = z.strictObject({ code: z.string().refine(isSnomedConceptId, 'not a SNOMED CT concept id (form, partition or Verhoeff check digit)'), ...sourced });
+const snomedEntry = z.strictObject({
+  code: z.string().refine(isSnomedConceptId, 'not a SNOMED CT concept id (form, partition or Verhoeff check digit)'),
+  ...sourced,
+});
 const icdCode = z.string().refine((c) => normaliseIcd10(c) !== undefined, 'not an ICD-10 code');
-const icdEntry = z.union([
-  z.strictObject({ code: icdCode, ...sourced }),
-  z.strictObject({ from: icdCode, to: icdCode, ...sourced }),
-]);
+const icdEntry = z.union([z.strictObject({ code: icdCode, ...sourced }), z.strictObject({ from: icdCode, to: icdCode, ...sourced })]);
 
-function sourcesKnown(sources: Record<string, string>, entries: ReadonlyArray<{ source: string }>, ctx: z.RefinementCtx, where: string): void {
+function sourcesKnown(
+  sources: Record<string, string>,
+  entries: ReadonlyArray<{ source: string }>,
+  ctx: z.RefinementCtx,
+  where: string,
+): void {
   for (const e of entries) if (!(e.source in sources)) ctx.addIssue({ code: 'custom', message: `${where}: unknown source "${e.source}"` });
 }
 
 function sourcesUsed(sources: Record<string, string>, entries: ReadonlyArray<{ source: string }>, ctx: z.RefinementCtx): void {
-  for (const k of Object.keys(sources)) if (!entries.some((e) => e.source === k)) ctx.addIssue({ code: 'custom', message: `source "${k}" is not used` });
+  for (const k of Object.keys(sources))
+    if (!entries.some((e) => e.source === k)) ctx.addIssue({ code: 'custom', message: `source "${k}" is not used` });
 }
 
-const conditionSetsSchema = z.strictObject({
-  provenance: z.string().min(1),
-  version: z.string(),
-  icd10Systems: z.array(z.url()).min(1),
-  snomedSystem: z.url(),
-  activeStatuses: z.array(z.string()).min(1),
-  sources: z.record(z.string(), z.string().min(1)),
-  sets: z.array(z.strictObject({
-    id: z.enum(CONDITION_GROUP_IDS),
-    label: z.string().min(1),
-    why: z.string().min(1),
-    effects: z.array(z.enum(CONDITION_EFFECTS)).min(1),
-    /** The published source of each effect beyond lowering tolerance (required for high-ppv-doubtful). */
-    effectSources: z.partialRecord(z.enum(CONDITION_EFFECTS), z.string().min(1)).optional(),
-    /** Groups whose members count as members of this one too (right-ventricular failure is a heart failure). */
-    includes: z.array(z.enum(CONDITION_GROUP_IDS)).optional(),
-    snomed: z.array(snomedEntry),
-    icd10: z.array(icdEntry),
-  })).min(1),
-}).superRefine((v, ctx) => {
-  const ids = v.sets.map((s) => s.id);
-  if (new Set(ids).size !== ids.length) ctx.addIssue({ code: 'custom', message: 'a condition group is listed twice' });
-  for (const id of CONDITION_GROUP_IDS) if (!ids.includes(id)) ctx.addIssue({ code: 'custom', message: `condition group ${id} is missing` });
-  sourcesUsed(v.sources, v.sets.flatMap((s) => [...s.snomed, ...s.icd10]), ctx);
-  for (const s of v.sets) {
-    sourcesKnown(v.sources, [...s.snomed, ...s.icd10], ctx, s.id);
-    if (s.effects.includes('high-ppv-doubtful') && !s.effectSources?.['high-ppv-doubtful']) {
-      ctx.addIssue({ code: 'custom', message: `${s.id}: high-ppv-doubtful needs its source in effectSources` });
+const conditionSetsSchema = z
+  .strictObject({
+    provenance: z.string().min(1),
+    version: z.string(),
+    icd10Systems: z.array(z.url()).min(1),
+    snomedSystem: z.url(),
+    activeStatuses: z.array(z.string()).min(1),
+    sources: z.record(z.string(), z.string().min(1)),
+    sets: z
+      .array(
+        z.strictObject({
+          id: z.enum(CONDITION_GROUP_IDS),
+          label: z.string().min(1),
+          why: z.string().min(1),
+          effects: z.array(z.enum(CONDITION_EFFECTS)).min(1),
+          /** The published source of each effect beyond lowering tolerance (required for high-ppv-doubtful). */
+          effectSources: z.partialRecord(z.enum(CONDITION_EFFECTS), z.string().min(1)).optional(),
+          /** Groups whose members count as members of this one too (right-ventricular failure is a heart failure). */
+          includes: z.array(z.enum(CONDITION_GROUP_IDS)).optional(),
+          snomed: z.array(snomedEntry),
+          icd10: z.array(icdEntry),
+        }),
+      )
+      .min(1),
+  })
+  .superRefine((v, ctx) => {
+    const ids = v.sets.map((s) => s.id);
+    if (new Set(ids).size !== ids.length) ctx.addIssue({ code: 'custom', message: 'a condition group is listed twice' });
+    for (const id of CONDITION_GROUP_IDS)
+      if (!ids.includes(id)) ctx.addIssue({ code: 'custom', message: `condition group ${id} is missing` });
+    sourcesUsed(
+      v.sources,
+      v.sets.flatMap((s) => [...s.snomed, ...s.icd10]),
+      ctx,
+    );
+    for (const s of v.sets) {
+      sourcesKnown(v.sources, [...s.snomed, ...s.icd10], ctx, s.id);
+      if (s.effects.includes('high-ppv-doubtful') && !s.effectSources?.['high-ppv-doubtful']) {
+        ctx.addIssue({ code: 'custom', message: `${s.id}: high-ppv-doubtful needs its source in effectSources` });
+      }
+      for (const inc of s.includes ?? []) {
+        const target = v.sets.find((x) => x.id === inc);
+        if (inc === s.id || target?.includes?.length)
+          ctx.addIssue({ code: 'custom', message: `${s.id}: includes must be one level deep and not itself` });
+      }
     }
-    for (const inc of s.includes ?? []) {
-      const target = v.sets.find((x) => x.id === inc);
-      if (inc === s.id || target?.includes?.length) ctx.addIssue({ code: 'custom', message: `${s.id}: includes must be one level deep and not itself` });
-    }
-  }
-});
+  });
 export type ConditionSets = z.infer<typeof conditionSetsSchema>;
 export type ConditionSet = ConditionSets['sets'][number];
 
@@ -83,7 +106,11 @@ export function parseConditionSets(raw: unknown): ConditionSets {
 /** The condition value sets (value-sets/conditions.json). */
 export const CONDITION_SETS: ConditionSets = parseConditionSets(rawConditions);
 
-export interface ConditionGroupHit { id: ConditionGroupId; label: string; coding: string }
+export interface ConditionGroupHit {
+  id: ConditionGroupId;
+  label: string;
+  coding: string;
+}
 
 type Coding = { system: string; code: string };
 
@@ -150,16 +177,26 @@ export function activeConditionGroups(conditions: readonly ConditionLike[], sets
 
 // ---- Rhythm ----
 
-const rhythmSchema = z.strictObject({
-  provenance: z.string().min(1),
-  version: z.string(),
-  snomedSystem: z.url(),
-  sources: z.record(z.string(), z.string().min(1)),
-  concepts: z.array(z.strictObject({ code: snomedEntry.shape.code, answer: z.string().refine((a) => CODED_ANSWERS.heartRhythm.includes(a), 'not a heart-rhythm answer of CODED_ANSWERS'), ...sourced })).min(1),
-}).superRefine((v, ctx) => {
-  sourcesKnown(v.sources, v.concepts, ctx, 'rhythm');
-  sourcesUsed(v.sources, v.concepts, ctx);
-});
+const rhythmSchema = z
+  .strictObject({
+    provenance: z.string().min(1),
+    version: z.string(),
+    snomedSystem: z.url(),
+    sources: z.record(z.string(), z.string().min(1)),
+    concepts: z
+      .array(
+        z.strictObject({
+          code: snomedEntry.shape.code,
+          answer: z.string().refine((a) => CODED_ANSWERS.heartRhythm.includes(a), 'not a heart-rhythm answer of CODED_ANSWERS'),
+          ...sourced,
+        }),
+      )
+      .min(1),
+  })
+  .superRefine((v, ctx) => {
+    sourcesKnown(v.sources, v.concepts, ctx, 'rhythm');
+    sourcesUsed(v.sources, v.concepts, ctx);
+  });
 
 /** SNOMED CT rhythm concepts and the Tidemark answer (CODED_ANSWERS.heartRhythm) each is read as. */
 export const RHYTHM_SET = rhythmSchema.parse(rawRhythm);
@@ -174,21 +211,30 @@ export function rhythmAnswerOf(c: { system?: string | undefined; code?: string |
 
 export const FLUID_CLASSES = ['balanced-crystalloid', 'saline', 'albumin-iso', 'albumin-hyper', 'other-colloid', 'other'] as const;
 export type FluidClass = (typeof FLUID_CLASSES)[number];
-const fluidsSchema = z.strictObject({
-  provenance: z.string().min(1),
-  version: z.string(),
-  rxnormSystem: z.url(),
-  sources: z.record(z.string(), z.string().min(1)),
-  fluids: z.array(z.strictObject({
-    rxcui: z.string().regex(/^\d{1,8}$/).optional(),
-    name: z.string().min(1),
-    fluidClass: z.enum(FLUID_CLASSES),
-    source: z.string().min(1),
-  })).min(1),
-}).superRefine((v, ctx) => {
-  sourcesKnown(v.sources, v.fluids, ctx, 'fluids');
-  sourcesUsed(v.sources, v.fluids, ctx);
-});
+const fluidsSchema = z
+  .strictObject({
+    provenance: z.string().min(1),
+    version: z.string(),
+    rxnormSystem: z.url(),
+    sources: z.record(z.string(), z.string().min(1)),
+    fluids: z
+      .array(
+        z.strictObject({
+          rxcui: z
+            .string()
+            .regex(/^\d{1,8}$/)
+            .optional(),
+          name: z.string().min(1),
+          fluidClass: z.enum(FLUID_CLASSES),
+          source: z.string().min(1),
+        }),
+      )
+      .min(1),
+  })
+  .superRefine((v, ctx) => {
+    sourcesKnown(v.sources, v.fluids, ctx, 'fluids');
+    sourcesUsed(v.sources, v.fluids, ctx);
+  });
 
 /** RxNorm clinical drugs of the common fluids (value-sets/fluids.json); those without rxcui are known by name only. */
 export const FLUID_SET = fluidsSchema.parse(rawFluids);

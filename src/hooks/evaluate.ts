@@ -65,7 +65,12 @@ export interface Composed {
   cardKinds: Record<string, string>;
 }
 
-export async function evaluateHook(service: ServiceDefinition, body: unknown, deps: EvaluateDeps, client?: AdviceRecord['client']): Promise<EvaluateResult> {
+export async function evaluateHook(
+  service: ServiceDefinition,
+  body: unknown,
+  deps: EvaluateDeps,
+  client?: AdviceRecord['client'],
+): Promise<EvaluateResult> {
   const t0 = performance.now();
   const call = timed(deps, 'parse', parseCall, service, body, deps, client?.issuer);
   const now = deps.now();
@@ -78,10 +83,20 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
 
   if (gathered.unobtainableRequired.length) {
     const missing = gathered.unobtainableRequired;
-    const rec: AdviceRecord = { ...base, outcome: 'precondition-failed', findings: [], cards: [], cardKinds: {}, timings: { totalMs: performance.now() - t0, gatherMs: gathered.ms, fhirWaitMs: gathered.fhirWaitMs, assessMs: 0 } };
+    const rec: AdviceRecord = {
+      ...base,
+      outcome: 'precondition-failed',
+      findings: [],
+      cards: [],
+      cardKinds: {},
+      timings: { totalMs: performance.now() - t0, gatherMs: gathered.ms, fhirWaitMs: gathered.fhirWaitMs, assessMs: 0 },
+    };
     const refusal = unobtainable(gathered);
     return record(deps, rec).then(() => {
-      deps.log.info({ hookInstance, cdsService: service.id, adviceId, missing }, 'required data could not be obtained from prefetch or the FHIR server');
+      deps.log.info(
+        { hookInstance, cdsService: service.id, adviceId, missing },
+        'required data could not be obtained from prefetch or the FHIR server',
+      );
       throw refusal;
     });
   }
@@ -93,10 +108,17 @@ export async function evaluateHook(service: ServiceDefinition, body: unknown, de
   const assessMs = performance.now() - tA;
   const totalMs = performance.now() - t0;
   const rec: AdviceRecord = {
-    ...base, outcome: 'answered', snapshot, findings: advice.findings, advice, cards, cardKinds,
+    ...base,
+    outcome: 'answered',
+    snapshot,
+    findings: advice.findings,
+    advice,
+    cards,
+    cardKinds,
     timings: { totalMs, gatherMs: gathered.ms, fhirWaitMs: gathered.fhirWaitMs, assessMs },
   };
-  // Returned, not awaited, and no closure above holds the call's objects: they are not kept alive through the commit wait (docs/benchmarks.md).
+  // Returned, not awaited, and no closure above holds the call's objects: they are not kept alive through the commit wait
+  // (docs/benchmarks.md).
   return record(deps, rec).then(() => {
     deps.log.info({ hookInstance, cdsService: service.id, adviceId, cards: cards.length, ms: Math.round(totalMs) }, 'advice given');
     return { status: 200, body: { cards }, adviceId };
@@ -113,26 +135,42 @@ function timed<A extends unknown[], T>(deps: EvaluateDeps, stage: Stage, f: (...
 }
 
 /** Stage 1: the request and its context checked against the wire schemas and the service; a refusal is an OutcomeError. */
-export function parseCall(service: ServiceDefinition, body: unknown, deps: Pick<EvaluateDeps, 'fhirServersFor' | 'log'>, issuer?: string): ParsedCall {
+export function parseCall(
+  service: ServiceDefinition,
+  body: unknown,
+  deps: Pick<EvaluateDeps, 'fhirServersFor' | 'log'>,
+  issuer?: string,
+): ParsedCall {
   const parsed = hookRequestSchema.safeParse(body);
-  if (!parsed.success) throw outcomeError('invalid', 'invalid', 'the request is not a valid CDS Hooks 2.0 request', zodIssues(parsed.error.issues));
+  if (!parsed.success)
+    throw outcomeError('invalid', 'invalid', 'the request is not a valid CDS Hooks 2.0 request', zodIssues(parsed.error.issues));
   const req = parsed.data;
   // req.hook is client text echoed here: hookRequestSchema caps it at MAX_NAME_LENGTH characters.
-  if (req.hook !== service.hook) throw outcomeError('invalid', 'invalid', `service ${service.id} answers the ${service.hook} hook, not ${req.hook}`);
+  if (req.hook !== service.hook)
+    throw outcomeError('invalid', 'invalid', `service ${service.id} answers the ${service.hook} hook, not ${req.hook}`);
   refuseUnlistedFhirServer(req.fhirServer, issuer, deps, req.hookInstance);
   const hook: HookName = service.hook;
   const ctxParsed = HOOK_CONTEXT_SCHEMAS[hook].safeParse(req.context);
-  if (!ctxParsed.success) throw outcomeError('invalid', 'invalid', `context is not a valid ${hook} context`, zodIssues(ctxParsed.error.issues, 'context'));
+  if (!ctxParsed.success)
+    throw outcomeError('invalid', 'invalid', `context is not a valid ${hook} context`, zodIssues(ctxParsed.error.issues, 'context'));
   if (req.prefetch) {
     const unknown = Object.keys(req.prefetch).filter((k) => !(k in service.prefetch));
-    if (unknown.length) deps.log.info({ hookInstance: req.hookInstance, keys: unknown.slice(0, 20), unknownKeys: unknown.length }, 'ignoring prefetch keys this service did not ask for');
+    if (unknown.length)
+      deps.log.info(
+        { hookInstance: req.hookInstance, keys: unknown.slice(0, 20), unknownKeys: unknown.length },
+        'ignoring prefetch keys this service did not ask for',
+      );
   }
   // The schema was picked by `hook`, so the data is that hook's context; TypeScript cannot tie the two by itself.
   return { req, hook, ctx: ctxParsed.data } as ParsedCall;
 }
 
 /** Stage 2: the service's prefetch keys from the call's prefetch or its FHIR server (src/hooks/gather.ts). */
-export async function gatherData(call: ParsedCall, service: ServiceDefinition, deps: Pick<EvaluateDeps, 'gatherOptions' | 'makeFetcher' | 'metrics'>): Promise<Gathered> {
+export async function gatherData(
+  call: ParsedCall,
+  service: ServiceDefinition,
+  deps: Pick<EvaluateDeps, 'gatherOptions' | 'makeFetcher' | 'metrics'>,
+): Promise<Gathered> {
   const gathered = await gather(call.req, service, deps.gatherOptions, deps.makeFetcher);
   deps.metrics?.observeGather(gathered.outcomes);
   return gathered;
@@ -141,10 +179,17 @@ export async function gatherData(call: ParsedCall, service: ServiceDefinition, d
 /** Stage 3: the gathered resources as one normalised snapshot for the call's patient. */
 export function snapshotOf(call: ParsedCall, gathered: Gathered, now: Date, siteMap?: SiteMap): PatientSnapshot {
   const { ctx } = call;
-  return buildSnapshot(gathered.resources as FhirResource[], {
-    patientId: ctx.patientId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}),
-    ...(call.hook === 'order-select' ? { selections: call.ctx.selections } : {}), ...(call.hook !== 'patient-view' ? { draftOrders: draftEntries(call.ctx.draftOrders) } : {}),
-  }, now, siteMap);
+  return buildSnapshot(
+    gathered.resources as FhirResource[],
+    {
+      patientId: ctx.patientId,
+      ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}),
+      ...(call.hook === 'order-select' ? { selections: call.ctx.selections } : {}),
+      ...(call.hook !== 'patient-view' ? { draftOrders: draftEntries(call.ctx.draftOrders) } : {}),
+    },
+    now,
+    siteMap,
+  );
 }
 
 function draftEntries(b: { entry?: Array<{ resource?: unknown }> | undefined }): { entry?: Array<{ resource?: unknown }> } {
@@ -152,19 +197,37 @@ function draftEntries(b: { entry?: Array<{ resource?: unknown }> | undefined }):
 }
 
 /** Stage 4: the rules over the snapshot; a rule that failed is logged and left out. */
-export function advise(snapshot: PatientSnapshot, now: Date, deps: Pick<EvaluateDeps, 'thresholds' | 'rulesVersion' | 'log'>, hookInstance: string): Advice {
+export function advise(
+  snapshot: PatientSnapshot,
+  now: Date,
+  deps: Pick<EvaluateDeps, 'thresholds' | 'rulesVersion' | 'log'>,
+  hookInstance: string,
+): Advice {
   const advice = assess(snapshot, now, deps.thresholds, deps.rulesVersion);
   for (const e of advice.ruleErrors) deps.log.error({ hookInstance, ruleId: e.ruleId }, 'a rule failed; its findings are left out');
   return advice;
 }
 
 /** Stage 5: which cards, in the catalogue's words, each with the link to its reasoning page when links are on. */
-export function compose(call: ParsedCall, service: ServiceDefinition, snapshot: PatientSnapshot, advice: Advice, gathered: Gathered,
-  deps: Pick<EvaluateDeps, 'catalogue' | 'publicUrl' | 'adviceLink' | 'timeZone'>, adviceId: string): Composed {
+export function compose(
+  call: ParsedCall,
+  service: ServiceDefinition,
+  snapshot: PatientSnapshot,
+  advice: Advice,
+  gathered: Gathered,
+  deps: Pick<EvaluateDeps, 'catalogue' | 'publicUrl' | 'adviceLink' | 'timeZone'>,
+  adviceId: string,
+): Composed {
   const { hook, ctx } = call;
   const purposes = Object.fromEntries(Object.entries(service.prefetch).map(([k, q]) => [k, q.purpose]));
   const models = composeCards({
-    hook, advice, snapshot, gathering: gathered.outcomes, purposes, catalogue: deps.catalogue, ...(deps.timeZone ? { timeZone: deps.timeZone } : {}),
+    hook,
+    advice,
+    snapshot,
+    gathering: gathered.outcomes,
+    purposes,
+    catalogue: deps.catalogue,
+    ...(deps.timeZone ? { timeZone: deps.timeZone } : {}),
     context: { patientId: ctx.patientId, userId: ctx.userId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}) },
   });
   const link = deps.adviceLink?.(adviceId);
@@ -190,28 +253,48 @@ export async function record(deps: Pick<EvaluateDeps, 'store' | 'metrics' | 'log
   } catch (e) {
     deps.metrics?.observeAuditWrite((performance.now() - t) / 1000, false);
     deps.log.error({ hookInstance: rec.hookInstance, adviceId: rec.id, err: (e as Error).message }, 'audit write failed: no advice sent');
-    throw outcomeError('not-stored', 'exception', 'the advice could not be stored for audit, so none is given; the order is not affected', [String((e as Error)?.message ?? e).slice(0, 200)]);
+    throw outcomeError('not-stored', 'exception', 'the advice could not be stored for audit, so none is given; the order is not affected', [
+      String((e as Error)?.message ?? e).slice(0, 200),
+    ]);
   } finally {
     deps.observe?.('record', performance.now() - t);
   }
 }
 
 /** What every record of the call holds, whatever its outcome. */
-function recordBase(call: ParsedCall, service: ServiceDefinition, deps: Pick<EvaluateDeps, 'now' | 'rulesVersion'>, gathered: Gathered, adviceId: string, client: AdviceRecord['client'] | undefined) {
+function recordBase(
+  call: ParsedCall,
+  service: ServiceDefinition,
+  deps: Pick<EvaluateDeps, 'now' | 'rulesVersion'>,
+  gathered: Gathered,
+  adviceId: string,
+  client: AdviceRecord['client'] | undefined,
+) {
   const { req, hook, ctx } = call;
   return {
-    id: adviceId, recordedAt: deps.now().toISOString(), service: service.id, hook, hookInstance: req.hookInstance,
-    userId: ctx.userId, patientId: ctx.patientId, ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}),
-    rulesVersion: deps.rulesVersion, gathering: gathered.outcomes, ...(client ? { client } : {}),
+    id: adviceId,
+    recordedAt: deps.now().toISOString(),
+    service: service.id,
+    hook,
+    hookInstance: req.hookInstance,
+    userId: ctx.userId,
+    patientId: ctx.patientId,
+    ...(ctx.encounterId ? { encounterId: ctx.encounterId } : {}),
+    rulesVersion: deps.rulesVersion,
+    gathering: gathered.outcomes,
+    ...(client ? { client } : {}),
   };
 }
 
 /** The refusal of a call whose required keys could not be gathered: one issue per key, saying why. */
 function unobtainable(gathered: Gathered): OutcomeError {
   const missing = gathered.unobtainableRequired;
-  return new OutcomeError('unobtainable', gathered.outcomes
-    .filter((o) => missing.includes(o.key))
-    .map((o) => ({ type: 'incomplete' as const, text: `${o.key}: ${o.detail ?? o.status}` })));
+  return new OutcomeError(
+    'unobtainable',
+    gathered.outcomes
+      .filter((o) => missing.includes(o.key))
+      .map((o) => ({ type: 'incomplete' as const, text: `${o.key}: ${o.detail ?? o.status}` })),
+  );
 }
 
 /**
@@ -219,12 +302,21 @@ function unobtainable(gathered: Gathered): OutcomeError {
  * Refused before any request, with a log line (issuer and origin, no token); like other refusals of a request, it
  * leaves no advice record, since no data was read and no advice given.
  */
-function refuseUnlistedFhirServer(fhirServer: string | undefined, issuer: string | undefined, deps: Pick<EvaluateDeps, 'fhirServersFor' | 'log'>, hookInstance: string): void {
+function refuseUnlistedFhirServer(
+  fhirServer: string | undefined,
+  issuer: string | undefined,
+  deps: Pick<EvaluateDeps, 'fhirServersFor' | 'log'>,
+  hookInstance: string,
+): void {
   if (fhirServer === undefined || issuer === undefined) return;
   const allowed = deps.fhirServersFor?.(issuer);
   if (allowed === undefined) return;
   const origin = new URL(fhirServer).origin;
   if (allowed.includes(origin)) return;
   deps.log.warn({ hookInstance, issuer, fhirServerOrigin: origin }, 'fhirServer is not listed for this client: call refused');
-  throw outcomeError('forbidden', 'forbidden', 'fhirServer is not one of the FHIR servers this client may name (fhirServers in its issuer configuration)');
+  throw outcomeError(
+    'forbidden',
+    'forbidden',
+    'fhirServer is not one of the FHIR servers this client may name (fhirServers in its issuer configuration)',
+  );
 }

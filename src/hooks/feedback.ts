@@ -31,7 +31,8 @@ export async function recordFeedback(
   caller?: FeedbackCaller,
 ): Promise<{ stored: number; duplicates: number }> {
   const parsed = feedbackRequestSchema.safeParse(body);
-  if (!parsed.success) throw outcomeError('invalid', 'invalid', 'the body is not valid CDS Hooks 2.0 feedback', zodIssues(parsed.error.issues));
+  if (!parsed.success)
+    throw outcomeError('invalid', 'invalid', 'the body is not valid CDS Hooks 2.0 feedback', zodIssues(parsed.error.issues));
   const receivedAt = now().toISOString();
   const known: Array<{ item: FeedbackItem; index: number; card: Card | undefined }> = [];
   const unknown: string[] = [];
@@ -50,20 +51,31 @@ export async function recordFeedback(
   }
 
   const problems = known.flatMap(({ item, index, card }) => cardProblems(item, card).map((p) => `feedback.${index}.${p}`));
-  if (problems.length) throw outcomeError('invalid', 'invalid', 'the feedback does not match the card it names; nothing was stored', problems);
+  if (problems.length)
+    throw outcomeError('invalid', 'invalid', 'the feedback does not match the card it names; nothing was stored', problems);
 
   const rows: FeedbackRow[] = known.map(({ item: f }) => {
     const reason = f.overrideReason?.reason;
     return {
-      cardUuid: f.card, outcome: f.outcome, acceptedSuggestions: (f.acceptedSuggestions ?? []).map((s) => s.id),
-      ...(reason ? { overrideReason: { system: reason.system, code: reason.code, ...(reason.display ? { display: reason.display } : {}) } } : {}),
+      cardUuid: f.card,
+      outcome: f.outcome,
+      acceptedSuggestions: (f.acceptedSuggestions ?? []).map((s) => s.id),
+      ...(reason
+        ? { overrideReason: { system: reason.system, code: reason.code, ...(reason.display ? { display: reason.display } : {}) } }
+        : {}),
       ...(f.overrideReason?.userComment ? { userComment: f.overrideReason.userComment.slice(0, 2000) } : {}),
-      outcomeTimestamp: new Date(f.outcomeTimestamp).toISOString(), receivedAt, service: service.id,
+      outcomeTimestamp: new Date(f.outcomeTimestamp).toISOString(),
+      receivedAt,
+      service: service.id,
     };
   });
   const result = rows.length ? await store.addFeedback(rows) : { stored: 0, duplicates: 0 };
   if (unknown.length) {
-    throw outcomeError('not-found', 'not-found', `no card with uuid ${unknown.slice(0, 10).join(', ')} was issued by ${service.id} to this client; ${result.stored} other feedback item(s) stored`);
+    throw outcomeError(
+      'not-found',
+      'not-found',
+      `no card with uuid ${unknown.slice(0, 10).join(', ')} was issued by ${service.id} to this client; ${result.stored} other feedback item(s) stored`,
+    );
   }
   return result;
 }
@@ -78,7 +90,7 @@ function cardProblems(f: FeedbackItem, card: Card | undefined): string[] {
   });
   const reason = f.overrideReason?.reason;
   if (reason && !(card.overrideReasons ?? []).some((r) => r.system === reason.system && r.code === reason.code)) {
-    out.push('overrideReason.reason: not one of this card\'s overrideReasons (system and code)');
+    out.push("overrideReason.reason: not one of this card's overrideReasons (system and code)");
   }
   return out;
 }

@@ -3,8 +3,17 @@ import type { FhirResource } from 'fhir/r4.js';
 
 /** `too-large`: an answer, or all answers of the call, passed a byte cap; `redirect`: a 3xx, not followed. */
 export type GatherStatus =
-  | 'ok' | 'no-data' | 'not-applicable' | 'unavailable' | 'http-error' | 'timeout' | 'network-error' | 'not-fhir' | 'truncated'
-  | 'too-large' | 'redirect';
+  | 'ok'
+  | 'no-data'
+  | 'not-applicable'
+  | 'unavailable'
+  | 'http-error'
+  | 'timeout'
+  | 'network-error'
+  | 'not-fhir'
+  | 'truncated'
+  | 'too-large'
+  | 'redirect';
 
 export interface GatherOutcome {
   key: string;

@@ -17,7 +17,6 @@ import type { ServiceDefinition } from './services.js';
 import { DEFAULT_BYTE_CAPS, FhirFetchError, fhirFetcher, resolveUnderBase, type ByteCaps, type Fetcher } from '../fhir/fetcher.js';
 import type { GatherOptions, GatherOutcome, GatherStatus, Gathered } from './gather-types.js';
 
-
 /** Settles when `p` does or when the budget runs out, whichever is first, even if the fetcher ignores the signal. */
 function withinBudget<T>(p: Promise<T>, signal: AbortSignal): Promise<T> {
   p.catch(() => undefined); // a late failure after the budget has run out is already accounted for
@@ -38,11 +37,19 @@ function withinBudget<T>(p: Promise<T>, signal: AbortSignal): Promise<T> {
   });
 }
 
-export async function gather(request: HookRequest, service: ServiceDefinition, opts: GatherOptions, makeFetcher = fhirFetcher): Promise<Gathered> {
+export async function gather(
+  request: HookRequest,
+  service: ServiceDefinition,
+  opts: GatherOptions,
+  makeFetcher = fhirFetcher,
+): Promise<Gathered> {
   const clock = opts.clock ?? (() => performance.now());
   const t0 = clock();
   const deadline = AbortSignal.timeout(opts.budgetMs);
-  const caps: ByteCaps = { maxResponseBytes: opts.maxResponseBytes ?? DEFAULT_BYTE_CAPS.maxResponseBytes, maxCallBytes: opts.maxCallBytes ?? DEFAULT_BYTE_CAPS.maxCallBytes };
+  const caps: ByteCaps = {
+    maxResponseBytes: opts.maxResponseBytes ?? DEFAULT_BYTE_CAPS.maxResponseBytes,
+    maxCallBytes: opts.maxCallBytes ?? DEFAULT_BYTE_CAPS.maxCallBytes,
+  };
   const fetcher = request.fhirServer ? makeFetcher(request.fhirServer, request.fhirAuthorization?.access_token, caps) : undefined;
   const limit = semaphore(opts.concurrency);
   const context = request.context;
@@ -50,40 +57,97 @@ export async function gather(request: HookRequest, service: ServiceDefinition, o
 
   const jobs = Object.entries(service.prefetch).map(async ([key, q]): Promise<{ outcome: GatherOutcome; resources: FhirResource[] }> => {
     const resolved = resolvePrefetchTemplate(q.template, hook, context);
-    if (!resolved.ok) return { outcome: { key, source: 'none', status: 'not-applicable', count: 0, detail: resolved.reason }, resources: [] };
+    if (!resolved.ok)
+      return { outcome: { key, source: 'none', status: 'not-applicable', count: 0, detail: resolved.reason }, resources: [] };
     const has = request.prefetch !== undefined && Object.hasOwn(request.prefetch, key);
     const given = has ? request.prefetch?.[key] : undefined;
-    if (has && given === null) return { outcome: { key, source: 'prefetch', status: 'no-data', count: 0, detail: 'the client sent null: no data' }, resources: [] };
+    if (has && given === null)
+      return { outcome: { key, source: 'prefetch', status: 'no-data', count: 0, detail: 'the client sent null: no data' }, resources: [] };
     let clientProblem: string | undefined;
     if (given && given.resourceType !== 'OperationOutcome') {
       const first = readAnswer(given, q.resourceTypes);
       if (first.kind === 'resources') {
         const next = first.next;
-        if (!next) return { outcome: { key, source: 'prefetch', status: first.resources.length ? 'ok' : 'no-data', count: first.resources.length }, resources: first.resources };
+        if (!next)
+          return {
+            outcome: { key, source: 'prefetch', status: first.resources.length ? 'ok' : 'no-data', count: first.resources.length },
+            resources: first.resources,
+          };
         if (!fetcher) {
-          return { outcome: { key, source: 'prefetch', status: 'truncated', count: first.resources.length, detail: 'prefetch Bundle is paged but no fhirServer was given to follow link[next]' }, resources: first.resources };
+          return {
+            outcome: {
+              key,
+              source: 'prefetch',
+              status: 'truncated',
+              count: first.resources.length,
+              detail: 'prefetch Bundle is paged but no fhirServer was given to follow link[next]',
+            },
+            resources: first.resources,
+          };
         }
-        return limit(() => follow(key, 'prefetch', fetcher, request.fhirServer as string, first.resources, next, 1, q.resourceTypes, opts, deadline, clock));
+        return limit(() =>
+          follow(key, 'prefetch', fetcher, request.fhirServer as string, first.resources, next, 1, q.resourceTypes, opts, deadline, clock),
+        );
       }
       clientProblem = `prefetch value unusable: ${first.detail}`;
     } else if (given) {
       clientProblem = `the client reported an error: ${outcomeText(given as unknown as OperationOutcome)}`;
     }
     if (!fetcher) {
-      return { outcome: { key, source: 'none', status: 'unavailable', count: 0, detail: clientProblem ?? 'not prefetched and no fhirServer given' }, resources: [] };
+      return {
+        outcome: {
+          key,
+          source: 'none',
+          status: 'unavailable',
+          count: 0,
+          detail: clientProblem ?? 'not prefetched and no fhirServer given',
+        },
+        resources: [],
+      };
     }
     const target = resolveUnderBase(resolved.value, request.fhirServer as string);
-    if (!target) return { outcome: { key, source: 'none', status: 'not-applicable', count: 0, detail: 'the query would leave fhirServer: not sent' }, resources: [] };
+    if (!target)
+      return {
+        outcome: { key, source: 'none', status: 'not-applicable', count: 0, detail: 'the query would leave fhirServer: not sent' },
+        resources: [],
+      };
     return limit(async () => {
       const started = clock();
       try {
         const body = await withinBudget(fetcher(target.href, deadline), deadline);
         const ans = readAnswer(body, q.resourceTypes);
-        if (ans.kind === 'problem') return { outcome: { key, source: 'fhir-server', status: 'not-fhir', count: 0, ms: clock() - started, detail: ans.detail }, resources: [] };
+        if (ans.kind === 'problem')
+          return {
+            outcome: { key, source: 'fhir-server', status: 'not-fhir', count: 0, ms: clock() - started, detail: ans.detail },
+            resources: [],
+          };
         if (!ans.next) {
-          return { outcome: { key, source: 'fhir-server', status: ans.resources.length ? 'ok' : 'no-data', count: ans.resources.length, pages: 1, ms: clock() - started }, resources: ans.resources };
+          return {
+            outcome: {
+              key,
+              source: 'fhir-server',
+              status: ans.resources.length ? 'ok' : 'no-data',
+              count: ans.resources.length,
+              pages: 1,
+              ms: clock() - started,
+            },
+            resources: ans.resources,
+          };
         }
-        return await follow(key, 'fhir-server', fetcher, request.fhirServer as string, ans.resources, ans.next, 1, q.resourceTypes, opts, deadline, clock, started);
+        return await follow(
+          key,
+          'fhir-server',
+          fetcher,
+          request.fhirServer as string,
+          ans.resources,
+          ans.next,
+          1,
+          q.resourceTypes,
+          opts,
+          deadline,
+          clock,
+          started,
+        );
       } catch (e) {
         return { outcome: { key, source: 'fhir-server', ms: clock() - started, count: 0, ...classify(e) }, resources: [] };
       }
@@ -116,35 +180,94 @@ export async function gather(request: HookRequest, service: ServiceDefinition, o
 }
 
 async function follow(
-  key: string, source: 'prefetch' | 'fhir-server', fetcher: Fetcher, base: string, acc: FhirResource[], next: string, pages: number,
-  types: readonly string[], opts: GatherOptions, deadline: AbortSignal, clock: () => number, started = clock(),
+  key: string,
+  source: 'prefetch' | 'fhir-server',
+  fetcher: Fetcher,
+  base: string,
+  acc: FhirResource[],
+  next: string,
+  pages: number,
+  types: readonly string[],
+  opts: GatherOptions,
+  deadline: AbortSignal,
+  clock: () => number,
+  started = clock(),
 ): Promise<{ outcome: GatherOutcome; resources: FhirResource[] }> {
   let url: string | undefined = next;
   let n = pages;
   const out = [...acc];
   while (url) {
     if (n >= opts.maxPages) {
-      return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: `stopped after ${opts.maxPages} pages` }, resources: out };
+      return {
+        outcome: {
+          key,
+          source,
+          status: 'truncated',
+          count: out.length,
+          pages: n,
+          ms: clock() - started,
+          detail: `stopped after ${opts.maxPages} pages`,
+        },
+        resources: out,
+      };
     }
     // Resolved once; the URL checked is the URL fetched (a raw `http:/host/x` would reach another host).
     const target = resolveUnderBase(url, base);
     if (!target) {
-      return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: 'link[next] points outside fhirServer: not followed' }, resources: out };
+      return {
+        outcome: {
+          key,
+          source,
+          status: 'truncated',
+          count: out.length,
+          pages: n,
+          ms: clock() - started,
+          detail: 'link[next] points outside fhirServer: not followed',
+        },
+        resources: out,
+      };
     }
     try {
       const ans = readAnswer(await withinBudget(fetcher(target.href, deadline), deadline), types);
       n += 1;
-      if (ans.kind === 'problem') return { outcome: { key, source, status: 'truncated', count: out.length, pages: n, ms: clock() - started, detail: `page ${n}: ${ans.detail}` }, resources: out };
+      if (ans.kind === 'problem')
+        return {
+          outcome: {
+            key,
+            source,
+            status: 'truncated',
+            count: out.length,
+            pages: n,
+            ms: clock() - started,
+            detail: `page ${n}: ${ans.detail}`,
+          },
+          resources: out,
+        };
       out.push(...ans.resources);
       url = ans.next;
     } catch (e) {
       const c = classify(e);
       // A cap or a redirect keeps its own status (the pages before it are kept); other faults make the key 'truncated'.
       const status: GatherStatus = c.status === 'too-large' || c.status === 'redirect' ? c.status : 'truncated';
-      return { outcome: { key, source, count: out.length, pages: n, ms: clock() - started, ...c, status, detail: `page ${n + 1}: ${c.status}${c.detail ? `: ${c.detail}` : ''}` }, resources: out };
+      return {
+        outcome: {
+          key,
+          source,
+          count: out.length,
+          pages: n,
+          ms: clock() - started,
+          ...c,
+          status,
+          detail: `page ${n + 1}: ${c.status}${c.detail ? `: ${c.detail}` : ''}`,
+        },
+        resources: out,
+      };
     }
   }
-  return { outcome: { key, source, status: out.length ? 'ok' : 'no-data', count: out.length, pages: n, ms: clock() - started }, resources: out };
+  return {
+    outcome: { key, source, status: out.length ? 'ok' : 'no-data', count: out.length, pages: n, ms: clock() - started },
+    resources: out,
+  };
 }
 
 type Answer = { kind: 'resources'; resources: FhirResource[]; next?: string } | { kind: 'problem'; detail: string };
@@ -163,12 +286,16 @@ function readAnswer(body: unknown, types: readonly string[]): Answer {
     return next ? { kind: 'resources', resources, next } : { kind: 'resources', resources };
   }
   if (typeof r.resourceType === 'string' && types.includes(r.resourceType)) return { kind: 'resources', resources: [body as FhirResource] };
-  if (r.resourceType === 'OperationOutcome') return { kind: 'problem', detail: `OperationOutcome: ${outcomeText(body as OperationOutcome)}` };
+  if (r.resourceType === 'OperationOutcome')
+    return { kind: 'problem', detail: `OperationOutcome: ${outcomeText(body as OperationOutcome)}` };
   return { kind: 'problem', detail: typeof r.resourceType === 'string' ? `unexpected ${r.resourceType}` : 'body is not a FHIR resource' };
 }
 
 function outcomeText(o: OperationOutcome): string {
-  const t = (o.issue ?? []).map((i) => i.details?.text ?? i.diagnostics ?? i.code).filter(Boolean).join('; ');
+  const t = (o.issue ?? [])
+    .map((i) => i.details?.text ?? i.diagnostics ?? i.code)
+    .filter(Boolean)
+    .join('; ');
   return (t || 'no details').slice(0, 300);
 }
 
@@ -178,7 +305,8 @@ function classify(e: unknown): { status: GatherStatus; httpStatus?: number; deta
     return e.httpStatus === undefined ? { status, detail: e.detail } : { status, httpStatus: e.httpStatus, detail: e.detail };
   }
   const err = e as { name?: string; message?: string; cause?: { code?: string; name?: string } };
-  if (err?.name === 'TimeoutError' || err?.name === 'AbortError' || err?.cause?.name === 'TimeoutError') return { status: 'timeout', detail: 'time budget for FHIR queries ran out' };
+  if (err?.name === 'TimeoutError' || err?.name === 'AbortError' || err?.cause?.name === 'TimeoutError')
+    return { status: 'timeout', detail: 'time budget for FHIR queries ran out' };
   const code = err?.cause?.code;
   return { status: 'network-error', detail: code ? `connection failed (${code})` : 'connection failed' };
 }

@@ -4,7 +4,19 @@
  */
 
 /** FHIR R4 IssueType codes the issues use (http://hl7.org/fhir/R4/valueset-issue-type.html). */
-export type IssueType = 'invalid' | 'structure' | 'required' | 'value' | 'not-found' | 'not-supported' | 'exception' | 'incomplete' | 'login' | 'forbidden' | 'too-costly' | 'transient';
+export type IssueType =
+  | 'invalid'
+  | 'structure'
+  | 'required'
+  | 'value'
+  | 'not-found'
+  | 'not-supported'
+  | 'exception'
+  | 'incomplete'
+  | 'login'
+  | 'forbidden'
+  | 'too-costly'
+  | 'transient';
 
 /**
  * `invalid`: the request is not one we can read; `forbidden`: the caller may not ask this; `not-found`: no such
@@ -36,5 +48,7 @@ export function outcomeError(code: OutcomeCode, type: IssueType, text: string, d
 
 /** zod issues → "path: message" lines, short enough for a log and an OperationOutcome. */
 export function zodIssues(issues: ReadonlyArray<{ path: PropertyKey[]; message: string }>, prefix = ''): string[] {
-  return issues.slice(0, 20).map((i) => `${[prefix, ...i.path.map(String)].filter(Boolean).join('.') || '(body)'}: ${i.message}`.slice(0, 300));
+  return issues
+    .slice(0, 20)
+    .map((i) => `${[prefix, ...i.path.map(String)].filter(Boolean).join('.') || '(body)'}: ${i.message}`.slice(0, 300));
 }

@@ -36,7 +36,9 @@ export const MAX_COMMENT_LENGTH = 2_000;
 const text = z.string().min(1);
 const jsonObject = z.record(z.string(), z.unknown());
 const fhirId = z.string().regex(/^[A-Za-z0-9\-.]{1,64}$/, `must be a FHIR id (1-${MAX_ID_LENGTH} of A-Z a-z 0-9 - .)`);
-const resourceTypeName = z.string().regex(/^[A-Z][A-Za-z]{0,63}$/, `must be a FHIR resource type (a capital letter, then letters, at most ${MAX_RESOURCE_TYPE_LENGTH})`);
+const resourceTypeName = z
+  .string()
+  .regex(/^[A-Z][A-Za-z]{0,63}$/, `must be a FHIR resource type (a capital letter, then letters, at most ${MAX_RESOURCE_TYPE_LENGTH})`);
 
 /** A FHIR resource as JSON: resourceType (and id when present) are checked here; the snapshot checks the rest. */
 export const fhirResourceSchema = z.looseObject({ resourceType: resourceTypeName, id: fhirId.optional() });
@@ -57,7 +59,9 @@ export const draftOrdersSchema = z
     type: z.string().optional(),
     entry: z.array(z.looseObject({ resource: fhirResourceSchema.optional() })).optional(),
   })
-  .refine((b) => jsonLength(b) <= MAX_DRAFT_ORDERS_CHARS, { message: `draftOrders is larger than ${MAX_DRAFT_ORDERS_CHARS / 1024} KiB of JSON` });
+  .refine((b) => jsonLength(b) <= MAX_DRAFT_ORDERS_CHARS, {
+    message: `draftOrders is larger than ${MAX_DRAFT_ORDERS_CHARS / 1024} KiB of JSON`,
+  });
 
 /** Length of a value's JSON text; a value that cannot be written as JSON (too deep, a cycle) counts as too long. */
 function jsonLength(v: unknown): number {
@@ -68,7 +72,9 @@ function jsonLength(v: unknown): number {
   }
 }
 
-const referenceString = z.string().regex(/^[A-Za-z]{1,64}\/[A-Za-z0-9\-.]{1,64}$/, 'must be a relative reference Type/id (each at most 64 characters)');
+const referenceString = z
+  .string()
+  .regex(/^[A-Za-z]{1,64}\/[A-Za-z0-9\-.]{1,64}$/, 'must be a relative reference Type/id (each at most 64 characters)');
 
 /** patient-view 1.1 context. */
 export const patientViewContextSchema = z.looseObject({
@@ -143,7 +149,12 @@ const actionResource = z.custom<FhirResource>((v) => fhirResourceSchema.safePars
 export const actionSchema = z.discriminatedUnion('type', [
   z.object({ type: z.literal('create'), description: text, resource: actionResource }),
   z.object({ type: z.literal('update'), description: text, resource: actionResource }),
-  z.object({ type: z.literal('delete'), description: text, resourceId: referenceString, resource: z.undefined({ error: 'a delete action has resourceId and no resource' }).optional() }),
+  z.object({
+    type: z.literal('delete'),
+    description: text,
+    resourceId: referenceString,
+    resource: z.undefined({ error: 'a delete action has resourceId and no resource' }).optional(),
+  }),
 ]);
 
 export const suggestionSchema = z.object({
@@ -182,10 +193,9 @@ export const cardSchema = z
     links: z.array(linkSchema).min(1).optional(),
   })
   .refine((c) => !c.suggestions || c.selectionBehavior, { message: 'selectionBehavior is required with suggestions' })
-  .refine(
-    (c) => c.selectionBehavior !== 'at-most-one' || (c.suggestions ?? []).filter((s) => s.isRecommended).length <= 1,
-    { message: 'at most one suggestion may be recommended with at-most-one' },
-  );
+  .refine((c) => c.selectionBehavior !== 'at-most-one' || (c.suggestions ?? []).filter((s) => s.isRecommended).length <= 1, {
+    message: 'at most one suggestion may be recommended with at-most-one',
+  });
 export type Card = z.infer<typeof cardSchema>;
 export type Suggestion = z.infer<typeof suggestionSchema>;
 export type Action = z.infer<typeof actionSchema>;
@@ -215,13 +225,18 @@ export const feedbackItemSchema = z
   .object({
     card: z.guid(),
     outcome: z.enum(['accepted', 'overridden']),
-    acceptedSuggestions: z.array(z.object({ id: z.guid() })).min(1).optional(),
+    acceptedSuggestions: z
+      .array(z.object({ id: z.guid() }))
+      .min(1)
+      .optional(),
     // Early clients sent a bare Coding instead of { reason, userComment } (cds-hooks/docs#519): accept both.
     overrideReason: z
       .union([
-        z.object({ reason: codingSchema.optional(), userComment: z.string().max(MAX_COMMENT_LENGTH).optional() }).refine((o) => o.reason || o.userComment, {
-          message: 'overrideReason needs reason or userComment',
-        }),
+        z
+          .object({ reason: codingSchema.optional(), userComment: z.string().max(MAX_COMMENT_LENGTH).optional() })
+          .refine((o) => o.reason || o.userComment, {
+            message: 'overrideReason needs reason or userComment',
+          }),
         codingSchema.transform((c) => ({ reason: c, userComment: undefined })),
       ])
       .optional(),

@@ -27,7 +27,9 @@ export interface ServiceDefinition {
 }
 
 const codes = (kinds: readonly NumericKind[]): string =>
-  OBSERVATION_CODES.filter((c) => kinds.includes(c.kind)).map((c) => `${c.system}|${c.code}`).join(',');
+  OBSERVATION_CODES.filter((c) => kinds.includes(c.kind))
+    .map((c) => `${c.system}|${c.code}`)
+    .join(',');
 
 const patientRef = 'Patient/{{context.patientId}}';
 const obs = (codeList: string, count: number) => `Observation?patient=${patientRef}&code=${codeList}&_sort=-date&_count=${count}`;
@@ -35,13 +37,34 @@ const obs = (codeList: string, count: number) => `Observation?patient=${patientR
 /** Prefetch templates shared by the services (R4 syntax; `patient=Patient/id` works on every server we know). */
 export const PREFETCH: Record<string, PrefetchQuery> = {
   patient: { template: patientRef, purpose: 'sex and age (predicted body weight)', resourceTypes: ['Patient'] },
-  encounter: { template: 'Encounter/{{context.encounterId}}', purpose: 'ICU admission time (cumulative balance)', resourceTypes: ['Encounter'] },
+  encounter: {
+    template: 'Encounter/{{context.encounterId}}',
+    purpose: 'ICU admission time (cumulative balance)',
+    resourceTypes: ['Encounter'],
+  },
   vitals: {
-    template: obs(codes(['heartRate', 'systolicBp', 'diastolicBp', 'meanBp', 'respiratoryRate', 'spo2', 'cvp', 'rightAtrialPressure', 'capillaryRefill']), 200),
+    template: obs(
+      codes([
+        'heartRate',
+        'systolicBp',
+        'diastolicBp',
+        'meanBp',
+        'respiratoryRate',
+        'spo2',
+        'cvp',
+        'rightAtrialPressure',
+        'capillaryRefill',
+      ]),
+      200,
+    ),
     purpose: 'vital signs, venous pressure and capillary refill',
     resourceTypes: ['Observation'],
   },
-  labs: { template: obs(codes(['lactate', 'albumin', 'creatinine']), 50), purpose: 'lactate, albumin and creatinine', resourceTypes: ['Observation'] },
+  labs: {
+    template: obs(codes(['lactate', 'albumin', 'creatinine']), 50),
+    purpose: 'lactate, albumin and creatinine',
+    resourceTypes: ['Observation'],
+  },
   body: { template: obs(codes(['bodyWeight', 'bodyHeight']), 20), purpose: 'weight and height', resourceTypes: ['Observation'] },
   balance: {
     template: obs(codes(['urineOutput', 'fluidIntake', 'fluidOutput', 'fluidBalance']), 200),
@@ -50,34 +73,60 @@ export const PREFETCH: Record<string, PrefetchQuery> = {
   },
   hemodynamics: {
     template: obs(
-      [codes(['cardiacOutput', 'cardiacIndex', 'strokeVolume', 'strokeVolumeIndex', 'ppv', 'svv', 'ivcDiameterMax', 'ivcDiameterMin']), DYNAMIC_TEST_CODES.map((c) => `${c.system}|${c.code}`).join(',')].join(','),
+      [
+        codes(['cardiacOutput', 'cardiacIndex', 'strokeVolume', 'strokeVolumeIndex', 'ppv', 'svv', 'ivcDiameterMax', 'ivcDiameterMin']),
+        DYNAMIC_TEST_CODES.map((c) => `${c.system}|${c.code}`).join(','),
+      ].join(','),
       100,
     ),
     purpose: 'monitor and ultrasound flow markers and dynamic tests',
     resourceTypes: ['Observation'],
   },
-  ventilation: { template: obs(codes(['tidalVolume', 'peep', 'fio2']), 100), purpose: 'tidal volume, PEEP and FiO2', resourceTypes: ['Observation'] },
+  ventilation: {
+    template: obs(codes(['tidalVolume', 'peep', 'fio2']), 100),
+    purpose: 'tidal volume, PEEP and FiO2',
+    resourceTypes: ['Observation'],
+  },
   // Rarely charted states get a key of their own, so minute-level device data cannot push them off the first page.
   assessments: {
     template: obs(
-      [codes(['intraAbdominalPressure', 'evlwi', 'portalPulsatility', 'edemaGrade', 'bLineRegions', 'bLineRegionsLeft', 'bLineRegionsRight']), CODED_OBSERVATION_CODES.map((c) => `${c.system}|${c.code}`).join(',')].join(','),
+      [
+        codes([
+          'intraAbdominalPressure',
+          'evlwi',
+          'portalPulsatility',
+          'edemaGrade',
+          'bLineRegions',
+          'bLineRegionsLeft',
+          'bLineRegionsRight',
+        ]),
+        CODED_OBSERVATION_CODES.map((c) => `${c.system}|${c.code}`).join(','),
+      ].join(','),
       50,
     ),
     purpose: 'ventilation state, rhythm, chest, echo and Doppler impressions, IAP, lung water and oedema',
     resourceTypes: ['Observation'],
   },
-  conditions: { template: `Condition?patient=${patientRef}&clinical-status=active&_count=50`, purpose: 'conditions that lower tolerance', resourceTypes: ['Condition'] },
+  conditions: {
+    template: `Condition?patient=${patientRef}&clinical-status=active&_count=50`,
+    purpose: 'conditions that lower tolerance',
+    resourceTypes: ['Condition'],
+  },
   fluidsGiven: {
     template: `MedicationAdministration?patient=${patientRef}&_sort=-effective-time&_count=100`,
     purpose: 'fluid and vasopressor administrations',
     resourceTypes: ['MedicationAdministration'],
   },
-  medications: { template: `MedicationRequest?patient=${patientRef}&status=active&_count=50`, purpose: 'active vasopressor orders', resourceTypes: ['MedicationRequest'] },
+  medications: {
+    template: `MedicationRequest?patient=${patientRef}&status=active&_count=50`,
+    purpose: 'active vasopressor orders',
+    resourceTypes: ['MedicationRequest'],
+  },
 };
 
 const all = PREFETCH;
 const orderUsage =
-  'Sends draftOrders with the fluid MedicationRequest (or ServiceRequest). Needs read access to the patient\'s Observation, Condition, MedicationAdministration and MedicationRequest resources.';
+  "Sends draftOrders with the fluid MedicationRequest (or ServiceRequest). Needs read access to the patient's Observation, Condition, MedicationAdministration and MedicationRequest resources.";
 
 export const SERVICES: readonly ServiceDefinition[] = [
   {
@@ -151,4 +200,3 @@ export function discoveryDocument(services: readonly ServiceDefinition[] = SERVI
     })),
   };
 }
-

@@ -48,12 +48,17 @@ export function createLinkSigner(key: string | Buffer, lifetimeMinutes: number):
  * The signer the configuration asks for: the configured key; in trial mode without one, a random key for this
  * process (with a warning: links die with the process and do not work across replicas); otherwise none (links off).
  */
-export function signerFromConfig(cfg: { TIDEMARK_LINK_KEY?: string | undefined; TIDEMARK_LINK_LIFETIME_MIN: number; TIDEMARK_TRIAL_MODE: boolean }): { signer?: LinkSigner; warning?: string } {
+export function signerFromConfig(cfg: {
+  TIDEMARK_LINK_KEY?: string | undefined;
+  TIDEMARK_LINK_LIFETIME_MIN: number;
+  TIDEMARK_TRIAL_MODE: boolean;
+}): { signer?: LinkSigner; warning?: string } {
   if (cfg.TIDEMARK_LINK_KEY) return { signer: createLinkSigner(cfg.TIDEMARK_LINK_KEY, cfg.TIDEMARK_LINK_LIFETIME_MIN) };
   if (cfg.TIDEMARK_TRIAL_MODE) {
     return {
       signer: createLinkSigner(randomBytes(32), cfg.TIDEMARK_LINK_LIFETIME_MIN),
-      warning: 'TIDEMARK_LINK_KEY is not set: reasoning-page links are signed with a key made for this process; they stop working when it restarts',
+      warning:
+        'TIDEMARK_LINK_KEY is not set: reasoning-page links are signed with a key made for this process; they stop working when it restarts',
     };
   }
   return { warning: 'TIDEMARK_LINK_KEY is not set: cards carry no link to a reasoning page' };

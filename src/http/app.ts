@@ -42,7 +42,10 @@ const DOCS_DIR = fileURLToPath(new URL('../../docs/', import.meta.url));
 const pass: RequestHandler = (_req, _res, next) => next();
 
 const auditQuerySchema = z.object({
-  patient: z.string().regex(/^[A-Za-z0-9\-.]{1,64}$/).optional(),
+  patient: z
+    .string()
+    .regex(/^[A-Za-z0-9\-.]{1,64}$/)
+    .optional(),
   service: z.string().min(1).max(64).optional(),
   from: z.iso.datetime({ offset: true }).or(z.iso.date()).optional(),
   to: z.iso.datetime({ offset: true }).or(z.iso.date()).optional(),
@@ -60,7 +63,9 @@ export function createApp(deps: AppDeps): express.Express {
   const cds = deps.cdsClientAuth ?? pass;
   const audit = deps.auditAuth ?? pass;
   // A body nested deeper than MAX_JSON_DEPTH is a 400 right after parsing, before any code can recurse over it.
-  const json = withDepthLimit(express.json({ limit: deps.bodyLimit, type: ['application/json', 'application/fhir+json', 'application/*+json'] }));
+  const json = withDepthLimit(
+    express.json({ limit: deps.bodyLimit, type: ['application/json', 'application/fhir+json', 'application/*+json'] }),
+  );
 
   app.use((req, res, next) => {
     res.setHeader('X-Content-Type-Options', 'nosniff');
@@ -101,7 +106,12 @@ export function createApp(deps: AppDeps): express.Express {
   app.get('/readyz', async (_req, res) => {
     try {
       await deps.store.ping();
-      res.json({ status: 'ready', auditStore: deps.store.kind, rulesVersion: deps.rulesVersion, ...(deps.readinessWarnings?.length ? { warnings: deps.readinessWarnings } : {}) });
+      res.json({
+        status: 'ready',
+        auditStore: deps.store.kind,
+        rulesVersion: deps.rulesVersion,
+        ...(deps.readinessWarnings?.length ? { warnings: deps.readinessWarnings } : {}),
+      });
     } catch (e) {
       res.status(503).json(operationOutcome('transient', `audit store not reachable: ${(e as Error).message}`.slice(0, 200)));
     }
@@ -126,7 +136,13 @@ export function createApp(deps: AppDeps): express.Express {
     const service = findService(String(req.params['id']));
     if (!service) throw outcomeError('not-found', 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
     // The caller the guard verified: feedback is taken only from the issuer that received the card.
-    const result = await recordFeedback(service, req.body, deps.store, deps.now, res.locals['client'] as { issuer?: string; tenant?: string } | undefined);
+    const result = await recordFeedback(
+      service,
+      req.body,
+      deps.store,
+      deps.now,
+      res.locals['client'] as { issuer?: string; tenant?: string } | undefined,
+    );
     res.status(200).json(result);
   });
 
@@ -135,12 +151,18 @@ export function createApp(deps: AppDeps): express.Express {
     if (!q.success) throw outcomeError('invalid', 'invalid', 'invalid audit query', zodIssues(q.error.issues, 'query'));
     const { patient, service, from, to, limit, cursor } = q.data;
     const page = await deps.store.list({
-      limit, ...(patient ? { patientId: patient } : {}), ...(service ? { service } : {}),
-      ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}), ...(cursor ? { cursor } : {}),
+      limit,
+      ...(patient ? { patientId: patient } : {}),
+      ...(service ? { service } : {}),
+      ...(from ? { from: toInstant(from) } : {}),
+      ...(to ? { to: toInstant(to, true) } : {}),
+      ...(cursor ? { cursor } : {}),
     });
     res.json({
       items: page.items,
-      ...(page.nextCursor ? { next: `/audit/advice?${new URLSearchParams({ ...stringsOf(req.query), cursor: page.nextCursor }).toString()}` } : {}),
+      ...(page.nextCursor
+        ? { next: `/audit/advice?${new URLSearchParams({ ...stringsOf(req.query), cursor: page.nextCursor }).toString()}` }
+        : {}),
     });
   });
   app.get('/audit/advice/:id', audit, async (req: Request, res: Response) => {
@@ -158,17 +180,27 @@ export function createApp(deps: AppDeps): express.Express {
   app.get('/audit/feedback-stats', audit, async (req: Request, res: Response) => {
     const q = auditQuerySchema.pick({ service: true, from: true, to: true }).safeParse(req.query);
     if (!q.success) throw outcomeError('invalid', 'invalid', 'invalid audit query', zodIssues(q.error.issues, 'query'));
-    res.json(await deps.store.feedbackStats({
-      ...(q.data.service ? { service: q.data.service } : {}), ...(q.data.from ? { from: toInstant(q.data.from) } : {}), ...(q.data.to ? { to: toInstant(q.data.to, true) } : {}),
-    }));
+    res.json(
+      await deps.store.feedbackStats({
+        ...(q.data.service ? { service: q.data.service } : {}),
+        ...(q.data.from ? { from: toInstant(q.data.from) } : {}),
+        ...(q.data.to ? { to: toInstant(q.data.to, true) } : {}),
+      }),
+    );
   });
   app.post('/audit/impact', audit, json, async (req: Request, res: Response) => {
     const body = impactRequestSchema.safeParse(req.body);
     if (!body.success) throw outcomeError('invalid', 'invalid', 'invalid impact request', zodIssues(body.error.issues, 'body'));
     const { from, to } = body.data;
-    const page = await impactPage(deps.store, { ...body.data, ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}) }, {
-      catalogue: deps.catalogue, ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}), ...(deps.siteMap ? { siteMap: deps.siteMap } : {}),
-    });
+    const page = await impactPage(
+      deps.store,
+      { ...body.data, ...(from ? { from: toInstant(from) } : {}), ...(to ? { to: toInstant(to, true) } : {}) },
+      {
+        catalogue: deps.catalogue,
+        ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}),
+        ...(deps.siteMap ? { siteMap: deps.siteMap } : {}),
+      },
+    );
     if (!page.ok) throw outcomeError('invalid', 'invalid', 'the candidate thresholds are invalid', [page.message.slice(0, 1000)]);
     res.json(page.body);
   });

@@ -22,7 +22,8 @@ interface Frame {
  */
 export function pathTooDeep(value: unknown, limit: number): Array<string | number> | undefined {
   if (value === null || typeof value !== 'object') return undefined;
-  const frame = (v: object): Frame => (Array.isArray(v) ? { v, keys: null, i: 0 } : { v: v as Record<string, unknown>, keys: Object.keys(v), i: 0 });
+  const frame = (v: object): Frame =>
+    Array.isArray(v) ? { v, keys: null, i: 0 } : { v: v as Record<string, unknown>, keys: Object.keys(v), i: 0 };
   const stack: Frame[] = [frame(value)];
   while (stack.length) {
     const f = stack[stack.length - 1] as Frame;
@@ -45,8 +46,14 @@ export function pathTooDeep(value: unknown, limit: number): Array<string | numbe
 export function tooDeep(body: unknown, limit = MAX_JSON_DEPTH): OutcomeError | undefined {
   const path = pathTooDeep(body, limit);
   if (!path) return undefined;
-  const shown = path.slice(0, 12).map((k) => (typeof k === 'number' ? `[${k}]` : `.${k.slice(0, 40)}`)).join('').replace(/^\./, '');
-  return outcomeError('invalid', 'structure', `the body nests deeper than ${limit} levels of objects and arrays`, [`too deep under ${shown}${path.length > 12 ? '…' : ''}`]);
+  const shown = path
+    .slice(0, 12)
+    .map((k) => (typeof k === 'number' ? `[${k}]` : `.${k.slice(0, 40)}`))
+    .join('')
+    .replace(/^\./, '');
+  return outcomeError('invalid', 'structure', `the body nests deeper than ${limit} levels of objects and arrays`, [
+    `too deep under ${shown}${path.length > 12 ? '…' : ''}`,
+  ]);
 }
 
 /** Wraps a body parser (express.json) so that a body nested deeper than the limit goes to the error handler as a 400. */

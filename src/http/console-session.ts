@@ -15,7 +15,10 @@
 import { createHash, randomBytes, timingSafeEqual } from 'node:crypto';
 import type { Request, Response } from 'express';
 
-export interface ConsoleSession { csrf: string; expiresAt: number }
+export interface ConsoleSession {
+  csrf: string;
+  expiresAt: number;
+}
 
 /** Sessions held at most; the oldest is dropped first. Only a correct credential makes one. */
 const MAX_SESSIONS = 5000;
@@ -57,7 +60,11 @@ export class ConsoleSessions {
   readonly csrfCookieName: string;
   private readonly secure: boolean;
 
-  constructor(readonly lifetimeMinutes: number, publicUrl: string, private readonly now: () => number) {
+  constructor(
+    readonly lifetimeMinutes: number,
+    publicUrl: string,
+    private readonly now: () => number,
+  ) {
     this.secure = !isLoopbackHttp(publicUrl);
     // __Host-: Secure, no Domain, Path=/ (RFC 6265bis §4.1.3.2); on loopback http the plain names.
     this.cookieName = this.secure ? '__Host-tidemark-console' : 'tidemark-console';
@@ -128,7 +135,11 @@ export class ConsoleSessions {
  */
 export class SignInLimiter {
   private readonly failures = new Map<string, number[]>();
-  constructor(private readonly limit: number, private readonly windowMs: number, private readonly now: () => number) {}
+  constructor(
+    private readonly limit: number,
+    private readonly windowMs: number,
+    private readonly now: () => number,
+  ) {}
 
   blocked(addr: string): boolean {
     const t = this.now();

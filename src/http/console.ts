@@ -16,7 +16,17 @@ import type { Catalogue } from '../cards/catalogue.js';
 import type { SiteMap } from '../fhir/site-map.js';
 import { renderAdvicePage } from '../pages/index.js';
 import { dayRange } from '../console/range.js';
-import { consoleNotice, impactPage, listPage, overviewPage, recordPage, signInPage, type Chrome, type ImpactForm, type ListFilters } from '../console/render.js';
+import {
+  consoleNotice,
+  impactPage,
+  listPage,
+  overviewPage,
+  recordPage,
+  signInPage,
+  type Chrome,
+  type ImpactForm,
+  type ListFilters,
+} from '../console/render.js';
 import { CONSOLE_CSS } from '../console/style.js';
 import { ConsoleSessions, SignInLimiter, sameText } from './console-session.js';
 
@@ -42,7 +52,8 @@ export interface ConsoleDeps {
 /** Failed sign-ins allowed per client address and minute. */
 export const SIGN_IN_FAILURES_PER_MINUTE = 5;
 
-export const CONSOLE_CSP = "default-src 'self'; script-src 'none'; object-src 'none'; base-uri 'none'; form-action 'self'; frame-ancestors 'none'";
+export const CONSOLE_CSP =
+  "default-src 'self'; script-src 'none'; object-src 'none'; base-uri 'none'; form-action 'self'; frame-ancestors 'none'";
 
 const ADVICE_ID = /^[A-Za-z0-9-]{1,64}$/;
 const optional = <T extends z.ZodType>(t: T) => z.preprocess((v) => (v === '' ? undefined : v), t.optional());
@@ -87,7 +98,14 @@ export function mountConsole(app: Express, deps: ConsoleDeps): void {
       });
     }
     if (req.method === 'GET') return res.redirect(303, found.expired ? '/console/sign-in?ended=1' : '/console/sign-in');
-    return send(res, 401, consoleNotice('Not signed in', found.expired ? 'Your console session has ended. Sign in again.' : 'Sign in to use the audit console.'));
+    return send(
+      res,
+      401,
+      consoleNotice(
+        'Not signed in',
+        found.expired ? 'Your console session has ended. Sign in again.' : 'Sign in to use the audit console.',
+      ),
+    );
   };
   const accessOf = (res: Response): Access => (res.locals as { console: Access }).console;
   /** The POST's CSRF field against the session's token (or, on the proxy path, the double-submit cookie). */
@@ -97,9 +115,11 @@ export function mountConsole(app: Express, deps: ConsoleDeps): void {
     if (a.chrome.session) return typeof presented === 'string' && sameText(presented, a.chrome.csrf);
     return sessions.formTokenMatches(req, presented);
   };
-  const wrap = (fn: (req: Request, res: Response) => Promise<void>): RequestHandler => (req, res, next: NextFunction) => {
-    fn(req, res).catch(next);
-  };
+  const wrap =
+    (fn: (req: Request, res: Response) => Promise<void>): RequestHandler =>
+    (req, res, next: NextFunction) => {
+      fn(req, res).catch(next);
+    };
 
   app.get('/console/style.css', (_req, res) => {
     res.setHeader('Content-Security-Policy', CONSOLE_CSP);
@@ -109,13 +129,22 @@ export function mountConsole(app: Express, deps: ConsoleDeps): void {
 
   app.get('/console/sign-in', (req, res) => {
     if (sessions.find(req).session) return res.redirect(303, '/console');
-    send(res, 200, signInPage({ csrf: sessions.formToken(req, res), available: !!matches, ...(req.query['ended'] ? { message: 'Your console session has ended. Sign in again.' } : {}) }));
+    send(
+      res,
+      200,
+      signInPage({
+        csrf: sessions.formToken(req, res),
+        available: !!matches,
+        ...(req.query['ended'] ? { message: 'Your console session has ended. Sign in again.' } : {}),
+      }),
+    );
   });
 
   app.post('/console/sign-in', form, (req, res) => {
     const addr = req.socket.remoteAddress ?? 'unknown';
     const body = (req.body ?? {}) as Record<string, unknown>;
-    const again = (status: number, message: string) => send(res, status, signInPage({ csrf: sessions.formToken(req, res), available: !!matches, message }));
+    const again = (status: number, message: string) =>
+      send(res, status, signInPage({ csrf: sessions.formToken(req, res), available: !!matches, message }));
     // A sign-in form from another site (login CSRF) lacks the double-submit token: refused before the credential is looked at.
     if (!sessions.formTokenMatches(req, body['csrf'])) {
       deps.log.warn({ console: 'sign-in refused', reason: 'form token missing or wrong' }, 'console sign-in refused');
@@ -140,88 +169,173 @@ export function mountConsole(app: Express, deps: ConsoleDeps): void {
   });
 
   app.post('/console/sign-out', form, guard, (req, res) => {
-    if (!csrfOk(req, res)) return send(res, 403, consoleNotice('Refused', 'The form did not carry this session\'s token. Reload the page and try again.', accessOf(res).chrome));
+    if (!csrfOk(req, res))
+      return send(
+        res,
+        403,
+        consoleNotice('Refused', "The form did not carry this session's token. Reload the page and try again.", accessOf(res).chrome),
+      );
     sessions.end(req, res);
     res.redirect(303, '/console/sign-in');
   });
 
-  app.get('/console', guard, wrap(async (req, res) => {
-    const { chrome } = accessOf(res);
-    const r = dayRange(req.query['from'], req.query['to'], deps.now());
-    const service = typeof req.query['service'] === 'string' && /^[A-Za-z0-9._-]{1,64}$/.test(req.query['service']) ? req.query['service'] : undefined;
-    if (!r.ok) return send(res, 400, consoleNotice('Date range not usable', r.message, chrome));
-    const [aggregates, chain] = await Promise.all([
-      deps.store.overview({ from: r.range.fromInstant, to: r.range.toInstant, ...(service ? { service } : {}) }),
-      deps.store.verifyChain(),
-    ]);
-    send(res, 200, await overviewPage({ chrome, range: r.range, aggregates, chain, ...(service ? { service } : {}) }));
-  }));
+  app.get(
+    '/console',
+    guard,
+    wrap(async (req, res) => {
+      const { chrome } = accessOf(res);
+      const r = dayRange(req.query['from'], req.query['to'], deps.now());
+      const service =
+        typeof req.query['service'] === 'string' && /^[A-Za-z0-9._-]{1,64}$/.test(req.query['service']) ? req.query['service'] : undefined;
+      if (!r.ok) return send(res, 400, consoleNotice('Date range not usable', r.message, chrome));
+      const [aggregates, chain] = await Promise.all([
+        deps.store.overview({ from: r.range.fromInstant, to: r.range.toInstant, ...(service ? { service } : {}) }),
+        deps.store.verifyChain(),
+      ]);
+      send(res, 200, await overviewPage({ chrome, range: r.range, aggregates, chain, ...(service ? { service } : {}) }));
+    }),
+  );
 
-  app.get('/console/advice', guard, wrap(async (req, res) => {
-    const { chrome } = accessOf(res);
-    const q = listQuery.safeParse(req.query);
-    if (!q.success) return send(res, 400, consoleNotice('Filters not usable', `Not usable: ${q.error.issues.map((i) => i.path.join('.')).join(', ')}.`, chrome));
-    const r = dayRange(q.data.from, q.data.to, deps.now());
-    if (!r.ok) return send(res, 400, consoleNotice('Date range not usable', r.message, chrome));
-    const d = q.data;
-    const page = await deps.store.list({
-      limit: LIST_PAGE, from: r.range.fromInstant, to: r.range.toInstant,
-      ...(d.service ? { service: d.service } : {}), ...(d.patient ? { patientId: d.patient } : {}),
-      ...(d.indicator ? { indicator: d.indicator as TopIndicator } : {}), ...(d.responsiveness ? { responsiveness: d.responsiveness } : {}),
-      ...(d.tolerance ? { tolerance: d.tolerance } : {}), ...(d.feedback ? { feedback: d.feedback as FeedbackFilter } : {}), ...(d.cursor ? { cursor: d.cursor } : {}),
-    });
-    const filters: ListFilters = {
-      from: r.range.from, to: r.range.to, ...(d.service ? { service: d.service } : {}), ...(d.patient ? { patient: d.patient } : {}), ...(d.indicator ? { indicator: d.indicator } : {}),
-      ...(d.responsiveness ? { responsiveness: d.responsiveness } : {}), ...(d.tolerance ? { tolerance: d.tolerance } : {}), ...(d.feedback ? { feedback: d.feedback } : {}),
-    };
-    const qs = (extra: Record<string, string>) => `/console/advice?${new URLSearchParams({ ...(filters as unknown as Record<string, string>), ...extra }).toString()}`;
-    send(res, 200, listPage({
-      chrome, filters, items: page.items, zoneNote: 'Times in UTC.',
-      ...(page.nextCursor ? { nextHref: qs({ cursor: page.nextCursor }) } : {}), ...(d.cursor ? { firstHref: qs({}) } : {}),
-    }));
-  }));
+  app.get(
+    '/console/advice',
+    guard,
+    wrap(async (req, res) => {
+      const { chrome } = accessOf(res);
+      const q = listQuery.safeParse(req.query);
+      if (!q.success)
+        return send(
+          res,
+          400,
+          consoleNotice('Filters not usable', `Not usable: ${q.error.issues.map((i) => i.path.join('.')).join(', ')}.`, chrome),
+        );
+      const r = dayRange(q.data.from, q.data.to, deps.now());
+      if (!r.ok) return send(res, 400, consoleNotice('Date range not usable', r.message, chrome));
+      const d = q.data;
+      const page = await deps.store.list({
+        limit: LIST_PAGE,
+        from: r.range.fromInstant,
+        to: r.range.toInstant,
+        ...(d.service ? { service: d.service } : {}),
+        ...(d.patient ? { patientId: d.patient } : {}),
+        ...(d.indicator ? { indicator: d.indicator as TopIndicator } : {}),
+        ...(d.responsiveness ? { responsiveness: d.responsiveness } : {}),
+        ...(d.tolerance ? { tolerance: d.tolerance } : {}),
+        ...(d.feedback ? { feedback: d.feedback as FeedbackFilter } : {}),
+        ...(d.cursor ? { cursor: d.cursor } : {}),
+      });
+      const filters: ListFilters = {
+        from: r.range.from,
+        to: r.range.to,
+        ...(d.service ? { service: d.service } : {}),
+        ...(d.patient ? { patient: d.patient } : {}),
+        ...(d.indicator ? { indicator: d.indicator } : {}),
+        ...(d.responsiveness ? { responsiveness: d.responsiveness } : {}),
+        ...(d.tolerance ? { tolerance: d.tolerance } : {}),
+        ...(d.feedback ? { feedback: d.feedback } : {}),
+      };
+      const qs = (extra: Record<string, string>) =>
+        `/console/advice?${new URLSearchParams({ ...(filters as unknown as Record<string, string>), ...extra }).toString()}`;
+      send(
+        res,
+        200,
+        listPage({
+          chrome,
+          filters,
+          items: page.items,
+          zoneNote: 'Times in UTC.',
+          ...(page.nextCursor ? { nextHref: qs({ cursor: page.nextCursor }) } : {}),
+          ...(d.cursor ? { firstHref: qs({}) } : {}),
+        }),
+      );
+    }),
+  );
 
-  app.get('/console/advice/:id', guard, wrap(async (req, res) => {
-    const { chrome } = accessOf(res);
-    const id = String(req.params['id']);
-    const record = ADVICE_ID.test(id) ? await deps.store.get(id) : undefined;
-    if (!record) return send(res, 404, consoleNotice('No such advice', 'No advice with this id is stored here.', chrome));
-    const reasoning = await renderAdvicePage({
-      record, words: deps.catalogue, cautions: deps.catalogue.cautions,
-      running: { rulesVersion: deps.rulesVersion, thresholds: deps.thresholds }, zone: deps.timeZone,
-    });
-    send(res, 200, recordPage(reasoning, await deps.store.feedbackFor(record.id), record.cardKinds, chrome));
-  }));
+  app.get(
+    '/console/advice/:id',
+    guard,
+    wrap(async (req, res) => {
+      const { chrome } = accessOf(res);
+      const id = String(req.params['id']);
+      const record = ADVICE_ID.test(id) ? await deps.store.get(id) : undefined;
+      if (!record) return send(res, 404, consoleNotice('No such advice', 'No advice with this id is stored here.', chrome));
+      const reasoning = await renderAdvicePage({
+        record,
+        words: deps.catalogue,
+        cautions: deps.catalogue.cautions,
+        running: { rulesVersion: deps.rulesVersion, thresholds: deps.thresholds },
+        zone: deps.timeZone,
+      });
+      send(res, 200, recordPage(reasoning, await deps.store.feedbackFor(record.id), record.cardKinds, chrome));
+    }),
+  );
 
   const emptyForm: ImpactForm = { thresholds: '{\n  "responsiveness": { "ppvThresholdPercent": 13 }\n}' };
-  app.get('/console/impact', guard, wrap(async (_req, res) => {
-    send(res, 200, impactPage({ chrome: accessOf(res).chrome, form: emptyForm, maxPage: MAX_IMPACT_PAGE }));
-  }));
+  app.get(
+    '/console/impact',
+    guard,
+    wrap(async (_req, res) => {
+      send(res, 200, impactPage({ chrome: accessOf(res).chrome, form: emptyForm, maxPage: MAX_IMPACT_PAGE }));
+    }),
+  );
 
-  app.post('/console/impact', form, guard, wrap(async (req, res) => {
-    const { chrome } = accessOf(res);
-    if (!csrfOk(req, res)) return send(res, 403, consoleNotice('Refused', 'The form did not carry this session\'s token. Reload the page and try again.', chrome));
-    const b = (req.body ?? {}) as Record<string, unknown>;
-    const text = (k: string) => (typeof b[k] === 'string' && b[k] !== '' ? (b[k] as string) : undefined);
-    const f: ImpactForm = { thresholds: text('thresholds') ?? '', ...(text('service') ? { service: text('service')! } : {}), ...(text('from') ? { from: text('from')! } : {}), ...(text('to') ? { to: text('to')! } : {}) };
-    const refuse = (message: string) => send(res, 400, impactPage({ chrome, form: f, maxPage: MAX_IMPACT_PAGE, error: message }));
-    let thresholds: unknown;
-    try {
-      thresholds = JSON.parse(f.thresholds);
-    } catch (e) {
-      return refuse(`The candidate thresholds are not valid JSON: ${(e as Error).message.slice(0, 200)}`);
-    }
-    const after = text('after');
-    const parsed = impactRequestSchema.safeParse({
-      thresholds, ...(f.service ? { service: f.service } : {}), ...(f.from ? { from: f.from } : {}), ...(f.to ? { to: f.to } : {}),
-      ...(after !== undefined ? { after: /^\d{1,15}$/.test(after) ? Number(after) : after } : {}),
-    });
-    if (!parsed.success) return refuse(`Not usable: ${parsed.error.issues.slice(0, 5).map((i) => `${i.path.join('.') || 'thresholds'}: ${i.message}`).join('; ')}.`);
-    const p = parsed.data;
-    const page = await runImpactPage(deps.store, {
-      ...p, ...(p.from ? { from: auditInstant(p.from) as string } : {}), ...(p.to ? { to: auditInstant(p.to, true) as string } : {}),
-    }, { catalogue: deps.catalogue, ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}), ...(deps.siteMap ? { siteMap: deps.siteMap } : {}) });
-    if (!page.ok) return refuse(`The candidate thresholds are not usable: ${page.message.slice(0, 1000)}`);
-    send(res, 200, impactPage({ chrome, form: f, maxPage: MAX_IMPACT_PAGE, report: page.body.report }));
-  }));
+  app.post(
+    '/console/impact',
+    form,
+    guard,
+    wrap(async (req, res) => {
+      const { chrome } = accessOf(res);
+      if (!csrfOk(req, res))
+        return send(
+          res,
+          403,
+          consoleNotice('Refused', "The form did not carry this session's token. Reload the page and try again.", chrome),
+        );
+      const b = (req.body ?? {}) as Record<string, unknown>;
+      const text = (k: string) => (typeof b[k] === 'string' && b[k] !== '' ? (b[k] as string) : undefined);
+      const f: ImpactForm = {
+        thresholds: text('thresholds') ?? '',
+        ...(text('service') ? { service: text('service')! } : {}),
+        ...(text('from') ? { from: text('from')! } : {}),
+        ...(text('to') ? { to: text('to')! } : {}),
+      };
+      const refuse = (message: string) => send(res, 400, impactPage({ chrome, form: f, maxPage: MAX_IMPACT_PAGE, error: message }));
+      let thresholds: unknown;
+      try {
+        thresholds = JSON.parse(f.thresholds);
+      } catch (e) {
+        return refuse(`The candidate thresholds are not valid JSON: ${(e as Error).message.slice(0, 200)}`);
+      }
+      const after = text('after');
+      const parsed = impactRequestSchema.safeParse({
+        thresholds,
+        ...(f.service ? { service: f.service } : {}),
+        ...(f.from ? { from: f.from } : {}),
+        ...(f.to ? { to: f.to } : {}),
+        ...(after !== undefined ? { after: /^\d{1,15}$/.test(after) ? Number(after) : after } : {}),
+      });
+      if (!parsed.success)
+        return refuse(
+          `Not usable: ${parsed.error.issues
+            .slice(0, 5)
+            .map((i) => `${i.path.join('.') || 'thresholds'}: ${i.message}`)
+            .join('; ')}.`,
+        );
+      const p = parsed.data;
+      const page = await runImpactPage(
+        deps.store,
+        {
+          ...p,
+          ...(p.from ? { from: auditInstant(p.from) as string } : {}),
+          ...(p.to ? { to: auditInstant(p.to, true) as string } : {}),
+        },
+        {
+          catalogue: deps.catalogue,
+          ...(deps.catalogueDigest ? { catalogueDigest: deps.catalogueDigest } : {}),
+          ...(deps.siteMap ? { siteMap: deps.siteMap } : {}),
+        },
+      );
+      if (!page.ok) return refuse(`The candidate thresholds are not usable: ${page.message.slice(0, 1000)}`);
+      send(res, 200, impactPage({ chrome, form: f, maxPage: MAX_IMPACT_PAGE, report: page.body.report }));
+    }),
+  );
 }

@@ -13,11 +13,20 @@ export const STATUS_OF: Readonly<Record<OutcomeCode, number>> = {
 
 export interface OperationOutcomeBody {
   resourceType: 'OperationOutcome';
-  issue: Array<{ severity: 'error' | 'fatal' | 'warning'; code: IssueType; details: { text: string }; expression?: string[]; diagnostics?: string }>;
+  issue: Array<{
+    severity: 'error' | 'fatal' | 'warning';
+    code: IssueType;
+    details: { text: string };
+    expression?: string[];
+    diagnostics?: string;
+  }>;
 }
 
 export function outcomeBody(issues: readonly OutcomeIssue[], severity: 'error' | 'fatal' = 'error'): OperationOutcomeBody {
-  return { resourceType: 'OperationOutcome', issue: issues.map((i, n) => ({ severity: n === 0 ? severity : 'error', code: i.type, details: { text: i.text } })) };
+  return {
+    resourceType: 'OperationOutcome',
+    issue: issues.map((i, n) => ({ severity: n === 0 ? severity : 'error', code: i.type, details: { text: i.text } })),
+  };
 }
 
 export function operationOutcome(type: IssueType, text: string, severity: 'error' | 'fatal' = 'error'): OperationOutcomeBody {

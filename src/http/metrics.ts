@@ -12,16 +12,37 @@ export interface Metrics {
 export function createMetrics(): Metrics {
   const registry = new Registry();
   collectDefaultMetrics({ register: registry, prefix: 'tidemark_process_' });
-  const requests = new Counter({ name: 'tidemark_http_requests_total', help: 'HTTP requests by route, service and status', labelNames: ['route', 'service', 'status'], registers: [registry] });
-  const latency = new Histogram({
-    name: 'tidemark_http_request_duration_seconds', help: 'HTTP request latency', labelNames: ['route', 'service'],
-    buckets: [0.002, 0.005, 0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1, 2, 5], registers: [registry],
+  const requests = new Counter({
+    name: 'tidemark_http_requests_total',
+    help: 'HTTP requests by route, service and status',
+    labelNames: ['route', 'service', 'status'],
+    registers: [registry],
   });
-  const fhirErrors = new Counter({ name: 'tidemark_fhir_fetch_errors_total', help: 'FHIR gathering failures by kind', labelNames: ['kind'], registers: [registry] });
-  const fhirFetches = new Counter({ name: 'tidemark_fhir_fetches_total', help: 'Prefetch keys by source (prefetch or fhir-server)', labelNames: ['source'], registers: [registry] });
+  const latency = new Histogram({
+    name: 'tidemark_http_request_duration_seconds',
+    help: 'HTTP request latency',
+    labelNames: ['route', 'service'],
+    buckets: [0.002, 0.005, 0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1, 2, 5],
+    registers: [registry],
+  });
+  const fhirErrors = new Counter({
+    name: 'tidemark_fhir_fetch_errors_total',
+    help: 'FHIR gathering failures by kind',
+    labelNames: ['kind'],
+    registers: [registry],
+  });
+  const fhirFetches = new Counter({
+    name: 'tidemark_fhir_fetches_total',
+    help: 'Prefetch keys by source (prefetch or fhir-server)',
+    labelNames: ['source'],
+    registers: [registry],
+  });
   const audit = new Histogram({
-    name: 'tidemark_audit_write_duration_seconds', help: 'Audit record write latency', labelNames: ['ok'],
-    buckets: [0.0005, 0.001, 0.002, 0.005, 0.01, 0.02, 0.05, 0.1, 0.5], registers: [registry],
+    name: 'tidemark_audit_write_duration_seconds',
+    help: 'Audit record write latency',
+    labelNames: ['ok'],
+    buckets: [0.0005, 0.001, 0.002, 0.005, 0.01, 0.02, 0.05, 0.1, 0.5],
+    registers: [registry],
   });
   const known = new Set(['bolus-review-select', 'bolus-review-sign', 'fluid-overview']);
   return {
@@ -36,7 +57,8 @@ export function createMetrics(): Metrics {
     observeGather(outcomes) {
       for (const o of outcomes) {
         if (o.source !== 'none') fhirFetches.inc({ source: o.source });
-        if (['http-error', 'timeout', 'network-error', 'not-fhir', 'truncated', 'too-large', 'redirect'].includes(o.status)) fhirErrors.inc({ kind: o.status });
+        if (['http-error', 'timeout', 'network-error', 'not-fhir', 'truncated', 'too-large', 'redirect'].includes(o.status))
+          fhirErrors.inc({ kind: o.status });
       }
     },
     observeAuditWrite(seconds, ok) {

@@ -32,7 +32,11 @@ const ADVICE_ID = /^[A-Za-z0-9-]{1,64}$/;
 /** CSP of the pages: only this origin, no script at all, framing by the listed origins only. */
 export function pageCsp(frameAncestors: readonly string[]): string {
   return [
-    "default-src 'self'", "script-src 'none'", "object-src 'none'", "base-uri 'none'", "form-action 'none'",
+    "default-src 'self'",
+    "script-src 'none'",
+    "object-src 'none'",
+    "base-uri 'none'",
+    "form-action 'none'",
     `frame-ancestors ${frameAncestors.length ? frameAncestors.join(' ') : "'none'"}`,
   ].join('; ');
 }
@@ -54,15 +58,35 @@ export function mountPages(app: Express, deps: PagesDeps): void {
 
   app.get('/advice/:id', async (req, res) => {
     const id = String(req.params['id']);
-    if (!deps.signer || !ADVICE_ID.test(id)) return send(res, 404, noticePage('No such page', 'There is no reasoning page at this address.'));
+    if (!deps.signer || !ADVICE_ID.test(id))
+      return send(res, 404, noticePage('No such page', 'There is no reasoning page at this address.'));
     const check = deps.signer.verify(id, req.query['exp'], req.query['sig'], deps.now().getTime());
-    if (check === 'expired') return send(res, 403, noticePage('This link has expired', `Links to a reasoning page are valid for ${Math.round(deps.signer.lifetimeMinutes / 60 * 10) / 10} h after the advice. Open the card again from the order to get a fresh link.`));
-    if (check === 'bad') return send(res, 403, noticePage('This link is not valid', 'The link was changed or was not made by this Tidemark service. Open the card again from the order.'));
+    if (check === 'expired')
+      return send(
+        res,
+        403,
+        noticePage(
+          'This link has expired',
+          `Links to a reasoning page are valid for ${Math.round((deps.signer.lifetimeMinutes / 60) * 10) / 10} h after the advice. Open the card again from the order to get a fresh link.`,
+        ),
+      );
+    if (check === 'bad')
+      return send(
+        res,
+        403,
+        noticePage(
+          'This link is not valid',
+          'The link was changed or was not made by this Tidemark service. Open the card again from the order.',
+        ),
+      );
     const record = await deps.store.get(id);
     if (!record) return send(res, 404, noticePage('No such advice', 'No advice with this id is stored here.'));
     const page = await renderAdvicePage({
-      record, words: deps.catalogue, cautions: deps.catalogue.cautions,
-      running: { rulesVersion: deps.rulesVersion, thresholds: deps.thresholds }, zone: deps.timeZone,
+      record,
+      words: deps.catalogue,
+      cautions: deps.catalogue.cautions,
+      running: { rulesVersion: deps.rulesVersion, thresholds: deps.thresholds },
+      zone: deps.timeZone,
     });
     send(res, 200, page);
   });

@@ -11,7 +11,9 @@ const REF: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"
 
 /** Text for an HTML text node or a quoted attribute value. */
 export function h(value: unknown): string {
-  return String(value ?? '').replace(INVISIBLE, '').replace(SPECIAL, (c) => REF[c] as string);
+  return String(value ?? '')
+    .replace(INVISIBLE, '')
+    .replace(SPECIAL, (c) => REF[c] as string);
 }
 
 /** A tagged template whose interpolations are escaped, except values made by `raw` (our own markup). */

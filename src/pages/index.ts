@@ -13,7 +13,10 @@ export async function renderAdvicePage(input: ViewInput & { zone: string }): Pro
   const trends = view.snapshot ? trendsOf(view.snapshot, view.adviceAt) : undefined;
   const plots: RenderedPlot[] = [];
   for (const plot of trends?.plots ?? []) {
-    if (!plot.rows.length) { plots.push({ plot }); continue; }
+    if (!plot.rows.length) {
+      plots.push({ plot });
+      continue;
+    }
     try {
       plots.push({ plot, svg: await plotSvg(plot, trends!, input.zone) });
     } catch {

@@ -12,7 +12,13 @@ import { kindLabel, unitDisplay } from '../cards/render.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
 import { CONFIDENCE_SHORT, NOT_FEASIBLE_WORDS, READ_ON_WORDS, WHAT_IF_TEST_WORDS } from './what-if-words.js';
 
-export interface PageEvidence { label: string; value: string; unit: string; effective: string; ref: string }
+export interface PageEvidence {
+  label: string;
+  value: string;
+  unit: string;
+  effective: string;
+  ref: string;
+}
 export interface PageFinding {
   topic: string;
   ruleId: string;
@@ -43,7 +49,13 @@ export interface PageVerdict {
   assumptions: string[];
 }
 export type GapKind = 'missing' | 'stale' | 'set aside' | 'not obtained';
-export interface PageGap { kind: GapKind; what: string; why: string; ref?: string; /** Values the rule saw but could not use (stale, invalid, confounded). */ evidence: PageEvidence[] }
+export interface PageGap {
+  kind: GapKind;
+  what: string;
+  why: string;
+  ref?: string;
+  /** Values the rule saw but could not use (stale, invalid, confounded). */ evidence: PageEvidence[];
+}
 
 export interface PageWhatIfOutcome {
   result: 'positive' | 'negative';
@@ -137,14 +149,25 @@ function evidenceLabel(kind: string): string {
 }
 
 function evidenceOf(f: Finding): PageEvidence[] {
-  return f.evidence.map((e) => ({ label: evidenceLabel(e.kind), value: String(e.value), unit: unitDisplay(e.unit), effective: e.effective, ref: e.ref }));
+  return f.evidence.map((e) => ({
+    label: evidenceLabel(e.kind),
+    value: String(e.value),
+    unit: unitDisplay(e.unit),
+    effective: e.effective,
+    ref: e.ref,
+  }));
 }
 
 function pageFinding(f: Finding): PageFinding {
   return {
-    topic: f.topic, ruleId: f.ruleId, assessed: f.status === 'assessed', text: f.text,
-    ...(f.reason ? { reason: f.reason } : {}), ...(f.source ? { source: f.source } : {}),
-    ...(f.topic === 'responsiveness' && f.direction ? { direction: f.direction } : {}), ...(f.topic === 'responsiveness' && f.tier ? { tier: f.tier } : {}),
+    topic: f.topic,
+    ruleId: f.ruleId,
+    assessed: f.status === 'assessed',
+    text: f.text,
+    ...(f.reason ? { reason: f.reason } : {}),
+    ...(f.source ? { source: f.source } : {}),
+    ...(f.topic === 'responsiveness' && f.direction ? { direction: f.direction } : {}),
+    ...(f.topic === 'responsiveness' && f.tier ? { tier: f.tier } : {}),
     figures: Object.entries(f.values ?? {}).map(([k, v]) => [k, String(v)]),
     evidence: evidenceOf(f),
   };
@@ -158,7 +181,6 @@ function coverageOf(v: Verdict<string> | undefined, findings: Finding[], topic: 
   return `${of.filter((f) => f.status === 'assessed').length} of ${of.length} findings assessed`;
 }
 
-
 function flatten(v: unknown, prefix = ''): Array<[string, string]> {
   if (v === null || v === undefined) return [];
   if (typeof v === 'number' || typeof v === 'string' || typeof v === 'boolean') return [[prefix, String(v)]];
@@ -169,15 +191,22 @@ function flatten(v: unknown, prefix = ''): Array<[string, string]> {
 function gapsOf(rec: AdviceRecord): PageGap[] {
   const gaps: PageGap[] = [];
   for (const o of rec.gathering) {
-    if (GATHER_PROBLEM.has(o.status)) gaps.push({ kind: 'not obtained', what: `Data: ${o.key}`, why: `${o.status}${o.detail ? `: ${o.detail}` : ''}`, evidence: [] });
+    if (GATHER_PROBLEM.has(o.status))
+      gaps.push({ kind: 'not obtained', what: `Data: ${o.key}`, why: `${o.status}${o.detail ? `: ${o.detail}` : ''}`, evidence: [] });
   }
   for (const f of rec.findings) {
     if (f.status !== 'not-assessed') continue;
     const why = f.reason ?? 'not assessed';
     const kind: GapKind = f.gap ? (GAP_WORDS[f.gap] ?? 'set aside') : gapKindOfText(why);
-    gaps.push({ kind, what: f.text, why: f.gap && !GAP_WORDS[f.gap] ? `${f.gap.replace(/-/g, ' ')}: ${why}` : why, evidence: evidenceOf(f) });
+    gaps.push({
+      kind,
+      what: f.text,
+      why: f.gap && !GAP_WORDS[f.gap] ? `${f.gap.replace(/-/g, ' ')}: ${why}` : why,
+      evidence: evidenceOf(f),
+    });
   }
-  for (const x of rec.snapshot?.excluded ?? []) gaps.push({ kind: 'set aside', what: x.kind ? kindLabel(x.kind) : x.ref, why: `${x.reason}: ${x.detail}`, ref: x.ref, evidence: [] });
+  for (const x of rec.snapshot?.excluded ?? [])
+    gaps.push({ kind: 'set aside', what: x.kind ? kindLabel(x.kind) : x.ref, why: `${x.reason}: ${x.detail}`, ref: x.ref, evidence: [] });
   return gaps;
 }
 
@@ -203,13 +232,16 @@ function whatIfOf(advice: Advice, words: ViewInput['words']): PageWhatIf | undef
   const p = words.phrases;
   return {
     rows: w.rows.map((r) => ({
-      code: r.test, test: WHAT_IF_TEST_WORDS[r.test] ?? r.test, feasible: r.feasible,
+      code: r.test,
+      test: WHAT_IF_TEST_WORDS[r.test] ?? r.test,
+      feasible: r.feasible,
       why: r.notFeasible.map((n) => NOT_FEASIBLE_WORDS[n] ?? n),
       ...(r.outcomes[0] ? { readOn: READ_ON_WORDS[r.outcomes[0].assumed.measured] ?? r.outcomes[0].assumed.measured } : {}),
       ...(r.source ? { source: r.source } : {}),
       decisive: w.decisive === r.test,
       outcomes: r.outcomes.map((o) => ({
-        result: o.result, assumed: assumedText(o),
+        result: o.result,
+        assumed: assumedText(o),
         verdict: `${sentenceStart(p.responsiveness[o.responsiveness] ?? o.responsiveness)}${o.confidence ? `, ${CONFIDENCE_SHORT[o.confidence] ?? o.confidence}` : ''}`,
         ...(o.action ? { action: ACTION_WORDS[o.action] ?? o.action } : {}),
         changes: o.changes,
@@ -238,24 +270,36 @@ export function toPageView(input: ViewInput): PageView {
     const rCov = coverageOf(r, advice.findings, 'responsiveness');
     const tCov = coverageOf(t, advice.findings, 'tolerance');
     verdicts.push({
-      key: 'responsiveness', question: 'Will the heart answer volume? (responsiveness)',
+      key: 'responsiveness',
+      question: 'Will the heart answer volume? (responsiveness)',
       value: sentenceStart(r ? p.responsiveness[r.value] : p.responsiveness.unassessed),
       rationale: r?.rationale ?? 'No responsiveness verdict was made.',
-      ...(r?.confidence ? { confidence: p.confidence[r.confidence] } : {}), ...(rCov ? { coverage: rCov } : {}),
-      decidingRules: r?.decidingRules ?? [], ...(r?.nextTest ? { nextTest: words.nextTests[r.nextTest] } : {}), assumptions: r?.assumptions ?? [],
+      ...(r?.confidence ? { confidence: p.confidence[r.confidence] } : {}),
+      ...(rCov ? { coverage: rCov } : {}),
+      decidingRules: r?.decidingRules ?? [],
+      ...(r?.nextTest ? { nextTest: words.nextTests[r.nextTest] } : {}),
+      assumptions: r?.assumptions ?? [],
     });
     verdicts.push({
-      key: 'tolerance', question: 'Can the patient take it? (tolerance)',
+      key: 'tolerance',
+      question: 'Can the patient take it? (tolerance)',
       value: sentenceStart(t ? p.tolerance[t.value] : p.tolerance.unassessed),
       rationale: t?.rationale ?? 'No tolerance verdict was made.',
-      ...(t?.confidence ? { confidence: p.confidence[t.confidence] } : {}), ...(tCov ? { coverage: tCov } : {}),
-      decidingRules: t?.decidingRules ?? [], assumptions: t?.assumptions ?? [],
+      ...(t?.confidence ? { confidence: p.confidence[t.confidence] } : {}),
+      ...(tCov ? { coverage: tCov } : {}),
+      decidingRules: t?.decidingRules ?? [],
+      assumptions: t?.assumptions ?? [],
     });
     if (n) {
       const nCov = coverageOf(n, advice.findings, 'perfusion');
       verdicts.push({
-        key: 'need', question: 'Is there anything to treat? (need, perfusion)', value: sentenceStart(p.need[n.value]), rationale: n.rationale,
-        ...(nCov ? { coverage: nCov } : {}), decidingRules: n.decidingRules, assumptions: n.assumptions ?? [],
+        key: 'need',
+        question: 'Is there anything to treat? (need, perfusion)',
+        value: sentenceStart(p.need[n.value]),
+        rationale: n.rationale,
+        ...(nCov ? { coverage: nCov } : {}),
+        decidingRules: n.decidingRules,
+        assumptions: n.assumptions ?? [],
       });
     }
   }
@@ -263,13 +307,21 @@ export function toPageView(input: ViewInput): PageView {
   const findings = rec.findings.filter((f) => f.topic !== 'order').map(pageFinding);
   const whatIf = advice ? whatIfOf(advice, words) : undefined;
   return {
-    adviceId: rec.id, service: rec.service, hook: rec.hook,
+    adviceId: rec.id,
+    service: rec.service,
+    hook: rec.hook,
     ...patientRefOf(rec),
     ...(rec.snapshot?.encounter?.ref ? { encounterRef: rec.snapshot.encounter.ref } : {}),
     recordedAt: rec.recordedAt,
     adviceAt: advice?.now ?? rec.snapshot?.now ?? rec.recordedAt,
     answered: rec.outcome === 'answered',
-    ...(order ? { headline: words.headlines[order.headline] ?? order.headline, indicator: order.indicator, action: ACTION_WORDS[order.action] ?? order.action } : {}),
+    ...(order
+      ? {
+          headline: words.headlines[order.headline] ?? order.headline,
+          indicator: order.indicator,
+          action: ACTION_WORDS[order.action] ?? order.action,
+        }
+      : {}),
     ...(advice?.phase ? { phase: p.phase[advice.phase.value] } : {}),
     reasons: order?.reasons ?? [],
     alternatives: (order?.alternatives ?? []).map((a) => words.alternatives[a] ?? a),

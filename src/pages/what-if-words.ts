@@ -15,7 +15,8 @@ export const WHAT_IF_TEST_WORDS: Record<NextTestKind, string> = {
 
 export const NOT_FEASIBLE_WORDS: Record<NotFeasible, string> = {
   'raised-abdominal-pressure': 'intra-abdominal pressure is raised, which makes a leg raise unreliable',
-  'no-flow-monitor': 'no cardiac output or stroke volume monitor is in use (no recent reading), and the effect is too brief to catch without one',
+  'no-flow-monitor':
+    'no cardiac output or stroke volume monitor is in use (no recent reading), and the effect is too brief to catch without one',
   'not-ventilated': 'controlled ventilation is not charted',
   'no-arterial-line': 'no current PPV or SVV from an arterial line to read it on',
   'spontaneous-breathing': 'the patient breathes spontaneously (or makes breathing efforts on the ventilator)',
@@ -27,8 +28,13 @@ export const NOT_FEASIBLE_WORDS: Record<NotFeasible, string> = {
 
 /** What the hypothetical result is read on. */
 export const READ_ON_WORDS: Record<string, string> = {
-  cardiacOutput: 'cardiac output', cardiacIndex: 'cardiac index', strokeVolume: 'stroke volume', vti: 'VTI by echo',
-  pulsePressure: 'pulse pressure', ppv: 'PPV', svv: 'SVV',
+  cardiacOutput: 'cardiac output',
+  cardiacIndex: 'cardiac index',
+  strokeVolume: 'stroke volume',
+  vti: 'VTI by echo',
+  pulsePressure: 'pulse pressure',
+  ppv: 'PPV',
+  svv: 'SVV',
 };
 
 export const CONFIDENCE_SHORT: Record<string, string> = { high: 'high confidence', moderate: 'moderate confidence', low: 'low confidence' };

@@ -65,7 +65,11 @@ function overlaps(a: VolumeRecord, b: VolumeRecord): boolean {
  */
 export function withoutOverlaps<T extends VolumeRecord>(records: readonly T[]): { kept: T[]; dropped: T[] } {
   const sorted = [...records].sort(
-    (a, b) => b.endMs - a.endMs || (b.endMs - b.startMs) - (a.endMs - a.startMs) || (Number(a.id > b.id) - Number(a.id < b.id)) || a.volumeMl - b.volumeMl,
+    (a, b) =>
+      b.endMs - a.endMs ||
+      b.endMs - b.startMs - (a.endMs - a.startMs) ||
+      Number(a.id > b.id) - Number(a.id < b.id) ||
+      a.volumeMl - b.volumeMl,
   );
   const kept: T[] = [];
   const dropped: T[] = [];

@@ -5,7 +5,14 @@
  */
 import type { FhirResource, Observation } from 'fhir/r4.js';
 import type { Advice } from '../assess/types.js';
-import { CODED_KINDS, CODED_OBSERVATION_CODES, DYNAMIC_TEST_CODES, DYNAMIC_TESTS, NUMERIC_KINDS, OBSERVATION_CODES } from '../fhir/codes.js';
+import {
+  CODED_KINDS,
+  CODED_OBSERVATION_CODES,
+  DYNAMIC_TEST_CODES,
+  DYNAMIC_TESTS,
+  NUMERIC_KINDS,
+  OBSERVATION_CODES,
+} from '../fhir/codes.js';
 import type { GatherOutcome } from '../hooks/gather-types.js';
 import { siteCodeOf, type SiteMap } from '../fhir/site-map.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
@@ -77,7 +84,12 @@ function readable(o: Observation, siteMap: SiteMap): boolean {
  * The report for one patient. `runs`: one per service; `survey`: the patient's Observations from a search without a
  * code filter (the services' searches ask for known codes only, so a code no map covers is found there).
  */
-export function patientReadiness(patientId: string, runs: readonly ServiceRun[], survey: readonly FhirResource[], siteMap: SiteMap): PatientReadiness {
+export function patientReadiness(
+  patientId: string,
+  runs: readonly ServiceRun[],
+  survey: readonly FhirResource[],
+  siteMap: SiteMap,
+): PatientReadiness {
   const seen = new Set<string>();
   const measurements: PatientSnapshot['measurements'] = [];
   const coded: PatientSnapshot['coded'] = [];
@@ -104,7 +116,11 @@ export function patientReadiness(patientId: string, runs: readonly ServiceRun[],
     return [...out.values()];
   };
   const markers: MarkerLine[] = [...NUMERIC_KINDS, ...CODED_KINDS, ...DYNAMIC_TESTS].map((marker) => {
-    const found = [...measurements.filter((m) => m.kind === marker), ...coded.filter((m) => m.kind === marker), ...dynamic.filter((m) => m.kind === marker)];
+    const found = [
+      ...measurements.filter((m) => m.kind === marker),
+      ...coded.filter((m) => m.kind === marker),
+      ...dynamic.filter((m) => m.kind === marker),
+    ];
     const left = excluded.filter((e) => e.kind === marker);
     const line: MarkerLine = { marker, status: left.length ? 'excluded' : 'absent' };
     if (found.length) line.status = 'read';
@@ -153,7 +169,13 @@ export function patientReadiness(patientId: string, runs: readonly ServiceRun[],
     rulesAssessed: r.advice.findings.filter((f) => f.status === 'assessed').length,
     rulesNotAssessed: r.advice.findings.filter((f) => f.status === 'not-assessed').length,
   }));
-  return { patientId, markers, leftOut: byReason(excluded.filter((e) => !e.kind)), unmapped: [...unmapped.values()].sort((a, b) => b.count - a.count || (a.code < b.code ? -1 : 1)), services };
+  return {
+    patientId,
+    markers,
+    leftOut: byReason(excluded.filter((e) => !e.kind)),
+    unmapped: [...unmapped.values()].sort((a, b) => b.count - a.count || (a.code < b.code ? -1 : 1)),
+    services,
+  };
 }
 
 export interface ReadinessReport {
@@ -188,10 +210,14 @@ export function writeReport(report: ReadinessReport, format: 'text' | 'json', wr
     write(`  Found and read (${read.length}):\n`);
     for (const m of read) {
       const r = m.read as NonNullable<MarkerLine['read']>;
-      write(`    ${m.marker.padEnd(24)} ${String(r.count).padStart(4)} ${r.count === 1 ? 'value, ' : 'values,'} newest ${age(r.newestAgeMinutes)} old${r.throughSiteMap ? `, ${r.throughSiteMap} through a site map` : ''}\n`);
+      write(
+        `    ${m.marker.padEnd(24)} ${String(r.count).padStart(4)} ${r.count === 1 ? 'value, ' : 'values,'} newest ${age(r.newestAgeMinutes)} old${r.throughSiteMap ? `, ${r.throughSiteMap} through a site map` : ''}\n`,
+      );
     }
     write(`  Found but excluded (${excl.length}):\n`);
-    for (const m of excl) for (const e of m.excluded ?? []) write(`    ${m.marker.padEnd(24)} ${String(e.count).padStart(4)} × ${e.reason}: ${clean(e.example)}\n`);
+    for (const m of excl)
+      for (const e of m.excluded ?? [])
+        write(`    ${m.marker.padEnd(24)} ${String(e.count).padStart(4)} × ${e.reason}: ${clean(e.example)}\n`);
     if (p.leftOut.length) {
       write(`  Left out before reading (${p.leftOut.reduce((n, e) => n + e.count, 0)}):\n`);
       for (const e of p.leftOut) write(`    ${String(e.count).padStart(4)} × ${e.reason}: ${clean(e.example)}\n`);
@@ -200,14 +226,24 @@ export function writeReport(report: ReadinessReport, format: 'text' | 'json', wr
     if (p.survey?.problem) surveyed = `; the search of all Observations failed: ${p.survey.problem}, so this list may be incomplete`;
     else if (p.survey) surveyed = `; from the newest ${p.survey.count} Observations`;
     write(`  Present under a code no map covers (${p.unmapped.length}${surveyed}):\n`);
-    for (const u of p.unmapped) write(`    ${clean(u.system)} | ${clean(u.code)}${u.display ? ` "${clean(u.display)}"` : ''} × ${u.count}${u.note ? ` (${u.note})` : ''}\n`);
+    for (const u of p.unmapped)
+      write(
+        `    ${clean(u.system)} | ${clean(u.code)}${u.display ? ` "${clean(u.display)}"` : ''} × ${u.count}${u.note ? ` (${u.note})` : ''}\n`,
+      );
     write(`  Absent (${absent.length}): ${absent.map((m) => m.marker).join(', ') || '(none)'}\n`);
     for (const s of p.services) {
-      const verdicts = [`need ${s.need ?? 'no verdict'}`, `responsiveness ${s.responsiveness ?? 'no verdict'}`, `tolerance ${s.tolerance ?? 'no verdict'}`];
+      const verdicts = [
+        `need ${s.need ?? 'no verdict'}`,
+        `responsiveness ${s.responsiveness ?? 'no verdict'}`,
+        `tolerance ${s.tolerance ?? 'no verdict'}`,
+      ];
       if (s.hook !== 'patient-view') verdicts.push(`sample order ${s.recommendation ?? 'no recommendation'}`);
-      write(`  ${s.serviceId} (${s.hook}): ${verdicts.join(' · ')} · findings assessed ${s.rulesAssessed}, not assessed ${s.rulesNotAssessed}\n`);
+      write(
+        `  ${s.serviceId} (${s.hook}): ${verdicts.join(' · ')} · findings assessed ${s.rulesAssessed}, not assessed ${s.rulesNotAssessed}\n`,
+      );
       const gaps = s.gathering.filter((g) => g.status !== 'ok' && g.status !== 'no-data');
-      if (gaps.length) write(`    not gathered: ${gaps.map((g) => `${g.key} ${g.status}${g.detail ? ` (${clean(g.detail)})` : ''}`).join('; ')}\n`);
+      if (gaps.length)
+        write(`    not gathered: ${gaps.map((g) => `${g.key} ${g.status}${g.detail ? ` (${clean(g.detail)})` : ''}`).join('; ')}\n`);
     }
   }
 }

@@ -39,29 +39,64 @@ export const SURVEY_COUNT = 200;
  */
 function sampleOrder(patientId: string): MedicationRequest {
   return {
-    resourceType: 'MedicationRequest', id: 'readiness-sample-bolus', status: 'draft', intent: 'order',
+    resourceType: 'MedicationRequest',
+    id: 'readiness-sample-bolus',
+    status: 'draft',
+    intent: 'order',
     subject: { reference: `Patient/${patientId}` },
     medicationCodeableConcept: {
-      coding: [{ system: RXNORM, code: '847630', display: 'calcium chloride 0.2 MG/ML / potassium chloride 0.3 MG/ML / sodium chloride 6 MG/ML / sodium lactate 3.1 MG/ML Injectable Solution' }],
+      coding: [
+        {
+          system: RXNORM,
+          code: '847630',
+          display:
+            'calcium chloride 0.2 MG/ML / potassium chloride 0.3 MG/ML / sodium chloride 6 MG/ML / sodium lactate 3.1 MG/ML Injectable Solution',
+        },
+      ],
       text: 'Balanced crystalloid 500 mL IV bolus (readiness sample)',
     },
-    dosageInstruction: [{
-      route: { coding: [{ system: SNOMED, code: '47625008', display: 'Intravenous route' }] },
-      timing: { repeat: { duration: 15, durationUnit: 'min' } },
-      doseAndRate: [{ doseQuantity: { value: 500, unit: 'mL', system: 'http://unitsofmeasure.org', code: 'mL' } }],
-    }],
+    dosageInstruction: [
+      {
+        route: { coding: [{ system: SNOMED, code: '47625008', display: 'Intravenous route' }] },
+        timing: { repeat: { duration: 15, durationUnit: 'min' } },
+        doseAndRate: [{ doseQuantity: { value: 500, unit: 'mL', system: 'http://unitsofmeasure.org', code: 'mL' } }],
+      },
+    ],
   };
 }
 
 /** The CDS Hooks 2.0 request a service would be called with for this patient. */
-export function hookRequestFor(service: ServiceDefinition, patientId: string, fhirServer: string, token?: string, encounterId?: string): unknown {
+export function hookRequestFor(
+  service: ServiceDefinition,
+  patientId: string,
+  fhirServer: string,
+  token?: string,
+  encounterId?: string,
+): unknown {
   const order = sampleOrder(patientId);
-  const context: Record<string, unknown> = { userId: 'Practitioner/tidemark-readiness', patientId, ...(encounterId ? { encounterId } : {}) };
-  if (service.hook !== 'patient-view') context['draftOrders'] = { resourceType: 'Bundle', type: 'collection', entry: [{ resource: order }] };
+  const context: Record<string, unknown> = {
+    userId: 'Practitioner/tidemark-readiness',
+    patientId,
+    ...(encounterId ? { encounterId } : {}),
+  };
+  if (service.hook !== 'patient-view')
+    context['draftOrders'] = { resourceType: 'Bundle', type: 'collection', entry: [{ resource: order }] };
   if (service.hook === 'order-select') context['selections'] = [`MedicationRequest/${order.id}`];
   return {
-    hook: service.hook, hookInstance: randomUUID(), fhirServer,
-    ...(token ? { fhirAuthorization: { access_token: token, token_type: 'Bearer', expires_in: 300, scope: 'patient/*.read', subject: 'tidemark-readiness' } } : {}),
+    hook: service.hook,
+    hookInstance: randomUUID(),
+    fhirServer,
+    ...(token
+      ? {
+          fhirAuthorization: {
+            access_token: token,
+            token_type: 'Bearer',
+            expires_in: 300,
+            scope: 'patient/*.read',
+            subject: 'tidemark-readiness',
+          },
+        }
+      : {}),
     context,
   };
 }
@@ -72,8 +107,11 @@ export async function runReadiness(opts: ReadinessOptions): Promise<ReadinessRep
   const thresholds = resolveThresholds(opts.cfg.file.thresholds ?? {});
   const version = rulesVersion(loadCatalogue().digest, thresholds, undefined, opts.cfg.siteMap);
   const gatherOptions = {
-    budgetMs: opts.cfg.TIDEMARK_FHIR_BUDGET_MS, maxPages: opts.cfg.TIDEMARK_FHIR_MAX_PAGES, concurrency: opts.cfg.TIDEMARK_FHIR_CONCURRENCY,
-    maxResponseBytes: opts.cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES, maxCallBytes: opts.cfg.TIDEMARK_FHIR_MAX_CALL_BYTES,
+    budgetMs: opts.cfg.TIDEMARK_FHIR_BUDGET_MS,
+    maxPages: opts.cfg.TIDEMARK_FHIR_MAX_PAGES,
+    concurrency: opts.cfg.TIDEMARK_FHIR_CONCURRENCY,
+    maxResponseBytes: opts.cfg.TIDEMARK_FHIR_MAX_RESPONSE_BYTES,
+    maxCallBytes: opts.cfg.TIDEMARK_FHIR_MAX_CALL_BYTES,
   };
   const makeFetcher = opts.makeFetcher ?? fhirFetcher;
   const services = servicesFor(opts.cfg.siteMap);
@@ -81,7 +119,10 @@ export async function runReadiness(opts: ReadinessOptions): Promise<ReadinessRep
   for (const patientId of opts.patients) {
     const runs: ServiceRun[] = [];
     // The report's own two searches, with the same byte caps as a call.
-    const fetcher = makeFetcher(opts.fhirServer, opts.token, { maxResponseBytes: gatherOptions.maxResponseBytes, maxCallBytes: gatherOptions.maxCallBytes });
+    const fetcher = makeFetcher(opts.fhirServer, opts.token, {
+      maxResponseBytes: gatherOptions.maxResponseBytes,
+      maxCallBytes: gatherOptions.maxCallBytes,
+    });
     const search = (path: string) => searchUnder(fetcher, opts.fhirServer, path, gatherOptions.budgetMs);
     // The EHR names the encounter in the hook context; the report takes the patient's newest one in progress.
     const encounterId = await currentEncounter(search, patientId);
@@ -89,12 +130,30 @@ export async function runReadiness(opts: ReadinessOptions): Promise<ReadinessRep
       const request = hookRequestSchema.parse(hookRequestFor(service, patientId, opts.fhirServer, opts.token, encounterId));
       const gathered = await gather(request, service, gatherOptions, makeFetcher);
       const ctx = request.context as { draftOrders?: { entry?: Array<{ resource?: unknown }> }; selections?: string[] };
-      const snapshot = buildSnapshot(gathered.resources, { patientId, ...(encounterId ? { encounterId } : {}), ...(ctx.draftOrders ? { draftOrders: ctx.draftOrders } : {}), ...(ctx.selections ? { selections: ctx.selections } : {}) }, now, siteMap);
-      runs.push({ serviceId: service.id, hook: service.hook, outcomes: gathered.outcomes, resources: gathered.resources, snapshot, advice: assess(snapshot, now, thresholds, version) });
+      const snapshot = buildSnapshot(
+        gathered.resources,
+        {
+          patientId,
+          ...(encounterId ? { encounterId } : {}),
+          ...(ctx.draftOrders ? { draftOrders: ctx.draftOrders } : {}),
+          ...(ctx.selections ? { selections: ctx.selections } : {}),
+        },
+        now,
+        siteMap,
+      );
+      runs.push({
+        serviceId: service.id,
+        hook: service.hook,
+        outcomes: gathered.outcomes,
+        resources: gathered.resources,
+        snapshot,
+        advice: assess(snapshot, now, thresholds, version),
+      });
     }
     const survey = await surveyObservations(search, patientId);
     patients.push({
-      ...patientReadiness(patientId, runs, survey.resources, siteMap), ...(encounterId ? { encounterId } : {}),
+      ...patientReadiness(patientId, runs, survey.resources, siteMap),
+      ...(encounterId ? { encounterId } : {}),
       survey: { count: survey.resources.length, ...(survey.problem ? { problem: survey.problem } : {}) },
     });
   }

@@ -18,7 +18,14 @@ import { readObservation } from './readers/observation.js';
 import { readPatient } from './readers/patient.js';
 import { parseTimeMs } from './time.js';
 import type {
-  CodedMeasurement, ConditionEntry, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
+  CodedMeasurement,
+  ConditionEntry,
+  DynamicTestResult,
+  Exclusion,
+  FluidGiven,
+  Measurement,
+  PatientSnapshot,
+  VasoactiveDrug,
 } from './types.js';
 
 export { kindLookup } from './readers/observation.js';
@@ -52,7 +59,12 @@ function belongs(ref: string, subject: { reference?: string | undefined } | unde
 const newestFirst = (a: { effective: string }, b: { effective: string }) => parseTimeMs(b.effective) - parseTimeMs(a.effective);
 
 /** `siteMap`: the site's ConceptMaps and unit hints, loaded and checked at start (src/fhir/site-map.ts); none by default. */
-export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotContext, now: Date, siteMap: SiteMap = EMPTY_SITE_MAP): PatientSnapshot {
+export function buildSnapshot(
+  resources: readonly FhirResource[],
+  ctx: SnapshotContext,
+  now: Date,
+  siteMap: SiteMap = EMPTY_SITE_MAP,
+): PatientSnapshot {
   const patientRef = `Patient/${ctx.patientId}`;
   const read: ReadContext = { now, nowMs: now.getTime(), patientRef, siteMap };
   const excluded: Exclusion[] = [];
@@ -78,7 +90,14 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
     if (!r || typeof r !== 'object') continue;
     // An id that is not a FHIR id (1–64 of A-Z a-z 0-9 - .) would be copied into every finding's reference.
     if (r.id !== undefined && !FHIR_ID.test(r.id)) {
-      if (TYPES_READ.has(r.resourceType)) excluded.push(exclusion(`${r.resourceType}/(invalid id)`, 'malformed', `the id is not a FHIR id (1-64 of A-Z a-z 0-9 - .; ${String(r.id).length} characters)`));
+      if (TYPES_READ.has(r.resourceType))
+        excluded.push(
+          exclusion(
+            `${r.resourceType}/(invalid id)`,
+            'malformed',
+            `the id is not a FHIR id (1-64 of A-Z a-z 0-9 - .; ${String(r.id).length} characters)`,
+          ),
+        );
       continue;
     }
     const ref = `${r.resourceType}/${r.id ?? '(no id)'}`;
@@ -101,7 +120,9 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
   }
 
   // Newest first within each kind; kinds in code-unit order.
-  measurements.sort((a, b) => (a.kind === b.kind ? parseTimeMs(b.effective) - parseTimeMs(a.effective) : Number(a.kind > b.kind) - Number(a.kind < b.kind)));
+  measurements.sort((a, b) =>
+    a.kind === b.kind ? parseTimeMs(b.effective) - parseTimeMs(a.effective) : Number(a.kind > b.kind) - Number(a.kind < b.kind),
+  );
   coded.sort(newestFirst);
   dynamicTests.sort(newestFirst);
   fluids.sort((a, b) => parseTimeMs(b.end) - parseTimeMs(a.end));
@@ -109,8 +130,15 @@ export function buildSnapshot(resources: readonly FhirResource[], ctx: SnapshotC
   excluded.push(...drafts.excluded);
 
   return {
-    patient, ...(encounter ? { encounter } : {}), now: now.toISOString(),
-    measurements, coded, dynamicTests, fluids, vasoactives, conditions,
+    patient,
+    ...(encounter ? { encounter } : {}),
+    now: now.toISOString(),
+    measurements,
+    coded,
+    dynamicTests,
+    fluids,
+    vasoactives,
+    conditions,
     draftOrders: drafts.orders,
     excluded,
   };

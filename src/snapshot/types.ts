@@ -113,8 +113,19 @@ export interface DraftOrder {
 }
 
 export type ExclusionReason =
-  | 'unknown-code' | 'unknown-unit' | 'incompatible-unit' | 'impossible-value' | 'future-time' | 'entered-in-error'
-  | 'cancelled' | 'no-value' | 'censored-value' | 'no-time' | 'unknown-answer' | 'other-patient' | 'malformed';
+  | 'unknown-code'
+  | 'unknown-unit'
+  | 'incompatible-unit'
+  | 'impossible-value'
+  | 'future-time'
+  | 'entered-in-error'
+  | 'cancelled'
+  | 'no-value'
+  | 'censored-value'
+  | 'no-time'
+  | 'unknown-answer'
+  | 'other-patient'
+  | 'malformed';
 
 export interface Exclusion {
   ref: FhirRef;
@@ -125,7 +136,12 @@ export interface Exclusion {
 
 export interface PatientSnapshot {
   patient: { ref: FhirRef; sex: 'male' | 'female' | 'other' | 'unknown'; birthDate?: string; ageYears?: number };
-  encounter?: { ref: FhirRef; start?: string; status?: string; /** The period start was a date alone, taken as the start of that day (UTC). */ timeAssumed?: 'date-only' };
+  encounter?: {
+    ref: FhirRef;
+    start?: string;
+    status?: string;
+    /** The period start was a date alone, taken as the start of that day (UTC). */ timeAssumed?: 'date-only';
+  };
   /** Instant the snapshot was built for (the injected clock). */
   now: string;
   /** All usable numeric measurements, newest first within each kind. */

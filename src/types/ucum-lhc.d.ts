@@ -12,7 +12,12 @@ declare module '@lhncbc/ucum-lhc' {
     suggestions?: unknown;
   }
   interface UcumLhcUtils {
-    convertUnitTo(fromUnit: string, fromVal: number, toUnit: string, options?: { molecularWeight?: number; charge?: number }): ConvertResult;
+    convertUnitTo(
+      fromUnit: string,
+      fromVal: number,
+      toUnit: string,
+      options?: { molecularWeight?: number; charge?: number },
+    ): ConvertResult;
     validateUnitString(unit: string, suggest?: boolean): ValidateResult;
   }
   const ucum: { UcumLhcUtils: { getInstance(): UcumLhcUtils } };

@@ -20,7 +20,14 @@ import { basicResources, NOW, orderSelectRequest, PID, prefetchOf } from '../hel
 import { post, startService, TEST_AUDIT_TOKEN, type Running } from '../helpers/server.js';
 
 const CHROMIUM = process.env['TIDEMARK_CHROMIUM'] ?? '/usr/bin/chromium';
-const ARGS = ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'];
+const ARGS = [
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+  '--no-first-run',
+];
 const IMG = fileURLToPath(new URL(process.env['TIDEMARK_UPDATE_SCREENSHOTS'] === '1' ? '../../docs/img/' : './out/', import.meta.url));
 const SERVICE = 'bolus-review-select';
 const OTHER_PATIENT = 'tm-pat-ward2-031';
@@ -39,8 +46,10 @@ function ppvCase(ppvPercent: number): Record<string, FhirResource[]> {
   r['hemodynamics'] = [b.numeric('ppv-1', PID, 'ppv', ppvPercent, t(6))];
   r['ventilation'] = [b.numeric('vt-1', PID, 'tidalVolume', 600, t(10)), b.numeric('fio2-1', PID, 'fio2', 35, t(10))];
   r['assessments'] = [
-    b.coded('vent-1', PID, 'ventilationMode', 'controlled-no-effort', t(10)), b.coded('rhythm-1', PID, 'heartRhythm', 'sinus', t(10)),
-    b.coded('chest-1', PID, 'chestStatus', 'closed', t(240)), b.numeric('iap-1', PID, 'intraAbdominalPressure', 8, t(120)),
+    b.coded('vent-1', PID, 'ventilationMode', 'controlled-no-effort', t(10)),
+    b.coded('rhythm-1', PID, 'heartRhythm', 'sinus', t(10)),
+    b.coded('chest-1', PID, 'chestStatus', 'closed', t(240)),
+    b.numeric('iap-1', PID, 'intraAbdominalPressure', 8, t(120)),
   ];
   return r;
 }
@@ -51,14 +60,22 @@ let page: Page;
 const ids: Record<'ppv14' | 'ppv17' | 'matrix' | 'copies', string[]> = { ppv14: [], ppv17: [], matrix: [], copies: [] };
 let records: StoredAdvice[] = [];
 let overriddenIds: string[] = [];
-const NOT_HYPO = { system: 'https://tidemark.invented.example/override', code: 'judged-not-hypovolaemic', display: 'Judged not hypovolaemic' };
+const NOT_HYPO = {
+  system: 'https://tidemark.invented.example/override',
+  code: 'judged-not-hypovolaemic',
+  display: 'Judged not hypovolaemic',
+};
 
 /** An invented copy of a stored answer, `days` earlier, with new ids and card uuids (and another patient). */
 function copyOf(r: StoredAdvice, days: number): AdviceRecord {
   const { seq: _s, hash: _h, prevHash: _p, ...rec } = r;
   const uuids = new Map(r.cards.map((c) => [c.uuid ?? '', randomUUID()]));
   return {
-    ...rec, id: randomUUID(), hookInstance: randomUUID(), recordedAt: new Date(Date.parse(r.recordedAt) - days * DAY).toISOString(), patientId: OTHER_PATIENT,
+    ...rec,
+    id: randomUUID(),
+    hookInstance: randomUUID(),
+    recordedAt: new Date(Date.parse(r.recordedAt) - days * DAY).toISOString(),
+    patientId: OTHER_PATIENT,
     cards: r.cards.map((c) => ({ ...c, uuid: uuids.get(c.uuid ?? '') ?? randomUUID() })),
     cardKinds: Object.fromEntries(Object.entries(r.cardKinds).map(([u, k]) => [uuids.get(u) ?? u, k])),
   };
@@ -95,14 +112,24 @@ beforeAll(async () => {
   for (const id of [...ids.ppv14, ...ids.ppv17, ...ids.matrix, ...ids.copies]) records.push((await s.svc.store.get(id))!);
   // Feedback: the first 14 % answer's first card accepted, the second's overridden with a reason, a copy's overridden with a comment only.
   const firstCard = (id: string) => records.find((r) => r.id === id)!.cards[0]!.uuid!;
-  const fb = (cardUuid: string, over: object) => ({ cardUuid, acceptedSuggestions: [], outcomeTimestamp: NOW.toISOString(), receivedAt: NOW.toISOString(), service: SERVICE, ...over });
+  const fb = (cardUuid: string, over: object) => ({
+    cardUuid,
+    acceptedSuggestions: [],
+    outcomeTimestamp: NOW.toISOString(),
+    receivedAt: NOW.toISOString(),
+    service: SERVICE,
+    ...over,
+  });
   await s.svc.store.addFeedback([
     fb(firstCard(ids.ppv14[0]!), { outcome: 'accepted' }),
     fb(firstCard(ids.ppv14[1]!), { outcome: 'overridden', overrideReason: NOT_HYPO }),
     fb(firstCard(ids.copies[0]!), { outcome: 'overridden', userComment: 'discussed at the bedside' }),
   ] as never);
   overriddenIds = [ids.ppv14[1]!, ids.copies[0]!];
-  today = records.map((r) => r.recordedAt.slice(0, 10)).sort().at(-1)!;
+  today = records
+    .map((r) => r.recordedAt.slice(0, 10))
+    .sort()
+    .at(-1)!;
   first = records.map((r) => r.recordedAt.slice(0, 10)).sort()[0]!;
   browser = await chromium.launch({ executablePath: CHROMIUM, headless: true, args: ARGS });
   page = await browser.newPage({ viewport: { width: 1180, height: 900 } });
@@ -138,10 +165,14 @@ describe('the audit console in chromium', () => {
     for (const r of records) perDay.set(r.recordedAt.slice(0, 10), (perDay.get(r.recordedAt.slice(0, 10)) ?? 0) + 1);
     expect([...perDay.values()].sort()).toEqual([10, 2, 5].sort());
     expect(await page.textContent('#range-total')).toContain(`${records.length} answers`);
-    expect(await page.textContent('#chain-status')).toBe(`Intact: all ${records.length} records checked, each hash covers the one before it.`);
+    expect(await page.textContent('#chain-status')).toBe(
+      `Intact: all ${records.length} records checked, each hash covers the one before it.`,
+    );
 
     // The bars of the answers plot: aria-label "{indicator} {count} at {day}", summed per day.
-    const labels = await page.$$eval(`#answers-${SERVICE} svg [aria-roledescription="bar"]`, (els) => els.map((e) => e.getAttribute('aria-label') ?? ''));
+    const labels = await page.$$eval(`#answers-${SERVICE} svg [aria-roledescription="bar"]`, (els) =>
+      els.map((e) => e.getAttribute('aria-label') ?? ''),
+    );
     expect(labels.length).toBeGreaterThan(0);
     const barSum = new Map<string, number>();
     for (const l of labels) {
@@ -154,33 +185,55 @@ describe('the audit console in chromium', () => {
     const rank = { critical: 3, warning: 2, info: 1 } as Record<string, number>;
     const top = (r: StoredAdvice) => r.cards.map((c) => c.indicator).sort((a, z) => (rank[z] ?? 0) - (rank[a] ?? 0))[0] ?? 'none';
     const expectedBars = new Map<string, number>();
-    for (const r of records) expectedBars.set(`${top(r)} at ${r.recordedAt.slice(0, 10)}`, (expectedBars.get(`${top(r)} at ${r.recordedAt.slice(0, 10)}`) ?? 0) + 1);
+    for (const r of records)
+      expectedBars.set(
+        `${top(r)} at ${r.recordedAt.slice(0, 10)}`,
+        (expectedBars.get(`${top(r)} at ${r.recordedAt.slice(0, 10)}`) ?? 0) + 1,
+      );
     expect(sorted(labels)).toEqual(sorted([...expectedBars].map(([k, v]) => k.replace(' at ', ` ${v} at `))));
     // The text alternative carries the same numbers.
-    const tableRows = await page.$$eval(`#answers-${SERVICE} table.chart-data tbody tr`, (trs) => trs.map((tr) => `${tr.getAttribute('data-series')} ${tr.getAttribute('data-value')} at ${tr.getAttribute('data-x')}`));
+    const tableRows = await page.$$eval(`#answers-${SERVICE} table.chart-data tbody tr`, (trs) =>
+      trs.map((tr) => `${tr.getAttribute('data-series')} ${tr.getAttribute('data-value')} at ${tr.getAttribute('data-x')}`),
+    );
     expect(sorted(tableRows)).toEqual(sorted(labels));
 
     // Feedback shares per card kind: the table's cards per week, and the overridden marks.
     const kindsOf = new Map<string, number>();
     for (const r of records) for (const k of Object.values(r.cardKinds)) kindsOf.set(k, (kindsOf.get(k) ?? 0) + 1);
     for (const [kind, cards] of kindsOf) {
-      const inTable = await page.$$eval(`[id="feedback-${kind}"] table tbody tr`, (trs) => trs.map((tr) => Number(tr.getAttribute('data-cards'))));
-      expect(inTable.reduce((a, x) => a + x, 0), kind).toBe(cards);
+      const inTable = await page.$$eval(`[id="feedback-${kind}"] table tbody tr`, (trs) =>
+        trs.map((tr) => Number(tr.getAttribute('data-cards'))),
+      );
+      expect(
+        inTable.reduce((a, x) => a + x, 0),
+        kind,
+      ).toBe(cards);
     }
-    const overriddenMarks = await page.$$eval('figure[id^="feedback-"] svg [aria-roledescription="bar"]', (els) => els.map((e) => e.getAttribute('aria-label') ?? '').filter((l) => l.startsWith('overridden ')));
+    const overriddenMarks = await page.$$eval('figure[id^="feedback-"] svg [aria-roledescription="bar"]', (els) =>
+      els.map((e) => e.getAttribute('aria-label') ?? '').filter((l) => l.startsWith('overridden ')),
+    );
     expect(overriddenMarks.map((l) => Number(/^overridden (\d+)/.exec(l)![1])).reduce((a, x) => a + x, 0)).toBe(2);
-    const reasons = await page.$$eval('#override-reasons table tbody tr', (trs) => trs.map((tr) => `${tr.getAttribute('data-series')}=${tr.getAttribute('data-value')}`));
+    const reasons = await page.$$eval('#override-reasons table tbody tr', (trs) =>
+      trs.map((tr) => `${tr.getAttribute('data-series')}=${tr.getAttribute('data-value')}`),
+    );
     expect(sorted(reasons)).toEqual(sorted([`${NOT_HYPO.code}=1`, '(comment only)=1']));
 
     // Verdict mix: the marks summed equal the answers; the likely × … answers as stored.
-    const verdictLabels = await page.$$eval('#verdicts svg [aria-roledescription="bar"]', (els) => els.map((e) => e.getAttribute('aria-label') ?? ''));
+    const verdictLabels = await page.$$eval('#verdicts svg [aria-roledescription="bar"]', (els) =>
+      els.map((e) => e.getAttribute('aria-label') ?? ''),
+    );
     expect(verdictLabels.map((l) => Number(/ (\d+) at /.exec(l)![1])).reduce((a, x) => a + x, 0)).toBe(records.length);
     const likely = records.filter((r) => r.advice?.responsiveness?.value === 'likely').length;
-    const likelyInPlot = verdictLabels.filter((l) => l.startsWith('likely × ')).map((l) => Number(/ (\d+) at /.exec(l)![1])).reduce((a, x) => a + x, 0);
+    const likelyInPlot = verdictLabels
+      .filter((l) => l.startsWith('likely × '))
+      .map((l) => Number(/ (\d+) at /.exec(l)![1]))
+      .reduce((a, x) => a + x, 0);
     expect(likelyInPlot).toBe(likely);
 
     // Latency: one point per day for p50 and p99; the day's answers in the table.
-    const lat = await page.$$eval('#latency table tbody tr', (trs) => trs.map((tr) => [tr.getAttribute('data-x'), Number(tr.getAttribute('data-answers'))]));
+    const lat = await page.$$eval('#latency table tbody tr', (trs) =>
+      trs.map((tr) => [tr.getAttribute('data-x'), Number(tr.getAttribute('data-answers'))]),
+    );
     expect(Object.fromEntries(lat)).toEqual(Object.fromEntries(perDay));
     expect(await page.$$eval('#latency svg [aria-roledescription="point"]', (els) => els.length)).toBe(2 * perDay.size);
     await page.screenshot({ path: `${IMG}console-overview.png`, fullPage: true });
@@ -200,7 +253,9 @@ describe('the audit console in chromium', () => {
     await page.selectOption('select[name=feedback]', '');
     await page.selectOption('select[name=responsiveness]', 'likely');
     await page.click('form.filters button[type=submit]');
-    expect(sorted(await rowsOf(page))).toEqual(sorted(records.filter((r) => r.advice?.responsiveness?.value === 'likely').map((r) => r.id)));
+    expect(sorted(await rowsOf(page))).toEqual(
+      sorted(records.filter((r) => r.advice?.responsiveness?.value === 'likely').map((r) => r.id)),
+    );
 
     await page.selectOption('select[name=responsiveness]', '');
     const yesterday = dayOf(Date.parse(`${today}T00:00:00Z`) - DAY);
@@ -254,7 +309,10 @@ describe('the audit console in chromium', () => {
   it('a POST without its CSRF token is refused', async () => {
     await page.goto(`${s.url}/console/impact`);
     await page.$eval('form.impact input[name=csrf]', (el) => el.remove());
-    const [resp] = await Promise.all([page.waitForResponse((r) => r.url().endsWith('/console/impact') && r.request().method() === 'POST'), page.click('#impact-run')]);
+    const [resp] = await Promise.all([
+      page.waitForResponse((r) => r.url().endsWith('/console/impact') && r.request().method() === 'POST'),
+      page.click('#impact-run'),
+    ]);
     expect(resp.status()).toBe(403);
     expect(await page.textContent('h1')).toBe('Refused');
   });

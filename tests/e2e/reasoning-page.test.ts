@@ -18,7 +18,14 @@ import { NOT_FEASIBLE_WORDS, WHAT_IF_TEST_WORDS } from '../../src/pages/what-if-
 import { startService, type Running } from '../helpers/server.js';
 
 const CHROMIUM = process.env['TIDEMARK_CHROMIUM'] ?? '/usr/bin/chromium';
-const ARGS = ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'];
+const ARGS = [
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+  '--no-first-run',
+];
 const NOW = new Date('2026-11-20T14:00:00Z');
 const KEY = 'e2e-link-key-0123456789abcdef0123456789';
 const ZONE = 'Europe/Berlin';
@@ -46,7 +53,15 @@ beforeAll(async () => {
     const s = SCENARIOS.find((x) => x.id === id)!;
     const built = s.build(NOW);
     await fhir.load(scenarioBundle(built));
-    runs.set(id, await runScenario({ serviceUrl: svc.url, fhirBaseUrl: fhir.baseUrl, fhirToken: FHIR_TOKEN, auditToken: AUDIT_TOKEN }, s, built, 'fhir-server'));
+    runs.set(
+      id,
+      await runScenario(
+        { serviceUrl: svc.url, fhirBaseUrl: fhir.baseUrl, fhirToken: FHIR_TOKEN, auditToken: AUDIT_TOKEN },
+        s,
+        built,
+        'fhir-server',
+      ),
+    );
   }
   browser = await chromium.launch({ executablePath: CHROMIUM, headless: true, args: ARGS });
   mkdirSync(IMG, { recursive: true });
@@ -66,11 +81,19 @@ const linkOf = (run: ScenarioRun): string => {
   return onService(l.url);
 };
 /** The service listens on port 0, so its public URL (the links' origin) is not its address: keep path and query. */
-const onService = (u: string): string => { const x = new URL(u); return `${svc.url}${x.pathname}${x.search}`; };
+const onService = (u: string): string => {
+  const x = new URL(u);
+  return `${svc.url}${x.pathname}${x.search}`;
+};
 const sign = (id: string, exp: number) => createHmac('sha256', KEY).update(`${id}.${exp}`).digest('base64url');
-const hhmm = (iso: string) => new Intl.DateTimeFormat('en-GB', { timeZone: ZONE, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(new Date(iso));
+const hhmm = (iso: string) =>
+  new Intl.DateTimeFormat('en-GB', { timeZone: ZONE, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).format(new Date(iso));
 
-interface Mark { label: string; x: number; role: string }
+interface Mark {
+  label: string;
+  x: number;
+  role: string;
+}
 async function marksOf(page: Page, plotId: string): Promise<Mark[]> {
   return page.$$eval(`#plot-${plotId} svg [aria-roledescription="point"], #plot-${plotId} svg [aria-roledescription="bar"]`, (els) =>
     els.map((e) => {
@@ -78,8 +101,13 @@ async function marksOf(page: Page, plotId: string): Promise<Mark[]> {
       const d = e.getAttribute('d') ?? '';
       // A bar is a path "M{x},{y}h{w}…": its x is the start of the path.
       const bx = /^M([-\d.e]+),/.exec(d);
-      return { label: e.getAttribute('aria-label') ?? '', role: e.getAttribute('aria-roledescription') ?? '', x: Number(m?.[1] ?? bx?.[1] ?? NaN) };
-    }));
+      return {
+        label: e.getAttribute('aria-label') ?? '',
+        role: e.getAttribute('aria-roledescription') ?? '',
+        x: Number(m?.[1] ?? bx?.[1] ?? NaN),
+      };
+    }),
+  );
 }
 const parse = (label: string) => {
   const m = /^(.+) (-?[\d.]+) (.+) at (\S+)$/.exec(label);
@@ -111,7 +139,7 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
     const resp = await page.goto(linkOf(run));
     status = resp?.status() ?? 0;
     headers = resp?.headers() ?? {};
-    hours = Number(/last (\d+) h/.exec(await page.textContent('#trends-h') ?? '')?.[1]);
+    hours = Number(/last (\d+) h/.exec((await page.textContent('#trends-h')) ?? '')?.[1]);
   });
   afterAll(async () => page?.close());
 
@@ -133,12 +161,18 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
     const t = rec.advice.tolerance.value as keyof typeof catalogue.phrases.tolerance;
     expect((await page.textContent('[data-verdict="responsiveness"] .v'))?.trim()).toBe(cap(catalogue.phrases.responsiveness[r]));
     expect((await page.textContent('[data-verdict="tolerance"] .v'))?.trim()).toBe(cap(catalogue.phrases.tolerance[t]));
-    expect((await page.textContent('#headline'))?.trim()).toBe((catalogue.headlines as Record<string, string>)[rec.advice.recommendation.headline]);
+    expect((await page.textContent('#headline'))?.trim()).toBe(
+      (catalogue.headlines as Record<string, string>)[rec.advice.recommendation.headline],
+    );
     if (rec.advice.need) {
-      expect((await page.textContent('[data-verdict="need"] .v'))?.trim()).toBe(cap(catalogue.phrases.need[rec.advice.need.value as keyof typeof catalogue.phrases.need]));
+      expect((await page.textContent('[data-verdict="need"] .v'))?.trim()).toBe(
+        cap(catalogue.phrases.need[rec.advice.need.value as keyof typeof catalogue.phrases.need]),
+      );
     }
     if (rec.advice.responsiveness.confidence) {
-      expect(await page.textContent('[data-verdict="responsiveness"]')).toContain(catalogue.phrases.confidence[rec.advice.responsiveness.confidence as keyof typeof catalogue.phrases.confidence]);
+      expect(await page.textContent('[data-verdict="responsiveness"]')).toContain(
+        catalogue.phrases.confidence[rec.advice.responsiveness.confidence as keyof typeof catalogue.phrases.confidence],
+      );
     }
     if (rec.advice.tolerance.coverage) {
       const c = rec.advice.tolerance.coverage;
@@ -148,12 +182,29 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
   });
 
   it('shows the what-if table: one row per test as the stored advice has it, feasibility, outcomes and the decisive test', async () => {
-    const w = rec.advice.whatIf as { rows: Array<{ test: keyof typeof WHAT_IF_TEST_WORDS; feasible: boolean; notFeasible: Array<keyof typeof NOT_FEASIBLE_WORDS>; outcomes: Array<{ result: string; changes: boolean; responsiveness: string }> }>; decisive?: string };
+    const w = rec.advice.whatIf as {
+      rows: Array<{
+        test: keyof typeof WHAT_IF_TEST_WORDS;
+        feasible: boolean;
+        notFeasible: Array<keyof typeof NOT_FEASIBLE_WORDS>;
+        outcomes: Array<{ result: string; changes: boolean; responsiveness: string }>;
+      }>;
+      decisive?: string;
+    };
     expect(w.rows).toHaveLength(4);
-    const rows = await page.$$eval('#what-if table.what-if tbody tr', (trs) => trs.map((tr) => ({
-      test: tr.getAttribute('data-test'), feasible: tr.getAttribute('data-feasible'), decisive: tr.getAttribute('data-decisive'), text: tr.textContent ?? '',
-      cells: [...tr.querySelectorAll('td[data-result]')].map((td) => ({ result: td.getAttribute('data-result'), changes: td.getAttribute('data-changes'), text: td.textContent ?? '' })),
-    })));
+    const rows = await page.$$eval('#what-if table.what-if tbody tr', (trs) =>
+      trs.map((tr) => ({
+        test: tr.getAttribute('data-test'),
+        feasible: tr.getAttribute('data-feasible'),
+        decisive: tr.getAttribute('data-decisive'),
+        text: tr.textContent ?? '',
+        cells: [...tr.querySelectorAll('td[data-result]')].map((td) => ({
+          result: td.getAttribute('data-result'),
+          changes: td.getAttribute('data-changes'),
+          text: td.textContent ?? '',
+        })),
+      })),
+    );
     expect(rows.map((r) => r.test)).toEqual(w.rows.map((r) => r.test));
     for (const [i, r] of w.rows.entries()) {
       const shown = rows[i]!;
@@ -163,11 +214,14 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
       for (const n of r.notFeasible) expect(shown.text).toContain(NOT_FEASIBLE_WORDS[n]);
       expect(shown.cells.map((c) => [c.result, c.changes])).toEqual(r.outcomes.map((o) => [o.result, o.changes ? 'yes' : 'no']));
       for (const [j, o] of r.outcomes.entries()) {
-        expect(shown.cells[j]!.text).toContain(catalogue.phrases.responsiveness[o.responsiveness as keyof typeof catalogue.phrases.responsiveness]);
+        expect(shown.cells[j]!.text).toContain(
+          catalogue.phrases.responsiveness[o.responsiveness as keyof typeof catalogue.phrases.responsiveness],
+        );
       }
     }
     if (id === 'responder-poor-tolerance') {
-      // A valid PPV of 15 % (≥ 13 %, Michard 2000) decides "likely" (moderate); no flow monitor, spontaneous breathing: the mini fluid challenge with VTI by echo
+      // A valid PPV of 15 % (≥ 13 %, Michard 2000) decides "likely" (moderate); no flow monitor, spontaneous breathing: the mini fluid
+      // challenge with VTI by echo
       // (ΔVTI ≥ 10 %, Muller 2011) is the test offered, and a negative one would make it unclear (a conflict): decisive.
       expect(w.decisive).toBe('mini-fluid-challenge');
       expect(rows[0]).toMatchObject({ test: 'mini-fluid-challenge', feasible: 'yes', decisive: 'yes' });
@@ -189,19 +243,37 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
   it('has a window of 12 or 24 h and every numeric plot point matches the snapshot (value and time)', async () => {
     expect([12, 24]).toContain(hours);
     const fromMs = NOW.getTime() - hours * 3_600_000;
-    const checks: Array<[string, string, string]> = [['map-hr', 'MAP', 'meanBp'], ['map-hr', 'Heart rate', 'heartRate'], ['cvp', 'CVP', 'cvp'], ['lactate', 'Lactate', 'lactate'], ['dynamic', 'PPV', 'ppv'], ['dynamic', 'SVV', 'svv']];
+    const checks: Array<[string, string, string]> = [
+      ['map-hr', 'MAP', 'meanBp'],
+      ['map-hr', 'Heart rate', 'heartRate'],
+      ['cvp', 'CVP', 'cvp'],
+      ['lactate', 'Lactate', 'lactate'],
+      ['dynamic', 'PPV', 'ppv'],
+      ['dynamic', 'SVV', 'svv'],
+    ];
     let compared = 0;
     for (const [plot, series, kind] of checks) {
       const want = snapshotSeries(rec, kind, fromMs);
-      const got = (await marksOf(page, plot)).filter((m) => m.role === 'point').map((m) => parse(m.label)).filter((m) => m.series === series);
-      expect(got.map((g) => [g.value, g.t]), `${series}`).toEqual(want.map((w) => [w.value, w.t]));
+      const got = (await marksOf(page, plot))
+        .filter((m) => m.role === 'point')
+        .map((m) => parse(m.label))
+        .filter((m) => m.series === series);
+      expect(
+        got.map((g) => [g.value, g.t]),
+        `${series}`,
+      ).toEqual(want.map((w) => [w.value, w.t]));
       compared += want.length;
     }
     expect(compared).toBeGreaterThan(20);
     // Dynamic tests: the change from before to after, in % of before for flow, in points for PPV/SVV (Myatra 2017).
     const tests = (rec.snapshot.dynamicTests as Array<{ before: number; after: number; effective: string; measured: string }>)
       .filter((d) => Date.parse(d.effective) >= fromMs)
-      .map((d) => [['ppv', 'svv'].includes(d.measured) ? Math.round((d.after - d.before) * 10) / 10 : Math.round(((d.after - d.before) / d.before) * 1000) / 10, d.effective]);
+      .map((d) => [
+        ['ppv', 'svv'].includes(d.measured)
+          ? Math.round((d.after - d.before) * 10) / 10
+          : Math.round(((d.after - d.before) / d.before) * 1000) / 10,
+        d.effective,
+      ]);
     const got = (await marksOf(page, 'dynamic')).map((m) => parse(m.label)).filter((m) => m.series === 'Dynamic test');
     expect(got.map((g) => [g.value, g.t]).sort()).toEqual(tests.sort());
     if (id === 'tidal-volume-challenge') expect(tests).toHaveLength(1);
@@ -210,10 +282,21 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
   it('fluids given are bars, the draft bolus a point at now, urine output per hour matches volume over period', async () => {
     const fromMs = NOW.getTime() - hours * 3_600_000;
     const fluids = (await marksOf(page, 'fluids')).map((m) => parse(m.label));
-    const given = (rec.snapshot.fluids as Array<{ volumeMl: number; end: string; start: string }>).filter((f) => Date.parse(f.end) >= fromMs || Date.parse(f.start) >= fromMs);
-    expect(fluids.filter((f) => f.series === 'Fluid given').map((f) => [f.value, f.t]).sort()).toEqual(given.map((g) => [g.volumeMl, g.end]).sort());
-    const draft = (rec.snapshot.draftOrders as Array<{ selected: boolean; isFluid: boolean; volumeMl?: number }>).find((d) => d.selected && d.isFluid);
-    expect(fluids.filter((f) => f.series === 'Draft bolus (now)').map((f) => [f.value, f.t])).toEqual([[draft!.volumeMl, NOW.toISOString()]]);
+    const given = (rec.snapshot.fluids as Array<{ volumeMl: number; end: string; start: string }>).filter(
+      (f) => Date.parse(f.end) >= fromMs || Date.parse(f.start) >= fromMs,
+    );
+    expect(
+      fluids
+        .filter((f) => f.series === 'Fluid given')
+        .map((f) => [f.value, f.t])
+        .sort(),
+    ).toEqual(given.map((g) => [g.volumeMl, g.end]).sort());
+    const draft = (rec.snapshot.draftOrders as Array<{ selected: boolean; isFluid: boolean; volumeMl?: number }>).find(
+      (d) => d.selected && d.isFluid,
+    );
+    expect(fluids.filter((f) => f.series === 'Draft bolus (now)').map((f) => [f.value, f.t])).toEqual([
+      [draft!.volumeMl, NOW.toISOString()],
+    ]);
     const urine = (await marksOf(page, 'urine-balance')).map((m) => parse(m.label)).filter((m) => m.series === 'Urine output');
     const want = (rec.snapshot.measurements as Array<{ kind: string; value: number; effective: string; periodStart?: string }>)
       .filter((m) => m.kind === 'urineOutput' && m.periodStart && Date.parse(m.effective) >= fromMs)
@@ -236,7 +319,9 @@ describe.each(PICKED)('the reasoning page of scenario %s', (id) => {
 
   it('has a text alternative per plot: a summary and a table with one row per mark, times in the site zone', async () => {
     for (const plot of ['map-hr', 'cvp', 'lactate', 'urine-balance', 'fluids', 'dynamic']) {
-      const rows = await page.$$eval(`#plot-${plot} table.plot-data tbody tr`, (trs) => trs.map((tr) => ({ label: tr.getAttribute('aria-label') ?? '', time: tr.querySelector('td')?.textContent ?? '' })));
+      const rows = await page.$$eval(`#plot-${plot} table.plot-data tbody tr`, (trs) =>
+        trs.map((tr) => ({ label: tr.getAttribute('aria-label') ?? '', time: tr.querySelector('td')?.textContent ?? '' })),
+      );
       const marks = await marksOf(page, plot);
       expect(await page.textContent(`#plot-${plot}-summary`)).toBeTruthy();
       for (const m of marks) expect(rows.map((r) => r.label)).toContain(m.label);
@@ -273,7 +358,11 @@ describe('refused links', () => {
     const page = await browser.newPage({ viewport: { width: 900, height: 500 } });
     const sig = url.searchParams.get('sig')!;
     const flipped = `${sig.slice(0, -2)}${sig.slice(-2) === 'AA' ? 'AB' : 'AA'}`;
-    for (const bad of [`${url.origin}/advice/${id}?exp=${exp}&sig=${flipped}`, `${url.origin}/advice/${id}?exp=${exp + 60}&sig=${sig}`, `${url.origin}/advice/${id}?exp=${exp}`]) {
+    for (const bad of [
+      `${url.origin}/advice/${id}?exp=${exp}&sig=${flipped}`,
+      `${url.origin}/advice/${id}?exp=${exp + 60}&sig=${sig}`,
+      `${url.origin}/advice/${id}?exp=${exp}`,
+    ]) {
       const r = await page.goto(bad);
       expect(r?.status()).toBe(403);
       expect(await page.textContent('h1')).toBe('This link is not valid');

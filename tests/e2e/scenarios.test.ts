@@ -111,7 +111,8 @@ async function searchAll(path: string): Promise<{ ids: string[]; pages: number; 
   return { ids, pages, first };
 }
 
-const codesOf = (query: string): Set<string> => new Set(decodeURIComponent(new URLSearchParams(query.split('?')[1]).get('code') ?? '').split(','));
+const codesOf = (query: string): Set<string> =>
+  new Set(decodeURIComponent(new URLSearchParams(query.split('?')[1]).get('code') ?? '').split(','));
 const effectiveOf = (o: Observation) => o.effectiveDateTime ?? o.effectivePeriod?.end ?? o.effectivePeriod?.start ?? '';
 
 /** What a conforming server must return for a prefetch key, from the chart itself, newest first where sorted. */
@@ -120,55 +121,71 @@ function expectedFor(query: string, resources: FhirResource[], patientId: string
   if (query.startsWith('Observation?')) {
     const codes = codesOf(query);
     return mine
-      .filter((r): r is Observation => r.resourceType === 'Observation' && (r.code.coding ?? []).some((c) => codes.has(`${c.system}|${c.code}`)))
+      .filter(
+        (r): r is Observation => r.resourceType === 'Observation' && (r.code.coding ?? []).some((c) => codes.has(`${c.system}|${c.code}`)),
+      )
       .sort((a, b) => effectiveOf(b).localeCompare(effectiveOf(a)))
       .map((o) => o.id ?? '');
   }
   if (query.startsWith('Condition?')) {
-    return mine.filter((r): r is Condition => r.resourceType === 'Condition' && r.clinicalStatus?.coding?.[0]?.code === 'active').map((r) => r.id ?? '').sort();
+    return mine
+      .filter((r): r is Condition => r.resourceType === 'Condition' && r.clinicalStatus?.coding?.[0]?.code === 'active')
+      .map((r) => r.id ?? '')
+      .sort();
   }
   if (query.startsWith('MedicationAdministration?')) {
-    return mine.filter((r) => r.resourceType === 'MedicationAdministration')
-      .sort((a, b) => ((b as { effectivePeriod?: { start?: string } }).effectivePeriod?.start ?? '').localeCompare((a as { effectivePeriod?: { start?: string } }).effectivePeriod?.start ?? ''))
+    return mine
+      .filter((r) => r.resourceType === 'MedicationAdministration')
+      .sort((a, b) =>
+        ((b as { effectivePeriod?: { start?: string } }).effectivePeriod?.start ?? '').localeCompare(
+          (a as { effectivePeriod?: { start?: string } }).effectivePeriod?.start ?? '',
+        ),
+      )
       .map((r) => r.id ?? '');
   }
   if (query.startsWith('MedicationRequest?')) {
-    return mine.filter((r): r is MedicationRequest => r.resourceType === 'MedicationRequest' && r.status === 'active').map((r) => r.id ?? '').sort();
+    return mine
+      .filter((r): r is MedicationRequest => r.resourceType === 'MedicationRequest' && r.status === 'active')
+      .map((r) => r.id ?? '')
+      .sort();
   }
   throw new Error(`no expectation for ${query}`);
 }
 
 describe('embedded FHIR server: the prefetch templates return the right resources', () => {
-  it.each(SCENARIOS.map((s) => [s.id, s] as const))('%s: each template (Patient/id reads, token OR lists, _sort, _count, status filters)', async (_id, s) => {
-    const b = chart(s);
-    const ctx = hookContext(s, b);
-    for (const [key, q] of Object.entries(PREFETCH)) {
-      const resolved = resolvePrefetchTemplate(q.template, b.hook, ctx);
-      expect(resolved.ok, key).toBe(true);
-      const query = (resolved as { value: string }).value;
-      if (!query.includes('?')) {
-        const res = await fhirGet(query);
-        expect(res.status, key).toBe(200);
-        expect(res.body.id, key).toBe(key === 'patient' ? s.patientId : s.encounterId);
-        continue;
+  it.each(SCENARIOS.map((s) => [s.id, s] as const))(
+    '%s: each template (Patient/id reads, token OR lists, _sort, _count, status filters)',
+    async (_id, s) => {
+      const b = chart(s);
+      const ctx = hookContext(s, b);
+      for (const [key, q] of Object.entries(PREFETCH)) {
+        const resolved = resolvePrefetchTemplate(q.template, b.hook, ctx);
+        expect(resolved.ok, key).toBe(true);
+        const query = (resolved as { value: string }).value;
+        if (!query.includes('?')) {
+          const res = await fhirGet(query);
+          expect(res.status, key).toBe(200);
+          expect(res.body.id, key).toBe(key === 'patient' ? s.patientId : s.encounterId);
+          continue;
+        }
+        const got = await searchAll(query);
+        const want = expectedFor(query, b.resources, s.patientId);
+        const sorted = /_sort=-/.test(query);
+        // Ties in time may come in either order: compare sets, and for sorted keys the order of the times.
+        expect(new Set(got.ids), `${key}: ${query}`).toEqual(new Set(want));
+        expect(got.ids.length, key).toBe(want.length);
+        if (sorted && key !== 'fluidsGiven') {
+          // The embedded server orders an effectivePeriod by its start (a server may choose; Tidemark does not rely on it).
+          const byId = new Map(b.resources.map((r) => [r.id, r]));
+          const sortKey = (o: Observation) => o.effectiveDateTime ?? o.effectivePeriod?.start ?? '';
+          const times = got.ids.map((id) => sortKey(byId.get(id) as Observation));
+          expect(times, `${key} newest first`).toEqual([...times].sort().reverse());
+        }
+        const count = Number(new URLSearchParams(query.split('?')[1]).get('_count') ?? 20);
+        expect((got.first.entry ?? []).length, `${key} honours _count`).toBeLessThanOrEqual(count);
       }
-      const got = await searchAll(query);
-      const want = expectedFor(query, b.resources, s.patientId);
-      const sorted = /_sort=-/.test(query);
-      // Ties in time may come in either order: compare sets, and for sorted keys the order of the times.
-      expect(new Set(got.ids), `${key}: ${query}`).toEqual(new Set(want));
-      expect(got.ids.length, key).toBe(want.length);
-      if (sorted && key !== 'fluidsGiven') {
-        // The embedded server orders an effectivePeriod by its start (a server may choose; Tidemark does not rely on it).
-        const byId = new Map(b.resources.map((r) => [r.id, r]));
-        const sortKey = (o: Observation) => o.effectiveDateTime ?? o.effectivePeriod?.start ?? '';
-        const times = got.ids.map((id) => sortKey(byId.get(id) as Observation));
-        expect(times, `${key} newest first`).toEqual([...times].sort().reverse());
-      }
-      const count = Number(new URLSearchParams(query.split('?')[1]).get('_count') ?? 20);
-      expect((got.first.entry ?? []).length, `${key} honours _count`).toBeLessThanOrEqual(count);
-    }
-  });
+    },
+  );
 
   it('pages with link[next] when a page is full, and the pages add up to the whole result', async () => {
     const s = SCENARIOS[0] as Scenario;
@@ -182,7 +199,12 @@ describe('embedded FHIR server: the prefetch templates return the right resource
 
   it('answers what it cannot do correctly with a 400 OperationOutcome instead of a silently empty Bundle', async () => {
     const s = SCENARIOS[0] as Scenario;
-    for (const q of [`Observation?patient=${s.patientId}`, `Observation?patient=Patient/${s.patientId}&no-such-param=1`, `Observation?patient=Patient/${s.patientId}&value-quantity=gt5`, `Observation?patient=Patient/${s.patientId}&_include=Observation:patient`]) {
+    for (const q of [
+      `Observation?patient=${s.patientId}`,
+      `Observation?patient=Patient/${s.patientId}&no-such-param=1`,
+      `Observation?patient=Patient/${s.patientId}&value-quantity=gt5`,
+      `Observation?patient=Patient/${s.patientId}&_include=Observation:patient`,
+    ]) {
       const res = await fhirGet(q);
       expect(res.status, q).toBe(400);
       expect(res.body.resourceType, q).toBe('OperationOutcome');
@@ -210,7 +232,8 @@ describe.each(ROUTES.map((r) => [r] as const))('Tidemark via %s', (route) => {
     for (const c of cards) expect(cardSchema.safeParse(c).error?.issues ?? []).toEqual([]);
     expect(checkCdsResponse(run.body)).toEqual([]);
     for (const c of cards as Array<{ suggestions?: Array<{ actions?: Array<{ resource?: unknown }> }> }>) {
-      for (const sug of c.suggestions ?? []) for (const a of sug.actions ?? []) if (a.resource) expect(validateFhir(a.resource)).toEqual([]);
+      for (const sug of c.suggestions ?? [])
+        for (const a of sug.actions ?? []) if (a.resource) expect(validateFhir(a.resource)).toEqual([]);
     }
     if (s.expect.indicator === 'no-card') expect(cards).toEqual([]);
     else expect(cards.length).toBeGreaterThanOrEqual(1);
@@ -252,26 +275,35 @@ const measured: Array<{ id: string; chars: number; lines: number }> = [];
 
 describe.each(ROUTES.map((r) => [r] as const))('the pop-up via %s', (route) => {
   it('the check has codes to look for (so it can fail)', () => {
-    expect(CODES).toEqual(expect.arrayContaining(['controlled-no-effort', 'likely/adequate', 'smaller-aliquot', 'passive-leg-raise', 'not-known']));
+    expect(CODES).toEqual(
+      expect.arrayContaining(['controlled-no-effort', 'likely/adequate', 'smaller-aliquot', 'passive-leg-raise', 'not-known']),
+    );
   });
 
-  it.each(SCENARIOS.map((s) => [s.id, s] as const))('%s: within 900 characters and 12 lines, no FHIR id, no resource id, no raw code', (_id, s) => {
-    const run = runOf(s, route);
-    const ids = chart(s).resources.map((r) => r.id ?? '').filter((id) => id.length >= 4);
-    for (const card of (run.body.cards ?? []) as Array<{ detail?: string; summary: string; suggestions?: Array<{ label: string }> }>) {
-      const d = card.detail ?? '';
-      const lines = d.split('\n').filter((l) => l.trim()).length;
-      if (route === 'prefetch') measured.push({ id: s.id, chars: d.length, lines });
-      expect(d.length).toBeLessThanOrEqual(900);
-      expect(lines).toBeLessThanOrEqual(12);
-      const text = plain(d).replace(/\]\([^)]*\)/g, ']'); // our own link's URL carries the advice id, not a FHIR id
-      expect(text).not.toMatch(/\b(Observation|Patient|Encounter|Condition|MedicationAdministration|MedicationRequest|ServiceRequest)\//);
-      for (const id of ids) expect(text, id).not.toContain(id);
-      for (const code of CODES) expect(text, code).not.toMatch(new RegExp(`(^|[^\\w-])${code.replace(/[.*+?^${}()|[\]\\/]/g, '\\$&')}($|[^\\w-])`));
-      for (const t of [card.summary, ...(card.suggestions ?? []).map((x) => x.label)]) for (const code of CODES) expect(t, code).not.toContain(code);
-      expect(d).toMatch(/Advisory only/);
-    }
-  });
+  it.each(SCENARIOS.map((s) => [s.id, s] as const))(
+    '%s: within 900 characters and 12 lines, no FHIR id, no resource id, no raw code',
+    (_id, s) => {
+      const run = runOf(s, route);
+      const ids = chart(s)
+        .resources.map((r) => r.id ?? '')
+        .filter((id) => id.length >= 4);
+      for (const card of (run.body.cards ?? []) as Array<{ detail?: string; summary: string; suggestions?: Array<{ label: string }> }>) {
+        const d = card.detail ?? '';
+        const lines = d.split('\n').filter((l) => l.trim()).length;
+        if (route === 'prefetch') measured.push({ id: s.id, chars: d.length, lines });
+        expect(d.length).toBeLessThanOrEqual(900);
+        expect(lines).toBeLessThanOrEqual(12);
+        const text = plain(d).replace(/\]\([^)]*\)/g, ']'); // our own link's URL carries the advice id, not a FHIR id
+        expect(text).not.toMatch(/\b(Observation|Patient|Encounter|Condition|MedicationAdministration|MedicationRequest|ServiceRequest)\//);
+        for (const id of ids) expect(text, id).not.toContain(id);
+        for (const code of CODES)
+          expect(text, code).not.toMatch(new RegExp(`(^|[^\\w-])${code.replace(/[.*+?^${}()|[\]\\/]/g, '\\$&')}($|[^\\w-])`));
+        for (const t of [card.summary, ...(card.suggestions ?? []).map((x) => x.label)])
+          for (const code of CODES) expect(t, code).not.toContain(code);
+        expect(d).toMatch(/Advisory only/);
+      }
+    },
+  );
 
   it('the sizes measured over all scenarios stay within the limits', () => {
     if (route !== 'prefetch') return;
@@ -293,9 +325,16 @@ describe('a FHIR server that caps its pages', () => {
       const vitals = gathering.find((g) => g.key === 'vitals');
       expect(vitals?.status).toBe('ok');
       expect(vitals?.pages).toBeGreaterThan(1);
-      expect(vitals?.count).toBe(chart(s).resources.filter((r) => r.resourceType === 'Observation'
-        && codesOf((resolvePrefetchTemplate(PREFETCH['vitals']?.template ?? '', 'order-select', hookContext(s, chart(s))) as { value: string }).value)
-          .has(`${r.code.coding?.[0]?.system}|${r.code.coding?.[0]?.code}`)).length);
+      expect(vitals?.count).toBe(
+        chart(s).resources.filter(
+          (r) =>
+            r.resourceType === 'Observation' &&
+            codesOf(
+              (resolvePrefetchTemplate(PREFETCH['vitals']?.template ?? '', 'order-select', hookContext(s, chart(s))) as { value: string })
+                .value,
+            ).has(`${r.code.coding?.[0]?.system}|${r.code.coding?.[0]?.code}`),
+        ).length,
+      );
       const one = runOf(s, 'fhir-server');
       expect(observedVerdicts(run.record, run.body.cards ?? [])).toEqual(observedVerdicts(one.record, one.body.cards ?? []));
     } finally {

@@ -23,7 +23,9 @@ const goodLungs = [b.numeric('spo2-1', PID, 'spo2', 96, t(10)), b.numeric('fio2-
 const poorOxygenation = [b.numeric('spo2-2', PID, 'spo2', 92, t(10)), b.numeric('fio2-2', PID, 'fio2', 60, t(10))]; // 153 < 235 (Rice 2007)
 /** Enough tolerance markers for "adequate" (≥ 3, one of lungs/venous/balance): CVP 8 mmHg, creatinine steady. */
 const normalVenousAndKidneys = [
-  b.numeric('cvp-ok', PID, 'cvp', 8, t(30)), b.numeric('crea-0', PID, 'creatinine', 0.9, t(20 * 60)), b.numeric('crea-1', PID, 'creatinine', 0.9, t(4 * 60)),
+  b.numeric('cvp-ok', PID, 'cvp', 8, t(30)),
+  b.numeric('crea-0', PID, 'creatinine', 0.9, t(20 * 60)),
+  b.numeric('crea-1', PID, 'creatinine', 0.9, t(4 * 60)),
 ];
 const albumin = (gPerL: number, id: string) => b.numeric(id, PID, 'albumin', gPerL, t(300));
 
@@ -32,10 +34,18 @@ export const ADVICE_CASES = {
   'test-first': basicResources(),
   /** Positive PLR by cardiac output, MAP 61 (a sign of hypoperfusion), no tolerance limit in 4 markers: proceed and reassess. */
   proceed: withExtra({
-    hemodynamics: [plrPositive, ...normalVenousAndKidneys], labs: [albumin(38, 'alb-ok')], vitals: [goodLungs[0] as FhirResource], ventilation: [goodLungs[1] as FhirResource],
+    hemodynamics: [plrPositive, ...normalVenousAndKidneys],
+    labs: [albumin(38, 'alb-ok')],
+    vitals: [goodLungs[0] as FhirResource],
+    ventilation: [goodLungs[1] as FhirResource],
   }),
   /** Positive PLR, SpO2/FiO2 153: tolerance limited → smaller aliquot (albumin 22 g/L is context only, docs/clinical-logic). */
-  'smaller-aliquot': withExtra({ hemodynamics: [plrPositive], labs: [albumin(22, 'alb-low')], vitals: [poorOxygenation[0] as FhirResource], ventilation: [poorOxygenation[1] as FhirResource] }),
+  'smaller-aliquot': withExtra({
+    hemodynamics: [plrPositive],
+    labs: [albumin(22, 'alb-low')],
+    vitals: [poorOxygenation[0] as FhirResource],
+    ventilation: [poorOxygenation[1] as FhirResource],
+  }),
   /** Positive PLR, EVLWI 14 mL/kg: poor tolerance with lung water → critical. */
   critical: withExtra({ hemodynamics: [plrPositive, b.numeric('evlwi-1', PID, 'evlwi', 14, t(60))], labs: [albumin(24, 'alb-low2')] }),
   /** Negative PLR and negative mini fluid challenge: unlikely → question the bolus. */

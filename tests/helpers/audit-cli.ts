@@ -1,7 +1,11 @@
 /** The audit command line (src/cli/audit.ts) as a child process. */
 import { spawn } from 'node:child_process';
 
-export interface CliResult { status: number | null; stdout: string; stderr: string }
+export interface CliResult {
+  status: number | null;
+  stdout: string;
+  stderr: string;
+}
 
 /**
  * Awaited without blocking this process: a service under test running here keeps answering, and its idle

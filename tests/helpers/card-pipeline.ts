@@ -32,10 +32,15 @@ export interface PipelineInput {
 }
 
 export function snapshotOf(i: PipelineInput): PatientSnapshot {
-  return buildSnapshot(i.resources as FhirResource[], {
-    patientId: i.patientId, ...(i.encounterId ? { encounterId: i.encounterId } : {}),
-    ...(i.draftOrders ? { draftOrders: { entry: i.draftOrders.map((resource) => ({ resource })) } } : {}),
-  }, i.now);
+  return buildSnapshot(
+    i.resources as FhirResource[],
+    {
+      patientId: i.patientId,
+      ...(i.encounterId ? { encounterId: i.encounterId } : {}),
+      ...(i.draftOrders ? { draftOrders: { entry: i.draftOrders.map((resource) => ({ resource })) } } : {}),
+    },
+    i.now,
+  );
 }
 
 export function cardsOf(i: PipelineInput): { advice: Advice; snapshot: PatientSnapshot; cards: Card[] } {
@@ -44,10 +49,17 @@ export function cardsOf(i: PipelineInput): { advice: Advice; snapshot: PatientSn
   const advice = i.edit ? i.edit(raw) : raw;
   const hook = i.hook ?? 'order-select';
   const models = composeCards({
-    hook, advice, snapshot, gathering: i.gathering ?? [], purposes: { vitals: 'vital signs', labs: 'laboratory results' }, catalogue,
+    hook,
+    advice,
+    snapshot,
+    gathering: i.gathering ?? [],
+    purposes: { vitals: 'vital signs', labs: 'laboratory results' },
+    catalogue,
     context: { patientId: i.patientId, userId: 'Practitioner/dr-test', ...(i.encounterId ? { encounterId: i.encounterId } : {}) },
     ...(i.timeZone ? { timeZone: i.timeZone } : {}),
   });
-  const cards = models.map((m) => renderCard(m, catalogue, { hook, publicUrl: PUBLIC_URL, adviceLink: { label: 'Full reasoning', url: ADVICE_URL } }));
+  const cards = models.map((m) =>
+    renderCard(m, catalogue, { hook, publicUrl: PUBLIC_URL, adviceLink: { label: 'Full reasoning', url: ADVICE_URL } }),
+  );
   return { advice, snapshot, cards };
 }

@@ -19,11 +19,13 @@ export function checkCdsResponse(body: unknown): string[] {
         if (cardUuids.has(card['uuid'])) problems.push(`cards.${i}.uuid: repeated`);
         cardUuids.add(card['uuid']);
       }
-      if (typeof card['summary'] === 'string' && card['summary'].length >= 140) problems.push(`cards.${i}.summary: ${card['summary'].length} characters (must be under 140)`);
+      if (typeof card['summary'] === 'string' && card['summary'].length >= 140)
+        problems.push(`cards.${i}.summary: ${card['summary'].length} characters (must be under 140)`);
       if (typeof card['detail'] === 'string' && /<\s*[a-z!/]/i.test(card['detail'])) problems.push(`cards.${i}.detail: contains raw HTML`);
       const sugg = (card['suggestions'] ?? []) as Array<Record<string, any>>;
       if (sugg.length && !card['selectionBehavior']) problems.push(`cards.${i}: suggestions without selectionBehavior`);
-      if (card['selectionBehavior'] === 'at-most-one' && sugg.filter((s) => s['isRecommended'] === true).length > 1) problems.push(`cards.${i}: more than one recommended suggestion with at-most-one`);
+      if (card['selectionBehavior'] === 'at-most-one' && sugg.filter((s) => s['isRecommended'] === true).length > 1)
+        problems.push(`cards.${i}: more than one recommended suggestion with at-most-one`);
       const sUuids = new Set<string>();
       sugg.forEach((s, j) => {
         if (!s['uuid']) problems.push(`cards.${i}.suggestions.${j}: no uuid (feedback cannot name it)`);
@@ -32,8 +34,10 @@ export function checkCdsResponse(body: unknown): string[] {
         ((s['actions'] ?? []) as Array<Record<string, any>>).forEach((a, k) => {
           const where = `cards.${i}.suggestions.${j}.actions.${k}`;
           if (!a['description']) problems.push(`${where}: no description`);
-          if (a['type'] === 'delete' && (!a['resourceId'] || a['resource'])) problems.push(`${where}: a delete needs resourceId and no resource`);
-          if ((a['type'] === 'create' || a['type'] === 'update') && !a['resource']) problems.push(`${where}: ${a['type']} without resource`);
+          if (a['type'] === 'delete' && (!a['resourceId'] || a['resource']))
+            problems.push(`${where}: a delete needs resourceId and no resource`);
+          if ((a['type'] === 'create' || a['type'] === 'update') && !a['resource'])
+            problems.push(`${where}: ${a['type']} without resource`);
           if (a['type'] === 'update' && !a['resource']?.id) problems.push(`${where}: update of a resource without id`);
         });
       });

@@ -53,14 +53,25 @@ export function bolusDraft(now = NOW) {
   return b.bolusOrder('draft-bolus-1', PID, b.FLUIDS.lactatedRinger, 500, 30, b.minutesAgo(now, 1));
 }
 
-export function orderSelectRequest(opts: { prefetch?: Record<string, unknown>; fhirServer?: string; token?: string; draft?: FhirResource[]; selections?: string[] } = {}) {
+export function orderSelectRequest(
+  opts: { prefetch?: Record<string, unknown>; fhirServer?: string; token?: string; draft?: FhirResource[]; selections?: string[] } = {},
+) {
   const draft = opts.draft ?? [bolusDraft()];
   return {
     hook: 'order-select',
     hookInstance: HOOK_INSTANCE,
     ...(opts.fhirServer ? { fhirServer: opts.fhirServer } : {}),
     ...(opts.token && opts.fhirServer
-      ? { fhirAuthorization: { access_token: opts.token, token_type: 'Bearer', expires_in: 300, scope: 'patient/Observation.read patient/Patient.read', subject: 'tidemark-cds', patient: PID } }
+      ? {
+          fhirAuthorization: {
+            access_token: opts.token,
+            token_type: 'Bearer',
+            expires_in: 300,
+            scope: 'patient/Observation.read patient/Patient.read',
+            subject: 'tidemark-cds',
+            patient: PID,
+          },
+        }
       : {}),
     context: {
       userId: 'Practitioner/tm-prac-olsen',
@@ -80,5 +91,10 @@ export function orderSignRequest(prefetch: Record<string, unknown>) {
 }
 
 export function patientViewRequest(prefetch: Record<string, unknown>) {
-  return { hook: 'patient-view', hookInstance: HOOK_INSTANCE, context: { userId: 'Practitioner/tm-prac-olsen', patientId: PID, encounterId: EID }, prefetch };
+  return {
+    hook: 'patient-view',
+    hookInstance: HOOK_INSTANCE,
+    context: { userId: 'Practitioner/tm-prac-olsen', patientId: PID, encounterId: EID },
+    prefetch,
+  };
 }

@@ -12,19 +12,31 @@ export function contextOf<T>(s: PatientSnapshot, now: Date, t: T, w: Windows = D
   return { snapshot: s, now, t, w, events: evidenceEvents(s, now, w.fluidEventMinMl) };
 }
 
-export function responsivenessContext(b: SnapshotBuilder, t: ResponsivenessThresholds = DEFAULT_RESPONSIVENESS_THRESHOLDS, w: Windows = DEFAULT_WINDOWS): RuleContext<ResponsivenessThresholds> {
+export function responsivenessContext(
+  b: SnapshotBuilder,
+  t: ResponsivenessThresholds = DEFAULT_RESPONSIVENESS_THRESHOLDS,
+  w: Windows = DEFAULT_WINDOWS,
+): RuleContext<ResponsivenessThresholds> {
   return contextOf(b.build(), b.now, t, w);
 }
 
-export function toleranceContext(b: SnapshotBuilder, t: ToleranceThresholds = DEFAULT_TOLERANCE_THRESHOLDS, w: Windows = DEFAULT_WINDOWS): RuleContext<ToleranceThresholds> {
+export function toleranceContext(
+  b: SnapshotBuilder,
+  t: ToleranceThresholds = DEFAULT_TOLERANCE_THRESHOLDS,
+  w: Windows = DEFAULT_WINDOWS,
+): RuleContext<ToleranceThresholds> {
   return contextOf(b.build(), b.now, t, w);
 }
 
 export function needSettings(t: ToleranceThresholds = DEFAULT_TOLERANCE_THRESHOLDS): NeedSettings {
   return {
-    ...DEFAULT_NEED_THRESHOLDS, weightMaxAgeHours: t.weightMaxAgeHours, admissionWeightWindowHours: t.admissionWeightWindowHours,
-    balanceFallbackLookbackHours: t.balanceFallbackLookbackHours, urinePointMaxGapMinutes: t.urinePointMaxGapMinutes,
-    urineRecencyMinutes: t.urineRecencyMinutes, urineCoverageFraction: t.urineCoverageFraction,
+    ...DEFAULT_NEED_THRESHOLDS,
+    weightMaxAgeHours: t.weightMaxAgeHours,
+    admissionWeightWindowHours: t.admissionWeightWindowHours,
+    balanceFallbackLookbackHours: t.balanceFallbackLookbackHours,
+    urinePointMaxGapMinutes: t.urinePointMaxGapMinutes,
+    urineRecencyMinutes: t.urineRecencyMinutes,
+    urineCoverageFraction: t.urineCoverageFraction,
   };
 }
 

@@ -25,15 +25,29 @@ export async function startService(env: Record<string, string> = {}, opts: Servi
   const dir = mkdtempSync(join(tmpdir(), 'tidemark-test-'));
   const dbPath = join(dir, 'audit.sqlite');
   const logLines: string[] = [];
-  const sink = new Writable({ write(chunk, _enc, cb) { logLines.push(...String(chunk).split('\n').filter(Boolean)); cb(); } });
-  const cfg = loadConfig({ TIDEMARK_SQLITE_PATH: dbPath, TIDEMARK_LOG_LEVEL: 'info', TIDEMARK_TRIAL_MODE: 'true', TIDEMARK_AUDIT_TOKEN: TEST_AUDIT_TOKEN, ...env });
+  const sink = new Writable({
+    write(chunk, _enc, cb) {
+      logLines.push(...String(chunk).split('\n').filter(Boolean));
+      cb();
+    },
+  });
+  const cfg = loadConfig({
+    TIDEMARK_SQLITE_PATH: dbPath,
+    TIDEMARK_LOG_LEVEL: 'info',
+    TIDEMARK_TRIAL_MODE: 'true',
+    TIDEMARK_AUDIT_TOKEN: TEST_AUDIT_TOKEN,
+    ...env,
+  });
   const svc = await buildService(cfg, { log: createLogger('info', sink), ...opts });
   const server: Server = await new Promise((resolve) => {
     const s = svc.app.listen(0, '127.0.0.1', () => resolve(s));
   });
   const url = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
   return {
-    url, svc, dbPath, logLines,
+    url,
+    svc,
+    dbPath,
+    logLines,
     async stop() {
       await new Promise<void>((r) => server.close(() => r()));
       await svc.close();
@@ -43,10 +57,18 @@ export async function startService(env: Record<string, string> = {}, opts: Servi
 }
 
 export async function post(url: string, body: unknown, headers: Record<string, string> = {}): Promise<{ status: number; body: any }> {
-  const r = await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json', ...headers }, body: typeof body === 'string' ? body : JSON.stringify(body) });
+  const r = await fetch(url, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', ...headers },
+    body: typeof body === 'string' ? body : JSON.stringify(body),
+  });
   const text = await r.text();
   let parsed: unknown = text;
-  try { parsed = JSON.parse(text); } catch { /* keep text */ }
+  try {
+    parsed = JSON.parse(text);
+  } catch {
+    /* keep text */
+  }
   return { status: r.status, body: parsed };
 }
 
@@ -54,6 +76,10 @@ export async function get(url: string, headers: Record<string, string> = {}): Pr
   const r = await fetch(url, { headers });
   const text = await r.text();
   let parsed: unknown = text;
-  try { parsed = JSON.parse(text); } catch { /* keep text */ }
+  try {
+    parsed = JSON.parse(text);
+  } catch {
+    /* keep text */
+  }
   return { status: r.status, body: parsed };
 }

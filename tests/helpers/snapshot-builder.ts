@@ -12,12 +12,25 @@
  *     .build();
  */
 import {
-  KIND_UNITS, OBSERVATION_CODES, TIDEMARK_ANSWERS,
-  type CodedKind, type DynamicMeasured, type DynamicTestKind, type NumericKind,
+  KIND_UNITS,
+  OBSERVATION_CODES,
+  TIDEMARK_ANSWERS,
+  type CodedKind,
+  type DynamicMeasured,
+  type DynamicTestKind,
+  type NumericKind,
 } from '../../src/fhir/codes.js';
 import type {
-  CodedMeasurement, ConditionEntry, DraftOrder, DynamicTestResult, Exclusion, FluidClass, FluidGiven, Measurement,
-  PatientSnapshot, VasoactiveDrug,
+  CodedMeasurement,
+  ConditionEntry,
+  DraftOrder,
+  DynamicTestResult,
+  Exclusion,
+  FluidClass,
+  FluidGiven,
+  Measurement,
+  PatientSnapshot,
+  VasoactiveDrug,
 } from '../../src/snapshot/types.js';
 
 /** The default instant of test snapshots (a fixed, invented time). */
@@ -35,7 +48,13 @@ export interface When {
 
 /** Canonical unit of each measured variable of a dynamic test. */
 export const DYNAMIC_MEASURED_UNITS: Record<DynamicMeasured, string> = {
-  cardiacOutput: 'L/min', cardiacIndex: 'L/min/m2', strokeVolume: 'mL', pulsePressure: 'mm[Hg]', vti: 'cm', ppv: '%', svv: '%',
+  cardiacOutput: 'L/min',
+  cardiacIndex: 'L/min/m2',
+  strokeVolume: 'mL',
+  pulsePressure: 'mm[Hg]',
+  vti: 'cm',
+  ppv: '%',
+  svv: '%',
 };
 
 export class SnapshotBuilder {
@@ -43,17 +62,27 @@ export class SnapshotBuilder {
   private readonly snapshot: PatientSnapshot;
   private counter = 0;
 
-  constructor(opts: { now?: string | Date; sex?: Sex; patientRef?: string; birthDate?: string; ageYears?: number; encounterRef?: string } = {}) {
+  constructor(
+    opts: { now?: string | Date; sex?: Sex; patientRef?: string; birthDate?: string; ageYears?: number; encounterRef?: string } = {},
+  ) {
     this.now = new Date(opts.now ?? DEFAULT_NOW);
     this.snapshot = {
       patient: {
-        ref: opts.patientRef ?? 'Patient/test-1', sex: opts.sex ?? 'male',
+        ref: opts.patientRef ?? 'Patient/test-1',
+        sex: opts.sex ?? 'male',
         ...(opts.birthDate !== undefined ? { birthDate: opts.birthDate } : {}),
         ...(opts.ageYears !== undefined ? { ageYears: opts.ageYears } : {}),
       },
       ...(opts.encounterRef ? { encounter: { ref: opts.encounterRef, status: 'in-progress' } } : {}),
       now: this.now.toISOString(),
-      measurements: [], coded: [], dynamicTests: [], fluids: [], vasoactives: [], conditions: [], draftOrders: [], excluded: [],
+      measurements: [],
+      coded: [],
+      dynamicTests: [],
+      fluids: [],
+      vasoactives: [],
+      conditions: [],
+      draftOrders: [],
+      excluded: [],
     };
   }
 
@@ -77,7 +106,9 @@ export class SnapshotBuilder {
     const code = OBSERVATION_CODES.find((c) => c.kind === kind);
     const unit = w.unit ?? KIND_UNITS[kind];
     const m: Measurement = {
-      kind, value, unit,
+      kind,
+      value,
+      unit,
       original: { value, unit, code: code?.code ?? kind, system: code?.system ?? 'urn:test' },
       ...this.resolve(w),
       ...(w.periodStartAgeMin !== undefined ? { periodStart: this.time(w.periodStartAgeMin) } : {}),
@@ -101,7 +132,10 @@ export class SnapshotBuilder {
   /** A coded observation (answer code from TIDEMARK_ANSWERS, e.g. 'sinus'). */
   coded(kind: CodedKind, answer: string, w: When = {}): this {
     const c: CodedMeasurement = {
-      kind, answer, original: { system: TIDEMARK_ANSWERS, code: answer }, ...this.resolve(w),
+      kind,
+      answer,
+      original: { system: TIDEMARK_ANSWERS, code: answer },
+      ...this.resolve(w),
       ref: w.ref ?? this.nextRef('Observation', kind),
     };
     this.snapshot.coded.push(c);
@@ -111,7 +145,12 @@ export class SnapshotBuilder {
   /** A before/after dynamic test. */
   dynamicTest(kind: DynamicTestKind, measured: DynamicMeasured, before: number, after: number, w: When & { unit?: string } = {}): this {
     const d: DynamicTestResult = {
-      kind, measured, before, after, unit: w.unit ?? DYNAMIC_MEASURED_UNITS[measured], ...this.resolve(w),
+      kind,
+      measured,
+      before,
+      after,
+      unit: w.unit ?? DYNAMIC_MEASURED_UNITS[measured],
+      ...this.resolve(w),
       ref: w.ref ?? this.nextRef('Observation', kind),
     };
     this.snapshot.dynamicTests.push(d);
@@ -119,12 +158,24 @@ export class SnapshotBuilder {
   }
 
   /** A fluid given (default: completed 500 mL balanced crystalloid). */
-  fluid(f: { volumeMl?: number; startAgeMin: number; endAgeMin: number; fluidClass?: FluidClass; display?: string; status?: string; ref?: string }): this {
+  fluid(f: {
+    volumeMl?: number;
+    startAgeMin: number;
+    endAgeMin: number;
+    fluidClass?: FluidClass;
+    display?: string;
+    status?: string;
+    ref?: string;
+  }): this {
     const end = this.time(f.endAgeMin);
     const g: FluidGiven = {
       ref: f.ref ?? this.nextRef('MedicationAdministration', 'fluid'),
-      fluidClass: f.fluidClass ?? 'balanced-crystalloid', display: f.display ?? 'Ringer lactate',
-      volumeMl: f.volumeMl ?? 500, start: this.time(f.startAgeMin), end, status: f.status ?? 'completed',
+      fluidClass: f.fluidClass ?? 'balanced-crystalloid',
+      display: f.display ?? 'Ringer lactate',
+      volumeMl: f.volumeMl ?? 500,
+      start: this.time(f.startAgeMin),
+      end,
+      status: f.status ?? 'completed',
       ageMinutes: f.endAgeMin,
     };
     this.snapshot.fluids.push(g);
@@ -132,10 +183,19 @@ export class SnapshotBuilder {
   }
 
   /** A vasoactive administration period (no endAgeMin: still running). */
-  vasoactive(v: { drug: string; startAgeMin: number; endAgeMin?: number; rate?: { value: number; unit: string }; status?: string; ref?: string }): this {
+  vasoactive(v: {
+    drug: string;
+    startAgeMin: number;
+    endAgeMin?: number;
+    rate?: { value: number; unit: string };
+    status?: string;
+    ref?: string;
+  }): this {
     const d: VasoactiveDrug = {
-      ref: v.ref ?? this.nextRef('MedicationAdministration', 'vasoactive'), drug: v.drug,
-      ...(v.rate ? { rate: v.rate } : {}), start: this.time(v.startAgeMin),
+      ref: v.ref ?? this.nextRef('MedicationAdministration', 'vasoactive'),
+      drug: v.drug,
+      ...(v.rate ? { rate: v.rate } : {}),
+      start: this.time(v.startAgeMin),
       ...(v.endAgeMin !== undefined ? { end: this.time(v.endAgeMin) } : {}),
       status: v.status ?? (v.endAgeMin === undefined ? 'in-progress' : 'completed'),
     };

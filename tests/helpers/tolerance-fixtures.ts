@@ -3,7 +3,15 @@
  * the canonical units (the snapshot layer's job); `unit` may be overridden to test the wrong-unit guard.
  */
 import { CODED_OBSERVATION_CODES, KIND_UNITS, OBSERVATION_CODES, type CodedKind, type NumericKind } from '../../src/fhir/codes.js';
-import type { CodedMeasurement, ConditionEntry, DraftOrder, FluidClass, FluidGiven, Measurement, PatientSnapshot } from '../../src/snapshot/types.js';
+import type {
+  CodedMeasurement,
+  ConditionEntry,
+  DraftOrder,
+  FluidClass,
+  FluidGiven,
+  Measurement,
+  PatientSnapshot,
+} from '../../src/snapshot/types.js';
 import type { Finding, ToleranceFinding } from '../../src/assess/types.js';
 import { DEFAULT_TOLERANCE_THRESHOLDS, type ToleranceThresholds } from '../../src/assess/tolerance/thresholds.js';
 
@@ -31,7 +39,9 @@ export function m(kind: NumericKind, value: number, minutesAgo: number, o: Measu
   const code = OBSERVATION_CODES.find((c) => c.kind === kind)!;
   const unit = o.unit ?? KIND_UNITS[kind];
   return {
-    kind, value, unit,
+    kind,
+    value,
+    unit,
     original: { value, unit, code: code.code, system: code.system },
     effective: at(minutesAgo, now),
     ...(o.periodMinutes !== undefined ? { periodStart: at(minutesAgo + o.periodMinutes, now) } : {}),
@@ -43,16 +53,32 @@ export function m(kind: NumericKind, value: number, minutesAgo: number, o: Measu
 export function coded(kind: CodedKind, answer: string, minutesAgo: number, o: { ref?: string; now?: Date } = {}): CodedMeasurement {
   const code = CODED_OBSERVATION_CODES.find((c) => c.kind === kind)!;
   return {
-    kind, answer, original: { system: code.system, code: answer },
-    effective: at(minutesAgo, o.now ?? NOW), ageMinutes: minutesAgo, ref: o.ref ?? nextRef('Observation'),
+    kind,
+    answer,
+    original: { system: code.system, code: answer },
+    effective: at(minutesAgo, o.now ?? NOW),
+    ageMinutes: minutesAgo,
+    ref: o.ref ?? nextRef('Observation'),
   };
 }
 
-export function fluid(fluidClass: FluidClass, volumeMl: number, startMinutesAgo: number, endMinutesAgo: number, o: { ref?: string; now?: Date } = {}): FluidGiven {
+export function fluid(
+  fluidClass: FluidClass,
+  volumeMl: number,
+  startMinutesAgo: number,
+  endMinutesAgo: number,
+  o: { ref?: string; now?: Date } = {},
+): FluidGiven {
   const now = o.now ?? NOW;
   return {
-    ref: o.ref ?? nextRef('MedicationAdministration'), fluidClass, display: fluidClass, volumeMl,
-    start: at(startMinutesAgo, now), end: at(endMinutesAgo, now), status: 'completed', ageMinutes: endMinutesAgo,
+    ref: o.ref ?? nextRef('MedicationAdministration'),
+    fluidClass,
+    display: fluidClass,
+    volumeMl,
+    start: at(startMinutesAgo, now),
+    end: at(endMinutesAgo, now),
+    status: 'completed',
+    ageMinutes: endMinutesAgo,
   };
 }
 
@@ -62,9 +88,17 @@ export function condition(system: string, code: string, clinicalStatus = 'active
 
 export function order(o: Partial<DraftOrder> = {}): DraftOrder {
   return {
-    ref: 'draftOrders#MedicationRequest/tm-bolus-1', resourceType: 'MedicationRequest', id: 'tm-bolus-1', selected: true,
-    isFluid: true, fluidClass: 'balanced-crystalloid', display: 'Balanced crystalloid', volumeMl: 500, durationMin: 30,
-    resource: { resourceType: 'MedicationRequest', id: 'tm-bolus-1' }, ...o,
+    ref: 'draftOrders#MedicationRequest/tm-bolus-1',
+    resourceType: 'MedicationRequest',
+    id: 'tm-bolus-1',
+    selected: true,
+    isFluid: true,
+    fluidClass: 'balanced-crystalloid',
+    display: 'Balanced crystalloid',
+    volumeMl: 500,
+    durationMin: 30,
+    resource: { resourceType: 'MedicationRequest', id: 'tm-bolus-1' },
+    ...o,
   };
 }
 

@@ -8,7 +8,11 @@ import { NOW, orderSelectRequest, prefetchOf } from '../helpers/hook-fixtures.js
 import { post, startService, type Running } from '../helpers/server.js';
 
 let s: Running;
-const run = (...args: string[]) => spawnSync(process.execPath, ['--import', 'tsx', 'src/cli/audit.ts', ...args], { env: { ...process.env, TIDEMARK_SQLITE_PATH: s.dbPath }, encoding: 'utf8' });
+const run = (...args: string[]) =>
+  spawnSync(process.execPath, ['--import', 'tsx', 'src/cli/audit.ts', ...args], {
+    env: { ...process.env, TIDEMARK_SQLITE_PATH: s.dbPath },
+    encoding: 'utf8',
+  });
 
 beforeAll(async () => {
   s = await startService({}, { now: () => NOW });
@@ -22,7 +26,10 @@ describe('npm run audit', () => {
   it('export writes every record once as NDJSON; replay reports no change under the same rules', () => {
     const r = run('export');
     expect(r.status).toBe(0);
-    const lines = r.stdout.trim().split('\n').map((l) => JSON.parse(l));
+    const lines = r.stdout
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l));
     expect(lines).toHaveLength(5);
     expect(new Set(lines.map((l) => l.id)).size).toBe(5);
     expect(lines[0].seq).toBeGreaterThan(lines[4].seq);

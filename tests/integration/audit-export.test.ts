@@ -24,22 +24,19 @@ function parseCsv(text: string): string[][] {
       if (ch === '"' && text[i + 1] === '"') {
         cell += '"';
         i += 1;
-      }
-      else if (ch === '"') quoted = false;
+      } else if (ch === '"') quoted = false;
       else cell += ch;
     } else if (ch === '"') quoted = true;
     else if (ch === ',') {
       row.push(cell);
       cell = '';
-    }
-    else if (ch === '\r' && text[i + 1] === '\n') {
+    } else if (ch === '\r' && text[i + 1] === '\n') {
       row.push(cell);
       rows.push(row);
       row = [];
       cell = '';
       i += 1;
-    }
-    else cell += ch;
+    } else cell += ch;
   }
   return rows;
 }
@@ -50,7 +47,14 @@ beforeAll(async () => {
   const card = q.body.cards[0];
   overriddenCard = { uuid: card.uuid, reason: card.overrideReasons[0] };
   await post(`${s.url}/cds-services/bolus-review-select/feedback`, {
-    feedback: [{ card: card.uuid, outcome: 'overridden', overrideReason: { reason: card.overrideReasons[0] }, outcomeTimestamp: '2026-11-20T14:02:00Z' }],
+    feedback: [
+      {
+        card: card.uuid,
+        outcome: 'overridden',
+        overrideReason: { reason: card.overrideReasons[0] },
+        outcomeTimestamp: '2026-11-20T14:02:00Z',
+      },
+    ],
   });
   // A patient id that a spreadsheet would read as a formula (a valid FHIR id: letters, digits, '-' and '.').
   const hostile = orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES.proceed) });
@@ -68,8 +72,21 @@ describe('export --format csv', () => {
     expect(r.stdout.endsWith('\r\n')).toBe(true);
     const [header, ...rows] = parseCsv(r.stdout);
     expect(header).toEqual([
-      'advice_id', 'recorded_at', 'service', 'outcome', 'patient_id', 'encounter_id', 'user_id', 'responsiveness', 'tolerance',
-      'indicator', 'card_kinds', 'feedback_outcome', 'override_reason', 'rules_version', 'latency_ms',
+      'advice_id',
+      'recorded_at',
+      'service',
+      'outcome',
+      'patient_id',
+      'encounter_id',
+      'user_id',
+      'responsiveness',
+      'tolerance',
+      'indicator',
+      'card_kinds',
+      'feedback_outcome',
+      'override_reason',
+      'rules_version',
+      'latency_ms',
     ]);
     expect(rows).toHaveLength(2);
     const col = (row: string[], name: string) => row[(header as string[]).indexOf(name)];
@@ -92,7 +109,12 @@ describe('export --format csv', () => {
 
   it('NDJSON stays the default; an unknown format is refused with exit 2', async () => {
     const nd = await cli('export');
-    expect(nd.stdout.trim().split('\n').map((l) => JSON.parse(l).patientId)).toEqual(['-2-3', 'tm-pat-ward4-017']);
+    expect(
+      nd.stdout
+        .trim()
+        .split('\n')
+        .map((l) => JSON.parse(l).patientId),
+    ).toEqual(['-2-3', 'tm-pat-ward4-017']);
     expect((await cli('export', '--format', 'xlsx')).status).toBe(2);
   });
 });
@@ -104,7 +126,12 @@ describe('the tidemark-audit bin', () => {
     const v = await auditBin({ TIDEMARK_SQLITE_PATH: s.dbPath }, 'verify');
     expect(v).toMatchObject({ status: 0, stdout: 'audit chain intact: 2 records\n' });
     const e = await auditBin({ TIDEMARK_SQLITE_PATH: s.dbPath }, 'export');
-    expect(e.stdout.trim().split('\n').map((l) => JSON.parse(l).id)).toHaveLength(2);
+    expect(
+      e.stdout
+        .trim()
+        .split('\n')
+        .map((l) => JSON.parse(l).id),
+    ).toHaveLength(2);
     expect((await auditBin({}, 'shred')).status).toBe(2);
   });
 });

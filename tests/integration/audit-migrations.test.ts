@@ -60,14 +60,32 @@ const postgres020 = (s: string): string[] => [
 function record(i: number): AdviceRecord {
   const uuid = randomUUID();
   const rec: Omit<AnsweredRecord, 'snapshot' | 'advice'> = {
-    id: randomUUID(), recordedAt: new Date(Date.parse('2026-06-01T08:00:00Z') + i * 60_000).toISOString(), service: 'bolus-review-select', hook: 'order-select',
-    hookInstance: randomUUID(), patientId: 'pt-heron-3', outcome: 'answered', rulesVersion: '0.2.0+rules.0a1b2c3d', findings: [],
-    cards: [{ uuid, summary: 'Invented card', indicator: 'info', source: { label: 'Tidemark' } }], cardKinds: { [uuid]: 'volume-ok' },
-    gathering: [], timings: { totalMs: 12, gatherMs: 1, fhirWaitMs: 0, assessMs: 3 }, client: { issuer: 'https://ehr.heron-invented.example' },
+    id: randomUUID(),
+    recordedAt: new Date(Date.parse('2026-06-01T08:00:00Z') + i * 60_000).toISOString(),
+    service: 'bolus-review-select',
+    hook: 'order-select',
+    hookInstance: randomUUID(),
+    patientId: 'pt-heron-3',
+    outcome: 'answered',
+    rulesVersion: '0.2.0+rules.0a1b2c3d',
+    findings: [],
+    cards: [{ uuid, summary: 'Invented card', indicator: 'info', source: { label: 'Tidemark' } }],
+    cardKinds: { [uuid]: 'volume-ok' },
+    gathering: [],
+    timings: { totalMs: 12, gatherMs: 1, fhirWaitMs: 0, assessMs: 3 },
+    client: { issuer: 'https://ehr.heron-invented.example' },
   };
   const snapshot = {
-    patient: { ref: 'Patient/pt-heron-3', sex: 'unknown' as const }, now: rec.recordedAt, measurements: [], coded: [], dynamicTests: [], fluids: [],
-    vasoactives: [], conditions: [], draftOrders: [], excluded: [],
+    patient: { ref: 'Patient/pt-heron-3', sex: 'unknown' as const },
+    now: rec.recordedAt,
+    measurements: [],
+    coded: [],
+    dynamicTests: [],
+    fluids: [],
+    vasoactives: [],
+    conditions: [],
+    draftOrders: [],
+    excluded: [],
   };
   return { ...rec, snapshot, advice: { rulesVersion: rec.rulesVersion, now: rec.recordedAt, findings: [], ruleErrors: [] } };
 }
@@ -98,9 +116,24 @@ describe('a SQLite store written by Tidemark 0.2.0', () => {
     const db = new Database(path);
     db.exec(SQLITE_0_2_0);
     for (const r of old) {
-      db.prepare(`INSERT INTO advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash)
-        VALUES (?, ?, ?, ?, ?, ?, NULL, ?, ?, ?, ?, ?)`).run(r.rec.id, r.rec.recordedAt, r.rec.service, r.rec.hook, r.rec.hookInstance, r.rec.patientId, r.rec.outcome, r.rec.rulesVersion, r.text, r.prev, r.hash);
-      for (const [uuid, kind] of Object.entries(r.rec.cardKinds)) db.prepare('INSERT INTO advice_card VALUES (?, ?, ?, ?)').run(uuid, r.rec.id, kind, r.rec.service);
+      db.prepare(
+        `INSERT INTO advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash)
+        VALUES (?, ?, ?, ?, ?, ?, NULL, ?, ?, ?, ?, ?)`,
+      ).run(
+        r.rec.id,
+        r.rec.recordedAt,
+        r.rec.service,
+        r.rec.hook,
+        r.rec.hookInstance,
+        r.rec.patientId,
+        r.rec.outcome,
+        r.rec.rulesVersion,
+        r.text,
+        r.prev,
+        r.hash,
+      );
+      for (const [uuid, kind] of Object.entries(r.rec.cardKinds))
+        db.prepare('INSERT INTO advice_card VALUES (?, ?, ?, ?)').run(uuid, r.rec.id, kind, r.rec.service);
     }
     expect(db.pragma('user_version', { simple: true })).toBe(0);
     db.close();
@@ -121,7 +154,9 @@ describe('a SQLite store written by Tidemark 0.2.0', () => {
     }
     const check = new Database(path, { readonly: true });
     const columns = (check.pragma('table_info(advice)') as Array<{ name: string }>).map((c) => c.name);
-    const indexes = (check.prepare("SELECT name FROM sqlite_master WHERE type = 'index' AND name NOT LIKE 'sqlite_%'").all() as Array<{ name: string }>).map((r) => r.name);
+    const indexes = (
+      check.prepare("SELECT name FROM sqlite_master WHERE type = 'index' AND name NOT LIKE 'sqlite_%'").all() as Array<{ name: string }>
+    ).map((r) => r.name);
     check.close();
     expect(columns).toContain('issuer');
     expect(indexes).toContain('advice_card_advice');
@@ -171,9 +206,22 @@ describe('a PostgreSQL schema written by Tidemark 0.2.0, and the two dialects si
       await admin.query(
         `INSERT INTO ${s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, outcome, rules_version, record, prev_hash, hash)
          VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11)`,
-        [r.rec.id, r.rec.recordedAt, r.rec.service, r.rec.hook, r.rec.hookInstance, r.rec.patientId, r.rec.outcome, r.rec.rulesVersion, r.text, r.prev, r.hash],
+        [
+          r.rec.id,
+          r.rec.recordedAt,
+          r.rec.service,
+          r.rec.hook,
+          r.rec.hookInstance,
+          r.rec.patientId,
+          r.rec.outcome,
+          r.rec.rulesVersion,
+          r.text,
+          r.prev,
+          r.hash,
+        ],
       );
-      for (const [uuid, kind] of Object.entries(r.rec.cardKinds)) await admin.query(`INSERT INTO ${s}.advice_card VALUES ($1, $2, $3, $4)`, [uuid, r.rec.id, kind, r.rec.service]);
+      for (const [uuid, kind] of Object.entries(r.rec.cardKinds))
+        await admin.query(`INSERT INTO ${s}.advice_card VALUES ($1, $2, $3, $4)`, [uuid, r.rec.id, kind, r.rec.service]);
     }
     const store = new PostgresAuditStore(PG_URL, { schema, poolSize: 2 });
     try {
@@ -204,17 +252,31 @@ describe('a PostgreSQL schema written by Tidemark 0.2.0, and the two dialects si
       await lite.init();
       await lite.close();
       const db = new Database(path, { readonly: true });
-      const liteTables = (db.prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name").all() as Array<{ name: string }>).map((r) => r.name);
-      const liteColumns = Object.fromEntries(liteTables.map((t) => [t, (db.pragma(`table_info(${t})`) as Array<{ name: string }>).map((c) => c.name).sort()]));
-      const liteIndexes = (db.prepare("SELECT name FROM sqlite_master WHERE type = 'index' AND name NOT LIKE 'sqlite_%' ORDER BY name").all() as Array<{ name: string }>).map((r) => r.name);
+      const liteTables = (
+        db.prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' ORDER BY name").all() as Array<{
+          name: string;
+        }>
+      ).map((r) => r.name);
+      const liteColumns = Object.fromEntries(
+        liteTables.map((t) => [t, (db.pragma(`table_info(${t})`) as Array<{ name: string }>).map((c) => c.name).sort()]),
+      );
+      const liteIndexes = (
+        db.prepare("SELECT name FROM sqlite_master WHERE type = 'index' AND name NOT LIKE 'sqlite_%' ORDER BY name").all() as Array<{
+          name: string;
+        }>
+      ).map((r) => r.name);
       db.close();
 
       const cols = await admin.query<{ table_name: string; column_name: string }>(
-        'SELECT table_name, column_name FROM information_schema.columns WHERE table_schema = $1 ORDER BY table_name, column_name', [schema],
+        'SELECT table_name, column_name FROM information_schema.columns WHERE table_schema = $1 ORDER BY table_name, column_name',
+        [schema],
       );
       const pgColumns: Record<string, string[]> = {};
       for (const r of cols.rows) (pgColumns[r.table_name] ??= []).push(r.column_name);
-      const idx = await admin.query<{ indexname: string }>("SELECT indexname FROM pg_indexes WHERE schemaname = $1 AND indexname NOT LIKE '%_pkey' AND indexname NOT LIKE '%_key' ORDER BY indexname", [schema]);
+      const idx = await admin.query<{ indexname: string }>(
+        "SELECT indexname FROM pg_indexes WHERE schemaname = $1 AND indexname NOT LIKE '%_pkey' AND indexname NOT LIKE '%_key' ORDER BY indexname",
+        [schema],
+      );
 
       // Named differences: PostgreSQL's feedback.arrival is SQLite's rowid; the jti cache and the version table are
       // PostgreSQL's (SQLite keeps its version in PRAGMA user_version).

@@ -44,9 +44,13 @@ async function cardFor(who: TestIssuer, tenant?: string) {
 }
 
 const feedbackAs = async (who: TestIssuer, feedback: unknown[], tenant?: string) =>
-  post(`${s.url}/cds-services/${SERVICE}/feedback`, { feedback }, {
-    authorization: `Bearer ${await who.mint(`${PUBLIC}/cds-services/${SERVICE}/feedback`, tenant === undefined ? {} : { tenant })}`,
-  });
+  post(
+    `${s.url}/cds-services/${SERVICE}/feedback`,
+    { feedback },
+    {
+      authorization: `Bearer ${await who.mint(`${PUBLIC}/cds-services/${SERVICE}/feedback`, tenant === undefined ? {} : { tenant })}`,
+    },
+  );
 
 /** The feedback stored for the advice that holds `cardUuid`, read with the static audit token. */
 async function storedFeedback(cardUuid: string): Promise<unknown[]> {
@@ -75,9 +79,13 @@ describe('audit readers are an allowlist of their own', () => {
   });
 
   it("an audit reader's token opens no CDS endpoint", async () => {
-    const r = await post(`${s.url}/cds-services/${SERVICE}`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['smaller-aliquot']) }), {
-      authorization: `Bearer ${await reader.mint(`${PUBLIC}/cds-services/${SERVICE}`)}`,
-    });
+    const r = await post(
+      `${s.url}/cds-services/${SERVICE}`,
+      orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['smaller-aliquot']) }),
+      {
+        authorization: `Bearer ${await reader.mint(`${PUBLIC}/cds-services/${SERVICE}`)}`,
+      },
+    );
     expect(r.status).toBe(401);
   });
 });
@@ -85,19 +93,40 @@ describe('audit readers are an allowlist of their own', () => {
 describe('feedback only from the issuer that received the card, with the card own choices', () => {
   it("another issuer's feedback on a card is a 404, as for a card never issued, and nothing is stored", async () => {
     const card = await cardFor(north);
-    const r = await feedbackAs(south, [{ card: card.uuid, outcome: 'overridden', overrideReason: { reason: card.overrideReasons[0] }, outcomeTimestamp: '2026-11-20T14:01:00Z' }]);
+    const r = await feedbackAs(south, [
+      {
+        card: card.uuid,
+        outcome: 'overridden',
+        overrideReason: { reason: card.overrideReasons[0] },
+        outcomeTimestamp: '2026-11-20T14:01:00Z',
+      },
+    ]);
     expect(r.status).toBe(404);
     expect(r.body.resourceType).toBe('OperationOutcome');
     expect(await storedFeedback(card.uuid)).toEqual([]);
     // The issuer that received it is heard.
-    const own = await feedbackAs(north, [{ card: card.uuid, outcome: 'overridden', overrideReason: { reason: card.overrideReasons[0] }, outcomeTimestamp: '2026-11-20T14:01:00Z' }]);
+    const own = await feedbackAs(north, [
+      {
+        card: card.uuid,
+        outcome: 'overridden',
+        overrideReason: { reason: card.overrideReasons[0] },
+        outcomeTimestamp: '2026-11-20T14:01:00Z',
+      },
+    ]);
     expect(own).toEqual({ status: 200, body: { stored: 1, duplicates: 0 } });
-    expect(await storedFeedback(card.uuid)).toMatchObject([{ cardUuid: card.uuid, outcome: 'overridden', overrideReason: { code: card.overrideReasons[0].code } }]);
+    expect(await storedFeedback(card.uuid)).toMatchObject([
+      { cardUuid: card.uuid, outcome: 'overridden', overrideReason: { code: card.overrideReasons[0].code } },
+    ]);
   });
 
   it('one issuer serving several tenants: feedback only for the tenant whose call received the card', async () => {
     const card = await cardFor(vendor, 'ward-a');
-    const item = { card: card.uuid, outcome: 'overridden', overrideReason: { reason: card.overrideReasons[0] }, outcomeTimestamp: '2026-11-20T14:06:00Z' };
+    const item = {
+      card: card.uuid,
+      outcome: 'overridden',
+      overrideReason: { reason: card.overrideReasons[0] },
+      outcomeTimestamp: '2026-11-20T14:06:00Z',
+    };
     expect((await feedbackAs(vendor, [item], 'ward-b')).status).toBe(404);
     expect((await feedbackAs(vendor, [item])).status).toBe(401); // this issuer lists tenants: a token without one is refused
     expect(await storedFeedback(card.uuid)).toEqual([]);
@@ -106,7 +135,12 @@ describe('feedback only from the issuer that received the card, with the card ow
 
   it('a suggestion id or an override reason the card did not offer is a 400 OperationOutcome, and nothing of the batch is stored', async () => {
     const card = await cardFor(north);
-    const good = { card: card.uuid, outcome: 'accepted', acceptedSuggestions: [{ id: card.suggestions[0].uuid }], outcomeTimestamp: '2026-11-20T14:02:00Z' };
+    const good = {
+      card: card.uuid,
+      outcome: 'accepted',
+      acceptedSuggestions: [{ id: card.suggestions[0].uuid }],
+      outcomeTimestamp: '2026-11-20T14:02:00Z',
+    };
     const foreignSuggestion = { ...good, acceptedSuggestions: [{ id: randomUUID() }], outcomeTimestamp: '2026-11-20T14:03:00Z' };
     const r1 = await feedbackAs(north, [good, foreignSuggestion]);
     expect(r1.status).toBe(400);
@@ -114,8 +148,13 @@ describe('feedback only from the issuer that received the card, with the card ow
     expect(JSON.stringify(r1.body)).toContain('feedback.1.acceptedSuggestions.0.id');
 
     const reason = card.overrideReasons[0];
-    for (const madeUp of [{ ...reason, code: 'never-offered' }, { ...reason, system: 'https://elsewhere.invented.example/reasons' }]) {
-      const r2 = await feedbackAs(north, [{ card: card.uuid, outcome: 'overridden', overrideReason: { reason: madeUp }, outcomeTimestamp: '2026-11-20T14:04:00Z' }]);
+    for (const madeUp of [
+      { ...reason, code: 'never-offered' },
+      { ...reason, system: 'https://elsewhere.invented.example/reasons' },
+    ]) {
+      const r2 = await feedbackAs(north, [
+        { card: card.uuid, outcome: 'overridden', overrideReason: { reason: madeUp }, outcomeTimestamp: '2026-11-20T14:04:00Z' },
+      ]);
       expect(r2.status).toBe(400);
       expect(JSON.stringify(r2.body)).toContain('feedback.0.overrideReason.reason');
     }
@@ -132,7 +171,9 @@ describe('feedback only from the issuer that received the card, with the card ow
     const uuid = randomUUID();
     const old: AdviceRecord = { ...rest, id: randomUUID(), cards: [{ ...card, uuid }], cardKinds: { [uuid]: 'bolus-review' } };
     await s.svc.store.append(old);
-    const r = await feedbackAs(north, [{ card: uuid, outcome: 'overridden', overrideReason: { reason: card.overrideReasons[0] }, outcomeTimestamp: '2026-11-20T14:05:00Z' }]);
+    const r = await feedbackAs(north, [
+      { card: uuid, outcome: 'overridden', overrideReason: { reason: card.overrideReasons[0] }, outcomeTimestamp: '2026-11-20T14:05:00Z' },
+    ]);
     expect(r.status).toBe(404);
     expect((await get(`${s.url}/audit/advice/${old.id}`, AUDIT_HEADERS)).body).toMatchObject({ id: old.id, feedback: [] });
     expect((await get(`${s.url}/audit/verify`, AUDIT_HEADERS)).body).toMatchObject({ ok: true });

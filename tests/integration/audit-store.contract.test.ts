@@ -58,9 +58,24 @@ function adviceRecord(o: AdviceOpts = {}): AnsweredRecord {
     rulesVersion: '0.1.0+cards.ab12cd34',
     findings: [
       {
-        ruleId: 'perfusion.map', topic: 'perfusion', sign: 'map', hypoperfusion: true, contextOnly: false, status: 'assessed',
-        text: 'MAP 58 mmHg, below target 65 mmHg', values: { mapMmHg: 58.333333333333336, belowTarget: true, tiny: 1e-7 },
-        evidence: [{ ref: 'Observation/inv-bp-1', kind: 'meanArterialPressure', value: 58.333333333333336, unit: 'mm[Hg]', effective: at(-5), ageMinutes: 5 }],
+        ruleId: 'perfusion.map',
+        topic: 'perfusion',
+        sign: 'map',
+        hypoperfusion: true,
+        contextOnly: false,
+        status: 'assessed',
+        text: 'MAP 58 mmHg, below target 65 mmHg',
+        values: { mapMmHg: 58.333333333333336, belowTarget: true, tiny: 1e-7 },
+        evidence: [
+          {
+            ref: 'Observation/inv-bp-1',
+            kind: 'meanArterialPressure',
+            value: 58.333333333333336,
+            unit: 'mm[Hg]',
+            effective: at(-5),
+            ageMinutes: 5,
+          },
+        ],
       },
     ],
     cards,
@@ -71,8 +86,16 @@ function adviceRecord(o: AdviceOpts = {}): AnsweredRecord {
   };
   // The store keeps whatever an answered record holds; a minimal snapshot and advice stand for the rules' output.
   const snapshot: AnsweredRecord['snapshot'] = {
-    patient: { ref: `Patient/${patientId ?? 'none'}`, sex: 'unknown' }, now: rec.recordedAt, measurements: [], coded: [], dynamicTests: [], fluids: [],
-    vasoactives: [], conditions: [], draftOrders: [], excluded: [],
+    patient: { ref: `Patient/${patientId ?? 'none'}`, sex: 'unknown' },
+    now: rec.recordedAt,
+    measurements: [],
+    coded: [],
+    dynamicTests: [],
+    fluids: [],
+    vasoactives: [],
+    conditions: [],
+    draftOrders: [],
+    excluded: [],
   };
   return { ...rec, snapshot, advice: { rulesVersion: rec.rulesVersion, now: rec.recordedAt, findings: [], ruleErrors: [] } };
 }
@@ -85,7 +108,13 @@ function cardsOf(r: AdviceRecord): string[] {
 
 function feedbackRow(cardUuid: string, over: Partial<FeedbackRow> = {}): FeedbackRow {
   return {
-    cardUuid, outcome: 'accepted', acceptedSuggestions: [], outcomeTimestamp: at(30), receivedAt: at(31), service: 'bolus-select', ...over,
+    cardUuid,
+    outcome: 'accepted',
+    acceptedSuggestions: [],
+    outcomeTimestamp: at(30),
+    receivedAt: at(31),
+    service: 'bolus-select',
+    ...over,
   };
 }
 
@@ -215,7 +244,9 @@ function postgresHarness(): Harness {
     },
     async deleteAdvice(seq) {
       const id = String((await q(`SELECT id FROM "${schema}".advice WHERE seq = $1`, [seq])).rows[0]?.id);
-      await q(`DELETE FROM "${schema}".feedback WHERE card_uuid IN (SELECT card_uuid FROM "${schema}".advice_card WHERE advice_id = $1)`, [id]);
+      await q(`DELETE FROM "${schema}".feedback WHERE card_uuid IN (SELECT card_uuid FROM "${schema}".advice_card WHERE advice_id = $1)`, [
+        id,
+      ]);
       await q(`DELETE FROM "${schema}".advice_card WHERE advice_id = $1`, [id]);
       await q(`DELETE FROM "${schema}".advice WHERE id = $1`, [id]);
     },
@@ -290,7 +321,12 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const reused = cardsOf(r1)[0] ?? '';
     await expect(store.append({ ...reuse, cardKinds: { [reused]: 'data-gap' } })).rejects.toThrow();
     expect(await store.get(reuse.id)).toBeUndefined();
-    expect(await store.cardOwner(reused)).toEqual({ adviceId: r1.id, cardKind: 'volume-ok', service: 'bolus-select', issuer: 'https://ehr.invented.example' });
+    expect(await store.cardOwner(reused)).toEqual({
+      adviceId: r1.id,
+      cardKind: 'volume-ok',
+      service: 'bolus-select',
+      issuer: 'https://ehr.invented.example',
+    });
     const r2 = adviceRecord();
     await store.append(r2);
     expect(await store.verifyChain()).toEqual({ ok: true, checked: 2 });
@@ -391,8 +427,18 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     if (!r4) throw new Error('fixture');
     expect(page.items).toEqual([
       {
-        id: r4.id, seq: seqs[4], recordedAt: r4.recordedAt, service: 'fluid-overview', hook: 'order-select', hookInstance: r4.hookInstance,
-        outcome: 'answered', rulesVersion: r4.rulesVersion, cardCount: 1, indicators: ['warning'], latencyMs: 123.5, feedback: { accepted: 0, overridden: 0 },
+        id: r4.id,
+        seq: seqs[4],
+        recordedAt: r4.recordedAt,
+        service: 'fluid-overview',
+        hook: 'order-select',
+        hookInstance: r4.hookInstance,
+        outcome: 'answered',
+        rulesVersion: r4.rulesVersion,
+        cardCount: 1,
+        indicators: ['warning'],
+        latencyMs: 123.5,
+        feedback: { accepted: 0, overridden: 0 },
       },
     ]);
     expect(page.nextCursor).toBe(String(seqs[4]));
@@ -465,8 +511,18 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const r = adviceRecord({ kinds: ['volume-ok', 'data-gap'], service: 'bolus-sign' });
     await store.append(r);
     const [c1, c2] = cardsOf(r);
-    expect(await store.cardOwner(c1 ?? '')).toEqual({ adviceId: r.id, cardKind: 'volume-ok', service: 'bolus-sign', issuer: 'https://ehr.invented.example' });
-    expect(await store.cardOwner(c2 ?? '')).toEqual({ adviceId: r.id, cardKind: 'data-gap', service: 'bolus-sign', issuer: 'https://ehr.invented.example' });
+    expect(await store.cardOwner(c1 ?? '')).toEqual({
+      adviceId: r.id,
+      cardKind: 'volume-ok',
+      service: 'bolus-sign',
+      issuer: 'https://ehr.invented.example',
+    });
+    expect(await store.cardOwner(c2 ?? '')).toEqual({
+      adviceId: r.id,
+      cardKind: 'data-gap',
+      service: 'bolus-sign',
+      issuer: 'https://ehr.invented.example',
+    });
     expect(await store.cardOwner(randomUUID())).toBeUndefined();
   });
 
@@ -476,7 +532,11 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const { client: _none, ...anonymous } = adviceRecord();
     await appendAll([other, anonymous]);
     expect((await store.cardOwner(cardsOf(other)[0] ?? ''))?.issuer).toBe('https://records.other-invented.example');
-    expect(await store.cardOwner(cardsOf(anonymous)[0] ?? '')).toEqual({ adviceId: anonymous.id, cardKind: 'volume-ok', service: 'bolus-select' });
+    expect(await store.cardOwner(cardsOf(anonymous)[0] ?? '')).toEqual({
+      adviceId: anonymous.id,
+      cardKind: 'volume-ok',
+      service: 'bolus-select',
+    });
   });
 
   it('adds the issuer column to tables made before it; their records stay readable, verifiable and attributable from their text', async () => {
@@ -505,14 +565,18 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const [c1, c2] = cardsOf(r) as [string, string];
     const f1 = feedbackRow(c1, { acceptedSuggestions: ['sugg-b', 'sugg-a'], outcomeTimestamp: at(10) });
     const f2 = feedbackRow(c2, {
-      outcome: 'overridden', outcomeTimestamp: at(11),
+      outcome: 'overridden',
+      outcomeTimestamp: at(11),
       overrideReason: { system: 'https://tidemark.invented.example/override', code: 'already-given', display: 'Bolus already given' },
       userComment: 'given in theatre',
     });
     expect(await store.addFeedback([f1, f2])).toEqual({ stored: 2, duplicates: 0 });
     expect(await store.addFeedback([f1, f2])).toEqual({ stored: 0, duplicates: 2 });
     // The same feedback received again later, suggestions in another order: still a duplicate.
-    expect(await store.addFeedback([{ ...f1, receivedAt: at(50), acceptedSuggestions: ['sugg-a', 'sugg-b'] }])).toEqual({ stored: 0, duplicates: 1 });
+    expect(await store.addFeedback([{ ...f1, receivedAt: at(50), acceptedSuggestions: ['sugg-a', 'sugg-b'] }])).toEqual({
+      stored: 0,
+      duplicates: 1,
+    });
     // A repeat inside one batch is stored once.
     const f3 = feedbackRow(c1, { outcomeTimestamp: at(12) });
     expect(await store.addFeedback([f3, f3])).toEqual({ stored: 1, duplicates: 1 });
@@ -564,7 +628,11 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
       feedbackRow(a2c1, { outcome: 'overridden', overrideReason: given }),
       feedbackRow(a3c1, { outcome: 'overridden', overrideReason: given, service: 'bolus-sign' }),
       feedbackRow(a3c2, { outcome: 'overridden', userComment: 'discussed on rounds', service: 'bolus-sign' }),
-      feedbackRow(a3c3, { outcome: 'overridden', overrideReason: { code: 'fluid-restricted', display: 'Fluid restricted' }, service: 'bolus-sign' }),
+      feedbackRow(a3c3, {
+        outcome: 'overridden',
+        overrideReason: { code: 'fluid-restricted', display: 'Fluid restricted' },
+        service: 'bolus-sign',
+      }),
     ]);
 
     expect(await store.feedbackStats({})).toEqual({
@@ -585,10 +653,13 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     // The list counts cards, as the statistics do (not feedback rows): a1's card accepted twice counts once.
     const listed = (await store.list({ limit: 10 })).items;
     expect(Object.fromEntries(listed.map((i) => [i.id, i.feedback]))).toEqual({
-      [a1.id]: { accepted: 1, overridden: 1 }, [a2.id]: { accepted: 0, overridden: 1 }, [a3.id]: { accepted: 0, overridden: 3 },
+      [a1.id]: { accepted: 1, overridden: 1 },
+      [a2.id]: { accepted: 0, overridden: 1 },
+      [a3.id]: { accepted: 0, overridden: 3 },
     });
     const stats = await store.feedbackStats({});
-    const sum = (xs: Array<{ accepted: number; overridden: number }>) => xs.reduce((t, x) => ({ accepted: t.accepted + x.accepted, overridden: t.overridden + x.overridden }), { accepted: 0, overridden: 0 });
+    const sum = (xs: Array<{ accepted: number; overridden: number }>) =>
+      xs.reduce((t, x) => ({ accepted: t.accepted + x.accepted, overridden: t.overridden + x.overridden }), { accepted: 0, overridden: 0 });
     expect(sum(listed.map((i) => i.feedback))).toEqual(sum(stats.byKind));
 
     expect(await store.feedbackStats({ service: 'bolus-select' })).toEqual({
@@ -618,7 +689,17 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
   describe('the console overview and the list filters (computed in SQL)', () => {
     // An invented trail with counts known by construction. 2031-03-02 is a Sunday (ISO week of Monday 2031-02-24),
     // 2031-03-03 a Monday and 2031-03-09 the Sunday of that week, 2031-03-10 the next Monday.
-    const rec = (iso: string, o: { service?: string; kinds?: string[]; indicators?: Array<'info' | 'warning' | 'critical'>; ms: number; verdicts?: [string, string]; failed?: boolean }): AdviceRecord => {
+    const rec = (
+      iso: string,
+      o: {
+        service?: string;
+        kinds?: string[];
+        indicators?: Array<'info' | 'warning' | 'critical'>;
+        ms: number;
+        verdicts?: [string, string];
+        failed?: boolean;
+      },
+    ): AdviceRecord => {
       const r = adviceRecord({ service: o.service ?? 'bolus-select', kinds: o.kinds ?? ['volume-ok'], totalMs: o.ms });
       r.recordedAt = iso;
       r.cards.forEach((c, i) => (c.indicator = o.indicators?.[i] ?? c.indicator));
@@ -628,7 +709,10 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
       }
       if (o.verdicts) {
         r.advice = {
-          rulesVersion: r.rulesVersion, now: iso, findings: [], ruleErrors: [],
+          rulesVersion: r.rulesVersion,
+          now: iso,
+          findings: [],
+          ruleErrors: [],
           responsiveness: { value: o.verdicts[0], rationale: 'invented', decidingRules: [] },
           tolerance: { value: o.verdicts[1], rationale: 'invented', decidingRules: [] },
         } as unknown as NonNullable<AdviceRecord['advice']>;
@@ -643,7 +727,13 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     const r6to8 = [1, 2, 3].map((ms, i) => rec(`2031-03-03T0${2 + i}:00:00.000Z`, { ms, verdicts: ['likely', 'adequate'] }));
     const r9 = rec('2031-03-09T12:00:00.000Z', { ms: 7.25, indicators: ['info'], verdicts: ['indeterminate', 'not-known'] });
     // 100 answers on one day with latencies 1..100 ms: nearest rank gives p50 = 50 and p99 = 99 (interpolation would not).
-    const hundred = Array.from({ length: 100 }, (_, i) => rec(`2031-03-10T10:${String(Math.floor(i / 2)).padStart(2, '0')}:0${i % 2}.000Z`, { ms: 100 - i, service: 'fluid-overview', kinds: [] }));
+    const hundred = Array.from({ length: 100 }, (_, i) =>
+      rec(`2031-03-10T10:${String(Math.floor(i / 2)).padStart(2, '0')}:0${i % 2}.000Z`, {
+        ms: 100 - i,
+        service: 'fluid-overview',
+        kinds: [],
+      }),
+    );
     const all = [r1, r2, r3, r4, r5, ...r6to8, r9, ...hundred];
 
     async function seeded(): Promise<void> {
@@ -702,20 +792,41 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
       });
       // Bounds on the recorded time (inclusive) and the service.
       const week = await store.overview({ from: '2031-03-03T00:00:00.000Z', to: '2031-03-09T23:59:59.999Z', service: 'bolus-select' });
-      expect(week.answersByDay.map((d) => [d.day, d.indicator, d.answers])).toEqual([['2031-03-03', 'critical', 1], ['2031-03-03', 'warning', 4], ['2031-03-09', 'info', 1]]);
-      expect(week.latencyByDay).toEqual([{ day: '2031-03-03', answers: 5, p50Ms: 3, p99Ms: 100 }, { day: '2031-03-09', answers: 1, p50Ms: 7.3, p99Ms: 7.3 }]);
-      expect(week.feedbackByWeek).toEqual([{ week: '2031-03-03', cardKind: 'volume-ok', cards: 6, accepted: 0, overridden: 1, noFeedback: 5 }]);
+      expect(week.answersByDay.map((d) => [d.day, d.indicator, d.answers])).toEqual([
+        ['2031-03-03', 'critical', 1],
+        ['2031-03-03', 'warning', 4],
+        ['2031-03-09', 'info', 1],
+      ]);
+      expect(week.latencyByDay).toEqual([
+        { day: '2031-03-03', answers: 5, p50Ms: 3, p99Ms: 100 },
+        { day: '2031-03-09', answers: 1, p50Ms: 7.3, p99Ms: 7.3 },
+      ]);
+      expect(week.feedbackByWeek).toEqual([
+        { week: '2031-03-03', cardKind: 'volume-ok', cards: 6, accepted: 0, overridden: 1, noFeedback: 5 },
+      ]);
       expect((await store.overview({ service: 'fluid-overview' })).feedbackByWeek).toEqual([]);
-      expect(await store.overview({ to: '2031-03-01T00:00:00.000Z' })).toEqual({ answersByDay: [], feedbackByWeek: [], overrideReasonsByWeek: [], verdictsByWeek: [], latencyByDay: [] });
+      expect(await store.overview({ to: '2031-03-01T00:00:00.000Z' })).toEqual({
+        answersByDay: [],
+        feedbackByWeek: [],
+        overrideReasonsByWeek: [],
+        verdictsByWeek: [],
+        latencyByDay: [],
+      });
     });
 
     it('the list filters by most urgent indicator, verdicts and feedback outcome, newest first, and carries the verdicts', async () => {
       await seeded();
-      const ids = async (q: Omit<Parameters<AuditStore['list']>[0], 'limit'>): Promise<string[]> => (await store.list({ limit: 200, ...q })).items.map((i) => i.id);
+      const ids = async (q: Omit<Parameters<AuditStore['list']>[0], 'limit'>): Promise<string[]> =>
+        (await store.list({ limit: 200, ...q })).items.map((i) => i.id);
       expect(await ids({ indicator: 'critical' })).toEqual([r5.id]);
       expect(await ids({ indicator: 'warning', from: '2031-03-02T00:00:00.000Z', to: '2031-03-02T23:59:59.999Z' })).toEqual([r2.id, r1.id]);
       expect(await ids({ indicator: 'none' })).toHaveLength(101);
-      expect(await ids({ responsiveness: 'likely', tolerance: 'adequate' })).toEqual([...r6to8].reverse().map((r) => r.id).concat([r5.id, r1.id]));
+      expect(await ids({ responsiveness: 'likely', tolerance: 'adequate' })).toEqual(
+        [...r6to8]
+          .reverse()
+          .map((r) => r.id)
+          .concat([r5.id, r1.id]),
+      );
       expect(await ids({ responsiveness: 'none', service: 'fluid-overview', to: '2031-03-03T00:00:00.000Z' })).toEqual([r3.id]);
       expect(await ids({ feedback: 'overridden' })).toEqual([r4.id, r2.id]);
       expect(await ids({ feedback: 'accepted' })).toEqual([r2.id, r1.id]);
@@ -725,13 +836,27 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
       expect(await ids({ feedback: 'overridden', indicator: 'warning', responsiveness: 'unlikely' })).toEqual([r4.id]);
       // Filters and the cursor together: pages of 2 over the five likely/adequate answers.
       const p1 = await store.list({ limit: 2, responsiveness: 'likely', tolerance: 'adequate' });
-      const p2 = await store.list({ limit: 2, responsiveness: 'likely', tolerance: 'adequate', ...(p1.nextCursor ? { cursor: p1.nextCursor } : {}) });
-      const p3 = await store.list({ limit: 2, responsiveness: 'likely', tolerance: 'adequate', ...(p2.nextCursor ? { cursor: p2.nextCursor } : {}) });
-      expect([...p1.items, ...p2.items, ...p3.items].map((i) => i.id)).toEqual(await ids({ responsiveness: 'likely', tolerance: 'adequate' }));
+      const p2 = await store.list({
+        limit: 2,
+        responsiveness: 'likely',
+        tolerance: 'adequate',
+        ...(p1.nextCursor ? { cursor: p1.nextCursor } : {}),
+      });
+      const p3 = await store.list({
+        limit: 2,
+        responsiveness: 'likely',
+        tolerance: 'adequate',
+        ...(p2.nextCursor ? { cursor: p2.nextCursor } : {}),
+      });
+      expect([...p1.items, ...p2.items, ...p3.items].map((i) => i.id)).toEqual(
+        await ids({ responsiveness: 'likely', tolerance: 'adequate' }),
+      );
       expect(p3.nextCursor).toBeUndefined();
       const [one] = (await store.list({ limit: 1, indicator: 'critical' })).items;
       expect(one).toMatchObject({ id: r5.id, responsiveness: 'likely', tolerance: 'adequate', indicators: ['critical'] });
-      expect((await store.list({ limit: 1, responsiveness: 'none', service: 'fluid-overview', to: '2031-03-03T00:00:00.000Z' })).items[0]).not.toHaveProperty('responsiveness');
+      expect(
+        (await store.list({ limit: 1, responsiveness: 'none', service: 'fluid-overview', to: '2031-03-03T00:00:00.000Z' })).items[0],
+      ).not.toHaveProperty('responsiveness');
     });
   });
 
@@ -775,7 +900,13 @@ describe('PostgreSQL audit store shared by several replicas', () => {
     const schema = newSchema('init');
     await Promise.all(replicas(schema, 4).map((s) => s.init()));
     const t = await admin.query(`SELECT table_name FROM information_schema.tables WHERE table_schema = $1 ORDER BY table_name`, [schema]);
-    expect(t.rows.map((r: { table_name: string }) => r.table_name)).toEqual(['advice', 'advice_card', 'feedback', 'jti_seen', 'schema_version']);
+    expect(t.rows.map((r: { table_name: string }) => r.table_name)).toEqual([
+      'advice',
+      'advice_card',
+      'feedback',
+      'jti_seen',
+      'schema_version',
+    ]);
   });
 
   it('four replicas appending 50 records each in parallel keep one linear chain', async () => {
@@ -785,7 +916,9 @@ describe('PostgreSQL audit store shared by several replicas', () => {
     await Promise.all(rs.map((s) => s.init()));
     const results = await Promise.all(
       rs.flatMap((s, replica) =>
-        Array.from({ length: 50 }, (_, i) => s.append(adviceRecord({ at: i, patientId: `pt-replica-${replica}`, kinds: ['volume-ok', 'data-gap'] }))),
+        Array.from({ length: 50 }, (_, i) =>
+          s.append(adviceRecord({ at: i, patientId: `pt-replica-${replica}`, kinds: ['volume-ok', 'data-gap'] })),
+        ),
       ),
     );
     expect(results).toHaveLength(200);
@@ -795,7 +928,10 @@ describe('PostgreSQL audit store shared by several replicas', () => {
     expect(await verifier?.verifyChain()).toEqual({ ok: true, checked: 200 });
 
     // No fork: each record points at the one before it in seq order.
-    const rows = (await admin.query(`SELECT seq, prev_hash, hash FROM "${schema}".advice ORDER BY seq`)).rows as Array<{ prev_hash: string; hash: string }>;
+    const rows = (await admin.query(`SELECT seq, prev_hash, hash FROM "${schema}".advice ORDER BY seq`)).rows as Array<{
+      prev_hash: string;
+      hash: string;
+    }>;
     expect(rows).toHaveLength(200);
     rows.forEach((row, i) => expect(row.prev_hash).toBe(i === 0 ? GENESIS : rows[i - 1]?.hash));
     const cards = await admin.query(`SELECT COUNT(*)::int AS n FROM "${schema}".advice_card`);
@@ -893,6 +1029,8 @@ describe('openAuditStore', () => {
   });
 
   it('needs a PostgreSQL URL for the postgres adapter', () => {
-    expect(() => openAuditStore({ TIDEMARK_AUDIT_STORE: 'postgres', TIDEMARK_SQLITE_PATH: 'unused', TIDEMARK_PG_URL: undefined })).toThrow(/TIDEMARK_PG_URL/);
+    expect(() => openAuditStore({ TIDEMARK_AUDIT_STORE: 'postgres', TIDEMARK_SQLITE_PATH: 'unused', TIDEMARK_PG_URL: undefined })).toThrow(
+      /TIDEMARK_PG_URL/,
+    );
   });
 });

@@ -8,16 +8,7 @@ import type { Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { Writable } from 'node:stream';
 import express from 'express';
-import {
-  calculateJwkThumbprint,
-  exportJWK,
-  exportSPKI,
-  generateKeyPair,
-  SignJWT,
-  type CryptoKey,
-  type JWK,
-  type JWTPayload,
-} from 'jose';
+import { calculateJwkThumbprint, exportJWK, exportSPKI, generateKeyPair, SignJWT, type CryptoKey, type JWK, type JWTPayload } from 'jose';
 import { pino } from 'pino';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -302,7 +293,10 @@ describe('requireCdsClient refuses', () => {
   });
   it('a non-Bearer scheme', async () => {
     const tok = await mint();
-    await expectRefused(request(svc.url).post(`/cds-services/${SERVICE_ID}`).set('Authorization', `Basic ${tok}`).send({}), 'not a bearer credential');
+    await expectRefused(
+      request(svc.url).post(`/cds-services/${SERVICE_ID}`).set('Authorization', `Basic ${tok}`).send({}),
+      'not a bearer credential',
+    );
   });
   it('a forged signature (another key under the same kid)', async () => {
     const tok = await mint({ key: attacker, kid: northEs.publicJwk.kid });
@@ -390,7 +384,11 @@ describe('requireCdsClient refuses', () => {
     await expectRefused(callService(svc, await mint({ key: northJku, jku: `${keyServer.url}/keys/north-jku?v=2` })), 'jku not allowed');
     await expectRefused(callService(svc, await mint({ key: northJku, jku: `${keyServer.url}/keys/north-jku/` })), 'jku not allowed');
     // An issuer without allowed jku values accepts none.
-    await expectRefused(callService(svc, await mint({ key: southEs, iss: ISS_SOUTH, tenant: 'ward-7', jku: evil })), 'jku not allowed', ISS_SOUTH);
+    await expectRefused(
+      callService(svc, await mint({ key: southEs, iss: ISS_SOUTH, tenant: 'ward-7', jku: evil })),
+      'jku not allowed',
+      ISS_SOUTH,
+    );
     expect(foreignServer.hits('evil')).toBe(0);
     expect(keyServer.hits('north-jku')).toBe(jkuBefore);
   });
@@ -425,7 +423,10 @@ describe('trial mode', () => {
   });
   it('does not open the audit API', async () => {
     const trial = await startService({ trialMode: true, issuers: [] });
-    await expectRefused(request(trial.url).get('/audit/records').set('Authorization', bearer(AUDIT_TOKEN)), 'no audit credential configured');
+    await expectRefused(
+      request(trial.url).get('/audit/records').set('Authorization', bearer(AUDIT_TOKEN)),
+      'no audit credential configured',
+    );
   });
 });
 

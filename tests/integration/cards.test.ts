@@ -20,7 +20,12 @@ const expected: Record<AdviceCase, { action: string; indicator: string; firstLab
   // No flow monitor on the chart: a mini fluid challenge with VTI by echo (docs/clinical-logic), following the next-test kind.
   'test-first': { action: 'test-first', indicator: 'info', firstLabel: /mini fluid challenge/i, types: ['create', 'create', 'delete'] },
   proceed: { action: 'proceed-and-reassess', indicator: 'info', firstLabel: /^Reassess 15 min after the 500 mL bolus$/, types: ['create'] },
-  'smaller-aliquot': { action: 'smaller-aliquot', indicator: 'warning', firstLabel: /^Give 250 mL over 15 min instead of 500 mL/, types: ['update', 'create'] },
+  'smaller-aliquot': {
+    action: 'smaller-aliquot',
+    indicator: 'warning',
+    firstLabel: /^Give 250 mL over 15 min instead of 500 mL/,
+    types: ['update', 'create'],
+  },
   critical: { action: 'smaller-aliquot', indicator: 'critical', firstLabel: /Give 250 mL/, types: ['update', 'create', 'delete'] },
   question: { action: 'question-bolus', indicator: 'warning', firstLabel: /ultrasound/i, types: ['create', 'delete'] },
 };
@@ -32,7 +37,10 @@ async function page(card: { links?: Array<{ url: string }> }, base = s.url): Pro
   const u = new URL(link?.url ?? '');
   const r = await fetch(`${base}${u.pathname}${u.search}`);
   expect(r.status).toBe(200);
-  return (await r.text()).replace(/&#39;/g, "'").replace(/&amp;/g, '&').replace(/&quot;/g, '"');
+  return (await r.text())
+    .replace(/&#39;/g, "'")
+    .replace(/&amp;/g, '&')
+    .replace(/&quot;/g, '"');
 }
 
 /** The non-empty lines of a card detail. */
@@ -65,7 +73,8 @@ describe('each advice cell gives a conformant card with real FHIR suggestions', 
     expect(card.suggestions[0].label).toMatch(want.firstLabel);
     expect(card.suggestions.filter((x: any) => x.isRecommended).length).toBeLessThanOrEqual(1);
     // A critical card never recommends giving (docs/clinical-logic).
-    if (card.indicator === 'critical') expect(card.suggestions.filter((x: any) => x.isRecommended && x.actions[0].type === 'update')).toEqual([]);
+    if (card.indicator === 'critical')
+      expect(card.suggestions.filter((x: any) => x.isRecommended && x.actions[0].type === 'update')).toEqual([]);
     for (const sug of card.suggestions) {
       for (const a of sug.actions) {
         if (a.type === 'delete') {
@@ -76,7 +85,12 @@ describe('each advice cell gives a conformant card with real FHIR suggestions', 
         }
         if (a.type === 'update') {
           expect(a.resource.id).toBe('draft-bolus-1');
-          expect(a.resource.dosageInstruction[0].doseAndRate[0].doseQuantity).toEqual({ value: 250, unit: 'mL', system: 'http://unitsofmeasure.org', code: 'mL' });
+          expect(a.resource.dosageInstruction[0].doseAndRate[0].doseQuantity).toEqual({
+            value: 250,
+            unit: 'mL',
+            system: 'http://unitsofmeasure.org',
+            code: 'mL',
+          });
           expect(a.resource.note.at(-1).text).toMatch(/Reassess/);
           // The aliquot keeps the ordered rate: 500 mL over 30 min → 250 mL over 15 min (docs/clinical-logic).
           expect(a.resource.dosageInstruction[0].timing.repeat).toMatchObject({ duration: 15, durationUnit: 'min' });
@@ -137,7 +151,8 @@ describe('the pop-up reads in seconds; its reasoning page holds the rest', () =>
   it('escapes values from FHIR so they cannot inject Markdown or HTML', async () => {
     const p = prefetchOf(ADVICE_CASES['test-first']);
     const req = orderSelectRequest({ prefetch: p });
-    (req.context.draftOrders.entry[0]!.resource as any).medicationCodeableConcept.text = "Lactated Ringer's <img src=x onerror=alert(1)> **bold** [link](http://x)";
+    (req.context.draftOrders.entry[0]!.resource as any).medicationCodeableConcept.text =
+      "Lactated Ringer's <img src=x onerror=alert(1)> **bold** [link](http://x)";
     const r = await post(`${s.url}/cds-services/bolus-review-select`, req);
     const detail: string = r.body.cards[0].detail;
     expect(detail).not.toContain('<img');
@@ -165,7 +180,8 @@ describe('patient-view overview', () => {
     const r0 = basicResources();
     const P = 'tm-pat-ward4-017';
     const t = (m: number) => b.minutesAgo(NOW, m);
-    // 12 L in, 4 L out since admission at 70 kg: Goldstein 2001 %FO = (12 − 4) / 70 × 100 = 11.4 %; ≥ 10 % in an adult is poor (Bouchard 2009).
+    // 12 L in, 4 L out since admission at 70 kg: Goldstein 2001 %FO = (12 − 4) / 70 × 100 = 11.4 %; ≥ 10 % in an adult is poor (Bouchard
+    // 2009).
     r0['body'] = [b.numeric('wt-adm', P, 'bodyWeight', 70, t(25 * 60))];
     r0['balance'] = [
       b.numeric('in-1', P, 'fluidIntake', 12_000, t(30), { periodStart: t(25 * 60) }),
@@ -188,7 +204,10 @@ describe('stale data only', () => {
     // 13 h later: the vitals (window 90 min) and even the lactate (12 h, docs/clinical-logic) are stale.
     const late = await startService({}, { now: () => new Date(NOW.getTime() + 13 * 3600_000) });
     try {
-      const r = await post(`${late.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['test-first']) }));
+      const r = await post(
+        `${late.url}/cds-services/bolus-review-select`,
+        orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['test-first']) }),
+      );
       const card = r.body.cards[0];
       expect(checkCdsResponse(r.body)).toEqual([]);
       expect(card.summary).toBe('No current data on the chart: re-examine and re-measure before deciding on this bolus');

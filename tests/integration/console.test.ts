@@ -18,11 +18,25 @@ afterAll(async () => {
   await secure.stop();
 });
 
-interface Answer { status: number; location: string | null; cookies: string[]; text: string }
-async function call(base: string, path: string, o: { method?: string; cookie?: string; form?: Record<string, string>; headers?: Record<string, string> } = {}): Promise<Answer> {
+interface Answer {
+  status: number;
+  location: string | null;
+  cookies: string[];
+  text: string;
+}
+async function call(
+  base: string,
+  path: string,
+  o: { method?: string; cookie?: string; form?: Record<string, string>; headers?: Record<string, string> } = {},
+): Promise<Answer> {
   const r = await fetch(`${base}${path}`, {
-    method: o.method ?? (o.form ? 'POST' : 'GET'), redirect: 'manual',
-    headers: { ...(o.cookie ? { cookie: o.cookie } : {}), ...(o.form ? { 'content-type': 'application/x-www-form-urlencoded' } : {}), ...o.headers },
+    method: o.method ?? (o.form ? 'POST' : 'GET'),
+    redirect: 'manual',
+    headers: {
+      ...(o.cookie ? { cookie: o.cookie } : {}),
+      ...(o.form ? { 'content-type': 'application/x-www-form-urlencoded' } : {}),
+      ...o.headers,
+    },
     ...(o.form ? { body: new URLSearchParams(o.form).toString() } : {}),
   });
   return { status: r.status, location: r.headers.get('location'), cookies: r.headers.getSetCookie(), text: await r.text() };
@@ -100,13 +114,15 @@ describe('console sign-in', () => {
     expect((await call(s.url, '/console', { cookie })).location).toBe('/console/sign-in');
   });
 
-  it('sign-out needs the session\'s CSRF token, ends the session and clears the cookie', async () => {
+  it("sign-out needs the session's CSRF token, ends the session and clears the cookie", async () => {
     const r = await signIn();
     const cookie = pair(r.session!);
     const page = await call(s.url, '/console', { cookie });
     const csrf = csrfIn(page.text);
     expect((await call(s.url, '/console/sign-out', { cookie, form: {} })).status).toBe(403);
-    expect((await call(s.url, '/console/sign-out', { cookie, form: { csrf: `${csrf.slice(0, -1)}${csrf.endsWith('A') ? 'B' : 'A'}` } })).status).toBe(403);
+    expect(
+      (await call(s.url, '/console/sign-out', { cookie, form: { csrf: `${csrf.slice(0, -1)}${csrf.endsWith('A') ? 'B' : 'A'}` } })).status,
+    ).toBe(403);
     expect((await call(s.url, '/console', { cookie })).status).toBe(200);
     const out = await call(s.url, '/console/sign-out', { cookie, form: { csrf } });
     expect(out.status).toBe(303);
@@ -115,14 +131,21 @@ describe('console sign-in', () => {
     expect((await call(s.url, '/console', { cookie })).location).toBe('/console/sign-in');
   });
 
-  it('an impact run without the session\'s CSRF token is refused (the form of another site); with it, it runs', async () => {
+  it("an impact run without the session's CSRF token is refused (the form of another site); with it, it runs", async () => {
     const r = await signIn();
     const cookie = pair(r.session!);
     const csrf = csrfIn((await call(s.url, '/console/impact', { cookie })).text);
     const thresholds = '{"responsiveness":{"ppvThresholdPercent":15}}';
     expect((await call(s.url, '/console/impact', { cookie, form: { thresholds } })).status).toBe(403);
     // The sign-in form's token is not the session's.
-    expect((await call(s.url, '/console/impact', { cookie: `${cookie}; ${r.formCookie}`, form: { thresholds, csrf: r.formCookie.split('=')[1]! } })).status).toBe(403);
+    expect(
+      (
+        await call(s.url, '/console/impact', {
+          cookie: `${cookie}; ${r.formCookie}`,
+          form: { thresholds, csrf: r.formCookie.split('=')[1]! },
+        })
+      ).status,
+    ).toBe(403);
     expect((await call(s.url, '/console/impact', { form: { thresholds, csrf } })).status).toBe(401);
     const ok = await call(s.url, '/console/impact', { cookie, form: { thresholds, csrf } });
     expect(ok.status).toBe(200);
@@ -159,7 +182,9 @@ describe('console sign-in', () => {
 
   it('pages carry a CSP without script, forms to this origin only, no framing', async () => {
     const r = await fetch(`${s.url}/console/sign-in`);
-    expect(r.headers.get('content-security-policy')).toBe("default-src 'self'; script-src 'none'; object-src 'none'; base-uri 'none'; form-action 'self'; frame-ancestors 'none'");
+    expect(r.headers.get('content-security-policy')).toBe(
+      "default-src 'self'; script-src 'none'; object-src 'none'; base-uri 'none'; form-action 'self'; frame-ancestors 'none'",
+    );
     expect(r.headers.get('x-frame-options')).toBe('DENY');
     expect(r.headers.get('cache-control')).toBe('no-store');
   });

@@ -25,10 +25,25 @@ describe('feedback', () => {
     const reason = a.overrideReasons[1];
     const batch = {
       feedback: [
-        { card: a.uuid, outcome: 'accepted', acceptedSuggestions: [{ id: a.suggestions[0].uuid }], outcomeTimestamp: '2026-11-20T14:01:00Z' },
-        { card: b.uuid, outcome: 'overridden', overrideReason: { reason, userComment: 'seen at bedside' }, outcomeTimestamp: '2026-11-20T14:02:00Z' },
+        {
+          card: a.uuid,
+          outcome: 'accepted',
+          acceptedSuggestions: [{ id: a.suggestions[0].uuid }],
+          outcomeTimestamp: '2026-11-20T14:01:00Z',
+        },
+        {
+          card: b.uuid,
+          outcome: 'overridden',
+          overrideReason: { reason, userComment: 'seen at bedside' },
+          outcomeTimestamp: '2026-11-20T14:02:00Z',
+        },
         // A bare Coding, as some early clients send it.
-        { card: c.uuid, outcome: 'overridden', overrideReason: { code: reason.code, system: reason.system, display: reason.display }, outcomeTimestamp: '2026-11-20T14:03:00Z' },
+        {
+          card: c.uuid,
+          outcome: 'overridden',
+          overrideReason: { code: reason.code, system: reason.system, display: reason.display },
+          outcomeTimestamp: '2026-11-20T14:03:00Z',
+        },
       ],
     };
     const first = await post(FB(), batch);
@@ -44,13 +59,26 @@ describe('feedback', () => {
 
     // The audit API shows the outcome of each advice.
     const list = (await get(`${s.url}/audit/advice?limit=3`, AUDIT_HEADERS)).body.items;
-    expect(list.map((i: any) => i.feedback)).toEqual([{ accepted: 0, overridden: 1 }, { accepted: 0, overridden: 1 }, { accepted: 1, overridden: 0 }]);
+    expect(list.map((i: any) => i.feedback)).toEqual([
+      { accepted: 0, overridden: 1 },
+      { accepted: 0, overridden: 1 },
+      { accepted: 1, overridden: 0 },
+    ]);
     const full = (await get(`${s.url}/audit/advice/${list[2].id}`, AUDIT_HEADERS)).body;
     expect(full.feedback).toMatchObject([{ cardUuid: a.uuid, outcome: 'accepted', acceptedSuggestions: [a.suggestions[0].uuid] }]);
   });
 
   it('an unknown card uuid gets a 404 OperationOutcome naming it', async () => {
-    const r = await post(FB(), { feedback: [{ card: '0b5e7c1a-1111-4222-8333-944455556666', outcome: 'overridden', overrideReason: { userComment: 'x' }, outcomeTimestamp: '2026-11-20T14:05:00Z' }] });
+    const r = await post(FB(), {
+      feedback: [
+        {
+          card: '0b5e7c1a-1111-4222-8333-944455556666',
+          outcome: 'overridden',
+          overrideReason: { userComment: 'x' },
+          outcomeTimestamp: '2026-11-20T14:05:00Z',
+        },
+      ],
+    });
     expect(r.status).toBe(404);
     expect(r.body.resourceType).toBe('OperationOutcome');
     expect(r.body.issue[0].details.text).toContain('0b5e7c1a-1111-4222-8333-944455556666');
@@ -60,9 +88,18 @@ describe('feedback', () => {
     [{}, 'feedback'],
     [{ feedback: [] }, 'feedback'],
     [{ feedback: [{ card: 'x', outcome: 'accepted', outcomeTimestamp: '2026-11-20T14:05:00Z' }] }, 'card'],
-    [{ feedback: [{ card: '0b5e7c1a-1111-4222-8333-944455556666', outcome: 'accepted', outcomeTimestamp: '2026-11-20T14:05:00Z' }] }, 'acceptedSuggestions'],
-    [{ feedback: [{ card: '0b5e7c1a-1111-4222-8333-944455556666', outcome: 'ignored', outcomeTimestamp: '2026-11-20T14:05:00Z' }] }, 'outcome'],
-    [{ feedback: [{ card: '0b5e7c1a-1111-4222-8333-944455556666', outcome: 'overridden', outcomeTimestamp: 'yesterday' }] }, 'outcomeTimestamp'],
+    [
+      { feedback: [{ card: '0b5e7c1a-1111-4222-8333-944455556666', outcome: 'accepted', outcomeTimestamp: '2026-11-20T14:05:00Z' }] },
+      'acceptedSuggestions',
+    ],
+    [
+      { feedback: [{ card: '0b5e7c1a-1111-4222-8333-944455556666', outcome: 'ignored', outcomeTimestamp: '2026-11-20T14:05:00Z' }] },
+      'outcome',
+    ],
+    [
+      { feedback: [{ card: '0b5e7c1a-1111-4222-8333-944455556666', outcome: 'overridden', outcomeTimestamp: 'yesterday' }] },
+      'outcomeTimestamp',
+    ],
   ])('a bad body is a 400 OperationOutcome (%j)', async (body, field) => {
     const r = await post(FB(), body);
     expect(r.status).toBe(400);

@@ -16,14 +16,21 @@ let base = '';
 
 beforeAll(async () => {
   const app = express();
-  app.use('/500', (_q, r) => void r.status(500).json({ resourceType: 'OperationOutcome', issue: [{ severity: 'error', code: 'exception' }] }));
+  app.use(
+    '/500',
+    (_q, r) => void r.status(500).json({ resourceType: 'OperationOutcome', issue: [{ severity: 'error', code: 'exception' }] }),
+  );
   app.use('/401', (_q, r) => void r.status(401).set('www-authenticate', 'Bearer').send('unauthorized'));
-  app.use('/timeout', () => { /* never answers */ });
+  app.use('/timeout', () => {
+    /* never answers */
+  });
   app.use('/html', (_q, r) => void r.type('text/html').send('<html><body>Single sign-on</body></html>'));
   app.use('/huge', (req, r) => {
     // 20,000 Observations in one searchset for every search (about 12 MB).
     if (!req.path.startsWith('/Observation')) return void r.json(b.searchset([]));
-    const entries = Array.from({ length: 20_000 }, (_x, i) => b.numeric(`hr-${i}`, PID, 'heartRate', 80 + (i % 30), b.minutesAgo(NOW, 5 + (i % 600))));
+    const entries = Array.from({ length: 20_000 }, (_x, i) =>
+      b.numeric(`hr-${i}`, PID, 'heartRate', 80 + (i % 30), b.minutesAgo(NOW, 5 + (i % 600))),
+    );
     r.json(b.searchset(entries));
   });
   app.use('/drip', (_q, r) => {
@@ -33,7 +40,9 @@ beforeAll(async () => {
     const t = setInterval(() => r.write(' '), 100);
     r.on('close', () => clearInterval(t));
   });
-  bad = await new Promise((res) => { const x = app.listen(0, '127.0.0.1', () => res(x)); });
+  bad = await new Promise((res) => {
+    const x = app.listen(0, '127.0.0.1', () => res(x));
+  });
   base = `http://127.0.0.1:${(bad.address() as AddressInfo).port}`;
   s = await startService({ TIDEMARK_FHIR_BUDGET_MS: String(BUDGET_MS), TIDEMARK_LOG_LEVEL: 'silent' }, { now: () => NOW });
 });
@@ -73,7 +82,10 @@ describe('FHIR server faults', () => {
   });
 
   it('a huge Bundle is read within the budget or cut off by it, never a crash', async () => {
-    const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ fhirServer: `${base}/huge`, token: 'fault-test-token' }));
+    const r = await post(
+      `${s.url}/cds-services/bolus-review-select`,
+      orderSelectRequest({ fhirServer: `${base}/huge`, token: 'fault-test-token' }),
+    );
     expect(r.status).toBe(200);
     expect(checkCdsResponse(r.body)).toEqual([]);
     const rec = await lastRecord();

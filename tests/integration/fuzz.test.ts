@@ -30,10 +30,19 @@ async function check(path: string, body: unknown): Promise<void> {
 }
 
 const valid = orderSelectRequest({ prefetch: prefetchOf(basicResources()) });
-const oddString = fc.oneof(fc.string({ unit: 'grapheme', maxLength: 40 }), fc.string({ unit: 'binary', maxLength: 40 }), fc.constantFrom('', '\u0000', '\uFEFF', '💧'.repeat(50), 'a'.repeat(70_000), '../../etc', '{{context.patientId}}'));
+const oddString = fc.oneof(
+  fc.string({ unit: 'grapheme', maxLength: 40 }),
+  fc.string({ unit: 'binary', maxLength: 40 }),
+  fc.constantFrom('', '\u0000', '\uFEFF', '💧'.repeat(50), 'a'.repeat(70_000), '../../etc', '{{context.patientId}}'),
+);
 const absurd = fc.oneof(
-  oddString, fc.double({ noNaN: true, noDefaultInfinity: true }), fc.integer(), fc.boolean(), fc.constant(null),
-  fc.constantFrom(1e308, -1e308, 5e-324, -0, 2 ** 53 + 1), fc.array(fc.jsonValue({ maxDepth: 2 }), { maxLength: 5 }),
+  oddString,
+  fc.double({ noNaN: true, noDefaultInfinity: true }),
+  fc.integer(),
+  fc.boolean(),
+  fc.constant(null),
+  fc.constantFrom(1e308, -1e308, 5e-324, -0, 2 ** 53 + 1),
+  fc.array(fc.jsonValue({ maxDepth: 2 }), { maxLength: 5 }),
   fc.dictionary(oddString, fc.jsonValue({ maxDepth: 2 }), { maxKeys: 4 }),
 );
 
@@ -64,13 +73,17 @@ function deepText(n: number): string {
 
 describe('fuzz (10,600 bodies)', () => {
   it('arbitrary JSON values as the hook body (2,000)', async () => {
-    await fc.assert(fc.asyncProperty(fc.jsonValue({ maxDepth: 4 }), (v) => check('/cds-services/bolus-review-select', v)), { numRuns: 2_000 });
+    await fc.assert(
+      fc.asyncProperty(fc.jsonValue({ maxDepth: 4 }), (v) => check('/cds-services/bolus-review-select', v)),
+      { numRuns: 2_000 },
+    );
   });
 
   it('malformed JSON text (1,000)', async () => {
     await fc.assert(
-      fc.asyncProperty(fc.oneof(fc.string({ maxLength: 200 }), fc.constantFrom('{', '{"hook":', '[1,2', '{"a":1}}', '\u0000', 'null', 'true', '"x"')), (t) =>
-        check('/cds-services/bolus-review-select', t),
+      fc.asyncProperty(
+        fc.oneof(fc.string({ maxLength: 200 }), fc.constantFrom('{', '{"hook":', '[1,2', '{"a":1}}', '\u0000', 'null', 'true', '"x"')),
+        (t) => check('/cds-services/bolus-review-select', t),
       ),
       { numRuns: 1_000 },
     );
@@ -78,8 +91,12 @@ describe('fuzz (10,600 bodies)', () => {
 
   it('a valid request with one field replaced or removed, anywhere (5,000)', { timeout: 120_000 }, async () => {
     await fc.assert(
-      fc.asyncProperty(fc.constantFrom(...validPaths), absurd, fc.boolean(), fc.constantFrom('bolus-review-select', 'bolus-review-sign', 'fluid-overview'), (p, v, remove, id) =>
-        check(`/cds-services/${id}`, mutate(valid, p, v, remove)),
+      fc.asyncProperty(
+        fc.constantFrom(...validPaths),
+        absurd,
+        fc.boolean(),
+        fc.constantFrom('bolus-review-select', 'bolus-review-sign', 'fluid-overview'),
+        (p, v, remove, id) => check(`/cds-services/${id}`, mutate(valid, p, v, remove)),
       ),
       { numRuns: 5_000 },
     );
@@ -88,7 +105,10 @@ describe('fuzz (10,600 bodies)', () => {
   it('deep nesting and oversized bodies (100)', async () => {
     await fc.assert(
       fc.asyncProperty(fc.integer({ min: 50, max: 20_000 }), fc.boolean(), (n, big) =>
-        check('/cds-services/bolus-review-select', big ? { ...valid, extension: { 'org.example.pad': 'y'.repeat(300_000 + n) } } : deepText(n)),
+        check(
+          '/cds-services/bolus-review-select',
+          big ? { ...valid, extension: { 'org.example.pad': 'y'.repeat(300_000 + n) } } : deepText(n),
+        ),
       ),
       { numRuns: 100 },
     );
@@ -101,8 +121,15 @@ describe('fuzz (10,600 bodies)', () => {
     const deepValue = fc.integer({ min: 15, max: 10_000 }).map((n) => `${'{"a":['.repeat(n)}"x"${']}'.repeat(n)}`);
     const hugeString = fc.integer({ min: 1_000, max: 200_000 }).map((n) => JSON.stringify(`${'x'.repeat(n - 1)}\u202e`));
     await fc.assert(
-      fc.asyncProperty(fc.constantFrom(...validPaths), fc.oneof(deepValue, hugeString), fc.constantFrom('bolus-review-select', 'bolus-review-sign', 'fluid-overview'), (p, text, id) =>
-        check(`/cds-services/${id}`, JSON.stringify(mutate(valid, p, '__FUZZ__', false)).replace('"__FUZZ__"', () => text)),
+      fc.asyncProperty(
+        fc.constantFrom(...validPaths),
+        fc.oneof(deepValue, hugeString),
+        fc.constantFrom('bolus-review-select', 'bolus-review-sign', 'fluid-overview'),
+        (p, text, id) =>
+          check(
+            `/cds-services/${id}`,
+            JSON.stringify(mutate(valid, p, '__FUZZ__', false)).replace('"__FUZZ__"', () => text),
+          ),
       ),
       { numRuns: 600 },
     );
@@ -115,13 +142,22 @@ describe('fuzz (10,600 bodies)', () => {
         card,
         outcome: fc.oneof(fc.constantFrom('accepted', 'overridden'), oddString),
         acceptedSuggestions: fc.oneof(fc.array(fc.record({ id: fc.uuid() }), { maxLength: 3 }), absurd),
-        overrideReason: fc.oneof(fc.record({ reason: fc.record({ code: oddString, system: oddString, display: oddString }), userComment: oddString }), fc.record({ code: oddString, system: oddString }), absurd),
-        outcomeTimestamp: fc.oneof(fc.date({ noInvalidDate: true }).map((d) => d.toISOString()), oddString),
+        overrideReason: fc.oneof(
+          fc.record({ reason: fc.record({ code: oddString, system: oddString, display: oddString }), userComment: oddString }),
+          fc.record({ code: oddString, system: oddString }),
+          absurd,
+        ),
+        outcomeTimestamp: fc.oneof(
+          fc.date({ noInvalidDate: true }).map((d) => d.toISOString()),
+          oddString,
+        ),
       },
       { requiredKeys: [] },
     );
     await fc.assert(
-      fc.asyncProperty(fc.oneof(fc.record({ feedback: fc.array(item, { maxLength: 4 }) }), fc.jsonValue({ maxDepth: 3 })), (body) => check('/cds-services/bolus-review-select/feedback', body)),
+      fc.asyncProperty(fc.oneof(fc.record({ feedback: fc.array(item, { maxLength: 4 }) }), fc.jsonValue({ maxDepth: 3 })), (body) =>
+        check('/cds-services/bolus-review-select/feedback', body),
+      ),
       { numRuns: 1_900 },
     );
     expect(sent).toBeGreaterThanOrEqual(10_600);

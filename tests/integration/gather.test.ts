@@ -13,7 +13,8 @@ const service = findService('bolus-review-select')!;
 const opts = { budgetMs: 800, maxPages: 3, concurrency: 4 };
 const parse = (x: unknown) => hookRequestSchema.parse(x);
 /** The path and query Tidemark will request for a prefetch key. */
-const pathOf = (key: string) => `/r4/${(PREFETCH[key]?.template ?? '').replace(/\{\{context\.patientId\}\}/g, PID).replace(/\{\{context\.encounterId\}\}/g, 'tm-enc-ward4-017')}`;
+const pathOf = (key: string) =>
+  `/r4/${(PREFETCH[key]?.template ?? '').replace(/\{\{context\.patientId\}\}/g, PID).replace(/\{\{context\.encounterId\}\}/g, 'tm-enc-ward4-017')}`;
 
 beforeAll(() => nock.disableNetConnect());
 afterEach(() => nock.cleanAll());
@@ -37,7 +38,11 @@ describe('gather: prefetch cases', () => {
     const scope = nock(BASE, { reqheaders: { authorization: 'Bearer tok-abc' } })
       .get(pathOf('labs').replace('/r4', ''))
       .reply(200, b.searchset([b.numeric('lac-9', PID, 'lactate', 5.1, '2026-11-20T13:30:00Z')]));
-    const g = await gather(parse(orderSelectRequest({ prefetch: fullPrefetchExcept('labs'), fhirServer: BASE, token: 'tok-abc' })), service, opts);
+    const g = await gather(
+      parse(orderSelectRequest({ prefetch: fullPrefetchExcept('labs'), fhirServer: BASE, token: 'tok-abc' })),
+      service,
+      opts,
+    );
     scope.done();
     expect(g.outcomes.find((o) => o.key === 'labs')).toMatchObject({ source: 'fhir-server', status: 'ok', count: 1, pages: 1 });
     expect(g.resources.some((r) => r.id === 'lac-9')).toBe(true);
@@ -54,7 +59,9 @@ describe('gather: prefetch cases', () => {
   it('an OperationOutcome from the client is re-queried', async () => {
     const p = fullPrefetchExcept();
     p['vitals'] = { resourceType: 'OperationOutcome', issue: [{ severity: 'error', code: 'timeout', diagnostics: 'upstream slow' }] };
-    const scope = nock(BASE).get(pathOf('vitals').replace('/r4', '')).reply(200, b.searchset([b.numeric('hr-9', PID, 'heartRate', 99, '2026-11-20T13:55:00Z')]));
+    const scope = nock(BASE)
+      .get(pathOf('vitals').replace('/r4', ''))
+      .reply(200, b.searchset([b.numeric('hr-9', PID, 'heartRate', 99, '2026-11-20T13:55:00Z')]));
     const g = await gather(parse(orderSelectRequest({ prefetch: p, fhirServer: BASE, token: 't' })), service, opts);
     scope.done();
     expect(g.outcomes.find((o) => o.key === 'vitals')).toMatchObject({ source: 'fhir-server', status: 'ok', count: 1 });
@@ -72,8 +79,12 @@ describe('gather: prefetch cases', () => {
     const p = fullPrefetchExcept();
     p['vitals'] = b.searchset([b.numeric('v-p1', PID, 'heartRate', 90, '2026-11-20T13:50:00Z')], `${BASE}/Observation?page=2`);
     const scope = nock(BASE)
-      .get('/Observation').query({ page: '2' }).reply(200, b.searchset([b.numeric('v-p2', PID, 'heartRate', 91, '2026-11-20T13:40:00Z')], `${BASE}/Observation?page=3`))
-      .get('/Observation').query({ page: '3' }).reply(200, b.searchset([b.numeric('v-p3', PID, 'heartRate', 92, '2026-11-20T13:30:00Z')], `${BASE}/Observation?page=4`));
+      .get('/Observation')
+      .query({ page: '2' })
+      .reply(200, b.searchset([b.numeric('v-p2', PID, 'heartRate', 91, '2026-11-20T13:40:00Z')], `${BASE}/Observation?page=3`))
+      .get('/Observation')
+      .query({ page: '3' })
+      .reply(200, b.searchset([b.numeric('v-p3', PID, 'heartRate', 92, '2026-11-20T13:30:00Z')], `${BASE}/Observation?page=4`));
     const g = await gather(parse(orderSelectRequest({ prefetch: p, fhirServer: BASE, token: 't' })), service, opts);
     scope.done();
     const o = g.outcomes.find((x) => x.key === 'vitals');
@@ -83,9 +94,16 @@ describe('gather: prefetch cases', () => {
 
   it('a next link to another host is not followed', async () => {
     const p = fullPrefetchExcept();
-    p['vitals'] = b.searchset([b.numeric('v-p1', PID, 'heartRate', 90, '2026-11-20T13:50:00Z')], 'http://elsewhere.invalid/Observation?page=2');
+    p['vitals'] = b.searchset(
+      [b.numeric('v-p1', PID, 'heartRate', 90, '2026-11-20T13:50:00Z')],
+      'http://elsewhere.invalid/Observation?page=2',
+    );
     const g = await gather(parse(orderSelectRequest({ prefetch: p, fhirServer: BASE, token: 't' })), service, opts);
-    expect(g.outcomes.find((x) => x.key === 'vitals')).toMatchObject({ status: 'truncated', count: 1, detail: 'link[next] points outside fhirServer: not followed' });
+    expect(g.outcomes.find((x) => x.key === 'vitals')).toMatchObject({
+      status: 'truncated',
+      count: 1,
+      detail: 'link[next] points outside fhirServer: not followed',
+    });
   });
 });
 

@@ -25,7 +25,10 @@ const children: ChildProcess[] = [];
 let lines: Array<{ stream: 'stdout' | 'stderr'; line: string }> = [];
 
 beforeAll(() => {
-  const build = spawnSync(process.execPath, ['node_modules/typescript/bin/tsc', '-p', 'tsconfig.build.json'], { encoding: 'utf8', timeout: 120_000 });
+  const build = spawnSync(process.execPath, ['node_modules/typescript/bin/tsc', '-p', 'tsconfig.build.json'], {
+    encoding: 'utf8',
+    timeout: 120_000,
+  });
   expect(build.stdout + build.stderr).toBe('');
   expect(build.status).toBe(0);
 }, 150_000);
@@ -38,7 +41,15 @@ afterAll(() => {
 /** Starts `command args` (the built entry, directly or through npm) and resolves once it listens. */
 function start(command: string, args: string[], sqlitePath: string): Promise<{ proc: ChildProcess; port: number }> {
   const proc = spawn(command, args, {
-    env: { ...process.env, PORT: '0', HOST: '127.0.0.1', TIDEMARK_SQLITE_PATH: sqlitePath, TIDEMARK_TRIAL_MODE: 'true', TIDEMARK_AUDIT_TOKEN: TOKEN, TIDEMARK_LOG_LEVEL: 'info' },
+    env: {
+      ...process.env,
+      PORT: '0',
+      HOST: '127.0.0.1',
+      TIDEMARK_SQLITE_PATH: sqlitePath,
+      TIDEMARK_TRIAL_MODE: 'true',
+      TIDEMARK_AUDIT_TOKEN: TOKEN,
+      TIDEMARK_LOG_LEVEL: 'info',
+    },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   children.push(proc);
@@ -94,10 +105,17 @@ function expectCleanLog(): void {
   expect(msgs.at(-1)).toBe('stopped: calls finished, audit store closed');
 }
 
-const parsed = () => lines.map((l) => { try { return JSON.parse(l.line) as Record<string, unknown>; } catch { return undefined; } });
+const parsed = () =>
+  lines.map((l) => {
+    try {
+      return JSON.parse(l.line) as Record<string, unknown>;
+    } catch {
+      return undefined;
+    }
+  });
 
 describe('the built service (node dist/cli/serve.js) on SIGTERM mid-burst', () => {
-  it('finishes the calls in flight, loses no answered call\'s record, exits 0 and stops listening', async ({ annotate }) => {
+  it("finishes the calls in flight, loses no answered call's record, exits 0 and stops listening", async ({ annotate }) => {
     const { proc, port } = await start(process.execPath, ['dist/cli/serve.js'], dbPath);
     const url = `http://127.0.0.1:${port}`;
     // Its data files are found from dist/: the catalogue and value sets (else it would not start), the docs.
@@ -114,7 +132,11 @@ describe('the built service (node dist/cli/serve.js) on SIGTERM mid-burst', () =
         const hookInstance = randomUUID();
         const sentBeforeSignal = !signalled;
         try {
-          const r = await fetch(`${url}/cds-services/bolus-review-select`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ ...body, hookInstance }) });
+          const r = await fetch(`${url}/cds-services/bolus-review-select`, {
+            method: 'POST',
+            headers: { 'content-type': 'application/json' },
+            body: JSON.stringify({ ...body, hookInstance }),
+          });
           await r.text();
           if (r.status === 200) {
             ok.push(hookInstance);
@@ -143,7 +165,9 @@ describe('the built service (node dist/cli/serve.js) on SIGTERM mid-burst', () =
     let stored: Set<string>;
     try {
       expect(db.pragma('integrity_check', { simple: true })).toBe('ok');
-      stored = new Set((db.prepare('SELECT hook_instance FROM advice').all() as Array<{ hook_instance: string }>).map((r) => r.hook_instance));
+      stored = new Set(
+        (db.prepare('SELECT hook_instance FROM advice').all() as Array<{ hook_instance: string }>).map((r) => r.hook_instance),
+      );
     } finally {
       db.close();
     }
@@ -157,7 +181,9 @@ describe('the built service (node dist/cli/serve.js) on SIGTERM mid-burst', () =
     }
 
     expectCleanLog();
-    await annotate(`graceful stop: ${ok.length} answered (${okAfterSignal.length} of them after the signal), ${cutOff} refused after it, 0 lost`);
+    await annotate(
+      `graceful stop: ${ok.length} answered (${okAfterSignal.length} of them after the signal), ${cutOff} refused after it, 0 lost`,
+    );
   }, 120_000);
 
   // The defect of issue 15: `npm start` was npm → sh → tsx → node, and SIGTERM to npm left node listening. The start

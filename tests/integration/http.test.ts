@@ -3,7 +3,15 @@
 import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { cardSchema, discoveryResponseSchema, hookResponseSchema } from '../../src/hooks/schemas.js';
-import { basicResources, NOW, orderSelectRequest, orderSignRequest, patientViewRequest, prefetchOf, PID } from '../helpers/hook-fixtures.js';
+import {
+  basicResources,
+  NOW,
+  orderSelectRequest,
+  orderSignRequest,
+  patientViewRequest,
+  prefetchOf,
+  PID,
+} from '../helpers/hook-fixtures.js';
 import * as b from '../../examples/lib/fhir-builders.js';
 import { AUDIT_HEADERS, get, post, startService, type Running } from '../helpers/server.js';
 
@@ -16,7 +24,14 @@ afterAll(async () => s.stop());
 const rows = () => {
   const db = new Database(s.dbPath, { readonly: true });
   try {
-    return db.prepare('SELECT id, service, hook, hook_instance, patient_id, outcome, record FROM advice ORDER BY seq').all() as Array<{ id: string; service: string; hook: string; outcome: string; patient_id: string; record: string }>;
+    return db.prepare('SELECT id, service, hook, hook_instance, patient_id, outcome, record FROM advice ORDER BY seq').all() as Array<{
+      id: string;
+      service: string;
+      hook: string;
+      outcome: string;
+      patient_id: string;
+      record: string;
+    }>;
   } finally {
     db.close();
   }
@@ -28,7 +43,9 @@ describe('discovery', () => {
     expect(r.status).toBe(200);
     const d = discoveryResponseSchema.parse(r.body);
     expect(d.services.map((x) => [x.id, x.hook])).toEqual([
-      ['bolus-review-select', 'order-select'], ['bolus-review-sign', 'order-sign'], ['fluid-overview', 'patient-view'],
+      ['bolus-review-select', 'order-select'],
+      ['bolus-review-sign', 'order-sign'],
+      ['fluid-overview', 'patient-view'],
     ]);
     expect(Object.keys(d.services[0]?.prefetch ?? {})).toContain('vitals');
   });
@@ -85,7 +102,10 @@ describe('hook calls', () => {
   it('a non-fluid order gets no fluid card (200, cards: []) and is still audited', async () => {
     const n = rows().length;
     const draft = [b.otherOrder('draft-para', PID, 'Paracetamol 1 g IV', b.minutesAgo(NOW, 1))];
-    const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()), draft }));
+    const r = await post(
+      `${s.url}/cds-services/bolus-review-select`,
+      orderSelectRequest({ prefetch: prefetchOf(basicResources()), draft }),
+    );
     expect(r.status).toBe(200);
     expect(r.body).toEqual({ cards: [] });
     expect(rows()).toHaveLength(n + 1);
@@ -142,7 +162,10 @@ describe('errors are OperationOutcomes', () => {
   });
 
   it('a FHIR server that cannot be reached gives 200 with an info card saying what could not be assessed', async () => {
-    const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ fhirServer: 'http://127.0.0.1:1/fhir', token: 'x' }));
+    const r = await post(
+      `${s.url}/cds-services/bolus-review-select`,
+      orderSelectRequest({ fhirServer: 'http://127.0.0.1:1/fhir', token: 'x' }),
+    );
     expect(r.status).toBe(200);
     const card = cardSchema.parse(r.body.cards[0]);
     expect(card.indicator).toBe('info');
@@ -236,18 +259,37 @@ describe('health', () => {
 describe('no advice without an audit record', () => {
   // A store may fail by rejecting its promise or by throwing before it returns one: both must give the same 500.
   it.each([
-    ['rejects', async () => { throw new Error('disk full'); }],
-    ['throws before returning a promise', () => { throw new Error('disk full'); }],
+    [
+      'rejects',
+      async () => {
+        throw new Error('disk full');
+      },
+    ],
+    [
+      'throws before returning a promise',
+      () => {
+        throw new Error('disk full');
+      },
+    ],
   ])('a failing audit write (the store %s) gives a 500 OperationOutcome, not unaudited cards', async (_how, append) => {
-    const broken = await startService({}, {
-      now: () => NOW,
-      store: Object.assign(Object.create(null), {
-        kind: 'broken', init: async () => {}, ping: async () => {}, close: async () => {},
-        append,
-      }),
-    });
+    const broken = await startService(
+      {},
+      {
+        now: () => NOW,
+        store: Object.assign(Object.create(null), {
+          kind: 'broken',
+          init: async () => {},
+          ping: async () => {},
+          close: async () => {},
+          append,
+        }),
+      },
+    );
     try {
-      const r = await post(`${broken.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }));
+      const r = await post(
+        `${broken.url}/cds-services/bolus-review-select`,
+        orderSelectRequest({ prefetch: prefetchOf(basicResources()) }),
+      );
       expect(r.status).toBe(500);
       expect(r.body.resourceType).toBe('OperationOutcome');
       expect(r.body.issue[0].details.text).toMatch(/could not be stored for audit/);

@@ -24,8 +24,10 @@ function ppvCase(ppvPercent: number): Record<string, FhirResource[]> {
   // Female, 168 cm: predicted body weight 59.7 kg (ARDSNet), so 600 mL is 10 mL/kg, above the 8 mL/kg needed.
   r['ventilation'] = [b.numeric('vt-1', PID, 'tidalVolume', 600, t(10)), b.numeric('fio2-1', PID, 'fio2', 35, t(10))];
   r['assessments'] = [
-    b.coded('vent-1', PID, 'ventilationMode', 'controlled-no-effort', t(10)), b.coded('rhythm-1', PID, 'heartRhythm', 'sinus', t(10)),
-    b.coded('chest-1', PID, 'chestStatus', 'closed', t(240)), b.numeric('iap-1', PID, 'intraAbdominalPressure', 8, t(120)),
+    b.coded('vent-1', PID, 'ventilationMode', 'controlled-no-effort', t(10)),
+    b.coded('rhythm-1', PID, 'heartRhythm', 'sinus', t(10)),
+    b.coded('chest-1', PID, 'chestStatus', 'closed', t(240)),
+    b.numeric('iap-1', PID, 'intraAbdominalPressure', 8, t(120)),
   ];
   return r;
 }
@@ -75,16 +77,26 @@ function file(name: string, value: unknown): string {
 
 describe('the stored trail', () => {
   it('holds what the construction says: PPV 14 % and 17 % read as likely, under the default thresholds', async () => {
-    for (const id of [...ids['ppv14']!, ...ids['ppv17']!]) expect((await s.svc.store.get(id))?.advice?.responsiveness?.value).toBe('likely');
+    for (const id of [...ids['ppv14']!, ...ids['ppv17']!])
+      expect((await s.svc.store.get(id))?.advice?.responsiveness?.value).toBe('likely');
     expect(ids['matrix']).toHaveLength(5);
   });
 });
 
 describe('npm run -s audit -- impact', () => {
   it('a PPV threshold of 15 %: exactly the three 14 % records change from likely, with their ids as examples; the rest are unchanged', async () => {
-    const r = await cli('impact', '--thresholds', file('ppv15.json', { responsiveness: { ppvThresholdPercent: 15 } }), '--format', 'ndjson');
+    const r = await cli(
+      'impact',
+      '--thresholds',
+      file('ppv15.json', { responsiveness: { ppvThresholdPercent: 15 } }),
+      '--format',
+      'ndjson',
+    );
     expect(r.status, r.stderr).toBe(0);
-    const lines = r.stdout.trim().split('\n').map((l) => JSON.parse(l));
+    const lines = r.stdout
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l));
     const totals = lines[0];
     expect(totals).toMatchObject({ type: 'totals', read: 10, replayed: 10, failed: 0, notReplayable: 0, unchanged: 7, more: false });
     expect(totals.changed).toMatchObject({ any: 3, responsiveness: 3, tolerance: 0 });
@@ -106,7 +118,10 @@ describe('npm run -s audit -- impact', () => {
   it('the default thresholds (the rules the records were made under): nothing changes — suggestion uuids and links are not compared', async () => {
     const r = await cli('impact', '--thresholds', file('same.json', {}), '--format', 'ndjson');
     expect(r.status, r.stderr).toBe(0);
-    const [totals, ...changes] = r.stdout.trim().split('\n').map((l) => JSON.parse(l));
+    const [totals, ...changes] = r.stdout
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l));
     expect(totals).toMatchObject({ replayed: 10, unchanged: 10, changed: { any: 0 } });
     expect(changes).toEqual([]);
   });
@@ -131,7 +146,10 @@ describe('npm run -s audit -- impact', () => {
     kind.shortSummary = 'Invented candidate summary';
     const r = await cli('impact', '--thresholds', file('same2.json', {}), '--catalogue', file('cat.json', cat), '--format', 'ndjson');
     expect(r.status, r.stderr).toBe(0);
-    const lines = r.stdout.trim().split('\n').map((l) => JSON.parse(l));
+    const lines = r.stdout
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l));
     const heads = lines.filter((l) => l.dimension === 'headline');
     expect(heads.length).toBeGreaterThan(0);
     expect(heads.every((h) => h.cardKind === kind.id && h.to === 'Invented candidate summary')).toBe(true);

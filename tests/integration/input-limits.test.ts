@@ -23,7 +23,10 @@ const valid = () => orderSelectRequest({ prefetch: prefetchOf(basicResources()) 
 function deepDraftText(levels: number): string {
   const req = valid();
   const draft = { ...bolusDraft(), note: '__DEEP__' };
-  const text = JSON.stringify({ ...req, context: { ...req.context, draftOrders: { resourceType: 'Bundle', entry: [{ resource: draft }] } } });
+  const text = JSON.stringify({
+    ...req,
+    context: { ...req.context, draftOrders: { resourceType: 'Bundle', entry: [{ resource: draft }] } },
+  });
   const steps = Math.ceil(levels / 2);
   return text.replace('"__DEEP__"', `${'{"a":['.repeat(steps)}"x"${']}'.repeat(steps)}`);
 }
@@ -35,17 +38,20 @@ function issueTexts(body: any): string[] {
 const auditAlarms = () => s.logLines.filter((l) => l.includes('audit write failed') || l.includes('"level":50'));
 
 describe('nesting depth', () => {
-  it.each([5_000, 20_000, 200_000])('a draft order nested %i levels deep is a 400 naming the place, not a 500 or an audit alarm', async (levels) => {
-    const before = auditAlarms().length;
-    const text = deepDraftText(levels);
-    const r = await post(URL_SELECT(), text);
-    expect(r.status).toBe(400);
-    expect(r.body.resourceType).toBe('OperationOutcome');
-    expect(r.body.issue[0].code).toBe('structure');
-    expect(issueTexts(r.body)[0]).toContain(`deeper than ${MAX_JSON_DEPTH} levels`);
-    expect(issueTexts(r.body)[1]).toMatch(/^too deep under context\.draftOrders\.entry\[0\]\.resource\.note\.a\[0\]\.a/);
-    expect(auditAlarms().length).toBe(before);
-  });
+  it.each([5_000, 20_000, 200_000])(
+    'a draft order nested %i levels deep is a 400 naming the place, not a 500 or an audit alarm',
+    async (levels) => {
+      const before = auditAlarms().length;
+      const text = deepDraftText(levels);
+      const r = await post(URL_SELECT(), text);
+      expect(r.status).toBe(400);
+      expect(r.body.resourceType).toBe('OperationOutcome');
+      expect(r.body.issue[0].code).toBe('structure');
+      expect(issueTexts(r.body)[0]).toContain(`deeper than ${MAX_JSON_DEPTH} levels`);
+      expect(issueTexts(r.body)[1]).toMatch(/^too deep under context\.draftOrders\.entry\[0\]\.resource\.note\.a\[0\]\.a/);
+      expect(auditAlarms().length).toBe(before);
+    },
+  );
 
   it('nesting within the limit is answered (a draft order 40 levels deep)', async () => {
     const r = await post(URL_SELECT(), deepDraftText(40));
@@ -71,8 +77,23 @@ describe('echoed strings and client ids', () => {
   it.each([
     ['userId', (q: any) => ({ ...q, context: { ...q.context, userId: `Practitioner${huge}/x` } })],
     ['selections', (q: any) => ({ ...q, context: { ...q.context, selections: [`MedicationRequest${huge}/x`] } })],
-    ['a draft order id', (q: any) => ({ ...q, context: { ...q.context, draftOrders: { resourceType: 'Bundle', entry: [{ resource: { ...bolusDraft(), id: huge } }] } } })],
-    ['a draft order resourceType', (q: any) => ({ ...q, context: { ...q.context, draftOrders: { resourceType: 'Bundle', entry: [{ resource: { ...bolusDraft(), resourceType: `Medication${huge}` } }] } } })],
+    [
+      'a draft order id',
+      (q: any) => ({
+        ...q,
+        context: { ...q.context, draftOrders: { resourceType: 'Bundle', entry: [{ resource: { ...bolusDraft(), id: huge } }] } },
+      }),
+    ],
+    [
+      'a draft order resourceType',
+      (q: any) => ({
+        ...q,
+        context: {
+          ...q.context,
+          draftOrders: { resourceType: 'Bundle', entry: [{ resource: { ...bolusDraft(), resourceType: `Medication${huge}` } }] },
+        },
+      }),
+    ],
     ['a prefetch key', (q: any) => ({ ...q, prefetch: { ...q.prefetch, [huge]: null } })],
     ['a prefetch resource id', (q: any) => ({ ...q, prefetch: { ...q.prefetch, patient: { ...q.prefetch.patient, id: huge } } })],
   ])('a 1.8 MB %s is a short 400', async (_what, change) => {
@@ -85,7 +106,10 @@ describe('echoed strings and client ids', () => {
   it('draft orders larger than MAX_DRAFT_ORDERS_CHARS are a 400 naming draftOrders', async () => {
     const q = valid();
     const big = { ...bolusDraft(), note: [{ text: 'n'.repeat(MAX_DRAFT_ORDERS_CHARS) }] };
-    const r = await post(URL_SELECT(), { ...q, context: { ...q.context, draftOrders: { resourceType: 'Bundle', entry: [{ resource: big }] } } });
+    const r = await post(URL_SELECT(), {
+      ...q,
+      context: { ...q.context, draftOrders: { resourceType: 'Bundle', entry: [{ resource: big }] } },
+    });
     expect(r.status).toBe(400);
     expect(issueTexts(r.body).join('\n')).toMatch(/context\.draftOrders: draftOrders is larger than 256 KiB/);
   });
@@ -106,7 +130,14 @@ describe('echoed strings and client ids', () => {
 
   it('a 1 MB feedback comment is a 400', async () => {
     const r = await post(`${URL_SELECT()}/feedback`, {
-      feedback: [{ card: '0b8a3f4e-2d6c-4c1a-9e5f-7a6b5c4d3e2f', outcome: 'overridden', overrideReason: { userComment: 'c'.repeat(1_000_000) }, outcomeTimestamp: NOW.toISOString() }],
+      feedback: [
+        {
+          card: '0b8a3f4e-2d6c-4c1a-9e5f-7a6b5c4d3e2f',
+          outcome: 'overridden',
+          overrideReason: { userComment: 'c'.repeat(1_000_000) },
+          outcomeTimestamp: NOW.toISOString(),
+        },
+      ],
     });
     expect(r.status).toBe(400);
     expect(JSON.stringify(r.body).length).toBeLessThan(5_000);

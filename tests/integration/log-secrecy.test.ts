@@ -24,10 +24,16 @@ beforeAll(async () => {
   app.use((req, res) => {
     seenAuth.push(String(req.headers.authorization));
     if (req.path.startsWith('/Patient/')) res.json(b.patient(PID, 'female', '1958-04-11', NAME_FAMILY, NAME_GIVEN));
-    else if (req.path === '/Observation' && String(req.query['code'] ?? '').includes('2518-9')) res.status(500).json({ resourceType: 'OperationOutcome', issue: [{ severity: 'error', code: 'exception', diagnostics: `patient ${NAME_GIVEN} ${NAME_FAMILY} failed` }] });
+    else if (req.path === '/Observation' && String(req.query['code'] ?? '').includes('2518-9'))
+      res.status(500).json({
+        resourceType: 'OperationOutcome',
+        issue: [{ severity: 'error', code: 'exception', diagnostics: `patient ${NAME_GIVEN} ${NAME_FAMILY} failed` }],
+      });
     else res.json(b.searchset([]));
   });
-  fhir = await new Promise((r) => { const x = app.listen(0, '127.0.0.1', () => r(x)); });
+  fhir = await new Promise((r) => {
+    const x = app.listen(0, '127.0.0.1', () => r(x));
+  });
   fhirUrl = `http://127.0.0.1:${(fhir.address() as AddressInfo).port}`;
   s = await startService({ TIDEMARK_LOG_LEVEL: 'trace' }, { now: () => NOW });
 });

@@ -42,7 +42,11 @@ beforeAll(async () => {
   const lists = { issuers: [es.entry, rs.entry], auditReaders: [reader.entry] };
   const env = { TIDEMARK_TRIAL_MODE: 'false', TIDEMARK_PUBLIC_URL: PUBLIC };
   strict = await startService(
-    { ...env, TIDEMARK_CONFIG_FILE: writeConfigFile({ ...lists, algorithms: ['ES384'], clockSkewSeconds: 0, maxTokenAgeSeconds: 60 }), TIDEMARK_METRICS_TOKEN: METRICS_TOKEN },
+    {
+      ...env,
+      TIDEMARK_CONFIG_FILE: writeConfigFile({ ...lists, algorithms: ['ES384'], clockSkewSeconds: 0, maxTokenAgeSeconds: 60 }),
+      TIDEMARK_METRICS_TOKEN: METRICS_TOKEN,
+    },
     { now: () => NOW },
   );
   plain = await startService({ ...env, TIDEMARK_CONFIG_FILE: writeConfigFile(lists) }, { now: () => NOW });
@@ -53,7 +57,10 @@ afterAll(async () => {
   for (const s of started) await s.close();
 });
 
-const call = (r: Running, token: string) => post(`${r.url}/cds-services/${SERVICE}`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), { authorization: `Bearer ${token}` });
+const call = (r: Running, token: string) =>
+  post(`${r.url}/cds-services/${SERVICE}`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), {
+    authorization: `Bearer ${token}`,
+  });
 const reasonsSince = (r: Running, before: number) => r.logLines.slice(before).map((l) => JSON.parse(l) as Record<string, unknown>);
 
 describe('token rules from the config file', () => {
@@ -106,7 +113,9 @@ describe('what the log tells an operator', () => {
   it('without TIDEMARK_PUBLIC_URL outside trial mode, start-up warns and names the default it uses', async () => {
     const unset = await startService({ TIDEMARK_TRIAL_MODE: 'false', PORT: '8089' });
     running.push(unset);
-    const warn = unset.logLines.map((l) => JSON.parse(l) as Record<string, unknown>).find((l) => String(l['msg']).startsWith('TIDEMARK_PUBLIC_URL is not set'));
+    const warn = unset.logLines
+      .map((l) => JSON.parse(l) as Record<string, unknown>)
+      .find((l) => String(l['msg']).startsWith('TIDEMARK_PUBLIC_URL is not set'));
     expect(warn).toMatchObject({ level: 40, publicUrl: 'http://localhost:8089' });
     expect((await get(`${unset.url}/readyz`)).body.warnings.join(' ')).toMatch(/TIDEMARK_PUBLIC_URL is not set/);
     // In trial mode the default is expected, and not warned about.
@@ -134,7 +143,12 @@ describe('/metrics may have a credential of its own; /healthz, /readyz and /docs
 async function serve(env: Record<string, string>) {
   const dir = mkdtempSync(join(tmpdir(), 'tm-listen-'));
   const logLines: string[] = [];
-  const sink = new Writable({ write(chunk, _enc, cb) { logLines.push(...String(chunk).split('\n').filter(Boolean)); cb(); } });
+  const sink = new Writable({
+    write(chunk, _enc, cb) {
+      logLines.push(...String(chunk).split('\n').filter(Boolean));
+      cb();
+    },
+  });
   const cfg = loadConfig({ PORT: '0', TIDEMARK_SQLITE_PATH: join(dir, 'audit.sqlite'), ...env });
   const svc = await buildService(cfg, { log: createLogger('info', sink) });
   const server = await listen(svc, cfg);
@@ -144,17 +158,32 @@ async function serve(env: Record<string, string>) {
     rmSync(dir, { recursive: true, force: true });
   };
   started.push({ server, close });
-  const startLine = logLines.map((l) => JSON.parse(l) as Record<string, unknown>).find((l) => String(l['msg']).startsWith('Tidemark listening'));
+  const startLine = logLines
+    .map((l) => JSON.parse(l) as Record<string, unknown>)
+    .find((l) => String(l['msg']).startsWith('Tidemark listening'));
   return { server, startLine, address: server.address() as AddressInfo };
 }
 
 describe('the start-up line and where the service listens', () => {
   it('names the address, the public URL, the number of trusted issuers and the audit store', async () => {
     const { startLine, address } = await serve({
-      HOST: '127.0.0.1', TIDEMARK_PUBLIC_URL: PUBLIC, TIDEMARK_CONFIG_FILE: writeConfigFile({ issuers: [es.entry, rs.entry], auditReaders: [reader.entry] }),
+      HOST: '127.0.0.1',
+      TIDEMARK_PUBLIC_URL: PUBLIC,
+      TIDEMARK_CONFIG_FILE: writeConfigFile({ issuers: [es.entry, rs.entry], auditReaders: [reader.entry] }),
     });
-    expect(startLine).toMatchObject({ level: 30, host: '127.0.0.1', port: address.port, publicUrl: PUBLIC, trustedIssuers: 2, auditReaders: 1, auditStore: 'sqlite', replayCache: 'per-process' });
-    expect(startLine?.['msg']).toBe(`Tidemark listening on 127.0.0.1:${address.port}, public URL ${PUBLIC}, 2 trusted issuer(s), audit store sqlite`);
+    expect(startLine).toMatchObject({
+      level: 30,
+      host: '127.0.0.1',
+      port: address.port,
+      publicUrl: PUBLIC,
+      trustedIssuers: 2,
+      auditReaders: 1,
+      auditStore: 'sqlite',
+      replayCache: 'per-process',
+    });
+    expect(startLine?.['msg']).toBe(
+      `Tidemark listening on 127.0.0.1:${address.port}, public URL ${PUBLIC}, 2 trusted issuer(s), audit store sqlite`,
+    );
   });
 
   it('trial mode listens on 127.0.0.1 unless HOST is set, and says so', async () => {
@@ -165,7 +194,9 @@ describe('the start-up line and where the service listens', () => {
     expect(trial.startLine).toMatchObject({ host: '127.0.0.1', trialMode: true });
     expect(String(trial.startLine?.['msg'])).toContain('trial mode: listening on 127.0.0.1 only (set HOST to listen elsewhere)');
     // Another address of this machine, if it has one, does not reach the trial service.
-    const external = Object.values(networkInterfaces()).flat().find((i) => i && i.family === 'IPv4' && !i.internal);
+    const external = Object.values(networkInterfaces())
+      .flat()
+      .find((i) => i && i.family === 'IPv4' && !i.internal);
     if (external) await expect(fetch(`http://${external.address}:${trial.address.port}/healthz`)).rejects.toThrow();
 
     const chosen = await serve({ TIDEMARK_TRIAL_MODE: 'true', HOST: '0.0.0.0', TIDEMARK_AUDIT_TOKEN: 'local-trial-audit-token' });
@@ -177,7 +208,14 @@ describe('the start-up line and where the service listens', () => {
     const dir = mkdtempSync(join(tmpdir(), 'tm-trial-'));
     const { HOST: _host, ...env } = process.env;
     const child = spawn(process.execPath, ['--import', 'tsx', 'src/cli/serve.ts'], {
-      env: { ...env, PORT: '0', TIDEMARK_TRIAL_MODE: 'true', TIDEMARK_AUDIT_TOKEN: 'local-trial-audit-token', TIDEMARK_SQLITE_PATH: join(dir, 'a.sqlite'), TIDEMARK_LOG_LEVEL: 'info' },
+      env: {
+        ...env,
+        PORT: '0',
+        TIDEMARK_TRIAL_MODE: 'true',
+        TIDEMARK_AUDIT_TOKEN: 'local-trial-audit-token',
+        TIDEMARK_SQLITE_PATH: join(dir, 'a.sqlite'),
+        TIDEMARK_LOG_LEVEL: 'info',
+      },
       stdio: ['ignore', 'pipe', 'pipe'],
     });
     try {

@@ -28,8 +28,10 @@ beforeAll(async () => {
   for (const s of SCENARIOS) await fhir.load(scenarioBundle(s.build(NOW)));
   await fhir.load({ resourceType: 'Bundle', type: 'collection', entry: siteChart(NOW).map((resource) => ({ resource })) } as Bundle);
   report = await runReadiness({
-    fhirServer: fhir.baseUrl, patients: [...SCENARIOS.map((s) => s.patientId), SITE_PATIENT],
-    cfg: loadConfig({ TIDEMARK_CONFIG_FILE: SITE_CONFIG }), now: NOW,
+    fhirServer: fhir.baseUrl,
+    patients: [...SCENARIOS.map((s) => s.patientId), SITE_PATIENT],
+    cfg: loadConfig({ TIDEMARK_CONFIG_FILE: SITE_CONFIG }),
+    now: NOW,
   });
 }, 120_000);
 afterAll(async () => {
@@ -48,7 +50,7 @@ describe('readiness on the demo scenarios and a hospital-coded patient', () => {
       expect(p?.unmapped, s.id).toEqual([]); // the scenarios are coded in LOINC and Tidemark's codes only
     }
   });
-  it('the verdicts reached are those the real rules give: each scenario\'s expected responsiveness (examples/scenarios)', () => {
+  it("the verdicts reached are those the real rules give: each scenario's expected responsiveness (examples/scenarios)", () => {
     let checked = 0;
     for (const s of SCENARIOS) {
       if (s.expect.responsiveness === null) continue;
@@ -70,9 +72,18 @@ describe('readiness on the demo scenarios and a hospital-coded patient', () => {
   it('a survey search the server refuses is said, not taken for "nothing unmapped"', async () => {
     const refusing: typeof fhirFetcher = (base, token) => {
       const f = fhirFetcher(base, token);
-      return (url, signal) => (url.includes('/Observation?') && !url.includes('code=') ? Promise.reject(new FhirFetchError('http-error', 'FHIR server answered 403', 403)) : f(url, signal));
+      return (url, signal) =>
+        url.includes('/Observation?') && !url.includes('code=')
+          ? Promise.reject(new FhirFetchError('http-error', 'FHIR server answered 403', 403))
+          : f(url, signal);
     };
-    const r = await runReadiness({ fhirServer: fhir.baseUrl, patients: [SITE_PATIENT], cfg: loadConfig({ TIDEMARK_CONFIG_FILE: SITE_CONFIG }), now: NOW, makeFetcher: refusing });
+    const r = await runReadiness({
+      fhirServer: fhir.baseUrl,
+      patients: [SITE_PATIENT],
+      cfg: loadConfig({ TIDEMARK_CONFIG_FILE: SITE_CONFIG }),
+      now: NOW,
+      makeFetcher: refusing,
+    });
     expect(r.patients[0]?.survey).toEqual({ count: 0, problem: 'FHIR server answered 403' });
     expect(patient(SITE_PATIENT)?.survey?.count).toBeGreaterThan(10);
     // The services' own searches still ran: the mapped markers are read.
@@ -81,10 +92,17 @@ describe('readiness on the demo scenarios and a hospital-coded patient', () => {
 });
 
 describe('npm run readiness (the CLI, as a child process)', () => {
-  const cli = (...args: string[]) => spawnSync(process.execPath, ['--import', 'tsx', 'src/cli/readiness.ts', ...args], { encoding: 'utf8', env: { ...process.env, TIDEMARK_CONFIG_FILE: '' } });
+  const cli = (...args: string[]) =>
+    spawnSync(process.execPath, ['--import', 'tsx', 'src/cli/readiness.ts', ...args], {
+      encoding: 'utf8',
+      env: { ...process.env, TIDEMARK_CONFIG_FILE: '' },
+    });
   it('--bundle with the site maps, --format json', () => {
     const file = join(dir, 'site.json');
-    writeFileSync(file, JSON.stringify({ resourceType: 'Bundle', type: 'collection', entry: siteChart(new Date()).map((resource) => ({ resource })) }));
+    writeFileSync(
+      file,
+      JSON.stringify({ resourceType: 'Bundle', type: 'collection', entry: siteChart(new Date()).map((resource) => ({ resource })) }),
+    );
     const r = cli('--bundle', file, '--config', SITE_CONFIG, '--format', 'json');
     expect(r.status, r.stderr).toBe(0);
     expect(r.stderr).toBe('');

@@ -28,7 +28,12 @@ const SERVICE = 'bolus-review-select';
 const HOOK_AUD = `${PUBLIC}/cds-services/${SERVICE}`;
 const AUDIT_AUD = `${PUBLIC}/audit`;
 
-interface Replica { svc: Service; server: Server; url: string; logLines: string[] }
+interface Replica {
+  svc: Service;
+  server: Server;
+  url: string;
+  logLines: string[];
+}
 const replicas: Replica[] = [];
 const stores: PostgresAuditStore[] = [];
 let north: TestIssuer;
@@ -38,13 +43,29 @@ let admin: pg.Client;
 
 async function startReplica(configFile: string): Promise<Replica> {
   const logLines: string[] = [];
-  const sink = new Writable({ write(chunk, _enc, cb) { logLines.push(...String(chunk).split('\n').filter(Boolean)); cb(); } });
+  const sink = new Writable({
+    write(chunk, _enc, cb) {
+      logLines.push(...String(chunk).split('\n').filter(Boolean));
+      cb();
+    },
+  });
   const cfg = loadConfig({
-    PORT: '0', HOST: '127.0.0.1', TIDEMARK_TRIAL_MODE: 'false', TIDEMARK_CONFIG_FILE: configFile, TIDEMARK_PUBLIC_URL: PUBLIC,
-    TIDEMARK_AUDIT_STORE: 'postgres', TIDEMARK_PG_URL: PG_URL, TIDEMARK_AUDIT_TOKEN: 'replica-audit-token-0123456789', TIDEMARK_LOG_LEVEL: 'info',
+    PORT: '0',
+    HOST: '127.0.0.1',
+    TIDEMARK_TRIAL_MODE: 'false',
+    TIDEMARK_CONFIG_FILE: configFile,
+    TIDEMARK_PUBLIC_URL: PUBLIC,
+    TIDEMARK_AUDIT_STORE: 'postgres',
+    TIDEMARK_PG_URL: PG_URL,
+    TIDEMARK_AUDIT_TOKEN: 'replica-audit-token-0123456789',
+    TIDEMARK_LOG_LEVEL: 'info',
   });
   // Each replica has its own store object and connection pool, as two processes would; only the schema is shared.
-  const svc = await buildService(cfg, { store: new PostgresAuditStore(PG_URL, { schema: SCHEMA, poolSize: 4 }), log: createLogger('info', sink), now: () => NOW });
+  const svc = await buildService(cfg, {
+    store: new PostgresAuditStore(PG_URL, { schema: SCHEMA, poolSize: 4 }),
+    log: createLogger('info', sink),
+    now: () => NOW,
+  });
   const server = await listen(svc, cfg);
   const r = { svc, server, url: `http://127.0.0.1:${(server.address() as AddressInfo).port}`, logLines };
   replicas.push(r);
@@ -75,14 +96,22 @@ afterAll(async () => {
 });
 
 const hookCall = (r: Replica, token: string) =>
-  post(`${r.url}/cds-services/${SERVICE}`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['smaller-aliquot']) }), { authorization: `Bearer ${token}` });
+  post(`${r.url}/cds-services/${SERVICE}`, orderSelectRequest({ prefetch: prefetchOf(ADVICE_CASES['smaller-aliquot']) }), {
+    authorization: `Bearer ${token}`,
+  });
 const feedback = async (r: Replica, who: TestIssuer, items: unknown[]) =>
-  post(`${r.url}/cds-services/${SERVICE}/feedback`, { feedback: items }, { authorization: `Bearer ${await who.mint(`${HOOK_AUD}/feedback`)}` });
+  post(
+    `${r.url}/cds-services/${SERVICE}/feedback`,
+    { feedback: items },
+    { authorization: `Bearer ${await who.mint(`${HOOK_AUD}/feedback`)}` },
+  );
 
 describe('two replicas on one PostgreSQL schema', () => {
   it('each names the shared replay cache and the PostgreSQL store in its start-up line', () => {
     for (const r of [one, two]) {
-      const line = r.logLines.map((l) => JSON.parse(l) as Record<string, unknown>).find((l) => String(l['msg']).startsWith('Tidemark listening'));
+      const line = r.logLines
+        .map((l) => JSON.parse(l) as Record<string, unknown>)
+        .find((l) => String(l['msg']).startsWith('Tidemark listening'));
       expect(line).toMatchObject({ publicUrl: PUBLIC, trustedIssuers: 2, auditReaders: 1, auditStore: 'postgres', replayCache: 'shared' });
     }
   });
@@ -100,7 +129,9 @@ describe('two replicas on one PostgreSQL schema', () => {
   it('of one token sent to both replicas at once, exactly one call is answered', async () => {
     for (let round = 0; round < 3; round += 1) {
       const t = await north.mint(HOOK_AUD);
-      const statuses = (await Promise.all([hookCall(one, t), hookCall(two, t), hookCall(one, t), hookCall(two, t)])).map((r) => r.status).sort();
+      const statuses = (await Promise.all([hookCall(one, t), hookCall(two, t), hookCall(one, t), hookCall(two, t)]))
+        .map((r) => r.status)
+        .sort();
       expect(statuses).toEqual([200, 401, 401, 401]);
     }
   });
@@ -114,18 +145,30 @@ describe('two replicas on one PostgreSQL schema', () => {
     const fresh = await two.svc.store.list({ limit: 200 });
     expect(fresh.items.length).toBeGreaterThanOrEqual(first.body.items.length);
     for (const r of [one, two]) {
-      expect((await get(`${r.url}/audit/advice`, { authorization: `Bearer ${await north.mint(AUDIT_AUD, { scope: 'tidemark.audit' })}` })).status).toBe(401);
-      expect((await get(`${r.url}/audit/verify`, { authorization: `Bearer ${await reader.mint(AUDIT_AUD, { scope: 'tidemark.audit' })}` })).body).toMatchObject({ ok: true });
+      expect(
+        (await get(`${r.url}/audit/advice`, { authorization: `Bearer ${await north.mint(AUDIT_AUD, { scope: 'tidemark.audit' })}` }))
+          .status,
+      ).toBe(401);
+      expect(
+        (await get(`${r.url}/audit/verify`, { authorization: `Bearer ${await reader.mint(AUDIT_AUD, { scope: 'tidemark.audit' })}` })).body,
+      ).toMatchObject({ ok: true });
     }
   });
 
   it('feedback on a card issued through one replica: only its issuer, on either replica, with the card own choices', async () => {
     const answer = await hookCall(one, await north.mint(HOOK_AUD));
     const card = answer.body.cards[0];
-    const item = { card: card.uuid, outcome: 'overridden', overrideReason: { reason: card.overrideReasons[0] }, outcomeTimestamp: '2026-11-20T14:10:00Z' };
+    const item = {
+      card: card.uuid,
+      outcome: 'overridden',
+      overrideReason: { reason: card.overrideReasons[0] },
+      outcomeTimestamp: '2026-11-20T14:10:00Z',
+    };
     expect((await feedback(two, south, [item])).status).toBe(404);
     expect((await feedback(one, south, [item])).status).toBe(404);
-    expect((await feedback(two, north, [{ ...item, overrideReason: { reason: { ...card.overrideReasons[0], code: 'never-offered' } } }])).status).toBe(400);
+    expect(
+      (await feedback(two, north, [{ ...item, overrideReason: { reason: { ...card.overrideReasons[0], code: 'never-offered' } } }])).status,
+    ).toBe(400);
     expect(await feedback(two, north, [item])).toEqual({ status: 200, body: { stored: 1, duplicates: 0 } });
     expect(await feedback(one, north, [item])).toEqual({ status: 200, body: { stored: 0, duplicates: 1 } });
   });
@@ -148,7 +191,8 @@ describe('the shared replay table', () => {
     expect(await cache.seen(key, t + 90)).toBe(true);
     const other = `https://ehr.north-invented.example.org/cds ${randomUUID()}`;
     expect(await cache.seen(other, t + 40)).toBe(false);
-    const count = async () => Number((await admin.query(`SELECT COUNT(*)::int AS n FROM "${SCHEMA}".jti_seen WHERE forget_after <= $1`, [t + 40])).rows[0].n);
+    const count = async () =>
+      Number((await admin.query(`SELECT COUNT(*)::int AS n FROM "${SCHEMA}".jti_seen WHERE forget_after <= $1`, [t + 40])).rows[0].n);
     expect(await count()).toBeGreaterThan(0);
     clock.ms += 61_000; // past both expiries and the purge interval: the next call deletes expired rows
     expect(await cache.seen(`https://ehr.north-invented.example.org/cds ${randomUUID()}`, t + 500)).toBe(false);
@@ -160,6 +204,10 @@ describe('the shared replay table', () => {
     await store.init();
     await store.close();
     const verifier = createClientVerifier(authConfigSchema.parse({ issuers: [north.entry] }), { replayCache: store.sharedReplayCache() });
-    expect(await verifier.verify(`Bearer ${await north.mint(HOOK_AUD)}`, HOOK_AUD)).toEqual({ ok: false, reason: 'replay cache unavailable', issuer: north.iss });
+    expect(await verifier.verify(`Bearer ${await north.mint(HOOK_AUD)}`, HOOK_AUD)).toEqual({
+      ok: false,
+      reason: 'replay cache unavailable',
+      issuer: north.iss,
+    });
   });
 });

@@ -7,7 +7,8 @@ describe('serve, refused configuration', () => {
   it('logs one fatal JSON line naming the variable and exits 2', () => {
     const run = spawnSync(process.execPath, ['--import', 'tsx', 'src/cli/serve.ts'], {
       env: { ...process.env, PORT: 'not-a-port', TIDEMARK_TRIAL_MODE: 'true', TIDEMARK_AUDIT_TOKEN: 'serve-output-token-0123' },
-      encoding: 'utf8', timeout: 30_000,
+      encoding: 'utf8',
+      timeout: 30_000,
     });
     expect(run.status).toBe(2);
     expect(run.stderr).toBe('');

@@ -25,7 +25,10 @@ beforeAll(async () => {
   const dir = mkdtempSync(join(tmpdir(), 'tm-auth-'));
   const file = join(dir, 'config.json');
   writeFileSync(file, JSON.stringify({ issuers: [{ iss: ISS, jwks: { keys: [{ ...jwk, kid }] } }] }));
-  secure = await startService({ TIDEMARK_TRIAL_MODE: 'false', TIDEMARK_CONFIG_FILE: file, TIDEMARK_PUBLIC_URL: PUBLIC }, { now: () => NOW });
+  secure = await startService(
+    { TIDEMARK_TRIAL_MODE: 'false', TIDEMARK_CONFIG_FILE: file, TIDEMARK_PUBLIC_URL: PUBLIC },
+    { now: () => NOW },
+  );
   locked = await startService({ TIDEMARK_TRIAL_MODE: 'false' }, { now: () => NOW });
 });
 afterAll(async () => {
@@ -34,7 +37,14 @@ afterAll(async () => {
 });
 
 const token = (aud: string) =>
-  new SignJWT({}).setProtectedHeader({ alg: 'ES384', kid, typ: 'JWT' }).setIssuer(ISS).setAudience(aud).setIssuedAt().setExpirationTime('5m').setJti(randomUUID()).sign(privateKey);
+  new SignJWT({})
+    .setProtectedHeader({ alg: 'ES384', kid, typ: 'JWT' })
+    .setIssuer(ISS)
+    .setAudience(aud)
+    .setIssuedAt()
+    .setExpirationTime('5m')
+    .setJti(randomUUID())
+    .sign(privateKey);
 
 describe('service authentication', () => {
   it('with no issuer configured and no trial mode, every CDS call is refused (401) and /readyz says why', async () => {
@@ -47,22 +57,46 @@ describe('service authentication', () => {
 
   it('a trusted issuer gets in with aud = the public URL of the endpoint called, and only there', async () => {
     const hookUrl = `${PUBLIC}/cds-services/bolus-review-select`;
-    const ok = await post(`${secure.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), { authorization: `Bearer ${await token(hookUrl)}` });
+    const ok = await post(
+      `${secure.url}/cds-services/bolus-review-select`,
+      orderSelectRequest({ prefetch: prefetchOf(basicResources()) }),
+      { authorization: `Bearer ${await token(hookUrl)}` },
+    );
     expect(ok.status).toBe(200);
     expect(ok.body.cards).toHaveLength(1);
     // The discovery audience does not open the service endpoint.
-    const wrong = await post(`${secure.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), { authorization: `Bearer ${await token(`${PUBLIC}/cds-services`)}` });
+    const wrong = await post(
+      `${secure.url}/cds-services/bolus-review-select`,
+      orderSelectRequest({ prefetch: prefetchOf(basicResources()) }),
+      { authorization: `Bearer ${await token(`${PUBLIC}/cds-services`)}` },
+    );
     expect(wrong.status).toBe(401);
-    expect((await get(`${secure.url}/cds-services`, { authorization: `Bearer ${await token(`${PUBLIC}/cds-services`)}` })).status).toBe(200);
+    expect((await get(`${secure.url}/cds-services`, { authorization: `Bearer ${await token(`${PUBLIC}/cds-services`)}` })).status).toBe(
+      200,
+    );
     // The same token twice is a replay.
     const once = await token(hookUrl);
-    expect((await post(`${secure.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), { authorization: `Bearer ${once}` })).status).toBe(200);
-    expect((await post(`${secure.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), { authorization: `Bearer ${once}` })).status).toBe(401);
+    expect(
+      (
+        await post(`${secure.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), {
+          authorization: `Bearer ${once}`,
+        })
+      ).status,
+    ).toBe(200);
+    expect(
+      (
+        await post(`${secure.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), {
+          authorization: `Bearer ${once}`,
+        })
+      ).status,
+    ).toBe(401);
   });
 
   it('the verified issuer is kept in the audit record, never the token', async () => {
     const t = await token(`${PUBLIC}/cds-services/bolus-review-select`);
-    await post(`${secure.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), { authorization: `Bearer ${t}` });
+    await post(`${secure.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }), {
+      authorization: `Bearer ${t}`,
+    });
     const rec = (await secure.svc.store.list({ limit: 1 })).items[0]!;
     const full = await secure.svc.store.get(rec.id);
     expect(full?.client?.issuer).toBe(ISS);
@@ -76,7 +110,9 @@ describe('service authentication', () => {
   it('/metrics counts requests by service and status', async () => {
     const m = await get(`${secure.url}/metrics`);
     expect(m.status).toBe(200);
-    expect(String(m.body)).toMatch(/tidemark_http_requests_total\{route="\/cds-services\/:id",service="bolus-review-select",status="200"\} \d+/);
+    expect(String(m.body)).toMatch(
+      /tidemark_http_requests_total\{route="\/cds-services\/:id",service="bolus-review-select",status="200"\} \d+/,
+    );
     expect(String(m.body)).toMatch(/tidemark_audit_write_duration_seconds_bucket/);
   });
 });

@@ -26,14 +26,19 @@ afterAll(async () => {
   await fhir?.close();
 });
 
-const call = (s: Running) => post(`${s.url}/cds-services/fluid-overview`, {
-  hook: 'patient-view', hookInstance: crypto.randomUUID(), fhirServer: fhir.baseUrl,
-  context: { userId: 'Practitioner/hg-prac-amsel', patientId: SITE_PATIENT },
-});
+const call = (s: Running) =>
+  post(`${s.url}/cds-services/fluid-overview`, {
+    hook: 'patient-view',
+    hookInstance: crypto.randomUUID(),
+    fhirServer: fhir.baseUrl,
+    context: { userId: 'Practitioner/hg-prac-amsel', patientId: SITE_PATIENT },
+  });
 
 describe('a site running with its maps', () => {
   it('discovery asks for the site codes; the rules version carries the map digest', async () => {
-    const d = await fetch(`${mapped.url}/cds-services`).then((r) => r.json()) as { services: Array<{ prefetch: Record<string, string> }> };
+    const d = (await fetch(`${mapped.url}/cds-services`).then((r) => r.json())) as {
+      services: Array<{ prefetch: Record<string, string> }>;
+    };
     expect(d.services[0]?.prefetch['vitals']).toContain(`${IEEE}|150037`);
     expect(mapped.svc.rulesVersion).toMatch(/\.m[0-9a-f]{8}$/);
     expect(plain.svc.rulesVersion).not.toMatch(/\.m/);
@@ -45,7 +50,10 @@ describe('a site running with its maps', () => {
     const rec = await mapped.svc.store.get(item!.id);
     const ms = (rec as { snapshot: { measurements: Measurement[] } }).snapshot.measurements;
     expect(ms.find((m) => m.ref === 'Observation/st-abp-sys-1')).toMatchObject({
-      kind: 'systolicBp', original: { system: IEEE, code: '150037', unit: 'MDC_DIM_MMHG' }, readAs: { code: '8480-6', equivalence: 'wider' }, unitReadAs: 'mm[Hg]',
+      kind: 'systolicBp',
+      original: { system: IEEE, code: '150037', unit: 'MDC_DIM_MMHG' },
+      readAs: { code: '8480-6', equivalence: 'wider' },
+      unitReadAs: 'mm[Hg]',
     });
     expect(ms.find((m) => m.ref === 'Observation/st-ppv-1')).toMatchObject({ kind: 'ppv', readAs: { code: 'ppv' } });
     expect(rec?.rulesVersion).toBe(mapped.svc.rulesVersion);
@@ -57,6 +65,8 @@ describe('a site running with its maps', () => {
     expect((await call(plain)).status).toBe(200);
     const item = (await plain.svc.store.list({ patientId: SITE_PATIENT, limit: 5 })).items[0];
     const rec = await plain.svc.store.get(item!.id);
-    expect((rec as { snapshot: { measurements: Measurement[] } }).snapshot.measurements.map((m) => m.ref)).toEqual(['Observation/st-lac-1']);
+    expect((rec as { snapshot: { measurements: Measurement[] } }).snapshot.measurements.map((m) => m.ref)).toEqual([
+      'Observation/st-lac-1',
+    ]);
   });
 });

@@ -33,19 +33,25 @@ function spyOnOutput() {
 }
 
 describe('a crafted Quantity.unit over HTTP', () => {
-  it.each(CRAFTED.map((u) => [JSON.stringify(u).slice(0, 40), u]))('writes nothing to the console or the streams (%s)', async (_label, unit) => {
-    const r = basicResources();
-    const t = b.minutesAgo(NOW, 10);
-    // A mean arterial pressure with the crafted unit as free text (no UCUM system, so the text is what is read).
-    r.vitals = [...(r.vitals ?? []).filter((o) => o.id !== 'map-1'), { ...b.numeric('map-1', PID, 'meanBp', 61, t), valueQuantity: { value: 61, unit } }];
-    const spies = spyOnOutput();
-    const res = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(r) }));
-    const calls = spies.flatMap((sp) => sp.mock.calls.map((c) => String(c[0]).slice(0, 120)));
-    vi.restoreAllMocks();
-    expect(res.status).toBe(200);
-    expect(calls).toEqual([]);
-    // The service log: JSON lines of the logger only; no forged line, no name.
-    for (const line of s.logLines) expect(() => JSON.parse(line)).not.toThrow();
-    expect(s.logLines.filter((l) => l.includes('audit-chain-verified') || l.includes('Quillfeather'))).toEqual([]);
-  });
+  it.each(CRAFTED.map((u) => [JSON.stringify(u).slice(0, 40), u]))(
+    'writes nothing to the console or the streams (%s)',
+    async (_label, unit) => {
+      const r = basicResources();
+      const t = b.minutesAgo(NOW, 10);
+      // A mean arterial pressure with the crafted unit as free text (no UCUM system, so the text is what is read).
+      r.vitals = [
+        ...(r.vitals ?? []).filter((o) => o.id !== 'map-1'),
+        { ...b.numeric('map-1', PID, 'meanBp', 61, t), valueQuantity: { value: 61, unit } },
+      ];
+      const spies = spyOnOutput();
+      const res = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(r) }));
+      const calls = spies.flatMap((sp) => sp.mock.calls.map((c) => String(c[0]).slice(0, 120)));
+      vi.restoreAllMocks();
+      expect(res.status).toBe(200);
+      expect(calls).toEqual([]);
+      // The service log: JSON lines of the logger only; no forged line, no name.
+      for (const line of s.logLines) expect(() => JSON.parse(line)).not.toThrow();
+      expect(s.logLines.filter((l) => l.includes('audit-chain-verified') || l.includes('Quillfeather'))).toEqual([]);
+    },
+  );
 });

@@ -12,15 +12,29 @@ function reference(v: unknown): string {
   if (v === null || typeof v !== 'object') return JSON.stringify(v) ?? 'null';
   if (Array.isArray(v)) return `[${Array.from({ length: v.length }, (_, i) => (i in v ? element(v[i]) : '')).join(',')}]`;
   const o = v as Record<string, unknown>;
-  return `{${Object.keys(o).sort().filter((k) => o[k] !== undefined).map((k) => `${JSON.stringify(k)}:${reference(o[k])}`).join(',')}}`;
+  return `{${Object.keys(o)
+    .sort()
+    .filter((k) => o[k] !== undefined)
+    .map((k) => `${JSON.stringify(k)}:${reference(o[k])}`)
+    .join(',')}}`;
 }
 
 describe('canonicalJson', () => {
   it('equals the reference for any JSON value (fast path)', () => {
-    fc.assert(fc.property(fc.jsonValue(), (v) => { expect(canonicalJson(v)).toBe(reference(v)); }), { numRuns: 2000 });
+    fc.assert(
+      fc.property(fc.jsonValue(), (v) => {
+        expect(canonicalJson(v)).toBe(reference(v));
+      }),
+      { numRuns: 2000 },
+    );
   });
   it('equals the reference for objects with integer keys and for sparse arrays (plain path)', () => {
-    fc.assert(fc.property(fc.dictionary(fc.oneof(fc.nat().map(String), fc.string()), fc.jsonValue()), (o) => { expect(canonicalJson(o)).toBe(reference(o)); }), { numRuns: 1000 });
+    fc.assert(
+      fc.property(fc.dictionary(fc.oneof(fc.nat().map(String), fc.string()), fc.jsonValue()), (o) => {
+        expect(canonicalJson(o)).toBe(reference(o));
+      }),
+      { numRuns: 1000 },
+    );
     const sparse = [1, 2, 3];
     delete sparse[1]; // a hole, as `[1, , 3]` writes it
     expect(canonicalJson({ b: sparse, a: { 10: 'x', 9: 'y' } })).toBe(reference({ b: sparse, a: { 10: 'x', 9: 'y' } }));

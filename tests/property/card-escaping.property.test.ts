@@ -18,12 +18,52 @@ const BIDI = /[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\
 const ALLOWED = new Set(['p', 'ul', 'li', 'strong', 'em', 'a']);
 
 const attack = fc.constantFrom(
-  '[click](javascript:alert(1))', '![x](http://evil.example/p.png)', '<img src=x onerror=alert(1)>', '<script>alert(1)</script>', '<b>bold</b>',
-  '\n# Heading', '\n- item', '\n+ item', '\n1. item', '\n> quote', '\n---', '\n===', '# ', '- ', '1) ', '> ',
-  'http://evil.example/x', 'www.evil.example', 'evil.example', 'mailto:a@b.example', 'a@b.example', '<http://evil.example>',
-  '\u202E', '\u2066', '\u2069', '\u200F', '\u061C', '\u202A', '\t', '\r\n', '**', '__', '`code`', '~~del~~', '| a | b |', '&lt;', '&#60;', '\\', 'a', ' ', '500 mL',
+  '[click](javascript:alert(1))',
+  '![x](http://evil.example/p.png)',
+  '<img src=x onerror=alert(1)>',
+  '<script>alert(1)</script>',
+  '<b>bold</b>',
+  '\n# Heading',
+  '\n- item',
+  '\n+ item',
+  '\n1. item',
+  '\n> quote',
+  '\n---',
+  '\n===',
+  '# ',
+  '- ',
+  '1) ',
+  '> ',
+  'http://evil.example/x',
+  'www.evil.example',
+  'evil.example',
+  'mailto:a@b.example',
+  'a@b.example',
+  '<http://evil.example>',
+  '\u202E',
+  '\u2066',
+  '\u2069',
+  '\u200F',
+  '\u061C',
+  '\u202A',
+  '\t',
+  '\r\n',
+  '**',
+  '__',
+  '`code`',
+  '~~del~~',
+  '| a | b |',
+  '&lt;',
+  '&#60;',
+  '\\',
+  'a',
+  ' ',
+  '500 mL',
 );
-const hostile = fc.oneof(fc.array(attack, { minLength: 1, maxLength: 12 }).map((a) => a.join('')), fc.string({ unit: 'grapheme', maxLength: 60 }));
+const hostile = fc.oneof(
+  fc.array(attack, { minLength: 1, maxLength: 12 }).map((a) => a.join('')),
+  fc.string({ unit: 'grapheme', maxLength: 60 }),
+);
 
 /** Checks one card: summary and labels plain text, detail only our own Markdown structure, the limits kept. */
 function inert(card: Card): void {
@@ -60,13 +100,16 @@ function withHostileDisplays(text: string, orderVolumeUnreadable: boolean) {
   const resources = built.resources.map((r) => {
     if (r.resourceType !== 'MedicationAdministration') return r;
     const m = structuredClone(r) as MedicationAdministration;
-    if (m.medicationCodeableConcept) m.medicationCodeableConcept = { ...m.medicationCodeableConcept, text: `${text} ${m.medicationCodeableConcept.text ?? ''}` };
+    if (m.medicationCodeableConcept)
+      m.medicationCodeableConcept = { ...m.medicationCodeableConcept, text: `${text} ${m.medicationCodeableConcept.text ?? ''}` };
     return m as FhirResource;
   });
   const draftOrders = built.draftOrders.map((r) => {
     const o = structuredClone(r) as MedicationRequest;
-    if (o.medicationCodeableConcept) o.medicationCodeableConcept = { ...o.medicationCodeableConcept, text: `${o.medicationCodeableConcept.text ?? ''} ${text}` };
-    if (orderVolumeUnreadable && o.dosageInstruction?.[0]?.doseAndRate?.[0]) o.dosageInstruction[0].doseAndRate[0] = { doseQuantity: { value: 500, unit: text.slice(0, 20) || 'x' } };
+    if (o.medicationCodeableConcept)
+      o.medicationCodeableConcept = { ...o.medicationCodeableConcept, text: `${o.medicationCodeableConcept.text ?? ''} ${text}` };
+    if (orderVolumeUnreadable && o.dosageInstruction?.[0]?.doseAndRate?.[0])
+      o.dosageInstruction[0].doseAndRate[0] = { doseQuantity: { value: 500, unit: text.slice(0, 20) || 'x' } };
     return o;
   });
   return cardsOf({ resources, patientId: s.patientId, encounterId: s.encounterId, draftOrders, now: NOW, hook: built.hook });
@@ -83,31 +126,52 @@ describe('hostile FHIR text on the cards is inert', () => {
   });
 
   it('displays of a fluid given and of the draft order, and an order unit that cannot be read', () => {
-    fc.assert(fc.property(hostile, fc.boolean(), (text, unreadable) => {
-      const { cards } = withHostileDisplays(text, unreadable);
-      for (const c of cards) inert(c);
-    }), { numRuns: 150 });
+    fc.assert(
+      fc.property(hostile, fc.boolean(), (text, unreadable) => {
+        const { cards } = withHostileDisplays(text, unreadable);
+        for (const c of cards) inert(c);
+      }),
+      { numRuns: 150 },
+    );
   });
 
   it('what the FHIR server said (OperationOutcome text) on the advice-not-available card', () => {
-    fc.assert(fc.property(hostile, (text) => {
-      const { cards } = cardsOf({
-        resources: [], patientId: 'tm-pat-x', now: NOW, hook: 'order-select',
-        draftOrders: scenario('bolus-answered').build(NOW).draftOrders,
-        gathering: [{ key: 'vitals', source: 'prefetch', status: 'unavailable', detail: text }] as never,
-      });
-      expect(cards[0]?.summary).toMatch(/^Fluid advice not available/);
-      inert(cards[0]!);
-    }), { numRuns: 300 });
+    fc.assert(
+      fc.property(hostile, (text) => {
+        const { cards } = cardsOf({
+          resources: [],
+          patientId: 'tm-pat-x',
+          now: NOW,
+          hook: 'order-select',
+          draftOrders: scenario('bolus-answered').build(NOW).draftOrders,
+          gathering: [{ key: 'vitals', source: 'prefetch', status: 'unavailable', detail: text }] as never,
+        });
+        expect(cards[0]?.summary).toMatch(/^Fluid advice not available/);
+        inert(cards[0]!);
+      }),
+      { numRuns: 300 },
+    );
   });
 
   it('any text in any line of a card (units, values, labels) renders as that text and nothing more', () => {
-    fc.assert(fc.property(fc.array(fc.tuple(hostile, fc.option(hostile, { nil: undefined }), fc.boolean()), { minLength: 1, maxLength: 8 }), (rows) => {
-      const card = renderCard({
-        kind: 'bolus-review', vars: { headline: rows[0]?.[0] ?? '' },
-        lines: rows.map(([text, label, bullet]) => ({ text, ...(label ? { label } : {}), bullet })), suggestions: [],
-      }, catalogue, { hook: 'order-select', publicUrl: PUBLIC_URL, adviceLink: { label: 'Full reasoning', url: ADVICE_URL } });
-      inert(card);
-    }), { numRuns: 500 });
+    fc.assert(
+      fc.property(
+        fc.array(fc.tuple(hostile, fc.option(hostile, { nil: undefined }), fc.boolean()), { minLength: 1, maxLength: 8 }),
+        (rows) => {
+          const card = renderCard(
+            {
+              kind: 'bolus-review',
+              vars: { headline: rows[0]?.[0] ?? '' },
+              lines: rows.map(([text, label, bullet]) => ({ text, ...(label ? { label } : {}), bullet })),
+              suggestions: [],
+            },
+            catalogue,
+            { hook: 'order-select', publicUrl: PUBLIC_URL, adviceLink: { label: 'Full reasoning', url: ADVICE_URL } },
+          );
+          inert(card);
+        },
+      ),
+      { numRuns: 500 },
+    );
   });
 });

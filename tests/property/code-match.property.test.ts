@@ -15,29 +15,40 @@ const rules = CONDITION_SETS.sets.flatMap((s) => s.icd10);
 const ends = rules.flatMap((r) => ('code' in r ? [r.code] : [r.from, r.to])).map((c) => normaliseIcd10(c)!);
 
 /** An undotted ICD-10-shaped code: often a rule end, cut or extended, sometimes its neighbour. */
-const undotted: fc.Arbitrary<string> = fc.tuple(
-  fc.constantFrom(...ends), fc.integer({ min: 3, max: 7 }), fc.array(fc.constantFrom(...ALNUM), { minLength: 4, maxLength: 4 }), fc.boolean(),
-).map(([end, len, tail, bump]) => {
-  let s = (end + tail.join('')).slice(0, len);
-  if (bump) {
-    const i = s.length - 1;
-    s = s.slice(0, i) + ALNUM[(ALNUM.indexOf(s[i]!) + 1) % ALNUM.length]!;
-  }
-  return normaliseIcd10(s) ?? end;
-});
+const undotted: fc.Arbitrary<string> = fc
+  .tuple(
+    fc.constantFrom(...ends),
+    fc.integer({ min: 3, max: 7 }),
+    fc.array(fc.constantFrom(...ALNUM), { minLength: 4, maxLength: 4 }),
+    fc.boolean(),
+  )
+  .map(([end, len, tail, bump]) => {
+    let s = (end + tail.join('')).slice(0, len);
+    if (bump) {
+      const i = s.length - 1;
+      s = s.slice(0, i) + ALNUM[(ALNUM.indexOf(s[i]!) + 1) % ALNUM.length]!;
+    }
+    return normaliseIcd10(s) ?? end;
+  });
 const dotted = (c: string) => (c.length > 3 ? `${c.slice(0, 3)}.${c.slice(3)}` : c);
 
 describe('icd10Matches', () => {
   it('a dotted code and its undotted form get the same answer from every rule', () => {
-    fc.assert(fc.property(undotted, (c) => {
-      for (const r of rules) expect(icd10Matches(r, dotted(c))).toBe(icd10Matches(r, c));
-    }), { numRuns: 1000 });
+    fc.assert(
+      fc.property(undotted, (c) => {
+        for (const r of rules) expect(icd10Matches(r, dotted(c))).toBe(icd10Matches(r, c));
+      }),
+      { numRuns: 1000 },
+    );
   });
 
   it('a code rule takes the code and the codes that extend it, nothing else', () => {
-    fc.assert(fc.property(undotted, (c) => {
-      for (const r of rules) if ('code' in r) expect(icd10Matches(r, c)).toBe(c.startsWith(normaliseIcd10(r.code)!));
-    }), { numRuns: 1000 });
+    fc.assert(
+      fc.property(undotted, (c) => {
+        for (const r of rules) if ('code' in r) expect(icd10Matches(r, c)).toBe(c.startsWith(normaliseIcd10(r.code)!));
+      }),
+      { numRuns: 1000 },
+    );
   });
 
   it('a range takes exactly the codes that extend one of the codes listed between its ends', () => {
@@ -50,9 +61,12 @@ describe('icd10Matches', () => {
       expect(from.length).toBe(to.length);
       expect(from.slice(0, -1)).toBe(to.slice(0, -1));
       const listed = ALNUM.filter((ch) => ch >= from.at(-1)! && ch <= to.at(-1)!).map((ch) => from.slice(0, -1) + ch);
-      fc.assert(fc.property(undotted, (c) => {
-        expect(icd10Matches(r, c)).toBe(listed.some((l) => c.startsWith(l)));
-      }), { numRuns: 1000 });
+      fc.assert(
+        fc.property(undotted, (c) => {
+          expect(icd10Matches(r, c)).toBe(listed.some((l) => c.startsWith(l)));
+        }),
+        { numRuns: 1000 },
+      );
     }
   });
 });
@@ -65,10 +79,13 @@ describe('matchConditionGroups', () => {
     fc.tuple(fc.constantFrom(...systems), fc.constantFrom(...snomed)).map(([system, code]) => ({ system, code })),
   );
   it('the groups found do not depend on case, spaces around the code or the order of the codings', () => {
-    fc.assert(fc.property(fc.array(coding, { minLength: 1, maxLength: 4 }), (codings) => {
-      const ids = matchConditionGroups(codings).map((h) => h.id);
-      const messy = [...codings].reverse().map((c) => ({ system: c.system, code: ` ${c.code.toLowerCase()} ` }));
-      expect(matchConditionGroups(messy).map((h) => h.id)).toEqual(ids);
-    }), { numRuns: 1000 });
+    fc.assert(
+      fc.property(fc.array(coding, { minLength: 1, maxLength: 4 }), (codings) => {
+        const ids = matchConditionGroups(codings).map((h) => h.id);
+        const messy = [...codings].reverse().map((c) => ({ system: c.system, code: ` ${c.code.toLowerCase()} ` }));
+        expect(matchConditionGroups(messy).map((h) => h.id)).toEqual(ids);
+      }),
+      { numRuns: 1000 },
+    );
   });
 });

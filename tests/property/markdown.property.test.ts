@@ -15,7 +15,9 @@ const INVISIBLE_ALL = /[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\u202
 
 /** The escaping written out in full, step by step, with no fast path (the cap of 300 characters included). */
 function reference(value: unknown): string {
-  let s = String(value).replace(INVISIBLE_ALL, (c) => (c === '\t' || c === '\n' || c === '\r' ? ' ' : '')).trimStart();
+  let s = String(value)
+    .replace(INVISIBLE_ALL, (c) => (c === '\t' || c === '\n' || c === '\r' ? ' ' : ''))
+    .trimStart();
   if (s.length > 300) {
     s = s.slice(0, 299);
     if (/[\ud800-\udbff]$/.test(s)) s = s.slice(0, -1);
@@ -33,13 +35,50 @@ function reference(value: unknown): string {
     .replace(/:\//g, ':\\/');
 }
 
-const special = fc.constantFrom('\r', '\n', '&', '<', '>', '\\', '`', '*', '_', '[', ']', '|', '~', 'a', ' ', '–', '7', '#', '-', '+', '=', '.', ':', '/', '1', '\u202E', '\t');
+const special = fc.constantFrom(
+  '\r',
+  '\n',
+  '&',
+  '<',
+  '>',
+  '\\',
+  '`',
+  '*',
+  '_',
+  '[',
+  ']',
+  '|',
+  '~',
+  'a',
+  ' ',
+  '–',
+  '7',
+  '#',
+  '-',
+  '+',
+  '=',
+  '.',
+  ':',
+  '/',
+  '1',
+  '\u202E',
+  '\t',
+);
 
 describe('md (Markdown escaping of data values)', () => {
   it('equals the full escaping for any string, with or without characters to escape', () => {
-    fc.assert(fc.property(fc.oneof(fc.string({ unit: 'grapheme' }), fc.array(special).map((a) => a.join(''))), (s) => {
-      expect(md(s)).toBe(reference(s));
-    }), { numRuns: 5000 });
+    fc.assert(
+      fc.property(
+        fc.oneof(
+          fc.string({ unit: 'grapheme' }),
+          fc.array(special).map((a) => a.join('')),
+        ),
+        (s) => {
+          expect(md(s)).toBe(reference(s));
+        },
+      ),
+      { numRuns: 5000 },
+    );
   });
 
   it('leaves a plain value as it is and escapes markup and HTML', () => {
@@ -64,12 +103,41 @@ describe('md (Markdown escaping of data values)', () => {
 // md() does; the rendered summary keeps that for any string, also where it is cut to stay under 140 characters
 // (CDS Hooks 2.0: summary < 140 characters).
 const INVISIBLE = /[\u0000-\u001f\u007f-\u009f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069]/;
-const attack = fc.constantFrom('[click](javascript:alert(1))', '<img src=x onerror=alert(1)>', '\u202E', '\u2066', '\u200F', '&lt;', '\\', '\\\\[', '`', '**', '_', '|', '~~', '\n', '\r\n', '\t', '\u0000', '\u0085', '💧', 'a', ' ');
-const hostile = fc.oneof(fc.string({ unit: 'grapheme' }), fc.string({ unit: 'binary' }), fc.array(attack, { maxLength: 40 }).map((a) => a.join('')));
+const attack = fc.constantFrom(
+  '[click](javascript:alert(1))',
+  '<img src=x onerror=alert(1)>',
+  '\u202E',
+  '\u2066',
+  '\u200F',
+  '&lt;',
+  '\\',
+  '\\\\[',
+  '`',
+  '**',
+  '_',
+  '|',
+  '~~',
+  '\n',
+  '\r\n',
+  '\t',
+  '\u0000',
+  '\u0085',
+  '💧',
+  'a',
+  ' ',
+);
+const hostile = fc.oneof(
+  fc.string({ unit: 'grapheme' }),
+  fc.string({ unit: 'binary' }),
+  fc.array(attack, { maxLength: 40 }).map((a) => a.join('')),
+);
 
 /** Undoes the escaping: a backslash escape gives its character, an entity its character, in one pass. */
 function unescape(s: string): string {
-  return s.replace(/\\([\\`*_[\]|~#+=.:/)-])|&(amp|lt|gt);/g, (_m, c: string | undefined, e: string | undefined) => c ?? ({ amp: '&', lt: '<', gt: '>' } as Record<string, string>)[e ?? ''] ?? '');
+  return s.replace(
+    /\\([\\`*_[\]|~#+=.:/)-])|&(amp|lt|gt);/g,
+    (_m, c: string | undefined, e: string | undefined) => c ?? ({ amp: '&', lt: '<', gt: '>' } as Record<string, string>)[e ?? ''] ?? '',
+  );
 }
 
 /** Holds for escaped text: no control or bidi character, no raw HTML, markup only escaped, & only in entities. */
@@ -82,20 +150,32 @@ function safelyEscaped(s: string): void {
 
 describe('inline (client text in a card summary)', () => {
   it('escapes any hostile string and keeps its visible text', () => {
-    fc.assert(fc.property(hostile, (s) => {
-      const out = inline(s, 10_000);
-      safelyEscaped(out);
-      expect(unescape(out)).toBe(s.replace(new RegExp(INVISIBLE.source, 'g'), (c) => (c === '\t' || c === '\n' || c === '\r' ? ' ' : '')).trimStart());
-    }), { numRuns: 3000 });
+    fc.assert(
+      fc.property(hostile, (s) => {
+        const out = inline(s, 10_000);
+        safelyEscaped(out);
+        expect(unescape(out)).toBe(
+          s.replace(new RegExp(INVISIBLE.source, 'g'), (c) => (c === '\t' || c === '\n' || c === '\r' ? ' ' : '')).trimStart(),
+        );
+      }),
+      { numRuns: 3000 },
+    );
   });
 
   it('the rendered summary of an assessment-gap card is escaped and under 140 characters for any reason text', () => {
     const cat = loadCatalogue().catalogue;
-    fc.assert(fc.property(hostile, (reason) => {
-      const card = renderCard({ kind: 'assessment-gap', vars: { gapReason: reason }, lines: [{ text: reason, keep: true }], suggestions: [] }, cat, { hook: 'order-select', publicUrl: 'http://localhost:8080' });
-      expect(card.summary.length).toBeLessThan(140);
-      safelyEscaped(card.summary.replace(/…$/, ''));
-    }), { numRuns: 2000 });
+    fc.assert(
+      fc.property(hostile, (reason) => {
+        const card = renderCard(
+          { kind: 'assessment-gap', vars: { gapReason: reason }, lines: [{ text: reason, keep: true }], suggestions: [] },
+          cat,
+          { hook: 'order-select', publicUrl: 'http://localhost:8080' },
+        );
+        expect(card.summary.length).toBeLessThan(140);
+        safelyEscaped(card.summary.replace(/…$/, ''));
+      }),
+      { numRuns: 2000 },
+    );
   });
 
   it('neutralises the attacks of issue 13', () => {

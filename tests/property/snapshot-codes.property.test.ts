@@ -24,10 +24,13 @@ describe('kindLookup (Observation code → kind)', () => {
         fc.constantFrom(...all).map((c) => ({ code: c.code })),
         fc.record({ system: fc.string(), code: fc.string() }, { requiredKeys: [] }),
       );
-      fc.assert(fc.property(fc.array(coding, { maxLength: 5 }), (codings) => {
-        const want = list.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind;
-        expect(lookup(codings)).toBe(want);
-      }), { numRuns: 3000 });
+      fc.assert(
+        fc.property(fc.array(coding, { maxLength: 5 }), (codings) => {
+          const want = list.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind;
+          expect(lookup(codings)).toBe(want);
+        }),
+        { numRuns: 3000 },
+      );
     });
   }
 });

@@ -4,7 +4,11 @@
  */
 import { describe, expect, it } from 'vitest';
 import { heartRateRespiratoryRateRatio } from '../../src/physiology/heart-rate-respiratory-rate-ratio.js';
-import { ivcCollapsibilityIndexPercent, ivcDistensibilityIndexBarbierPercent, ivcDistensibilityIndexFeisselPercent } from '../../src/physiology/ivc-indices.js';
+import {
+  ivcCollapsibilityIndexPercent,
+  ivcDistensibilityIndexBarbierPercent,
+  ivcDistensibilityIndexFeisselPercent,
+} from '../../src/physiology/ivc-indices.js';
 import { meanArterialPressureMmHg } from '../../src/physiology/mean-arterial-pressure.js';
 import { predictedBodyWeightKg, tidalVolumeMlPerKg } from '../../src/physiology/predicted-body-weight.js';
 import { pulsePressureVariationPercent, respiratoryVariationPercent } from '../../src/physiology/pulse-pressure-variation.js';
@@ -18,7 +22,11 @@ describe('PPV — Michard et al., Am J Respir Crit Care Med 2000;162:134 (per-cy
     expect(pulsePressureVariationPercent([{ pulsePressureMaxMmHg: 60, pulsePressureMinMmHg: 50 }])).toBeCloseTo(18.18, 2);
   });
   it('three cycles (60,50),(58,50),(62,52): mean of 18.18, 14.81, 17.54 = 16.85 %', () => {
-    const cycles = [[60, 50], [58, 50], [62, 52]].map(([mx, mn]) => ({ pulsePressureMaxMmHg: mx as number, pulsePressureMinMmHg: mn as number }));
+    const cycles = [
+      [60, 50],
+      [58, 50],
+      [62, 52],
+    ].map(([mx, mn]) => ({ pulsePressureMaxMmHg: mx as number, pulsePressureMinMmHg: mn as number }));
     expect(pulsePressureVariationPercent(cycles)).toBeCloseTo(16.85, 2);
     expect(respiratoryVariationPercent(58, 50)).toBeCloseTo(14.81, 2); // 800 / 54
     expect(respiratoryVariationPercent(62, 52)).toBeCloseTo(17.54, 2); // 1000 / 57

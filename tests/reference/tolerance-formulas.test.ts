@@ -8,7 +8,12 @@ import { kdigoStageFromCreatinine, kdigoStageFromUrineOutput, urineOutputMlPerKg
 import { abdominalPerfusionPressure, filtrationGradient, iahGrade } from '../../src/physiology/intra-abdominal-pressure.js';
 import { portalPulsatilityFractionPercent, portalSeverity, renalSeverity, vexusGrade } from '../../src/physiology/vexus.js';
 import { evlwiMlPerKg, isPulmonaryOedema } from '../../src/physiology/evlwi.js';
-import { crystalloidIntravascularAfterDistributionMl, crystalloidPlasmaExpansionRangeMl, hyperOncoticAlbuminExpansionMl, roundToStep } from '../../src/physiology/volume-kinetics.js';
+import {
+  crystalloidIntravascularAfterDistributionMl,
+  crystalloidPlasmaExpansionRangeMl,
+  hyperOncoticAlbuminExpansionMl,
+  roundToStep,
+} from '../../src/physiology/volume-kinetics.js';
 import { sepsisInitialCrystalloidMl } from '../../src/physiology/sepsis-volume.js';
 import { spo2Fio2Ratio } from '../../src/physiology/oxygenation.js';
 import { intravascularEstimate } from '../../src/assess/order/describe-order.js';
@@ -76,15 +81,19 @@ describe('EVLWI (Tagami T et al., Crit Care 2010; Jozwiak M et al., Ann Intensiv
 describe('volume kinetics', () => {
   it('500 mL crystalloid ≈ 125 mL intravascular once distributed (saline PV:ISF ≈ 1:3, Ernest D et al., Crit Care Med 1999;27:46)', () => {
     expect(crystalloidIntravascularAfterDistributionMl(500)).toBe(125);
-    expect(intravascularEstimate(500, 'balanced-crystalloid', DEFAULT_ORDER_THRESHOLDS)?.values['intravascularAfterDistributionMl']).toBe(130); // 10-mL steps
+    expect(intravascularEstimate(500, 'balanced-crystalloid', DEFAULT_ORDER_THRESHOLDS)?.values['intravascularAfterDistributionMl']).toBe(
+      130,
+    ); // 10-mL steps
   });
   it('the rule of thumb (a third, common practice) is shown beside the published figure only', () => {
     const est = intravascularEstimate(500, 'balanced-crystalloid', DEFAULT_ORDER_THRESHOLDS);
     expect(roundToStep(crystalloidIntravascularAfterDistributionMl(500, 1 / 3), 10)).toBe(170);
     expect(est?.values['ruleOfThumbMl']).toBe(170);
-    expect(est?.text).toMatch(/^About 130 mL of 500 mL stays in the vessels once distributed \(about a quarter, Ernest 1999; the bedside rule of thumb of a third would say 170 mL\)/);
+    expect(est?.text).toMatch(
+      /^About 130 mL of 500 mL stays in the vessels once distributed \(about a quarter, Ernest 1999; the bedside rule of thumb of a third would say 170 mL\)/,
+    );
   });
-  it('1,000 mL Ringer\'s: 500–600 mL while infusing, 150–200 mL 30 min after (Hahn RG, Acta Anaesthesiol Scand 2020)', () => {
+  it("1,000 mL Ringer's: 500–600 mL while infusing, 150–200 mL 30 min after (Hahn RG, Acta Anaesthesiol Scand 2020)", () => {
     expect(crystalloidPlasmaExpansionRangeMl(1000, 'during-infusion')).toEqual([500, 600]);
     const [lo, hi] = crystalloidPlasmaExpansionRangeMl(1000, 'thirty-minutes-after');
     expect(lo).toBeCloseTo(150, 6);
@@ -111,7 +120,8 @@ describe('SpO2/FiO2 (Rice TW et al., Chest 2007 [from memory])', () => {
 
 describe('Lung ultrasound B-pattern (Volpicelli G et al., Intensive Care Med 2012;38:577, international evidence-based recommendations for point-of-care lung ultrasound)', () => {
   const T = DEFAULT_TOLERANCE_THRESHOLDS;
-  const run = (left: number, right: number) => lungUltrasoundRule(snapshot({ measurements: [m('bLineRegionsLeft', left, 30), m('bLineRegionsRight', right, 30)] }), NOW, T)[0]!;
+  const run = (left: number, right: number) =>
+    lungUltrasoundRule(snapshot({ measurements: [m('bLineRegionsLeft', left, 30), m('bLineRegionsRight', right, 30)] }), NOW, T)[0]!;
   it('the 8-region examination: 4 regions per side (Volpicelli 2012)', () => {
     expect(KIND_BOUNDS.bLineRegions).toEqual([0, 8]);
     expect(KIND_BOUNDS.bLineRegionsLeft).toEqual([0, 4]);
@@ -124,6 +134,9 @@ describe('Lung ultrasound B-pattern (Volpicelli G et al., Intensive Care Med 201
     expect(run(4, 0)).toMatchObject({ limit: 'moderate', harmSign: false });
   });
   it('left / right lung as SNOMED CT body structures 44029006 and 3341006 (public FHIR and DICOM mapping tables)', () => {
-    expect(LUNG_SIDE_SITES.map((s) => [s.code, s.kind])).toEqual([['44029006', 'bLineRegionsLeft'], ['3341006', 'bLineRegionsRight']]);
+    expect(LUNG_SIDE_SITES.map((s) => [s.code, s.kind])).toEqual([
+      ['44029006', 'bLineRegionsLeft'],
+      ['3341006', 'bLineRegionsRight'],
+    ]);
   });
 });

@@ -45,7 +45,15 @@ describe('canonical units', () => {
 // Issue 13 item 3: unit text is client data. @lhncbc/ucum-lhc 7.1.10 prints it with console.log when its parser throws
 // (UcumLhcUtils.getSpecifiedUnit), which wrote client text to stdout past the logger.
 describe('hostile unit text', () => {
-  const hostile = ['mm Hg\n{"level":50,"msg":"forged"} Quillfeather', 'mg\u202e', 'm\tL', 'x'.repeat(MAX_UNIT_LENGTH + 1), '{a}m(g)', '()', '(g){a}m'];
+  const hostile = [
+    'mm Hg\n{"level":50,"msg":"forged"} Quillfeather',
+    'mg\u202e',
+    'm\tL',
+    'x'.repeat(MAX_UNIT_LENGTH + 1),
+    '{a}m(g)',
+    '()',
+    '(g){a}m',
+  ];
   it('is refused as not UCUM, and nothing reaches the console', () => {
     const spies = (['log', 'info', 'warn', 'error', 'debug'] as const).map((m) => vi.spyOn(console, m));
     try {

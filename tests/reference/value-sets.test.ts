@@ -31,28 +31,46 @@ describe('SNOMED CT identifiers (SNOMED CT Technical Implementation Guide: SCTID
 describe('concept ids as published', () => {
   // Source: UoM-Data-Science-Platforms/gm-sde, shared/clinical-code-sets/conditions/heart-failure/1/heart-failure.snomed.txt
   it.each([
-    ['84114007', 'Heart failure'], ['42343007', 'Congestive heart failure'], ['703272007', 'Heart failure with reduced ejection fraction'],
-    ['446221000', 'Heart failure with normal ejection fraction'], ['153941000119100', 'Chronic combined systolic and diastolic heart failure'],
+    ['84114007', 'Heart failure'],
+    ['42343007', 'Congestive heart failure'],
+    ['703272007', 'Heart failure with reduced ejection fraction'],
+    ['446221000', 'Heart failure with normal ejection fraction'],
+    ['153941000119100', 'Chronic combined systolic and diastolic heart failure'],
   ])('heart failure: %s %s (gm-sde heart-failure code set)', (code, display) => expect(snomedOf('heart-failure').get(code)).toBe(display));
   it.each([
-    ['128404006', 'Right heart failure'], ['367363000', 'Right ventricular failure'], ['83291003', 'Cor pulmonale'], ['49584005', 'Acute cor pulmonale'],
-  ])('right-ventricular failure: %s %s (gm-sde heart-failure code set)', (code, display) => expect(snomedOf('right-ventricular-failure').get(code)).toBe(display));
+    ['128404006', 'Right heart failure'],
+    ['367363000', 'Right ventricular failure'],
+    ['83291003', 'Cor pulmonale'],
+    ['49584005', 'Acute cor pulmonale'],
+  ])('right-ventricular failure: %s %s (gm-sde heart-failure code set)', (code, display) =>
+    expect(snomedOf('right-ventricular-failure').get(code)).toBe(display),
+  );
   // Source: gm-sde chronic-kidney-disease code set
   it.each([
-    ['46177005', 'End-stage renal disease'], ['433146000', 'Chronic kidney disease stage 5'], ['714152005', 'Chronic kidney disease stage 5 on dialysis'],
-  ])('end-stage kidney disease: %s %s (gm-sde chronic-kidney-disease code set)', (code, display) => expect(snomedOf('end-stage-kidney-disease').get(code)).toBe(display));
+    ['46177005', 'End-stage renal disease'],
+    ['433146000', 'Chronic kidney disease stage 5'],
+    ['714152005', 'Chronic kidney disease stage 5 on dialysis'],
+  ])('end-stage kidney disease: %s %s (gm-sde chronic-kidney-disease code set)', (code, display) =>
+    expect(snomedOf('end-stage-kidney-disease').get(code)).toBe(display),
+  );
   // Source: gm-sde liver-fibrosis-sclerosis-and-cirrhosis code set
   it.each([
-    ['19943007', 'Cirrhosis of liver'], ['420054005', 'Alcoholic cirrhosis of liver'], ['31712002', 'Primary biliary cirrhosis'],
+    ['19943007', 'Cirrhosis of liver'],
+    ['420054005', 'Alcoholic cirrhosis of liver'],
+    ['31712002', 'Primary biliary cirrhosis'],
   ])('cirrhosis: %s %s (gm-sde liver code set)', (code, display) => expect(snomedOf('advanced-liver-disease').get(code)).toBe(display));
   it('the same code set lists hepatic fibrosis and sclerosis, which are not cirrhosis and stay out (62484002, 235899008, 235880004)', () => {
     for (const code of ['62484002', '235899008', '235880004']) expect(snomedOf('advanced-liver-disease').has(code)).toBe(false);
   });
   // Source: DICOM PS3.16 CID 3640 Hypertension (bvdh/dicom-terminology-in-fhir)
-  it('pulmonary hypertension 70995007 (DICOM CID 3640)', () => expect(snomedOf('pulmonary-hypertension').get('70995007')).toBe('Pulmonary hypertension'));
+  it('pulmonary hypertension 70995007 (DICOM CID 3640)', () =>
+    expect(snomedOf('pulmonary-hypertension').get('70995007')).toBe('Pulmonary hypertension'));
   // Sources: DICOM CID 3826 (64730000), CID 3230 (49436004); hl7-be/patient-monitoring PPG rhythm codes (164889003, 164890007)
   it.each([
-    ['64730000', 'sinus'], ['49436004', 'atrial-fibrillation'], ['164889003', 'atrial-fibrillation'], ['164890007', 'other-irregular'],
+    ['64730000', 'sinus'],
+    ['49436004', 'atrial-fibrillation'],
+    ['164889003', 'atrial-fibrillation'],
+    ['164890007', 'other-irregular'],
   ])('rhythm %s → %s (DICOM CID 3826 / 3230, hl7-be PPG rhythm value set)', (code, answer) => {
     expect(RHYTHM_SET.concepts.find((c) => c.code === code)?.answer).toBe(answer);
   });
@@ -72,10 +90,23 @@ describe('concept ids as published', () => {
  */
 const BLOCKS: Record<ConditionGroupId, Array<[string, string]>> = {
   'advanced-liver-disease': [['K70', 'K77']],
-  'heart-failure': [['I05', 'I09'], ['I10', 'I16'], ['I30', 'I5A'], ['I95', 'I99']],
-  'end-stage-kidney-disease': [['N17', 'N19'], ['I10', 'I16'], ['Z40', 'Z53'], ['Z77', 'Z99']],
+  'heart-failure': [
+    ['I05', 'I09'],
+    ['I10', 'I16'],
+    ['I30', 'I5A'],
+    ['I95', 'I99'],
+  ],
+  'end-stage-kidney-disease': [
+    ['N17', 'N19'],
+    ['I10', 'I16'],
+    ['Z40', 'Z53'],
+    ['Z77', 'Z99'],
+  ],
   ards: [['J80', 'J84']],
-  'right-ventricular-failure': [['I26', 'I28'], ['I30', 'I5A']],
+  'right-ventricular-failure': [
+    ['I26', 'I28'],
+    ['I30', 'I5A'],
+  ],
   'pulmonary-hypertension': [['I26', 'I28']],
 };
 
@@ -87,7 +118,10 @@ describe('ICD-10 rules fall in the ICD-10-CM chapters and blocks of their condit
       const n = normaliseIcd10(e);
       expect(n, e).toBeDefined();
       const category = n!.slice(0, 3);
-      expect(BLOCKS[id].some(([lo, hi]) => category >= lo && category <= hi), `${e} outside the blocks of ${id}`).toBe(true);
+      expect(
+        BLOCKS[id].some(([lo, hi]) => category >= lo && category <= hi),
+        `${e} outside the blocks of ${id}`,
+      ).toBe(true);
     }
     if ('from' in rule) expect(normaliseIcd10(rule.from)! <= normaliseIcd10(rule.to)!).toBe(true);
   });
@@ -103,12 +137,17 @@ describe('ICD-10 rules fall in the ICD-10-CM chapters and blocks of their condit
 describe('sources', () => {
   it('every entry names a known source, and the from-memory entries are exactly these (each to verify)', () => {
     const fromMemory = [
-      ...CONDITION_SETS.sets.flatMap((s) => [...s.snomed, ...s.icd10].filter((e) => e.source === 'from-memory').map((e) => ('code' in e ? e.code : `${e.from}–${e.to}`))),
+      ...CONDITION_SETS.sets.flatMap((s) =>
+        [...s.snomed, ...s.icd10].filter((e) => e.source === 'from-memory').map((e) => ('code' in e ? e.code : `${e.from}–${e.to}`)),
+      ),
       ...RHYTHM_SET.concepts.filter((c) => c.source === 'from-memory').map((c) => c.code),
       ...FLUID_SET.fluids.filter((f) => f.source === 'from-memory').map((f) => f.name),
     ];
     expect(fromMemory).toEqual([
-      'K76.7', 'Z49', 'I26.0', '10370003',
+      'K76.7',
+      'Z49',
+      'I26.0',
+      '10370003',
       'magnesium chloride 0.3 MG/ML / potassium chloride 0.37 MG/ML / sodium acetate 3.68 MG/ML / sodium chloride 5.26 MG/ML / sodium gluconate 5.02 MG/ML Injectable Solution',
     ]);
   });
@@ -118,9 +157,12 @@ describe('fluids: RxNorm clinical-drug names and codes', () => {
   it.each(FLUID_SET.fluids.map((f) => [f.name, f.fluidClass] as const))('the generic-name reader recognises "%s" as %s', (name, cls) => {
     expect(fluidClassFromText(name)).toBe(cls);
   });
-  it.each(FLUID_SET.fluids.filter((f) => f.rxcui).map((f) => [f.rxcui!, f.fluidClass] as const))('RxNorm %s is read by code as %s', (rxcui, cls) => {
-    expect(classifyFluid({ coding: [{ system: FLUID_SET.rxnormSystem, code: rxcui }] })).toBe(cls);
-  });
+  it.each(FLUID_SET.fluids.filter((f) => f.rxcui).map((f) => [f.rxcui!, f.fluidClass] as const))(
+    'RxNorm %s is read by code as %s',
+    (rxcui, cls) => {
+      expect(classifyFluid({ coding: [{ system: FLUID_SET.rxnormSystem, code: rxcui }] })).toBe(cls);
+    },
+  );
   it('313002 is Sodium Chloride 9 MG/ML Injectable Solution (seen in a public data file)', () => {
     expect(FLUID_SET.fluids.find((f) => f.rxcui === '313002')?.name).toBe('Sodium Chloride 9 MG/ML Injectable Solution');
   });
@@ -129,7 +171,9 @@ describe('fluids: RxNorm clinical-drug names and codes', () => {
 describe('docs/codes.md lists every entry of the value sets with its source', () => {
   const doc = readFileSync(resolve(__dirname, '../../docs/codes.md'), 'utf8');
   const rows = [
-    ...CONDITION_SETS.sets.flatMap((s) => [...s.snomed, ...s.icd10].map((e) => ['code' in e ? e.code : `${e.from}–${e.to}`, e.source] as const)),
+    ...CONDITION_SETS.sets.flatMap((s) =>
+      [...s.snomed, ...s.icd10].map((e) => ['code' in e ? e.code : `${e.from}–${e.to}`, e.source] as const),
+    ),
     ...RHYTHM_SET.concepts.map((c) => [c.code, c.source] as const),
     ...FLUID_SET.fluids.map((f) => [f.rxcui ?? f.name, f.source] as const),
   ];

@@ -24,7 +24,26 @@ export interface StrayWrite {
 
 const KEY = Symbol.for('tidemark.output-guard');
 const WRAPPED = Symbol.for('tidemark.output-guard.wrapped');
-const CONSOLE_METHODS = ['log', 'info', 'warn', 'error', 'debug', 'trace', 'dir', 'dirxml', 'table', 'group', 'groupCollapsed', 'groupEnd', 'assert', 'count', 'countReset', 'time', 'timeEnd', 'timeLog'] as const;
+const CONSOLE_METHODS = [
+  'log',
+  'info',
+  'warn',
+  'error',
+  'debug',
+  'trace',
+  'dir',
+  'dirxml',
+  'table',
+  'group',
+  'groupCollapsed',
+  'groupEnd',
+  'assert',
+  'count',
+  'countReset',
+  'time',
+  'timeEnd',
+  'timeLog',
+] as const;
 /** A direct write whose stack passes through pino (node_modules/pino/lib/…) came from the logger. */
 const PINO_FRAME = /[\\/]node_modules[\\/]pino[\\/]/;
 
@@ -47,7 +66,7 @@ function preview(args: unknown[]): string {
 
 function safeString(a: unknown): string {
   try {
-    return typeof a === 'object' ? JSON.stringify(a) ?? String(a) : String(a);
+    return typeof a === 'object' ? (JSON.stringify(a) ?? String(a)) : String(a);
   } catch {
     return String(a);
   }

@@ -7,14 +7,19 @@ import { ConfigError, loadConfig } from '../../src/config/config.js';
 
 describe('hmacSha256 against RFC 4231 §4', () => {
   it('test case 1: key 0x0b × 20, "Hi There"', () => {
-    expect(hmacSha256(Buffer.alloc(20, 0x0b), 'Hi There').toString('hex')).toBe('b0344c61d8db38535ca8afceaf0bf12b881dc200c9833da726e9376c2e32cff7');
+    expect(hmacSha256(Buffer.alloc(20, 0x0b), 'Hi There').toString('hex')).toBe(
+      'b0344c61d8db38535ca8afceaf0bf12b881dc200c9833da726e9376c2e32cff7',
+    );
   });
   it('test case 2: key "Jefe", "what do ya want for nothing?"', () => {
-    expect(hmacSha256('Jefe', 'what do ya want for nothing?').toString('hex')).toBe('5bdcc146bf60754e6a042426089575c75a003f089d2739839dec58b964ec3843');
+    expect(hmacSha256('Jefe', 'what do ya want for nothing?').toString('hex')).toBe(
+      '5bdcc146bf60754e6a042426089575c75a003f089d2739839dec58b964ec3843',
+    );
   });
   it('test case 6: a key larger than the block size (0xaa × 131)', () => {
-    expect(hmacSha256(Buffer.alloc(131, 0xaa), 'Test Using Larger Than Block-Size Key - Hash Key First').toString('hex'))
-      .toBe('60e431591ee0b67f0d8a26aacbf5b77f8e0bc6213728c5140546040f0ee37f54');
+    expect(hmacSha256(Buffer.alloc(131, 0xaa), 'Test Using Larger Than Block-Size Key - Hash Key First').toString('hex')).toBe(
+      '60e431591ee0b67f0d8a26aacbf5b77f8e0bc6213728c5140546040f0ee37f54',
+    );
   });
 });
 
@@ -45,7 +50,17 @@ describe('createLinkSigner', () => {
     expect(s.verify(ID, String(q.exp), `${q.sig.slice(0, -1)}${q.sig.endsWith('A') ? 'B' : 'A'}`, NOW)).toBe('bad');
     expect(s.verify(ID, String(q.exp), `${q.sig.slice(0, 5)}${q.sig[5] === 'x' ? 'y' : 'x'}${q.sig.slice(6)}`, NOW)).toBe('bad');
     expect(other.verify(ID, String(q.exp), q.sig, NOW)).toBe('bad');
-    for (const [exp, sig] of [[undefined, q.sig], [String(q.exp), undefined], [[String(q.exp)], q.sig], [String(q.exp), [q.sig]], ['-1', q.sig], ['1e9', q.sig], [String(q.exp), `${q.sig}=`], [String(q.exp), q.sig.slice(1)], [String(q.exp), '']] as const) {
+    for (const [exp, sig] of [
+      [undefined, q.sig],
+      [String(q.exp), undefined],
+      [[String(q.exp)], q.sig],
+      [String(q.exp), [q.sig]],
+      ['-1', q.sig],
+      ['1e9', q.sig],
+      [String(q.exp), `${q.sig}=`],
+      [String(q.exp), q.sig.slice(1)],
+      [String(q.exp), ''],
+    ] as const) {
       expect(s.verify(ID, exp, sig, NOW), `${String(exp)} / ${String(sig)}`).toBe('bad');
     }
   });
@@ -88,7 +103,10 @@ describe('page settings', () => {
     expect(pageCsp(c.TIDEMARK_FRAME_ANCESTORS)).toContain("frame-ancestors 'none'");
   });
   it('a zone IANA knows, origins as a list; a wrong zone, a bad origin or a short key stop start-up naming the variable', () => {
-    const c = loadConfig({ TIDEMARK_TIME_ZONE: 'Pacific/Auckland', TIDEMARK_FRAME_ANCESTORS: 'https://ehr.tern.example, https://ehr2.tern.example:8443' });
+    const c = loadConfig({
+      TIDEMARK_TIME_ZONE: 'Pacific/Auckland',
+      TIDEMARK_FRAME_ANCESTORS: 'https://ehr.tern.example, https://ehr2.tern.example:8443',
+    });
     expect(c.TIDEMARK_TIME_ZONE).toBe('Pacific/Auckland');
     expect(pageCsp(c.TIDEMARK_FRAME_ANCESTORS)).toContain('frame-ancestors https://ehr.tern.example https://ehr2.tern.example:8443');
     expect(() => loadConfig({ TIDEMARK_TIME_ZONE: 'Mars/Olympus' })).toThrow(/TIDEMARK_TIME_ZONE/);

@@ -12,26 +12,50 @@ import { assessed } from '../../src/assess/tolerance/finding.js';
 import type { Confidence, Need, PhaseValue, Responsiveness, Tolerance, Verdict } from '../../src/assess/types.js';
 import { m, NOW, order, snapshot } from '../helpers/tolerance-fixtures.js';
 
-const rv = (value: Responsiveness, confidence?: Confidence): Verdict<Responsiveness> =>
-  ({ value, rationale: `Responsiveness ${value}.`, decidingRules: [`responsiveness.${value}`], nextTest: 'mini-fluid-challenge', ...(confidence ? { confidence } : {}) });
+const rv = (value: Responsiveness, confidence?: Confidence): Verdict<Responsiveness> => ({
+  value,
+  rationale: `Responsiveness ${value}.`,
+  decidingRules: [`responsiveness.${value}`],
+  nextTest: 'mini-fluid-challenge',
+  ...(confidence ? { confidence } : {}),
+});
 const tv = (value: Tolerance): Verdict<Tolerance> => ({ value, rationale: `Tolerance ${value}.`, decidingRules: [] });
 const need = (value: Need): Verdict<Need> => ({ value, rationale: `Need ${value}.`, decidingRules: [] });
 const phase = (value: PhaseValue): Verdict<PhaseValue> => ({ value, rationale: `Phase ${value}.`, decidingRules: [] });
-const evlwi = assessed({ ruleId: 'tolerance.evlwi', domain: 'lungs', limit: 'severe', congestionSign: true, text: 'EVLWI 12.0 mL/kg (≥ 10: pulmonary oedema)', evidence: [], source: 't' });
+const evlwi = assessed({
+  ruleId: 'tolerance.evlwi',
+  domain: 'lungs',
+  limit: 'severe',
+  congestionSign: true,
+  text: 'EVLWI 12.0 mL/kg (≥ 10: pulmonary oedema)',
+  evidence: [],
+  source: 't',
+});
 const orderFs = describeOrder(order(), snapshot({ measurements: [m('bodyWeight', 70, 600)] }), NOW, DEFAULT_ORDER_THRESHOLDS);
 
 function advise(p: Partial<AdviseInput> & { r?: Verdict<Responsiveness>; t?: Tolerance; n?: Need; ph?: PhaseValue } = {}) {
   return adviseOrder({
-    responsiveness: p.r ?? rv('likely', 'high'), tolerance: tv(p.t ?? 'adequate'), need: need(p.n ?? 'present'), phase: phase(p.ph ?? 'later'),
-    findings: p.findings ?? [], orderFindings: p.orderFindings ?? orderFs,
+    responsiveness: p.r ?? rv('likely', 'high'),
+    tolerance: tv(p.t ?? 'adequate'),
+    need: need(p.n ?? 'present'),
+    phase: phase(p.ph ?? 'later'),
+    findings: p.findings ?? [],
+    orderFindings: p.orderFindings ?? orderFs,
   });
 }
 
 describe('the matrix, later phase, with signs of hypoperfusion', () => {
   const EXPECTED: Record<string, string> = {
-    'likely/adequate': 'proceed-and-reassess', 'likely/limited': 'smaller-aliquot', 'likely/poor': 'smaller-aliquot', 'likely/not-known': 'smaller-aliquot',
-    'unlikely/adequate': 'question-bolus', 'unlikely/poor': 'question-bolus', 'indeterminate/adequate': 'test-first', 'indeterminate/not-known': 'test-first',
-    'likely-low/adequate': 'test-first', 'unlikely-low/adequate': 'test-first',
+    'likely/adequate': 'proceed-and-reassess',
+    'likely/limited': 'smaller-aliquot',
+    'likely/poor': 'smaller-aliquot',
+    'likely/not-known': 'smaller-aliquot',
+    'unlikely/adequate': 'question-bolus',
+    'unlikely/poor': 'question-bolus',
+    'indeterminate/adequate': 'test-first',
+    'indeterminate/not-known': 'test-first',
+    'likely-low/adequate': 'test-first',
+    'unlikely-low/adequate': 'test-first',
   };
   for (const [cell, action] of Object.entries(EXPECTED)) {
     it(`${cell} → ${action}, headline key ${cell}`, () => {
@@ -43,10 +67,11 @@ describe('the matrix, later phase, with signs of hypoperfusion', () => {
     });
   }
   it('every row × column has an entry, and every headline key is in the closed set', () => {
-    for (const row of MATRIX_ROWS) for (const t of TOLERANCE_COLUMNS) {
-      expect(ADVICE_MATRIX[row][t].action).toBeTruthy();
-      expect(HEADLINE_KEYS).toContain(`${row}/${t}`);
-    }
+    for (const row of MATRIX_ROWS)
+      for (const t of TOLERANCE_COLUMNS) {
+        expect(ADVICE_MATRIX[row][t].action).toBeTruthy();
+        expect(HEADLINE_KEYS).toContain(`${row}/${t}`);
+      }
   });
   it('indicator: info for likely/adequate; warning when tolerance is limited or poor, or a response is unlikely', () => {
     expect(advise().indicator).toBe('info');
@@ -60,7 +85,12 @@ describe('the matrix, later phase, with signs of hypoperfusion', () => {
     expect(advise({ r: rv('indeterminate') })).toMatchObject({ action: 'test-first', nextTest: 'mini-fluid-challenge' });
   });
   it('albumin is not offered as the alternative to an albumin order', () => {
-    const alb = describeOrder(order({ fluidClass: 'albumin-iso' }), snapshot({ measurements: [m('bodyWeight', 70, 600)] }), NOW, DEFAULT_ORDER_THRESHOLDS);
+    const alb = describeOrder(
+      order({ fluidClass: 'albumin-iso' }),
+      snapshot({ measurements: [m('bodyWeight', 70, 600)] }),
+      NOW,
+      DEFAULT_ORDER_THRESHOLDS,
+    );
     expect(advise({ t: 'poor' }).alternatives).toContain('albumin');
     expect(advise({ t: 'poor', orderFindings: alb }).alternatives).not.toContain('albumin');
   });
@@ -69,7 +99,12 @@ describe('the matrix, later phase, with signs of hypoperfusion', () => {
 describe('responsiveness is not an indication (docs/clinical-logic)', () => {
   it('responsive with no sign of hypoperfusion → question-need, never a give action', () => {
     const rec = advise({ n: 'absent' });
-    expect(rec).toMatchObject({ action: 'question-need', headline: 'no-need/responsive', indicator: 'warning', alternatives: ['perfusion-check'] });
+    expect(rec).toMatchObject({
+      action: 'question-need',
+      headline: 'no-need/responsive',
+      indicator: 'warning',
+      alternatives: ['perfusion-check'],
+    });
   });
   it('responsive, need unknown → question-need with its own headline', () => {
     expect(advise({ n: 'unknown' })).toMatchObject({ action: 'question-need', headline: 'need-unknown/responsive' });
@@ -85,16 +120,27 @@ describe('early resuscitation (docs/clinical-logic; SSC 2021)', () => {
     for (const r of [rv('likely', 'high'), rv('indeterminate'), rv('unlikely', 'high')]) {
       expect(advise({ r, ph: 'early-resuscitation' }).action).toBe('resuscitate-and-reassess');
     }
-    expect(advise({ r: rv('unlikely', 'high'), ph: 'early-resuscitation' })).toMatchObject({ headline: 'early/unlikely', alternatives: ['vasopressor', 'echo', 'cause'] });
+    expect(advise({ r: rv('unlikely', 'high'), ph: 'early-resuscitation' })).toMatchObject({
+      headline: 'early/unlikely',
+      alternatives: ['vasopressor', 'echo', 'cause'],
+    });
   });
   it('with poor tolerance and a harm sign: small aliquots only, critical', () => {
-    expect(advise({ t: 'poor', ph: 'early-resuscitation', findings: [evlwi] })).toMatchObject({ action: 'smaller-aliquot', headline: 'early/congestion', indicator: 'critical' });
+    expect(advise({ t: 'poor', ph: 'early-resuscitation', findings: [evlwi] })).toMatchObject({
+      action: 'smaller-aliquot',
+      headline: 'early/congestion',
+      indicator: 'critical',
+    });
   });
 });
 
 describe('critical only where harm is likely', () => {
   it('poor tolerance with a harm sign → critical, congestion headline by responsiveness', () => {
-    expect(advise({ t: 'poor', findings: [evlwi] })).toMatchObject({ indicator: 'critical', headline: 'congestion/likely', harmSigns: ['tolerance.evlwi'] });
+    expect(advise({ t: 'poor', findings: [evlwi] })).toMatchObject({
+      indicator: 'critical',
+      headline: 'congestion/likely',
+      harmSigns: ['tolerance.evlwi'],
+    });
     expect(advise({ t: 'poor', findings: [evlwi], r: rv('unlikely', 'high') }).headline).toBe('congestion/unlikely');
   });
   it('poor tolerance without a harm sign → warning; limited with a harm sign → warning', () => {

@@ -16,24 +16,35 @@ function files(dir: string): string[] {
 const all = files(SRC);
 const rel = (f: string) => relative(SRC, f);
 
-interface Import { spec: string; typeOnly: boolean }
+interface Import {
+  spec: string;
+  typeOnly: boolean;
+}
 /** Every static import and re-export of a file; type-only when the statement or each of its names says `type`. */
 function importsOf(file: string): Import[] {
   return [...readFileSync(file, 'utf8').matchAll(/^\s*(import|export)\s+(type\s+)?([^'";]*?)\s*from\s+['"]([^'"]+)['"]/gm)].map((m) => {
     const names = (m[3] ?? '').trim();
     const braced = /^\{([^}]*)\}$/.exec(names);
-    const each = braced ? (braced[1] ?? '').split(',').map((n) => n.trim()).filter(Boolean) : [];
+    const each = braced
+      ? (braced[1] ?? '')
+          .split(',')
+          .map((n) => n.trim())
+          .filter(Boolean)
+      : [];
     return { spec: m[4] as string, typeOnly: !!m[2] || (each.length > 0 && each.every((n) => n.startsWith('type '))) };
   });
 }
-const local = (file: string, spec: string): string | undefined => (spec.startsWith('.') ? resolve(dirname(file), spec.replace(/\.js$/, '.ts')) : undefined);
+const local = (file: string, spec: string): string | undefined =>
+  spec.startsWith('.') ? resolve(dirname(file), spec.replace(/\.js$/, '.ts')) : undefined;
 /** The room of a file under src/: its first folder, or `*.ts` for the files at the top. */
 const roomOf = (file: string): string => (rel(file).includes('/') ? (rel(file).split('/')[0] as string) : '*.ts');
 /** Local imports of src/ files that stay in src/, with their target. */
-const edges = all.flatMap((from) => importsOf(from).flatMap((i) => {
-  const to = local(from, i.spec);
-  return to && !relative(SRC, to).startsWith('..') ? [{ from, to, typeOnly: i.typeOnly }] : [];
-}));
+const edges = all.flatMap((from) =>
+  importsOf(from).flatMap((i) => {
+    const to = local(from, i.spec);
+    return to && !relative(SRC, to).startsWith('..') ? [{ from, to, typeOnly: i.typeOnly }] : [];
+  }),
+);
 
 function cyclesOf(graph: Map<string, Set<string>>): string[] {
   const state = new Map<string, 'open' | 'done'>();
@@ -62,24 +73,40 @@ const graphOf = (pairs: Array<[string, string]>) => {
  * "May import" is `everything`, `everything below` (the rooms of the rows under it), `nothing`, or a list of
  * `room`, `room (types)` (type-only imports) and `room/module` (that module only, or the folder of that name).
  */
-interface Permission { room: string; typesOnly: boolean; module?: string; blanket?: true }
+interface Permission {
+  room: string;
+  typesOnly: boolean;
+  module?: string;
+  blanket?: true;
+}
 function importTable(): Map<string, Permission[] | 'everything'> {
   const doc = readFileSync(resolve(SRC, '../docs/architecture.md'), 'utf8');
   const section = doc.split(/^## /m).find((s) => s.startsWith('Rooms and what they may import')) ?? '';
-  const rows = section.split('\n').filter((l) => /^\| `src\//.test(l)).map((l) => l.split('|').map((c) => c.trim()));
-  const rooms = rows.map((r) => (/^`src\/([^`/]+)\/?`$/.exec(r[1] ?? '')?.[1] ?? '?'));
+  const rows = section
+    .split('\n')
+    .filter((l) => /^\| `src\//.test(l))
+    .map((l) => l.split('|').map((c) => c.trim()));
+  const rooms = rows.map((r) => /^`src\/([^`/]+)\/?`$/.exec(r[1] ?? '')?.[1] ?? '?');
   const table = new Map<string, Permission[] | 'everything'>();
   rows.forEach((r, i) => {
     const cell = r[3] ?? '';
     const room = rooms[i] as string;
     if (cell === 'everything') table.set(room, 'everything');
-    else if (cell === 'everything below') table.set(room, rooms.slice(i + 1).map((x) => ({ room: x, typesOnly: false, blanket: true as const })));
+    else if (cell === 'everything below')
+      table.set(
+        room,
+        rooms.slice(i + 1).map((x) => ({ room: x, typesOnly: false, blanket: true as const })),
+      );
     else if (cell === 'nothing') table.set(room, []);
-    else table.set(room, cell.split(',').map((item) => {
-      const m = /^([a-z*.-]+)(\/[a-z/-]+)?( \(types\))?$/.exec(item.trim());
-      if (!m) throw new Error(`docs/architecture.md, row ${room}: cannot read "${item.trim()}"`);
-      return { room: m[1] as string, typesOnly: !!m[3], ...(m[2] ? { module: `${m[1]}${m[2]}` } : {}) };
-    }));
+    else
+      table.set(
+        room,
+        cell.split(',').map((item) => {
+          const m = /^([a-z*.-]+)(\/[a-z/-]+)?( \(types\))?$/.exec(item.trim());
+          if (!m) throw new Error(`docs/architecture.md, row ${room}: cannot read "${item.trim()}"`);
+          return { room: m[1] as string, typesOnly: !!m[3], ...(m[2] ? { module: `${m[1]}${m[2]}` } : {}) };
+        }),
+      );
   });
   return table;
 }
@@ -97,7 +124,8 @@ describe('pure rooms do no I/O', () => {
       if (relative(SRC, f) === 'cards/catalogue.ts' && spec === 'node:fs') continue;
       expect(IO.test(spec), `${spec}`).toBe(false);
       const target = local(f, spec);
-      if (target && !typeOnly) expect(relative(SRC, target)).not.toMatch(/^(http|hooks\/gather|fhir\/fetcher|audit\/(sqlite|postgres|open)-store|cli)\b/);
+      if (target && !typeOnly)
+        expect(relative(SRC, target)).not.toMatch(/^(http|hooks\/gather|fhir\/fetcher|audit\/(sqlite|postgres|open)-store|cli)\b/);
     }
     expect(readFileSync(f, 'utf8')).not.toMatch(/\bnew Date\(\)|Date\.now\(\)/);
   });
@@ -125,10 +153,12 @@ describe('the import table of docs/architecture.md', () => {
     expect([...table.keys()].sort()).toEqual(roomsBuilt);
   });
   it('allows every import between rooms that the code makes', () => {
-    const refused = edges.filter((e) => {
-      const t = table.get(roomOf(e.from));
-      return roomOf(e.from) !== roomOf(e.to) && t !== 'everything' && !t?.some((p) => allows(p, e.to, e.typeOnly));
-    }).map((e) => `${rel(e.from)} → ${rel(e.to)}${e.typeOnly ? ' (types)' : ''}`);
+    const refused = edges
+      .filter((e) => {
+        const t = table.get(roomOf(e.from));
+        return roomOf(e.from) !== roomOf(e.to) && t !== 'everything' && !t?.some((p) => allows(p, e.to, e.typeOnly));
+      })
+      .map((e) => `${rel(e.from)} → ${rel(e.to)}${e.typeOnly ? ' (types)' : ''}`);
     expect(refused).toEqual([]);
   });
   it('draws no permission the code does not use (except "everything" and "everything below")', () => {
@@ -146,7 +176,7 @@ describe('the import table of docs/architecture.md', () => {
 
 describe('advice carries codes, not prose (issue 19)', () => {
   const rel = (f: string) => relative(SRC, f);
-  it('no code reads a finding\'s values back by key: decisions use the typed fields', () => {
+  it("no code reads a finding's values back by key: decisions use the typed fields", () => {
     const offenders = all.filter((f) => /\.values\??\.(\[|[a-zA-Z_])/.test(readFileSync(f, 'utf8'))).map(rel);
     expect(offenders).toEqual([]);
   });

@@ -27,7 +27,11 @@ describe('body depth', () => {
   it('names the path to the first point too deep, objects by key and arrays by index', () => {
     const body = { ok: [1, 2, { fine: true }], context: { draftOrders: { entry: [{ resource: { note: { a: [{ a: [] }] } } }] } } };
     expect(pathTooDeep(body, 6)).toEqual(['context', 'draftOrders', 'entry', 0, 'resource', 'note']);
-    expect(tooDeep(body, 6)?.issues.slice(1).map((i) => i.text)).toEqual(['too deep under context.draftOrders.entry[0].resource.note']);
+    expect(
+      tooDeep(body, 6)
+        ?.issues.slice(1)
+        .map((i) => i.text),
+    ).toEqual(['too deep under context.draftOrders.entry[0].resource.note']);
   });
   it('finds depth in a later sibling after a shallow one', () => {
     expect(pathTooDeep([[1], [[[2]]]], 3)).toEqual([1, 0, 0]);

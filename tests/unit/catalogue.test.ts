@@ -29,28 +29,78 @@ describe('card catalogue against the closed sets', () => {
     for (const k of SUGGESTION_KINDS) expect(catalogue.suggestions[k].label, k).toBeTruthy();
   });
   it('a missing headline key stops start-up, naming the key', () => {
-    expect(loadEdited((c) => { delete c['headlines']!['early/any']; })).toThrow(/headlines\.early\/any/);
+    expect(
+      loadEdited((c) => {
+        delete c['headlines']!['early/any'];
+      }),
+    ).toThrow(/headlines\.early\/any/);
   });
   it('an unknown headline key stops start-up (a misspelt key would never be shown)', () => {
-    expect(loadEdited((c) => { c['headlines']!['likely/adequat'] = 'x'; })).toThrow(/headlines/);
+    expect(
+      loadEdited((c) => {
+        c['headlines']!['likely/adequat'] = 'x';
+      }),
+    ).toThrow(/headlines/);
   });
   it('a missing alternative, next test or suggestion stops start-up', () => {
-    expect(loadEdited((c) => { delete c['alternatives']!['perfusion-check']; })).toThrow(/alternatives\.perfusion-check/);
-    expect(loadEdited((c) => { delete c['nextTests']!['tidal-volume-challenge']; })).toThrow(/nextTests\.tidal-volume-challenge/);
-    expect(loadEdited((c) => { delete c['suggestions']!['tidal-volume-challenge']; })).toThrow(/suggestions\.tidal-volume-challenge/);
+    expect(
+      loadEdited((c) => {
+        delete c['alternatives']!['perfusion-check'];
+      }),
+    ).toThrow(/alternatives\.perfusion-check/);
+    expect(
+      loadEdited((c) => {
+        delete c['nextTests']!['tidal-volume-challenge'];
+      }),
+    ).toThrow(/nextTests\.tidal-volume-challenge/);
+    expect(
+      loadEdited((c) => {
+        delete c['suggestions']!['tidal-volume-challenge'];
+      }),
+    ).toThrow(/suggestions\.tidal-volume-challenge/);
   });
   it('the pop-up words are checked too: test names and results, action words, answer words, the pop-up lines (issue 16)', () => {
     const { catalogue } = loadCatalogue();
-    for (const k of NEXT_TESTS) expect(catalogue.testNames[k] && catalogue.testResults[k].positive && catalogue.testResults[k].negative, k).toBeTruthy();
+    for (const k of NEXT_TESTS)
+      expect(catalogue.testNames[k] && catalogue.testResults[k].positive && catalogue.testResults[k].negative, k).toBeTruthy();
     for (const k of ADVICE_ACTIONS) expect(catalogue.actionWords[k], k).toBeTruthy();
-    for (const [kind, codes] of Object.entries(CODED_ANSWERS)) for (const a of codes) expect((catalogue.answers as Record<string, Record<string, string>>)[kind]?.[a], `${kind}.${a}`).toBeTruthy();
-    expect(loadEdited((c) => { delete c['testNames']!['passive-leg-raise']; })).toThrow(/testNames\.passive-leg-raise/);
-    expect(loadEdited((c) => { delete (c['testResults']!['end-expiratory-occlusion'] as Record<string, unknown>)['negative']; })).toThrow(/testResults\.end-expiratory-occlusion\.negative/);
-    expect(loadEdited((c) => { delete c['actionWords']!['question-need']; })).toThrow(/actionWords\.question-need/);
-    expect(loadEdited((c) => { delete (c['answers']!['ventilationMode'] as Record<string, unknown>)['controlled-no-effort']; })).toThrow(/answers\.ventilationMode\.controlled-no-effort/);
-    expect(loadEdited((c) => { c['answers']!['heartRhythm'] = { ...(c['answers']!['heartRhythm'] as object), 'atrial-flutter': 'x' }; })).toThrow(/answers\.heartRhythm/);
-    expect(loadEdited((c) => { delete c['popup']!['caution']; })).toThrow(/popup\.caution/);
-    expect(loadEdited((c) => { c['popup']!['caution'] = 'x'.repeat(161); })).toThrow(/popup\.caution/);
+    for (const [kind, codes] of Object.entries(CODED_ANSWERS))
+      for (const a of codes) expect((catalogue.answers as Record<string, Record<string, string>>)[kind]?.[a], `${kind}.${a}`).toBeTruthy();
+    expect(
+      loadEdited((c) => {
+        delete c['testNames']!['passive-leg-raise'];
+      }),
+    ).toThrow(/testNames\.passive-leg-raise/);
+    expect(
+      loadEdited((c) => {
+        delete (c['testResults']!['end-expiratory-occlusion'] as Record<string, unknown>)['negative'];
+      }),
+    ).toThrow(/testResults\.end-expiratory-occlusion\.negative/);
+    expect(
+      loadEdited((c) => {
+        delete c['actionWords']!['question-need'];
+      }),
+    ).toThrow(/actionWords\.question-need/);
+    expect(
+      loadEdited((c) => {
+        delete (c['answers']!['ventilationMode'] as Record<string, unknown>)['controlled-no-effort'];
+      }),
+    ).toThrow(/answers\.ventilationMode\.controlled-no-effort/);
+    expect(
+      loadEdited((c) => {
+        c['answers']!['heartRhythm'] = { ...(c['answers']!['heartRhythm'] as object), 'atrial-flutter': 'x' };
+      }),
+    ).toThrow(/answers\.heartRhythm/);
+    expect(
+      loadEdited((c) => {
+        delete c['popup']!['caution'];
+      }),
+    ).toThrow(/popup\.caution/);
+    expect(
+      loadEdited((c) => {
+        c['popup']!['caution'] = 'x'.repeat(161);
+      }),
+    ).toThrow(/popup\.caution/);
   });
   it('every headline is short enough for a card summary (< 140 characters)', () => {
     for (const h of Object.values(loadCatalogue().catalogue.headlines)) expect(h.length).toBeLessThan(140);

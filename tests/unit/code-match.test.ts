@@ -16,7 +16,12 @@ const groups = (system: string, code: string) => matchConditionGroups([{ system,
 
 describe('normaliseIcd10', () => {
   it.each([
-    ['I50.22', 'I5022'], ['I5022', 'I5022'], [' i50.9 ', 'I509'], ['J80', 'J80'], ['T79.4XXA', 'T794XXA'], ['K70.30', 'K7030'],
+    ['I50.22', 'I5022'],
+    ['I5022', 'I5022'],
+    [' i50.9 ', 'I509'],
+    ['J80', 'J80'],
+    ['T79.4XXA', 'T794XXA'],
+    ['K70.30', 'K7030'],
   ])('%s → %s', (code, norm) => expect(normaliseIcd10(code)).toBe(norm));
   it.each([['I5'], ['50.2'], ['I50.22222'], ['I50..2'], [''], ['84114007'], ['I50-22']])('%s is not ICD-10-shaped', (code) => {
     expect(normaliseIcd10(code)).toBeUndefined();
@@ -122,34 +127,62 @@ describe('condition groups: ICD-10 and ICD-10-CM', () => {
     expect(groups('http://hl7.org/fhir/sid/icd-9-cm', '428.0')).toEqual([]);
   });
   it('the first coding that matches is named as the evidence', () => {
-    const hits = matchConditionGroups([{ system: 'urn:local', code: 'HF' }, { system: CM, code: 'I50.9' }, { system: SCT, code: '84114007' }]);
+    const hits = matchConditionGroups([
+      { system: 'urn:local', code: 'HF' },
+      { system: CM, code: 'I50.9' },
+      { system: SCT, code: '84114007' },
+    ]);
     expect(hits).toEqual([{ id: 'heart-failure', label: 'heart failure', coding: `${CM}|I50.9` }]);
   });
-  it('matchConditionSets (the tolerance module\'s name) gives the same answer', () => {
+  it("matchConditionSets (the tolerance module's name) gives the same answer", () => {
     const entry: ConditionEntry = { ref: 'Condition/c1', codings: [{ system: CM, code: 'I27.0' }], clinicalStatus: 'active' };
     expect(matchConditionSets(entry)).toEqual(matchConditionGroups(entry.codings));
   });
 });
 
 describe('activeConditionGroups (for rules that need a group, e.g. high PPV doubtful)', () => {
-  const c = (ref: string, system: string, code: string, clinicalStatus = 'active'): ConditionEntry => ({ ref, codings: [{ system, code }], clinicalStatus });
+  const c = (ref: string, system: string, code: string, clinicalStatus = 'active'): ConditionEntry => ({
+    ref,
+    codings: [{ system, code }],
+    clinicalStatus,
+  });
   it('lists groups in file order with their effects, refs and codings; inactive conditions do not count', () => {
     const got = activeConditionGroups([
-      c('Condition/ph', CM, 'I27.20'), c('Condition/old-hf', SCT, '84114007', 'resolved'), c('Condition/cir', SCT, '19943007'),
+      c('Condition/ph', CM, 'I27.20'),
+      c('Condition/old-hf', SCT, '84114007', 'resolved'),
+      c('Condition/cir', SCT, '19943007'),
     ]);
     expect(got).toEqual([
-      { id: 'advanced-liver-disease', label: 'advanced liver disease (cirrhosis or liver failure)', effects: ['lowers-tolerance'], refs: ['Condition/cir'], codings: [`${SCT}|19943007`] },
-      { id: 'pulmonary-hypertension', label: 'pulmonary hypertension', effects: ['lowers-tolerance', 'high-ppv-doubtful'], refs: ['Condition/ph'], codings: [`${CM}|I27.20`] },
+      {
+        id: 'advanced-liver-disease',
+        label: 'advanced liver disease (cirrhosis or liver failure)',
+        effects: ['lowers-tolerance'],
+        refs: ['Condition/cir'],
+        codings: [`${SCT}|19943007`],
+      },
+      {
+        id: 'pulmonary-hypertension',
+        label: 'pulmonary hypertension',
+        effects: ['lowers-tolerance', 'high-ppv-doubtful'],
+        refs: ['Condition/ph'],
+        codings: [`${CM}|I27.20`],
+      },
     ]);
   });
   it('only right-ventricular failure and pulmonary hypertension make a high PPV doubtful', () => {
-    expect(CONDITION_SETS.sets.filter((s) => s.effects.includes('high-ppv-doubtful')).map((s) => s.id)).toEqual(['right-ventricular-failure', 'pulmonary-hypertension']);
+    expect(CONDITION_SETS.sets.filter((s) => s.effects.includes('high-ppv-doubtful')).map((s) => s.id)).toEqual([
+      'right-ventricular-failure',
+      'pulmonary-hypertension',
+    ]);
   });
   it('nothing active → nothing', () => expect(activeConditionGroups([c('Condition/x', SCT, '84114007', 'inactive')])).toEqual([]));
 });
 
 describe('a bad edit of conditions.json stops start-up', () => {
-  type Raw = { sources: Record<string, string>; sets: Array<Record<string, unknown> & { snomed: Array<{ code: string; source: string }>; icd10: Array<{ code?: string }> }> };
+  type Raw = {
+    sources: Record<string, string>;
+    sets: Array<Record<string, unknown> & { snomed: Array<{ code: string; source: string }>; icd10: Array<{ code?: string }> }>;
+  };
   const edit = (f: (raw: Raw) => void) => {
     const raw = structuredClone(VALUE_SETS.conditions) as unknown as Raw;
     f(raw);
@@ -157,13 +190,61 @@ describe('a bad edit of conditions.json stops start-up', () => {
   };
   it('the shipped file parses', () => expect(edit(() => {})).not.toThrow());
   it.each([
-    ['a SNOMED CT id with a wrong check digit', (r: Raw) => { r.sets[1]!.snomed[0]!.code = '84114008'; }, /Verhoeff/],
-    ['an ICD-10 code of the wrong shape', (r: Raw) => { r.sets[1]!.icd10[0]!.code = 'I-50'; }, /not an ICD-10 code/],
-    ['an unknown source', (r: Raw) => { r.sets[0]!.snomed[0]!.source = 'a friend'; }, /unknown source .{0,4}a friend/],
-    ['a source no entry uses', (r: Raw) => { r.sources['spare'] = 'a list nobody cites'; }, /source .{0,4}spare.{0,4} is not used/],
-    ['a missing group', (r: Raw) => { r.sets.pop(); }, /pulmonary-hypertension is missing/],
-    ['a group listed twice', (r: Raw) => { r.sets.push(structuredClone(r.sets[0]!)); }, /listed twice/],
-    ['high-ppv-doubtful without its source', (r: Raw) => { delete r.sets[4]!['effectSources']; }, /needs its source/],
-    ['an includes two levels deep', (r: Raw) => { r.sets[4]!['includes'] = ['pulmonary-hypertension']; }, /one level deep/],
+    [
+      'a SNOMED CT id with a wrong check digit',
+      (r: Raw) => {
+        r.sets[1]!.snomed[0]!.code = '84114008';
+      },
+      /Verhoeff/,
+    ],
+    [
+      'an ICD-10 code of the wrong shape',
+      (r: Raw) => {
+        r.sets[1]!.icd10[0]!.code = 'I-50';
+      },
+      /not an ICD-10 code/,
+    ],
+    [
+      'an unknown source',
+      (r: Raw) => {
+        r.sets[0]!.snomed[0]!.source = 'a friend';
+      },
+      /unknown source .{0,4}a friend/,
+    ],
+    [
+      'a source no entry uses',
+      (r: Raw) => {
+        r.sources['spare'] = 'a list nobody cites';
+      },
+      /source .{0,4}spare.{0,4} is not used/,
+    ],
+    [
+      'a missing group',
+      (r: Raw) => {
+        r.sets.pop();
+      },
+      /pulmonary-hypertension is missing/,
+    ],
+    [
+      'a group listed twice',
+      (r: Raw) => {
+        r.sets.push(structuredClone(r.sets[0]!));
+      },
+      /listed twice/,
+    ],
+    [
+      'high-ppv-doubtful without its source',
+      (r: Raw) => {
+        delete r.sets[4]!['effectSources'];
+      },
+      /needs its source/,
+    ],
+    [
+      'an includes two levels deep',
+      (r: Raw) => {
+        r.sets[4]!['includes'] = ['pulmonary-hypertension'];
+      },
+      /one level deep/,
+    ],
   ] as const)('%s', (_name, f, message) => expect(edit(f)).toThrow(message));
 });

@@ -47,7 +47,18 @@ describe('site thresholds', () => {
     expect(() => resolveThresholds({ need: { mapTargetMmHg: 500 } })).toThrow(/mapTargetMmHg/);
     // One CVP window for both questions (docs/clinical-logic), overridable in one place.
     expect(resolveThresholds({ windows: { cvpMin: 180 } }).windows.cvpMin).toBe(180);
-    expect(resolveThresholds({}).windows).toMatchObject({ vitalsMin: 90, cvpMin: 120, ppvSvvMin: 60, tidalVolumeMin: 240, rhythmMin: 720, capillaryRefillMin: 120, lactateMin: 720, fio2CarryForwardMin: 720, creatinineMin: 2160, albuminMin: 4320 });
+    expect(resolveThresholds({}).windows).toMatchObject({
+      vitalsMin: 90,
+      cvpMin: 120,
+      ppvSvvMin: 60,
+      tidalVolumeMin: 240,
+      rhythmMin: 720,
+      capillaryRefillMin: 120,
+      lactateMin: 720,
+      fio2CarryForwardMin: 720,
+      creatinineMin: 2160,
+      albuminMin: 4320,
+    });
     expect(() => resolveThresholds({ responsivness: {} })).toThrow();
   });
 });

@@ -35,9 +35,23 @@ describe('dayRange', () => {
 describe('console pages escape what came from clients', () => {
   const chrome = { csrf: 'tok"en', session: true };
   it('feedback comments and reasons on a record page', () => {
-    const out = recordPage('<!doctype html><html><body><main><p>page</p></main></body></html>', [
-      { cardUuid: 'c1', outcome: 'overridden', acceptedSuggestions: [], userComment: '<img src=x onerror=alert(1)>', overrideReason: { code: 'x"y', display: '<b>bold</b>' }, outcomeTimestamp: 't', receivedAt: 't', service: 's' },
-    ], { c1: 'kind-a' }, chrome);
+    const out = recordPage(
+      '<!doctype html><html><body><main><p>page</p></main></body></html>',
+      [
+        {
+          cardUuid: 'c1',
+          outcome: 'overridden',
+          acceptedSuggestions: [],
+          userComment: '<img src=x onerror=alert(1)>',
+          overrideReason: { code: 'x"y', display: '<b>bold</b>' },
+          outcomeTimestamp: 't',
+          receivedAt: 't',
+          service: 's',
+        },
+      ],
+      { c1: 'kind-a' },
+      chrome,
+    );
     expect(out).not.toContain('<img');
     expect(out).toContain('&lt;img src=x onerror=alert(1)&gt;');
     expect(out).toContain('&lt;b&gt;bold&lt;/b&gt; (x&quot;y)');
@@ -45,7 +59,12 @@ describe('console pages escape what came from clients', () => {
     expect(out.indexOf('id="feedback"')).toBeLessThan(out.indexOf('</main>'));
   });
   it('filters echoed into the list form', () => {
-    const out = listPage({ chrome, filters: { from: '2031-03-01', to: '2031-03-02', service: '"><script>x</script>' }, items: [], zoneNote: '' });
+    const out = listPage({
+      chrome,
+      filters: { from: '2031-03-01', to: '2031-03-02', service: '"><script>x</script>' },
+      items: [],
+      zoneNote: '',
+    });
     expect(out).not.toContain('<script>');
     expect(out).toContain('id="advice-list-empty"');
   });

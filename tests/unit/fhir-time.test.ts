@@ -6,7 +6,8 @@ import { fhirDateTime, isoInstant, parseTimeMs } from '../../src/snapshot/time.j
 import * as b from '../../examples/lib/fhir-builders.js';
 
 describe('FHIR R4 dateTime grammar', () => {
-  // The dateTime examples of the FHIR R4 Datatypes page: "2018, 1973-06, 1905-08-23, 2015-02-07T13:28:17-05:00 or 2017-01-01T00:00:00.000Z".
+  // The dateTime examples of the FHIR R4 Datatypes page: "2018, 1973-06, 1905-08-23, 2015-02-07T13:28:17-05:00 or
+  // 2017-01-01T00:00:00.000Z".
   it.each([
     ['2018', 'year', '2018-01-01T00:00:00.000Z'],
     ['1973-06', 'month', '1973-06-01T00:00:00.000Z'],
@@ -70,7 +71,10 @@ describe('the snapshot uses the strict grammar', () => {
     const c = b.numeric('hr-text', P, 'heartRate', 91, 'December 1, 2026');
     const s = snap([a, c]);
     expect(s.measurements).toEqual([]);
-    expect(s.excluded.map((e) => [e.ref, e.reason])).toEqual([['Observation/hr-local', 'no-time'], ['Observation/hr-text', 'no-time']]);
+    expect(s.excluded.map((e) => [e.ref, e.reason])).toEqual([
+      ['Observation/hr-local', 'no-time'],
+      ['Observation/hr-text', 'no-time'],
+    ]);
     expect(s.excluded[0]?.detail).toMatch(/not a FHIR date-time .*offset Z or ±hh:mm/);
     expect(s.excluded[1]?.detail).toMatch(/not a FHIR date-time/);
   });
@@ -79,7 +83,9 @@ describe('the snapshot uses the strict grammar', () => {
     const w = b.numeric('wt-day', P, 'bodyWeight', 72, '2026-12-01');
     const hr = b.numeric('hr-day', P, 'heartRate', 88, '2026-12-01');
     const s = snap([w, hr]);
-    expect(s.measurements.map((m) => [m.kind, m.effective, m.timeAssumed])).toEqual([['bodyWeight', '2026-12-01T00:00:00.000Z', 'date-only']]);
+    expect(s.measurements.map((m) => [m.kind, m.effective, m.timeAssumed])).toEqual([
+      ['bodyWeight', '2026-12-01T00:00:00.000Z', 'date-only'],
+    ]);
     expect(s.excluded.map((e) => e.ref)).toEqual(['Observation/hr-day']);
   });
 

@@ -12,7 +12,10 @@ describe('resolveUnderBase', () => {
     ['Observation?patient=Patient/p1&_count=5', 'https://fhir.saltmarsh.example.org/r4/Observation?patient=Patient/p1&_count=5'],
     ['https://fhir.saltmarsh.example.org/r4/Observation?page=2', 'https://fhir.saltmarsh.example.org/r4/Observation?page=2'],
     // HAPI-style paging links are the base itself with a query.
-    ['https://fhir.saltmarsh.example.org/r4?_getpages=abc&_getpagesoffset=10', 'https://fhir.saltmarsh.example.org/r4?_getpages=abc&_getpagesoffset=10'],
+    [
+      'https://fhir.saltmarsh.example.org/r4?_getpages=abc&_getpagesoffset=10',
+      'https://fhir.saltmarsh.example.org/r4?_getpages=abc&_getpagesoffset=10',
+    ],
     ['HTTPS://FHIR.saltmarsh.example.org/r4/Observation?page=2', 'https://fhir.saltmarsh.example.org/r4/Observation?page=2'],
     ['https://fhir.saltmarsh.example.org:443/r4/Observation#x', 'https://fhir.saltmarsh.example.org/r4/Observation'],
   ])('%s → %s', (ref, expected) => {
@@ -47,6 +50,8 @@ describe('resolveUnderBase', () => {
   });
 
   it('a base at the root allows any path on its origin', () => {
-    expect(resolveUnderBase('/anything/Observation', 'https://fhir.saltmarsh.example.org')?.href).toBe('https://fhir.saltmarsh.example.org/anything/Observation');
+    expect(resolveUnderBase('/anything/Observation', 'https://fhir.saltmarsh.example.org')?.href).toBe(
+      'https://fhir.saltmarsh.example.org/anything/Observation',
+    );
   });
 });

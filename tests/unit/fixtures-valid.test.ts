@@ -6,7 +6,11 @@ import { ADVICE_CASES } from '../helpers/advice-fixtures.js';
 import { basicResources, bolusDraft } from '../helpers/hook-fixtures.js';
 
 describe('fixtures are valid FHIR R4', () => {
-  const all = [...Object.values(basicResources()).flat(), ...Object.values(ADVICE_CASES).flatMap((c) => Object.values(c).flat()), bolusDraft()];
+  const all = [
+    ...Object.values(basicResources()).flat(),
+    ...Object.values(ADVICE_CASES).flatMap((c) => Object.values(c).flat()),
+    bolusDraft(),
+  ];
   it.each(all.map((r) => [`${r.resourceType}/${r.id ?? ''}`, r] as const))('%s', (_id, r) => {
     expect(validateFhir(r)).toEqual([]);
   });

@@ -7,8 +7,19 @@ import type { CardOutcome, ComparableOutcome } from '../../src/audit/outcome.js'
 import { loadCatalogue } from '../../src/cards/catalogue.js';
 
 const rules = { thresholds: resolveThresholds({}), catalogue: loadCatalogue().catalogue, rulesVersion: 'test+candidate' };
-const card = (kind: string, o: Partial<CardOutcome> = {}): CardOutcome => ({ kind, indicator: 'info', summary: 'Invented summary', suggestions: ['Invented step'], ...o });
-const outcome = (o: Partial<ComparableOutcome> = {}): ComparableOutcome => ({ responsiveness: 'likely', tolerance: 'adequate', cards: [card('review')], ...o });
+const card = (kind: string, o: Partial<CardOutcome> = {}): CardOutcome => ({
+  kind,
+  indicator: 'info',
+  summary: 'Invented summary',
+  suggestions: ['Invented step'],
+  ...o,
+});
+const outcome = (o: Partial<ComparableOutcome> = {}): ComparableOutcome => ({
+  responsiveness: 'likely',
+  tolerance: 'adequate',
+  cards: [card('review')],
+  ...o,
+});
 
 describe('ImpactTally', () => {
   it('the same outcome is no change', () => {
@@ -23,12 +34,34 @@ describe('ImpactTally', () => {
 
   it('counts each kind of change once per record, with rows by (what, kind, from → to) and their examples', () => {
     const t = new ImpactTally(rules);
-    t.compare('a1', outcome(), outcome({ responsiveness: 'indeterminate', cards: [card('review', { indicator: 'warning', summary: 'Other', suggestions: [] })] }));
+    t.compare(
+      'a1',
+      outcome(),
+      outcome({ responsiveness: 'indeterminate', cards: [card('review', { indicator: 'warning', summary: 'Other', suggestions: [] })] }),
+    );
     t.compare('a2', outcome({ cards: [card('review'), card('gap')] }), outcome({ tolerance: 'not-known', cards: [card('review')] }));
-    t.compare('a3', outcome({ headlineKey: 'likely/adequate' }), outcome({ headlineKey: 'likely/limited', cards: [card('review'), card('review', { indicator: 'critical' })] }));
+    t.compare(
+      'a3',
+      outcome({ headlineKey: 'likely/adequate' }),
+      outcome({ headlineKey: 'likely/limited', cards: [card('review'), card('review', { indicator: 'critical' })] }),
+    );
     const r = t.report();
-    expect(r.changed).toEqual({ any: 3, responsiveness: 1, confidence: 0, tolerance: 1, action: 0, nextTest: 0, indicator: 1, headline: 2, suggestions: 1, cards: 2 });
-    const row = (dimension: string, cardKind = '') => r.changes.filter((c) => c.dimension === dimension && c.cardKind === cardKind).map(({ from, to, count, examples }) => ({ from, to, count, examples }));
+    expect(r.changed).toEqual({
+      any: 3,
+      responsiveness: 1,
+      confidence: 0,
+      tolerance: 1,
+      action: 0,
+      nextTest: 0,
+      indicator: 1,
+      headline: 2,
+      suggestions: 1,
+      cards: 2,
+    });
+    const row = (dimension: string, cardKind = '') =>
+      r.changes
+        .filter((c) => c.dimension === dimension && c.cardKind === cardKind)
+        .map(({ from, to, count, examples }) => ({ from, to, count, examples }));
     expect(row('responsiveness')).toEqual([{ from: 'likely', to: 'indeterminate', count: 1, examples: ['a1'] }]);
     expect(row('tolerance')).toEqual([{ from: 'adequate', to: 'not-known', count: 1, examples: ['a2'] }]);
     expect(row('headline-key')).toEqual([{ from: 'likely/adequate', to: 'likely/limited', count: 1, examples: ['a3'] }]);
@@ -53,7 +86,8 @@ describe('ImpactTally', () => {
   it(`keeps at most ${MAX_CHANGE_ROWS} distinct rows; later new changes go to an (other) row of their kind`, () => {
     const t = new ImpactTally(rules);
     const n = MAX_CHANGE_ROWS + 50;
-    for (let i = 0; i < n; i += 1) t.compare(`a${i}`, outcome(), outcome({ cards: [card('review', { summary: `Summary with value ${i}` })] }));
+    for (let i = 0; i < n; i += 1)
+      t.compare(`a${i}`, outcome(), outcome({ cards: [card('review', { summary: `Summary with value ${i}` })] }));
     const r = t.report();
     expect(r.changes).toHaveLength(MAX_CHANGE_ROWS + 1);
     expect(r.changes[0]).toMatchObject({ dimension: 'headline', cardKind: 'review', from: '(other)', to: '(other)', count: 50 });
@@ -65,8 +99,13 @@ describe('ImpactTally', () => {
     const t = new ImpactTally(rules);
     t.compare('a1', outcome(), outcome({ cards: [card('review', { summary: '=cmd\u001b[31m, "quoted"' })] }));
     const r = t.report();
-    expect(formatImpact(r, 'csv')).toBe('dimension,card_kind,from,to,count,examples\r\nheadline,review,Invented summary,"\'=cmd\u001b[31m, ""quoted""",1,a1\r\n');
-    const nd = formatImpact(r, 'ndjson').trim().split('\n').map((l) => JSON.parse(l));
+    expect(formatImpact(r, 'csv')).toBe(
+      'dimension,card_kind,from,to,count,examples\r\nheadline,review,Invented summary,"\'=cmd\u001b[31m, ""quoted""",1,a1\r\n',
+    );
+    const nd = formatImpact(r, 'ndjson')
+      .trim()
+      .split('\n')
+      .map((l) => JSON.parse(l));
     expect(nd[0]).toMatchObject({ type: 'totals', changed: { any: 1 } });
     expect(nd[1]).toMatchObject({ type: 'change', to: '=cmd\u001b[31m, "quoted"' });
     expect(formatImpact(r, 'table')).not.toContain('\u001b');

@@ -31,14 +31,22 @@ describe('MAP against the 65 mmHg target (SSC 2021)', () => {
   });
   it('fresh up to 90 min (docs/clinical-logic: hourly vitals validated late), stale after; absent', () => {
     expect(map(new SnapshotBuilder().measure('meanBp', 60, { ageMin: 90 })).status).toBe('assessed');
-    expect(map(new SnapshotBuilder().measure('meanBp', 60, { ageMin: 91 }))).toMatchObject({ gap: 'stale', reason: 'MAP stale (age 91 min, window 90 min)' });
+    expect(map(new SnapshotBuilder().measure('meanBp', 60, { ageMin: 91 }))).toMatchObject({
+      gap: 'stale',
+      reason: 'MAP stale (age 91 min, window 90 min)',
+    });
     expect(map(new SnapshotBuilder()).gap).toBe('missing');
   });
 });
 
 describe('lactate (Sepsis-3: > 2 mmol/L), context up to 12 h with its age', () => {
   const lac = (v: number, ageMin = 30) => sign(new SnapshotBuilder().measure('lactate', v, { ageMin }), 'perfusion.lactate');
-  it.each([[1.5, false], [2, false], [2.1, true], [6, true]] as const)('lactate %s → sign %s', (v, s) => {
+  it.each([
+    [1.5, false],
+    [2, false],
+    [2.1, true],
+    [6, true],
+  ] as const)('lactate %s → sign %s', (v, s) => {
     expect(lac(v).hypoperfusion).toBe(s);
   });
   it('fresh up to 720 min with the age in the text, stale after', () => {
@@ -48,8 +56,14 @@ describe('lactate (Sepsis-3: > 2 mmol/L), context up to 12 h with its age', () =
 });
 
 describe('capillary refill (ANDROMEDA-SHOCK: > 3 s abnormal)', () => {
-  const crt = (v: number, ageMin = 10) => sign(new SnapshotBuilder().measure('capillaryRefill', v, { ageMin }), 'perfusion.capillary-refill');
-  it.each([[2, false], [3, false], [3.1, true], [6, true]] as const)('CRT %s s → sign %s', (v, s) => {
+  const crt = (v: number, ageMin = 10) =>
+    sign(new SnapshotBuilder().measure('capillaryRefill', v, { ageMin }), 'perfusion.capillary-refill');
+  it.each([
+    [2, false],
+    [3, false],
+    [3.1, true],
+    [6, true],
+  ] as const)('CRT %s s → sign %s', (v, s) => {
     expect(crt(v).hypoperfusion).toBe(s);
   });
   it('fresh up to 120 min (docs/clinical-logic), stale after', () => {
@@ -73,20 +87,37 @@ describe('urine output (KDIGO 2012: < 0.5 mL/kg/h over 6 h)', () => {
     expect(urine(30, 181).gap).toBe('stale');
   });
   it('fewer than 6 h charted → not assessed', () => {
-    const b = new SnapshotBuilder().measure('bodyWeight', 70, { ageMin: 600 }).measure('urineOutput', 20, { ageMin: 90 }).measure('urineOutput', 20, { ageMin: 30 });
+    const b = new SnapshotBuilder()
+      .measure('bodyWeight', 70, { ageMin: 600 })
+      .measure('urineOutput', 20, { ageMin: 90 })
+      .measure('urineOutput', 20, { ageMin: 30 });
     expect(sign(b, 'perfusion.urine-output').gap).toBe('too-few-readings');
   });
 });
 
 describe('rising vasoactive support', () => {
   it('started within 120 min → sign; raised in rate → sign; lowered or unchanged → not', () => {
-    expect(sign(new SnapshotBuilder().vasoactive({ drug: 'norepinephrine', startAgeMin: 60, rate: { value: 0.1, unit: 'ug/kg/min' } }), 'perfusion.vasopressor').hypoperfusion).toBe(true);
-    const change = (from: number, to: number) => sign(new SnapshotBuilder()
-      .vasoactive({ drug: 'norepinephrine', startAgeMin: 300, endAgeMin: 30, rate: { value: from, unit: 'ug/kg/min' } })
-      .vasoactive({ drug: 'norepinephrine', startAgeMin: 30, rate: { value: to, unit: 'ug/kg/min' } }), 'perfusion.vasopressor').hypoperfusion;
+    expect(
+      sign(
+        new SnapshotBuilder().vasoactive({ drug: 'norepinephrine', startAgeMin: 60, rate: { value: 0.1, unit: 'ug/kg/min' } }),
+        'perfusion.vasopressor',
+      ).hypoperfusion,
+    ).toBe(true);
+    const change = (from: number, to: number) =>
+      sign(
+        new SnapshotBuilder()
+          .vasoactive({ drug: 'norepinephrine', startAgeMin: 300, endAgeMin: 30, rate: { value: from, unit: 'ug/kg/min' } })
+          .vasoactive({ drug: 'norepinephrine', startAgeMin: 30, rate: { value: to, unit: 'ug/kg/min' } }),
+        'perfusion.vasopressor',
+      ).hypoperfusion;
     expect(change(0.1, 0.2)).toBe(true);
     expect(change(0.2, 0.1)).toBe(false);
-    expect(sign(new SnapshotBuilder().vasoactive({ drug: 'norepinephrine', startAgeMin: 121, rate: { value: 0.1, unit: 'ug/kg/min' } }), 'perfusion.vasopressor').hypoperfusion).toBe(false);
+    expect(
+      sign(
+        new SnapshotBuilder().vasoactive({ drug: 'norepinephrine', startAgeMin: 121, rate: { value: 0.1, unit: 'ug/kg/min' } }),
+        'perfusion.vasopressor',
+      ).hypoperfusion,
+    ).toBe(false);
   });
 });
 
@@ -103,7 +134,9 @@ describe('need verdict', () => {
     expect(run(new SnapshotBuilder().measure('meanBp', 60, { ageMin: 5 })).need.value).toBe('present');
   });
   it('absent needs a current MAP and a tissue marker (lactate, capillary refill or urine output)', () => {
-    expect(run(new SnapshotBuilder().measure('meanBp', 75, { ageMin: 5 }).measure('capillaryRefill', 2, { ageMin: 30 })).need.value).toBe('absent');
+    expect(run(new SnapshotBuilder().measure('meanBp', 75, { ageMin: 5 }).measure('capillaryRefill', 2, { ageMin: 30 })).need.value).toBe(
+      'absent',
+    );
     expect(run(new SnapshotBuilder().measure('meanBp', 75, { ageMin: 5 })).need.value).toBe('unknown');
     expect(run(new SnapshotBuilder().measure('capillaryRefill', 2, { ageMin: 30 })).need.value).toBe('unknown');
   });
@@ -115,7 +148,9 @@ describe('need verdict', () => {
 
 describe('phase of fluid therapy (SSC 2021; Malbrain 2018)', () => {
   const septic = (admittedMinAgo: number, givenMl: number) => {
-    const b = new SnapshotBuilder({ encounterRef: 'Encounter/e1' }).measure('bodyWeight', 70, { ageMin: admittedMinAgo }).measure('meanBp', 58, { ageMin: 5 });
+    const b = new SnapshotBuilder({ encounterRef: 'Encounter/e1' })
+      .measure('bodyWeight', 70, { ageMin: admittedMinAgo })
+      .measure('meanBp', 58, { ageMin: 5 });
     const s = b.build();
     s.encounter = { ref: 'Encounter/e1', start: new Date(NOW.getTime() - admittedMinAgo * 60_000).toISOString() };
     if (givenMl) b.fluid({ volumeMl: givenMl, startAgeMin: Math.min(admittedMinAgo - 1, 50), endAgeMin: Math.min(admittedMinAgo - 2, 30) });

@@ -10,12 +10,28 @@ const kg70 = () => m('bodyWeight', 70, 600);
 describe('describeOrder', () => {
   it('500 mL balanced crystalloid over 30 min, 70 kg', () => {
     const fs = describeOrder(order(), snapshot({ measurements: [kg70()] }), NOW, OT);
-    expect(fs.map((f) => f.ruleId)).toEqual(['order.volume', 'order.volume-per-kg', 'order.intravascular-estimate', 'order.sepsis-context']);
+    expect(fs.map((f) => f.ruleId)).toEqual([
+      'order.volume',
+      'order.volume-per-kg',
+      'order.intravascular-estimate',
+      'order.sepsis-context',
+    ]);
     expect(fs.every((f) => f.topic === 'order')).toBe(true);
-    expect(one(fs, 'order.volume').values).toMatchObject({ volumeMl: 500, durationMin: 30, rateMlPerHour: 1000, fluidClass: 'balanced-crystalloid' });
+    expect(one(fs, 'order.volume').values).toMatchObject({
+      volumeMl: 500,
+      durationMin: 30,
+      rateMlPerHour: 1000,
+      fluidClass: 'balanced-crystalloid',
+    });
     expect(one(fs, 'order.volume-per-kg').values).toMatchObject({ volumeMlPerKg: 7.14, weightKg: 70, weightBasis: 'latest' });
     const est = one(fs, 'order.intravascular-estimate');
-    expect(est.values).toMatchObject({ intravascularAfterDistributionMl: 130, ruleOfThumbMl: 170, duringInfusionLowMl: 250, duringInfusionHighMl: 300, thirtyMinutesAfterHighMl: 100 });
+    expect(est.values).toMatchObject({
+      intravascularAfterDistributionMl: 130,
+      ruleOfThumbMl: 170,
+      duringInfusionLowMl: 250,
+      duringInfusionHighMl: 300,
+      thirtyMinutesAfterHighMl: 100,
+    });
     expect(est.text).toContain('About 130 mL of 500 mL');
     expect(est.text).toContain('4–6 h');
     expect(est.evidence[0]).toMatchObject({ ref: 'draftOrders#MedicationRequest/tm-bolus-1', value: 500, unit: 'mL' });
@@ -25,18 +41,22 @@ describe('describeOrder', () => {
     expect(est.text).toContain('Saline');
   });
   it('albumin 5 %: about the volume; albumin 20 %: about twice the volume', () => {
-    expect(one(describeOrder(order({ fluidClass: 'albumin-iso', volumeMl: 250 }), snapshot(), NOW, OT), 'order.intravascular-estimate').values)
-      .toMatchObject({ plasmaExpansionMl: 250 });
-    expect(one(describeOrder(order({ fluidClass: 'albumin-hyper', volumeMl: 100 }), snapshot(), NOW, OT), 'order.intravascular-estimate').values)
-      .toMatchObject({ plasmaExpansionMl: 200, drawnFromInterstitiumMl: 100 });
+    expect(
+      one(describeOrder(order({ fluidClass: 'albumin-iso', volumeMl: 250 }), snapshot(), NOW, OT), 'order.intravascular-estimate').values,
+    ).toMatchObject({ plasmaExpansionMl: 250 });
+    expect(
+      one(describeOrder(order({ fluidClass: 'albumin-hyper', volumeMl: 100 }), snapshot(), NOW, OT), 'order.intravascular-estimate').values,
+    ).toMatchObject({ plasmaExpansionMl: 200, drawnFromInterstitiumMl: 100 });
   });
   it('no estimate for other colloids or an unknown class', () => {
-    expect(one(describeOrder(order({ fluidClass: 'other-colloid' }), snapshot(), NOW, OT), 'order.intravascular-estimate').status).toBe('not-assessed');
+    expect(one(describeOrder(order({ fluidClass: 'other-colloid' }), snapshot(), NOW, OT), 'order.intravascular-estimate').status).toBe(
+      'not-assessed',
+    );
     const noClass = order();
     delete noClass.fluidClass;
     expect(one(describeOrder(noClass, snapshot(), NOW, OT), 'order.intravascular-estimate').reason).toContain('not known');
   });
-  it('absent volume: the edge\'s reason is passed on, and nothing per kg is made up', () => {
+  it("absent volume: the edge's reason is passed on, and nothing per kg is made up", () => {
     const o = order({ volumeProblem: 'a rate with no duration: a continuous infusion, not a bolus volume' });
     delete o.volumeMl;
     const fs = describeOrder(o, snapshot({ measurements: [kg70()] }), NOW, OT);
@@ -52,7 +72,10 @@ describe('describeOrder', () => {
   });
   it('weight: latest within 7 days, else the admission weight, else none', () => {
     const old = snapshot({ admittedMinutesAgo: 10 * 1440, measurements: [m('bodyWeight', 82, 10 * 1440 - 60)] });
-    expect(one(describeOrder(order(), old, NOW, OT), 'order.volume-per-kg').values).toMatchObject({ weightKg: 82, weightBasis: 'admission' });
+    expect(one(describeOrder(order(), old, NOW, OT), 'order.volume-per-kg').values).toMatchObject({
+      weightKg: 82,
+      weightBasis: 'admission',
+    });
     expect(one(describeOrder(order(), snapshot(), NOW, OT), 'order.volume-per-kg').reason).toBe('no body weight recorded');
   });
   it('wrong unit: a weight in [lb_av] is not used', () => {
@@ -69,7 +92,13 @@ describe('order.sepsis-context', () => {
     });
     const f = sepsisContext(s, NOW, OT, 500);
     // 1000 mL over 4 h → 2 h ago: half (500 mL) in the last 3 h; albumin 250 all in; the saline 5–6.7 h ago none.
-    expect(f.values).toMatchObject({ referenceMl: 2100, givenWindowMl: 750, crystalloidWindowMl: 500, withOrderMl: 1250, withOrderMlPerKg: 17.9 });
+    expect(f.values).toMatchObject({
+      referenceMl: 2100,
+      givenWindowMl: 750,
+      crystalloidWindowMl: 500,
+      withOrderMl: 1250,
+      withOrderMlPerKg: 17.9,
+    });
     expect(f).toMatchObject({ status: 'assessed', topic: 'order', part: 'sepsis-context' });
     expect(f.text).toContain('2,100 mL');
     expect(f.text).toContain('weak recommendation, low-quality evidence');

@@ -44,11 +44,23 @@ describe('output guard', () => {
   });
 
   it('fails the test that wrote and the file for a write outside a test, in a vitest of its own (tests/setup/fixtures)', () => {
-    const run = spawnSync(process.execPath, ['node_modules/vitest/vitest.mjs', 'run', '--config', 'tests/setup/fixtures/vitest.fixture.config.ts', '--reporter=json'], {
-      encoding: 'utf8', env: { ...process.env, NO_COLOR: '1' }, timeout: 60_000,
-    });
+    const run = spawnSync(
+      process.execPath,
+      ['node_modules/vitest/vitest.mjs', 'run', '--config', 'tests/setup/fixtures/vitest.fixture.config.ts', '--reporter=json'],
+      {
+        encoding: 'utf8',
+        env: { ...process.env, NO_COLOR: '1' },
+        timeout: 60_000,
+      },
+    );
     expect(run.status).toBe(1);
-    const report = JSON.parse(run.stdout) as { testResults: Array<{ status: string; message: string; assertionResults: Array<{ title: string; status: string; failureMessages: string[] }> }> };
+    const report = JSON.parse(run.stdout) as {
+      testResults: Array<{
+        status: string;
+        message: string;
+        assertionResults: Array<{ title: string; status: string; failureMessages: string[] }>;
+      }>;
+    };
     const file = report.testResults[0];
     expect(file?.status).toBe('failed');
     expect(file?.message).toContain('console.warn: "stray line after the tests"');

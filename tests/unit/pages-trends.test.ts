@@ -37,73 +37,156 @@ describe('site time', () => {
 });
 
 describe('trendsOf', () => {
-  const base = () => new SnapshotBuilder({ now: NOW })
-    .measure('meanBp', 64, { ageMin: 30 }).measure('meanBp', 60, { ageMin: 90 })
-    .measure('heartRate', 110, { ageMin: 30 })
-    .measure('urineOutput', 30, { ageMin: 0, periodStartAgeMin: 60 }).measure('urineOutput', 20, { ageMin: 60, periodStartAgeMin: 90 })
-    .measure('ppv', 14, { ageMin: 20 })
-    .dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, { ageMin: 15 })
-    .dynamicTest('tidalVolumeChallenge', 'ppv', 8, 12.5, { ageMin: 10 })
-    .fluid({ volumeMl: 500, startAgeMin: 180, endAgeMin: 150 })
-    .draftOrder({ ref: 'draftOrders#MedicationRequest/d1', resourceType: 'MedicationRequest', id: 'd1', selected: true, isFluid: true, volumeMl: 250, resource: {} });
+  const base = () =>
+    new SnapshotBuilder({ now: NOW })
+      .measure('meanBp', 64, { ageMin: 30 })
+      .measure('meanBp', 60, { ageMin: 90 })
+      .measure('heartRate', 110, { ageMin: 30 })
+      .measure('urineOutput', 30, { ageMin: 0, periodStartAgeMin: 60 })
+      .measure('urineOutput', 20, { ageMin: 60, periodStartAgeMin: 90 })
+      .measure('ppv', 14, { ageMin: 20 })
+      .dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, { ageMin: 15 })
+      .dynamicTest('tidalVolumeChallenge', 'ppv', 8, 12.5, { ageMin: 10 })
+      .fluid({ volumeMl: 500, startAgeMin: 180, endAgeMin: 150 })
+      .draftOrder({
+        ref: 'draftOrders#MedicationRequest/d1',
+        resourceType: 'MedicationRequest',
+        id: 'd1',
+        selected: true,
+        isFluid: true,
+        volumeMl: 250,
+        resource: {},
+      });
 
   it('a 12 h window when nothing is older, 24 h when something is; nothing older than 24 h', () => {
     expect(trendsOf(base().build(), NOW).hours).toBe(12);
-    const t = trendsOf(base().measure('meanBp', 70, { ageMin: 13 * 60 }).measure('meanBp', 75, { ageMin: 30 * 60 }).build(), NOW);
+    const t = trendsOf(
+      base()
+        .measure('meanBp', 70, { ageMin: 13 * 60 })
+        .measure('meanBp', 75, { ageMin: 30 * 60 })
+        .build(),
+      NOW,
+    );
     expect(t.hours).toBe(24);
     expect(t.from).toBe('2026-11-19T14:00:00.000Z');
     expect(t.to).toBe('2026-11-20T14:30:00.000Z');
-    expect(t.plots.find((p) => p.id === 'map-hr')!.rows.filter((r) => r.series === 'MAP').map((r) => r.value)).toEqual([70, 60, 64]);
+    expect(
+      t.plots
+        .find((p) => p.id === 'map-hr')!
+        .rows.filter((r) => r.series === 'MAP')
+        .map((r) => r.value),
+    ).toEqual([70, 60, 64]);
   });
   it('urine per hour is volume over the period (30 mL in 60 min = 30 mL/h; 20 mL in 30 min = 40 mL/h)', () => {
-    const rows = trendsOf(base().build(), NOW).plots.find((p) => p.id === 'urine-balance')!.rows.filter((r) => r.series === 'Urine output');
-    expect(rows.map((r) => [r.value, r.unit])).toEqual([[40, 'mL/h'], [30, 'mL/h']]);
+    const rows = trendsOf(base().build(), NOW)
+      .plots.find((p) => p.id === 'urine-balance')!
+      .rows.filter((r) => r.series === 'Urine output');
+    expect(rows.map((r) => [r.value, r.unit])).toEqual([
+      [40, 'mL/h'],
+      [30, 'mL/h'],
+    ]);
   });
   it('the cumulative balance ends at 500 mL given − 50 mL urine = 450 mL (administrations − urine only)', () => {
-    const rows = trendsOf(base().build(), NOW).plots.find((p) => p.id === 'urine-balance')!.rows.filter((r) => r.series === 'Cumulative balance');
+    const rows = trendsOf(base().build(), NOW)
+      .plots.find((p) => p.id === 'urine-balance')!
+      .rows.filter((r) => r.series === 'Cumulative balance');
     expect(rows.at(-1)).toMatchObject({ t: NOW, value: 450, unit: 'mL' });
     expect(rows.at(-1)!.note).toMatch(/urine output only/);
   });
   it('fluids as bars over their period, the draft bolus at now, a leg raise as its % change (4.0 → 4.6 = +15 %), a tidal volume challenge in points (8 → 12.5 = +4.5), PPV as a point', () => {
     const t = trendsOf(base().build(), NOW);
     const fluids = t.plots.find((p) => p.id === 'fluids')!.rows;
-    expect(fluids.map((r) => [r.series, r.value, r.mark])).toEqual([['Fluid given', 500, 'bar'], ['Draft bolus (now)', 250, 'draft']]);
+    expect(fluids.map((r) => [r.series, r.value, r.mark])).toEqual([
+      ['Fluid given', 500, 'bar'],
+      ['Draft bolus (now)', 250, 'draft'],
+    ]);
     expect(fluids[0]!.t0).toBe('2026-11-20T11:00:00.000Z');
     expect(fluids[1]!.t).toBe(NOW);
     const dyn = t.plots.find((p) => p.id === 'dynamic')!.rows;
-    expect(dyn.map((r) => [r.series, r.value, r.unit])).toEqual([['PPV', 14, '%'], ['Dynamic test', 15, '% change'], ['Dynamic test', 4.5, 'points change']]);
+    expect(dyn.map((r) => [r.series, r.value, r.unit])).toEqual([
+      ['PPV', 14, '%'],
+      ['Dynamic test', 15, '% change'],
+      ['Dynamic test', 4.5, 'points change'],
+    ]);
   });
 });
 
 describe('toPageView', () => {
   const words = loadCatalogue().catalogue;
   it('reads verdicts (catalogue words), confidence, coverage, gaps by their code and the order findings from a record', () => {
-    const snapshot = new SnapshotBuilder({ now: NOW }).exclude({ ref: 'Observation/x', reason: 'unknown-unit', detail: 'unit "mmhg" not known', kind: 'cvp' }).build();
+    const snapshot = new SnapshotBuilder({ now: NOW })
+      .exclude({ ref: 'Observation/x', reason: 'unknown-unit', detail: 'unit "mmhg" not known', kind: 'cvp' })
+      .build();
     const findings = [
       { ruleId: 'r.a', topic: 'responsiveness', marker: 'ppv', tier: 'dynamic', status: 'assessed', text: 'PPV 14 %', evidence: [] },
-      { ruleId: 'r.b', topic: 'responsiveness', marker: 'plr', status: 'not-assessed', gap: 'missing', text: 'PLR', reason: 'no leg raise recorded', evidence: [] },
-      { ruleId: 'r.c', topic: 'responsiveness', marker: 'cvp', status: 'not-assessed', gap: 'stale', text: 'CVP', reason: 'CVP stale (age 300 min, window 120 min)', evidence: [] },
-      { ruleId: 'r.d', topic: 'responsiveness', marker: 'svv', status: 'not-assessed', gap: 'confounded', text: 'SVV', reason: 'vasopressor changed', evidence: [] },
+      {
+        ruleId: 'r.b',
+        topic: 'responsiveness',
+        marker: 'plr',
+        status: 'not-assessed',
+        gap: 'missing',
+        text: 'PLR',
+        reason: 'no leg raise recorded',
+        evidence: [],
+      },
+      {
+        ruleId: 'r.c',
+        topic: 'responsiveness',
+        marker: 'cvp',
+        status: 'not-assessed',
+        gap: 'stale',
+        text: 'CVP',
+        reason: 'CVP stale (age 300 min, window 120 min)',
+        evidence: [],
+      },
+      {
+        ruleId: 'r.d',
+        topic: 'responsiveness',
+        marker: 'svv',
+        status: 'not-assessed',
+        gap: 'confounded',
+        text: 'SVV',
+        reason: 'vasopressor changed',
+        evidence: [],
+      },
       { ruleId: 'o.v', topic: 'order', part: 'volume', status: 'assessed', text: 'Ordered 500 mL', evidence: [] },
     ] satisfies Finding[];
     const v = toPageView({
       record: {
-        id: 'a', recordedAt: NOW, service: 's', hook: 'order-select', hookInstance: 'h', outcome: 'answered', rulesVersion: 'v1', snapshot, findings,
+        id: 'a',
+        recordedAt: NOW,
+        service: 's',
+        hook: 'order-select',
+        hookInstance: 'h',
+        outcome: 'answered',
+        rulesVersion: 'v1',
+        snapshot,
+        findings,
         advice: {
-          rulesVersion: 'v1', now: NOW, findings, ruleErrors: [],
+          rulesVersion: 'v1',
+          now: NOW,
+          findings,
+          ruleErrors: [],
           responsiveness: { value: 'likely', rationale: 'PPV high', decidingRules: ['r.a'], confidence: 'moderate' },
           tolerance: { value: 'not-known', rationale: 'too little data', decidingRules: [], coverage: { assessed: 1, total: 9 } },
         },
-        cards: [], cardKinds: {}, gathering: [], timings: { totalMs: 0, gatherMs: 0, fhirWaitMs: 0, assessMs: 0 },
+        cards: [],
+        cardKinds: {},
+        gathering: [],
+        timings: { totalMs: 0, gatherMs: 0, fhirWaitMs: 0, assessMs: 0 },
       },
-      words, cautions: ['c'], running: { rulesVersion: 'v2', thresholds: {} },
+      words,
+      cautions: ['c'],
+      running: { rulesVersion: 'v2', thresholds: {} },
     });
     expect(v.verdicts.map((d) => [d.key, d.value, d.coverage, d.confidence])).toEqual([
       ['responsiveness', 'Likely fluid responsive', '1 of 4 findings assessed', words.phrases.confidence.moderate],
       ['tolerance', 'Tolerance not known', '1 of 9 markers assessed', undefined],
     ]);
     expect(v.gaps.map((g) => [g.kind, g.why])).toEqual([
-      ['missing', 'no leg raise recorded'], ['stale', 'CVP stale (age 300 min, window 120 min)'], ['set aside', 'confounded: vasopressor changed'],
+      ['missing', 'no leg raise recorded'],
+      ['stale', 'CVP stale (age 300 min, window 120 min)'],
+      ['set aside', 'confounded: vasopressor changed'],
       ['set aside', 'unknown-unit: unit "mmhg" not known'],
     ]);
     expect(v.findings.find((f) => f.ruleId === 'r.a')?.tier).toBe('dynamic');

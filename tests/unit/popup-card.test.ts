@@ -13,11 +13,19 @@ import { ADVICE_CASES, type AdviceCase } from '../helpers/advice-fixtures.js';
 import { cardsOf, catalogue } from '../helpers/card-pipeline.js';
 import { allResources, bolusDraft, EID, NOW, PID } from '../helpers/hook-fixtures.js';
 
-const run = (c: AdviceCase, extra: { edit?: (a: Advice) => Advice; timeZone?: string; resources?: FhirResource[]; hook?: 'order-select' | 'patient-view' } = {}) =>
+const run = (
+  c: AdviceCase,
+  extra: { edit?: (a: Advice) => Advice; timeZone?: string; resources?: FhirResource[]; hook?: 'order-select' | 'patient-view' } = {},
+) =>
   cardsOf({
-    resources: extra.resources ?? allResources(ADVICE_CASES[c] as Record<string, FhirResource[]>), patientId: PID, encounterId: EID,
-    draftOrders: [bolusDraft()], now: NOW, hook: extra.hook ?? 'order-select',
-    ...(extra.edit ? { edit: extra.edit } : {}), ...(extra.timeZone ? { timeZone: extra.timeZone } : {}),
+    resources: extra.resources ?? allResources(ADVICE_CASES[c] as Record<string, FhirResource[]>),
+    patientId: PID,
+    encounterId: EID,
+    draftOrders: [bolusDraft()],
+    now: NOW,
+    hook: extra.hook ?? 'order-select',
+    ...(extra.edit ? { edit: extra.edit } : {}),
+    ...(extra.timeZone ? { timeZone: extra.timeZone } : {}),
   });
 const lines = (d = '') => d.split('\n').filter((l) => l.trim());
 const srOf = (s: Suggestion) => s.actions?.[0]?.resource as ServiceRequest;
@@ -26,9 +34,26 @@ const srOf = (s: Suggestion) => s.actions?.[0]?.resource as ServiceRequest;
 const PLR_DECIDES: WhatIf = {
   rows: [
     {
-      test: 'passive-leg-raise', feasible: true, notFeasible: [], outcomes: [
-        { result: 'positive', assumed: { measured: 'cardiacOutput', changePercent: 11, unit: '%' }, responsiveness: 'likely', action: 'proceed-and-reassess', headline: 'likely/adequate', changes: true },
-        { result: 'negative', assumed: { measured: 'cardiacOutput', changePercent: 9, unit: '%' }, responsiveness: 'unlikely', action: 'question-bolus', headline: 'unlikely/adequate', changes: true },
+      test: 'passive-leg-raise',
+      feasible: true,
+      notFeasible: [],
+      outcomes: [
+        {
+          result: 'positive',
+          assumed: { measured: 'cardiacOutput', changePercent: 11, unit: '%' },
+          responsiveness: 'likely',
+          action: 'proceed-and-reassess',
+          headline: 'likely/adequate',
+          changes: true,
+        },
+        {
+          result: 'negative',
+          assumed: { measured: 'cardiacOutput', changePercent: 9, unit: '%' },
+          responsiveness: 'unlikely',
+          action: 'question-bolus',
+          headline: 'unlikely/adequate',
+          changes: true,
+        },
       ],
     },
     { test: 'tidal-volume-challenge', feasible: false, notFeasible: ['not-ventilated', 'no-arterial-line'], outcomes: [] },
@@ -44,7 +69,9 @@ describe('the gap line and the recommended test come from advice.whatIf', () => 
     // The next-test kind alone would have named the mini fluid challenge (no flow monitor): the engine's answer wins.
     expect(advice.recommendation?.nextTest).toBe('mini-fluid-challenge');
     const card = cards[0]!;
-    expect(card.detail).toContain('A passive leg raise with cardiac output would decide it: a rise ≥ 10 % → give and reassess; less → reconsider the bolus.');
+    expect(card.detail).toContain(
+      'A passive leg raise with cardiac output would decide it: a rise ≥ 10 % → give and reassess; less → reconsider the bolus.',
+    );
     const rec = card.suggestions?.filter((s) => s.isRecommended) ?? [];
     expect(rec).toHaveLength(1);
     expect(rec[0]?.label).toBe('Passive leg raise with cardiac output before the 500 mL');
@@ -56,18 +83,24 @@ describe('the gap line and the recommended test come from advice.whatIf', () => 
     expect(cards[0]?.detail).not.toMatch(/would (decide|settle)/);
   });
 
-  it('without whatIf (the engine did not run): the verdict\'s next-test kind, never words matched in prose', () => {
-    const { cards, advice } = run('test-first', { edit: (a) => {
-      const { whatIf: _w, ...rest } = a;
-      return rest;
-    } });
+  it("without whatIf (the engine did not run): the verdict's next-test kind, never words matched in prose", () => {
+    const { cards, advice } = run('test-first', {
+      edit: (a) => {
+        const { whatIf: _w, ...rest } = a;
+        return rest;
+      },
+    });
     expect(advice.whatIf).toBeUndefined();
     expect(cards[0]?.detail).toContain('A mini fluid challenge with VTI would settle or confirm it.');
     expect(cards[0]?.suggestions?.find((s) => s.isRecommended)?.label).toMatch(/^Mini fluid challenge: 100 mL over 1 min with VTI/);
   });
 
   it('on a critical card the decisive test is recommended, never the smaller aliquot (a "give")', () => {
-    const whatIf: WhatIf = { ...PLR_DECIDES, rows: [{ ...PLR_DECIDES.rows[0]!, test: 'mini-fluid-challenge' }], decisive: 'mini-fluid-challenge' };
+    const whatIf: WhatIf = {
+      ...PLR_DECIDES,
+      rows: [{ ...PLR_DECIDES.rows[0]!, test: 'mini-fluid-challenge' }],
+      decisive: 'mini-fluid-challenge',
+    };
     const { cards } = run('critical', { edit: (a) => ({ ...a, whatIf }) });
     const card = cards[0]!;
     expect(card.indicator).toBe('critical');
@@ -79,21 +112,26 @@ describe('the gap line and the recommended test come from advice.whatIf', () => 
 });
 
 describe('the detail', () => {
-  it.each(Object.keys(ADVICE_CASES) as AdviceCase[])('%s: within 900 characters and 12 lines, no FHIR id, no code, one caution with the link', (c) => {
-    for (const hook of ['order-select', 'patient-view'] as const) {
-      const { cards, advice } = run(c, { hook, edit: (a) => ({ ...a, whatIf: PLR_DECIDES }) });
-      const d = cards[0]?.detail ?? '';
-      expect(d.length).toBeLessThanOrEqual(900);
-      expect(lines(d).length).toBeLessThanOrEqual(12);
-      expect(d).not.toMatch(/(Observation|Patient|Encounter|MedicationRequest)\//);
-      for (const f of advice.findings) expect(d).not.toContain(f.ruleId);
-      expect(d).not.toMatch(/likely\/|not-known|controlled-no-effort|passive-leg-raise|mini-fluid-challenge/);
-      expect(d.match(/Advisory only/g)).toHaveLength(1);
-      expect(lines(d).at(-1)).toBe('*Advisory only: local protocol and your own judgement come first.* [Full reasoning](https://tidemark.example.test/advice/adv-1?exp=1&sig=abc)');
-      // No word said twice in a row ("Tolerance poor: Poor tolerance:").
-      expect(d).not.toMatch(/\b(\w{4,})\b[^\n]{0,20}\b\1\b/i);
-    }
-  });
+  it.each(Object.keys(ADVICE_CASES) as AdviceCase[])(
+    '%s: within 900 characters and 12 lines, no FHIR id, no code, one caution with the link',
+    (c) => {
+      for (const hook of ['order-select', 'patient-view'] as const) {
+        const { cards, advice } = run(c, { hook, edit: (a) => ({ ...a, whatIf: PLR_DECIDES }) });
+        const d = cards[0]?.detail ?? '';
+        expect(d.length).toBeLessThanOrEqual(900);
+        expect(lines(d).length).toBeLessThanOrEqual(12);
+        expect(d).not.toMatch(/(Observation|Patient|Encounter|MedicationRequest)\//);
+        for (const f of advice.findings) expect(d).not.toContain(f.ruleId);
+        expect(d).not.toMatch(/likely\/|not-known|controlled-no-effort|passive-leg-raise|mini-fluid-challenge/);
+        expect(d.match(/Advisory only/g)).toHaveLength(1);
+        expect(lines(d).at(-1)).toBe(
+          '*Advisory only: local protocol and your own judgement come first.* [Full reasoning](https://tidemark.example.test/advice/adv-1?exp=1&sig=abc)',
+        );
+        // No word said twice in a row ("Tolerance poor: Poor tolerance:").
+        expect(d).not.toMatch(/\b(\w{4,})\b[^\n]{0,20}\b\1\b/i);
+      }
+    },
+  );
 
   it('times are local clock times in the configured zone, with the age (TIDEMARK_TIME_ZONE)', () => {
     // The leg raise is 12 min before NOW (14:00Z): 13:48 in UTC, 14:48 in Berlin (UTC+1 in November), 06:48 in Denver (UTC−7).
@@ -108,15 +146,36 @@ describe('the detail', () => {
     const { cards } = run('proceed', {
       resources,
       edit: (a) => {
-        const ev = { ref: 'Observation/wt-day', kind: 'bodyWeight', value: 72, unit: 'kg', effective: '2026-11-19T00:00:00.000Z', ageMinutes: 38 * 60 };
-        const f: Finding = { ruleId: 'test.weight', topic: 'tolerance', status: 'assessed', text: 'Weight 72 kg', evidence: [ev], domain: 'balance', limit: 'severe', harmSign: false, contextOnly: false };
-        return { ...a, findings: [...a.findings, f], ...(a.tolerance ? { tolerance: { ...a.tolerance, decidingRules: ['test.weight', ...a.tolerance.decidingRules] } } : {}) };
+        const ev = {
+          ref: 'Observation/wt-day',
+          kind: 'bodyWeight',
+          value: 72,
+          unit: 'kg',
+          effective: '2026-11-19T00:00:00.000Z',
+          ageMinutes: 38 * 60,
+        };
+        const f: Finding = {
+          ruleId: 'test.weight',
+          topic: 'tolerance',
+          status: 'assessed',
+          text: 'Weight 72 kg',
+          evidence: [ev],
+          domain: 'balance',
+          limit: 'severe',
+          harmSign: false,
+          contextOnly: false,
+        };
+        return {
+          ...a,
+          findings: [...a.findings, f],
+          ...(a.tolerance ? { tolerance: { ...a.tolerance, decidingRules: ['test.weight', ...a.tolerance.decidingRules] } } : {}),
+        };
       },
     });
     expect(cards[0]?.detail).toContain('* Weight 72 kg, 19 Nov, date only, time assumed');
   });
 
-  it('the questions are said once each, in the catalogue\'s words', () => {
+  it("the questions are said once each, in the catalogue's words", () => {
     const d = run('critical').cards[0]?.detail ?? '';
     expect(lines(d).slice(0, 3)).toEqual([
       `- **Responsiveness:** likely (${catalogue.popup.confidence.high})`,
@@ -127,8 +186,14 @@ describe('the detail', () => {
 
   it('the advice-not-available card obeys the same limits and says what could not be read', () => {
     const { cards } = cardsOf({
-      resources: [], patientId: PID, draftOrders: [bolusDraft()], now: NOW,
-      gathering: [{ key: 'vitals', source: 'fhir-server', status: 'timeout' }, { key: 'labs', source: 'fhir-server', status: 'timeout' }] as never,
+      resources: [],
+      patientId: PID,
+      draftOrders: [bolusDraft()],
+      now: NOW,
+      gathering: [
+        { key: 'vitals', source: 'fhir-server', status: 'timeout' },
+        { key: 'labs', source: 'fhir-server', status: 'timeout' },
+      ] as never,
     });
     const d = cards[0]?.detail ?? '';
     expect(cards[0]?.summary).toMatch(/^Fluid advice not available/);
@@ -148,8 +213,16 @@ describe('suggestions', () => {
     const sug = run('proceed', { edit: (a) => ({ ...a, whatIf: PLR_DECIDES }) }).cards[0]?.suggestions ?? [];
     const reassess = sug.find((s) => srOf(s).code?.coding?.[0]?.code === 'reassess-after-bolus');
     expect(reassess?.label).toBe('Reassess 15 min after the 500 mL bolus');
-    expect(srOf(reassess!)).toMatchObject({ occurrenceDateTime: at(45), authoredOn: NOW.toISOString(), status: 'draft', intent: 'proposal' });
-    expect(srOf(reassess!).code?.coding?.[0]).toMatchObject({ system: TIDEMARK_PROCEDURES, display: expect.stringMatching(/^Reassess fluid response/) });
+    expect(srOf(reassess!)).toMatchObject({
+      occurrenceDateTime: at(45),
+      authoredOn: NOW.toISOString(),
+      status: 'draft',
+      intent: 'proposal',
+    });
+    expect(srOf(reassess!).code?.coding?.[0]).toMatchObject({
+      system: TIDEMARK_PROCEDURES,
+      display: expect.stringMatching(/^Reassess fluid response/),
+    });
     const plr = sug.find((s) => srOf(s).code?.coding?.[0]?.code === 'passive-leg-raise');
     expect(srOf(plr!).occurrenceDateTime).toBe(NOW.toISOString());
   });
@@ -168,7 +241,10 @@ describe('suggestions', () => {
     // SNOMED CT International Edition: 16310003 |Ultrasonography (procedure)|, preferred term "Ultrasonography".
     expect(us.code?.coding).toEqual([{ system: 'http://snomed.info/sct', code: '16310003', display: 'Ultrasonography' }]);
     expect(us.code?.text).toMatch(/ventricular function, IVC, lung B-lines/);
-    expect(sug[1]).toMatchObject({ label: 'Withdraw the 500 mL bolus order', actions: [{ type: 'delete', resourceId: 'MedicationRequest/draft-bolus-1' }] });
+    expect(sug[1]).toMatchObject({
+      label: 'Withdraw the 500 mL bolus order',
+      actions: [{ type: 'delete', resourceId: 'MedicationRequest/draft-bolus-1' }],
+    });
   });
 
   it('at most one suggestion is recommended on every card', () => {

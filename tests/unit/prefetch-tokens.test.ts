@@ -3,13 +3,23 @@ import { describe, expect, it } from 'vitest';
 import { resolvePrefetchTemplate } from '../../src/hooks/prefetch-tokens.js';
 import { discoveryDocument, PREFETCH } from '../../src/hooks/services.js';
 
-const ctx = { userId: 'Practitioner/prac-9', patientId: 'pat-1', encounterId: 'enc-2', selections: ['MedicationRequest/m1'], draftOrders: { resourceType: 'Bundle' } };
+const ctx = {
+  userId: 'Practitioner/prac-9',
+  patientId: 'pat-1',
+  encounterId: 'enc-2',
+  selections: ['MedicationRequest/m1'],
+  draftOrders: { resourceType: 'Bundle' },
+};
 
 describe('resolvePrefetchTemplate', () => {
   it.each([
     ['Patient/{{context.patientId}}', 'patient-view', 'Patient/pat-1'],
     ['Encounter/{{context.encounterId}}', 'order-select', 'Encounter/enc-2'],
-    ['Observation?patient={{context.patientId}}&code=http://loinc.org|8867-4&_sort=-date&_count=1', 'order-sign', 'Observation?patient=pat-1&code=http://loinc.org|8867-4&_sort=-date&_count=1'],
+    [
+      'Observation?patient={{context.patientId}}&code=http://loinc.org|8867-4&_sort=-date&_count=1',
+      'order-sign',
+      'Observation?patient=pat-1&code=http://loinc.org|8867-4&_sort=-date&_count=1',
+    ],
     ['Practitioner/{{userPractitionerId}}', 'order-select', 'Practitioner/prac-9'],
     ['{{context.userId}}', 'patient-view', 'Practitioner/prac-9'],
     ['Observation?patient={{ context.patientId }}', 'patient-view', 'Observation?patient=pat-1'],
@@ -37,7 +47,10 @@ describe('resolvePrefetchTemplate', () => {
   });
 
   it('values in a query string are URL-encoded', () => {
-    const r = resolvePrefetchTemplate('Observation?patient={{context.patientId}}', 'patient-view', { userId: 'Practitioner/a', patientId: 'a&b=c' });
+    const r = resolvePrefetchTemplate('Observation?patient={{context.patientId}}', 'patient-view', {
+      userId: 'Practitioner/a',
+      patientId: 'a&b=c',
+    });
     expect(r).toEqual({ ok: true, value: 'Observation?patient=a%26b%3Dc' });
   });
 });
@@ -47,7 +60,8 @@ describe('discovery prefetch templates', () => {
     for (const s of discoveryDocument().services) {
       for (const t of Object.values(s.prefetch ?? {})) {
         expect(t).not.toMatch(/sort:desc|sort:asc/);
-        for (const m of t.matchAll(/\{\{\s*([^}]*?)\s*\}\}/g)) expect(m[1]).toMatch(/^(context\.(patientId|encounterId|userId)|user(Practitioner|PractitionerRole|Patient|RelatedPerson)Id)$/);
+        for (const m of t.matchAll(/\{\{\s*([^}]*?)\s*\}\}/g))
+          expect(m[1]).toMatch(/^(context\.(patientId|encounterId|userId)|user(Practitioner|PractitionerRole|Patient|RelatedPerson)Id)$/);
         expect(resolvePrefetchTemplate(t, s.hook as 'patient-view', ctx).ok).toBe(true);
       }
     }

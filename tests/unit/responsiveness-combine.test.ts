@@ -7,7 +7,10 @@ import { describe, expect, it } from 'vitest';
 import type { ResponsivenessFinding } from '../../src/assess/common/finding.js';
 import { combineResponsiveness } from '../../src/assess/responsiveness/combine.js';
 import {
-  assessResponsiveness, DEFAULT_RESPONSIVENESS_THRESHOLDS, RESPONSIVENESS_RULE_IDS, responsivenessThresholdsSchema,
+  assessResponsiveness,
+  DEFAULT_RESPONSIVENESS_THRESHOLDS,
+  RESPONSIVENESS_RULE_IDS,
+  responsivenessThresholdsSchema,
 } from '../../src/assess/responsiveness/index.js';
 import type { PatientSnapshot } from '../../src/snapshot/types.js';
 import { contextOf, responsivenessContext } from '../helpers/rule-context.js';
@@ -25,12 +28,21 @@ const cvpLow = (b: SnapshotBuilder) => b.measure('cvp', 2, { ageMin: 5 });
 const cvpHigh = (b: SnapshotBuilder) => b.measure('cvp', 15, { ageMin: 5 });
 const cvpMid = (b: SnapshotBuilder) => b.measure('cvp', 8, { ageMin: 5 });
 const ivcSpont = (b: SnapshotBuilder, mx: number, mn: number) =>
-  b.coded('ventilationMode', 'spontaneous', { ageMin: 30 }).measure('ivcDiameterMax', mx, { ageMin: 20 }).measure('ivcDiameterMin', mn, { ageMin: 20 });
+  b
+    .coded('ventilationMode', 'spontaneous', { ageMin: 30 })
+    .measure('ivcDiameterMax', mx, { ageMin: 20 })
+    .measure('ivcDiameterMin', mn, { ageMin: 20 });
 const plrPp = (b: SnapshotBuilder, after: number) => b.dynamicTest('plr', 'pulsePressure', 50, after, { ageMin: 10 });
-const validPpv = (b: SnapshotBuilder, ppv: number) => b
-  .coded('ventilationMode', 'controlled-no-effort', { ageMin: 20 }).coded('heartRhythm', 'sinus', { ageMin: 20 })
-  .coded('chestStatus', 'closed', { ageMin: 20 }).measure('tidalVolume', 600, { ageMin: 10 }).measure('bodyHeight', 175, { ageMin: 900 })
-  .measure('intraAbdominalPressure', 7, { ageMin: 60 }).vitals({ hr: 100, rr: 20 }, { ageMin: 5 }).measure('ppv', ppv, { ageMin: 5 });
+const validPpv = (b: SnapshotBuilder, ppv: number) =>
+  b
+    .coded('ventilationMode', 'controlled-no-effort', { ageMin: 20 })
+    .coded('heartRhythm', 'sinus', { ageMin: 20 })
+    .coded('chestStatus', 'closed', { ageMin: 20 })
+    .measure('tidalVolume', 600, { ageMin: 10 })
+    .measure('bodyHeight', 175, { ageMin: 900 })
+    .measure('intraAbdominalPressure', 7, { ageMin: 60 })
+    .vitals({ hr: 100, rr: 20 }, { ageMin: 5 })
+    .measure('ppv', ppv, { ageMin: 5 });
 
 describe('tiers and confidence', () => {
   it('a flow-based dynamic test decides with high confidence', () => {
@@ -39,7 +51,11 @@ describe('tiers and confidence', () => {
     expect(verdict(plrAgainst(new SnapshotBuilder()))).toMatchObject({ value: 'unlikely', confidence: 'high' });
   });
   it('a valid PPV alone decides with moderate confidence', () => {
-    expect(verdict(validPpv(new SnapshotBuilder(), 16))).toMatchObject({ value: 'likely', confidence: 'moderate', decidingRules: ['responsiveness.ppv'] });
+    expect(verdict(validPpv(new SnapshotBuilder(), 16))).toMatchObject({
+      value: 'likely',
+      confidence: 'moderate',
+      decidingRules: ['responsiveness.ppv'],
+    });
   });
   it('dynamic outranks static: PLR for + CVP 15 against → likely, the CVP named as corroborating only', () => {
     const v = verdict(cvpHigh(plrFor(new SnapshotBuilder())));
@@ -97,7 +113,10 @@ describe('tiers and confidence', () => {
   });
   it('a fluid of 50 mL (below 100 mL) does not set a PLR aside; a vasoactive started after it does', () => {
     expect(verdict(plrFor(new SnapshotBuilder()).fluid({ volumeMl: 50, startAgeMin: 8, endAgeMin: 7 })).value).toBe('likely');
-    expect(verdict(plrFor(new SnapshotBuilder()).vasoactive({ drug: 'norepinephrine', startAgeMin: 5, rate: { value: 0.1, unit: 'ug/kg/min' } })).value).toBe('indeterminate');
+    expect(
+      verdict(plrFor(new SnapshotBuilder()).vasoactive({ drug: 'norepinephrine', startAgeMin: 5, rate: { value: 0.1, unit: 'ug/kg/min' } }))
+        .value,
+    ).toBe('indeterminate');
   });
 });
 
@@ -110,22 +129,50 @@ describe('next test (a kind from a closed set)', () => {
   });
   it('controlled, sinus, low tidal volume with a PPV: tidal volume challenge (Myatra 2017)', () => {
     const b = new SnapshotBuilder({ sex: 'male' })
-      .coded('ventilationMode', 'controlled-no-effort', { ageMin: 10 }).coded('heartRhythm', 'sinus', { ageMin: 10 })
-      .measure('tidalVolume', 420, { ageMin: 10 }).measure('bodyHeight', 175, { ageMin: 900 }).measure('ppv', 6, { ageMin: 5 });
+      .coded('ventilationMode', 'controlled-no-effort', { ageMin: 10 })
+      .coded('heartRhythm', 'sinus', { ageMin: 10 })
+      .measure('tidalVolume', 420, { ageMin: 10 })
+      .measure('bodyHeight', 175, { ageMin: 900 })
+      .measure('ppv', 6, { ageMin: 5 });
     expect(verdict(b).nextTest).toBe('tidal-volume-challenge');
   });
   it('intra-abdominal hypertension: mini fluid challenge even with a flow monitor (Mahjoub 2010)', () => {
-    const v = verdict(new SnapshotBuilder().measure('cardiacOutput', 5, { ageMin: 30 }).measure('intraAbdominalPressure', 16, { ageMin: 30 }));
+    const v = verdict(
+      new SnapshotBuilder().measure('cardiacOutput', 5, { ageMin: 30 }).measure('intraAbdominalPressure', 16, { ageMin: 30 }),
+    );
     expect(v.nextTest).toBe('mini-fluid-challenge');
   });
 });
 
 describe('combineResponsiveness on hand-made findings', () => {
-  const f = (ruleId: string, direction: ResponsivenessFinding['direction'], tier: ResponsivenessFinding['tier'], extra: Partial<ResponsivenessFinding> = {}): ResponsivenessFinding =>
-    ({ ruleId, topic: 'responsiveness', marker: 'ivc', status: 'assessed', ...(direction ? { direction } : {}), ...(tier ? { tier } : {}), text: ruleId, evidence: [], ...extra });
+  const f = (
+    ruleId: string,
+    direction: ResponsivenessFinding['direction'],
+    tier: ResponsivenessFinding['tier'],
+    extra: Partial<ResponsivenessFinding> = {},
+  ): ResponsivenessFinding => ({
+    ruleId,
+    topic: 'responsiveness',
+    marker: 'ivc',
+    status: 'assessed',
+    ...(direction ? { direction } : {}),
+    ...(tier ? { tier } : {}),
+    text: ruleId,
+    evidence: [],
+    ...extra,
+  });
   it('not-assessed and context findings never vote', () => {
-    const v = combineResponsiveness([f('a', 'for', 'dynamic', { status: 'not-assessed' }), f('b', 'for', 'context')], T, 'passive-leg-raise');
-    expect(v).toEqual({ value: 'indeterminate', rationale: 'No usable marker of fluid responsiveness.', decidingRules: [], nextTest: 'passive-leg-raise' });
+    const v = combineResponsiveness(
+      [f('a', 'for', 'dynamic', { status: 'not-assessed' }), f('b', 'for', 'context')],
+      T,
+      'passive-leg-raise',
+    );
+    expect(v).toEqual({
+      value: 'indeterminate',
+      rationale: 'No usable marker of fluid responsiveness.',
+      decidingRules: [],
+      nextTest: 'passive-leg-raise',
+    });
   });
   it('staticAgreementMinCount is configurable', () => {
     const fs = [f('x', 'for', 'static'), f('y', 'for', 'static')];
@@ -133,7 +180,11 @@ describe('combineResponsiveness on hand-made findings', () => {
     expect(combineResponsiveness(fs, { staticAgreementMinCount: 3 }, 'passive-leg-raise').value).toBe('indeterminate');
   });
   it('assumptions of the assessed findings are carried on the verdict', () => {
-    const v = combineResponsiveness([f('p', 'for', 'dynamic', { marker: 'ppv', assumptions: ['chest status not recorded: assumed closed'] })], T, 'passive-leg-raise');
+    const v = combineResponsiveness(
+      [f('p', 'for', 'dynamic', { marker: 'ppv', assumptions: ['chest status not recorded: assumed closed'] })],
+      T,
+      'passive-leg-raise',
+    );
     expect(v.assumptions).toEqual(['chest status not recorded: assumed closed']);
   });
 });
@@ -161,10 +212,23 @@ describe('output shape', () => {
   });
   it('thresholds: parse({}) gives the documented defaults; bad values are rejected', () => {
     expect(DEFAULT_RESPONSIVENESS_THRESHOLDS).toMatchObject({
-      ppvThresholdPercent: 13, ppvGreyZoneLowPercent: 9, svvThresholdPercent: 11.6, minTidalVolumeMlPerKgPbw: 8,
-      minHeartRateRespiratoryRateRatio: 3.6, iahThresholdMmHg: 12, plrFlowRisePercent: 10, miniFluidChallengeRisePercent: 10,
-      eeoFlowRisePercent: 5, tidalVolumeChallengePpvRisePoints: 3.5, ivcCollapsibilityPercent: 40, ivcDistensibilityBarbierPercent: 18,
-      ivcDistensibilityFeisselPercent: 12, cvpLowMmHg: 3, cvpHighMmHg: 12, denseMaxGapMin: 5, flowAfterEndMaxMin: 10,
+      ppvThresholdPercent: 13,
+      ppvGreyZoneLowPercent: 9,
+      svvThresholdPercent: 11.6,
+      minTidalVolumeMlPerKgPbw: 8,
+      minHeartRateRespiratoryRateRatio: 3.6,
+      iahThresholdMmHg: 12,
+      plrFlowRisePercent: 10,
+      miniFluidChallengeRisePercent: 10,
+      eeoFlowRisePercent: 5,
+      tidalVolumeChallengePpvRisePoints: 3.5,
+      ivcCollapsibilityPercent: 40,
+      ivcDistensibilityBarbierPercent: 18,
+      ivcDistensibilityFeisselPercent: 12,
+      cvpLowMmHg: 3,
+      cvpHighMmHg: 12,
+      denseMaxGapMin: 5,
+      flowAfterEndMaxMin: 10,
     });
     expect(responsivenessThresholdsSchema.safeParse({ ppvThresholdPercent: -1 }).success).toBe(false);
     expect(responsivenessThresholdsSchema.safeParse({ ivcDistensibilityMethod: 'other' }).success).toBe(false);

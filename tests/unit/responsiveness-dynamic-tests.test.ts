@@ -13,8 +13,10 @@ import { SnapshotBuilder } from '../helpers/snapshot-builder.js';
 
 const T = responsivenessThresholdsSchema.parse({});
 const ID: Record<DynamicTestKind, string> = {
-  plr: 'responsiveness.plr', miniFluidChallenge: 'responsiveness.mini-fluid-challenge',
-  endExpiratoryOcclusion: 'responsiveness.end-expiratory-occlusion', tidalVolumeChallenge: 'responsiveness.tidal-volume-challenge',
+  plr: 'responsiveness.plr',
+  miniFluidChallenge: 'responsiveness.mini-fluid-challenge',
+  endExpiratoryOcclusion: 'responsiveness.end-expiratory-occlusion',
+  tidalVolumeChallenge: 'responsiveness.tidal-volume-challenge',
 };
 
 function find(b: SnapshotBuilder, id: string): Finding {
@@ -22,7 +24,13 @@ function find(b: SnapshotBuilder, id: string): Finding {
   if (!f) throw new Error(`no finding ${id}`);
   return f;
 }
-function test1(kind: DynamicTestKind, measured: DynamicMeasured, before: number, after: number, opts: { ageMin?: number; unit?: string; b?: SnapshotBuilder } = {}) {
+function test1(
+  kind: DynamicTestKind,
+  measured: DynamicMeasured,
+  before: number,
+  after: number,
+  opts: { ageMin?: number; unit?: string; b?: SnapshotBuilder } = {},
+) {
   const b = opts.b ?? new SnapshotBuilder();
   b.dynamicTest(kind, measured, before, after, { ageMin: opts.ageMin ?? 10, ...(opts.unit ? { unit: opts.unit } : {}) });
   return find(b, ID[kind]);
@@ -33,8 +41,13 @@ const ventilated = (mode = 'controlled-no-effort', rhythm = 'sinus') =>
 
 describe('passive leg raising (Monnet 2016: CO rise ≥ 10 %)', () => {
   it.each([
-    ['cardiacOutput', 4.0, 4.5, 'for'], ['cardiacOutput', 5, 5.5, 'for'], ['cardiacOutput', 5, 5.49, 'against'],
-    ['cardiacIndex', 2.5, 2.75, 'for'], ['strokeVolume', 50, 55, 'for'], ['strokeVolume', 50, 52, 'against'], ['vti', 20, 22, 'for'],
+    ['cardiacOutput', 4.0, 4.5, 'for'],
+    ['cardiacOutput', 5, 5.5, 'for'],
+    ['cardiacOutput', 5, 5.49, 'against'],
+    ['cardiacIndex', 2.5, 2.75, 'for'],
+    ['strokeVolume', 50, 55, 'for'],
+    ['strokeVolume', 50, 52, 'against'],
+    ['vti', 20, 22, 'for'],
   ] as const)('%s %s → %s: %s (dynamic)', (measured, before, after, direction) => {
     const f = test1('plr', measured, before, after);
     expect(f.status).toBe('assessed');
@@ -54,7 +67,9 @@ describe('passive leg raising (Monnet 2016: CO rise ≥ 10 %)', () => {
     expect(test1('plr', 'pulsePressure', 50, 55.9).direction).toBe('against');
   });
   it('a flow read-out is preferred to a newer pulse-pressure one', () => {
-    const b = new SnapshotBuilder().dynamicTest('plr', 'cardiacOutput', 4, 4.1, { ageMin: 40 }).dynamicTest('plr', 'pulsePressure', 50, 60, { ageMin: 5 });
+    const b = new SnapshotBuilder()
+      .dynamicTest('plr', 'cardiacOutput', 4, 4.1, { ageMin: 40 })
+      .dynamicTest('plr', 'pulsePressure', 50, 60, { ageMin: 5 });
     const f = find(b, ID.plr);
     expect(f.tier).toBe('dynamic');
     expect(f.direction).toBe('against');
@@ -78,7 +93,11 @@ describe('passive leg raising (Monnet 2016: CO rise ≥ 10 %)', () => {
 
 describe('mini fluid challenge (Muller 2011: ΔVTI ≥ 10 %)', () => {
   it.each([
-    ['vti', 18, 20, 'for'], ['vti', 20, 22, 'for'], ['vti', 20, 21.9, 'against'], ['strokeVolume', 60, 66, 'for'], ['cardiacOutput', 5, 5.2, 'against'],
+    ['vti', 18, 20, 'for'],
+    ['vti', 20, 22, 'for'],
+    ['vti', 20, 21.9, 'against'],
+    ['strokeVolume', 60, 66, 'for'],
+    ['cardiacOutput', 5, 5.2, 'against'],
   ] as const)('%s %s → %s: %s', (measured, before, after, direction) => {
     const f = test1('miniFluidChallenge', measured, before, after);
     expect(f.direction).toBe(direction);
@@ -116,7 +135,11 @@ describe('end-expiratory occlusion (Monnet 2009: CI rise > 5 %)', () => {
 
 describe('tidal volume challenge (Myatra 2017: ΔPPV ≥ 3.5 points)', () => {
   it.each([
-    ['ppv', 6, 10, 'for'], ['ppv', 6, 9.5, 'for'], ['ppv', 6, 9.25, 'against'], ['svv', 8, 10.5, 'for'], ['svv', 8, 10.25, 'against'],
+    ['ppv', 6, 10, 'for'],
+    ['ppv', 6, 9.5, 'for'],
+    ['ppv', 6, 9.25, 'against'],
+    ['svv', 8, 10.5, 'for'],
+    ['svv', 8, 10.25, 'against'],
   ] as const)('%s %s → %s: %s', (measured, before, after, direction) => {
     const f = test1('tidalVolumeChallenge', measured, before, after, { b: ventilated() });
     expect(f.status).toBe('assessed');

@@ -7,7 +7,11 @@
  * for both questions, docs/clinical-logic).
  */
 import { describe, expect, it } from 'vitest';
-import { assessResponsiveness, responsivenessThresholdsSchema, type ResponsivenessThresholds } from '../../src/assess/responsiveness/index.js';
+import {
+  assessResponsiveness,
+  responsivenessThresholdsSchema,
+  type ResponsivenessThresholds,
+} from '../../src/assess/responsiveness/index.js';
 import type { ResponsivenessFinding as Finding } from '../../src/assess/common/finding.js';
 import { responsivenessContext } from '../helpers/rule-context.js';
 import { SnapshotBuilder } from '../helpers/snapshot-builder.js';
@@ -22,7 +26,9 @@ const IVC = 'responsiveness.ivc';
 function ivc(maxCm: number, minCm: number, mode: string | null, opts: { ageMin?: number; minAgeMin?: number; modeAgeMin?: number } = {}) {
   const b = new SnapshotBuilder();
   if (mode !== null) b.coded('ventilationMode', mode, { ageMin: opts.modeAgeMin ?? 30 });
-  b.measure('ivcDiameterMax', maxCm, { ageMin: opts.ageMin ?? 20 }).measure('ivcDiameterMin', minCm, { ageMin: opts.minAgeMin ?? opts.ageMin ?? 20 });
+  b.measure('ivcDiameterMax', maxCm, { ageMin: opts.ageMin ?? 20 }).measure('ivcDiameterMin', minCm, {
+    ageMin: opts.minAgeMin ?? opts.ageMin ?? 20,
+  });
   return b;
 }
 
@@ -92,13 +98,17 @@ describe('IVC not assessed', () => {
     expect(find(ivc(2.2, 1.8, 'spontaneous', { modeAgeMin: 300 }), IVC).reason).toMatch(/ventilation state stale \(age 5 h, window 4 h\)/);
   });
   it('ventilation state changed since the measurement', () => {
-    const b = ivc(2.2, 1.8, 'controlled-no-effort', { ageMin: 100, modeAgeMin: 120 }).coded('ventilationMode', 'spontaneous', { ageMin: 30 });
+    const b = ivc(2.2, 1.8, 'controlled-no-effort', { ageMin: 100, modeAgeMin: 120 }).coded('ventilationMode', 'spontaneous', {
+      ageMin: 30,
+    });
     const f = find(b, IVC);
     expect(f.status).toBe('not-assessed');
     expect(f.text).toMatch(/changed around or since the measurement/);
   });
   it('a state change before the measurement does not matter', () => {
-    const b = ivc(2.0, 0.9, 'spontaneous', { ageMin: 30, modeAgeMin: 60 }).coded('ventilationMode', 'controlled-no-effort', { ageMin: 200 });
+    const b = ivc(2.0, 0.9, 'spontaneous', { ageMin: 30, modeAgeMin: 60 }).coded('ventilationMode', 'controlled-no-effort', {
+      ageMin: 200,
+    });
     expect(find(b, IVC).direction).toBe('for');
   });
   it('stale: 361 min > window 360', () => {
@@ -120,8 +130,13 @@ describe('IVC not assessed', () => {
 describe('CVP at the extremes only', () => {
   const cvp = (v: number, ageMin = 10) => find(new SnapshotBuilder().measure('cvp', v, { ageMin }), 'responsiveness.cvp');
   it.each([
-    [-2, 'for', 'static'], [3, 'for', 'static'], [3.1, 'neutral', 'static'], [8, 'neutral', 'static'],
-    [11.9, 'neutral', 'static'], [12, 'against', 'static'], [18, 'against', 'static'],
+    [-2, 'for', 'static'],
+    [3, 'for', 'static'],
+    [3.1, 'neutral', 'static'],
+    [8, 'neutral', 'static'],
+    [11.9, 'neutral', 'static'],
+    [12, 'against', 'static'],
+    [18, 'against', 'static'],
   ] as const)('CVP %s mmHg → %s (%s)', (v, direction, tier) => {
     const f = cvp(v);
     expect(f.status).toBe('assessed');

@@ -54,7 +54,8 @@ describe('hourly charting: a weak static marker', () => {
     expect(find(hourly({ map: 60, hr: 120 }, { map: 64.5, hr: 115 })).direction).toBe('neutral');
   });
   it('MAP is computed from SBP/DBP when no measured MAP exists (DBP + (SBP − DBP)/3)', () => {
-    const b = new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 100, endAgeMin: 80 })
+    const b = new SnapshotBuilder()
+      .fluid({ volumeMl: 500, startAgeMin: 100, endAgeMin: 80 })
       .vitals({ sbp: 90, dbp: 45, hr: 120 }, { ageMin: 130 }) // MAP 60
       .vitals({ sbp: 100, dbp: 55, hr: 110 }, { ageMin: 30 }); // MAP 70
     expect(find(b)).toMatchObject({ direction: 'for', values: { mapChangeMmHg: 10 } });
@@ -65,8 +66,10 @@ describe('hourly charting: a weak static marker', () => {
     expect(f.reason).toMatch(/no MAP after, no heart rate after/);
   });
   it('readings outside the 90-min windows do not count', () => {
-    const b = new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 100, endAgeMin: 80 })
-      .vitals({ map: 60, hr: 120 }, { ageMin: 191 }).vitals({ map: 70, hr: 110 }, { ageMin: 30 });
+    const b = new SnapshotBuilder()
+      .fluid({ volumeMl: 500, startAgeMin: 100, endAgeMin: 80 })
+      .vitals({ map: 60, hr: 120 }, { ageMin: 191 })
+      .vitals({ map: 70, hr: 110 }, { ageMin: 30 });
     expect(find(b).gap).toBe('too-few-readings');
   });
 });
@@ -99,7 +102,9 @@ describe('confounders and events', () => {
       .vasoactive({ drug: 'norepinephrine', startAgeMin: 300, endAgeMin: 90, rate: { value: 0.1, unit: 'ug/kg/min' } })
       .vasoactive({ drug: 'norepinephrine', startAgeMin: 90, rate: { value: 0.2, unit: 'ug/kg/min' } });
     expect(find(b).reason).toMatch(/norepinephrine rate changed/);
-    expect(find(responded().vasoactive({ drug: 'norepinephrine', startAgeMin: 400, rate: { value: 0.1, unit: 'ug/kg/min' } })).direction).toBe('for');
+    expect(
+      find(responded().vasoactive({ drug: 'norepinephrine', startAgeMin: 400, rate: { value: 0.1, unit: 'ug/kg/min' } })).direction,
+    ).toBe('for');
   });
   it('a later fluid of ≥ 100 mL sets the reading aside', () => {
     const f = find(responded().fluid({ volumeMl: 200, startAgeMin: 20, endAgeMin: 15 }));
@@ -119,7 +124,9 @@ describe('which fluid counts', () => {
   it('too small (< 250 mL), too slow (> 60 min) or still running → not a bolus', () => {
     expect(find(new SnapshotBuilder().fluid({ volumeMl: 249, startAgeMin: 100, endAgeMin: 80 })).gap).toBe('missing');
     expect(find(new SnapshotBuilder().fluid({ volumeMl: 1000, startAgeMin: 200, endAgeMin: 100 })).gap).toBe('missing');
-    expect(find(new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 10, endAgeMin: -10, status: 'in-progress' })).gap).toBe('missing');
+    expect(find(new SnapshotBuilder().fluid({ volumeMl: 500, startAgeMin: 10, endAgeMin: -10, status: 'in-progress' })).gap).toBe(
+      'missing',
+    );
   });
   it('exactly 250 mL over exactly 60 min counts', () => {
     expect(find(new SnapshotBuilder().fluid({ volumeMl: 250, startAgeMin: 140, endAgeMin: 80 })).values?.bolusVolumeMl).toBe(250);

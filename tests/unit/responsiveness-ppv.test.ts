@@ -7,7 +7,11 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { ResponsivenessFinding as Finding } from '../../src/assess/common/finding.js';
-import { assessResponsiveness, responsivenessThresholdsSchema, type ResponsivenessThresholds } from '../../src/assess/responsiveness/index.js';
+import {
+  assessResponsiveness,
+  responsivenessThresholdsSchema,
+  type ResponsivenessThresholds,
+} from '../../src/assess/responsiveness/index.js';
 import { responsivenessContext } from '../helpers/rule-context.js';
 import { SnapshotBuilder, type Sex } from '../helpers/snapshot-builder.js';
 
@@ -23,28 +27,48 @@ function find(b: SnapshotBuilder, id: string, t: ResponsivenessThresholds = T): 
 }
 
 interface State {
-  sex?: Sex; mode?: string | null; rhythm?: string | null; chest?: string | null; vtMl?: number | null; heightCm?: number | null;
-  iap?: number | null; hr?: number | null; rr?: number | null;
+  sex?: Sex;
+  mode?: string | null;
+  rhythm?: string | null;
+  chest?: string | null;
+  vtMl?: number | null;
+  heightCm?: number | null;
+  iap?: number | null;
+  hr?: number | null;
+  rr?: number | null;
 }
 /** Invented ventilated patient meeting every condition unless told otherwise (null = not recorded). */
 function patient(s: State = {}): SnapshotBuilder {
   const b = new SnapshotBuilder({ sex: s.sex ?? 'male' });
   const v = <K extends keyof State>(k: K, d: NonNullable<State[K]>) => (s[k] === undefined ? d : s[k]);
-  const mode = v('mode', 'controlled-no-effort'); if (mode !== null) b.coded('ventilationMode', mode as string, { ageMin: 20 });
-  const rhythm = v('rhythm', 'sinus'); if (rhythm !== null) b.coded('heartRhythm', rhythm as string, { ageMin: 20 });
-  const chest = v('chest', 'closed'); if (chest !== null) b.coded('chestStatus', chest as string, { ageMin: 120 });
-  const vt = v('vtMl', 600); if (vt !== null) b.measure('tidalVolume', vt as number, { ageMin: 10 });
-  const h = v('heightCm', 175); if (h !== null) b.measure('bodyHeight', h as number, { ageMin: 5000 });
-  const iap = v('iap', 8); if (iap !== null) b.measure('intraAbdominalPressure', iap as number, { ageMin: 90 });
-  const hr = v('hr', 100); if (hr !== null) b.measure('heartRate', hr as number, { ageMin: 5 });
-  const rr = v('rr', 20); if (rr !== null) b.measure('respiratoryRate', rr as number, { ageMin: 5 });
+  const mode = v('mode', 'controlled-no-effort');
+  if (mode !== null) b.coded('ventilationMode', mode as string, { ageMin: 20 });
+  const rhythm = v('rhythm', 'sinus');
+  if (rhythm !== null) b.coded('heartRhythm', rhythm as string, { ageMin: 20 });
+  const chest = v('chest', 'closed');
+  if (chest !== null) b.coded('chestStatus', chest as string, { ageMin: 120 });
+  const vt = v('vtMl', 600);
+  if (vt !== null) b.measure('tidalVolume', vt as number, { ageMin: 10 });
+  const h = v('heightCm', 175);
+  if (h !== null) b.measure('bodyHeight', h as number, { ageMin: 5000 });
+  const iap = v('iap', 8);
+  if (iap !== null) b.measure('intraAbdominalPressure', iap as number, { ageMin: 90 });
+  const hr = v('hr', 100);
+  if (hr !== null) b.measure('heartRate', hr as number, { ageMin: 5 });
+  const rr = v('rr', 20);
+  if (rr !== null) b.measure('respiratoryRate', rr as number, { ageMin: 5 });
   return b;
 }
 const ppv = (b: SnapshotBuilder, value: number, ageMin = 5) => find(b.measure('ppv', value, { ageMin }), 'responsiveness.ppv');
 
 describe('PPV value against the thresholds (all validity conditions met)', () => {
   it.each([
-    [20, 'for'], [13, 'for'], [12.9, 'neutral'], [9, 'neutral'], [8.9, 'against'], [3, 'against'],
+    [20, 'for'],
+    [13, 'for'],
+    [12.9, 'neutral'],
+    [9, 'neutral'],
+    [8.9, 'against'],
+    [3, 'against'],
   ] as const)('PPV %s %% → %s (dynamic)', (value, direction) => {
     const f = ppv(patient(), value);
     expect(f.status).toBe('assessed');
@@ -181,13 +205,29 @@ describe('PPV validity boundaries', () => {
   it('the evidence lists the validity data used', () => {
     const f = ppv(patient(), 18);
     const kinds = f.evidence.map((e) => e.kind).sort();
-    expect(kinds).toEqual(['bodyHeight', 'chestStatus', 'heartRate', 'heartRhythm', 'intraAbdominalPressure', 'ppv', 'respiratoryRate', 'tidalVolume', 'ventilationMode']);
+    expect(kinds).toEqual([
+      'bodyHeight',
+      'chestStatus',
+      'heartRate',
+      'heartRhythm',
+      'intraAbdominalPressure',
+      'ppv',
+      'respiratoryRate',
+      'tidalVolume',
+      'ventilationMode',
+    ]);
   });
 });
 
 describe('SVV (Marik 2009 threshold 11.6 %, same validity conditions)', () => {
   const svv = (b: SnapshotBuilder, value: number, ageMin = 5) => find(b.measure('svv', value, { ageMin }), 'responsiveness.svv');
-  it.each([[14, 'for'], [11.6, 'for'], [11.5, 'neutral'], [9.7, 'neutral'], [9.6, 'against']] as const)('SVV %s %% → %s', (value, direction) => {
+  it.each([
+    [14, 'for'],
+    [11.6, 'for'],
+    [11.5, 'neutral'],
+    [9.7, 'neutral'],
+    [9.6, 'against'],
+  ] as const)('SVV %s %% → %s', (value, direction) => {
     const f = svv(patient(), value);
     expect(f.direction).toBe(direction);
     expect(f.tier).toBe('dynamic');
@@ -207,10 +247,16 @@ describe('right-ventricular failure and pulmonary hypertension (false positives:
     const high = ppv(b, 18);
     expect(high).toMatchObject({ status: 'not-assessed', gap: 'outside-validity' });
     expect(high.text).toMatch(/pulmonary hypertension/i);
-    expect(ppv(withCondition('http://hl7.org/fhir/sid/icd-10-cm', 'I27.21'), 4)).toMatchObject({ status: 'assessed', direction: 'against' });
+    expect(ppv(withCondition('http://hl7.org/fhir/sid/icd-10-cm', 'I27.21'), 4)).toMatchObject({
+      status: 'assessed',
+      direction: 'against',
+    });
   });
   it('a resolved condition does not count', () => {
-    const b = patient().condition({ codings: [{ system: 'http://hl7.org/fhir/sid/icd-10-cm', code: 'I27.21' }], clinicalStatus: 'resolved' });
+    const b = patient().condition({
+      codings: [{ system: 'http://hl7.org/fhir/sid/icd-10-cm', code: 'I27.21' }],
+      clinicalStatus: 'resolved',
+    });
     expect(ppv(b, 18).status).toBe('assessed');
   });
 });

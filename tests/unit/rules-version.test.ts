@@ -8,7 +8,9 @@ const T = { tolerance: { a: 1 } };
 
 describe('rulesVersion', () => {
   it('has the form version+c<catalogue>.t<thresholds>.v<value sets>', () => {
-    expect(rulesVersion(CAT, T)).toMatch(new RegExp(`^${PACKAGE_VERSION.replace(/\./g, '\\.')}\\+cabcdef01\\.t[0-9a-f]{8}\\.v[0-9a-f]{8}$`));
+    expect(rulesVersion(CAT, T)).toMatch(
+      new RegExp(`^${PACKAGE_VERSION.replace(/\./g, '\\.')}\\+cabcdef01\\.t[0-9a-f]{8}\\.v[0-9a-f]{8}$`),
+    );
     expect(rulesVersion(CAT, T)).toBe(rulesVersion(CAT, T, VALUE_SETS));
     expect(rulesVersion(CAT, T).endsWith(`.v${valueSetsDigest()}`)).toBe(true);
   });
@@ -18,7 +20,9 @@ describe('rulesVersion', () => {
     expect(rulesVersion(CAT, T, edited)).not.toBe(rulesVersion(CAT, T));
   });
   it('changes with any part of the condition value sets: an ICD-10 range, an effect, the statuses read as active', () => {
-    type Sets = { conditions: { activeStatuses: string[]; sets: Array<{ icd10: Array<{ to?: string; code?: string }>; effects: string[] }> } };
+    type Sets = {
+      conditions: { activeStatuses: string[]; sets: Array<{ icd10: Array<{ to?: string; code?: string }>; effects: string[] }> };
+    };
     const range = structuredClone(VALUE_SETS) as Sets;
     const entry = range.conditions.sets.flatMap((s) => s.icd10).find((e) => e.to !== undefined)!;
     entry.to = `${entry.to}9`;
@@ -31,7 +35,10 @@ describe('rulesVersion', () => {
     expect(rulesVersion(CAT, T, statuses)).not.toBe(rulesVersion(CAT, T));
   });
   it('changes when a rhythm concept is read as another answer, or a fluid changes class', () => {
-    const r = structuredClone(VALUE_SETS) as { rhythm: { concepts: Array<{ answer: string }> }; fluids: { fluids: Array<{ fluidClass: string }> } };
+    const r = structuredClone(VALUE_SETS) as {
+      rhythm: { concepts: Array<{ answer: string }> };
+      fluids: { fluids: Array<{ fluidClass: string }> };
+    };
     r.rhythm.concepts[0]!.answer = 'other-irregular';
     expect(rulesVersion(CAT, T, r)).not.toBe(rulesVersion(CAT, T));
     const f = structuredClone(VALUE_SETS) as typeof r;

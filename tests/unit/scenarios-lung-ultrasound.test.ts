@@ -17,11 +17,16 @@ const NOW = new Date('2026-11-20T14:00:00Z');
 
 function advise(s: Scenario, resources?: FhirResource[]) {
   const built = s.build(NOW);
-  const snap = buildSnapshot(resources ?? built.resources, {
-    patientId: s.patientId, encounterId: s.encounterId,
-    ...(built.hook === 'order-select' ? { selections: built.selections } : {}),
-    draftOrders: { entry: built.draftOrders.map((resource) => ({ resource })) },
-  }, NOW);
+  const snap = buildSnapshot(
+    resources ?? built.resources,
+    {
+      patientId: s.patientId,
+      encounterId: s.encounterId,
+      ...(built.hook === 'order-select' ? { selections: built.selections } : {}),
+      draftOrders: { entry: built.draftOrders.map((resource) => ({ resource })) },
+    },
+    NOW,
+  );
   const advice = assess(snap, NOW, resolveThresholds({}), 'test');
   const lus = advice.findings.find((f) => f.ruleId === 'tolerance.lung-ultrasound');
   return { snap, advice, lus };
@@ -30,7 +35,10 @@ function advise(s: Scenario, resources?: FhirResource[]) {
 describe('scenarios charting lung ultrasound per side', () => {
   it('02: 2 of 4 left and 3 of 4 right → diffuse, a harm sign; poor tolerance and the critical indicator rest on it', () => {
     const { snap, advice, lus } = advise(s02);
-    expect(snap.measurements.filter((m) => m.kind.startsWith('bLineRegions')).map((m) => [m.kind, m.value])).toEqual([['bLineRegionsLeft', 2], ['bLineRegionsRight', 3]]);
+    expect(snap.measurements.filter((m) => m.kind.startsWith('bLineRegions')).map((m) => [m.kind, m.value])).toEqual([
+      ['bLineRegionsLeft', 2],
+      ['bLineRegionsRight', 3],
+    ]);
     expect(lus).toMatchObject({ status: 'assessed', limit: 'severe', harmSign: true, values: { pattern: 'diffuse' } });
     expect(advice.tolerance?.value).toBe('poor');
     expect(advice.recommendation?.indicator).toBe('critical');
@@ -39,10 +47,13 @@ describe('scenarios charting lung ultrasound per side', () => {
   });
   it('02 without the side (the same 5 regions as one whole-chest count) is poor but a warning, not critical', () => {
     const built = s02.build(NOW);
-    const perSide = (r: FhirResource): r is Observation => r.resourceType === 'Observation' && (r.code.coding ?? []).some((c) => c.code?.startsWith('lung-us-b-regions-'));
+    const perSide = (r: FhirResource): r is Observation =>
+      r.resourceType === 'Observation' && (r.code.coding ?? []).some((c) => c.code?.startsWith('lung-us-b-regions-'));
     const [left] = built.resources.filter(perSide);
     const whole: Observation = {
-      ...left!, id: 'rpt-blines-whole', code: { coding: [{ system: TIDEMARK_MARKERS, code: 'lung-us-b-regions' }] },
+      ...left!,
+      id: 'rpt-blines-whole',
+      code: { coding: [{ system: TIDEMARK_MARKERS, code: 'lung-us-b-regions' }] },
       valueQuantity: { value: 5, unit: '{regions}', system: 'http://unitsofmeasure.org', code: '{regions}' },
     };
     const { advice, lus } = advise(s02, [...built.resources.filter((r) => !perSide(r)), whole]);
@@ -53,7 +64,10 @@ describe('scenarios charting lung ultrasound per side', () => {
   });
   it('16: 0 of 4 left and 4 of 4 right, charted as the whole-chest code with a one-lung bodySite → one-sided, moderate, no harm sign', () => {
     const { snap, advice, lus } = advise(s16);
-    expect(snap.measurements.filter((m) => m.kind.startsWith('bLineRegions')).map((m) => [m.kind, m.value])).toEqual([['bLineRegionsLeft', 0], ['bLineRegionsRight', 4]]);
+    expect(snap.measurements.filter((m) => m.kind.startsWith('bLineRegions')).map((m) => [m.kind, m.value])).toEqual([
+      ['bLineRegionsLeft', 0],
+      ['bLineRegionsRight', 4],
+    ]);
     expect(lus).toMatchObject({ status: 'assessed', limit: 'moderate', harmSign: false, values: { pattern: 'one-sided' } });
     expect(advice.tolerance?.value).toBe('limited');
     expect(advice.recommendation?.harmSigns).toEqual([]);

@@ -37,20 +37,35 @@ async function rig(opts: { graceMs?: number; storeFails?: boolean } = {}): Promi
   });
   await new Promise<void>((r) => server.listen(0, '127.0.0.1', () => r()));
   const logLines: Array<Record<string, unknown>> = [];
-  const sink = new Writable({ write(chunk, _enc, cb) { for (const l of String(chunk).split('\n').filter(Boolean)) logLines.push(JSON.parse(l)); cb(); } });
+  const sink = new Writable({
+    write(chunk, _enc, cb) {
+      for (const l of String(chunk).split('\n').filter(Boolean)) logLines.push(JSON.parse(l));
+      cb();
+    },
+  });
   let exited = (_code: number) => {};
   const exitCode = new Promise<number>((r) => (exited = r));
   const r: Rig = {
-    server, port: (server.address() as AddressInfo).port, held, release: () => release(), logLines, closes: 0, exitCode,
+    server,
+    port: (server.address() as AddressInfo).port,
+    held,
+    release: () => release(),
+    logLines,
+    closes: 0,
+    exitCode,
     stop: () => Promise.resolve(),
   };
-  r.stop = gracefulShutdown(server, {
-    log: createLogger('info', sink),
-    close: async () => {
-      r.closes += 1;
-      if (opts.storeFails) throw new Error('the writer thread did not answer');
+  r.stop = gracefulShutdown(
+    server,
+    {
+      log: createLogger('info', sink),
+      close: async () => {
+        r.closes += 1;
+        if (opts.storeFails) throw new Error('the writer thread did not answer');
+      },
     },
-  }, { graceMs: opts.graceMs ?? 60_000, exit: exited });
+    { graceMs: opts.graceMs ?? 60_000, exit: exited },
+  );
   cleanups.push(() => {
     release();
     server.closeAllConnections();
@@ -101,7 +116,12 @@ describe('graceful stop', () => {
     void r.stop('SIGTERM');
     expect(await r.exitCode).toBe(1);
     expect(r.closes).toBe(0);
-    expect(r.logLines.at(-1)).toMatchObject({ level: 50, phase: 'calls', inFlight: 1, msg: 'shutdown grace of 50 ms ran out: 1 call(s) still in flight' });
+    expect(r.logLines.at(-1)).toMatchObject({
+      level: 50,
+      phase: 'calls',
+      inFlight: 1,
+      msg: 'shutdown grace of 50 ms ran out: 1 call(s) still in flight',
+    });
   });
 
   it('exits 1 at once on a second signal', async () => {
@@ -111,7 +131,11 @@ describe('graceful stop', () => {
     void r.stop('SIGTERM');
     await r.stop('SIGINT');
     expect(await r.exitCode).toBe(1);
-    expect(r.logLines.at(-1)).toMatchObject({ level: 50, signal: 'SIGINT', msg: 'second signal during shutdown: exiting now, 1 call(s) still in flight' });
+    expect(r.logLines.at(-1)).toMatchObject({
+      level: 50,
+      signal: 'SIGINT',
+      msg: 'second signal during shutdown: exiting now, 1 call(s) still in flight',
+    });
   });
 
   it('exits 1 when the audit store fails to close', async () => {

@@ -18,8 +18,14 @@ const ctx: ReadContext = { now, nowMs: now.getTime(), patientRef: `Patient/${P}`
 
 function noradrenalineOrder(id: string, authoredOn?: string): MedicationRequest {
   return {
-    resourceType: 'MedicationRequest', id, status: 'active', intent: 'order', subject: { reference: `Patient/${P}` },
-    medicationCodeableConcept: { coding: [{ system: 'http://www.nlm.nih.gov/research/umls/rxnorm', code: '7512', display: 'norepinephrine' }] },
+    resourceType: 'MedicationRequest',
+    id,
+    status: 'active',
+    intent: 'order',
+    subject: { reference: `Patient/${P}` },
+    medicationCodeableConcept: {
+      coding: [{ system: 'http://www.nlm.nih.gov/research/umls/rxnorm', code: '7512', display: 'norepinephrine' }],
+    },
     ...(authoredOn ? { authoredOn } : {}),
     dosageInstruction: [{ doseAndRate: [{ rateQuantity: { value: 0.1, unit: 'ug/kg/min' } }] }],
   };
@@ -33,10 +39,16 @@ describe('readers return what they found and what they left out', () => {
   });
 
   it('an Observation with a period start that is not a time is left out as malformed, with the reason', () => {
-    const o = { ...b.numeric('uo-1', P, 'urineOutput', 40, t(10)), effectiveDateTime: undefined, effectivePeriod: { start: 'yesterday', end: t(10) } };
+    const o = {
+      ...b.numeric('uo-1', P, 'urineOutput', 40, t(10)),
+      effectiveDateTime: undefined,
+      effectivePeriod: { start: 'yesterday', end: t(10) },
+    };
     const r = readObservation(o, 'Observation/uo-1', ctx);
     expect(r.measurements ?? []).toEqual([]);
-    expect(r.excluded).toEqual([{ ref: 'Observation/uo-1', reason: 'malformed', detail: 'could not be read: the period start is not a date-time' }]);
+    expect(r.excluded).toEqual([
+      { ref: 'Observation/uo-1', reason: 'malformed', detail: 'could not be read: the period start is not a date-time' },
+    ]);
   });
 
   it('an administration whose end is unusable still counts from its start; the end is left out with its reason', () => {
@@ -55,11 +67,17 @@ describe('readers return what they found and what they left out', () => {
 describe('an active vasoactive order without authoredOn', () => {
   it('has no start, rather than the time of the call', () => {
     const r = readActiveRequest(noradrenalineOrder('mr-1'), 'MedicationRequest/mr-1', ctx);
-    expect(r.vasoactives).toEqual([{ ref: 'MedicationRequest/mr-1', drug: 'norepinephrine', status: 'active', rate: { value: 0.1, unit: 'ug/kg/min' } }]);
+    expect(r.vasoactives).toEqual([
+      { ref: 'MedicationRequest/mr-1', drug: 'norepinephrine', status: 'active', rate: { value: 0.1, unit: 'ug/kg/min' } },
+    ]);
   });
 
   it('is not read as a dose change at this moment (which would set aside every test taken before it)', () => {
-    const s = buildSnapshot([noradrenalineOrder('mr-1'), b.dynamicTest('plr-1', P, 'plr', 'cardiacOutput', 5, 5.8, t(20))] as never, { patientId: P }, now);
+    const s = buildSnapshot(
+      [noradrenalineOrder('mr-1'), b.dynamicTest('plr-1', P, 'plr', 'cardiacOutput', 5, 5.8, t(20))] as never,
+      { patientId: P },
+      now,
+    );
     expect(s.vasoactives).toHaveLength(1);
     expect(evidenceEvents(s, now, 100).filter((e) => e.kind === 'vasoactive-change')).toEqual([]);
   });

@@ -25,31 +25,66 @@ const pct = (value: number) => ({ value, unit: '%', system: 'http://unitsofmeasu
 /** A pulse oximetry Observation coded as the US Core profile codes it (invented values). */
 function pulseOx(id: string, spo2: number, components: Observation['component'], codes = ['2708-6', '59408-5']): Observation {
   return {
-    resourceType: 'Observation', id, status: 'final', subject: { reference: `Patient/${P}` }, effectiveDateTime: t(10),
-    code: { coding: codes.map((code) => ({ system: LOINC, code })) }, valueQuantity: pct(spo2), ...(components ? { component: components } : {}),
+    resourceType: 'Observation',
+    id,
+    status: 'final',
+    subject: { reference: `Patient/${P}` },
+    effectiveDateTime: t(10),
+    code: { coding: codes.map((code) => ({ system: LOINC, code })) },
+    valueQuantity: pct(spo2),
+    ...(components ? { component: components } : {}),
   };
 }
 
 describe('saturation and inhaled oxygen', () => {
   it('LOINC 2708-6 alone is read as SpO2', () => {
     const s = snap([pulseOx('o1', 94, undefined, ['2708-6'])]);
-    expect(s.measurements).toMatchObject([{ kind: 'spo2', value: 94, unit: '%', ref: 'Observation/o1', original: { system: LOINC, code: '2708-6' } }]);
+    expect(s.measurements).toMatchObject([
+      { kind: 'spo2', value: 94, unit: '%', ref: 'Observation/o1', original: { system: LOINC, code: '2708-6' } },
+    ]);
   });
   it('the original names the code the record carried, also for a kind with several codes (venous lactate 2519-7)', () => {
-    const lac: Observation = { resourceType: 'Observation', id: 'l1', status: 'final', subject: { reference: `Patient/${P}` }, effectiveDateTime: t(20),
-      code: { coding: [{ system: 'urn:lab', code: 'LACV' }, { system: LOINC, code: '2519-7' }] }, valueQuantity: { value: 2.1, unit: 'mmol/L', system: 'http://unitsofmeasure.org', code: 'mmol/L' } };
+    const lac: Observation = {
+      resourceType: 'Observation',
+      id: 'l1',
+      status: 'final',
+      subject: { reference: `Patient/${P}` },
+      effectiveDateTime: t(20),
+      code: {
+        coding: [
+          { system: 'urn:lab', code: 'LACV' },
+          { system: LOINC, code: '2519-7' },
+        ],
+      },
+      valueQuantity: { value: 2.1, unit: 'mmol/L', system: 'http://unitsofmeasure.org', code: 'mmol/L' },
+    };
     expect(snap([lac]).measurements).toMatchObject([{ kind: 'lactate', value: 2.1, original: { system: LOINC, code: '2519-7' } }]);
   });
   it('a pulse oximetry panel gives SpO2 and, from its 3150-0 component, FiO2; the 3151-8 flow rate is not read', () => {
-    const s = snap([pulseOx('o2', 92, [
-      { code: { coding: [{ system: LOINC, code: '3151-8', display: 'Inhaled oxygen flow rate' }] }, valueQuantity: { value: 6, unit: 'L/min', system: 'http://unitsofmeasure.org', code: 'L/min' } },
-      { code: { coding: [{ system: LOINC, code: '3150-0', display: 'Inhaled oxygen concentration' }] }, valueQuantity: pct(40) },
-    ])]);
-    expect(s.measurements.map((m) => [m.kind, m.value, m.original.code])).toEqual([['fio2', 40, '3150-0'], ['spo2', 92, '2708-6']]);
+    const s = snap([
+      pulseOx('o2', 92, [
+        {
+          code: { coding: [{ system: LOINC, code: '3151-8', display: 'Inhaled oxygen flow rate' }] },
+          valueQuantity: { value: 6, unit: 'L/min', system: 'http://unitsofmeasure.org', code: 'L/min' },
+        },
+        { code: { coding: [{ system: LOINC, code: '3150-0', display: 'Inhaled oxygen concentration' }] }, valueQuantity: pct(40) },
+      ]),
+    ]);
+    expect(s.measurements.map((m) => [m.kind, m.value, m.original.code])).toEqual([
+      ['fio2', 40, '3150-0'],
+      ['spo2', 92, '2708-6'],
+    ]);
     expect(s.excluded).toEqual([]);
   });
   it('3150-0 as a fraction (unit 1) is converted to %', () => {
-    const s = snap([pulseOx('o3', 97, [{ code: { coding: [{ system: LOINC, code: '3150-0' }] }, valueQuantity: { value: 0.21, unit: '1', system: 'http://unitsofmeasure.org', code: '1' } }])]);
+    const s = snap([
+      pulseOx('o3', 97, [
+        {
+          code: { coding: [{ system: LOINC, code: '3150-0' }] },
+          valueQuantity: { value: 0.21, unit: '1', system: 'http://unitsofmeasure.org', code: '1' },
+        },
+      ]),
+    ]);
     expect(s.measurements.find((m) => m.kind === 'fio2')?.value).toBeCloseTo(21, 6);
   });
   it('a 3150-0 component with no value is listed as not usable, the saturation is kept', () => {
@@ -61,7 +96,11 @@ describe('saturation and inhaled oxygen', () => {
 
 describe('heart rhythm coded in SNOMED CT', () => {
   const rhythm = (id: string, code: string, display: string): Observation => ({
-    resourceType: 'Observation', id, status: 'final', subject: { reference: `Patient/${P}` }, effectiveDateTime: t(30),
+    resourceType: 'Observation',
+    id,
+    status: 'final',
+    subject: { reference: `Patient/${P}` },
+    effectiveDateTime: t(30),
     code: { coding: [{ system: LOINC, code: '8884-9', display: 'Heart rate rhythm' }] },
     valueCodeableConcept: { coding: [{ system: SCT, code, display }] },
   });
@@ -83,7 +122,9 @@ describe('heart rhythm coded in SNOMED CT', () => {
     expect(s.excluded).toMatchObject([{ ref: 'Observation/r2', reason: 'unknown-answer', kind: 'heartRhythm' }]);
   });
   it('a rhythm code under another system is not read', () => {
-    const s = snap([{ ...rhythm('r3', '426783006', 'Sinus rhythm'), valueCodeableConcept: { coding: [{ system: 'urn:local', code: '426783006' }] } }]);
+    const s = snap([
+      { ...rhythm('r3', '426783006', 'Sinus rhythm'), valueCodeableConcept: { coding: [{ system: 'urn:local', code: '426783006' }] } },
+    ]);
     expect(s.coded).toEqual([]);
   });
 });
@@ -100,12 +141,13 @@ describe('fluids', () => {
     expect(s.fluids).toMatchObject([{ fluidClass: cls, volumeMl: 500, display: text }]);
   });
   it.each([["Hartmann's procedure"], ['Reversal of Hartmann’s'], ['Hartmanns operation, laparoscopic'], ['Hartmann pouch leak']])(
-    'the operation "%s" in a ServiceRequest is not a fluid order', (text) => {
+    'the operation "%s" in a ServiceRequest is not a fluid order',
+    (text) => {
       const s = buildSnapshot([], { patientId: P, draftOrders: { entry: [{ resource: b.serviceOrder('sr1', P, text, t(1)) }] } }, now);
       expect(s.draftOrders).toMatchObject([{ ref: 'ServiceRequest/sr1', isFluid: false }]);
     },
   );
-  it('RxNorm 847630 (lactated Ringer\'s clinical drug) is read by code, whatever the text', () => {
+  it("RxNorm 847630 (lactated Ringer's clinical drug) is read by code, whatever the text", () => {
     const s = snap([given('f2', { coding: [{ system: RX, code: '847630' }], text: 'LR' })]);
     expect(s.fluids).toMatchObject([{ fluidClass: 'balanced-crystalloid' }]);
   });
@@ -136,20 +178,32 @@ describe('lung ultrasound per side, through the snapshot into the tolerance rule
   const MARKER = 'https://tidemark.invalid/fhir/CodeSystem/marker';
   const regions = (value: number, code = '{regions}') => ({ value, unit: code, system: 'http://unitsofmeasure.org', code });
   const lus = (id: string, code: string, value: number, extra: Partial<Observation> = {}): Observation => ({
-    resourceType: 'Observation', id, status: 'final', subject: { reference: `Patient/${P}` }, effectiveDateTime: t(30),
-    code: { coding: [{ system: MARKER, code }] }, valueQuantity: regions(value), ...extra,
+    resourceType: 'Observation',
+    id,
+    status: 'final',
+    subject: { reference: `Patient/${P}` },
+    effectiveDateTime: t(30),
+    code: { coding: [{ system: MARKER, code }] },
+    valueQuantity: regions(value),
+    ...extra,
   });
   const site = (...codes: string[]) => ({ bodySite: { coding: codes.map((code) => ({ system: SCT, code })) } });
   const T = resolveThresholds({}).tolerance;
 
   it('the per-side markers are read as left and right counts (of 4)', () => {
     const s = snap([lus('l1', 'lung-us-b-regions-left', 3), lus('r1', 'lung-us-b-regions-right', 2)]);
-    expect(s.measurements.map((m) => [m.kind, m.value, m.unit])).toEqual([['bLineRegionsLeft', 3, '{regions}'], ['bLineRegionsRight', 2, '{regions}']]);
+    expect(s.measurements.map((m) => [m.kind, m.value, m.unit])).toEqual([
+      ['bLineRegionsLeft', 3, '{regions}'],
+      ['bLineRegionsRight', 2, '{regions}'],
+    ]);
     expect(lungUltrasoundRule(s, now, T)[0]).toMatchObject({ limit: 'severe', harmSign: true, values: { pattern: 'diffuse' } });
   });
-  it('the whole-chest code with bodySite left lung (SNOMED CT 44029006) / right lung (3341006) is that side\'s count; the original keeps the code sent', () => {
+  it("the whole-chest code with bodySite left lung (SNOMED CT 44029006) / right lung (3341006) is that side's count; the original keeps the code sent", () => {
     const s = snap([lus('w1', 'lung-us-b-regions', 0, site('44029006')), lus('w2', 'lung-us-b-regions', 4, site('3341006'))]);
-    expect(s.measurements.map((m) => [m.kind, m.value, m.original.code])).toEqual([['bLineRegionsLeft', 0, 'lung-us-b-regions'], ['bLineRegionsRight', 4, 'lung-us-b-regions']]);
+    expect(s.measurements.map((m) => [m.kind, m.value, m.original.code])).toEqual([
+      ['bLineRegionsLeft', 0, 'lung-us-b-regions'],
+      ['bLineRegionsRight', 4, 'lung-us-b-regions'],
+    ]);
     expect(lungUltrasoundRule(s, now, T)[0]).toMatchObject({ limit: 'moderate', harmSign: false, values: { pattern: 'one-sided' } });
   });
   it('no bodySite, another site (lung structure 39607008), or both lungs named at once: whole chest, side unknown', () => {
@@ -160,7 +214,10 @@ describe('lung ultrasound per side, through the snapshot into the tolerance rule
     }
   });
   it('more than 4 regions on one lung is impossible and left out; a wrong unit is left out', () => {
-    const s = snap([lus('x1', 'lung-us-b-regions', 5, site('44029006')), lus('x2', 'lung-us-b-regions-right', 3, { valueQuantity: regions(3, '%') })]);
+    const s = snap([
+      lus('x1', 'lung-us-b-regions', 5, site('44029006')),
+      lus('x2', 'lung-us-b-regions-right', 3, { valueQuantity: regions(3, '%') }),
+    ]);
     expect(s.measurements).toEqual([]);
     expect(s.excluded).toMatchObject([
       { ref: 'Observation/x1', reason: 'impossible-value', kind: 'bLineRegionsLeft' },

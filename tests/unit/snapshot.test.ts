@@ -13,7 +13,15 @@ describe('buildSnapshot', () => {
   it('keeps provenance: canonical value, original value/unit, time, age and reference', () => {
     const s = snap([b.numeric('alb-1', P, 'albumin', 2.5, t(90), { unit: 'g/dL' })]);
     expect(s.measurements).toEqual([
-      { kind: 'albumin', value: 25, unit: 'g/L', original: { value: 2.5, unit: 'g/dL', code: '1751-7', system: 'http://loinc.org' }, effective: '2026-11-20T12:30:00.000Z', ageMinutes: 90, ref: 'Observation/alb-1' },
+      {
+        kind: 'albumin',
+        value: 25,
+        unit: 'g/L',
+        original: { value: 2.5, unit: 'g/dL', code: '1751-7', system: 'http://loinc.org' },
+        effective: '2026-11-20T12:30:00.000Z',
+        ageMinutes: 90,
+        ref: 'Observation/alb-1',
+      },
     ]);
   });
 
@@ -25,7 +33,14 @@ describe('buildSnapshot', () => {
     ['entered-in-error', b.numeric('x5', P, 'heartRate', 80, t(5), { status: 'entered-in-error' }), 'entered-in-error'],
     ['cancelled', b.numeric('x6', P, 'heartRate', 80, t(5), { status: 'cancelled' }), 'cancelled'],
     ['another patient', b.numeric('x7', 'someone-else', 'heartRate', 80, t(5)), 'other-patient'],
-    ['a censored value (<)', { ...b.numeric('x8', P, 'lactate', 0.5, t(5)), valueQuantity: { value: 0.5, comparator: '<', unit: 'mmol/L', system: 'http://unitsofmeasure.org', code: 'mmol/L' } }, 'censored-value'],
+    [
+      'a censored value (<)',
+      {
+        ...b.numeric('x8', P, 'lactate', 0.5, t(5)),
+        valueQuantity: { value: 0.5, comparator: '<', unit: 'mmol/L', system: 'http://unitsofmeasure.org', code: 'mmol/L' },
+      },
+      'censored-value',
+    ],
   ])('flags and excludes %s', (_name, resource, reason) => {
     const s = snap([resource]);
     expect(s.measurements).toHaveLength(0);
@@ -41,20 +56,34 @@ describe('buildSnapshot', () => {
 
   it('reads blood pressure panel components (LOINC 85354-9 with 8480-6 / 8462-4)', () => {
     const panel = {
-      resourceType: 'Observation', id: 'bp-panel', status: 'final', subject: { reference: `Patient/${P}` }, effectiveDateTime: t(3),
+      resourceType: 'Observation',
+      id: 'bp-panel',
+      status: 'final',
+      subject: { reference: `Patient/${P}` },
+      effectiveDateTime: t(3),
       code: { coding: [{ system: 'http://loinc.org', code: '85354-9' }] },
       component: [
-        { code: { coding: [{ system: 'http://loinc.org', code: '8480-6' }] }, valueQuantity: { value: 101, unit: 'mmHg', system: 'http://unitsofmeasure.org', code: 'mm[Hg]' } },
-        { code: { coding: [{ system: 'http://loinc.org', code: '8462-4' }] }, valueQuantity: { value: 55, unit: 'mmHg', system: 'http://unitsofmeasure.org', code: 'mm[Hg]' } },
+        {
+          code: { coding: [{ system: 'http://loinc.org', code: '8480-6' }] },
+          valueQuantity: { value: 101, unit: 'mmHg', system: 'http://unitsofmeasure.org', code: 'mm[Hg]' },
+        },
+        {
+          code: { coding: [{ system: 'http://loinc.org', code: '8462-4' }] },
+          valueQuantity: { value: 55, unit: 'mmHg', system: 'http://unitsofmeasure.org', code: 'mm[Hg]' },
+        },
       ],
     };
     const s = snap([panel]);
-    expect(s.measurements.map((m) => [m.kind, m.value, m.ref])).toEqual([['diastolicBp', 55, 'Observation/bp-panel'], ['systolicBp', 101, 'Observation/bp-panel']]);
+    expect(s.measurements.map((m) => [m.kind, m.value, m.ref])).toEqual([
+      ['diastolicBp', 55, 'Observation/bp-panel'],
+      ['systolicBp', 101, 'Observation/bp-panel'],
+    ]);
   });
 
   it('sorts each kind newest first and reads coded answers and dynamic tests', () => {
     const s = snap([
-      b.numeric('hr-old', P, 'heartRate', 100, t(50)), b.numeric('hr-new', P, 'heartRate', 90, t(5)),
+      b.numeric('hr-old', P, 'heartRate', 100, t(50)),
+      b.numeric('hr-new', P, 'heartRate', 90, t(5)),
       b.coded('vm', P, 'ventilationMode', 'controlled-no-effort', t(15)),
       b.dynamicTest('plr', P, 'plr', 'cardiacOutput', 4.0, 4.5, t(20)),
     ]);
@@ -90,8 +119,16 @@ describe('buildSnapshot', () => {
     const bolus = b.bolusOrder('mr-1', P, b.FLUIDS.lactatedRinger, 500, 30, t(1));
     const other = b.otherOrder('mr-2', P, 'Paracetamol 1 g IV', t(1));
     const rate = b.bolusOrder('mr-3', P, b.FLUIDS.saline, 250, 15, t(1));
-    rate.dosageInstruction = [{ timing: { repeat: { duration: 2, durationUnit: 'h' } }, doseAndRate: [{ rateQuantity: { value: 125, unit: 'mL/h', system: 'http://unitsofmeasure.org', code: 'mL/h' } }] }];
-    const s = snap([], { selections: ['MedicationRequest/mr-1', 'MedicationRequest/mr-3'], draftOrders: { entry: [{ resource: bolus }, { resource: other }, { resource: rate }] } });
+    rate.dosageInstruction = [
+      {
+        timing: { repeat: { duration: 2, durationUnit: 'h' } },
+        doseAndRate: [{ rateQuantity: { value: 125, unit: 'mL/h', system: 'http://unitsofmeasure.org', code: 'mL/h' } }],
+      },
+    ];
+    const s = snap([], {
+      selections: ['MedicationRequest/mr-1', 'MedicationRequest/mr-3'],
+      draftOrders: { entry: [{ resource: bolus }, { resource: other }, { resource: rate }] },
+    });
     expect(s.draftOrders.map((o) => [o.id, o.selected, o.isFluid, o.fluidClass, o.volumeMl])).toEqual([
       ['mr-1', true, true, 'balanced-crystalloid', 500],
       ['mr-2', false, false, undefined, undefined],
@@ -100,7 +137,9 @@ describe('buildSnapshot', () => {
   });
 
   it('reads sex and age from Patient and the admission time from Encounter', () => {
-    const s = snap([b.patient(P, 'male', '1950-11-21', 'Tern', 'Oskar'), b.encounter('e1', P, '2026-11-19T08:00:00Z')], { encounterId: 'e1' });
+    const s = snap([b.patient(P, 'male', '1950-11-21', 'Tern', 'Oskar'), b.encounter('e1', P, '2026-11-19T08:00:00Z')], {
+      encounterId: 'e1',
+    });
     expect(s.patient).toEqual({ ref: `Patient/${P}`, sex: 'male', birthDate: '1950-11-21', ageYears: 75 });
     expect(s.encounter).toMatchObject({ ref: 'Encounter/e1', start: '2026-11-19T08:00:00.000Z' });
   });

@@ -12,7 +12,13 @@ describe('tolerance.abdominal-pressure', () => {
     expect(f.values).toMatchObject({ iahGrade: 2, appMmHg: 57, filtrationGradientMmHg: 39, mapMeasured: true });
     expect(limit(f)).toBe('moderate');
   });
-  it.each([[11, 'none'], [12, 'moderate'], [20, 'moderate'], [21, 'severe'], [30, 'severe']])('IAP %s mmHg → %s', (iap, l) => {
+  it.each([
+    [11, 'none'],
+    [12, 'moderate'],
+    [20, 'moderate'],
+    [21, 'severe'],
+    [30, 'severe'],
+  ])('IAP %s mmHg → %s', (iap, l) => {
     expect(limit(run(m('intraAbdominalPressure', iap, 60)))).toBe(l);
   });
   it('without a measured MAP, estimates it from SBP/DBP', () => {

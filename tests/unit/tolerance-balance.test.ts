@@ -13,7 +13,12 @@ const output4 = () => [0, DAY].map((ago) => m('fluidOutput', 2000, ago, { period
 describe('tolerance.balance-cumulative', () => {
   it('present: intake − output observations since admission, sources named', () => {
     const [f] = cumulativeBalanceRule(snapshot({ measurements: [...intake12(), ...output4()] }), NOW, T);
-    expect(f).toMatchObject({ status: 'assessed', contextOnly: true, limit: 'none', values: { balanceMl: 8000, intakeMl: 12000, outputMl: 4000 } });
+    expect(f).toMatchObject({
+      status: 'assessed',
+      contextOnly: true,
+      limit: 'none',
+      values: { balanceMl: 8000, intakeMl: 12000, outputMl: 4000 },
+    });
     expect(f!.values!['source']).toBe('intake observations − output observations');
     expect(f!.text).toContain('+8,000 mL');
     expect(f!.evidence).toHaveLength(5);
@@ -62,19 +67,27 @@ describe('tolerance.balance-cumulative', () => {
     expect(f.reason).toContain('no output recorded');
   });
   it('stale: charting that stopped 13 h ago does not count', () => {
-    const s = snapshot({ measurements: [m('fluidIntake', 3000, 13 * 60, { periodMinutes: 600 }), m('fluidOutput', 1000, 13 * 60, { periodMinutes: 600 })] });
+    const s = snapshot({
+      measurements: [m('fluidIntake', 3000, 13 * 60, { periodMinutes: 600 }), m('fluidOutput', 1000, 13 * 60, { periodMinutes: 600 })],
+    });
     const f = cumulativeBalanceRule(s, NOW, T)[0]!;
     expect(f.status).toBe('not-assessed');
     expect(f.reason).toMatch(/13 h ago/);
   });
   it('boundary: charting that ended exactly 12 h ago still counts', () => {
-    const s = snapshot({ measurements: [m('fluidIntake', 3000, 720, { periodMinutes: 600 }), m('fluidOutput', 1000, 720, { periodMinutes: 600 })] });
+    const s = snapshot({
+      measurements: [m('fluidIntake', 3000, 720, { periodMinutes: 600 }), m('fluidOutput', 1000, 720, { periodMinutes: 600 })],
+    });
     expect(cumulativeBalanceRule(s, NOW, T)[0]!.status).toBe('assessed');
   });
   it('records before admission do not count; one spanning admission counts for its share', () => {
     const s = snapshot({
       admittedMinutesAgo: 600,
-      measurements: [m('fluidIntake', 5000, 700, { periodMinutes: 600 }), m('fluidIntake', 1200, 0, { periodMinutes: 1200 }), m('fluidOutput', 100, 0, { periodMinutes: 60 })],
+      measurements: [
+        m('fluidIntake', 5000, 700, { periodMinutes: 600 }),
+        m('fluidIntake', 1200, 0, { periodMinutes: 1200 }),
+        m('fluidOutput', 100, 0, { periodMinutes: 60 }),
+      ],
     });
     // 1200 mL over 20 h, 10 h of it after admission → 600 mL.
     expect(cumulativeBalanceRule(s, NOW, T)[0]!.values).toMatchObject({ intakeMl: 600, balanceMl: 500 });
@@ -117,21 +130,33 @@ describe('tolerance.fluid-overload', () => {
     expect(f.text).toMatch(/adult band/);
   });
   it('adult boundary: exactly 10 % is severe, just below limits nothing', () => {
-    const s10 = snapshot({ measurements: [m('fluidIntake', 9000, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)] });
+    const s10 = snapshot({
+      measurements: [m('fluidIntake', 9000, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)],
+    });
     expect(limit(fluidOverloadRule(s10, NOW, T)[0]!)).toBe('severe');
-    const s9 = snapshot({ measurements: [m('fluidIntake', 8990, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)] });
+    const s9 = snapshot({
+      measurements: [m('fluidIntake', 8990, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)],
+    });
     expect(limit(fluidOverloadRule(s9, NOW, T)[0]!)).toBe('none');
   });
   it('child (10 years): paediatric bands, 11.4 % moderate, exactly 20 % severe (Goldstein 2001; Sutherland 2010)', () => {
-    const child = (ms: Parameters<typeof snapshot>[0]) => { const s = snapshot(ms); s.patient.ageYears = 10; return s; };
+    const child = (ms: Parameters<typeof snapshot>[0]) => {
+      const s = snapshot(ms);
+      s.patient.ageYears = 10;
+      return s;
+    };
     const f = fluidOverloadRule(child({ measurements: [...intake12(), ...output4(), weight(70)] }), NOW, T)[0]!;
     expect(limit(f)).toBe('moderate');
     expect(f.text).toMatch(/paediatric band/);
-    const s20 = child({ measurements: [m('fluidIntake', 16000, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)] });
+    const s20 = child({
+      measurements: [m('fluidIntake', 16000, 0, { periodMinutes: DAY }), m('fluidOutput', 2000, 0, { periodMinutes: DAY }), weight(70)],
+    });
     expect(limit(fluidOverloadRule(s20, NOW, T)[0]!)).toBe('severe');
   });
   it('below 10 % limits nothing; a negative balance points for tolerance', () => {
-    const s = snapshot({ measurements: [m('fluidIntake', 2000, 0, { periodMinutes: DAY }), m('fluidOutput', 3000, 0, { periodMinutes: DAY }), weight(70)] });
+    const s = snapshot({
+      measurements: [m('fluidIntake', 2000, 0, { periodMinutes: DAY }), m('fluidOutput', 3000, 0, { periodMinutes: DAY }), weight(70)],
+    });
     expect(limit(fluidOverloadRule(s, NOW, T)[0]!)).toBe('none');
   });
   it('absent weight → not assessed, balance kept in values', () => {
@@ -143,7 +168,11 @@ describe('tolerance.fluid-overload', () => {
     expect(f.status).toBe('not-assessed');
   });
   it('wrong unit: a weight in [lb_av] is not used', () => {
-    const f = fluidOverloadRule(snapshot({ measurements: [...intake12(), ...output4(), weight(154, 3 * DAY - 60, '[lb_av]')] }), NOW, T)[0]!;
+    const f = fluidOverloadRule(
+      snapshot({ measurements: [...intake12(), ...output4(), weight(154, 3 * DAY - 60, '[lb_av]')] }),
+      NOW,
+      T,
+    )[0]!;
     expect(f.status).toBe('not-assessed');
   });
   it('uses the earliest weight after admission, not a later heavier one', () => {
@@ -164,7 +193,11 @@ describe('tolerance.weight-gain', () => {
     expect(limit(weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(76.9, 120)] }), NOW, T)[0]!)).toBe('none');
   });
   it('child (10 years): paediatric bands, 10.7 % moderate, 20 % severe (Selewski 2011)', () => {
-    const child = (ms: Parameters<typeof snapshot>[0]) => { const s = snapshot(ms); s.patient.ageYears = 10; return s; };
+    const child = (ms: Parameters<typeof snapshot>[0]) => {
+      const s = snapshot(ms);
+      s.patient.ageYears = 10;
+      return s;
+    };
     expect(limit(weightGainRule(child({ measurements: [w(70, 3 * DAY - 30), w(77.5, 120)] }), NOW, T)[0]!)).toBe('moderate');
     expect(limit(weightGainRule(child({ measurements: [w(70, 3 * DAY - 30), w(84, 120)] }), NOW, T)[0]!)).toBe('severe');
   });
@@ -173,7 +206,9 @@ describe('tolerance.weight-gain', () => {
     expect(weightGainRule(snapshot(), NOW, T)[0]!.reason).toBe('no admission weight recorded');
   });
   it('weights less than 12 h apart are not compared', () => {
-    expect(weightGainRule(snapshot({ admittedMinutesAgo: 600, measurements: [w(70, 600), w(80, 60)] }), NOW, T)[0]!.status).toBe('not-assessed');
+    expect(weightGainRule(snapshot({ admittedMinutesAgo: 600, measurements: [w(70, 600), w(80, 60)] }), NOW, T)[0]!.status).toBe(
+      'not-assessed',
+    );
   });
   it('stale: the latest weight 3 days old does not count', () => {
     const f = weightGainRule(snapshot({ admittedMinutesAgo: 6 * DAY, measurements: [w(70, 6 * DAY), w(80, 3 * DAY)] }), NOW, T)[0]!;
@@ -181,6 +216,8 @@ describe('tolerance.weight-gain', () => {
     expect(f.reason).toContain('48 h');
   });
   it('wrong unit: a latest weight in [lb_av] is not used', () => {
-    expect(weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(170, 120, '[lb_av]')] }), NOW, T)[0]!.status).toBe('not-assessed');
+    expect(weightGainRule(snapshot({ measurements: [w(70, 3 * DAY - 30), w(170, 120, '[lb_av]')] }), NOW, T)[0]!.status).toBe(
+      'not-assessed',
+    );
   });
 });

@@ -11,7 +11,12 @@ describe('condition sets file', () => {
   it('carries its provenance and the six sets', () => {
     expect(CONDITION_SETS.provenance).toMatch(/from-memory/i);
     expect(CONDITION_SETS.sets.map((s) => s.id)).toEqual([
-      'advanced-liver-disease', 'heart-failure', 'end-stage-kidney-disease', 'ards', 'right-ventricular-failure', 'pulmonary-hypertension',
+      'advanced-liver-disease',
+      'heart-failure',
+      'end-stage-kidney-disease',
+      'ards',
+      'right-ventricular-failure',
+      'pulmonary-hypertension',
     ]);
   });
 });

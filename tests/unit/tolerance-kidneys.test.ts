@@ -72,13 +72,17 @@ describe('tolerance.kidney-creatinine', () => {
     expect(crea(m('creatinine', 1.0, 50 * 60), m('creatinine', 1.3, 60)).values!['kdigoCreatinineStage']).toBe(0);
   });
   it('the baseline is the lowest value of 7 days before the latest; older values do not count', () => {
-    expect(crea(m('creatinine', 0.7, 8 * 1440), m('creatinine', 1.2, 3 * 1440), m('creatinine', 1.3, 60)).values!['kdigoCreatinineStage']).toBe(0);
+    expect(
+      crea(m('creatinine', 0.7, 8 * 1440), m('creatinine', 1.2, 3 * 1440), m('creatinine', 1.3, 60)).values!['kdigoCreatinineStage'],
+    ).toBe(0);
   });
   it('absent, a single value, stale latest (37 h; window 36 h, docs/clinical-logic), wrong unit (µmol/L) → not assessed', () => {
     expect(crea().status).toBe('not-assessed');
     expect(crea(m('creatinine', 2.0, 60)).reason).toContain('no earlier creatinine');
     expect(crea(m('creatinine', 1.0, 4 * 1440), m('creatinine', 2.5, 37 * 60)).status).toBe('not-assessed');
     expect(crea(m('creatinine', 1.0, 4 * 1440), m('creatinine', 2.5, 36 * 60)).status).toBe('assessed');
-    expect(crea(m('creatinine', 88, 4 * 1440, { unit: 'umol/L' }), m('creatinine', 186, 60, { unit: 'umol/L' })).status).toBe('not-assessed');
+    expect(crea(m('creatinine', 88, 4 * 1440, { unit: 'umol/L' }), m('creatinine', 186, 60, { unit: 'umol/L' })).status).toBe(
+      'not-assessed',
+    );
   });
 });

@@ -31,7 +31,10 @@ describe('tolerance.spo2-fio2', () => {
     expect(spo2Fio2Rule(s(m('spo2', 92, 10)), NOW, T)[0]!.reason).toBe('no FiO2 recorded');
   });
   it('FiO2 is carried forward until changed, up to 12 h (docs/clinical-logic); a later FiO2 is not the one in force', () => {
-    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 8 * 60)), NOW, T)[0]!).toMatchObject({ status: 'assessed', values: { fio2Percent: 50 } });
+    expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 8 * 60)), NOW, T)[0]!).toMatchObject({
+      status: 'assessed',
+      values: { fio2Percent: 50 },
+    });
     expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 50, 12 * 60 + 11)), NOW, T)[0]!.status).toBe('not-assessed');
     expect(spo2Fio2Rule(s(m('spo2', 92, 10), m('fio2', 40, 300), m('fio2', 60, 60)), NOW, T)[0]!.values).toMatchObject({ fio2Percent: 60 });
     expect(spo2Fio2Rule(s(m('spo2', 92, 60), m('fio2', 60, 20)), NOW, T)[0]!.status).toBe('not-assessed');
@@ -67,10 +70,14 @@ describe('tolerance.spo2-fio2-trend', () => {
     expect(spo2Fio2TrendRule(s(m('spo2', 92, 10), m('fio2', 40, 10)), NOW, T)[0]!.status).toBe('not-assessed');
   });
   it('stale: an earlier pair older than 6 h is outside the window', () => {
-    expect(spo2Fio2TrendRule(s(m('spo2', 99, 400), m('fio2', 21, 400), m('spo2', 90, 10), m('fio2', 60, 10)), NOW, T)[0]!.status).toBe('not-assessed');
+    expect(spo2Fio2TrendRule(s(m('spo2', 99, 400), m('fio2', 21, 400), m('spo2', 90, 10), m('fio2', 60, 10)), NOW, T)[0]!.status).toBe(
+      'not-assessed',
+    );
   });
   it('an earlier pair less than 60 min before is too close to be a trend', () => {
-    expect(spo2Fio2TrendRule(s(m('spo2', 99, 50), m('fio2', 21, 50), m('spo2', 90, 10), m('fio2', 60, 10)), NOW, T)[0]!.status).toBe('not-assessed');
+    expect(spo2Fio2TrendRule(s(m('spo2', 99, 50), m('fio2', 21, 50), m('spo2', 90, 10), m('fio2', 60, 10)), NOW, T)[0]!.status).toBe(
+      'not-assessed',
+    );
   });
 });
 
@@ -86,7 +93,11 @@ describe('tolerance.oxygen-need', () => {
     expect(oxygenNeedRule(s(m('peep', 8, 300), m('peep', 9.5, 10)), NOW, T)[0]!.values!['rising']).toBe(false);
   });
   it('compares with the lowest earlier value in the window', () => {
-    expect(oxygenNeedRule(s(m('fio2', 35, 300), m('fio2', 25, 200), m('fio2', 40, 100), m('fio2', 36, 10)), NOW, T)[0]!.values!['fio2RisePoints']).toBe(11);
+    expect(
+      oxygenNeedRule(s(m('fio2', 35, 300), m('fio2', 25, 200), m('fio2', 40, 100), m('fio2', 36, 10)), NOW, T)[0]!.values![
+        'fio2RisePoints'
+      ],
+    ).toBe(11);
   });
   it('absent: single values or nothing → not assessed', () => {
     expect(oxygenNeedRule(s(m('fio2', 40, 10)), NOW, T)[0]!.status).toBe('not-assessed');
@@ -99,14 +110,22 @@ describe('tolerance.oxygen-need', () => {
 });
 
 describe('tolerance.lung-ultrasound', () => {
-  const run = (n?: number, ago = 60, unit?: string) => lungUltrasoundRule(s(...(n === undefined ? [] : [m('bLineRegions', n, ago, unit ? { unit } : {})])), NOW, T)[0]!;
-  // With the side not charted, diffuse lung water (≥ 2 regions on EACH side, Volpicelli 2012) cannot be shown: capped at moderate (docs/clinical-logic).
-  it.each([[0, 'none', false], [1, 'none', false], [2, 'moderate', false], [3, 'moderate', false], [4, 'moderate', false], [8, 'moderate', false]])(
-    '%s regions, side unknown → %s (harm sign %s)', (n, l, sign) => {
-      const f = run(n);
-      expect(limit(f)).toBe(l);
-      expect(tol(f).harmSign).toBe(sign);
-    });
+  const run = (n?: number, ago = 60, unit?: string) =>
+    lungUltrasoundRule(s(...(n === undefined ? [] : [m('bLineRegions', n, ago, unit ? { unit } : {})])), NOW, T)[0]!;
+  // With the side not charted, diffuse lung water (≥ 2 regions on EACH side, Volpicelli 2012) cannot be shown: capped at moderate
+  // (docs/clinical-logic).
+  it.each([
+    [0, 'none', false],
+    [1, 'none', false],
+    [2, 'moderate', false],
+    [3, 'moderate', false],
+    [4, 'moderate', false],
+    [8, 'moderate', false],
+  ])('%s regions, side unknown → %s (harm sign %s)', (n, l, sign) => {
+    const f = run(n);
+    expect(limit(f)).toBe(l);
+    expect(tol(f).harmSign).toBe(sign);
+  });
   it('absent and stale (7 h) → not assessed', () => {
     expect(run().status).toBe('not-assessed');
     expect(run(6, 7 * 60).status).toBe('not-assessed');

@@ -45,8 +45,14 @@ describe('tolerance.albumin', () => {
 });
 
 describe('tolerance.oedema', () => {
-  const run = (grade?: number, ago = 200) => oedemaRule(snapshot({ measurements: grade === undefined ? [] : [m('edemaGrade', grade, ago)] }), NOW, T)[0]!;
-  it.each([[0, 'none'], [1, 'none'], [2, 'moderate'], [4, 'moderate']])('grade %s → %s', (g, l) => {
+  const run = (grade?: number, ago = 200) =>
+    oedemaRule(snapshot({ measurements: grade === undefined ? [] : [m('edemaGrade', grade, ago)] }), NOW, T)[0]!;
+  it.each([
+    [0, 'none'],
+    [1, 'none'],
+    [2, 'moderate'],
+    [4, 'moderate'],
+  ])('grade %s → %s', (g, l) => {
     expect(limit(run(g))).toBe(l);
   });
   it('absent → not assessed', () => {

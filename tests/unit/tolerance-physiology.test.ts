@@ -1,6 +1,11 @@
 /** Boundaries of the tolerance formulas in src/physiology (pure arithmetic). */
 import { describe, expect, it } from 'vitest';
-import { fluidOverloadBand, percentFluidOverload, percentFluidOverloadFromBalance, weightGainPercent } from '../../src/physiology/fluid-overload.js';
+import {
+  fluidOverloadBand,
+  percentFluidOverload,
+  percentFluidOverloadFromBalance,
+  weightGainPercent,
+} from '../../src/physiology/fluid-overload.js';
 import { coveredMs, volumeInWindowMl, withoutOverlaps, type VolumeRecord } from '../../src/physiology/fluid-balance.js';
 import { kdigoStageFromCreatinine, kdigoStageFromUrineOutput, urineOutputMlPerKgPerHour } from '../../src/physiology/kdigo.js';
 import { iahGrade, iahGradeLabel } from '../../src/physiology/intra-abdominal-pressure.js';
@@ -11,7 +16,12 @@ import { isoOncoticAlbuminExpansionMl, roundToStep } from '../../src/physiology/
 import { sepsisInitialCrystalloidMl } from '../../src/physiology/sepsis-volume.js';
 
 const H = 3_600_000;
-const rec = (id: string, volumeMl: number, startH: number, endH: number): VolumeRecord => ({ id, volumeMl, startMs: startH * H, endMs: endH * H });
+const rec = (id: string, volumeMl: number, startH: number, endH: number): VolumeRecord => ({
+  id,
+  volumeMl,
+  startMs: startH * H,
+  endMs: endH * H,
+});
 
 describe('fluid overload', () => {
   it('bands at exactly 10 and 20 %', () => {
@@ -53,7 +63,14 @@ describe('fluid balance windows', () => {
     expect(a.dropped).toHaveLength(6);
   });
   it('keeps adjacent periods, drops a point inside a period and exact duplicate points', () => {
-    const r = withoutOverlaps([rec('a', 1, 0, 1), rec('b', 1, 1, 2), rec('p', 5, 1.5, 1.5), rec('q', 7, 3, 3), rec('q2', 7, 3, 3), rec('q3', 8, 3, 3)]);
+    const r = withoutOverlaps([
+      rec('a', 1, 0, 1),
+      rec('b', 1, 1, 2),
+      rec('p', 5, 1.5, 1.5),
+      rec('q', 7, 3, 3),
+      rec('q2', 7, 3, 3),
+      rec('q3', 8, 3, 3),
+    ]);
     expect(r.kept.map((x) => x.id).sort()).toEqual(['a', 'b', 'q', 'q3']);
   });
   it('coverage merges overlapping spans and ignores points', () => {
@@ -65,8 +82,18 @@ describe('KDIGO', () => {
   it('urine stages at their boundaries', () => {
     expect(kdigoStageFromUrineOutput([{ hours: 6, mlPerKgPerHour: 0.5 }])).toBe(0);
     expect(kdigoStageFromUrineOutput([{ hours: 6, mlPerKgPerHour: 0.49 }])).toBe(1);
-    expect(kdigoStageFromUrineOutput([{ hours: 6, mlPerKgPerHour: 0.4 }, { hours: 12, mlPerKgPerHour: 0.45 }])).toBe(2);
-    expect(kdigoStageFromUrineOutput([{ hours: 12, mlPerKgPerHour: 0.45 }, { hours: 24, mlPerKgPerHour: 0.3 }])).toBe(2);
+    expect(
+      kdigoStageFromUrineOutput([
+        { hours: 6, mlPerKgPerHour: 0.4 },
+        { hours: 12, mlPerKgPerHour: 0.45 },
+      ]),
+    ).toBe(2);
+    expect(
+      kdigoStageFromUrineOutput([
+        { hours: 12, mlPerKgPerHour: 0.45 },
+        { hours: 24, mlPerKgPerHour: 0.3 },
+      ]),
+    ).toBe(2);
     expect(kdigoStageFromUrineOutput([{ hours: 24, mlPerKgPerHour: 0.29 }])).toBe(3);
     expect(kdigoStageFromUrineOutput([{ hours: 12, mlPerKgPerHour: 0 }])).toBe(3);
     expect(kdigoStageFromUrineOutput([{ hours: 6, mlPerKgPerHour: 0 }])).toBe(1);
@@ -92,7 +119,18 @@ describe('KDIGO', () => {
 });
 
 describe('WSACS grades', () => {
-  it.each([[11.9, 0], [12, 1], [15, 1], [15.5, 2], [16, 2], [20, 2], [20.5, 3], [25, 3], [25.1, 4], [40, 4]])('IAP %s → grade %s', (iap, grade) => {
+  it.each([
+    [11.9, 0],
+    [12, 1],
+    [15, 1],
+    [15.5, 2],
+    [16, 2],
+    [20, 2],
+    [20.5, 3],
+    [25, 3],
+    [25.1, 4],
+    [40, 4],
+  ])('IAP %s → grade %s', (iap, grade) => {
     expect(iahGrade(iap)).toBe(grade);
   });
   it('labels', () => {

@@ -61,10 +61,14 @@ describe('tolerance.vexus', () => {
     expect(vexus({ ivc: 2.3, hv: 'severe', pf: 60, rv: 'monophasic', ago: 7 * 60 }).status).toBe('not-assessed');
   });
   it('a stale Doppler part is treated as missing', () => {
-    const f = vexusRule(snapshot({
-      measurements: [m('ivcDiameterMax', 2.3, 30), m('portalPulsatility', 60, 30)],
-      coded: [coded('hepaticVeinPattern', 'severe', 8 * 60)],
-    }), NOW, T)[0]!;
+    const f = vexusRule(
+      snapshot({
+        measurements: [m('ivcDiameterMax', 2.3, 30), m('portalPulsatility', 60, 30)],
+        coded: [coded('hepaticVeinPattern', 'severe', 8 * 60)],
+      }),
+      NOW,
+      T,
+    )[0]!;
     expect(f.values).toMatchObject({ vexusGradeMin: 2, vexusGradeMax: 3 });
   });
   it('wrong unit: IVC in mm is not used', () => {
@@ -73,7 +77,8 @@ describe('tolerance.vexus', () => {
 });
 
 describe('tolerance.cvp', () => {
-  const run = (v?: number, ago = 30, unit?: string) => cvpRule(snapshot({ measurements: v === undefined ? [] : [m('cvp', v, ago, unit ? { unit } : {})] }), NOW, T)[0]!;
+  const run = (v?: number, ago = 30, unit?: string) =>
+    cvpRule(snapshot({ measurements: v === undefined ? [] : [m('cvp', v, ago, unit ? { unit } : {})] }), NOW, T)[0]!;
   it('boundary: 12 mmHg is high (moderate), 11 is not', () => {
     expect(limit(run(12))).toBe('moderate');
     expect(limit(run(11))).toBe('none');

@@ -18,14 +18,21 @@ describe('toleranceVerdict (docs/clinical-logic/index.md, "Tolerance")', () => {
     expect(v.rationale).toContain('a severe');
   });
   it('"poor" needs a lung, venous or balance finding: severe kidneys or abdomen alone stay limited', () => {
-    const v = toleranceVerdict([f('k', 'kidneys', 'severe'), f('i', 'abdomen', 'severe'), f('c', 'conditions', 'moderate'), f('s', 'lungs', 'none')], T);
+    const v = toleranceVerdict(
+      [f('k', 'kidneys', 'severe'), f('i', 'abdomen', 'severe'), f('c', 'conditions', 'moderate'), f('s', 'lungs', 'none')],
+      T,
+    );
     expect(v.value).toBe('limited');
     expect(v.rationale).toMatch(/no lung, venous or balance finding, so not called poor/);
     expect(toleranceVerdict([f('k', 'kidneys', 'severe'), f('l', 'lungs', 'moderate')], T).value).toBe('poor');
   });
   it('moderate findings in 3 domains, one of them lungs/venous/balance → poor; without one → limited; in 2 → limited', () => {
-    expect(toleranceVerdict([f('a', 'lungs', 'moderate'), f('b', 'kidneys', 'moderate'), f('c', 'conditions', 'moderate')], T).value).toBe('poor');
-    expect(toleranceVerdict([f('a', 'abdomen', 'moderate'), f('b', 'kidneys', 'moderate'), f('c', 'conditions', 'moderate')], T).value).toBe('limited');
+    expect(toleranceVerdict([f('a', 'lungs', 'moderate'), f('b', 'kidneys', 'moderate'), f('c', 'conditions', 'moderate')], T).value).toBe(
+      'poor',
+    );
+    expect(
+      toleranceVerdict([f('a', 'abdomen', 'moderate'), f('b', 'kidneys', 'moderate'), f('c', 'conditions', 'moderate')], T).value,
+    ).toBe('limited');
     const two = toleranceVerdict([f('a', 'lungs', 'moderate'), f('a2', 'lungs', 'moderate'), f('b', 'kidneys', 'moderate')], T);
     expect(two).toMatchObject({ value: 'limited', decidingRules: ['a', 'a2', 'b'] });
   });
@@ -34,13 +41,24 @@ describe('toleranceVerdict (docs/clinical-logic/index.md, "Tolerance")', () => {
     expect(toleranceVerdict(fs, { ...T, poorWhenModerateDomains: 2 }).value).toBe('poor');
   });
   it('no limit among at least 3 assessed markers, one in lungs/venous/balance → adequate, with its coverage', () => {
-    const v = toleranceVerdict([f('a', 'lungs', 'none'), f('b', 'kidneys', 'none'), f('c', 'venous', 'none'), f('ctx', 'balance', 'none', true), notAssessed('n', 'venous', 'x', 'no data', 'test')], T);
+    const v = toleranceVerdict(
+      [
+        f('a', 'lungs', 'none'),
+        f('b', 'kidneys', 'none'),
+        f('c', 'venous', 'none'),
+        f('ctx', 'balance', 'none', true),
+        notAssessed('n', 'venous', 'x', 'no data', 'test'),
+      ],
+      T,
+    );
     expect(v).toMatchObject({ value: 'adequate', decidingRules: ['a', 'b', 'c'], coverage: { assessed: 3, total: 4 } });
     expect(v.rationale).toBe('No limit found in 3 of 4 markers.');
   });
   it('too few markers assessed → not known (never "adequate" by default)', () => {
     expect(toleranceVerdict([f('a', 'lungs', 'none'), f('b', 'kidneys', 'none')], T).value).toBe('not-known');
-    expect(toleranceVerdict([f('a', 'kidneys', 'none'), f('b', 'conditions', 'none'), f('c', 'abdomen', 'none')], T).value).toBe('not-known');
+    expect(toleranceVerdict([f('a', 'kidneys', 'none'), f('b', 'conditions', 'none'), f('c', 'abdomen', 'none')], T).value).toBe(
+      'not-known',
+    );
     const v = toleranceVerdict([notAssessed('n', 'venous', 'x', 'no data', 'test'), f('ctx', 'balance', 'none', true)], T);
     expect(v).toMatchObject({ value: 'not-known', decidingRules: [] });
     expect(v.rationale).toMatch(/only 0 of 1 markers/);
@@ -49,7 +67,15 @@ describe('toleranceVerdict (docs/clinical-logic/index.md, "Tolerance")', () => {
     expect(toleranceVerdict([f('ctx', 'balance', 'severe', true)], T).value).toBe('not-known');
   });
   it('a number counts once: a CVP finding that decided responsiveness becomes context (docs/clinical-logic)', () => {
-    const cvp = assessed({ ruleId: 'tolerance.cvp', domain: 'venous', limit: 'moderate', text: 'CVP 14 mmHg', evidence: [], source: 'test', uses: ['cvp'] });
+    const cvp = assessed({
+      ruleId: 'tolerance.cvp',
+      domain: 'venous',
+      limit: 'moderate',
+      text: 'CVP 14 mmHg',
+      evidence: [],
+      source: 'test',
+      uses: ['cvp'],
+    });
     const [counted] = countOnce([cvp], ['cvp']);
     expect(counted).toMatchObject({ contextOnly: true, limit: 'none' });
     expect(counted!.text).toMatch(/counted once/);
@@ -58,7 +84,8 @@ describe('toleranceVerdict (docs/clinical-logic/index.md, "Tolerance")', () => {
 });
 
 describe('assessTolerance', () => {
-  const run = (s: ReturnType<typeof snapshot>, counted: Parameters<typeof assessTolerance>[1] = []) => assessTolerance(contextOf(s, NOW, T), counted);
+  const run = (s: ReturnType<typeof snapshot>, counted: Parameters<typeof assessTolerance>[1] = []) =>
+    assessTolerance(contextOf(s, NOW, T), counted);
   it('runs every rule once, in a fixed order, and reports coverage', () => {
     const r = run(snapshot());
     expect(r.findings.map((x) => x.ruleId)).toEqual(TOLERANCE_RULES.map((x) => x.id));
@@ -69,8 +96,12 @@ describe('assessTolerance', () => {
   it('a congested patient: poor, with EVLWI and VExUS deciding', () => {
     const s = snapshot({
       measurements: [
-        m('evlwi', 13.2, 90), m('ivcDiameterMax', 2.4, 60), m('portalPulsatility', 65, 60), m('albumin', 24, 600),
-        m('bodyWeight', 80, 3 * 1440 - 30), ...hourly('urineOutput', 60, 12),
+        m('evlwi', 13.2, 90),
+        m('ivcDiameterMax', 2.4, 60),
+        m('portalPulsatility', 65, 60),
+        m('albumin', 24, 600),
+        m('bodyWeight', 80, 3 * 1440 - 30),
+        ...hourly('urineOutput', 60, 12),
       ],
       coded: [coded('hepaticVeinPattern', 'severe', 60), coded('renalVeinPattern', 'monophasic', 60)],
       conditions: [condition(SNOMED, '84114007')],
@@ -87,7 +118,14 @@ describe('assessTolerance', () => {
   });
   it('isolates a rule that throws: the error is recorded, a not-assessed finding stands in, the rest still count', () => {
     // A 0 kg weight (impossible; the snapshot layer would have excluded it) makes the %FO formula throw.
-    const s = snapshot({ measurements: [m('bodyWeight', 0, 3 * 1440 - 30), m('fluidIntake', 3000, 0, { periodMinutes: 600 }), m('fluidOutput', 500, 0, { periodMinutes: 600 }), m('evlwi', 12, 60)] });
+    const s = snapshot({
+      measurements: [
+        m('bodyWeight', 0, 3 * 1440 - 30),
+        m('fluidIntake', 3000, 0, { periodMinutes: 600 }),
+        m('fluidOutput', 500, 0, { periodMinutes: 600 }),
+        m('evlwi', 12, 60),
+      ],
+    });
     const r = run(s);
     expect(r.ruleErrors.map((e) => e.ruleId)).toContain('tolerance.fluid-overload');
     const fo = r.findings.find((x) => x.ruleId === 'tolerance.fluid-overload')!;
@@ -99,7 +137,19 @@ describe('assessTolerance', () => {
 describe('toleranceThresholdsSchema', () => {
   it('parse({}) gives the published defaults', () => {
     const t = toleranceThresholdsSchema.parse({});
-    expect(t).toMatchObject({ adultFluidOverloadPercent: 10, adequateMinMarkers: 3, bLineBilateralPerSide: 2, fluidOverloadModeratePercent: 10, fluidOverloadSeverePercent: 20, albuminLowGPerL: 30, evlwiOedemaMlPerKg: 10, vexusIvcCm: 2, iahMmHg: 12, cvpHighMmHg: 12, portalSeverePercent: 50 });
+    expect(t).toMatchObject({
+      adultFluidOverloadPercent: 10,
+      adequateMinMarkers: 3,
+      bLineBilateralPerSide: 2,
+      fluidOverloadModeratePercent: 10,
+      fluidOverloadSeverePercent: 20,
+      albuminLowGPerL: 30,
+      evlwiOedemaMlPerKg: 10,
+      vexusIvcCm: 2,
+      iahMmHg: 12,
+      cvpHighMmHg: 12,
+      portalSeverePercent: 50,
+    });
   });
   it('takes a single override, rejects unknown keys and inverted bands', () => {
     expect(toleranceThresholdsSchema.parse({ cvpHighMmHg: 14 }).cvpHighMmHg).toBe(14);

@@ -22,17 +22,37 @@ const catalogue = loadCatalogue().catalogue;
 function records(): StoredAdvice[] {
   return SCENARIOS.map((s, i) => {
     const built = s.build(NOW);
-    const snapshot = buildSnapshot(built.resources, {
-      patientId: s.patientId, encounterId: s.encounterId,
-      ...(built.hook === 'order-select' ? { selections: built.selections } : {}),
-      draftOrders: { entry: built.draftOrders.map((resource) => ({ resource })) },
-    }, NOW);
+    const snapshot = buildSnapshot(
+      built.resources,
+      {
+        patientId: s.patientId,
+        encounterId: s.encounterId,
+        ...(built.hook === 'order-select' ? { selections: built.selections } : {}),
+        draftOrders: { entry: built.draftOrders.map((resource) => ({ resource })) },
+      },
+      NOW,
+    );
     const full = assess(snapshot, NOW, T, VERSION);
     const { whatIf: _dropped, ...old } = full;
     const base: StoredAdvice = {
-      id: `rec-${i}`, recordedAt: NOW.toISOString(), service: serviceIdFor(built.hook), hook: built.hook, hookInstance: `h-${i}`,
-      patientId: s.patientId, outcome: 'answered', rulesVersion: VERSION, snapshot, findings: old.findings, advice: old,
-      cards: [], cardKinds: {}, gathering: [], timings: { totalMs: 0, gatherMs: 0, fhirWaitMs: 0, assessMs: 0 }, seq: i + 1, hash: '', prevHash: '',
+      id: `rec-${i}`,
+      recordedAt: NOW.toISOString(),
+      service: serviceIdFor(built.hook),
+      hook: built.hook,
+      hookInstance: `h-${i}`,
+      patientId: s.patientId,
+      outcome: 'answered',
+      rulesVersion: VERSION,
+      snapshot,
+      findings: old.findings,
+      advice: old,
+      cards: [],
+      cardKinds: {},
+      gathering: [],
+      timings: { totalMs: 0, gatherMs: 0, fhirWaitMs: 0, assessMs: 0 },
+      seq: i + 1,
+      hash: '',
+      prevHash: '',
     };
     const r = rerun(base, { thresholds: T, rulesVersion: VERSION, catalogue })!;
     return { ...base, cards: r.cards.map((c) => c.card), cardKinds: Object.fromEntries(r.cards.map((c) => [c.card.uuid ?? '', c.kind])) };

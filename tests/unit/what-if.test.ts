@@ -29,12 +29,23 @@ function patient(): SnapshotBuilder {
     .measure('bodyHeight', 175, { ageMin: 3000 })
     .vitals({ hr: 100, map: 72, rr: 20 }, { ageMin: 5 })
     .measure('lactate', 2.8, { ageMin: 30 })
-    .draftOrder({ ref: 'draftOrders#MedicationRequest/d1', resourceType: 'MedicationRequest', id: 'd1', selected: true, isFluid: true, volumeMl: 500, durationMin: 30, resource: {} });
+    .draftOrder({
+      ref: 'draftOrders#MedicationRequest/d1',
+      resourceType: 'MedicationRequest',
+      id: 'd1',
+      selected: true,
+      isFluid: true,
+      volumeMl: 500,
+      durationMin: 30,
+      resource: {},
+    });
 }
 /** Controlled ventilation without effort, sinus rhythm, tidal volume `vtMl` (600 mL = 8.5 mL/kg PBW; 400 mL = 5.7). */
-const ventilated = (b: SnapshotBuilder, vtMl = 600) => b
-  .coded('ventilationMode', 'controlled-no-effort', { ageMin: 10 }).coded('heartRhythm', 'sinus', { ageMin: 10 })
-  .measure('tidalVolume', vtMl, { ageMin: 10 });
+const ventilated = (b: SnapshotBuilder, vtMl = 600) =>
+  b
+    .coded('ventilationMode', 'controlled-no-effort', { ageMin: 10 })
+    .coded('heartRhythm', 'sinus', { ageMin: 10 })
+    .measure('tidalVolume', vtMl, { ageMin: 10 });
 /** A flow monitor in use: a cardiac output reading 5 min ago. */
 const flowMonitor = (b: SnapshotBuilder) => b.measure('cardiacOutput', 5.0, { ageMin: 5 });
 
@@ -54,7 +65,12 @@ describe('what-if: feasibility', () => {
     expect(row(a, 'passive-leg-raise')).toMatchObject({ feasible: false, notFeasible: ['raised-abdominal-pressure'], outcomes: [] });
     expect(row(a, 'mini-fluid-challenge')).toMatchObject({ feasible: true, notFeasible: [] });
     expect(a.responsiveness?.nextTest).toBe('mini-fluid-challenge');
-    expect(a.whatIf?.rows.map((r) => r.test)).toEqual(['mini-fluid-challenge', 'passive-leg-raise', 'tidal-volume-challenge', 'end-expiratory-occlusion']);
+    expect(a.whatIf?.rows.map((r) => r.test)).toEqual([
+      'mini-fluid-challenge',
+      'passive-leg-raise',
+      'tidal-volume-challenge',
+      'end-expiratory-occlusion',
+    ]);
     expect(a.whatIf?.decisive).toBe('mini-fluid-challenge');
   });
 
@@ -76,7 +92,10 @@ describe('what-if: feasibility', () => {
     const tvc = row(a, 'tidal-volume-challenge');
     expect(tvc).toMatchObject({ feasible: true, notFeasible: [] });
     // Myatra 2017: absolute ΔPPV ≥ 3.5 points; positive 4 points, negative 1.75.
-    expect(tvc.outcomes.map((o) => [o.result, o.assumed.measured, o.assumed.changeAbsolute])).toEqual([['positive', 'ppv', 4], ['negative', 'ppv', 1.75]]);
+    expect(tvc.outcomes.map((o) => [o.result, o.assumed.measured, o.assumed.changeAbsolute])).toEqual([
+      ['positive', 'ppv', 4],
+      ['negative', 'ppv', 1.75],
+    ]);
     expect(a.responsiveness).toMatchObject({ value: 'likely', confidence: 'moderate', nextTest: 'tidal-volume-challenge' });
     // Positive: the PPV is confirmed by a flow-independent dynamic test; negative: conflicting dynamic evidence.
     expect(outcome(tvc, 'positive')).toMatchObject({ responsiveness: 'likely', confidence: 'high', changes: false });
@@ -85,15 +104,23 @@ describe('what-if: feasibility', () => {
   });
 
   it('tidal volume 600 mL (8.5 mL/kg PBW ≥ 8): the tidal volume challenge is not offered; without a tidal volume it is "unknown"', () => {
-    expect(row(run(ventilated(patient(), 600).measure('ppv', 16, { ageMin: 5 })), 'tidal-volume-challenge').notFeasible).toEqual(['tidal-volume-not-low']);
-    const noVt = patient().coded('ventilationMode', 'controlled-no-effort', { ageMin: 10 }).coded('heartRhythm', 'sinus', { ageMin: 10 }).measure('ppv', 16, { ageMin: 5 });
+    expect(row(run(ventilated(patient(), 600).measure('ppv', 16, { ageMin: 5 })), 'tidal-volume-challenge').notFeasible).toEqual([
+      'tidal-volume-not-low',
+    ]);
+    const noVt = patient()
+      .coded('ventilationMode', 'controlled-no-effort', { ageMin: 10 })
+      .coded('heartRhythm', 'sinus', { ageMin: 10 })
+      .measure('ppv', 16, { ageMin: 5 });
     expect(row(run(noVt), 'tidal-volume-challenge').notFeasible).toEqual(['tidal-volume-unknown']);
   });
 
   it('the tidal volume challenge needs an arterial line (a current PPV or SVV) and sinus rhythm', () => {
     expect(row(run(ventilated(patient(), 400)), 'tidal-volume-challenge').notFeasible).toEqual(['no-arterial-line']);
-    const af = patient().coded('ventilationMode', 'controlled-no-effort', { ageMin: 10 }).coded('heartRhythm', 'atrial-fibrillation', { ageMin: 10 })
-      .measure('tidalVolume', 400, { ageMin: 10 }).measure('ppv', 16, { ageMin: 5 });
+    const af = patient()
+      .coded('ventilationMode', 'controlled-no-effort', { ageMin: 10 })
+      .coded('heartRhythm', 'atrial-fibrillation', { ageMin: 10 })
+      .measure('tidalVolume', 400, { ageMin: 10 })
+      .measure('ppv', 16, { ageMin: 5 });
     expect(row(run(af), 'tidal-volume-challenge').notFeasible).toEqual(['no-sinus-rhythm']);
   });
 
@@ -102,15 +129,23 @@ describe('what-if: feasibility', () => {
     expect(row(a, 'end-expiratory-occlusion')).toMatchObject({ feasible: false, notFeasible: ['spontaneous-breathing'] });
     expect(row(a, 'tidal-volume-challenge').notFeasible).toEqual(['spontaneous-breathing', 'no-arterial-line', 'tidal-volume-unknown']);
     // Effort on the ventilator is spontaneous breathing too; no ventilation state charted is "not ventilated".
-    expect(row(run(patient().coded('ventilationMode', 'controlled-with-effort', { ageMin: 10 })), 'end-expiratory-occlusion').notFeasible).toEqual(['spontaneous-breathing']);
+    expect(
+      row(run(patient().coded('ventilationMode', 'controlled-with-effort', { ageMin: 10 })), 'end-expiratory-occlusion').notFeasible,
+    ).toEqual(['spontaneous-breathing']);
     expect(row(run(patient()), 'end-expiratory-occlusion').notFeasible).toEqual(['not-ventilated']);
   });
 
   it('controlled ventilation without a flow monitor: end-expiratory occlusion is read on VTI by echo (≥ 9 %, Crit Care 2018); with one, on cardiac output (> 5 %, Monnet 2009)', () => {
     const echo = row(run(ventilated(patient())), 'end-expiratory-occlusion');
-    expect(echo.outcomes.map((o) => [o.assumed.measured, o.assumed.changePercent, o.assumed.strict])).toEqual([['vti', 10, false], ['vti', 4.5, false]]);
+    expect(echo.outcomes.map((o) => [o.assumed.measured, o.assumed.changePercent, o.assumed.strict])).toEqual([
+      ['vti', 10, false],
+      ['vti', 4.5, false],
+    ]);
     const monitor = row(run(flowMonitor(ventilated(patient()))), 'end-expiratory-occlusion');
-    expect(monitor.outcomes.map((o) => [o.assumed.measured, o.assumed.changePercent, o.assumed.strict])).toEqual([['cardiacOutput', 6, true], ['cardiacOutput', 2.5, true]]);
+    expect(monitor.outcomes.map((o) => [o.assumed.measured, o.assumed.changePercent, o.assumed.strict])).toEqual([
+      ['cardiacOutput', 6, true],
+      ['cardiacOutput', 2.5, true],
+    ]);
   });
 
   it('no flow monitor: the leg raise by flow is not feasible, the mini fluid challenge with VTI by echo is, and it is the test offered', () => {
@@ -118,7 +153,10 @@ describe('what-if: feasibility', () => {
     expect(row(a, 'passive-leg-raise')).toMatchObject({ feasible: false, notFeasible: ['no-flow-monitor'] });
     const mfc = row(a, 'mini-fluid-challenge');
     // Muller 2011: ΔVTI ≥ 10 %.
-    expect(mfc.outcomes.map((o) => [o.assumed.measured, o.assumed.unit, o.assumed.changePercent])).toEqual([['vti', 'cm', 11], ['vti', 'cm', 5]]);
+    expect(mfc.outcomes.map((o) => [o.assumed.measured, o.assumed.unit, o.assumed.changePercent])).toEqual([
+      ['vti', 'cm', 11],
+      ['vti', 'cm', 5],
+    ]);
     expect(a.responsiveness?.nextTest).toBe('mini-fluid-challenge');
     // A cardiac output reading older than flowMonitorRecentMin (240 min) is no monitor in use.
     expect(row(run(patient().measure('cardiacOutput', 5, { ageMin: 241 })), 'passive-leg-raise').notFeasible).toEqual(['no-flow-monitor']);
@@ -128,21 +166,39 @@ describe('what-if: feasibility', () => {
 describe('what-if: outcomes and the decisive test', () => {
   it('an indeterminate patient: a positive test → likely, a negative → unlikely; the offered test is decisive', () => {
     // Tolerance adequate from 4 markers: SpO2/FiO2 96/0.30 = 320 (Rice 2007: > 235), CVP 8 mmHg, creatinine steady.
-    const b = patient().coded('ventilationMode', 'spontaneous', { ageMin: 10 })
-      .measure('spo2', 96, { ageMin: 10 }).measure('fio2', 30, { ageMin: 10 }).measure('cvp', 8, { ageMin: 30 })
-      .measure('creatinine', 0.9, { ageMin: 20 * 60 }).measure('creatinine', 0.9, { ageMin: 4 * 60 });
+    const b = patient()
+      .coded('ventilationMode', 'spontaneous', { ageMin: 10 })
+      .measure('spo2', 96, { ageMin: 10 })
+      .measure('fio2', 30, { ageMin: 10 })
+      .measure('cvp', 8, { ageMin: 30 })
+      .measure('creatinine', 0.9, { ageMin: 20 * 60 })
+      .measure('creatinine', 0.9, { ageMin: 4 * 60 });
     const a = run(b);
     expect(a.tolerance?.value).toBe('adequate');
     expect(a.responsiveness?.value).toBe('indeterminate');
     expect(a.recommendation?.action).toBe('test-first');
     const mfc = row(a, 'mini-fluid-challenge');
-    expect(outcome(mfc, 'positive')).toMatchObject({ responsiveness: 'likely', confidence: 'high', action: 'proceed-and-reassess', changes: true });
-    expect(outcome(mfc, 'negative')).toMatchObject({ responsiveness: 'unlikely', confidence: 'high', action: 'question-bolus', changes: true });
+    expect(outcome(mfc, 'positive')).toMatchObject({
+      responsiveness: 'likely',
+      confidence: 'high',
+      action: 'proceed-and-reassess',
+      changes: true,
+    });
+    expect(outcome(mfc, 'negative')).toMatchObject({
+      responsiveness: 'unlikely',
+      confidence: 'high',
+      action: 'question-bolus',
+      changes: true,
+    });
     expect(a.whatIf?.decisive).toBe('mini-fluid-challenge');
   });
 
   it('a fresh validated leg raise by cardiac output (4.0 → 4.6 L/min, +15 % ≥ 10 %): already done, the verdict is settled, nothing is decisive', () => {
-    const a = run(flowMonitor(patient().coded('ventilationMode', 'spontaneous', { ageMin: 10 })).dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, { ageMin: 10 }));
+    const a = run(
+      flowMonitor(patient().coded('ventilationMode', 'spontaneous', { ageMin: 10 })).dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, {
+        ageMin: 10,
+      }),
+    );
     expect(a.responsiveness).toMatchObject({ value: 'likely', confidence: 'high' });
     expect(row(a, 'passive-leg-raise')).toMatchObject({ feasible: false, notFeasible: ['already-done'] });
     // A second test that disagreed would make it a conflict (indeterminate): the row says so, but a high-confidence verdict is settled.
@@ -157,15 +213,22 @@ describe('what-if: outcomes and the decisive test', () => {
   });
 
   it('a leg raise done before a later bolus (set aside by the event) is not "already done"', () => {
-    const a = run(flowMonitor(patient()).dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, { ageMin: 60 }).fluid({ volumeMl: 250, startAgeMin: 40, endAgeMin: 25 }));
+    const a = run(
+      flowMonitor(patient())
+        .dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, { ageMin: 60 })
+        .fluid({ volumeMl: 250, startAgeMin: 40, endAgeMin: 25 }),
+    );
     expect(row(a, 'passive-leg-raise').feasible).toBe(true);
   });
 
   it('a clear responder with poor tolerance, every test done or not feasible: no row has outcomes and nothing is decisive', () => {
-    // PLR +15 % and mini fluid challenge +15 % (both ≥ 10 %) fresh; spontaneous breathing; EVLWI 14 mL/kg (≥ 10: pulmonary oedema, Tagami 2010) and IAP 18.
+    // PLR +15 % and mini fluid challenge +15 % (both ≥ 10 %) fresh; spontaneous breathing; EVLWI 14 mL/kg (≥ 10: pulmonary oedema, Tagami
+    // 2010) and IAP 18.
     const b = flowMonitor(patient().coded('ventilationMode', 'spontaneous', { ageMin: 10 }))
-      .dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, { ageMin: 10 }).dynamicTest('miniFluidChallenge', 'vti', 20, 23, { ageMin: 8 })
-      .measure('evlwi', 14, { ageMin: 30 }).measure('intraAbdominalPressure', 18, { ageMin: 20 });
+      .dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, { ageMin: 10 })
+      .dynamicTest('miniFluidChallenge', 'vti', 20, 23, { ageMin: 8 })
+      .measure('evlwi', 14, { ageMin: 30 })
+      .measure('intraAbdominalPressure', 18, { ageMin: 20 });
     const a = run(b);
     expect(a.responsiveness).toMatchObject({ value: 'likely', confidence: 'high' });
     expect(a.tolerance?.value).toBe('poor');
@@ -176,11 +239,18 @@ describe('what-if: outcomes and the decisive test', () => {
   });
 
   it('a clear responder with poor tolerance under controlled ventilation: a positive occlusion test changes nothing; nothing is decisive', () => {
-    const b = flowMonitor(ventilated(patient())).dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, { ageMin: 10 }).measure('evlwi', 14, { ageMin: 30 });
+    const b = flowMonitor(ventilated(patient()))
+      .dynamicTest('plr', 'cardiacOutput', 4.0, 4.6, { ageMin: 10 })
+      .measure('evlwi', 14, { ageMin: 30 });
     const a = run(b);
     expect(a.tolerance?.value).toBe('poor');
     const eeo = row(a, 'end-expiratory-occlusion');
-    expect(outcome(eeo, 'positive')).toMatchObject({ responsiveness: 'likely', action: a.recommendation?.action, headline: a.recommendation?.headline, changes: false });
+    expect(outcome(eeo, 'positive')).toMatchObject({
+      responsiveness: 'likely',
+      action: a.recommendation?.action,
+      headline: a.recommendation?.headline,
+      changes: false,
+    });
     expect(a.whatIf?.decisive).toBeUndefined();
   });
 
@@ -198,11 +268,16 @@ describe('what-if: outcomes and the decisive test', () => {
   });
 
   it('without a selected fluid order the outcomes carry the verdict only, and changes compare the verdict', () => {
-    const b = new SnapshotBuilder({ sex: 'male' }).vitals({ hr: 100, map: 72, rr: 20 }, { ageMin: 5 }).measure('lactate', 2.8, { ageMin: 30 });
+    const b = new SnapshotBuilder({ sex: 'male' })
+      .vitals({ hr: 100, map: 72, rr: 20 }, { ageMin: 5 })
+      .measure('lactate', 2.8, { ageMin: 30 });
     const a = run(b);
     expect(a.recommendation).toBeUndefined();
     const mfc = row(a, 'mini-fluid-challenge');
-    expect(mfc.outcomes.map((o) => [o.responsiveness, o.action, o.changes])).toEqual([['likely', undefined, true], ['unlikely', undefined, true]]);
+    expect(mfc.outcomes.map((o) => [o.responsiveness, o.action, o.changes])).toEqual([
+      ['likely', undefined, true],
+      ['unlikely', undefined, true],
+    ]);
   });
 
   it('the hypothetical results stay out of the advice: findings as without the what-if, no "what-if#" reference anywhere but in the re-runs', () => {

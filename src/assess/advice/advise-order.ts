@@ -37,8 +37,9 @@ export function adviseOrder(a: AdviseInput): OrderRecommendation {
   const harm = all.filter((f): f is ToleranceFinding => f.topic === 'tolerance' && f.status === 'assessed' && f.harmSign);
   const critical = tol.value === 'poor' && harm.length > 0;
   // Nothing current to go on: no clinical finding rests on evidence, and some marker was set aside as stale.
-  const onlyStale = !all.some((f) => f.status === 'assessed' && f.topic !== 'order' && f.topic !== 'phase' && f.evidence.length > 0)
-    && all.some((f) => f.topic !== 'order' && f.gap === 'stale');
+  const onlyStale =
+    !all.some((f) => f.status === 'assessed' && f.topic !== 'order' && f.topic !== 'phase' && f.evidence.length > 0) &&
+    all.some((f) => f.topic !== 'order' && f.gap === 'stale');
 
   let action: AdviceAction = entry.action;
   let headline: HeadlineKey = `${row}/${tol.value}`;
@@ -83,12 +84,16 @@ export function adviseOrder(a: AdviseInput): OrderRecommendation {
   // The test is offered whenever the verdict is not of high confidence and there is a decision to make.
   const offerTest = action === 'test-first' || (action !== 'question-need' && r.confidence !== 'high');
   return {
-    action, indicator, headline, reasons,
+    action,
+    indicator,
+    headline,
+    reasons,
     alternatives: unique(alternatives.filter((x) => !(orderedIsAlbumin && x === 'albumin'))),
     ...(offerTest && r.nextTest ? { nextTest: r.nextTest } : {}),
     cell: `${row}/${tol.value}`,
     ...(r.confidence ? { confidence: r.confidence } : {}),
-    need: need.value, phase: phase.value,
+    need: need.value,
+    phase: phase.value,
     toleranceAssessed: tol.value !== 'not-known',
     harmSigns: harm.map((f) => f.ruleId),
     decidingRules: unique([...r.decidingRules, ...tol.decidingRules, ...need.decidingRules, ...harm.map((f) => f.ruleId)]),

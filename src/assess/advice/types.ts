@@ -12,7 +12,14 @@ import type { Confidence, Need, NextTestKind, PhaseValue, Responsiveness, Tolera
  * question-bolus           — a response is unlikely: reconsider the bolus and take a better next step;
  * test-first               — responsiveness is uncertain (or only probable): the named test settles it before volume.
  */
-export const ADVICE_ACTIONS = ['proceed-and-reassess', 'smaller-aliquot', 'resuscitate-and-reassess', 'question-need', 'question-bolus', 'test-first'] as const;
+export const ADVICE_ACTIONS = [
+  'proceed-and-reassess',
+  'smaller-aliquot',
+  'resuscitate-and-reassess',
+  'question-need',
+  'question-bolus',
+  'test-first',
+] as const;
 export type AdviceAction = (typeof ADVICE_ACTIONS)[number];
 export type AdviceIndicator = 'info' | 'warning' | 'critical';
 
@@ -24,9 +31,15 @@ export type MatrixCell = `${MatrixRow}/${Tolerance}`;
 
 /** Headlines outside the matrix cells. */
 export const SPECIAL_HEADLINES = [
-  'congestion/likely', 'congestion/unlikely', 'congestion/indeterminate',
-  'early/any', 'early/unlikely', 'early/congestion',
-  'no-need/responsive', 'no-need/untested', 'need-unknown/responsive',
+  'congestion/likely',
+  'congestion/unlikely',
+  'congestion/indeterminate',
+  'early/any',
+  'early/unlikely',
+  'early/congestion',
+  'no-need/responsive',
+  'no-need/untested',
+  'need-unknown/responsive',
   'stale-data/any',
 ] as const;
 export type SpecialHeadline = (typeof SPECIAL_HEADLINES)[number];
@@ -39,7 +52,15 @@ export const HEADLINE_KEYS: readonly HeadlineKey[] = [
 
 /** Options to weigh instead of, or before, the bolus (named, never dosed). */
 export const ALTERNATIVES = [
-  'smaller-aliquot', 'vasopressor', 'vasoactive-by-picture', 'albumin', 'echo', 'cause', 'fluid-removal', 'bolus-if-positive', 'perfusion-check',
+  'smaller-aliquot',
+  'vasopressor',
+  'vasoactive-by-picture',
+  'albumin',
+  'echo',
+  'cause',
+  'fluid-removal',
+  'bolus-if-positive',
+  'perfusion-check',
 ] as const;
 export type AlternativeCode = (typeof ALTERNATIVES)[number];
 

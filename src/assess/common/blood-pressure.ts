@@ -39,7 +39,13 @@ export function mapSeries(s: PatientSnapshot, now: Date): MapPoint[] {
   for (const [ms, sbp] of firstAt(readings(s, 'systolicBp', now).items)) {
     const dbp = dbpAt.get(ms);
     if (dbp === undefined || measuredAt.has(ms) || sbp.value < dbp.value) continue;
-    points.push({ mapMmHg: meanArterialPressureMmHg(sbp.value, dbp.value), effective: sbp.effective, effectiveMs: ms, measured: false, sources: [sbp, dbp] });
+    points.push({
+      mapMmHg: meanArterialPressureMmHg(sbp.value, dbp.value),
+      effective: sbp.effective,
+      effectiveMs: ms,
+      measured: false,
+      sources: [sbp, dbp],
+    });
   }
   return points.sort((a, b) => b.effectiveMs - a.effectiveMs || compareText(a.sources[0]?.ref ?? '', b.sources[0]?.ref ?? ''));
 }

@@ -13,8 +13,10 @@ import type { Evidence } from './finding.js';
 import { evidenceOfMeasurement, latestReading, type Selection } from './select.js';
 import type { Windows } from './windows.js';
 
-export const CVP_RESPONSIVENESS_SOURCE = 'CVP extremes: common practice; no CVP value predicts fluid response well: Eskesen TG et al., Intensive Care Med 2016;42:324; Marik PE et al., Chest 2008;134:172; Marik PE, Cavallazzi R, Crit Care Med 2013;41:1774';
-export const CVP_TOLERANCE_SOURCE = 'High CVP ≥ 12 mmHg (common practice; Boyd JH et al., Crit Care Med 2011;39:259); limits of CVP: Marik PE et al., Chest 2008;134:172';
+export const CVP_RESPONSIVENESS_SOURCE =
+  'CVP extremes: common practice; no CVP value predicts fluid response well: Eskesen TG et al., Intensive Care Med 2016;42:324; Marik PE et al., Chest 2008;134:172; Marik PE, Cavallazzi R, Crit Care Med 2013;41:1774';
+export const CVP_TOLERANCE_SOURCE =
+  'High CVP ≥ 12 mmHg (common practice; Boyd JH et al., Crit Care Med 2011;39:259); limits of CVP: Marik PE et al., Chest 2008;134:172';
 
 export interface CvpReading {
   sel: Selection<Measurement>;

@@ -13,7 +13,7 @@ export type Freshness = 'fresh' | 'stale' | 'missing';
 
 /** Why a finding was not assessed, as a code: the cards group gaps by it, never by the words of the reason. */
 export type GapKind =
-  | 'missing' | 'stale' | 'set-aside' | 'invalid' | 'outside-validity' | 'confounded' | 'too-few-readings' | 'not-applicable' | 'rule-error';
+  'missing' | 'stale' | 'set-aside' | 'invalid' | 'outside-validity' | 'confounded' | 'too-few-readings' | 'not-applicable' | 'rule-error';
 
 /** A number that more than one question could use; it counts once (docs/clinical-logic/index.md). */
 export type SharedNumber = 'cvp';
@@ -41,7 +41,16 @@ interface FindingBase {
 export type Tier = 'dynamic' | 'static' | 'context';
 export type Direction = 'for' | 'against' | 'neutral';
 export const MARKERS = [
-  'ppv', 'svv', 'plr', 'mini-fluid-challenge', 'end-expiratory-occlusion', 'tidal-volume-challenge', 'last-bolus', 'ivc', 'cvp', 'lv-function',
+  'ppv',
+  'svv',
+  'plr',
+  'mini-fluid-challenge',
+  'end-expiratory-occlusion',
+  'tidal-volume-challenge',
+  'last-bolus',
+  'ivc',
+  'cvp',
+  'lv-function',
 ] as const;
 export type Marker = (typeof MARKERS)[number];
 
@@ -101,31 +110,48 @@ export type FindingTopic = Finding['topic'];
 
 /** The parts of a not-assessed finding for a selection that is missing, stale, set aside or invalid. */
 export function unusableParts<T>(
-  sel: Unusable<T>, label: string, evidenceOf: (item: T) => Evidence,
+  sel: Unusable<T>,
+  label: string,
+  evidenceOf: (item: T) => Evidence,
 ): Pick<FindingBase, 'status' | 'text' | 'reason' | 'gap' | 'evidence' | 'values'> {
   switch (sel.state) {
     case 'missing':
       return {
-        status: 'not-assessed', gap: 'missing', text: `${label}: not assessed (none recorded)`, reason: `no ${inSentence(label)} recorded`,
-        evidence: [], values: { freshness: 'missing', windowMin: sel.windowMin },
+        status: 'not-assessed',
+        gap: 'missing',
+        text: `${label}: not assessed (none recorded)`,
+        reason: `no ${inSentence(label)} recorded`,
+        evidence: [],
+        values: { freshness: 'missing', windowMin: sel.windowMin },
       };
     case 'stale': {
       const why = staleText(sel.ageMinutes, sel.windowMin);
       return {
-        status: 'not-assessed', gap: 'stale', text: `${label}: not assessed, latest ${why}`, reason: `${label} ${why}`,
-        evidence: [evidenceOf(sel.item)], values: { freshness: 'stale', ageMin: Math.round(sel.ageMinutes), windowMin: sel.windowMin },
+        status: 'not-assessed',
+        gap: 'stale',
+        text: `${label}: not assessed, latest ${why}`,
+        reason: `${label} ${why}`,
+        evidence: [evidenceOf(sel.item)],
+        values: { freshness: 'stale', ageMin: Math.round(sel.ageMinutes), windowMin: sel.windowMin },
       };
     }
     case 'set-aside':
       return {
-        status: 'not-assessed', gap: 'set-aside', text: `${label}: set aside, taken before a later event (${sel.event.text})`,
+        status: 'not-assessed',
+        gap: 'set-aside',
+        text: `${label}: set aside, taken before a later event (${sel.event.text})`,
         reason: `${label} no longer describes the patient: taken before ${sel.event.text}`,
-        evidence: [evidenceOf(sel.item), sel.event.evidence, ...(sel.event.previous ? [sel.event.previous] : [])], values: { freshness: 'set-aside', ageMin: Math.round(sel.ageMinutes) },
+        evidence: [evidenceOf(sel.item), sel.event.evidence, ...(sel.event.previous ? [sel.event.previous] : [])],
+        values: { freshness: 'set-aside', ageMin: Math.round(sel.ageMinutes) },
       };
     case 'invalid':
       return {
-        status: 'not-assessed', gap: 'invalid', text: `${label}: not assessed, invalid value (${sel.detail})`, reason: `${label} invalid: ${sel.detail}`,
-        evidence: [evidenceOf(sel.item)], values: { freshness: 'invalid' },
+        status: 'not-assessed',
+        gap: 'invalid',
+        text: `${label}: not assessed, invalid value (${sel.detail})`,
+        reason: `${label} invalid: ${sel.detail}`,
+        evidence: [evidenceOf(sel.item)],
+        values: { freshness: 'invalid' },
       };
   }
 }

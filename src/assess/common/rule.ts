@@ -26,9 +26,15 @@ export interface Rule<T, F extends Finding = Finding> {
   onError: (message: string) => F;
 }
 
-export interface RuleError { ruleId: string; message: string }
+export interface RuleError {
+  ruleId: string;
+  message: string;
+}
 
-export function runRules<T, F extends Finding>(rules: readonly Rule<T, F>[], ctx: RuleContext<T>): { findings: F[]; ruleErrors: RuleError[] } {
+export function runRules<T, F extends Finding>(
+  rules: readonly Rule<T, F>[],
+  ctx: RuleContext<T>,
+): { findings: F[]; ruleErrors: RuleError[] } {
   const findings: F[] = [];
   const ruleErrors: RuleError[] = [];
   for (const rule of rules) {

@@ -7,7 +7,14 @@
  */
 import { KIND_UNITS, type CodedKind, type DynamicTestKind, type NumericKind } from '../../fhir/codes.js';
 import { parseTimeMs } from '../../snapshot/time.js';
-import type { CodedMeasurement, DynamicTestResult, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug } from '../../snapshot/types.js';
+import type {
+  CodedMeasurement,
+  DynamicTestResult,
+  FluidGiven,
+  Measurement,
+  PatientSnapshot,
+  VasoactiveDrug,
+} from '../../snapshot/types.js';
 import type { Evidence, EvidenceEvent, Selection } from './evidence.js';
 import { round } from './text.js';
 
@@ -99,13 +106,22 @@ function choose<T extends { effective: string }>(items: readonly T[], now: Date,
  * The newest usable reading of `kind`: fresh if its age is ≤ windowMin and no event came after it.
  * Wrong-unit readings show as 'invalid' only when nothing else exists.
  */
-export function latestReading(s: PatientSnapshot, kind: NumericKind, now: Date, windowMin: number, opts: PickOptions = {}): Selection<Measurement> {
+export function latestReading(
+  s: PatientSnapshot,
+  kind: NumericKind,
+  now: Date,
+  windowMin: number,
+  opts: PickOptions = {},
+): Selection<Measurement> {
   const { items, wrongUnit } = readings(s, kind, now);
   const picked = choose(items, now, windowMin, opts);
   const bad = wrongUnit[0];
   if (picked.state === 'missing' && bad !== undefined) {
     return {
-      state: 'invalid', item: bad, ageMinutes: ageMinutes(bad.effective, now), windowMin,
+      state: 'invalid',
+      item: bad,
+      ageMinutes: ageMinutes(bad.effective, now),
+      windowMin,
       detail: `unit '${bad.unit}' is not the expected '${KIND_UNITS[kind]}'`,
     };
   }
@@ -116,7 +132,13 @@ export function codedOf(s: PatientSnapshot, kind: CodedKind, now: Date): CodedMe
   return s.coded.filter((c) => c.kind === kind && usableTime(c.effective, now)).sort(newestFirst);
 }
 
-export function latestCoded(s: PatientSnapshot, kind: CodedKind, now: Date, windowMin: number, opts: PickOptions = {}): Selection<CodedMeasurement> {
+export function latestCoded(
+  s: PatientSnapshot,
+  kind: CodedKind,
+  now: Date,
+  windowMin: number,
+  opts: PickOptions = {},
+): Selection<CodedMeasurement> {
   return choose(codedOf(s, kind, now), now, windowMin, opts);
 }
 
@@ -127,12 +149,24 @@ export function dynamicTestsOf(s: PatientSnapshot, kind: DynamicTestKind, now: D
 }
 
 /** Judge one chosen item against a window and events (for rules that choose among several, e.g. the best read-out). */
-export function judge<T extends { effective: string }>(item: T | undefined, now: Date, windowMin: number, opts: PickOptions = {}): Selection<T> {
+export function judge<T extends { effective: string }>(
+  item: T | undefined,
+  now: Date,
+  windowMin: number,
+  opts: PickOptions = {},
+): Selection<T> {
   return choose(item === undefined ? [] : [item], now, windowMin, opts);
 }
 
 export function evidenceOfMeasurement(m: Measurement, now: Date): Evidence {
-  return { ref: m.ref, kind: m.kind, value: m.value, unit: m.unit, effective: m.effective, ageMinutes: round(ageMinutes(m.effective, now), 1) };
+  return {
+    ref: m.ref,
+    kind: m.kind,
+    value: m.value,
+    unit: m.unit,
+    effective: m.effective,
+    ageMinutes: round(ageMinutes(m.effective, now), 1),
+  };
 }
 
 export function evidenceOfCoded(c: CodedMeasurement, now: Date): Evidence {
@@ -141,16 +175,29 @@ export function evidenceOfCoded(c: CodedMeasurement, now: Date): Evidence {
 
 export function evidenceOfDynamicTest(d: DynamicTestResult, now: Date): Evidence {
   return {
-    ref: d.ref, kind: `${d.kind}:${d.measured}`, value: `${d.before} → ${d.after}`, unit: d.unit,
-    effective: d.effective, ageMinutes: round(ageMinutes(d.effective, now), 1),
+    ref: d.ref,
+    kind: `${d.kind}:${d.measured}`,
+    value: `${d.before} → ${d.after}`,
+    unit: d.unit,
+    effective: d.effective,
+    ageMinutes: round(ageMinutes(d.effective, now), 1),
   };
 }
 
 export function evidenceOfFluid(f: FluidGiven, now: Date): Evidence {
-  return { ref: f.ref, kind: `fluid:${f.fluidClass}`, value: f.volumeMl, unit: 'mL', effective: f.end, ageMinutes: round(ageMinutes(f.end, now), 1) };
+  return {
+    ref: f.ref,
+    kind: `fluid:${f.fluidClass}`,
+    value: f.volumeMl,
+    unit: 'mL',
+    effective: f.end,
+    ageMinutes: round(ageMinutes(f.end, now), 1),
+  };
 }
 
-/** A vasoactive as evidence, at its start; one running with no recorded start (an active order without authoredOn) is evidence as of `now`. */
+/**
+ * A vasoactive as evidence, at its start; one running with no recorded start (an active order without authoredOn) is evidence as of `now`.
+ */
 export function evidenceOfVasoactive(v: VasoactiveDrug, now: Date): Evidence {
   const value = v.rate ? `${v.drug} ${v.rate.value} ${v.rate.unit}` : v.drug;
   const at = v.start ?? now.toISOString();

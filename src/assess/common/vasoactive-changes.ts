@@ -46,7 +46,9 @@ export function vasoactivesAround(all: readonly VasoactiveDrug[], fromMs: number
 /** Changes with fromMs ≤ time ≤ toMs, in time order (ties by reference). */
 export function vasoactiveChangesBetween(all: readonly VasoactiveDrug[], fromMs: number, toMs: number): DoseChange[] {
   // An entry with no recorded start (an active order without authoredOn) shows no change: when it began is unknown.
-  const drugs = all.filter((v): v is VasoactiveDrug & { start: string } => !IGNORED_STATUS.has(v.status) && Number.isFinite(timeMs(v.start)));
+  const drugs = all.filter(
+    (v): v is VasoactiveDrug & { start: string } => !IGNORED_STATUS.has(v.status) && Number.isFinite(timeMs(v.start)),
+  );
   const out: DoseChange[] = [];
   const inSpan = (ms: number) => ms >= fromMs && ms <= toMs;
   for (const v of drugs) {

@@ -28,14 +28,21 @@ export interface NeedResult {
 export function needVerdict(findings: readonly PerfusionFinding[]): Verdict<Need> {
   const counted = findings.filter((f) => f.status === 'assessed' && !f.contextOnly);
   const signs = counted.filter((f) => f.hypoperfusion === true);
-  if (signs.length) return { value: 'present', rationale: `${signs.map((f) => f.text).join('; ')}.`, decidingRules: signs.map((f) => f.ruleId) };
+  if (signs.length)
+    return { value: 'present', rationale: `${signs.map((f) => f.text).join('; ')}.`, decidingRules: signs.map((f) => f.ruleId) };
   const mapSeen = counted.some((f) => f.sign === 'map');
   const tissue = counted.some((f) => f.sign === 'lactate' || f.sign === 'capillary-refill' || f.sign === 'urine-output');
   if (mapSeen && tissue) {
     return { value: 'absent', rationale: `${counted.map((f) => f.text).join('; ')}.`, decidingRules: counted.map((f) => f.ruleId) };
   }
-  const missing = [!mapSeen ? 'a current MAP' : '', !tissue ? 'a current lactate, capillary refill or urine output' : ''].filter(Boolean).join(' and ');
-  return { value: 'unknown', rationale: `No sign of hypoperfusion found, but ${missing} is not on the chart: the need for volume cannot be judged.`, decidingRules: counted.map((f) => f.ruleId) };
+  const missing = [!mapSeen ? 'a current MAP' : '', !tissue ? 'a current lactate, capillary refill or urine output' : '']
+    .filter(Boolean)
+    .join(' and ');
+  return {
+    value: 'unknown',
+    rationale: `No sign of hypoperfusion found, but ${missing} is not on the chart: the need for volume cannot be judged.`,
+    decidingRules: counted.map((f) => f.ruleId),
+  };
 }
 
 export function assessNeed(ctx: NeedContext): NeedResult {

@@ -19,11 +19,17 @@ export const needThresholdsSchema = z.strictObject({
   vasopressorRiseLookbackMin: z.number().int().min(10).max(1440).default(120),
   /** Shock index strictly above this is raised; shown as context only (Koch E et al., Open Access Emerg Med 2019;11:179). */
   shockIndexHigh: z.number().min(0).max(5).default(1.0),
-  /** Early resuscitation: within this many hours of the onset of shock (docs/clinical-logic: "first hours"; SSC 2021 judges the first 3 h; our default 6 h). */
+  /**
+   * Early resuscitation: within this many hours of the onset of shock (docs/clinical-logic: "first hours"; SSC 2021 judges the first 3 h;
+   * our default 6 h).
+   */
   earlyPhaseHours: z.number().min(1).max(48).default(6),
   /** Lactate at or above this, mmol/L, marks shock for the phase (SSC 2021: lactate ≥ 4 mmol/L). */
   earlyLactateMmolL: z.number().min(0).max(20).default(4),
-  /** Early resuscitation ends once this much IV fluid per kg admission weight has been given (SSC 2021: ≥ 30 mL/kg in the first 3 h, weak, low quality). */
+  /**
+   * Early resuscitation ends once this much IV fluid per kg admission weight has been given (SSC 2021: ≥ 30 mL/kg in the first 3 h, weak,
+   * low quality).
+   */
   earlyMlPerKg: z.number().min(1).max(100).default(30),
   /** Without an admission time, shock onset is the earliest hypotension or lactate ≥ 4 within this many hours (our choice). */
   onsetLookbackHours: z.number().min(1).max(72).default(24),

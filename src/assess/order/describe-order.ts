@@ -7,8 +7,11 @@
  */
 import type { DraftOrder, FluidClass, PatientSnapshot } from '../../snapshot/types.js';
 import {
-  crystalloidIntravascularAfterDistributionMl, crystalloidPlasmaExpansionRangeMl, hyperOncoticAlbuminExpansionMl,
-  isoOncoticAlbuminExpansionMl, roundToStep,
+  crystalloidIntravascularAfterDistributionMl,
+  crystalloidPlasmaExpansionRangeMl,
+  hyperOncoticAlbuminExpansionMl,
+  isoOncoticAlbuminExpansionMl,
+  roundToStep,
 } from '../../physiology/volume-kinetics.js';
 import type { Evidence, OrderFinding, OrderPart } from '../common/finding.js';
 import { evidenceOfMeasurement as evidenceOf } from '../common/select.js';
@@ -21,9 +24,10 @@ export const ORDER_VOLUME = 'order.volume';
 export const ORDER_VOLUME_PER_KG = 'order.volume-per-kg';
 export const ORDER_INTRAVASCULAR = 'order.intravascular-estimate';
 
-const KINETICS_SOURCE = 'Crystalloid: about a quarter stays once distributed (saline PV:ISF ≈ 1:3, Ernest D et al., Crit Care Med 1999;27:46); rule of thumb a third, most gone within 4–6 h (common practice); '
-  + '50–60 % while infusing, 15–20 % 30 min after (Hahn RG, Acta Anaesthesiol Scand 2020, doi 10.1111/aas.13533); '
-  + 'albumin 5 % ≈ volume infused; 20–25 % ≈ twice the volume (Crit Care 2020, doi 10.1186/s13054-020-02855-0)';
+const KINETICS_SOURCE =
+  'Crystalloid: about a quarter stays once distributed (saline PV:ISF ≈ 1:3, Ernest D et al., Crit Care Med 1999;27:46); rule of thumb a third, most gone within 4–6 h (common practice); ' +
+  '50–60 % while infusing, 15–20 % 30 min after (Hahn RG, Acta Anaesthesiol Scand 2020, doi 10.1111/aas.13533); ' +
+  'albumin 5 % ≈ volume infused; 20–25 % ≈ twice the volume (Crit Care 2020, doi 10.1186/s13054-020-02855-0)';
 
 const CLASS_LABEL: Record<FluidClass, string> = {
   'balanced-crystalloid': 'balanced crystalloid',
@@ -35,15 +39,34 @@ const CLASS_LABEL: Record<FluidClass, string> = {
 };
 
 function orderEvidence(order: DraftOrder, now: Date): Evidence {
-  return { ref: order.ref, kind: 'draftOrder', value: order.volumeMl ?? order.display ?? order.id, ...(order.volumeMl !== undefined ? { unit: 'mL' } : {}), effective: now.toISOString(), ageMinutes: 0 };
+  return {
+    ref: order.ref,
+    kind: 'draftOrder',
+    value: order.volumeMl ?? order.display ?? order.id,
+    ...(order.volumeMl !== undefined ? { unit: 'mL' } : {}),
+    effective: now.toISOString(),
+    ageMinutes: 0,
+  };
 }
 
 const PART: Record<string, OrderPart> = {
-  [ORDER_VOLUME]: 'volume', [ORDER_VOLUME_PER_KG]: 'volume-per-kg', [ORDER_INTRAVASCULAR]: 'intravascular-estimate',
+  [ORDER_VOLUME]: 'volume',
+  [ORDER_VOLUME_PER_KG]: 'volume-per-kg',
+  [ORDER_INTRAVASCULAR]: 'intravascular-estimate',
 };
 
 function notAssessed(ruleId: string, text: string, reason: string, evidence: Evidence[], source?: string): OrderFinding {
-  return { ruleId, topic: 'order', part: PART[ruleId] ?? 'volume', status: 'not-assessed', gap: 'missing', text, reason, evidence, ...(source ? { source } : {}) };
+  return {
+    ruleId,
+    topic: 'order',
+    part: PART[ruleId] ?? 'volume',
+    status: 'not-assessed',
+    gap: 'missing',
+    text,
+    reason,
+    evidence,
+    ...(source ? { source } : {}),
+  };
 }
 
 function volumeFinding(order: DraftOrder, now: Date): OrderFinding {
@@ -54,10 +77,15 @@ function volumeFinding(order: DraftOrder, now: Date): OrderFinding {
   const label = order.fluidClass ? CLASS_LABEL[order.fluidClass] : 'IV fluid';
   const rate = order.durationMin !== undefined && order.durationMin > 0 ? (order.volumeMl / order.durationMin) * 60 : undefined;
   return {
-    ruleId: ORDER_VOLUME, topic: 'order', part: 'volume', status: 'assessed', fluidClass: order.fluidClass ?? 'other',
+    ruleId: ORDER_VOLUME,
+    topic: 'order',
+    part: 'volume',
+    status: 'assessed',
+    fluidClass: order.fluidClass ?? 'other',
     text: `${fmt(order.volumeMl)} mL ${label}${order.durationMin !== undefined ? ` over ${fmt(order.durationMin)} min` : ''}${rate !== undefined ? ` (${fmt(rate)} mL/h)` : ''}`,
     values: {
-      volumeMl: order.volumeMl, fluidClass: order.fluidClass ?? 'other',
+      volumeMl: order.volumeMl,
+      fluidClass: order.fluidClass ?? 'other',
       ...(order.durationMin !== undefined ? { durationMin: order.durationMin } : {}),
       ...(rate !== undefined ? { rateMlPerHour: round(rate, 0) } : {}),
     },
@@ -73,7 +101,10 @@ function perKgFinding(order: DraftOrder, snapshot: PatientSnapshot, now: Date, t
   const perKg = order.volumeMl / w.m.value;
   const basis = { latest: 'latest weight', admission: 'admission weight', 'earliest-recorded': 'earliest recorded weight' }[w.basis];
   return {
-    ruleId: ORDER_VOLUME_PER_KG, topic: 'order', part: 'volume-per-kg', status: 'assessed',
+    ruleId: ORDER_VOLUME_PER_KG,
+    topic: 'order',
+    part: 'volume-per-kg',
+    status: 'assessed',
     text: `${fmt(perKg, 1)} mL/kg (${basis} ${fmt(w.m.value, 1)} kg)`,
     values: { volumeMlPerKg: round(perKg, 2), weightKg: w.m.value, weightBasis: w.basis },
     evidence: [...ev, evidenceOf(w.m, now)],
@@ -81,8 +112,12 @@ function perKgFinding(order: DraftOrder, snapshot: PatientSnapshot, now: Date, t
 }
 
 /** The intravascular estimate for a volume of one fluid class, or undefined when Tidemark has none for the class. */
-export function intravascularEstimate(volumeMl: number, fluidClass: FluidClass, t: OrderThresholds, durationMin?: number):
-  { text: string; values: Record<string, number | string | boolean> } | undefined {
+export function intravascularEstimate(
+  volumeMl: number,
+  fluidClass: FluidClass,
+  t: OrderThresholds,
+  durationMin?: number,
+): { text: string; values: Record<string, number | string | boolean> } | undefined {
   const r = (ml: number) => roundToStep(ml, t.estimateRoundingMl);
   if (fluidClass === 'balanced-crystalloid' || fluidClass === 'saline') {
     const after = r(crystalloidIntravascularAfterDistributionMl(volumeMl, t.crystalloidRetainedFraction));
@@ -95,13 +130,19 @@ export function intravascularEstimate(volumeMl: number, fluidClass: FluidClass, 
     const [aLo, aHi] = crystalloidPlasmaExpansionRangeMl(volumeMl, 'thirty-minutes-after', fr).map(r) as [number, number];
     const saline = fluidClass === 'saline' ? ' Saline leaves the plasma about half as fast as balanced solutions (Hahn 2020).' : '';
     return {
-      text: `About ${fmt(after)} mL of ${fmt(volumeMl)} mL stays in the vessels once distributed (about a quarter, Ernest 1999; the bedside rule of thumb of a third would say ${fmt(thumb)} mL); `
-        + `about ${fmt(dLo)}–${fmt(dHi)} mL while it runs${durationMin !== undefined ? ` (${fmt(durationMin)} min)` : ''}, ${fmt(aLo)}–${fmt(aHi)} mL 30 min after; `
-        + `most has left the circulation within ${fmt(t.crystalloidMostGoneLowHours)}–${fmt(t.crystalloidMostGoneHighHours)} h.${saline}`,
+      text:
+        `About ${fmt(after)} mL of ${fmt(volumeMl)} mL stays in the vessels once distributed (about a quarter, Ernest 1999; the bedside rule of thumb of a third would say ${fmt(thumb)} mL); ` +
+        `about ${fmt(dLo)}–${fmt(dHi)} mL while it runs${durationMin !== undefined ? ` (${fmt(durationMin)} min)` : ''}, ${fmt(aLo)}–${fmt(aHi)} mL 30 min after; ` +
+        `most has left the circulation within ${fmt(t.crystalloidMostGoneLowHours)}–${fmt(t.crystalloidMostGoneHighHours)} h.${saline}`,
       values: {
-        intravascularAfterDistributionMl: after, ruleOfThumbMl: thumb, duringInfusionLowMl: dLo, duringInfusionHighMl: dHi,
-        thirtyMinutesAfterLowMl: aLo, thirtyMinutesAfterHighMl: aHi,
-        mostGoneLowHours: t.crystalloidMostGoneLowHours, mostGoneHighHours: t.crystalloidMostGoneHighHours,
+        intravascularAfterDistributionMl: after,
+        ruleOfThumbMl: thumb,
+        duringInfusionLowMl: dLo,
+        duringInfusionHighMl: dHi,
+        thirtyMinutesAfterLowMl: aLo,
+        thirtyMinutesAfterHighMl: aHi,
+        mostGoneLowHours: t.crystalloidMostGoneLowHours,
+        mostGoneHighHours: t.crystalloidMostGoneHighHours,
       },
     };
   }
@@ -129,7 +170,16 @@ function estimateFinding(order: DraftOrder, now: Date, t: OrderThresholds): Orde
   if (!order.fluidClass) return notAssessed(ORDER_INTRAVASCULAR, title, 'the kind of fluid is not known', ev, KINETICS_SOURCE);
   const est = intravascularEstimate(order.volumeMl, order.fluidClass, t, order.durationMin);
   if (!est) return notAssessed(ORDER_INTRAVASCULAR, title, `no estimate for ${CLASS_LABEL[order.fluidClass]}`, ev, KINETICS_SOURCE);
-  return { ruleId: ORDER_INTRAVASCULAR, topic: 'order', part: 'intravascular-estimate', status: 'assessed', text: est.text, values: est.values, evidence: ev, source: KINETICS_SOURCE };
+  return {
+    ruleId: ORDER_INTRAVASCULAR,
+    topic: 'order',
+    part: 'intravascular-estimate',
+    status: 'assessed',
+    text: est.text,
+    values: est.values,
+    evidence: ev,
+    source: KINETICS_SOURCE,
+  };
 }
 
 /** Order findings for one draft fluid order. A non-fluid order yields one not-assessed finding. */

@@ -6,10 +6,17 @@ import { z } from 'zod';
 
 export const orderThresholdsSchema = z
   .strictObject({
-    /** Share of a crystalloid left in the vessels once distributed: about a quarter (published: saline PV:ISF ≈ 1:3, Ernest D et al., Crit Care Med 1999;27:46; 9 % after cardiac surgery, Ernest 2001). */
+    /**
+     * Share of a crystalloid left in the vessels once distributed: about a quarter (published: saline PV:ISF ≈ 1:3, Ernest D et al., Crit
+     * Care Med 1999;27:46; 9 % after cardiac surgery, Ernest 2001).
+     */
     crystalloidRetainedFraction: z.number().gt(0).max(1).default(0.25),
     /** The bedside rule of thumb, shown beside the published figure only: about a third (common practice). */
-    crystalloidRuleOfThumbFraction: z.number().gt(0).max(1).default(1 / 3),
+    crystalloidRuleOfThumbFraction: z
+      .number()
+      .gt(0)
+      .max(1)
+      .default(1 / 3),
     /** Crystalloid plasma expansion while infusing: 50–60 % (Hahn RG, Acta Anaesthesiol Scand 2020). */
     crystalloidDuringInfusionLowFraction: z.number().gt(0).max(1).default(0.5),
     crystalloidDuringInfusionHighFraction: z.number().gt(0).max(1).default(0.6),
@@ -21,7 +28,9 @@ export const orderThresholdsSchema = z
     crystalloidMostGoneHighHours: z.number().positive().default(6),
     /** Iso-oncotic albumin (4–5 %) expands plasma by about the volume infused (Hahn 2020; Ernest 1999). */
     albuminIsoOncoticFactor: z.number().positive().default(1),
-    /** Hyper-oncotic albumin (20–25 %) expands plasma by about twice the volume infused (Crit Care 2020, doi 10.1186/s13054-020-02855-0). */
+    /**
+     * Hyper-oncotic albumin (20–25 %) expands plasma by about twice the volume infused (Crit Care 2020, doi 10.1186/s13054-020-02855-0).
+     */
     albuminHyperOncoticFactor: z.number().positive().default(2),
     /** Colloids: intravascular half-life about 2–3 h (Hahn 2020). */
     colloidHalfLifeLowHours: z.number().positive().default(2),

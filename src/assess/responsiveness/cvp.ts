@@ -21,14 +21,35 @@ export const cvpRule: ResponsivenessRule = {
     const v = sel.item.value;
     // PEEP raises CVP without a change in filling (common practice): say so beside a CVP read on high PEEP.
     const peep = latestReading(ctx.snapshot, 'peep', now, ctx.w.tidalVolumeMin);
-    const onPeep = peep.state === 'fresh' && peep.item.value >= HIGH_PEEP_CMH2O ? `, on PEEP ${fmt(peep.item.value)} cmH2O, which raises it` : '';
-    const base = { ruleId: CVP_RULE_ID, marker: 'cvp' as const, tier: 'static' as const, evidence: [cvpEvidence(sel.item, now)], source: SOURCE, values: { cvpMmHg: v }, uses: ['cvp' as const] };
+    const onPeep =
+      peep.state === 'fresh' && peep.item.value >= HIGH_PEEP_CMH2O ? `, on PEEP ${fmt(peep.item.value)} cmH2O, which raises it` : '';
+    const base = {
+      ruleId: CVP_RULE_ID,
+      marker: 'cvp' as const,
+      tier: 'static' as const,
+      evidence: [cvpEvidence(sel.item, now)],
+      source: SOURCE,
+      values: { cvpMmHg: v },
+      uses: ['cvp' as const],
+    };
     if (v <= t.cvpLowMmHg) {
-      return assessed({ ...base, direction: 'for', text: `${label} ${fmt(v, 1)} mmHg (≤ ${fmt(t.cvpLowMmHg, 1)})${onPeep}: very low, points to fluid responsiveness (static, corroborates only)` });
+      return assessed({
+        ...base,
+        direction: 'for',
+        text: `${label} ${fmt(v, 1)} mmHg (≤ ${fmt(t.cvpLowMmHg, 1)})${onPeep}: very low, points to fluid responsiveness (static, corroborates only)`,
+      });
     }
     if (v >= t.cvpHighMmHg) {
-      return assessed({ ...base, direction: 'against', text: `${label} ${fmt(v, 1)} mmHg (≥ ${fmt(t.cvpHighMmHg, 1)})${onPeep}: high, points against fluid responsiveness (static, corroborates only)` });
+      return assessed({
+        ...base,
+        direction: 'against',
+        text: `${label} ${fmt(v, 1)} mmHg (≥ ${fmt(t.cvpHighMmHg, 1)})${onPeep}: high, points against fluid responsiveness (static, corroborates only)`,
+      });
     }
-    return assessed({ ...base, direction: 'neutral', text: `${label} ${fmt(v, 1)} mmHg${onPeep}: mid-range, not evidence either way (Marik 2008, 2013)` });
+    return assessed({
+      ...base,
+      direction: 'neutral',
+      text: `${label} ${fmt(v, 1)} mmHg${onPeep}: mid-range, not evidence either way (Marik 2008, 2013)`,
+    });
   },
 };

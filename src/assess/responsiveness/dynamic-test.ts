@@ -40,8 +40,13 @@ export interface DynamicTestSpec {
 }
 
 export const MEASURED_LABEL: Record<DynamicMeasured, string> = {
-  cardiacOutput: 'cardiac output', cardiacIndex: 'cardiac index', strokeVolume: 'stroke volume',
-  pulsePressure: 'pulse pressure', vti: 'VTI', ppv: 'PPV', svv: 'SVV',
+  cardiacOutput: 'cardiac output',
+  cardiacIndex: 'cardiac index',
+  strokeVolume: 'stroke volume',
+  pulsePressure: 'pulse pressure',
+  vti: 'VTI',
+  ppv: 'PPV',
+  svv: 'SVV',
 };
 
 function rank(spec: DynamicTestSpec, d: DynamicTestResult): number {
@@ -74,15 +79,27 @@ export function selectDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): Sele
 export function assessDynamicTest(ctx: RuleContext, spec: DynamicTestSpec): ResponsivenessFinding {
   const sel = selectDynamicTest(ctx, spec);
   if (sel.state !== 'fresh') {
-    return unusableFinding(sel, { ruleId: spec.ruleId, marker: spec.marker, label: spec.label, source: spec.source, evidenceOf: (d) => evidenceOfDynamicTest(d, ctx.now) });
+    return unusableFinding(sel, {
+      ruleId: spec.ruleId,
+      marker: spec.marker,
+      label: spec.label,
+      source: spec.source,
+      evidenceOf: (d) => evidenceOfDynamicTest(d, ctx.now),
+    });
   }
   const f = judgeChosen(ctx, spec, sel.item);
   // A test with a better read-out that a later event set aside is why this one was used: the finding names that event.
-  const better = ctx.events.length ? dynamicTestsOf(ctx.snapshot, spec.kind, ctx.now).find((x) => rank(spec, x) < rank(spec, sel.item)) : undefined;
+  const better = ctx.events.length
+    ? dynamicTestsOf(ctx.snapshot, spec.kind, ctx.now).find((x) => rank(spec, x) < rank(spec, sel.item))
+    : undefined;
   const judged = better && judge(better, ctx.now, ctx.w.dynamicTestMin, { events: ctx.events });
   if (!judged || judged.state !== 'set-aside') return f;
   const { event } = judged;
-  return { ...f, evidence: [...f.evidence, evidenceOfDynamicTest(judged.item, ctx.now), event.evidence, ...(event.previous ? [event.previous] : [])], betterSetAsideBy: event.text };
+  return {
+    ...f,
+    evidence: [...f.evidence, evidenceOfDynamicTest(judged.item, ctx.now), event.evidence, ...(event.previous ? [event.previous] : [])],
+    betterSetAsideBy: event.text,
+  };
 }
 
 function judgeChosen(ctx: RuleContext, spec: DynamicTestSpec, d: DynamicTestResult): ResponsivenessFinding {
@@ -92,8 +109,14 @@ function judgeChosen(ctx: RuleContext, spec: DynamicTestSpec, d: DynamicTestResu
   const baseValues = { measured: d.measured, before: d.before, after: d.after, unit: d.unit, freshness: 'fresh' };
   if (readOut === undefined) {
     return notAssessed({
-      ruleId: spec.ruleId, text: `${spec.label} by ${mLabel}: not assessed (not a validated read-out for this test)`,
-      reason: `${spec.label} read by ${mLabel} has no validated threshold`, gap: 'invalid', marker: spec.marker, evidence: ev, source: spec.source, values: baseValues,
+      ruleId: spec.ruleId,
+      text: `${spec.label} by ${mLabel}: not assessed (not a validated read-out for this test)`,
+      reason: `${spec.label} read by ${mLabel} has no validated threshold`,
+      gap: 'invalid',
+      marker: spec.marker,
+      evidence: ev,
+      source: spec.source,
+      values: baseValues,
     });
   }
   const validity = spec.gate ? summarizeValidity(spec.gate(ctx)) : undefined;
@@ -102,9 +125,14 @@ function judgeChosen(ctx: RuleContext, spec: DynamicTestSpec, d: DynamicTestResu
     ev.push(...validity.evidence);
     if (validity.voiding.length) {
       return notAssessed({
-        ruleId: spec.ruleId, marker: spec.marker, text: `${spec.label}: result shown but not used (${conditionText(validity.voiding)})`,
-        reason: `outside validity: ${validity.voiding.map((c) => `${c.label} not met (${c.detail})`).join('; ')}`, gap: 'outside-validity',
-        evidence: ev, source: readOut.source, values: { ...baseValues, ...validity.values },
+        ruleId: spec.ruleId,
+        marker: spec.marker,
+        text: `${spec.label}: result shown but not used (${conditionText(validity.voiding)})`,
+        reason: `outside validity: ${validity.voiding.map((c) => `${c.label} not met (${c.detail})`).join('; ')}`,
+        gap: 'outside-validity',
+        evidence: ev,
+        source: readOut.source,
+        values: { ...baseValues, ...validity.values },
       });
     }
   }
@@ -112,16 +140,28 @@ function judgeChosen(ctx: RuleContext, spec: DynamicTestSpec, d: DynamicTestResu
   if (readOut.compare === 'relative') {
     if (!(d.before > 0)) {
       return notAssessed({
-        ruleId: spec.ruleId, text: `${spec.label}: not assessed, invalid baseline ${mLabel} ${fmt(d.before, 2)} ${displayUnit(d.unit)}`,
-        reason: `${spec.label} invalid: baseline must be positive`, gap: 'invalid', marker: spec.marker, evidence: ev, source: readOut.source, values: { ...baseValues, freshness: 'invalid' },
+        ruleId: spec.ruleId,
+        text: `${spec.label}: not assessed, invalid baseline ${mLabel} ${fmt(d.before, 2)} ${displayUnit(d.unit)}`,
+        reason: `${spec.label} invalid: baseline must be positive`,
+        gap: 'invalid',
+        marker: spec.marker,
+        evidence: ev,
+        source: readOut.source,
+        values: { ...baseValues, freshness: 'invalid' },
       });
     }
     change = relativeChangePercent(d.before, d.after);
   } else {
     if (d.unit !== '%') {
       return notAssessed({
-        ruleId: spec.ruleId, text: `${spec.label}: not assessed, ${mLabel} in unit '${d.unit}' (expected %)`,
-        reason: `${spec.label} invalid: unit '${d.unit}' is not %`, gap: 'invalid', marker: spec.marker, evidence: ev, source: readOut.source, values: { ...baseValues, freshness: 'invalid' },
+        ruleId: spec.ruleId,
+        text: `${spec.label}: not assessed, ${mLabel} in unit '${d.unit}' (expected %)`,
+        reason: `${spec.label} invalid: unit '${d.unit}' is not %`,
+        gap: 'invalid',
+        marker: spec.marker,
+        evidence: ev,
+        source: readOut.source,
+        values: { ...baseValues, freshness: 'invalid' },
       });
     }
     change = absoluteChange(d.before, d.after);
@@ -130,10 +170,17 @@ function judgeChosen(ctx: RuleContext, spec: DynamicTestSpec, d: DynamicTestResu
   const unitText = readOut.compare === 'relative' ? ' %' : ' points';
   const changeKey = readOut.compare === 'relative' ? 'changePercent' : 'changePoints';
   const thrText = `${readOut.strict ? '>' : '≥'} ${fmt(readOut.threshold, 1)}${unitText}`;
-  const text = `${spec.label}: ${mLabel} ${fmt(d.before, 2)} → ${fmt(d.after, 2)} ${displayUnit(d.unit)} (${signed(change)}${unitText}; threshold ${thrText}): `
-    + `${positive ? 'points to' : 'points against'} fluid responsiveness${readOut.note ? `; ${readOut.note}` : ''}`;
+  const text =
+    `${spec.label}: ${mLabel} ${fmt(d.before, 2)} → ${fmt(d.after, 2)} ${displayUnit(d.unit)} (${signed(change)}${unitText}; threshold ${thrText}): ` +
+    `${positive ? 'points to' : 'points against'} fluid responsiveness${readOut.note ? `; ${readOut.note}` : ''}`;
   return assessed({
-    ruleId: spec.ruleId, marker: spec.marker, direction: positive ? 'for' : 'against', tier: readOut.tier, text, evidence: ev, source: readOut.source,
+    ruleId: spec.ruleId,
+    marker: spec.marker,
+    direction: positive ? 'for' : 'against',
+    tier: readOut.tier,
+    text,
+    evidence: ev,
+    source: readOut.source,
     values: { ...baseValues, ...validity?.values, [changeKey]: Math.round(change * 100) / 100, threshold: readOut.threshold },
   });
 }

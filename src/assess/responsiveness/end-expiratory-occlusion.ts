@@ -14,15 +14,28 @@ const SOURCE = 'End-expiratory occlusion, CI rise > 5 %: Monnet X et al., Crit C
 export function endExpiratoryOcclusionSpec(t: ResponsivenessThresholds): DynamicTestSpec {
   const flow: ReadOut = { compare: 'relative', threshold: t.eeoFlowRisePercent, strict: true, tier: 'dynamic', source: SOURCE };
   return {
-    ruleId: END_EXPIRATORY_OCCLUSION_RULE_ID, marker: 'end-expiratory-occlusion', kind: 'endExpiratoryOcclusion', label: 'End-expiratory occlusion', source: SOURCE,
+    ruleId: END_EXPIRATORY_OCCLUSION_RULE_ID,
+    marker: 'end-expiratory-occlusion',
+    kind: 'endExpiratoryOcclusion',
+    label: 'End-expiratory occlusion',
+    source: SOURCE,
     readOuts: {
-      cardiacIndex: flow, cardiacOutput: flow, strokeVolume: flow,
+      cardiacIndex: flow,
+      cardiacOutput: flow,
+      strokeVolume: flow,
       vti: {
-        compare: 'relative', threshold: t.eeoVtiRisePercent, strict: false, tier: 'dynamic',
-        source: 'End-expiratory occlusion by echo, VTI rise ≥ 9 %: echocardiographic study, Crit Care 2018 (PMC5804059; authors from memory: Georges D et al.)',
+        compare: 'relative',
+        threshold: t.eeoVtiRisePercent,
+        strict: false,
+        tier: 'dynamic',
+        source:
+          'End-expiratory occlusion by echo, VTI rise ≥ 9 %: echocardiographic study, Crit Care 2018 (PMC5804059; authors from memory: Georges D et al.)',
       },
       pulsePressure: {
-        compare: 'relative', threshold: t.eeoPulsePressureRisePercent, strict: true, tier: 'static',
+        compare: 'relative',
+        threshold: t.eeoPulsePressureRisePercent,
+        strict: true,
+        tier: 'static',
         note: 'judged by pulse pressure only: weak evidence, a static marker that only corroborates',
         source: 'End-expiratory occlusion, pulse pressure rise > 5 %: Monnet X et al., Crit Care Med 2009 (from memory)',
       },

@@ -18,9 +18,18 @@ export interface AssessedArgs {
 
 export function assessed(a: AssessedArgs): ResponsivenessFinding {
   return {
-    ruleId: a.ruleId, topic: 'responsiveness', marker: a.marker, status: 'assessed', direction: a.direction, tier: a.tier,
-    text: a.text, values: { freshness: 'fresh', ...a.values }, evidence: sortEvidence(a.evidence), source: a.source,
-    ...(a.assumptions?.length ? { assumptions: a.assumptions } : {}), ...(a.uses ? { uses: a.uses } : {}),
+    ruleId: a.ruleId,
+    topic: 'responsiveness',
+    marker: a.marker,
+    status: 'assessed',
+    direction: a.direction,
+    tier: a.tier,
+    text: a.text,
+    values: { freshness: 'fresh', ...a.values },
+    evidence: sortEvidence(a.evidence),
+    source: a.source,
+    ...(a.assumptions?.length ? { assumptions: a.assumptions } : {}),
+    ...(a.uses ? { uses: a.uses } : {}),
   };
 }
 
@@ -37,8 +46,16 @@ export interface NotAssessedArgs {
 
 export function notAssessed(a: NotAssessedArgs): ResponsivenessFinding {
   return {
-    ruleId: a.ruleId, topic: 'responsiveness', marker: a.marker, status: 'not-assessed', text: a.text, reason: a.reason, gap: a.gap,
-    ...(a.values ? { values: a.values } : {}), evidence: sortEvidence(a.evidence ?? []), source: a.source,
+    ruleId: a.ruleId,
+    topic: 'responsiveness',
+    marker: a.marker,
+    status: 'not-assessed',
+    text: a.text,
+    reason: a.reason,
+    gap: a.gap,
+    ...(a.values ? { values: a.values } : {}),
+    evidence: sortEvidence(a.evidence ?? []),
+    source: a.source,
   };
 }
 
@@ -48,11 +65,25 @@ export function unusableFinding<T>(
   args: { ruleId: string; marker: Marker; label: string; source: string; evidenceOf: (item: T) => Evidence },
 ): ResponsivenessFinding {
   const p = unusableParts(sel, args.label, args.evidenceOf);
-  return { ruleId: args.ruleId, topic: 'responsiveness', marker: args.marker, ...p, evidence: sortEvidence(p.evidence), source: args.source };
+  return {
+    ruleId: args.ruleId,
+    topic: 'responsiveness',
+    marker: args.marker,
+    ...p,
+    evidence: sortEvidence(p.evidence),
+    source: args.source,
+  };
 }
 
 export function ruleErrorFinding(ruleId: string, marker: Marker): (message: string) => ResponsivenessFinding {
-  return (message) => notAssessed({
-    ruleId, marker, text: `${ruleId}: not assessed (rule error)`, reason: `rule error: ${message}`, gap: 'rule-error', source: 'internal', values: { ruleError: true },
-  });
+  return (message) =>
+    notAssessed({
+      ruleId,
+      marker,
+      text: `${ruleId}: not assessed (rule error)`,
+      reason: `rule error: ${message}`,
+      gap: 'rule-error',
+      source: 'internal',
+      values: { ruleError: true },
+    });
 }

@@ -39,11 +39,16 @@ export interface Condition {
 
 function why<T>(sel: Selection<T>, what: string): string {
   switch (sel.state) {
-    case 'missing': return `${what} not recorded`;
-    case 'stale': return `${what} ${staleText(sel.ageMinutes, sel.windowMin)}`;
-    case 'invalid': return `${what} invalid (${sel.detail})`;
-    case 'set-aside': return `${what} set aside`;
-    case 'fresh': return `${what} recorded`;
+    case 'missing':
+      return `${what} not recorded`;
+    case 'stale':
+      return `${what} ${staleText(sel.ageMinutes, sel.windowMin)}`;
+    case 'invalid':
+      return `${what} invalid (${sel.detail})`;
+    case 'set-aside':
+      return `${what} set aside`;
+    case 'fresh':
+      return `${what} recorded`;
   }
 }
 
@@ -55,32 +60,70 @@ export function checkVentilation(ctx: RuleContext): Condition {
   const label = 'controlled ventilation without spontaneous effort';
   const sel = latestCoded(ctx.snapshot, 'ventilationMode', ctx.now, ctx.w.ventilationStateMin);
   const ev = (c: Parameters<typeof evidenceOfCoded>[0]) => evidenceOfCoded(c, ctx.now);
-  if (sel.state !== 'fresh') return { id: 'ventilation', label, state: 'unknown', error: 'void', detail: why(sel, 'ventilation state'), evidence: seen(sel, ev), values: {} };
+  if (sel.state !== 'fresh')
+    return {
+      id: 'ventilation',
+      label,
+      state: 'unknown',
+      error: 'void',
+      detail: why(sel, 'ventilation state'),
+      evidence: seen(sel, ev),
+      values: {},
+    };
   const answer = sel.item.answer;
   const details: Record<string, string> = {
     'controlled-no-effort': 'controlled ventilation, no spontaneous effort',
     'controlled-with-effort': 'spontaneous breathing effort on the ventilator',
   };
   const detail = details[answer] ?? 'spontaneous breathing';
-  return { id: 'ventilation', label, state: answer === 'controlled-no-effort' ? 'met' : 'failed', error: 'void', detail, evidence: [ev(sel.item)], values: { ventilationMode: answer } };
+  return {
+    id: 'ventilation',
+    label,
+    state: answer === 'controlled-no-effort' ? 'met' : 'failed',
+    error: 'void',
+    detail,
+    evidence: [ev(sel.item)],
+    values: { ventilationMode: answer },
+  };
 }
 
-/** Sinus rhythm in the latest record, and no other rhythm recorded within the rhythm window (docs/clinical-logic: void on any irregular record). */
+/**
+ * Sinus rhythm in the latest record, and no other rhythm recorded within the rhythm window (docs/clinical-logic: void on any irregular
+ * record).
+ */
 export function checkRhythm(ctx: RuleContext): Condition {
   const label = 'sinus rhythm';
   const sel = latestCoded(ctx.snapshot, 'heartRhythm', ctx.now, ctx.w.rhythmMin);
   const ev = (c: Parameters<typeof evidenceOfCoded>[0]) => evidenceOfCoded(c, ctx.now);
-  if (sel.state !== 'fresh') return { id: 'rhythm', label, state: 'unknown', error: 'void', detail: why(sel, 'heart rhythm'), evidence: seen(sel, ev), values: {} };
-  const span = codedOf(ctx.snapshot, 'heartRhythm', ctx.now).filter((c) => ctx.now.getTime() - Date.parse(c.effective) <= ctx.w.rhythmMin * 60_000);
+  if (sel.state !== 'fresh')
+    return { id: 'rhythm', label, state: 'unknown', error: 'void', detail: why(sel, 'heart rhythm'), evidence: seen(sel, ev), values: {} };
+  const span = codedOf(ctx.snapshot, 'heartRhythm', ctx.now).filter(
+    (c) => ctx.now.getTime() - Date.parse(c.effective) <= ctx.w.rhythmMin * 60_000,
+  );
   const other = span.find((c) => c.answer !== 'sinus');
   if (other) {
     return {
-      id: 'rhythm', label, state: 'failed', error: 'void',
-      detail: other === sel.item ? `rhythm ${other.answer}` : `rhythm ${other.answer} recorded at ${other.effective} (within ${fmt(ctx.w.rhythmMin / 60)} h)`,
-      evidence: [ev(sel.item), ev(other)], values: { heartRhythm: other.answer },
+      id: 'rhythm',
+      label,
+      state: 'failed',
+      error: 'void',
+      detail:
+        other === sel.item
+          ? `rhythm ${other.answer}`
+          : `rhythm ${other.answer} recorded at ${other.effective} (within ${fmt(ctx.w.rhythmMin / 60)} h)`,
+      evidence: [ev(sel.item), ev(other)],
+      values: { heartRhythm: other.answer },
     };
   }
-  return { id: 'rhythm', label, state: 'met', error: 'void', detail: 'rhythm sinus', evidence: span.map(ev), values: { heartRhythm: 'sinus' } };
+  return {
+    id: 'rhythm',
+    label,
+    state: 'met',
+    error: 'void',
+    detail: 'rhythm sinus',
+    evidence: span.map(ev),
+    values: { heartRhythm: 'sinus' },
+  };
 }
 
 /**
@@ -115,7 +158,8 @@ export function checkTidalVolume(ctx: RuleContext): Condition {
     const pbw = sex === 'male' ? pbwMale : pbwFemale;
     const perKg = tidalVolumeMlPerKg(vtMl, pbw);
     return {
-      ...base, state: perKg >= min ? 'met' : 'failed',
+      ...base,
+      state: perKg >= min ? 'met' : 'failed',
       detail: `tidal volume ${fmt(vtMl, 0)} mL = ${fmt(perKg, 2)} mL/kg PBW (PBW ${fmt(pbw, 1)} kg, ${sex}, ${fmt(heightCm, 1)} cm)`,
       values: { tidalVolumeMl: vtMl, pbwKg: Math.round(pbw * 100) / 100, tidalVolumeMlPerKgPbw: Math.round(perKg * 100) / 100 },
     };
@@ -123,7 +167,11 @@ export function checkTidalVolume(ctx: RuleContext): Condition {
   const low = tidalVolumeMlPerKg(vtMl, pbwMale);
   const high = tidalVolumeMlPerKg(vtMl, pbwFemale);
   const range = `${fmt(low, 2)}–${fmt(high, 2)} mL/kg PBW (sex not recorded)`;
-  const values: Figures = { tidalVolumeMl: vtMl, tidalVolumeMlPerKgPbwLow: Math.round(low * 100) / 100, tidalVolumeMlPerKgPbwHigh: Math.round(high * 100) / 100 };
+  const values: Figures = {
+    tidalVolumeMl: vtMl,
+    tidalVolumeMlPerKgPbwLow: Math.round(low * 100) / 100,
+    tidalVolumeMlPerKgPbwHigh: Math.round(high * 100) / 100,
+  };
   if (low >= min) return { ...base, state: 'met', detail: `tidal volume ${fmt(vtMl, 0)} mL = ${range}`, values };
   if (high < min) return { ...base, state: 'failed', detail: `tidal volume ${fmt(vtMl, 0)} mL = ${range}`, values };
   return unknown(`tidal volume ${fmt(vtMl, 0)} mL = ${range}: sex needed for predicted body weight`, values);
@@ -141,10 +189,13 @@ export function checkHeartRateRespiratoryRate(ctx: RuleContext): Condition {
   const base = { id: 'hr-rr' as const, label, error: 'false-negative' as const, evidence };
   if (hr.state !== 'fresh') return { ...base, state: 'unknown', detail: why(hr, 'heart rate'), values: {} };
   if (rr.state !== 'fresh') return { ...base, state: 'unknown', detail: why(rr, 'respiratory rate'), values: {} };
-  if (rr.item.value <= 0) return { ...base, state: 'unknown', detail: `respiratory rate ${fmt(rr.item.value, 1)}/min gives no ratio`, values: {} };
+  if (rr.item.value <= 0)
+    return { ...base, state: 'unknown', detail: `respiratory rate ${fmt(rr.item.value, 1)}/min gives no ratio`, values: {} };
   const ratio = heartRateRespiratoryRateRatio(hr.item.value, rr.item.value);
   return {
-    ...base, state: ratio > min ? 'met' : 'failed', detail: `HR ${fmt(hr.item.value, 0)} / RR ${fmt(rr.item.value, 0)} = ${fmt(ratio, 2)}`,
+    ...base,
+    state: ratio > min ? 'met' : 'failed',
+    detail: `HR ${fmt(hr.item.value, 0)} / RR ${fmt(rr.item.value, 0)} = ${fmt(ratio, 2)}`,
     values: { hrRrRatio: Math.round(ratio * 100) / 100 },
   };
 }
@@ -153,9 +204,26 @@ export function checkChest(ctx: RuleContext): Condition {
   const label = 'closed chest';
   const sel = latestCoded(ctx.snapshot, 'chestStatus', ctx.now, ctx.w.chestStatusMin);
   const ev = (c: Parameters<typeof evidenceOfCoded>[0]) => evidenceOfCoded(c, ctx.now);
-  if (sel.state !== 'fresh') return { id: 'chest', label, state: 'assumed', error: 'false-negative', detail: `${why(sel, 'chest status')}: assumed closed`, evidence: seen(sel, ev), values: {} };
+  if (sel.state !== 'fresh')
+    return {
+      id: 'chest',
+      label,
+      state: 'assumed',
+      error: 'false-negative',
+      detail: `${why(sel, 'chest status')}: assumed closed`,
+      evidence: seen(sel, ev),
+      values: {},
+    };
   const open = sel.item.answer === 'open';
-  return { id: 'chest', label, state: open ? 'failed' : 'met', error: 'false-negative', detail: open ? 'open chest' : 'chest closed', evidence: [ev(sel.item)], values: { chestStatus: sel.item.answer } };
+  return {
+    id: 'chest',
+    label,
+    state: open ? 'failed' : 'met',
+    error: 'false-negative',
+    detail: open ? 'open chest' : 'chest closed',
+    evidence: [ev(sel.item)],
+    values: { chestStatus: sel.item.answer },
+  };
 }
 
 /** IAP strictly below iahThresholdMmHg (default 12; IAH is ≥ 12 mmHg, WSACS 2013); raised IAP gives false positives. */
@@ -164,11 +232,25 @@ export function checkIntraAbdominalPressure(ctx: RuleContext): Condition {
   const label = `no intra-abdominal hypertension (IAP < ${fmt(limit, 1)} mmHg)`;
   const sel = latestReading(ctx.snapshot, 'intraAbdominalPressure', ctx.now, ctx.w.intraAbdominalPressureMin);
   const ev = (m: Parameters<typeof evidenceOfMeasurement>[0]) => evidenceOfMeasurement(m, ctx.now);
-  if (sel.state !== 'fresh') return { id: 'iap', label, state: 'assumed', error: 'false-positive', detail: `${why(sel, 'intra-abdominal pressure')}: assumed normal`, evidence: seen(sel, ev), values: {} };
+  if (sel.state !== 'fresh')
+    return {
+      id: 'iap',
+      label,
+      state: 'assumed',
+      error: 'false-positive',
+      detail: `${why(sel, 'intra-abdominal pressure')}: assumed normal`,
+      evidence: seen(sel, ev),
+      values: {},
+    };
   const iap = sel.item.value;
   return {
-    id: 'iap', label, state: iap < limit ? 'met' : 'failed', error: 'false-positive',
-    detail: iap < limit ? `IAP ${fmt(iap, 1)} mmHg` : `intra-abdominal hypertension, IAP ${fmt(iap, 1)} mmHg`, evidence: [ev(sel.item)], values: { iapMmHg: iap },
+    id: 'iap',
+    label,
+    state: iap < limit ? 'met' : 'failed',
+    error: 'false-positive',
+    detail: iap < limit ? `IAP ${fmt(iap, 1)} mmHg` : `intra-abdominal hypertension, IAP ${fmt(iap, 1)} mmHg`,
+    evidence: [ev(sel.item)],
+    values: { iapMmHg: iap },
   };
 }
 
@@ -179,23 +261,36 @@ export function checkIntraAbdominalPressure(ctx: RuleContext): Condition {
 export function checkRightVentricle(ctx: RuleContext): Condition {
   const label = 'no right-ventricular failure or pulmonary hypertension recorded';
   const groups = activeConditionGroups(ctx.snapshot.conditions).filter((g) => g.effects.includes('high-ppv-doubtful'));
-  if (groups.length === 0) return { id: 'right-ventricle', label, state: 'met', error: 'false-positive', detail: 'none recorded', evidence: [], values: {} };
+  if (groups.length === 0)
+    return { id: 'right-ventricle', label, state: 'met', error: 'false-positive', detail: 'none recorded', evidence: [], values: {} };
   const byRef = new Map(ctx.snapshot.conditions.map((c) => [c.ref, c]));
-  const evidence: Evidence[] = groups.flatMap((g) => g.refs.map((ref, i) => {
-    const when = byRef.get(ref)?.onset ?? ctx.snapshot.now;
-    return { ref, kind: 'condition', value: g.codings[i] ?? '', effective: when, ageMinutes: 0 };
-  }));
+  const evidence: Evidence[] = groups.flatMap((g) =>
+    g.refs.map((ref, i) => {
+      const when = byRef.get(ref)?.onset ?? ctx.snapshot.now;
+      return { ref, kind: 'condition', value: g.codings[i] ?? '', effective: when, ageMinutes: 0 };
+    }),
+  );
   return {
-    id: 'right-ventricle', label, state: 'failed', error: 'false-positive', detail: groups.map((g) => g.label).join('; '),
-    evidence, values: { rightHeartGroups: groups.map((g) => g.id).join(',') },
+    id: 'right-ventricle',
+    label,
+    state: 'failed',
+    error: 'false-positive',
+    detail: groups.map((g) => g.label).join('; '),
+    evidence,
+    values: { rightHeartGroups: groups.map((g) => g.id).join(',') },
   };
 }
 
 /** All conditions for PPV and SVV, in a fixed order. */
 export function ppvSvvConditions(ctx: RuleContext): Condition[] {
   return [
-    checkVentilation(ctx), checkRhythm(ctx), checkTidalVolume(ctx), checkHeartRateRespiratoryRate(ctx),
-    checkChest(ctx), checkIntraAbdominalPressure(ctx), checkRightVentricle(ctx),
+    checkVentilation(ctx),
+    checkRhythm(ctx),
+    checkTidalVolume(ctx),
+    checkHeartRateRespiratoryRate(ctx),
+    checkChest(ctx),
+    checkIntraAbdominalPressure(ctx),
+    checkRightVentricle(ctx),
   ];
 }
 

@@ -27,8 +27,16 @@ export type { ResponsivenessRule, RuleContext } from './context.js';
 
 /** Marker rules in output order. */
 export const RESPONSIVENESS_RULES: readonly ResponsivenessRule[] = [
-  ppvRule, svvRule, plrRule, miniFluidChallengeRule, endExpiratoryOcclusionRule, tidalVolumeChallengeRule,
-  lastBolusRule, ivcRule, cvpRule, lvFunctionRule,
+  ppvRule,
+  svvRule,
+  plrRule,
+  miniFluidChallengeRule,
+  endExpiratoryOcclusionRule,
+  tidalVolumeChallengeRule,
+  lastBolusRule,
+  ivcRule,
+  cvpRule,
+  lvFunctionRule,
 ];
 
 /** Rule ids, in output order. */

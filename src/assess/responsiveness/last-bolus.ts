@@ -17,7 +17,14 @@ import type { FluidGiven, Measurement } from '../../snapshot/types.js';
 import { mapPointEvidence, mapSeries } from '../common/blood-pressure.js';
 import type { Evidence, Figures, ResponsivenessFinding } from '../common/finding.js';
 import {
-  ageMinutes, compareText, evidenceOfFluid, evidenceOfMeasurement, evidenceOfVasoactive, readings, timeMs, usableTime,
+  ageMinutes,
+  compareText,
+  evidenceOfFluid,
+  evidenceOfMeasurement,
+  evidenceOfVasoactive,
+  readings,
+  timeMs,
+  usableTime,
 } from '../common/select.js';
 import { fmt, signed } from '../common/text.js';
 import { vasoactiveChangesBetween, vasoactivesAround } from '../common/vasoactive-changes.js';
@@ -25,8 +32,10 @@ import type { ResponsivenessRule, RuleContext } from './context.js';
 import { assessed, notAssessed, ruleErrorFinding } from './finding.js';
 
 export const LAST_BOLUS_RULE_ID = 'responsiveness.last-bolus';
-const SOURCE_DENSE = 'Flow response to a fluid challenge, read 1–5 min after its end: Aya HD et al., Crit Care Med 2016;44:880 (10 % rise from memory)';
-const SOURCE_HOURLY = 'MAP rise about 5–10 mmHg with falling heart rate after a bolus: common practice; an hourly pressure change is a weak static marker (Aya 2016: the flow response fades within ~10 min)';
+const SOURCE_DENSE =
+  'Flow response to a fluid challenge, read 1–5 min after its end: Aya HD et al., Crit Care Med 2016;44:880 (10 % rise from memory)';
+const SOURCE_HOURLY =
+  'MAP rise about 5–10 mmHg with falling heart rate after a bolus: common practice; an hourly pressure change is a weak static marker (Aya 2016: the flow response fades within ~10 min)';
 const MIN_MS = 60_000;
 const FLOW_KINDS: readonly NumericKind[] = ['cardiacOutput', 'cardiacIndex', 'strokeVolume'];
 
@@ -37,30 +46,68 @@ export function completedBoluses(ctx: RuleContext): FluidGiven[] {
     .filter((f) => {
       const s = timeMs(f.start);
       const e = timeMs(f.end);
-      return f.status === 'completed' && Number.isFinite(s) && usableTime(f.end, now) && s <= e
-        && f.volumeMl >= t.bolusMinVolumeMl && (e - s) / MIN_MS <= t.bolusMaxDurationMin;
+      return (
+        f.status === 'completed' &&
+        Number.isFinite(s) &&
+        usableTime(f.end, now) &&
+        s <= e &&
+        f.volumeMl >= t.bolusMinVolumeMl &&
+        (e - s) / MIN_MS <= t.bolusMaxDurationMin
+      );
     })
-    .sort((a, b) => timeMs(b.end) - timeMs(a.end) || timeMs(b.start) - timeMs(a.start) || compareText(a.ref, b.ref)
-      || compareText(JSON.stringify(a), JSON.stringify(b)));
+    .sort(
+      (a, b) =>
+        timeMs(b.end) - timeMs(a.end) ||
+        timeMs(b.start) - timeMs(a.start) ||
+        compareText(a.ref, b.ref) ||
+        compareText(JSON.stringify(a), JSON.stringify(b)),
+    );
 }
 
-interface FlowResponse { kind: NumericKind; before: Measurement; after: Measurement; changePercent: number; readings: Measurement[] }
+interface FlowResponse {
+  kind: NumericKind;
+  before: Measurement;
+  after: Measurement;
+  changePercent: number;
+  readings: Measurement[];
+}
 
 /** The dense flow response, when the monitor data allow it. */
 function denseFlow(ctx: RuleContext, startMs: number, endMs: number): FlowResponse | undefined {
   const { t, now } = ctx;
   for (const kind of FLOW_KINDS) {
     const items = readings(ctx.snapshot, kind, now).items; // newest first
-    const before = items.find((m) => { const ms = timeMs(m.effective); return ms <= startMs && ms >= startMs - t.flowBeforeStartMaxMin * MIN_MS; });
-    const afters = items.filter((m) => { const ms = timeMs(m.effective); return ms > endMs && ms <= endMs + t.flowAfterEndMaxMin * MIN_MS; });
+    const before = items.find((m) => {
+      const ms = timeMs(m.effective);
+      return ms <= startMs && ms >= startMs - t.flowBeforeStartMaxMin * MIN_MS;
+    });
+    const afters = items.filter((m) => {
+      const ms = timeMs(m.effective);
+      return ms > endMs && ms <= endMs + t.flowAfterEndMaxMin * MIN_MS;
+    });
     if (!before || afters.length === 0 || !(before.value > 0)) continue;
     const after = afters.reduce((a, b) => (b.value > a.value ? b : a));
     const fromMs = timeMs(before.effective);
     const toMs = timeMs(after.effective);
-    const span = items.filter((m) => { const ms = timeMs(m.effective); return ms >= fromMs && ms <= toMs; }).map((m) => timeMs(m.effective)).sort((a, b) => a - b);
+    const span = items
+      .filter((m) => {
+        const ms = timeMs(m.effective);
+        return ms >= fromMs && ms <= toMs;
+      })
+      .map((m) => timeMs(m.effective))
+      .sort((a, b) => a - b);
     const dense = span.every((ms, i) => i === 0 || ms - (span[i - 1] as number) <= t.denseMaxGapMin * MIN_MS);
     if (!dense) continue;
-    return { kind, before, after, changePercent: relativeChangePercent(before.value, after.value), readings: items.filter((m) => { const ms = timeMs(m.effective); return ms >= fromMs && ms <= toMs; }) };
+    return {
+      kind,
+      before,
+      after,
+      changePercent: relativeChangePercent(before.value, after.value),
+      readings: items.filter((m) => {
+        const ms = timeMs(m.effective);
+        return ms >= fromMs && ms <= toMs;
+      }),
+    };
   }
   return undefined;
 }
@@ -103,13 +150,22 @@ export const lastBolusRule: ResponsivenessRule = {
         const age = ageMinutes(old.start, now);
         const why = `stale (started ${Math.round(age)} min ago, look-back ${t.lastBolusLookbackMin} min)`;
         return notAssessed({
-          ...base, text: `Last fluid bolus: not assessed, ${why}`, reason: `last ${describe} ${why}`, gap: 'stale',
-          evidence: [evidenceOfFluid(old, now)], source: SOURCE_HOURLY, values: { freshness: 'stale', ageMin: Math.round(age), windowMin: t.lastBolusLookbackMin },
+          ...base,
+          text: `Last fluid bolus: not assessed, ${why}`,
+          reason: `last ${describe} ${why}`,
+          gap: 'stale',
+          evidence: [evidenceOfFluid(old, now)],
+          source: SOURCE_HOURLY,
+          values: { freshness: 'stale', ageMin: Math.round(age), windowMin: t.lastBolusLookbackMin },
         });
       }
       return notAssessed({
-        ...base, text: 'Last fluid bolus: not assessed (none recorded)', reason: `no ${describe} started in the last ${t.lastBolusLookbackMin} min`, gap: 'missing',
-        source: SOURCE_HOURLY, values: { freshness: 'missing', windowMin: t.lastBolusLookbackMin },
+        ...base,
+        text: 'Last fluid bolus: not assessed (none recorded)',
+        reason: `no ${describe} started in the last ${t.lastBolusLookbackMin} min`,
+        gap: 'missing',
+        source: SOURCE_HOURLY,
+        values: { freshness: 'missing', windowMin: t.lastBolusLookbackMin },
       });
     }
 
@@ -117,11 +173,21 @@ export const lastBolusRule: ResponsivenessRule = {
     const endMs = timeMs(bolus.end);
     const head = `Last bolus ${fmt(bolus.volumeMl)} mL${bolus.display ? ` ${bolus.display}` : ''} (ended ${Math.round(ageMinutes(bolus.end, now))} min ago)`;
     const values: Figures = { bolusVolumeMl: bolus.volumeMl, bolusEndedMinAgo: Math.round(ageMinutes(bolus.end, now)) };
-    const later = ctx.events.find((e) => e.atMs > startMs && e.evidence.ref !== bolus.ref && !(e.kind === 'vasoactive-change' && e.atMs <= endMs + t.bolusPostWindowMin * MIN_MS));
+    const later = ctx.events.find(
+      (e) =>
+        e.atMs > startMs &&
+        e.evidence.ref !== bolus.ref &&
+        !(e.kind === 'vasoactive-change' && e.atMs <= endMs + t.bolusPostWindowMin * MIN_MS),
+    );
     if (later) {
       return notAssessed({
-        ...base, text: `${head}: set aside, a later event (${later.text})`, reason: `the response to the last bolus no longer describes the patient: ${later.text} since`,
-        gap: 'set-aside', evidence: [evidenceOfFluid(bolus, now), later.evidence], source: SOURCE_HOURLY, values,
+        ...base,
+        text: `${head}: set aside, a later event (${later.text})`,
+        reason: `the response to the last bolus no longer describes the patient: ${later.text} since`,
+        gap: 'set-aside',
+        evidence: [evidenceOfFluid(bolus, now), later.evidence],
+        source: SOURCE_HOURLY,
+        values,
       });
     }
 
@@ -132,7 +198,15 @@ export const lastBolusRule: ResponsivenessRule = {
     const vasoEvidence = vasoactivesAround(ctx.snapshot.vasoactives, spanFrom, spanTo).map((v) => evidenceOfVasoactive(v, now));
     if (changes.length) {
       const why = `confounded: ${changes.map((c) => `${c.drug.drug} ${c.kind} at ${c.at}`).join('; ')} between baseline and response`;
-      return notAssessed({ ...base, text: `${head}: response not used, ${why}`, reason: why, gap: 'confounded', evidence: [evidenceOfFluid(bolus, now), ...vasoEvidence], source: SOURCE_HOURLY, values: { ...values, confounded: true } });
+      return notAssessed({
+        ...base,
+        text: `${head}: response not used, ${why}`,
+        reason: why,
+        gap: 'confounded',
+        evidence: [evidenceOfFluid(bolus, now), ...vasoEvidence],
+        source: SOURCE_HOURLY,
+        values: { ...values, confounded: true },
+      });
     }
 
     if (flow) {
@@ -140,11 +214,15 @@ export const lastBolusRule: ResponsivenessRule = {
       const labels: Partial<Record<NumericKind, string>> = { cardiacOutput: 'cardiac output', cardiacIndex: 'cardiac index' };
       const label = labels[flow.kind] ?? 'stroke volume';
       return assessed({
-        ...base, direction: positive ? 'for' : 'against', tier: 'dynamic',
-        text: `${head}: ${label} ${fmt(flow.before.value, 2)} → ${fmt(flow.after.value, 2)} (${signed(flow.changePercent)} %; threshold ≥ ${fmt(t.bolusFlowRisePercent, 1)} %, dense monitor data): `
-          + `${positive ? 'points to' : 'points against'} fluid responsiveness`,
+        ...base,
+        direction: positive ? 'for' : 'against',
+        tier: 'dynamic',
+        text:
+          `${head}: ${label} ${fmt(flow.before.value, 2)} → ${fmt(flow.after.value, 2)} (${signed(flow.changePercent)} %; threshold ≥ ${fmt(t.bolusFlowRisePercent, 1)} %, dense monitor data): ` +
+          `${positive ? 'points to' : 'points against'} fluid responsiveness`,
         evidence: [evidenceOfFluid(bolus, now), ...flow.readings.map((m) => evidenceOfMeasurement(m, now)), ...vasoEvidence],
-        source: SOURCE_DENSE, values: { ...values, flowChangePercent: Math.round(flow.changePercent * 10) / 10, dense: true },
+        source: SOURCE_DENSE,
+        values: { ...values, flowChangePercent: Math.round(flow.changePercent * 10) / 10, dense: true },
       });
     }
 
@@ -154,33 +232,65 @@ export const lastBolusRule: ResponsivenessRule = {
     const mapPre = maps.find((p) => p.effectiveMs >= preFrom && p.effectiveMs <= startMs);
     const mapPost = [...maps].reverse().find((p) => p.effectiveMs > endMs && p.effectiveMs <= postTo);
     const hrs = readings(ctx.snapshot, 'heartRate', now).items;
-    const hrPre = hrs.find((m) => { const ms = timeMs(m.effective); return ms >= preFrom && ms <= startMs; });
-    const hrPost = [...hrs].reverse().find((m) => { const ms = timeMs(m.effective); return ms > endMs && ms <= postTo; });
+    const hrPre = hrs.find((m) => {
+      const ms = timeMs(m.effective);
+      return ms >= preFrom && ms <= startMs;
+    });
+    const hrPost = [...hrs].reverse().find((m) => {
+      const ms = timeMs(m.effective);
+      return ms > endMs && ms <= postTo;
+    });
     const evidence: Evidence[] = [
-      evidenceOfFluid(bolus, now), ...[mapPre, mapPost].flatMap((p) => (p ? mapPointEvidence(p, now) : [])),
-      ...[hrPre, hrPost].flatMap((m) => (m ? [evidenceOfMeasurement(m, now)] : [])), ...vasoEvidence,
+      evidenceOfFluid(bolus, now),
+      ...[mapPre, mapPost].flatMap((p) => (p ? mapPointEvidence(p, now) : [])),
+      ...[hrPre, hrPost].flatMap((m) => (m ? [evidenceOfMeasurement(m, now)] : [])),
+      ...vasoEvidence,
     ];
-    const short = [[mapPre, 'MAP before'], [mapPost, 'MAP after'], [hrPre, 'heart rate before'], [hrPost, 'heart rate after']]
-      .filter(([x]) => x === undefined).map(([, label]) => label as string);
+    const short = [
+      [mapPre, 'MAP before'],
+      [mapPost, 'MAP after'],
+      [hrPre, 'heart rate before'],
+      [hrPost, 'heart rate after'],
+    ]
+      .filter(([x]) => x === undefined)
+      .map(([, label]) => label as string);
     if (!mapPre || !mapPost || !hrPre || !hrPost) {
       const why = `too few readings (no ${short.join(', no ')}; windows ${t.bolusPreWindowMin} min before the start and ${t.bolusPostWindowMin} min after the end)`;
-      return notAssessed({ ...base, text: `${head}: response not used, ${why}`, reason: why, gap: 'too-few-readings', evidence, source: SOURCE_HOURLY, values });
+      return notAssessed({
+        ...base,
+        text: `${head}: response not used, ${why}`,
+        reason: why,
+        gap: 'too-few-readings',
+        evidence,
+        source: SOURCE_HOURLY,
+        values,
+      });
     }
     const dMap = mapPost.mapMmHg - mapPre.mapMmHg;
     const dHr = hrPost.value - hrPre.value;
     const mapUp = dMap >= t.bolusMapRiseMmHg;
     const hrDown = -dHr >= t.bolusHrFallPerMin;
     const extra = secondary(ctx, startMs, endMs);
-    const changeText = `MAP ${fmt(mapPre.mapMmHg)} → ${fmt(mapPost.mapMmHg)} mmHg (${signed(dMap)}), HR ${fmt(hrPre.value)} → ${fmt(hrPost.value)}/min (${signed(dHr)})`
-      + (extra.text.length ? `; ${extra.text.join('; ')}` : '');
+    const changeText =
+      `MAP ${fmt(mapPre.mapMmHg)} → ${fmt(mapPost.mapMmHg)} mmHg (${signed(dMap)}), HR ${fmt(hrPre.value)} → ${fmt(hrPost.value)}/min (${signed(dHr)})` +
+      (extra.text.length ? `; ${extra.text.join('; ')}` : '');
     let direction: 'for' | 'against' | 'neutral' = mapUp === hrDown ? 'against' : 'neutral';
     if (mapUp && hrDown) direction = 'for';
     const reading = { for: 'read as a response', against: 'no response', neutral: 'partial response, inconclusive' }[direction];
     return assessed({
-      ...base, direction, tier: 'static',
+      ...base,
+      direction,
+      tier: 'static',
       text: `${head}: ${changeText}: ${reading} (hourly pressure change: a weak static marker, corroborates only)`,
-      evidence: [...evidence, ...extra.evidence], source: SOURCE_HOURLY,
-      values: { ...values, mapChangeMmHg: Math.round(dMap * 10) / 10, heartRateChangePerMin: Math.round(dHr * 10) / 10, dense: false, ...extra.values },
+      evidence: [...evidence, ...extra.evidence],
+      source: SOURCE_HOURLY,
+      values: {
+        ...values,
+        mapChangeMmHg: Math.round(dMap * 10) / 10,
+        heartRateChangePerMin: Math.round(dHr * 10) / 10,
+        dense: false,
+        ...extra.values,
+      },
     });
   },
 };

@@ -10,7 +10,8 @@ const TEXT: Record<string, string> = {
   hyperdynamic: 'Echo: hyperdynamic left ventricle (context: often seen with low filling; does not decide responsiveness)',
   normal: 'Echo: normal left ventricular function (context)',
   reduced: 'Echo: reduced left ventricular function (context: weigh volume tolerance)',
-  'severely-reduced': 'Echo: severely reduced left ventricular function (context: output may rise little with volume, and volume is poorly tolerated)',
+  'severely-reduced':
+    'Echo: severely reduced left ventricular function (context: output may rise little with volume, and volume is poorly tolerated)',
 };
 
 export const lvFunctionRule: ResponsivenessRule = {
@@ -19,13 +20,24 @@ export const lvFunctionRule: ResponsivenessRule = {
   run: (ctx) => {
     const sel = latestCoded(ctx.snapshot, 'lvFunction', ctx.now, ctx.w.echoImpressionMin);
     if (sel.state !== 'fresh') {
-      return unusableFinding(sel, { ruleId: LV_FUNCTION_RULE_ID, marker: 'lv-function', label: 'Echo impression of LV function', source: SOURCE, evidenceOf: (c) => evidenceOfCoded(c, ctx.now) });
+      return unusableFinding(sel, {
+        ruleId: LV_FUNCTION_RULE_ID,
+        marker: 'lv-function',
+        label: 'Echo impression of LV function',
+        source: SOURCE,
+        evidenceOf: (c) => evidenceOfCoded(c, ctx.now),
+      });
     }
     const answer = sel.item.answer;
     return assessed({
-      ruleId: LV_FUNCTION_RULE_ID, marker: 'lv-function', direction: 'neutral', tier: 'context',
+      ruleId: LV_FUNCTION_RULE_ID,
+      marker: 'lv-function',
+      direction: 'neutral',
+      tier: 'context',
       text: TEXT[answer] ?? `Echo: LV function '${answer}' (context)`,
-      evidence: [evidenceOfCoded(sel.item, ctx.now)], source: SOURCE, values: { lvFunction: answer },
+      evidence: [evidenceOfCoded(sel.item, ctx.now)],
+      source: SOURCE,
+      values: { lvFunction: answer },
     });
   },
 };

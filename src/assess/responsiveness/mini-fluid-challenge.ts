@@ -11,7 +11,11 @@ const SOURCE = 'Mini fluid challenge, ΔVTI ≥ 10 %: Muller L et al., Anesthesi
 export function miniFluidChallengeSpec(t: ResponsivenessThresholds): DynamicTestSpec {
   const flow: ReadOut = { compare: 'relative', threshold: t.miniFluidChallengeRisePercent, strict: false, tier: 'dynamic', source: SOURCE };
   return {
-    ruleId: MINI_FLUID_CHALLENGE_RULE_ID, marker: 'mini-fluid-challenge', kind: 'miniFluidChallenge', label: 'Mini fluid challenge', source: SOURCE,
+    ruleId: MINI_FLUID_CHALLENGE_RULE_ID,
+    marker: 'mini-fluid-challenge',
+    kind: 'miniFluidChallenge',
+    label: 'Mini fluid challenge',
+    source: SOURCE,
     readOuts: { vti: flow, strokeVolume: flow, cardiacOutput: flow, cardiacIndex: flow },
   };
 }

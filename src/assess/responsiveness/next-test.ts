@@ -40,7 +40,10 @@ export function flowMonitorKind(ctx: RuleContext): FlowMonitorKind | undefined {
  * later event (the arterial line is there either way); a stale one says nothing about the patient now.
  */
 export function currentHeartLungIndex(ctx: RuleContext): 'ppv' | 'svv' | undefined {
-  const current = (k: 'ppv' | 'svv') => { const st = latestReading(ctx.snapshot, k, ctx.now, ctx.w.ppvSvvMin).state; return st === 'fresh' || st === 'set-aside'; };
+  const current = (k: 'ppv' | 'svv') => {
+    const st = latestReading(ctx.snapshot, k, ctx.now, ctx.w.ppvSvvMin).state;
+    return st === 'fresh' || st === 'set-aside';
+  };
   if (current('ppv')) return 'ppv';
   return current('svv') ? 'svv' : undefined;
 }
@@ -48,7 +51,8 @@ export function currentHeartLungIndex(ctx: RuleContext): 'ppv' | 'svv' | undefin
 export function chooseNextTest(ctx: RuleContext): NextTestKind {
   const vent = checkVentilation(ctx);
   const hasIndex = currentHeartLungIndex(ctx) !== undefined;
-  if (vent.state === 'met' && hasIndex && checkRhythm(ctx).state === 'met' && checkTidalVolume(ctx).state === 'failed') return 'tidal-volume-challenge';
+  if (vent.state === 'met' && hasIndex && checkRhythm(ctx).state === 'met' && checkTidalVolume(ctx).state === 'failed')
+    return 'tidal-volume-challenge';
   if (checkIntraAbdominalPressure(ctx).state === 'failed') return 'mini-fluid-challenge';
   if (flowMonitorKind(ctx) === undefined) return 'mini-fluid-challenge';
   return 'passive-leg-raise';

@@ -14,13 +14,24 @@ const FLOW_SOURCE = 'PLR-induced rise in cardiac output ≥ 10 %: Monnet, Marik,
 export function plrSpec(t: ResponsivenessThresholds): DynamicTestSpec {
   const flow: ReadOut = { compare: 'relative', threshold: t.plrFlowRisePercent, strict: false, tier: 'dynamic', source: FLOW_SOURCE };
   return {
-    ruleId: PLR_RULE_ID, marker: 'plr', kind: 'plr', label: 'Passive leg raising', source: FLOW_SOURCE,
+    ruleId: PLR_RULE_ID,
+    marker: 'plr',
+    kind: 'plr',
+    label: 'Passive leg raising',
+    source: FLOW_SOURCE,
     readOuts: {
-      cardiacOutput: flow, cardiacIndex: flow, strokeVolume: flow, vti: flow,
+      cardiacOutput: flow,
+      cardiacIndex: flow,
+      strokeVolume: flow,
+      vti: flow,
       pulsePressure: {
-        compare: 'relative', threshold: t.plrPulsePressureRisePercent, strict: false, tier: 'static',
+        compare: 'relative',
+        threshold: t.plrPulsePressureRisePercent,
+        strict: false,
+        tier: 'static',
         note: 'judged by pulse pressure only: weak evidence, a static marker that only corroborates; PLR needs real-time cardiac output monitoring',
-        source: 'PLR by pulse pressure is a poor surrogate (AUC 0.77): Monnet, Marik, Teboul, Intensive Care Med 2016; pulse pressure rise ≥ 12 %: Monnet et al., Crit Care Med 2006;34:1402 (from memory)',
+        source:
+          'PLR by pulse pressure is a poor surrogate (AUC 0.77): Monnet, Marik, Teboul, Intensive Care Med 2016; pulse pressure rise ≥ 12 %: Monnet et al., Crit Care Med 2006;34:1402 (from memory)',
       },
     },
   };

@@ -10,9 +10,13 @@ export const svvRule: ResponsivenessRule = {
   onError: ruleErrorFinding(SVV_RULE_ID, 'svv'),
   run: (ctx) =>
     assessVariationIndex(ctx, {
-      ruleId: SVV_RULE_ID, kind: 'svv', label: 'SVV',
-      thresholdPercent: ctx.t.svvThresholdPercent, greyZoneLowPercent: ctx.t.svvGreyZoneLowPercent,
-      source: 'SVV threshold 11.6 %: Marik et al., Crit Care Med 2009;37:2642 (value from memory); grey zone below it: our choice (threshold − 1 SD); '
-        + 'validity conditions as for PPV: Monnet, Marik, Teboul, Ann Intensive Care 2016;6:111',
+      ruleId: SVV_RULE_ID,
+      kind: 'svv',
+      label: 'SVV',
+      thresholdPercent: ctx.t.svvThresholdPercent,
+      greyZoneLowPercent: ctx.t.svvGreyZoneLowPercent,
+      source:
+        'SVV threshold 11.6 %: Marik et al., Crit Care Med 2009;37:2642 (value from memory); grey zone below it: our choice (threshold − 1 SD); ' +
+        'validity conditions as for PPV: Monnet, Marik, Teboul, Ann Intensive Care 2016;6:111',
     }),
 };

@@ -21,9 +21,15 @@ export const responsivenessThresholdsSchema = z
     bolusMinVolumeMl: z.number().min(1).max(5000).default(250),
     /** Longest infusion that counts as a bolus, minutes (common practice: given over 10–30 min; slower is not a challenge). */
     bolusMaxDurationMin: minutes(1440).default(60),
-    /** Dense monitor data: flow readings no further apart than this, minutes (Aya HD et al., Crit Care Med 2016;44:880: readings every few minutes). */
+    /**
+     * Dense monitor data: flow readings no further apart than this, minutes (Aya HD et al., Crit Care Med 2016;44:880: readings every few
+     * minutes).
+     */
     denseMaxGapMin: z.number().min(1).max(30).default(5),
-    /** A flow reading this close after the end of the bolus, minutes: the response peaks ~1 min after the end and fades within ~10 min (Aya 2016). */
+    /**
+     * A flow reading this close after the end of the bolus, minutes: the response peaks ~1 min after the end and fades within ~10 min (Aya
+     * 2016).
+     */
     flowAfterEndMaxMin: z.number().min(1).max(30).default(10),
     /** A flow reading this close before the start of the bolus serves as baseline, minutes (our choice, as flowAfterEndMaxMin). */
     flowBeforeStartMaxMin: z.number().min(1).max(30).default(10),
@@ -43,19 +49,29 @@ export const responsivenessThresholdsSchema = z
     // ── PPV and SVV ─────────────────────────────────────────────────────────────────────────────────────────
     /** PPV ≥ this, percent: responsive (Michard et al., Am J Respir Crit Care Med 2000 [M]). Common practice reads ≥ 15–20 % as clear. */
     ppvThresholdPercent: percent().default(13),
-    /** PPV below this, percent: unresponsive; from here up to the threshold is the grey zone (Cannesson et al., Anesthesiology 2011 [M]). */
+    /**
+     * PPV below this, percent: unresponsive; from here up to the threshold is the grey zone (Cannesson et al., Anesthesiology 2011 [M]).
+     */
     ppvGreyZoneLowPercent: percent().default(9),
     /** SVV ≥ this, percent: responsive (Marik et al., Crit Care Med 2009, pooled 11.6 ± 1.9 % [M]). */
     svvThresholdPercent: percent().default(11.6),
-    /** SVV below this, percent: unresponsive; between this and the threshold: grey zone (our choice: pooled threshold − 1 SD, 11.6 − 1.9). */
+    /**
+     * SVV below this, percent: unresponsive; between this and the threshold: grey zone (our choice: pooled threshold − 1 SD, 11.6 − 1.9).
+     */
     svvGreyZoneLowPercent: percent().default(9.7),
     /** Tidal volume needed for PPV/SVV validity, mL/kg PBW, ≥ (Monnet, Marik, Teboul, Ann Intensive Care 2016, Table 2). */
     minTidalVolumeMlPerKgPbw: z.number().min(0).max(20).default(8),
     /** HR/RR ratio needed for PPV/SVV validity, strictly > (De Backer et al., Anesthesiology 2009 [M citation]). */
     minHeartRateRespiratoryRateRatio: z.number().min(0).max(20).default(3.6),
-    /** Intra-abdominal hypertension from this value, mmHg, ≥: a high PPV/SVV is doubtful (WSACS 2013; false positives: Jacques D et al., Crit Care 2011 [M]). */
+    /**
+     * Intra-abdominal hypertension from this value, mmHg, ≥: a high PPV/SVV is doubtful (WSACS 2013; false positives: Jacques D et al.,
+     * Crit Care 2011 [M]).
+     */
     iahThresholdMmHg: z.number().min(0).max(40).default(12),
-    /** A cardiac output, cardiac index or stroke volume reading this recent means a flow monitor is in use, minutes (our choice): PLR is offered, else a mini fluid challenge with VTI (docs/clinical-logic). */
+    /**
+     * A cardiac output, cardiac index or stroke volume reading this recent means a flow monitor is in use, minutes (our choice): PLR is
+     * offered, else a mini fluid challenge with VTI (docs/clinical-logic).
+     */
     flowMonitorRecentMin: minutes(1440).default(240),
 
     // ── Dynamic tests ───────────────────────────────────────────────────────────────────────────────────────
@@ -67,7 +83,9 @@ export const responsivenessThresholdsSchema = z
     miniFluidChallengeRisePercent: percent().default(10),
     /** End-expiratory occlusion: CI, CO or SV rise strictly > this, percent (Monnet et al., Crit Care Med 2009;37:951 [M]). */
     eeoFlowRisePercent: percent().default(5),
-    /** End-expiratory occlusion by echo: VTI rise ≥ this, percent (echocardiographic EEO study, Crit Care 2018, PMC5804059; authors [M]). */
+    /**
+     * End-expiratory occlusion by echo: VTI rise ≥ this, percent (echocardiographic EEO study, Crit Care 2018, PMC5804059; authors [M]).
+     */
     eeoVtiRisePercent: percent().default(9),
     /** End-expiratory occlusion by pulse pressure: rise strictly > this, percent; weak, weighed as static (Monnet et al. 2009 [M]). */
     eeoPulsePressureRisePercent: percent().default(5),
@@ -89,7 +107,10 @@ export const responsivenessThresholdsSchema = z
     ivcDistensibilityFeisselPercent: percent().default(12),
     /** IVC diameter cut, cm: ≤ is small, > is wide (Rudski et al., J Am Soc Echocardiogr 2010, 2.1 cm). */
     ivcDiameterCutCm: z.number().min(0.5).max(5).default(2.1),
-    /** Wide IVC (> ivcDiameterCutCm) collapsing strictly less than this, percent ("no respiratory variation"): static against (common practice; our reading: < 10 %). */
+    /**
+     * Wide IVC (> ivcDiameterCutCm) collapsing strictly less than this, percent ("no respiratory variation"): static against (common
+     * practice; our reading: < 10 %).
+     */
     ivcNoVariationPercent: percent().default(10),
 
     // ── CVP, at the extremes only, static (common practice; it never decides alone: Eskesen TG et al., Intensive Care Med 2016;42:324) ─
@@ -99,14 +120,18 @@ export const responsivenessThresholdsSchema = z
     cvpHighMmHg: z.number().min(0).max(40).default(12),
 
     // ── Combination ─────────────────────────────────────────────────────────────────────────────────────────
-    /** Static markers that must agree, with none against, for a low-confidence verdict (docs/clinical-logic: two agreeing statics at most give low confidence). */
+    /**
+     * Static markers that must agree, with none against, for a low-confidence verdict (docs/clinical-logic: two agreeing statics at most
+     * give low confidence).
+     */
     staticAgreementMinCount: z.number().int().min(2).max(10).default(2),
   })
   .superRefine((t, ctx) => {
     const band = (low: keyof typeof t, high: keyof typeof t, strict: boolean) => {
       const lo = t[low] as number;
       const hi = t[high] as number;
-      if (strict ? lo >= hi : lo > hi) ctx.addIssue({ code: 'custom', path: [low], message: `${String(low)} must be ${strict ? 'below' : 'at most'} ${String(high)}` });
+      if (strict ? lo >= hi : lo > hi)
+        ctx.addIssue({ code: 'custom', path: [low], message: `${String(low)} must be ${strict ? 'below' : 'at most'} ${String(high)}` });
     };
     band('ppvGreyZoneLowPercent', 'ppvThresholdPercent', false);
     band('svvGreyZoneLowPercent', 'svvThresholdPercent', false);

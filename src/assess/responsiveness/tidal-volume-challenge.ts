@@ -15,12 +15,19 @@ const SOURCE = 'Tidal volume challenge, absolute ΔPPV ≥ 3.5 points: Myatra SN
 /** The test with its read-outs, thresholds and gate (what-if/ reads it too, to put a hypothetical result at the threshold). */
 export function tidalVolumeChallengeSpec(t: ResponsivenessThresholds): DynamicTestSpec {
   return {
-    ruleId: TIDAL_VOLUME_CHALLENGE_RULE_ID, marker: 'tidal-volume-challenge', kind: 'tidalVolumeChallenge', label: 'Tidal volume challenge', source: SOURCE,
+    ruleId: TIDAL_VOLUME_CHALLENGE_RULE_ID,
+    marker: 'tidal-volume-challenge',
+    kind: 'tidalVolumeChallenge',
+    label: 'Tidal volume challenge',
+    source: SOURCE,
     gate: (c) => [checkVentilation(c), checkRhythm(c)],
     readOuts: {
       ppv: { compare: 'absolute', threshold: t.tidalVolumeChallengePpvRisePoints, strict: false, tier: 'dynamic', source: SOURCE },
       svv: {
-        compare: 'absolute', threshold: t.tidalVolumeChallengeSvvRisePoints, strict: false, tier: 'dynamic',
+        compare: 'absolute',
+        threshold: t.tidalVolumeChallengeSvvRisePoints,
+        strict: false,
+        tier: 'dynamic',
         source: 'Tidal volume challenge, absolute ΔSVV ≥ 2.5 points: Myatra SN et al., Crit Care Med 2017 (from memory)',
       },
     },

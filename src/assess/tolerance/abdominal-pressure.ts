@@ -18,33 +18,53 @@ import { evidenceOfMeasurement, latestReading, readingsOldestFirst, timeMs } fro
 import { fmt, round } from '../common/text.js';
 
 export const ABDOMINAL_PRESSURE = 'tolerance.abdominal-pressure';
-const SOURCE = 'WSACS 2013 (Kirkpatrick AW et al., Intensive Care Med 2013;39:1190, doi 10.1007/s00134-013-2906-z): IAH ≥ 12 mmHg, grades I 12–15, II 16–20, III 21–25, IV > 25; APP = MAP − IAP; FG = MAP − 2·IAP';
+const SOURCE =
+  'WSACS 2013 (Kirkpatrick AW et al., Intensive Care Med 2013;39:1190, doi 10.1007/s00134-013-2906-z): IAH ≥ 12 mmHg, grades I 12–15, II 16–20, III 21–25, IV > 25; APP = MAP − IAP; FG = MAP − 2·IAP';
 
 function nearest(items: Measurement[], atMs: number, withinMs: number): Measurement | undefined {
   let best: Measurement | undefined;
   let gap = Infinity;
   for (const m of items) {
     const d = Math.abs(timeMs(m.effective) - atMs);
-    if (d < gap) { best = m; gap = d; }
+    if (d < gap) {
+      best = m;
+      gap = d;
+    }
   }
   return best && gap <= withinMs ? best : undefined;
 }
 
 /** MAP near a time: measured, else from systolic and diastolic charted together (conventional approximation). */
-function mapNear(snapshot: PatientSnapshot, now: Date, atMs: number, withinMs: number): { mapMmHg: number; measured: boolean; evidence: Evidence[] } | undefined {
+function mapNear(
+  snapshot: PatientSnapshot,
+  now: Date,
+  atMs: number,
+  withinMs: number,
+): { mapMmHg: number; measured: boolean; evidence: Evidence[] } | undefined {
   const measured = nearest(readingsOldestFirst(snapshot, 'meanBp', now).items, atMs, withinMs);
   if (measured) return { mapMmHg: measured.value, measured: true, evidence: [evidenceOfMeasurement(measured, now)] };
   const sbp = nearest(readingsOldestFirst(snapshot, 'systolicBp', now).items, atMs, withinMs);
   if (!sbp) return undefined;
   const dbp = nearest(readingsOldestFirst(snapshot, 'diastolicBp', now).items, timeMs(sbp.effective), 5 * 60_000);
   if (!dbp || sbp.value < dbp.value) return undefined;
-  return { mapMmHg: meanArterialPressureMmHg(sbp.value, dbp.value), measured: false, evidence: [evidenceOfMeasurement(sbp, now), evidenceOfMeasurement(dbp, now)] };
+  return {
+    mapMmHg: meanArterialPressureMmHg(sbp.value, dbp.value),
+    measured: false,
+    evidence: [evidenceOfMeasurement(sbp, now), evidenceOfMeasurement(dbp, now)],
+  };
 }
 
-export function abdominalPressureRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows = DEFAULT_WINDOWS): ToleranceFinding[] {
+export function abdominalPressureRule(
+  snapshot: PatientSnapshot,
+  now: Date,
+  t: ToleranceThresholds,
+  w: Windows = DEFAULT_WINDOWS,
+): ToleranceFinding[] {
   const pick = latestReading(snapshot, 'intraAbdominalPressure', now, w.intraAbdominalPressureMin);
   if (pick.state !== 'fresh') {
-    return [unusableTolerance(pick, { ruleId: ABDOMINAL_PRESSURE, domain: 'abdomen', label: 'Intra-abdominal pressure', source: SOURCE, now })];
+    return [
+      unusableTolerance(pick, { ruleId: ABDOMINAL_PRESSURE, domain: 'abdomen', label: 'Intra-abdominal pressure', source: SOURCE, now }),
+    ];
   }
   const iap = pick.item.value;
   const grade = iahGrade(iap, t.iahMmHg);
@@ -55,12 +75,23 @@ export function abdominalPressureRule(snapshot: PatientSnapshot, now: Date, t: T
   if (map) {
     const app = abdominalPerfusionPressure(map.mapMmHg, iap);
     const fg = filtrationGradient(map.mapMmHg, iap);
-    Object.assign(values, { mapMmHg: round(map.mapMmHg, 1), mapMeasured: map.measured, appMmHg: round(app, 1), filtrationGradientMmHg: round(fg, 1) });
+    Object.assign(values, {
+      mapMmHg: round(map.mapMmHg, 1),
+      mapMeasured: map.measured,
+      appMmHg: round(app, 1),
+      filtrationGradientMmHg: round(fg, 1),
+    });
     perfusion = `; APP ${fmt(app)} mmHg, filtration gradient ${fmt(fg)} mmHg (MAP ${fmt(map.mapMmHg)}${map.measured ? '' : ', from SBP/DBP'})`;
   }
-  return [assessed({
-    ruleId: ABDOMINAL_PRESSURE, domain: 'abdomen', limit,
-    text: `Intra-abdominal pressure ${fmt(iap)} mmHg${grade > 0 ? `: IAH grade ${iahGradeLabel(grade)}` : ''}${perfusion}`,
-    values, evidence: [evidenceOfMeasurement(pick.item, now), ...(map?.evidence ?? [])], source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: ABDOMINAL_PRESSURE,
+      domain: 'abdomen',
+      limit,
+      text: `Intra-abdominal pressure ${fmt(iap)} mmHg${grade > 0 ? `: IAH grade ${iahGradeLabel(grade)}` : ''}${perfusion}`,
+      values,
+      evidence: [evidenceOfMeasurement(pick.item, now), ...(map?.evidence ?? [])],
+      source: SOURCE,
+    }),
+  ];
 }

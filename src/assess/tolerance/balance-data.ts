@@ -65,11 +65,21 @@ function administrationRecords(snapshot: PatientSnapshot, now: Date): Rec[] {
     if (!Number.isFinite(endMs) || endMs < startMs) endMs = startMs;
     if (startMs > now.getTime()) continue;
     out.push({
-      id: f.ref, volumeMl: f.volumeMl, startMs, endMs,
-      evidence: { ref: f.ref, kind: `fluid:${f.fluidClass}`, value: f.volumeMl, unit: 'mL', effective: f.end, ageMinutes: ageMinutesRounded(f.end, now) },
+      id: f.ref,
+      volumeMl: f.volumeMl,
+      startMs,
+      endMs,
+      evidence: {
+        ref: f.ref,
+        kind: `fluid:${f.fluidClass}`,
+        value: f.volumeMl,
+        unit: 'mL',
+        effective: f.end,
+        ageMinutes: ageMinutesRounded(f.end, now),
+      },
     });
   }
-  return out.sort((a, b) => a.endMs - b.endMs || (Number(a.id > b.id) - Number(a.id < b.id)));
+  return out.sort((a, b) => a.endMs - b.endMs || Number(a.id > b.id) - Number(a.id < b.id));
 }
 
 function inWindow(recs: readonly Rec[], fromMs: number, toMs: number): Rec[] {
@@ -109,7 +119,8 @@ export function balanceOver(snapshot: PatientSnapshot, now: Date, fromMs: number
 
   // Overlapping records are reported only when they fall in the window (older ones do not concern it).
   const droppedIn = (d: Rec[]) => inWindow(d, fromMs, toMs).length;
-  const firstWith = <S extends string>(...options: Array<{ recs: Rec[]; source: S; dropped: number }>) => options.find((o) => o.recs.length > 0);
+  const firstWith = <S extends string>(...options: Array<{ recs: Rec[]; source: S; dropped: number }>) =>
+    options.find((o) => o.recs.length > 0);
   const intake = firstWith(
     { recs: intakeW, source: 'intake-observations' as const, dropped: droppedIn(intakeObs.dropped) },
     { recs: adminW, source: 'administrations' as const, dropped: 0 },
@@ -125,17 +136,27 @@ export function balanceOver(snapshot: PatientSnapshot, now: Date, fromMs: number
     const outputMl = volumeInWindowMl(output.recs, fromMs, toMs);
     const used = [...intake.recs, ...output.recs];
     result = {
-      fromMs, toMs, intakeMl, outputMl, balanceMl: intakeMl - outputMl,
+      fromMs,
+      toMs,
+      intakeMl,
+      outputMl,
+      balanceMl: intakeMl - outputMl,
       source: `${intake.source === 'intake-observations' ? 'intake observations' : 'recorded IV administrations'} − ${output.source === 'output-observations' ? 'output observations' : 'urine output only'}`,
-      intakeSource: intake.source, outputSource: output.source, urineOnly: output.source === 'urine-observations',
+      intakeSource: intake.source,
+      outputSource: output.source,
+      urineOnly: output.source === 'urine-observations',
       droppedOverlapping: intake.dropped + output.dropped,
       latestEndMs: Math.max(...used.map((r) => r.endMs)),
       evidence: used.map((r) => r.evidence),
     };
   } else if (balanceW.length > 0) {
     result = {
-      fromMs, toMs, balanceMl: volumeInWindowMl(balanceW, fromMs, toMs),
-      source: 'charted 24-h balances', outputSource: 'balance-observations', urineOnly: false,
+      fromMs,
+      toMs,
+      balanceMl: volumeInWindowMl(balanceW, fromMs, toMs),
+      source: 'charted 24-h balances',
+      outputSource: 'balance-observations',
+      urineOnly: false,
       droppedOverlapping: droppedIn(balanceObs.dropped),
       latestEndMs: Math.max(...balanceW.map((r) => r.endMs)),
       evidence: balanceW.map((r) => r.evidence),
@@ -146,7 +167,7 @@ export function balanceOver(snapshot: PatientSnapshot, now: Date, fromMs: number
     if (!intake) missing = output ? 'no intake recorded (no intake observations or IV administrations)' : 'no intake or output recorded';
     return { ok: false, reason: `${missing} in the window, and no charted balance` };
   }
-  result.evidence.sort((a, b) => timeMs(a.effective) - timeMs(b.effective) || (Number(a.ref > b.ref) - Number(a.ref < b.ref)));
+  result.evidence.sort((a, b) => timeMs(a.effective) - timeMs(b.effective) || Number(a.ref > b.ref) - Number(a.ref < b.ref));
   if ((now.getTime() - result.latestEndMs) / 60_000 > recencyMinutes) {
     return {
       ok: false,

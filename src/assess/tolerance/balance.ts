@@ -12,7 +12,8 @@ import { fmt, round, signedMl } from '../common/text.js';
 
 export const BALANCE_CUMULATIVE = 'tolerance.balance-cumulative';
 export const BALANCE_24H = 'tolerance.balance-24h';
-const SOURCE = 'Net balance = intake − output (common practice); cumulative balance and outcome: Boyd JH et al., Crit Care Med 2011; FACTT, N Engl J Med 2006';
+const SOURCE =
+  'Net balance = intake − output (common practice); cumulative balance and outcome: Boyd JH et al., Crit Care Med 2011; FACTT, N Engl J Med 2006';
 
 function values(r: BalanceWindowResult): Record<string, number | string | boolean> {
   return {
@@ -36,19 +37,39 @@ function caveat(r: BalanceWindowResult): string {
 export function cumulativeBalanceRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): ToleranceFinding[] {
   const start = cumulativeStartMs(snapshot, now, t.balanceFallbackLookbackHours);
   if (!start) {
-    return [notAssessed(BALANCE_CUMULATIVE, 'balance', 'Cumulative fluid balance not assessed', 'no admission time and no intake/output records', SOURCE)];
+    return [
+      notAssessed(
+        BALANCE_CUMULATIVE,
+        'balance',
+        'Cumulative fluid balance not assessed',
+        'no admission time and no intake/output records',
+        SOURCE,
+      ),
+    ];
   }
   const out = balanceOver(snapshot, now, start.ms, now.getTime(), t.balanceRecencyMinutes);
-  if (!out.ok) return [notAssessed(BALANCE_CUMULATIVE, 'balance', 'Cumulative fluid balance not assessed', out.reason, SOURCE, out.staleEvidence ?? [])];
+  if (!out.ok)
+    return [
+      notAssessed(BALANCE_CUMULATIVE, 'balance', 'Cumulative fluid balance not assessed', out.reason, SOURCE, out.staleEvidence ?? []),
+    ];
   const r = out.result;
-  const since = start.basis === 'admission' ? 'since admission' : `since the earliest record (${fmt((r.toMs - r.fromMs) / 3_600_000)} h; no admission time)`;
-  return [assessed({
-    ruleId: BALANCE_CUMULATIVE, domain: 'balance', limit: 'none', context: true,
-    text: `Cumulative balance ${since}: ${signedMl(r.balanceMl)} (${r.source}${caveat(r)})`,
-    values: { ...values(r), startBasis: start.basis },
-    quantity: { kind: 'balance-ml', value: round(r.balanceMl, 0) },
-    evidence: r.evidence, source: SOURCE,
-  })];
+  const since =
+    start.basis === 'admission'
+      ? 'since admission'
+      : `since the earliest record (${fmt((r.toMs - r.fromMs) / 3_600_000)} h; no admission time)`;
+  return [
+    assessed({
+      ruleId: BALANCE_CUMULATIVE,
+      domain: 'balance',
+      limit: 'none',
+      context: true,
+      text: `Cumulative balance ${since}: ${signedMl(r.balanceMl)} (${r.source}${caveat(r)})`,
+      values: { ...values(r), startBasis: start.basis },
+      quantity: { kind: 'balance-ml', value: round(r.balanceMl, 0) },
+      evidence: r.evidence,
+      source: SOURCE,
+    }),
+  ];
 }
 
 export function balance24hRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): ToleranceFinding[] {
@@ -61,9 +82,16 @@ export function balance24hRule(snapshot: PatientSnapshot, now: Date, t: Toleranc
   const r = out.result;
   const hours = (r.toMs - r.fromMs) / 3_600_000;
   const label = hours < 23.9 ? `over the ${fmt(hours)} h since admission` : 'over the last 24 h';
-  return [assessed({
-    ruleId: BALANCE_24H, domain: 'balance', limit: 'none', context: true,
-    text: `Balance ${label}: ${signedMl(r.balanceMl)} (${r.source}${caveat(r)})`,
-    values: values(r), evidence: r.evidence, source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: BALANCE_24H,
+      domain: 'balance',
+      limit: 'none',
+      context: true,
+      text: `Balance ${label}: ${signedMl(r.balanceMl)} (${r.source}${caveat(r)})`,
+      values: values(r),
+      evidence: r.evidence,
+      source: SOURCE,
+    }),
+  ];
 }

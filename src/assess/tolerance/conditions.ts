@@ -15,7 +15,13 @@ import type { ToleranceThresholds } from './thresholds.js';
 export const CONDITIONS = 'tolerance.conditions';
 
 export { CONDITION_SETS, type ConditionSets };
-export { activeConditionGroups, CONDITION_GROUP_IDS, type ActiveConditionGroup, type ConditionEffect, type ConditionGroupId } from '../../fhir/value-sets.js';
+export {
+  activeConditionGroups,
+  CONDITION_GROUP_IDS,
+  type ActiveConditionGroup,
+  type ConditionEffect,
+  type ConditionGroupId,
+} from '../../fhir/value-sets.js';
 
 const SOURCE = `Tidemark value sets v${CONDITION_SETS.version} (src/fhir/value-sets/conditions.json; each code with its source, some from memory); conservative fluids in ARDS: FACTT, N Engl J Med 2006;354:2564`;
 
@@ -27,7 +33,7 @@ export function matchConditionSets(entry: ConditionEntry, sets: ConditionSets = 
 export function conditionsRule(snapshot: PatientSnapshot, now: Date, _t: ToleranceThresholds): ToleranceFinding[] {
   const active = snapshot.conditions
     .filter((c) => CONDITION_SETS.activeStatuses.includes(c.clinicalStatus))
-    .sort((a, b) => (Number(a.ref > b.ref) - Number(a.ref < b.ref)));
+    .sort((a, b) => Number(a.ref > b.ref) - Number(a.ref < b.ref));
   if (active.length === 0) {
     const reason = snapshot.conditions.length === 0 ? 'no conditions recorded' : 'no active condition recorded';
     return [notAssessed(CONDITIONS, 'conditions', 'Conditions that lower tolerance not assessed', reason, SOURCE)];
@@ -44,22 +50,39 @@ export function conditionsRule(snapshot: PatientSnapshot, now: Date, _t: Toleran
     }
     if (hits.length > 0) {
       const when = c.onset ?? snapshot.now;
-      evidence.push({ ref: c.ref, kind: 'condition', value: hits.map((h) => h.coding).join(' '), effective: when, ageMinutes: ageMinutesAt(when, now) });
+      evidence.push({
+        ref: c.ref,
+        kind: 'condition',
+        value: hits.map((h) => h.coding).join(' '),
+        effective: when,
+        ageMinutes: ageMinutesAt(when, now),
+      });
     }
   }
   if (matched.size === 0) {
-    return [assessed({
-      ruleId: CONDITIONS, domain: 'conditions', limit: 'none',
-      text: `None of ${active.length} active condition(s) is on the lists that lower fluid tolerance`,
-      values: { activeConditions: active.length, matchedSets: '' }, evidence: [], source: SOURCE,
-    })];
+    return [
+      assessed({
+        ruleId: CONDITIONS,
+        domain: 'conditions',
+        limit: 'none',
+        text: `None of ${active.length} active condition(s) is on the lists that lower fluid tolerance`,
+        values: { activeConditions: active.length, matchedSets: '' },
+        evidence: [],
+        source: SOURCE,
+      }),
+    ];
   }
   // Set order as in the JSON file, so that the text does not depend on the order of conditions.
   const ordered = CONDITION_SETS.sets.filter((s) => matched.has(s.id)).map((s) => ({ id: s.id, ...matched.get(s.id)! }));
-  return [assessed({
-    ruleId: CONDITIONS, domain: 'conditions', limit: 'moderate',
-    text: `Recorded ${ordered.map((m) => m.label).join('; ')}: ${ordered.map((m) => m.why).join('; ')}`,
-    values: { activeConditions: active.length, matchedSets: ordered.map((m) => m.id).join(',') },
-    evidence, source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: CONDITIONS,
+      domain: 'conditions',
+      limit: 'moderate',
+      text: `Recorded ${ordered.map((m) => m.label).join('; ')}: ${ordered.map((m) => m.why).join('; ')}`,
+      values: { activeConditions: active.length, matchedSets: ordered.map((m) => m.id).join(',') },
+      evidence,
+      source: SOURCE,
+    }),
+  ];
 }

@@ -14,9 +14,16 @@ export function cvpRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresh
   if (sel.state !== 'fresh') return [unusableTolerance(sel, { ruleId: CVP, domain: 'venous', label, source: SOURCE, now })];
   const v = sel.item.value;
   const high = v >= t.cvpHighMmHg;
-  return [assessed({
-    ruleId: CVP, domain: 'venous', limit: high ? 'moderate' : 'none', uses: ['cvp'],
-    text: `${label} ${fmt(v, 1)} mmHg${high ? ` (high, ≥ ${fmt(t.cvpHighMmHg)})` : ''}`,
-    values: { cvpMmHg: v, high }, evidence: [cvpEvidence(sel.item, now)], source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: CVP,
+      domain: 'venous',
+      limit: high ? 'moderate' : 'none',
+      uses: ['cvp'],
+      text: `${label} ${fmt(v, 1)} mmHg${high ? ` (high, ≥ ${fmt(t.cvpHighMmHg)})` : ''}`,
+      values: { cvpMmHg: v, high },
+      evidence: [cvpEvidence(sel.item, now)],
+      source: SOURCE,
+    }),
+  ];
 }

@@ -33,29 +33,66 @@ export interface AssessedArgs {
 
 export function assessed(a: AssessedArgs): ToleranceFinding {
   return {
-    ruleId: a.ruleId, topic: 'tolerance', status: 'assessed', domain: a.domain, limit: a.context ? 'none' : a.limit,
-    harmSign: a.congestionSign === true, contextOnly: a.context === true,
-    text: a.text, ...(a.values ? { values: a.values } : {}), evidence: a.evidence, source: a.source,
-    ...(a.quantity ? { quantity: a.quantity } : {}), ...(a.uses ? { uses: a.uses } : {}),
+    ruleId: a.ruleId,
+    topic: 'tolerance',
+    status: 'assessed',
+    domain: a.domain,
+    limit: a.context ? 'none' : a.limit,
+    harmSign: a.congestionSign === true,
+    contextOnly: a.context === true,
+    text: a.text,
+    ...(a.values ? { values: a.values } : {}),
+    evidence: a.evidence,
+    source: a.source,
+    ...(a.quantity ? { quantity: a.quantity } : {}),
+    ...(a.uses ? { uses: a.uses } : {}),
   };
 }
 
 export function notAssessed(
-  ruleId: string, domain: ToleranceDomain, text: string, reason: string, source: string, evidence: Evidence[] = [], values?: Figures, gap: GapKind = 'missing',
+  ruleId: string,
+  domain: ToleranceDomain,
+  text: string,
+  reason: string,
+  source: string,
+  evidence: Evidence[] = [],
+  values?: Figures,
+  gap: GapKind = 'missing',
 ): ToleranceFinding {
   return {
-    ruleId, topic: 'tolerance', status: 'not-assessed', domain, limit: 'none', harmSign: false, contextOnly: false,
-    text, reason, gap, ...(values ? { values } : {}), evidence, source,
+    ruleId,
+    topic: 'tolerance',
+    status: 'not-assessed',
+    domain,
+    limit: 'none',
+    harmSign: false,
+    contextOnly: false,
+    text,
+    reason,
+    gap,
+    ...(values ? { values } : {}),
+    evidence,
+    source,
   };
 }
 
 /** The not-assessed finding for a measurement or coded selection that is missing, stale or invalid. */
 export function unusableTolerance<T extends Measurement | CodedMeasurement>(
-  sel: Unusable<T>, a: { ruleId: string; domain: ToleranceDomain; label: string; source: string; now: Date },
+  sel: Unusable<T>,
+  a: { ruleId: string; domain: ToleranceDomain; label: string; source: string; now: Date },
 ): ToleranceFinding {
   const ev = (x: T): Evidence => ('answer' in x ? evidenceOfCoded(x, a.now) : evidenceOfMeasurement(x, a.now));
   const p = unusableParts(sel, a.label, ev);
-  return { ruleId: a.ruleId, topic: 'tolerance', domain: a.domain, limit: 'none', harmSign: false, contextOnly: false, ...p, source: a.source };
+  return {
+    ruleId: a.ruleId,
+    topic: 'tolerance',
+    domain: a.domain,
+    limit: 'none',
+    harmSign: false,
+    contextOnly: false,
+    ...p,
+    source: a.source,
+  };
 }
 
 /** Limit of a finding; not-assessed, context-only and non-tolerance findings limit nothing. */

@@ -15,7 +15,8 @@ import { evidenceOfMeasurement } from '../common/select.js';
 import { fmt, round, signedMl } from '../common/text.js';
 
 export const FLUID_OVERLOAD = 'tolerance.fluid-overload';
-const SOURCE = '%FO = (in − out, L) / admission weight (kg) × 100: Goldstein SL et al., Pediatrics 2001;107:1309; adults ≥ 10 %: Bouchard J et al., Kidney Int 2009;76:422 (from memory); children 10 % / 20 %: Sutherland SM et al., Am J Kidney Dis 2010 (from memory)';
+const SOURCE =
+  '%FO = (in − out, L) / admission weight (kg) × 100: Goldstein SL et al., Pediatrics 2001;107:1309; adults ≥ 10 %: Bouchard J et al., Kidney Int 2009;76:422 (from memory); children 10 % / 20 %: Sutherland SM et al., Am J Kidney Dis 2010 (from memory)';
 
 export function fluidOverloadRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds): ToleranceFinding[] {
   const title = 'Percent fluid overload not assessed';
@@ -24,7 +25,12 @@ export function fluidOverloadRule(snapshot: PatientSnapshot, now: Date, t: Toler
   const out = balanceOver(snapshot, now, start.ms, now.getTime(), t.balanceRecencyMinutes);
   if (!out.ok) return [notAssessed(FLUID_OVERLOAD, 'balance', title, `cumulative balance unknown: ${out.reason}`, SOURCE)];
   const weight = admissionWeight(snapshot, now, t);
-  if (!weight) return [notAssessed(FLUID_OVERLOAD, 'balance', title, 'no admission weight recorded', SOURCE, [], { balanceMl: round(out.result.balanceMl, 0) })];
+  if (!weight)
+    return [
+      notAssessed(FLUID_OVERLOAD, 'balance', title, 'no admission weight recorded', SOURCE, [], {
+        balanceMl: round(out.result.balanceMl, 0),
+      }),
+    ];
 
   const r = out.result;
   const percent = percentFluidOverloadFromBalance(r.balanceMl, weight.m.value);
@@ -39,14 +45,26 @@ export function fluidOverloadRule(snapshot: PatientSnapshot, now: Date, t: Toler
   const bandFrom = from[band];
   const bandText = bandFrom === undefined ? '' : ` (≥ ${bandFrom} %, ${child ? 'paediatric' : 'adult'} band)`;
   const weightText = weight.basis === 'admission' ? 'admission weight' : 'earliest recorded weight';
-  return [assessed({
-    ruleId: FLUID_OVERLOAD, domain: 'balance', limit,
-    text: `Fluid overload ${fmt(percent, 1)} % of ${weightText} ${fmt(weight.m.value, 1)} kg${bandText}; balance ${signedMl(r.balanceMl)}`,
-    values: {
-      fluidOverloadPercent: round(percent, 2), balanceMl: round(r.balanceMl, 0), admissionWeightKg: weight.m.value,
-      weightBasis: weight.basis, startBasis: start.basis, band, source: r.source, urineOnly: r.urineOnly, paediatric: child,
-    },
-    quantity: { kind: 'fluid-overload-percent', value: round(percent, 2) },
-    evidence: [...r.evidence, evidenceOfMeasurement(weight.m, now)], source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: FLUID_OVERLOAD,
+      domain: 'balance',
+      limit,
+      text: `Fluid overload ${fmt(percent, 1)} % of ${weightText} ${fmt(weight.m.value, 1)} kg${bandText}; balance ${signedMl(r.balanceMl)}`,
+      values: {
+        fluidOverloadPercent: round(percent, 2),
+        balanceMl: round(r.balanceMl, 0),
+        admissionWeightKg: weight.m.value,
+        weightBasis: weight.basis,
+        startBasis: start.basis,
+        band,
+        source: r.source,
+        urineOnly: r.urineOnly,
+        paediatric: child,
+      },
+      quantity: { kind: 'fluid-overload-percent', value: round(percent, 2) },
+      evidence: [...r.evidence, evidenceOfMeasurement(weight.m, now)],
+      source: SOURCE,
+    }),
+  ];
 }

@@ -35,7 +35,8 @@ function rule(id: string, domain: ToleranceDomain, fn: ToleranceRuleFn): Toleran
   return {
     id,
     run: (c) => fn(c.snapshot, c.now, c.t, c.w),
-    onError: (message) => notAssessed(id, domain, 'Not assessed: the rule failed', `rule error: ${message}`, 'internal', [], undefined, 'rule-error'),
+    onError: (message) =>
+      notAssessed(id, domain, 'Not assessed: the rule failed', `rule error: ${message}`, 'internal', [], undefined, 'rule-error'),
   };
 }
 

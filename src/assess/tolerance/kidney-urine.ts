@@ -17,19 +17,34 @@ import { evidenceOfMeasurement, readingsOldestFirst, timeMs } from '../common/se
 import { ageText, fmt, round } from '../common/text.js';
 
 export const KIDNEY_URINE = 'tolerance.kidney-urine';
-const SOURCE = 'KDIGO AKI guideline, Kidney Int Suppl 2012;2:1–138: stage 1 < 0.5 mL/kg/h for 6–12 h, stage 2 < 0.5 for ≥ 12 h, stage 3 < 0.3 for ≥ 24 h or anuria ≥ 12 h';
+const SOURCE =
+  'KDIGO AKI guideline, Kidney Int Suppl 2012;2:1–138: stage 1 < 0.5 mL/kg/h for 6–12 h, stage 2 < 0.5 for ≥ 12 h, stage 3 < 0.3 for ≥ 24 h or anuria ≥ 12 h';
 const WINDOWS_H = [6, 12, 24] as const;
 
-interface UrineRec extends VolumeRecord { evidence: Evidence }
+interface UrineRec extends VolumeRecord {
+  evidence: Evidence;
+}
 
 /** Urine records as intervals, point amounts placed after the previous record. */
-export function urineIntervals(snapshot: PatientSnapshot, now: Date, maxGapMinutes: number): { intervals: UrineRec[]; unplaced: UrineRec[] } {
+export function urineIntervals(
+  snapshot: PatientSnapshot,
+  now: Date,
+  maxGapMinutes: number,
+): { intervals: UrineRec[]; unplaced: UrineRec[] } {
   const recs: UrineRec[] = readingsOldestFirst(snapshot, 'urineOutput', now).items.map((m) => {
     const endMs = timeMs(m.effective);
     const s = m.periodStart !== undefined ? timeMs(m.periodStart) : endMs;
-    return { id: m.ref, volumeMl: m.value, startMs: Number.isFinite(s) && s <= endMs ? s : endMs, endMs, evidence: evidenceOfMeasurement(m, now) };
+    return {
+      id: m.ref,
+      volumeMl: m.value,
+      startMs: Number.isFinite(s) && s <= endMs ? s : endMs,
+      endMs,
+      evidence: evidenceOfMeasurement(m, now),
+    };
   });
-  const kept = withoutOverlaps(recs).kept.sort((a, b) => a.endMs - b.endMs || a.startMs - b.startMs || (Number(a.id > b.id) - Number(a.id < b.id)));
+  const kept = withoutOverlaps(recs).kept.sort(
+    (a, b) => a.endMs - b.endMs || a.startMs - b.startMs || Number(a.id > b.id) - Number(a.id < b.id),
+  );
   const intervals: UrineRec[] = [];
   const unplaced: UrineRec[] = [];
   let prev: { endMs: number; startMs: number; placed: boolean } | undefined;
@@ -53,12 +68,29 @@ export function kidneyUrineRule(snapshot: PatientSnapshot, now: Date, t: Toleran
   const { intervals, unplaced } = urineIntervals(snapshot, now, t.urinePointMaxGapMinutes);
   if (intervals.length === 0) {
     const reason = unplaced.length > 0 ? 'urine amounts recorded without a period that can be placed in time' : 'no urine output recorded';
-    return [notAssessed(KIDNEY_URINE, 'kidneys', title, reason, SOURCE, unplaced.map((r) => r.evidence))];
+    return [
+      notAssessed(
+        KIDNEY_URINE,
+        'kidneys',
+        title,
+        reason,
+        SOURCE,
+        unplaced.map((r) => r.evidence),
+      ),
+    ];
   }
   const endMs = Math.max(...intervals.map((r) => r.endMs));
   const sinceMin = (now.getTime() - endMs) / 60_000;
   if (sinceMin > t.urineRecencyMinutes) {
-    return [notAssessed(KIDNEY_URINE, 'kidneys', title, `the latest urine record ended ${ageText(sinceMin)} ago; older than ${ageText(t.urineRecencyMinutes)} does not count`, SOURCE)];
+    return [
+      notAssessed(
+        KIDNEY_URINE,
+        'kidneys',
+        title,
+        `the latest urine record ended ${ageText(sinceMin)} ago; older than ${ageText(t.urineRecencyMinutes)} does not count`,
+        SOURCE,
+      ),
+    ];
   }
   if (!weight) return [notAssessed(KIDNEY_URINE, 'kidneys', title, 'no body weight recorded for mL/kg/h', SOURCE)];
 
@@ -79,20 +111,37 @@ export function kidneyUrineRule(snapshot: PatientSnapshot, now: Date, t: Toleran
   const stage = kdigoStageFromUrineOutput(windows);
   if (stage === undefined) {
     const rate = widest ? urineOutputMlPerKgPerHour(widest.volumeMl, kg, widest.coveredHours) : undefined;
-    return [notAssessed(KIDNEY_URINE, 'kidneys', title,
-      `urine charted over ${fmt(widest?.coveredHours ?? 0, 1)} h only; KDIGO needs at least 6 h`, SOURCE, evidence,
-      rate !== undefined ? { urineMlPerKgPerHour: round(rate, 2), coveredHours: round(widest!.coveredHours, 1) } : undefined)];
+    return [
+      notAssessed(
+        KIDNEY_URINE,
+        'kidneys',
+        title,
+        `urine charted over ${fmt(widest?.coveredHours ?? 0, 1)} h only; KDIGO needs at least 6 h`,
+        SOURCE,
+        evidence,
+        rate !== undefined ? { urineMlPerKgPerHour: round(rate, 2), coveredHours: round(widest!.coveredHours, 1) } : undefined,
+      ),
+    ];
   }
   // The window shown: the longest one that gives the stage (or the longest judged when stage 0).
   const shown = [...windows].reverse().find((w) => kdigoStageFromUrineOutput([w]) === stage) ?? windows.at(-1)!;
   const limit = limitFrom(stage, 3, 1);
-  return [assessed({
-    ruleId: KIDNEY_URINE, domain: 'kidneys', limit,
-    text: `Urine output ${fmt(shown.mlPerKgPerHour, 2)} mL/kg/h over ${fmt(shown.hours)} h (${fmt(shown.volumeMl)} mL, ${fmt(kg, 1)} kg)${stage > 0 ? `: KDIGO stage ${stage} by urine output` : ''}`,
-    values: {
-      kdigoUrineStage: stage, urineMlPerKgPerHour: round(shown.mlPerKgPerHour, 3), windowHours: shown.hours,
-      urineVolumeMl: round(shown.volumeMl, 0), weightKg: kg, weightBasis: weight.basis,
-    },
-    evidence, source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: KIDNEY_URINE,
+      domain: 'kidneys',
+      limit,
+      text: `Urine output ${fmt(shown.mlPerKgPerHour, 2)} mL/kg/h over ${fmt(shown.hours)} h (${fmt(shown.volumeMl)} mL, ${fmt(kg, 1)} kg)${stage > 0 ? `: KDIGO stage ${stage} by urine output` : ''}`,
+      values: {
+        kdigoUrineStage: stage,
+        urineMlPerKgPerHour: round(shown.mlPerKgPerHour, 3),
+        windowHours: shown.hours,
+        urineVolumeMl: round(shown.volumeMl, 0),
+        weightKg: kg,
+        weightBasis: weight.basis,
+      },
+      evidence,
+      source: SOURCE,
+    }),
+  ];
 }

@@ -20,7 +20,8 @@ import { evidenceOfMeasurement, latestReading, timeMs, type Selection, type Unus
 import { fmt } from '../common/text.js';
 
 export const LUNG_ULTRASOUND = 'tolerance.lung-ultrasound';
-const SOURCE = 'Lung ultrasound B-pattern; diffuse interstitial syndrome needs ≥ 2 positive regions on each side: Volpicelli G et al., Intensive Care Med 2012;38:577 (international evidence-based recommendations for point-of-care lung ultrasound; from memory); the moderate band from 2 regions: common practice';
+const SOURCE =
+  'Lung ultrasound B-pattern; diffuse interstitial syndrome needs ≥ 2 positive regions on each side: Volpicelli G et al., Intensive Care Med 2012;38:577 (international evidence-based recommendations for point-of-care lung ultrasound; from memory); the moderate band from 2 regions: common practice';
 
 type Side = 'left' | 'right';
 const OTHER: Record<Side, Side> = { left: 'right', right: 'left' };
@@ -44,7 +45,13 @@ function lungPattern(diffuse: boolean, oneSide: boolean, sum: number, t: Toleran
 
 const LIMIT_ORDER: Record<ToleranceLimit, number> = { none: 0, moderate: 1, severe: 2 };
 
-function bySide(left: Measurement, right: Measurement, whole: Measurement | undefined, now: Date, t: ToleranceThresholds): ToleranceFinding {
+function bySide(
+  left: Measurement,
+  right: Measurement,
+  whole: Measurement | undefined,
+  now: Date,
+  t: ToleranceThresholds,
+): ToleranceFinding {
   const l = left.value;
   const r = right.value;
   const per = t.bLineBilateralPerSide;
@@ -66,18 +73,28 @@ function bySide(left: Measurement, right: Measurement, whole: Measurement | unde
     focal: 'focal',
     none: 'none on either side',
   }[pattern];
-  const laterText = later && limit !== sideLimit
-    ? `; a later whole-chest count, ${fmt(later.value)} of 8 regions with the side not recorded, keeps it a moderate limit`
-    : '';
+  const laterText =
+    later && limit !== sideLimit
+      ? `; a later whole-chest count, ${fmt(later.value)} of 8 regions with the side not recorded, keeps it a moderate limit`
+      : '';
   return assessed({
-    ruleId: LUNG_ULTRASOUND, domain: 'lungs', limit, congestionSign: diffuse,
+    ruleId: LUNG_ULTRASOUND,
+    domain: 'lungs',
+    limit,
+    congestionSign: diffuse,
     text: `Lung ultrasound: ${counts}: ${reading}${laterText}`,
     values: { bLineRegionsLeft: l, bLineRegionsRight: r, sideRecorded: true, pattern },
-    evidence: [left, right, ...(later ? [later] : [])].map((m) => evidenceOfMeasurement(m, now)), source: SOURCE,
+    evidence: [left, right, ...(later ? [later] : [])].map((m) => evidenceOfMeasurement(m, now)),
+    source: SOURCE,
   });
 }
 
-function sideUnknown(whole: Measurement | undefined, one: { side: Side; item: Measurement } | undefined, now: Date, t: ToleranceThresholds): ToleranceFinding {
+function sideUnknown(
+  whole: Measurement | undefined,
+  one: { side: Side; item: Measurement } | undefined,
+  now: Date,
+  t: ToleranceThresholds,
+): ToleranceFinding {
   const parts: string[] = [];
   let worst = 0;
   if (whole) {
@@ -94,14 +111,18 @@ function sideUnknown(whole: Measurement | undefined, one: { side: Side; item: Me
   let tail = `: ${why}read as a moderate limit`;
   if (limit === 'none') tail = worst > 0 ? ' (focal)' : '';
   return assessed({
-    ruleId: LUNG_ULTRASOUND, domain: 'lungs', limit, congestionSign: false,
+    ruleId: LUNG_ULTRASOUND,
+    domain: 'lungs',
+    limit,
+    congestionSign: false,
     text: `Lung ultrasound: ${parts.join('; ')}${tail}`,
     values: {
       ...(whole ? { bLineRegions: whole.value } : {}),
       ...(one ? { [one.side === 'left' ? 'bLineRegionsLeft' : 'bLineRegionsRight']: one.item.value } : {}),
       sideRecorded: false,
     },
-    evidence: [whole, one?.item].filter((m): m is Measurement => m !== undefined).map((m) => evidenceOfMeasurement(m, now)), source: SOURCE,
+    evidence: [whole, one?.item].filter((m): m is Measurement => m !== undefined).map((m) => evidenceOfMeasurement(m, now)),
+    source: SOURCE,
   });
 }
 
@@ -112,7 +133,10 @@ export function lungUltrasoundRule(snapshot: PatientSnapshot, now: Date, t: Tole
   const right = latestReading(snapshot, 'bLineRegionsRight', now, window);
   const [w, l, r] = [freshItem(whole), freshItem(left), freshItem(right)];
   if (l && r) return [bySide(l, r, w, now, t)];
-  const one = [{ side: 'left' as const, item: l }, { side: 'right' as const, item: r }].find((o): o is { side: 'left' | 'right'; item: Measurement } => o.item !== undefined);
+  const one = [
+    { side: 'left' as const, item: l },
+    { side: 'right' as const, item: r },
+  ].find((o): o is { side: 'left' | 'right'; item: Measurement } => o.item !== undefined);
   if (w || one) return [sideUnknown(w, one, now, t)];
   // Nothing fresh: say why by the first reading that exists (stale, invalid), else none recorded.
   const unusable = [whole, left, right].filter((s): s is Unusable<Measurement> => s.state !== 'fresh');

@@ -19,10 +19,15 @@ export function oedemaRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThr
   }
   const g = pick.item.value;
   const limiting = g >= t.oedemaLimitingGrade;
-  return [assessed({
-    ruleId: OEDEMA, domain: 'oncotic', limit: limiting ? 'moderate' : 'none',
-    text: g === 0 ? 'No peripheral oedema recorded (grade 0)' : `Peripheral oedema grade ${fmt(g)}${limiting ? '' : ' (slight)'}`,
-    values: { oedemaGrade: g },
-    evidence: [evidenceOfMeasurement(pick.item, now)], source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: OEDEMA,
+      domain: 'oncotic',
+      limit: limiting ? 'moderate' : 'none',
+      text: g === 0 ? 'No peripheral oedema recorded (grade 0)' : `Peripheral oedema grade ${fmt(g)}${limiting ? '' : ' (slight)'}`,
+      values: { oedemaGrade: g },
+      evidence: [evidenceOfMeasurement(pick.item, now)],
+      source: SOURCE,
+    }),
+  ];
 }

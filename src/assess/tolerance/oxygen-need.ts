@@ -13,7 +13,11 @@ import { ageText, fmt } from '../common/text.js';
 export const OXYGEN_NEED = 'tolerance.oxygen-need';
 const SOURCE = 'Rising FiO2 (≥ 10 points) or PEEP (≥ 2 cmH2O) over the last hours (common practice)';
 
-interface Rise { latest: Measurement; lowest: Measurement; rise: number }
+interface Rise {
+  latest: Measurement;
+  lowest: Measurement;
+  rise: number;
+}
 
 function riseOf(snapshot: PatientSnapshot, kind: 'fio2' | 'peep', now: Date, t: ToleranceThresholds): Rise | string {
   const pick = latestReading(snapshot, kind, now, t.oxygenationFreshMinutes);
@@ -21,7 +25,9 @@ function riseOf(snapshot: PatientSnapshot, kind: 'fio2' | 'peep', now: Date, t: 
   if (pick.state !== 'fresh') return unusableReason(pick, label);
   const latest = pick.item;
   const fromMs = timeMs(latest.effective) - t.trendWindowMinutes * 60_000;
-  const earlier = readingsOldestFirst(snapshot, kind, now).items.filter((m) => m !== latest && timeMs(m.effective) >= fromMs && timeMs(m.effective) < timeMs(latest.effective));
+  const earlier = readingsOldestFirst(snapshot, kind, now).items.filter(
+    (m) => m !== latest && timeMs(m.effective) >= fromMs && timeMs(m.effective) < timeMs(latest.effective),
+  );
   if (earlier.length === 0) return `no earlier ${label} in the ${ageText(t.trendWindowMinutes)} before the latest`;
   // Lowest earlier value; at equal values the earliest, so that the choice is independent of input order.
   const lowest = earlier.reduce((a, b) => (b.value < a.value ? b : a));
@@ -52,9 +58,15 @@ export function oxygenNeedRule(snapshot: PatientSnapshot, now: Date, t: Toleranc
     evidence.push(evidenceOfMeasurement(peep.lowest, now), evidenceOfMeasurement(peep.latest, now));
     Object.assign(values, { peepRiseCmH2O: peep.rise, peepRising: up });
   }
-  return [assessed({
-    ruleId: OXYGEN_NEED, domain: 'lungs', limit: rising ? 'moderate' : 'none',
-    text: `${rising ? 'Rising oxygen need' : 'No rise in oxygen need'} over the last ${ageText(t.trendWindowMinutes)}: ${parts.join('; ')}`,
-    values: { ...values, rising }, evidence, source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: OXYGEN_NEED,
+      domain: 'lungs',
+      limit: rising ? 'moderate' : 'none',
+      text: `${rising ? 'Rising oxygen need' : 'No rise in oxygen need'} over the last ${ageText(t.trendWindowMinutes)}: ${parts.join('; ')}`,
+      values: { ...values, rising },
+      evidence,
+      source: SOURCE,
+    }),
+  ];
 }

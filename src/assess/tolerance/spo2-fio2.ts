@@ -18,7 +18,8 @@ import { ageText, fmt, round } from '../common/text.js';
 
 export const SPO2_FIO2 = 'tolerance.spo2-fio2';
 export const SPO2_FIO2_TREND = 'tolerance.spo2-fio2-trend';
-const SOURCE = 'SpO2/FiO2 (FiO2 as a fraction); 235 ≈ PaO2/FiO2 200, valid for SpO2 ≤ 97 %: Rice TW et al., Chest 2007;132:410 (from memory)';
+const SOURCE =
+  'SpO2/FiO2 (FiO2 as a fraction); 235 ≈ PaO2/FiO2 200, valid for SpO2 ≤ 97 %: Rice TW et al., Chest 2007;132:410 (from memory)';
 const TREND_SOURCE = `${SOURCE}; a fall ≥ 20 % over the last hours as a warning sign (common practice)`;
 
 export interface Spo2Fio2Pair {
@@ -39,7 +40,8 @@ export function spo2Fio2Pairs(snapshot: PatientSnapshot, now: Date, carryForward
     const sMs = timeMs(s.effective);
     let best: Measurement | undefined;
     for (const f of fio2) if (timeMs(f.effective) <= sMs + CLOCK_SKEW_MIN * 60_000) best = f;
-    if (best && sMs - timeMs(best.effective) <= carryForwardMinutes * 60_000) pairs.push({ spo2: s, fio2: best, ratio: spo2Fio2Ratio(s.value, best.value), timeMs: sMs });
+    if (best && sMs - timeMs(best.effective) <= carryForwardMinutes * 60_000)
+      pairs.push({ spo2: s, fio2: best, ratio: spo2Fio2Ratio(s.value, best.value), timeMs: sMs });
   }
   return pairs;
 }
@@ -57,37 +59,75 @@ function missingReason(snapshot: PatientSnapshot, now: Date, t: ToleranceThresho
   return `no FiO2 charted in the ${ageText(w.fio2CarryForwardMin)} before a recent SpO2`;
 }
 
-export function spo2Fio2Rule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows = DEFAULT_WINDOWS): ToleranceFinding[] {
+export function spo2Fio2Rule(
+  snapshot: PatientSnapshot,
+  now: Date,
+  t: ToleranceThresholds,
+  w: Windows = DEFAULT_WINDOWS,
+): ToleranceFinding[] {
   const pair = latestFreshPair(spo2Fio2Pairs(snapshot, now, w.fio2CarryForwardMin), now, t);
   if (!pair) return [notAssessed(SPO2_FIO2, 'lungs', 'SpO2/FiO2 not assessed', missingReason(snapshot, now, t, w), SOURCE)];
   const plateau = pair.spo2.value > t.spo2PlateauPercent;
   const low = pair.ratio < t.spo2Fio2LowRatio;
   const base = `SpO2/FiO2 ${fmt(pair.ratio)} (SpO2 ${fmt(pair.spo2.value)} % on FiO2 ${fmt(pair.fio2.value)} %)`;
   const evidence = [evidenceOfMeasurement(pair.fio2, now), evidenceOfMeasurement(pair.spo2, now)];
-  const values = { spo2Fio2Ratio: round(pair.ratio, 1), spo2Percent: pair.spo2.value, fio2Percent: pair.fio2.value, spo2OnPlateau: plateau };
+  const values = {
+    spo2Fio2Ratio: round(pair.ratio, 1),
+    spo2Percent: pair.spo2.value,
+    fio2Percent: pair.fio2.value,
+    spo2OnPlateau: plateau,
+  };
   if (plateau && low) {
-    return [assessed({
-      ruleId: SPO2_FIO2, domain: 'lungs', limit: 'none', context: true,
-      text: `${base}: not interpretable with SpO2 > ${t.spo2PlateauPercent} %`, values, evidence, source: SOURCE,
-    })];
+    return [
+      assessed({
+        ruleId: SPO2_FIO2,
+        domain: 'lungs',
+        limit: 'none',
+        context: true,
+        text: `${base}: not interpretable with SpO2 > ${t.spo2PlateauPercent} %`,
+        values,
+        evidence,
+        source: SOURCE,
+      }),
+    ];
   }
-  return [assessed({
-    ruleId: SPO2_FIO2, domain: 'lungs', limit: low ? 'moderate' : 'none',
-    text: low ? `${base}, below ${t.spo2Fio2LowRatio} (about PaO2/FiO2 200)` : base,
-    values, evidence, source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: SPO2_FIO2,
+      domain: 'lungs',
+      limit: low ? 'moderate' : 'none',
+      text: low ? `${base}, below ${t.spo2Fio2LowRatio} (about PaO2/FiO2 200)` : base,
+      values,
+      evidence,
+      source: SOURCE,
+    }),
+  ];
 }
 
-export function spo2Fio2TrendRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThresholds, w: Windows = DEFAULT_WINDOWS): ToleranceFinding[] {
+export function spo2Fio2TrendRule(
+  snapshot: PatientSnapshot,
+  now: Date,
+  t: ToleranceThresholds,
+  w: Windows = DEFAULT_WINDOWS,
+): ToleranceFinding[] {
   const title = 'SpO2/FiO2 trend not assessed';
   const pairs = spo2Fio2Pairs(snapshot, now, w.fio2CarryForwardMin);
   const latest = latestFreshPair(pairs, now, t);
   if (!latest) return [notAssessed(SPO2_FIO2_TREND, 'lungs', title, missingReason(snapshot, now, t, w), TREND_SOURCE)];
-  const earliest = pairs.find((p) => p.timeMs >= latest.timeMs - t.trendWindowMinutes * 60_000 && p.timeMs <= latest.timeMs - t.trendMinSpanMinutes * 60_000);
+  const earliest = pairs.find(
+    (p) => p.timeMs >= latest.timeMs - t.trendWindowMinutes * 60_000 && p.timeMs <= latest.timeMs - t.trendMinSpanMinutes * 60_000,
+  );
   if (!earliest) {
-    return [notAssessed(SPO2_FIO2_TREND, 'lungs', title,
-      `no earlier SpO2/FiO2 between ${ageText(t.trendWindowMinutes)} and ${ageText(t.trendMinSpanMinutes)} before the latest`, TREND_SOURCE,
-      [evidenceOfMeasurement(latest.spo2, now)])];
+    return [
+      notAssessed(
+        SPO2_FIO2_TREND,
+        'lungs',
+        title,
+        `no earlier SpO2/FiO2 between ${ageText(t.trendWindowMinutes)} and ${ageText(t.trendMinSpanMinutes)} before the latest`,
+        TREND_SOURCE,
+        [evidenceOfMeasurement(latest.spo2, now)],
+      ),
+    ];
   }
   const fall = relativeFallPercent(earliest.ratio, latest.ratio);
   const latestOnPlateau = latest.spo2.value > t.spo2PlateauPercent;
@@ -95,11 +135,27 @@ export function spo2Fio2TrendRule(snapshot: PatientSnapshot, now: Date, t: Toler
   const span = ageText((latest.timeMs - earliest.timeMs) / 60_000);
   let move = fall > 0 ? `fell ${fmt(fall)} %` : 'unchanged';
   if (fall < 0) move = `rose ${fmt(-fall)} %`;
-  return [assessed({
-    ruleId: SPO2_FIO2_TREND, domain: 'lungs', limit: falling ? 'moderate' : 'none', congestionSign: falling,
-    text: `SpO2/FiO2 ${fmt(earliest.ratio)} → ${fmt(latest.ratio)} over ${span} (${move})${falling ? ': falling oxygenation' : ''}`,
-    values: { earlierRatio: round(earliest.ratio, 1), latestRatio: round(latest.ratio, 1), fallPercent: round(fall, 1), spanMinutes: round((latest.timeMs - earliest.timeMs) / 60_000, 0), falling },
-    evidence: [evidenceOfMeasurement(earliest.fio2, now), evidenceOfMeasurement(earliest.spo2, now), evidenceOfMeasurement(latest.fio2, now), evidenceOfMeasurement(latest.spo2, now)],
-    source: TREND_SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: SPO2_FIO2_TREND,
+      domain: 'lungs',
+      limit: falling ? 'moderate' : 'none',
+      congestionSign: falling,
+      text: `SpO2/FiO2 ${fmt(earliest.ratio)} → ${fmt(latest.ratio)} over ${span} (${move})${falling ? ': falling oxygenation' : ''}`,
+      values: {
+        earlierRatio: round(earliest.ratio, 1),
+        latestRatio: round(latest.ratio, 1),
+        fallPercent: round(fall, 1),
+        spanMinutes: round((latest.timeMs - earliest.timeMs) / 60_000, 0),
+        falling,
+      },
+      evidence: [
+        evidenceOfMeasurement(earliest.fio2, now),
+        evidenceOfMeasurement(earliest.spo2, now),
+        evidenceOfMeasurement(latest.fio2, now),
+        evidenceOfMeasurement(latest.spo2, now),
+      ],
+      source: TREND_SOURCE,
+    }),
+  ];
 }

@@ -15,7 +15,10 @@ export const toleranceThresholdsSchema = z
     balanceRecencyMinutes: minutes(720),
     /** Without an admission time, the cumulative balance starts at the earliest record within this many hours (common practice). */
     balanceFallbackLookbackHours: hours(168),
-    /** Adults: %FO ≥ this is a severe limit (Bouchard J et al., Kidney Int 2009;76:422 [M]: fluid overload > 10 % with higher mortality in adults with AKI). */
+    /**
+     * Adults: %FO ≥ this is a severe limit (Bouchard J et al., Kidney Int 2009;76:422 [M]: fluid overload > 10 % with higher mortality in
+     * adults with AKI).
+     */
     adultFluidOverloadPercent: z.number().positive().default(10),
     /** Children (< `paediatricBelowAgeYears`): %FO moderate band (Goldstein SL et al., Pediatrics 2001; children on CRRT). */
     fluidOverloadModeratePercent: z.number().positive().default(10),
@@ -70,7 +73,11 @@ export const toleranceThresholdsSchema = z
     ultrasoundFreshMinutes: minutes(360),
     /** Regions (of 8; with the side charted, left + right) with B-pattern from which the finding is a moderate limit (common practice). */
     bLineModerateRegions: z.number().int().min(1).max(8).default(2),
-    /** B-pattern regions per side (of 4) for diffuse interstitial syndrome, ≥ on BOTH sides: severe and a harm sign (Volpicelli G et al., Intensive Care Med 2012;38:577 [M]: ≥ 2 positive regions on each side). One side or the side not charted: capped at moderate (docs/clinical-logic). */
+    /**
+     * B-pattern regions per side (of 4) for diffuse interstitial syndrome, ≥ on BOTH sides: severe and a harm sign (Volpicelli G et al.,
+     * Intensive Care Med 2012;38:577 [M]: ≥ 2 positive regions on each side). One side or the side not charted: capped at moderate
+     * (docs/clinical-logic).
+     */
     bLineBilateralPerSide: z.number().int().min(1).max(4).default(2),
     /** EVLWI freshness (common practice: thermodilution repeated every few hours). */
     evlwiFreshMinutes: minutes(720),
@@ -89,7 +96,9 @@ export const toleranceThresholdsSchema = z
     // ── Abdomen ──────────────────────────────────────────────────────────────────────────────────
     /** IAH threshold (WSACS 2013, Kirkpatrick AW et al., Intensive Care Med 2013). */
     iahMmHg: z.number().positive().default(12),
-    /** IAH grade from which the finding is severe: grade III (IAP > 20 mmHg, the pressure of abdominal compartment syndrome; WSACS 2013). */
+    /**
+     * IAH grade from which the finding is severe: grade III (IAP > 20 mmHg, the pressure of abdominal compartment syndrome; WSACS 2013).
+     */
     iahSevereGrade: z.number().int().min(1).max(4).default(3),
     /** MAP is paired with IAP only when measured this close to it (common practice). */
     mapPairMinutes: minutes(60),
@@ -97,15 +106,24 @@ export const toleranceThresholdsSchema = z
     // ── Kidneys ──────────────────────────────────────────────────────────────────────────────────
     /** The latest urine record must end this recently for the urine criterion (common practice: hourly charting). */
     urineRecencyMinutes: minutes(180),
-    /** A urine amount charted without a period covers the time since the previous urine record, if that is at most this long (common practice: charting every 1–4 h). */
+    /**
+     * A urine amount charted without a period covers the time since the previous urine record, if that is at most this long (common
+     * practice: charting every 1–4 h).
+     */
     urinePointMaxGapMinutes: minutes(240),
     /** A KDIGO window counts only when charting covers at least this fraction of it (common practice). */
     urineCoverageFraction: z.number().gt(0).max(1).default(0.9),
 
     // ── Verdict ──────────────────────────────────────────────────────────────────────────────────
-    /** Moderate findings in this many different organ domains, one of them lungs, venous or balance, make tolerance poor (Tidemark's scheme; docs/clinical-logic/tolerance.md). */
+    /**
+     * Moderate findings in this many different organ domains, one of them lungs, venous or balance, make tolerance poor (Tidemark's scheme;
+     * docs/clinical-logic/tolerance.md).
+     */
     poorWhenModerateDomains: z.number().int().min(2).default(3),
-    /** "Adequate" needs at least this many markers assessed, one of them lungs, venous or balance; fewer gives "not known" (our choice, docs/clinical-logic). */
+    /**
+     * "Adequate" needs at least this many markers assessed, one of them lungs, venous or balance; fewer gives "not known" (our choice,
+     * docs/clinical-logic).
+     */
     adequateMinMarkers: z.number().int().min(1).default(3),
   })
   .superRefine((t, ctx) => {

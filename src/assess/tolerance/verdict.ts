@@ -35,9 +35,11 @@ export function toleranceCoverage(findings: readonly ToleranceFinding[]): Tolera
 /** Findings whose shared number already decided another question become context, said so in their text. */
 export function countOnce(findings: readonly ToleranceFinding[], counted: readonly SharedNumber[]): ToleranceFinding[] {
   if (counted.length === 0) return [...findings];
-  return findings.map((f) => (f.status === 'assessed' && !f.contextOnly && f.uses?.some((u) => counted.includes(u))
-    ? { ...f, contextOnly: true, limit: 'none' as const, text: `${f.text} (counted once, in the responsiveness verdict)` }
-    : f));
+  return findings.map((f) =>
+    f.status === 'assessed' && !f.contextOnly && f.uses?.some((u) => counted.includes(u))
+      ? { ...f, contextOnly: true, limit: 'none' as const, text: `${f.text} (counted once, in the responsiveness verdict)` }
+      : f,
+  );
 }
 
 function list(findings: readonly ToleranceFinding[]): string {
@@ -45,7 +47,8 @@ function list(findings: readonly ToleranceFinding[]): string {
 }
 
 export function toleranceVerdict(
-  findings: readonly ToleranceFinding[], t: { poorWhenModerateDomains: number; adequateMinMarkers: number },
+  findings: readonly ToleranceFinding[],
+  t: { poorWhenModerateDomains: number; adequateMinMarkers: number },
 ): Verdict<Tolerance> {
   const severe = findings.filter((f) => limitOf(f) === 'severe');
   const moderate = findings.filter((f) => limitOf(f) === 'moderate');
@@ -63,15 +66,26 @@ export function toleranceVerdict(
   }
   if (limiting.length) {
     const capped = severe.length ? '; no lung, venous or balance finding, so not called poor' : '';
-    return { value: 'limited', rationale: `Limited tolerance: ${list(limiting)}${capped}${notText}.`, decidingRules: ids(limiting), coverage };
+    return {
+      value: 'limited',
+      rationale: `Limited tolerance: ${list(limiting)}${capped}${notText}.`,
+      decidingRules: ids(limiting),
+      coverage,
+    };
   }
   const assessed = findings.filter((f) => f.status === 'assessed' && !f.contextOnly);
   if (assessed.length < t.adequateMinMarkers || !assessed.some((f) => CORE.has(f.domain))) {
     return {
       value: 'not-known',
       rationale: `No limit found, but only ${cov.assessed} of ${cov.total} markers could be assessed${assessed.some((f) => CORE.has(f.domain)) ? '' : ' and none of lungs, venous pressure or balance'}: tolerance is not known.`,
-      decidingRules: [], coverage,
+      decidingRules: [],
+      coverage,
     };
   }
-  return { value: 'adequate', rationale: `No limit found in ${cov.assessed} of ${cov.total} markers.`, decidingRules: ids(assessed), coverage };
+  return {
+    value: 'adequate',
+    rationale: `No limit found in ${cov.assessed} of ${cov.total} markers.`,
+    decidingRules: ids(assessed),
+    coverage,
+  };
 }

@@ -52,22 +52,45 @@ export function vexusRule(snapshot: PatientSnapshot, now: Date, t: ToleranceThre
     hepatic && `hepatic ${hepatic}`,
     portal && `portal ${portal} (PF ${fmt(pv.state === 'fresh' ? pv.item.value : 0)} %)`,
     renal && `intrarenal ${renal}`,
-  ].filter(Boolean).join(', ');
+  ]
+    .filter(Boolean)
+    .join(', ');
   const values = {
-    vexusGradeMin: g.min, vexusGradeMax: g.max, severePatterns: g.severeCount, ivcMaxCm: ivc.item.value,
-    ...(hepatic ? { hepatic } : {}), ...(portal ? { portal } : {}), ...(renal ? { renal } : {}),
+    vexusGradeMin: g.min,
+    vexusGradeMax: g.max,
+    severePatterns: g.severeCount,
+    ivcMaxCm: ivc.item.value,
+    ...(hepatic ? { hepatic } : {}),
+    ...(portal ? { portal } : {}),
+    ...(renal ? { renal } : {}),
     missingParts: g.missing.join(','),
   };
   if (g.min > 0 && g.missing.length === 3) {
-    return [notAssessed(VEXUS, 'venous', 'VExUS not assessed',
-      `${ivcText} (≥ ${t.vexusIvcCm} cm) but no recent hepatic, portal or intrarenal Doppler pattern`, SOURCE, evidence, values)];
+    return [
+      notAssessed(
+        VEXUS,
+        'venous',
+        'VExUS not assessed',
+        `${ivcText} (≥ ${t.vexusIvcCm} cm) but no recent hepatic, portal or intrarenal Doppler pattern`,
+        SOURCE,
+        evidence,
+        values,
+      ),
+    ];
   }
   const definite = g.min === g.max;
   const limit = limitFrom(g.min, 3, 2); // grades are whole numbers 0–3
   const missingText = definite || g.missing.length === 0 ? '' : `; not recorded: ${g.missing.map((p) => PART_LABEL[p]).join(', ')}`;
-  return [assessed({
-    ruleId: VEXUS, domain: 'venous', limit, congestionSign: g.min >= 3,
-    text: `VExUS ${definite ? 'grade' : 'at least grade'} ${g.min}${g.min >= 3 ? ' (severe venous congestion)' : ''}: ${ivcText}${partsText ? `, ${partsText}` : ''}${missingText}`,
-    values: { ...values, vexusGrade: g.min, definite }, evidence, source: SOURCE,
-  })];
+  return [
+    assessed({
+      ruleId: VEXUS,
+      domain: 'venous',
+      limit,
+      congestionSign: g.min >= 3,
+      text: `VExUS ${definite ? 'grade' : 'at least grade'} ${g.min}${g.min >= 3 ? ' (severe venous congestion)' : ''}: ${ivcText}${partsText ? `, ${partsText}` : ''}${missingText}`,
+      values: { ...values, vexusGrade: g.min, definite },
+      evidence,
+      source: SOURCE,
+    }),
+  ];
 }

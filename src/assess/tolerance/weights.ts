@@ -21,9 +21,8 @@ export function admissionWeight(
   t: { admissionWeightWindowHours: number; balanceFallbackLookbackHours: number },
 ): { m: Measurement; basis: 'admission' | 'earliest-recorded' } | undefined {
   const start = encounterStartMs(snapshot, now);
-  const fromMs = start !== undefined
-    ? start - t.admissionWeightWindowHours * 3_600_000
-    : now.getTime() - t.balanceFallbackLookbackHours * 3_600_000;
+  const fromMs =
+    start !== undefined ? start - t.admissionWeightWindowHours * 3_600_000 : now.getTime() - t.balanceFallbackLookbackHours * 3_600_000;
   const first = readingsOldestFirst(snapshot, 'bodyWeight', now).items.find((m) => timeMs(m.effective) >= fromMs);
   if (!first) return undefined;
   return { m: first, basis: start !== undefined ? 'admission' : 'earliest-recorded' };

@@ -23,11 +23,23 @@ export const POSITIVE_MARGIN: Record<ReadOut['compare'], number> = { relative: 1
  * judged, so they do not affect the result): CO 5 L/min, CI 3 L/min/m², SV 70 mL, LVOT VTI 20 cm, pulse pressure
  * 40 mmHg, PPV/SVV 8 %.
  */
-const TYPICAL: Record<DynamicMeasured, number> = { cardiacOutput: 5, cardiacIndex: 3, strokeVolume: 70, vti: 20, pulsePressure: 40, ppv: 8, svv: 8 };
+const TYPICAL: Record<DynamicMeasured, number> = {
+  cardiacOutput: 5,
+  cardiacIndex: 3,
+  strokeVolume: 70,
+  vti: 20,
+  pulsePressure: 40,
+  ppv: 8,
+  svv: 8,
+};
 
 /** Measured variables that are also numeric readings of the snapshot (their newest value is the baseline). */
 const AS_READING: Partial<Record<DynamicMeasured, NumericKind>> = {
-  cardiacOutput: 'cardiacOutput', cardiacIndex: 'cardiacIndex', strokeVolume: 'strokeVolume', ppv: 'ppv', svv: 'svv',
+  cardiacOutput: 'cardiacOutput',
+  cardiacIndex: 'cardiacIndex',
+  strokeVolume: 'strokeVolume',
+  ppv: 'ppv',
+  svv: 'svv',
 };
 
 export const WHAT_IF_REF_PREFIX = 'what-if#';
@@ -54,7 +66,12 @@ export interface Hypothetical {
   source: string;
 }
 
-export function hypotheticalResult(ctx: RuleContext, test: NextTestKind, measured: DynamicMeasured, result: WhatIfOutcome['result']): Hypothetical {
+export function hypotheticalResult(
+  ctx: RuleContext,
+  test: NextTestKind,
+  measured: DynamicMeasured,
+  result: WhatIfOutcome['result'],
+): Hypothetical {
   const entry = TEST_SPECS[test];
   const readOut = entry.spec(ctx.t).readOuts[measured];
   if (!readOut) throw new Error(`${test} has no read-out on ${measured}`);
@@ -64,11 +81,20 @@ export function hypotheticalResult(ctx: RuleContext, test: NextTestKind, measure
   const after = readOut.compare === 'relative' ? before * (1 + change / 100) : before + change;
   const unit = DYNAMIC_MEASURED_UNITS[measured];
   const d: DynamicTestResult = {
-    kind: entry.kind, measured, before, after, unit, effective: ctx.now.toISOString(), ageMinutes: 0,
+    kind: entry.kind,
+    measured,
+    before,
+    after,
+    unit,
+    effective: ctx.now.toISOString(),
+    ageMinutes: 0,
     ref: `${WHAT_IF_REF_PREFIX}${test}-${result}`,
   };
   const assumed: WhatIfOutcome['assumed'] = {
-    measured, unit, threshold: readOut.threshold, strict: readOut.strict,
+    measured,
+    unit,
+    threshold: readOut.threshold,
+    strict: readOut.strict,
     ...(readOut.compare === 'relative' ? { changePercent: round(change, 2) } : { changeAbsolute: round(change, 2) }),
   };
   return { result: d, assumed, source: readOut.source };

@@ -43,8 +43,12 @@ export function computeWhatIf({ ctx, advice, rerun }: WhatIfInput): WhatIf {
       const rec = after.recommendation;
       const changes = r.value !== current?.value || rec?.action !== advice.recommendation?.action;
       return {
-        result, assumed: h.assumed, responsiveness: r.value, ...(r.confidence ? { confidence: r.confidence } : {}),
-        ...(rec ? { action: rec.action, headline: rec.headline } : {}), changes,
+        result,
+        assumed: h.assumed,
+        responsiveness: r.value,
+        ...(r.confidence ? { confidence: r.confidence } : {}),
+        ...(rec ? { action: rec.action, headline: rec.headline } : {}),
+        changes,
       };
     });
     return { test, feasible: true, notFeasible: [], outcomes, ...(source ? { source } : {}) };

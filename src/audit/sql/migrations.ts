@@ -37,24 +37,25 @@ export const MIGRATIONS: readonly Migration[] = [
   {
     version: 1,
     note: 'Tidemark 0.2.0: advice (the hash-chained records), advice_card (card uuid → kind), feedback',
-    sqlite: (db) => all(db, [
-      `CREATE TABLE IF NOT EXISTS advice (
+    sqlite: (db) =>
+      all(db, [
+        `CREATE TABLE IF NOT EXISTS advice (
         seq INTEGER PRIMARY KEY AUTOINCREMENT, id TEXT NOT NULL UNIQUE, recorded_at TEXT NOT NULL, service TEXT NOT NULL, hook TEXT NOT NULL,
         hook_instance TEXT NOT NULL, patient_id TEXT, encounter_id TEXT, outcome TEXT NOT NULL, rules_version TEXT NOT NULL, record TEXT NOT NULL,
         prev_hash TEXT NOT NULL, hash TEXT NOT NULL
       )`,
-      'CREATE INDEX IF NOT EXISTS advice_patient_time ON advice (patient_id, recorded_at)',
-      'CREATE INDEX IF NOT EXISTS advice_time ON advice (recorded_at)',
-      `CREATE TABLE IF NOT EXISTS advice_card (
+        'CREATE INDEX IF NOT EXISTS advice_patient_time ON advice (patient_id, recorded_at)',
+        'CREATE INDEX IF NOT EXISTS advice_time ON advice (recorded_at)',
+        `CREATE TABLE IF NOT EXISTS advice_card (
         card_uuid TEXT PRIMARY KEY, advice_id TEXT NOT NULL REFERENCES advice(id), card_kind TEXT NOT NULL, service TEXT NOT NULL
       )`,
-      `CREATE TABLE IF NOT EXISTS feedback (
+        `CREATE TABLE IF NOT EXISTS feedback (
         feedback_key TEXT PRIMARY KEY, card_uuid TEXT NOT NULL REFERENCES advice_card(card_uuid), outcome TEXT NOT NULL, accepted_suggestions TEXT NOT NULL,
         reason_system TEXT, reason_code TEXT, reason_display TEXT, user_comment TEXT, outcome_timestamp TEXT NOT NULL, received_at TEXT NOT NULL,
         service TEXT NOT NULL
       )`,
-      'CREATE INDEX IF NOT EXISTS feedback_card ON feedback (card_uuid)',
-    ]),
+        'CREATE INDEX IF NOT EXISTS feedback_card ON feedback (card_uuid)',
+      ]),
     postgres: (s) => [
       `CREATE TABLE IF NOT EXISTS ${s}.advice (
         seq BIGINT GENERATED ALWAYS AS IDENTITY PRIMARY KEY, id TEXT NOT NULL UNIQUE, recorded_at TEXT COLLATE "C" NOT NULL, service TEXT NOT NULL,

@@ -51,7 +51,15 @@ export class Where {
 
 /** The filters on the advice table that list and records() share (alias `a.` optional). */
 export function adviceFilters(
-  w: Where, q: { patientId?: string | undefined; service?: string | undefined; from?: string | undefined; to?: string | undefined; outcome?: string | undefined }, alias = '',
+  w: Where,
+  q: {
+    patientId?: string | undefined;
+    service?: string | undefined;
+    from?: string | undefined;
+    to?: string | undefined;
+    outcome?: string | undefined;
+  },
+  alias = '',
 ): Where {
   return w
     .maybe(q.patientId, (p) => `${alias}patient_id = ${p}`)

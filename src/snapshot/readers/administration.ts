@@ -24,14 +24,21 @@ export function readAdministration(m: MedicationAdministration, ref: string, ctx
   if (vaso) {
     const rate = m.dosage?.rateQuantity;
     return {
-      vasoactives: [{
-        ref, drug: vaso, start: start.iso, ...(end && m.effectivePeriod?.end ? { end: end.iso } : {}), status: m.status ?? 'unknown',
-        ...(rate && typeof rate.value === 'number' ? { rate: { value: rate.value, unit: rate.unit ?? rate.code ?? '' } } : {}),
-      }],
+      vasoactives: [
+        {
+          ref,
+          drug: vaso,
+          start: start.iso,
+          ...(end && m.effectivePeriod?.end ? { end: end.iso } : {}),
+          status: m.status ?? 'unknown',
+          ...(rate && typeof rate.value === 'number' ? { rate: { value: rate.value, unit: rate.unit ?? rate.code ?? '' } } : {}),
+        },
+      ],
       excluded,
     };
   }
-  if (m.status !== 'completed' && m.status !== 'in-progress' && m.status !== 'stopped') return { excluded: [...excluded, exclusion(ref, 'no-value', `status ${String(m.status)}`, 'fluid')] };
+  if (m.status !== 'completed' && m.status !== 'in-progress' && m.status !== 'stopped')
+    return { excluded: [...excluded, exclusion(ref, 'no-value', `status ${String(m.status)}`, 'fluid')] };
   let volumeMl = convert(m.dosage?.dose?.value ?? NaN, m.dosage?.dose?.code ?? m.dosage?.dose?.unit, 'mL');
   if ((volumeMl === undefined || Number.isNaN(volumeMl)) && m.dosage?.rateQuantity && end && m.effectivePeriod?.end) {
     const perMin = convert(m.dosage.rateQuantity.value ?? NaN, m.dosage.rateQuantity.code ?? m.dosage.rateQuantity.unit, 'mL/min');
@@ -41,14 +48,27 @@ export function readAdministration(m: MedicationAdministration, ref: string, ctx
     return { excluded: [...excluded, exclusion(ref, 'no-value', 'no volume (dosage.dose in mL, or rate over a period)', 'fluid')] };
   }
   if (volumeMl <= 0 || volumeMl > 10_000) {
-    return { excluded: [...excluded, exclusion(ref, 'impossible-value', `${round2(volumeMl)} mL is not a plausible single administration`, 'fluid')] };
+    return {
+      excluded: [
+        ...excluded,
+        exclusion(ref, 'impossible-value', `${round2(volumeMl)} mL is not a plausible single administration`, 'fluid'),
+      ],
+    };
   }
   const last = end ?? start;
   return {
-    fluids: [{
-      ref, fluidClass: fluidClass as NonNullable<typeof fluidClass>, display: conceptLabel(m.medicationCodeableConcept) || 'IV fluid', volumeMl: roundMl(volumeMl),
-      start: start.iso, end: last.iso, status: m.status, ageMinutes: last.ageMinutes,
-    }],
+    fluids: [
+      {
+        ref,
+        fluidClass: fluidClass as NonNullable<typeof fluidClass>,
+        display: conceptLabel(m.medicationCodeableConcept) || 'IV fluid',
+        volumeMl: roundMl(volumeMl),
+        start: start.iso,
+        end: last.iso,
+        status: m.status,
+        ageMinutes: last.ageMinutes,
+      },
+    ],
     excluded,
   };
 }

@@ -10,5 +10,15 @@ export function readCondition(c: Condition, ref: string): Read {
   const codings = (c.code?.coding ?? [])
     .filter((x) => x.system && x.code)
     .map((x) => ({ system: x.system as string, code: x.code as string, ...(x.display ? { display: x.display } : {}) }));
-  return { conditions: [{ ref, codings, ...(c.code?.text ? { text: c.code.text } : {}), clinicalStatus, ...(c.onsetDateTime ? { onset: c.onsetDateTime } : {}) }] };
+  return {
+    conditions: [
+      {
+        ref,
+        codings,
+        ...(c.code?.text ? { text: c.code.text } : {}),
+        clinicalStatus,
+        ...(c.onsetDateTime ? { onset: c.onsetDateTime } : {}),
+      },
+    ],
+  };
 }

@@ -6,7 +6,14 @@
 import type { SiteMap } from '../../fhir/site-map.js';
 import { fhirDateTime } from '../time.js';
 import type {
-  CodedMeasurement, ConditionEntry, DynamicTestResult, Exclusion, FluidGiven, Measurement, PatientSnapshot, VasoactiveDrug,
+  CodedMeasurement,
+  ConditionEntry,
+  DynamicTestResult,
+  Exclusion,
+  FluidGiven,
+  Measurement,
+  PatientSnapshot,
+  VasoactiveDrug,
 } from '../types.js';
 
 /** A time this far past `now` is taken as clock skew between systems, not as a future time (common practice). */
@@ -45,7 +52,9 @@ export function exclusion(ref: string, reason: Exclusion['reason'], detail: stri
 }
 
 /** A Read of one exclusion. */
-export const left = (ref: string, reason: Exclusion['reason'], detail: string, kind?: string): Read => ({ excluded: [exclusion(ref, reason, detail, kind)] });
+export const left = (ref: string, reason: Exclusion['reason'], detail: string, kind?: string): Read => ({
+  excluded: [exclusion(ref, reason, detail, kind)],
+});
 
 /**
  * A usable time (UTC ISO instant, its milliseconds, its age in whole minutes at `now`, and whether only its date was
@@ -60,8 +69,18 @@ export type TimeRead = { ok: true; iso: string; ms: number; ageMinutes: number; 
 export function readTime(ctx: ReadContext, ref: string, raw: string | undefined, kind?: string, dateOk = false): TimeRead {
   if (!raw) return { ok: false, excluded: exclusion(ref, 'no-time', 'no effective time', kind) };
   const t = fhirDateTime(raw);
-  if (!t) return { ok: false, excluded: exclusion(ref, 'no-time', `"${raw}" is not a FHIR date-time (a date, or a date and time with seconds and an offset Z or ±hh:mm)`, kind) };
-  if (t.precision !== 'second' && !(dateOk && t.precision === 'day')) return { ok: false, excluded: exclusion(ref, 'no-time', `"${raw}" has no clock time and offset`, kind) };
+  if (!t)
+    return {
+      ok: false,
+      excluded: exclusion(
+        ref,
+        'no-time',
+        `"${raw}" is not a FHIR date-time (a date, or a date and time with seconds and an offset Z or ±hh:mm)`,
+        kind,
+      ),
+    };
+  if (t.precision !== 'second' && !(dateOk && t.precision === 'day'))
+    return { ok: false, excluded: exclusion(ref, 'no-time', `"${raw}" has no clock time and offset`, kind) };
   if (t.ms > ctx.nowMs + FUTURE_SKEW_MS) return { ok: false, excluded: exclusion(ref, 'future-time', `${raw} is in the future`, kind) };
   return { ok: true, iso: t.iso, ms: t.ms, ageMinutes: Math.round((ctx.nowMs - t.ms) / 60_000), dateOnly: t.precision === 'day' };
 }

@@ -14,10 +14,15 @@ export function readActiveRequest(m: MedicationRequest, ref: string, ctx: ReadCo
   const start = m.authoredOn ? readTime(ctx, ref, m.authoredOn, 'vasoactive') : undefined;
   const rate = m.dosageInstruction?.[0]?.doseAndRate?.[0]?.rateQuantity;
   return {
-    vasoactives: [{
-      ref, drug: vaso, ...(start?.ok ? { start: start.iso } : {}), status: 'active',
-      ...(rate && typeof rate.value === 'number' ? { rate: { value: rate.value, unit: rate.unit ?? rate.code ?? '' } } : {}),
-    }],
+    vasoactives: [
+      {
+        ref,
+        drug: vaso,
+        ...(start?.ok ? { start: start.iso } : {}),
+        status: 'active',
+        ...(rate && typeof rate.value === 'number' ? { rate: { value: rate.value, unit: rate.unit ?? rate.code ?? '' } } : {}),
+      },
+    ],
     ...(start && !start.ok ? { excluded: [start.excluded] } : {}),
   };
 }

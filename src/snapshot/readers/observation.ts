@@ -5,8 +5,18 @@
  */
 import type { Observation, ObservationComponent, Quantity } from 'fhir/r4.js';
 import {
-  CODED_ANSWERS, CODED_OBSERVATION_CODES, DYNAMIC_COMPONENT, DYNAMIC_MEASURED, DYNAMIC_MEASURED_UNITS, DYNAMIC_TEST_CODES, KIND_BOUNDS, OBSERVATION_CODES,
-  TIDEMARK_ANSWERS, TIDEMARK_MARKERS, kindAtSite, type NumericKind,
+  CODED_ANSWERS,
+  CODED_OBSERVATION_CODES,
+  DYNAMIC_COMPONENT,
+  DYNAMIC_MEASURED,
+  DYNAMIC_MEASURED_UNITS,
+  DYNAMIC_TEST_CODES,
+  KIND_BOUNDS,
+  OBSERVATION_CODES,
+  TIDEMARK_ANSWERS,
+  TIDEMARK_MARKERS,
+  kindAtSite,
+  type NumericKind,
 } from '../../fhir/codes.js';
 import { conceptText } from '../../fhir/medications.js';
 import { siteCodeOf, type SiteCode, type SiteMap } from '../../fhir/site-map.js';
@@ -31,7 +41,9 @@ type Codings = ReadonlyArray<{ system?: string | undefined; code?: string | unde
  * `list.find((c) => codings.some((x) => x.system === c.system && x.code === c.code))?.kind`, by map lookups
  * instead of a scan of every code for every coding of every Observation.
  */
-export function kindLookup<K extends string>(list: ReadonlyArray<{ system: string; code: string; kind: K }>): (codings: Codings) => K | undefined {
+export function kindLookup<K extends string>(
+  list: ReadonlyArray<{ system: string; code: string; kind: K }>,
+): (codings: Codings) => K | undefined {
   const at = new Map<string, number>();
   list.forEach((c, i) => {
     const key = `${c.system}|${c.code}`;
@@ -68,7 +80,12 @@ function numericOf(codings: Codings, siteMap: SiteMap): { kind: NumericKind | un
   return { kind: own ?? site?.kind, site };
 }
 
-interface Timed { iso: string; ageMinutes: number; periodStart: string | undefined; dateOnly: boolean }
+interface Timed {
+  iso: string;
+  ageMinutes: number;
+  periodStart: string | undefined;
+  dateOnly: boolean;
+}
 
 export function readObservation(o: Observation, ref: string, ctx: ReadContext): Read {
   const codings = o.code?.coding ?? [];
@@ -84,7 +101,13 @@ export function readObservation(o: Observation, ref: string, ctx: ReadContext): 
   if (o.status === 'cancelled') return left(ref, 'cancelled', 'status is cancelled', kindName);
   if (!USABLE_STATUS.has(o.status)) return left(ref, 'no-value', `status ${String(o.status)} has no usable result`, kindName);
   const dateOk = DATE_ONLY_KINDS.has(kindName) && !componentKinds.some((x) => x.kind);
-  const time = readTime(ctx, ref, o.effectiveDateTime ?? o.effectiveInstant ?? o.effectivePeriod?.end ?? o.effectivePeriod?.start, kindName, dateOk);
+  const time = readTime(
+    ctx,
+    ref,
+    o.effectiveDateTime ?? o.effectiveInstant ?? o.effectivePeriod?.end ?? o.effectivePeriod?.start,
+    kindName,
+    dateOk,
+  );
   if (!time.ok) return { excluded: [time.excluded] };
   let periodStart: string | undefined;
   if (o.effectivePeriod?.start && o.effectivePeriod.end) {
@@ -102,7 +125,13 @@ export function readObservation(o: Observation, ref: string, ctx: ReadContext): 
     const snomed = codedKind === 'heartRhythm' && !ours ? cc.find((c) => rhythmAnswerOf(c) !== undefined) : undefined;
     const answer = ours?.code ?? (snomed ? rhythmAnswerOf(snomed) : undefined);
     const orig = ours ?? snomed ?? cc[0];
-    if (!answer || !orig) return left(ref, 'unknown-answer', `answer ${cc.map((c) => `${c.system}|${c.code}`).join(', ') || '(none)'} is not one Tidemark reads`, codedKind);
+    if (!answer || !orig)
+      return left(
+        ref,
+        'unknown-answer',
+        `answer ${cc.map((c) => `${c.system}|${c.code}`).join(', ') || '(none)'} is not one Tidemark reads`,
+        codedKind,
+      );
     const original = { system: orig.system ?? '', code: orig.code ?? '', ...(orig.display ? { display: orig.display } : {}) };
     return { coded: [{ kind: codedKind, answer, original, effective: at.iso, ageMinutes: at.ageMinutes, ref }] };
   }
@@ -115,9 +144,17 @@ export function readObservation(o: Observation, ref: string, ctx: ReadContext): 
     else measurements.push(m.measurement);
   };
   // A whole-chest B-pattern count whose bodySite names one lung is that side's count (fhir/codes.ts kindAtSite).
-  if (numericKind && o.valueQuantity) add(kindAtSite(numericKind, o.bodySite), o.valueQuantity, numeric.site ?? codingRead(codings, numericKind));
+  if (numericKind && o.valueQuantity)
+    add(kindAtSite(numericKind, o.bodySite), o.valueQuantity, numeric.site ?? codingRead(codings, numericKind));
   else if (numericKind && !componentKinds.some((x) => x.kind)) {
-    excluded.push(exclusion(ref, 'no-value', o.dataAbsentReason ? `no value: ${conceptText(o.dataAbsentReason) || 'data absent'}` : 'no valueQuantity', numericKind));
+    excluded.push(
+      exclusion(
+        ref,
+        'no-value',
+        o.dataAbsentReason ? `no value: ${conceptText(o.dataAbsentReason) || 'data absent'}` : 'no valueQuantity',
+        numericKind,
+      ),
+    );
   }
   for (const { c, kind, site } of componentKinds) {
     if (!kind) continue;
@@ -128,24 +165,38 @@ export function readObservation(o: Observation, ref: string, ctx: ReadContext): 
 }
 
 function quantity(
-  kind: NumericKind, q: Quantity, ref: string, at: Timed, read: { system: string; code: string } | SiteCode | undefined, siteMap: SiteMap,
+  kind: NumericKind,
+  q: Quantity,
+  ref: string,
+  at: Timed,
+  read: { system: string; code: string } | SiteCode | undefined,
+  siteMap: SiteMap,
 ): { measurement: Measurement } | { excluded: Exclusion } {
   const site = read && 'source' in read ? read : undefined;
   const code = read && 'source' in read ? read.source : read;
-  if (typeof q.value !== 'number' || !Number.isFinite(q.value)) return { excluded: exclusion(ref, 'no-value', 'value is not a number', kind) };
-  if (q.comparator) return { excluded: exclusion(ref, 'censored-value', `value is ${q.comparator}${q.value}: a limit, not a measurement`, kind) };
+  if (typeof q.value !== 'number' || !Number.isFinite(q.value))
+    return { excluded: exclusion(ref, 'no-value', 'value is not a number', kind) };
+  if (q.comparator)
+    return { excluded: exclusion(ref, 'censored-value', `value is ${q.comparator}${q.value}: a limit, not a measurement`, kind) };
   const unit = q.system === 'http://unitsofmeasure.org' && q.code ? q.code : (q.unit ?? q.code);
   const hinted = unit === undefined ? undefined : siteMap.unitHints.get(unit.trim());
   const conv = toCanonical(kind, q.value, hinted ?? unit);
   if (!conv.ok) return { excluded: exclusion(ref, conv.reason, conv.detail, kind) };
   const [lo, hi] = KIND_BOUNDS[kind];
-  if (conv.value < lo || conv.value > hi) return { excluded: exclusion(ref, 'impossible-value', `${round2(conv.value)} ${conv.unit} is outside ${lo}–${hi}`, kind) };
+  if (conv.value < lo || conv.value > hi)
+    return { excluded: exclusion(ref, 'impossible-value', `${round2(conv.value)} ${conv.unit} is outside ${lo}–${hi}`, kind) };
   return {
     measurement: {
-      kind, value: conv.value, unit: conv.unit,
+      kind,
+      value: conv.value,
+      unit: conv.unit,
       original: { value: q.value, unit: unit ?? '', code: code?.code ?? '', system: code?.system ?? '' },
-      ...(site ? { readAs: { ...site.target, equivalence: site.equivalence, map: site.map } } : {}), ...(hinted ? { unitReadAs: hinted } : {}),
-      effective: at.iso, ...(at.periodStart ? { periodStart: at.periodStart } : {}), ageMinutes: at.ageMinutes, ref,
+      ...(site ? { readAs: { ...site.target, equivalence: site.equivalence, map: site.map } } : {}),
+      ...(hinted ? { unitReadAs: hinted } : {}),
+      effective: at.iso,
+      ...(at.periodStart ? { periodStart: at.periodStart } : {}),
+      ageMinutes: at.ageMinutes,
+      ref,
       ...(at.dateOnly ? { timeAssumed: 'date-only' as const } : {}),
     },
   };
@@ -161,11 +212,22 @@ function readDynamic(o: Observation, ref: string, kind: DynamicTestResult['kind'
   const values: number[] = [];
   for (const code of [DYNAMIC_COMPONENT.before, DYNAMIC_COMPONENT.after]) {
     const q = comp(code)?.valueQuantity;
-    if (!q || typeof q.value !== 'number' || !Number.isFinite(q.value)) return left(ref, 'no-value', `component ${code} has no value`, kind);
+    if (!q || typeof q.value !== 'number' || !Number.isFinite(q.value))
+      return left(ref, 'no-value', `component ${code} has no value`, kind);
     const v = convert(q.value, q.system === 'http://unitsofmeasure.org' && q.code ? q.code : (q.unit ?? q.code), unit);
-    if (v === undefined) return left(ref, 'incompatible-unit', `component ${code} unit "${(q.unit ?? q.code ?? '').slice(0, MAX_UNIT_LENGTH)}" cannot be converted to ${unit}`, kind);
+    if (v === undefined)
+      return left(
+        ref,
+        'incompatible-unit',
+        `component ${code} unit "${(q.unit ?? q.code ?? '').slice(0, MAX_UNIT_LENGTH)}" cannot be converted to ${unit}`,
+        kind,
+      );
     if (v < 0 || v > 1000) return left(ref, 'impossible-value', `component ${code} value ${v} ${unit} is impossible`, kind);
     values.push(v);
   }
-  return { dynamicTests: [{ kind, measured, before: values[0] as number, after: values[1] as number, unit, effective: at.iso, ageMinutes: at.ageMinutes, ref }] };
+  return {
+    dynamicTests: [
+      { kind, measured, before: values[0] as number, after: values[1] as number, unit, effective: at.iso, ageMinutes: at.ageMinutes, ref },
+    ],
+  };
 }
