@@ -18,17 +18,5 @@ md.renderer.rules.link_open = (tokens, i, opts, env, self) => {
 /** A full HTML page for one Markdown document; its title is the first heading. */
 export function docsPage(markdown: string, fallbackTitle: string): string {
   const title = /^#\s+(.+)$/m.exec(markdown)?.[1]?.trim() ?? fallbackTitle;
-  return `<!doctype html>\n${
-    html`<html lang="en">
-      <head>
-        <meta charset="utf-8" />
-        <meta name="viewport" content="width=device-width, initial-scale=1" />
-        <title>${title} · Tidemark</title>
-        <link rel="stylesheet" href="${STYLESHEET_PATH}" />
-      </head>
-      <body>
-        <main class="docs">${raw(md.render(markdown))}</main>
-      </body>
-    </html>`.html
-  }\n`;
+  return `<!doctype html>\n${html`<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><title>${title} · Tidemark</title><link rel="stylesheet" href="${STYLESHEET_PATH}"></head><body><main class="docs">${raw(md.render(markdown))}</main></body></html>`.html}\n`;
 }
