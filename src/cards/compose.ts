@@ -129,7 +129,6 @@ function findingLine(
   const atNow = (e: Evidence) => Math.abs(Date.parse(e.effective) - Date.parse(snapshot.now)) < 1000;
   const timeOf = (e: Evidence | undefined) => (e && !atNow(e) ? when(e, assumedRefs.has(e.ref), t) : '');
   const time = timeOf(main);
-  const newestTime = timeOf([...f.evidence].filter((e) => !atNow(e)).sort((a, b) => a.ageMinutes - b.ageMinutes)[0]);
   if (test) {
     // A test by its change, as its threshold is read (Monnet 2016, Muller 2011, Monnet 2009: relative; Myatra 2017: absolute PPV points).
     const signOf = (x: number) => (x >= 0 ? '+' : '−');
@@ -163,7 +162,8 @@ function findingLine(
     return withTime(`${kindLabel(m.kind)} ${num(m.value)}${unit ? ` ${unit}` : ''}`, time);
   }
   // Several readings or a derived figure (a balance, an IVC with its collapsibility): the rule's own sentence, shortened.
-  return withTime(clip(shortText(f.text), 90), newestTime);
+  const newest = [...f.evidence].filter((e) => !atNow(e)).sort((a, b) => a.ageMinutes - b.ageMinutes)[0];
+  return withTime(clip(shortText(f.text), 90), timeOf(newest));
 }
 
 const withTime = (what: string, time: string) => (time ? `${what}, ${time}` : what);
@@ -382,13 +382,12 @@ export function composeCards(input: ComposeInput): CardModel[] {
 
   const lines: DetailLine[] = questionLines(advice, catalogue);
   // One line per finding, a number that two questions used (a CVP) once, at most three.
-  const findings = [
-    ...new Set(
-      decidingFindings(advice)
-        .map((f) => findingLine(f, snapshot, catalogue, times, assumedRefs))
-        .filter((x): x is string => !!x),
-    ),
-  ].slice(0, MAX_FINDINGS);
+  const findings = new Set<string>();
+  for (const f of decidingFindings(advice)) {
+    if (findings.size >= MAX_FINDINGS) break; // the lines below are not shown: not worded either
+    const line = findingLine(f, snapshot, catalogue, times, assumedRefs);
+    if (line) findings.add(line);
+  }
   for (const f of findings) lines.push({ text: f, bullet: true, priority: 2 });
   const settle = settleLine(advice, catalogue);
   if (settle) lines.push({ text: settle, keep: true });

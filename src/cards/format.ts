@@ -22,8 +22,16 @@ export function formatAge(minutes: number): string {
  */
 export function localClock(iso: string, zone: string, refIso: string): string {
   const t = new TZDate(Date.parse(iso), zone);
-  const sameDay = format(new TZDate(Date.parse(refIso), zone), 'yyyy-MM-dd') === format(t, 'yyyy-MM-dd');
+  const sameDay = localDay(refIso, zone) === format(t, 'yyyy-MM-dd');
   return format(t, sameDay ? 'HH:mm' : 'd MMM HH:mm');
+}
+
+/** The local day of the advice's moment, remembered: every time on one card is compared with the same one. */
+let lastDay: { key: string; day: string } | undefined;
+function localDay(iso: string, zone: string): string {
+  const key = `${zone}|${iso}`;
+  if (lastDay?.key !== key) lastDay = { key, day: format(new TZDate(Date.parse(iso), zone), 'yyyy-MM-dd') };
+  return lastDay.day;
 }
 
 /** "14:05, 18 min ago" (the age counted back from `atIso`, the moment of the advice). */
