@@ -29,14 +29,19 @@ export interface AssessOptions {
 }
 
 export function assess(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: string, opts: AssessOptions = {}): Advice {
-  const advice = assessOnce(s, now, t, rulesVersion);
+  const reuse: Reuse = { tolerance: new Map() };
+  const advice = assessOnce(s, now, t, rulesVersion, reuse);
   if (advice.responsiveness && opts.whatIf !== false) {
     const w = guarded('what-if', advice.ruleErrors, () => {
       const events = evidenceEvents(s, now, t.windows.fluidEventMinMl);
       return computeWhatIf({
         ctx: { snapshot: s, now, t: t.responsiveness, w: t.windows, events },
         advice,
-        rerun: (x) => assessOnce(x, now, t, rulesVersion),
+        // A what-if adds one dynamic test result and nothing else, and only responsiveness reads dynamic tests: the
+        // re-run takes the events, need, phase and order findings of this run as they are, and the tolerance of
+        // this run when the numbers counted once come out the same (tests/property/what-if.property.test.ts checks
+        // every outcome against a full independent re-run).
+        rerun: (x) => assessOnce(x, now, t, rulesVersion, { ...reuse, rerun: true }),
       });
     });
     if (w) advice.whatIf = w;
@@ -44,28 +49,46 @@ export function assess(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersio
   return advice;
 }
 
+/** What a what-if re-run takes from the run it varies (see assess); filled by that run. */
+interface Reuse {
+  rerun?: boolean;
+  events?: ReturnType<typeof evidenceEvents>;
+  need?: { value: ReturnType<typeof assessNeed> | undefined };
+  /** Tolerance by the numbers counted once (their sorted list). */
+  tolerance: Map<string, ReturnType<typeof assessTolerance> | undefined>;
+  orderFindings?: Finding[];
+}
+
 /** The engine without the what-if step. */
-function assessOnce(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: string): Advice {
+function assessOnce(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: string, reuse: Reuse): Advice {
   const findings: Finding[] = [];
   const ruleErrors: Advice['ruleErrors'] = [];
   const advice: Advice = { rulesVersion, now: now.toISOString(), findings, ruleErrors };
-  const events = guarded('events', ruleErrors, () => evidenceEvents(s, now, t.windows.fluidEventMinMl)) ?? [];
+  const events =
+    reuse.rerun && reuse.events
+      ? reuse.events
+      : (guarded('events', ruleErrors, () => evidenceEvents(s, now, t.windows.fluidEventMinMl)) ?? []);
+  if (!reuse.rerun) reuse.events = events;
   const ctx = <T>(x: T): RuleContext<T> => ({ snapshot: s, now, t: x, w: t.windows, events });
 
   const tol = t.tolerance;
-  const need = guarded('need', ruleErrors, () =>
-    assessNeed(
-      ctx({
-        ...t.need,
-        weightMaxAgeHours: tol.weightMaxAgeHours,
-        admissionWeightWindowHours: tol.admissionWeightWindowHours,
-        balanceFallbackLookbackHours: tol.balanceFallbackLookbackHours,
-        urinePointMaxGapMinutes: tol.urinePointMaxGapMinutes,
-        urineRecencyMinutes: tol.urineRecencyMinutes,
-        urineCoverageFraction: tol.urineCoverageFraction,
-      }),
-    ),
-  );
+  const need = reuse.rerun && reuse.need ? reuse.need.value : assessNeedOf();
+  if (!reuse.rerun) reuse.need = { value: need };
+  function assessNeedOf() {
+    return guarded('need', ruleErrors, () =>
+      assessNeed(
+        ctx({
+          ...t.need,
+          weightMaxAgeHours: tol.weightMaxAgeHours,
+          admissionWeightWindowHours: tol.admissionWeightWindowHours,
+          balanceFallbackLookbackHours: tol.balanceFallbackLookbackHours,
+          urinePointMaxGapMinutes: tol.urinePointMaxGapMinutes,
+          urineRecencyMinutes: tol.urineRecencyMinutes,
+          urineCoverageFraction: tol.urineCoverageFraction,
+        }),
+      ),
+    );
+  }
   if (need) {
     findings.push(...need.findings);
     ruleErrors.push(...need.ruleErrors);
@@ -89,7 +112,11 @@ function assessOnce(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: 
         ),
       ]
     : [];
-  const tv = guarded('tolerance', ruleErrors, () => assessTolerance(ctx(t.tolerance), counted));
+  const countedKey = [...counted].sort().join('|');
+  const tv = reuse.tolerance.has(countedKey)
+    ? reuse.tolerance.get(countedKey)
+    : guarded('tolerance', ruleErrors, () => assessTolerance(ctx(t.tolerance), counted));
+  reuse.tolerance.set(countedKey, tv);
   if (tv) {
     findings.push(...tv.findings);
     ruleErrors.push(...tv.ruleErrors);
@@ -98,7 +125,11 @@ function assessOnce(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: 
 
   const orders = s.draftOrders.filter((o) => o.selected && o.isFluid);
   if (orders.length) {
-    const orderFindings = guarded('order', ruleErrors, () => orders.flatMap((o) => describeOrder(o, s, now, t.order))) ?? [];
+    const orderFindings =
+      reuse.rerun && reuse.orderFindings
+        ? reuse.orderFindings
+        : (guarded('order', ruleErrors, () => orders.flatMap((o) => describeOrder(o, s, now, t.order))) ?? []);
+    if (!reuse.rerun) reuse.orderFindings = orderFindings;
     findings.push(...orderFindings);
     if (r && tv && need && need.phase) {
       const rec = guarded('advice', ruleErrors, () =>
