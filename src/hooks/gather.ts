@@ -196,53 +196,24 @@ async function follow(
   let url: string | undefined = next;
   let n = pages;
   const out = [...acc];
+  // Stopped early: the pages read so far are kept, and the key says why it stopped.
+  const truncated = (detail: string) => ({
+    outcome: { key, source, status: 'truncated' as const, count: out.length, pages: n, ms: clock() - started, detail },
+    resources: out,
+  });
   while (url) {
     if (n >= opts.maxPages) {
-      return {
-        outcome: {
-          key,
-          source,
-          status: 'truncated',
-          count: out.length,
-          pages: n,
-          ms: clock() - started,
-          detail: `stopped after ${opts.maxPages} pages`,
-        },
-        resources: out,
-      };
+      return truncated(`stopped after ${opts.maxPages} pages`);
     }
     // Resolved once; the URL checked is the URL fetched (a raw `http:/host/x` would reach another host).
     const target = resolveUnderBase(url, base);
     if (!target) {
-      return {
-        outcome: {
-          key,
-          source,
-          status: 'truncated',
-          count: out.length,
-          pages: n,
-          ms: clock() - started,
-          detail: 'link[next] points outside fhirServer: not followed',
-        },
-        resources: out,
-      };
+      return truncated('link[next] points outside fhirServer: not followed');
     }
     try {
       const ans = readAnswer(await withinBudget(fetcher(target.href, deadline), deadline), types);
       n += 1;
-      if (ans.kind === 'problem')
-        return {
-          outcome: {
-            key,
-            source,
-            status: 'truncated',
-            count: out.length,
-            pages: n,
-            ms: clock() - started,
-            detail: `page ${n}: ${ans.detail}`,
-          },
-          resources: out,
-        };
+      if (ans.kind === 'problem') return truncated(`page ${n}: ${ans.detail}`);
       out.push(...ans.resources);
       url = ans.next;
     } catch (e) {
