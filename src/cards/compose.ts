@@ -207,10 +207,14 @@ function decidingFindings(advice: Advice): Finding[] {
   return out;
 }
 
-/** What the result of `test` would lead to, in words: the action after the re-run, else the responsiveness verdict. */
+/**
+ * What the result of `test` would lead to, in words: the action after the re-run, else the responsiveness verdict. A
+ * result that would leave the advice at "test first" is said as the verdict ("still unclear"): telling the prescriber to
+ * test before volume, right after the test, would read as a loop.
+ */
 function outcomeWords(o: WhatIfOutcome | undefined, cat: Catalogue): string | undefined {
   if (!o) return undefined;
-  return o.action ? cat.actionWords[o.action] : cat.verdictWords[o.responsiveness];
+  return o.action && o.action !== 'test-first' ? cat.actionWords[o.action] : cat.verdictWords[o.responsiveness];
 }
 
 /** The one gap that would change the advice: from the counterfactual engine when it ran, else the verdict's next-test kind. */

@@ -78,6 +78,21 @@ describe('the gap line and the recommended test come from advice.whatIf', () => 
     expect(srOf(rec[0]!).code?.coding?.[0]).toMatchObject({ system: TIDEMARK_MARKERS, code: 'passive-leg-raise' });
   });
 
+  it('a result that would leave the advice at "test first" is said as the verdict, not as another test', () => {
+    const stillUnclear: WhatIf = {
+      ...PLR_DECIDES,
+      rows: PLR_DECIDES.rows.map((r) => ({
+        ...r,
+        outcomes: r.outcomes.map((o) =>
+          o.result === 'negative' ? { ...o, responsiveness: 'indeterminate' as const, action: 'test-first' as const } : o,
+        ),
+      })),
+    };
+    const { cards } = run('test-first', { edit: (a) => ({ ...a, whatIf: stillUnclear }) });
+    expect(cards[0]?.detail).toContain('a rise ≥ 10 % → give and reassess; less → still unclear.');
+    expect(cards[0]?.detail).not.toContain('test before any volume');
+  });
+
   it('when no test would change the advice: no gap line, and the next-test kind is not used instead', () => {
     const { cards } = run('test-first', { edit: (a) => ({ ...a, whatIf: NONE_DECIDES }) });
     expect(cards[0]?.detail).not.toMatch(/would (decide|settle)/);
