@@ -232,7 +232,8 @@ function settleLine(advice: Advice, cat: Catalogue): string | undefined {
       row?.outcomes.find((o) => o.result === 'negative'),
       cat,
     );
-    if (!pos || !neg) return fill(P.settleFallback, { test: cat.testNames[k] });
+    // Both results lead to the same step (early resuscitation gives either way): the test settles the verdict only.
+    if (!pos || !neg || pos === neg) return fill(P.settleFallback, { test: cat.testNames[k] });
     return fill(P.settle, {
       test: cat.testNames[k],
       positive: cat.testResults[k].positive,

@@ -93,6 +93,19 @@ describe('the gap line and the recommended test come from advice.whatIf', () => 
     expect(cards[0]?.detail).not.toContain('test before any volume');
   });
 
+  it('when both results lead to the same step, the line says only that the test would settle the verdict', () => {
+    const same: WhatIf = {
+      ...PLR_DECIDES,
+      rows: PLR_DECIDES.rows.map((r) => ({
+        ...r,
+        outcomes: r.outcomes.map((o) => ({ ...o, action: 'resuscitate-and-reassess' as const })),
+      })),
+    };
+    const { cards } = run('test-first', { edit: (a) => ({ ...a, whatIf: same }) });
+    expect(cards[0]?.detail).toContain('A passive leg raise with cardiac output would settle or confirm it.');
+    expect(cards[0]?.detail).not.toMatch(/→ give in steps.*→ give in steps/);
+  });
+
   it('when no test would change the advice: no gap line, and the next-test kind is not used instead', () => {
     const { cards } = run('test-first', { edit: (a) => ({ ...a, whatIf: NONE_DECIDES }) });
     expect(cards[0]?.detail).not.toMatch(/would (decide|settle)/);
