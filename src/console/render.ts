@@ -32,6 +32,11 @@ function indicatorsCell(i: { outcome: string; indicators: string[] }): string {
   return i.indicators.length ? i.indicators.join(', ') : 'none';
 }
 
+/** "1 answer", "17 answers". */
+function count(n: number, noun: string): string {
+  return `${n} ${noun}${n === 1 ? '' : 's'}`;
+}
+
 export function consoleBar(active: ConsoleTab | undefined, chrome: Chrome): Raw {
   const tab = (t: ConsoleTab, href: string, label: string) =>
     html`<a href="${href}"${t === active ? raw(' aria-current="page"') : ''}>${label}</a>`;
@@ -112,7 +117,7 @@ function figures(o: OverviewAggregates, range: DayRange): Figure[] {
         xTitle: 'Day (UTC)',
         yTitle: 'Answers',
       },
-      summary: `${sum(rows.map((r) => r.answers))} answers from ${service} in ${range.days.length} days: ${present.map((i) => `${i} ${sum(rows.filter((r) => r.indicator === i).map((r) => r.answers))}`).join(', ')} (most urgent card of each answer).`,
+      summary: `${count(sum(rows.map((r) => r.answers)), 'answer')} from ${service} in ${count(range.days.length, 'day')}: ${present.map((i) => `${i} ${sum(rows.filter((r) => r.indicator === i).map((r) => r.answers))}`).join(', ')} (most urgent card of each answer).`,
       table: html`<table class="chart-data"><thead><tr><th>Day</th><th>Most urgent card</th><th class="num">Answers</th></tr></thead><tbody>${rows.map((r) => html`<tr data-x="${r.day}" data-series="${r.indicator}" data-value="${r.answers}"><td>${r.day}</td><td>${r.indicator}</td><td class="num">${r.answers}</td></tr>`)}</tbody></table>`,
     });
   }
@@ -246,10 +251,10 @@ export async function overviewPage(o: {
 ${rangeForm('/console', o.range, serviceSelect)}
 <section id="chain" aria-labelledby="chain-h" class="${o.chain.ok ? 'chain ok' : 'chain bad'}"><h2 id="chain-h">Audit chain</h2><p id="chain-status">${
     o.chain.ok
-      ? `Intact: all ${o.chain.checked} records checked, each hash covers the one before it.`
+      ? `Intact: ${o.chain.checked === 1 ? 'the one record' : `all ${o.chain.checked} records`} checked, each hash covers the one before it.`
       : `Broken at record seq ${o.chain.firstBadSeq ?? '?'} (after ${o.chain.checked} records checked): a record was changed or removed. See docs/audit.md, "Verifying the trail".`
   }</p><p class="meta">The whole trail is checked, whatever the date range.</p></section>
-<p class="meta" id="range-total">${total} answers from ${o.range.from} to ${o.range.to} (UTC days)${o.service ? ` for ${o.service}` : ''}.</p>
+<p class="meta" id="range-total">${count(total, 'answer')} from ${o.range.from} to ${o.range.to} (UTC days)${o.service ? ` for ${o.service}` : ''}.</p>
 <section aria-label="Plots">${rendered}</section>`;
   return page('Overview', 'overview', o.chrome, body);
 }
