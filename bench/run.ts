@@ -196,11 +196,16 @@ async function checkOnce(
 }
 
 /** Mean audit write time from the service's own metrics (tidemark_audit_write_duration_seconds). */
-async function auditWriteStats(base: string): Promise<{ sum: number; count: number }> {
+async function auditWriteStats(base: string): Promise<{ sum: number; count: number; commits: number; committed: number }> {
   const text = await (await fetch(`${base}/metrics`)).text();
-  const sum = Number(/^tidemark_audit_write_duration_seconds_sum\{ok="true"\} (\S+)$/m.exec(text)?.[1] ?? 0);
-  const count = Number(/^tidemark_audit_write_duration_seconds_count\{ok="true"\} (\S+)$/m.exec(text)?.[1] ?? 0);
-  return { sum, count };
+  const read = (re: RegExp) => Number(re.exec(text)?.[1] ?? 0);
+  return {
+    sum: read(/^tidemark_audit_write_duration_seconds_sum\{ok="true"\} (\S+)$/m),
+    count: read(/^tidemark_audit_write_duration_seconds_count\{ok="true"\} (\S+)$/m),
+    // The store's group commits (AuditStore.commitStats): records per commit is the size of its groups.
+    commits: read(/^tidemark_audit_commits (\S+)$/m),
+    committed: read(/^tidemark_audit_committed_records (\S+)$/m),
+  };
 }
 
 interface Timings {
@@ -450,13 +455,15 @@ async function main(): Promise<void> {
     const recordBytes = store === 'sqlite' ? lastRecordBytes(svc.dbPath) : 0;
     await svc.child.stop();
     if (opts.cpuProf) profiles.push({ label, profDir: svc.profDir });
-    const writeMs = (x: { sum: number; count: number }, y: { sum: number; count: number }) =>
-      y.count > x.count ? ((y.sum - x.sum) / (y.count - x.count)) * 1000 : Number.NaN;
+    type Stats = Awaited<ReturnType<typeof auditWriteStats>>;
+    const writeMs = (x: Stats, y: Stats) => (y.count > x.count ? ((y.sum - x.sum) / (y.count - x.count)) * 1000 : Number.NaN);
+    const perCommit = (x: Stats, y: Stats) => (y.commits > x.commits ? (y.committed - x.committed) / (y.commits - x.commits) : Number.NaN);
     return {
       run: { closed, rate },
       cards: once.cards,
       timings,
       audit: { closed: writeMs(a0, a1), rate: writeMs(a1, a2) },
+      perCommit: { closed: perCommit(a0, a1), rate: perCommit(a1, a2) },
       dbBytes,
       records,
       recordBytes,
@@ -480,6 +487,9 @@ async function main(): Promise<void> {
     );
     out(
       `    audit size: ${(r.dbBytes / Math.max(1, r.records) / 1024).toFixed(1)} kB of database per answer, ${f1(((r.dbBytes / Math.max(1, r.records)) * 1000) / 1024 / 1024)} MB per 1,000 answers; request body ${(bodies.select.length / 1024).toFixed(1)} kB`,
+    );
+    out(
+      `    group commit: ${f2(r.perCommit.closed)} records per commit closed loop, ${f2(r.perCommit.rate)} at the fixed rate (each answer still waits for its own commit)`,
     );
     out();
   }

@@ -92,7 +92,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     warnings.push(w);
     log.warn({ publicUrl }, w);
   }
-  const metrics = createMetrics();
+  const metrics = createMetrics(store.commitStats ? { commitStats: () => store.commitStats!() } : {});
   const auditAuth = requireAuditAccess({
     ...(cfg.TIDEMARK_AUDIT_TOKEN ? { auditToken: cfg.TIDEMARK_AUDIT_TOKEN } : {}),
     verifier: auditVerifier,

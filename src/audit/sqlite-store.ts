@@ -126,6 +126,7 @@ export class SqliteAuditStore implements AuditStore {
     const w = new Worker(new URL(WRITER_ENTRY, import.meta.url), { workerData: { path: this.path } });
     w.on('message', (m: WriterOut) => {
       if (m.type === 'done') {
+        this.countCommit(m.results.filter((r) => r.ok).length);
         for (const r of m.results) {
           const waiter = this.waiting.get(r.id);
           if (!waiter) continue;
@@ -147,6 +148,20 @@ export class SqliteAuditStore implements AuditStore {
     w.unref(); // an idle writer does not keep the process alive; it is ref'd while appends wait (see append)
     this.writer = w;
     return w;
+  }
+
+  private commits = 0;
+  private committed = 0;
+
+  /** One group commit of `records` records (none: the transaction failed and nothing of it was stored). */
+  private countCommit(records: number): void {
+    if (records === 0) return;
+    this.commits += 1;
+    this.committed += records;
+  }
+
+  commitStats(): { commits: number; records: number } {
+    return { commits: this.commits, records: this.committed };
   }
 
   private failAll(e: unknown): void {
@@ -214,6 +229,7 @@ export class SqliteAuditStore implements AuditStore {
         for (const p of batch) p.reject(e);
         continue;
       }
+      this.countCommit(done.filter((r) => r.ok).length);
       batch.forEach((p, i) => {
         const r = done[i];
         if (r?.ok) p.resolve({ seq: r.seq, hash: r.hash });

@@ -192,6 +192,11 @@ export interface AuditStore {
   /** Recomputes the hash chain; reports the first record that does not match. */
   verifyChain(): Promise<{ ok: boolean; checked: number; firstBadSeq?: number }>;
   ping(): Promise<void>;
+  /**
+   * Group commits so far and the records they committed (a store that groups appends: SQLite). Records per commit is
+   * the size of the groups; exported as metrics (tidemark_audit_commits, tidemark_audit_committed_records).
+   */
+  commitStats?(): { commits: number; records: number };
   close(): Promise<void>;
   /** A jti replay cache shared by every replica on this store, if the store is shared (PostgreSQL); else absent. */
   sharedReplayCache?(): ReplayCache;

@@ -1,5 +1,5 @@
 /** Prometheus metrics (prom-client): requests by service and status, latency, FHIR fetch errors by kind, audit write latency. */
-import { Counter, Histogram, Registry, collectDefaultMetrics } from 'prom-client';
+import { Counter, Gauge, Histogram, Registry, collectDefaultMetrics } from 'prom-client';
 import type { GatherOutcome } from '../hooks/gather-types.js';
 
 export interface Metrics {
@@ -9,8 +9,33 @@ export interface Metrics {
   observeAuditWrite(seconds: number, ok: boolean): void;
 }
 
-export function createMetrics(): Metrics {
+export interface MetricsSources {
+  /** The audit store's group commits so far (AuditStore.commitStats), read at each scrape. */
+  commitStats?: () => { commits: number; records: number };
+}
+
+export function createMetrics(sources: MetricsSources = {}): Metrics {
   const registry = new Registry();
+  const stats = sources.commitStats;
+  if (stats) {
+    // Records per commit is the size of the audit store's groups (issue 18: group commit that actually groups).
+    new Gauge({
+      name: 'tidemark_audit_commits',
+      help: 'Audit store transactions committed since start (one group commit each)',
+      registers: [registry],
+      collect() {
+        this.set(stats().commits);
+      },
+    });
+    new Gauge({
+      name: 'tidemark_audit_committed_records',
+      help: 'Audit records committed since start',
+      registers: [registry],
+      collect() {
+        this.set(stats().records);
+      },
+    });
+  }
   collectDefaultMetrics({ register: registry, prefix: 'tidemark_process_' });
   const requests = new Counter({
     name: 'tidemark_http_requests_total',

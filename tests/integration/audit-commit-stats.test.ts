@@ -1,0 +1,88 @@
+// Group commit, counted (issue 18): the SQLite store reports how many transactions it committed and how many records
+// they held, and /metrics exports both, so records per commit (the size of the groups) can be read under load.
+import { randomUUID } from 'node:crypto';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { SqliteAuditStore } from '../../src/audit/sqlite-store.js';
+import type { AnsweredRecord } from '../../src/audit/types.js';
+import { createMetrics } from '../../src/http/metrics.js';
+
+const dir = mkdtempSync(join(tmpdir(), 'tidemark-commits-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+function record(i: number): AnsweredRecord {
+  const uuid = randomUUID();
+  const recordedAt = new Date(Date.parse('2031-05-01T10:00:00Z') + i * 1000).toISOString();
+  return {
+    id: randomUUID(),
+    recordedAt,
+    service: 'bolus-review-select',
+    hook: 'order-select',
+    hookInstance: randomUUID(),
+    patientId: 'pt-wren-2',
+    outcome: 'answered',
+    rulesVersion: 'test',
+    findings: [],
+    cards: [{ uuid, summary: 'Invented', indicator: 'info', source: { label: 'Tidemark' } }],
+    cardKinds: { [uuid]: 'volume-ok' },
+    gathering: [],
+    timings: { totalMs: 1, gatherMs: 0, fhirWaitMs: 0, assessMs: 0 },
+    snapshot: {
+      patient: { ref: 'Patient/pt-wren-2', sex: 'unknown' },
+      now: recordedAt,
+      measurements: [],
+      coded: [],
+      dynamicTests: [],
+      fluids: [],
+      vasoactives: [],
+      conditions: [],
+      draftOrders: [],
+      excluded: [],
+    },
+    advice: { rulesVersion: 'test', now: recordedAt, findings: [], ruleErrors: [] },
+  };
+}
+
+describe('the SQLite store counts its group commits', () => {
+  it('in memory: one append awaited alone is one commit; twenty appended in one turn are one more', async () => {
+    const store = new SqliteAuditStore(':memory:');
+    await store.init();
+    await store.append(record(0));
+    expect(store.commitStats()).toEqual({ commits: 1, records: 1 });
+    await Promise.all(Array.from({ length: 20 }, (_, i) => store.append(record(i + 1))));
+    expect(store.commitStats()).toEqual({ commits: 2, records: 21 });
+    await store.close();
+  });
+
+  it('on a file (the writer thread): every record is counted once, in no more commits than records', async () => {
+    const store = new SqliteAuditStore(join(dir, 'audit.sqlite'));
+    await store.init();
+    for (let i = 0; i < 3; i += 1) await store.append(record(i));
+    expect(store.commitStats()).toEqual({ commits: 3, records: 3 });
+    await Promise.all(Array.from({ length: 40 }, (_, i) => store.append(record(i + 3))));
+    const s = store.commitStats();
+    expect(s.records).toBe(43);
+    expect(s.commits).toBeGreaterThanOrEqual(4);
+    expect(s.commits).toBeLessThanOrEqual(43);
+    expect(await store.verifyChain()).toEqual({ ok: true, checked: 43 });
+    await store.close();
+  });
+});
+
+describe('/metrics exports the counts', () => {
+  it('as two gauges read at each scrape', async () => {
+    let stats = { commits: 2, records: 5 };
+    const m = createMetrics({ commitStats: () => stats });
+    expect(await m.registry.metrics()).toMatch(/^tidemark_audit_commits 2$/m);
+    stats = { commits: 3, records: 9 };
+    const text = await m.registry.metrics();
+    expect(text).toMatch(/^tidemark_audit_commits 3$/m);
+    expect(text).toMatch(/^tidemark_audit_committed_records 9$/m);
+  });
+
+  it('a store that does not group its appends exports neither', async () => {
+    expect(await createMetrics().registry.metrics()).not.toMatch(/tidemark_audit_commits/);
+  });
+});
