@@ -19,7 +19,7 @@ import { PostgresReplayCache, type PostgresReplayCacheOptions } from './postgres
 import { feedbackKey, normaliseOverview, ownerOf, summarize } from './shared.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
 import { feedbackCountsOf, feedbackStatsOf, feedbackStatsSql, rowToFeedback, type KindRow, type ReasonRow } from './sql/rows.js';
-import { adviceFilters, Where } from './sql/where.js';
+import { adviceFilters, recordFilters, Where } from './sql/where.js';
 import type {
   AdviceQuery,
   AdviceRecord,
@@ -212,8 +212,6 @@ export class PostgresAuditStore implements AuditStore {
 
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
     const s = this.s;
-    const feedbackExists = (outcome?: string) =>
-      `EXISTS (SELECT 1 FROM ${s}.advice_card c JOIN ${s}.feedback f ON f.card_uuid = c.card_uuid WHERE c.advice_id = a.id${outcome ? ` AND f.outcome = '${outcome}'` : ''})`;
     const w = adviceFilters(new Where('postgres'), q, 'a.');
     if (q.cursor) {
       const n = Number(q.cursor);
@@ -221,9 +219,11 @@ export class PostgresAuditStore implements AuditStore {
       if (Number.isNaN(n)) return { items: [] };
       w.add((p) => `a.seq < ${p}::float8`, String(n));
     }
-    w.maybe(q.indicator, (p) => `${TOP_INDICATOR} = ${p}`).maybe(q.responsiveness, (p) => `${verdictOf('responsiveness')} = ${p}`);
-    w.maybe(q.tolerance, (p) => `${verdictOf('tolerance')} = ${p}`);
-    if (q.feedback) w.raw(q.feedback === 'none' ? `NOT ${feedbackExists()}` : feedbackExists(q.feedback));
+    recordFilters(w, q, {
+      topIndicator: TOP_INDICATOR,
+      verdictOf,
+      cardFeedback: `SELECT 1 FROM ${s}.advice_card c JOIN ${s}.feedback f ON f.card_uuid = c.card_uuid WHERE c.advice_id = a.id`,
+    });
     const r = await this.pool.query<AdviceRow>(
       `SELECT a.seq, a.record, a.prev_hash, a.hash FROM ${s}.advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`,
       w.args,

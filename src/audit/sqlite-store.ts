@@ -28,7 +28,7 @@ import type {
 import { normaliseOverview, summarize, feedbackKey, ownerOf } from './shared.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
 import { feedbackCountsOf, feedbackStatsOf, feedbackStatsSql, rowToFeedback, type KindRow, type ReasonRow } from './sql/rows.js';
-import { adviceFilters, Where } from './sql/where.js';
+import { adviceFilters, recordFilters, Where, type RecordSql } from './sql/where.js';
 
 /**
  * The writer thread's entry. Built (dist/, `npm start`) this module is JavaScript and the compiled writer runs as is;
@@ -50,8 +50,11 @@ const verdictOf = (v: 'responsiveness' | 'tolerance') => `COALESCE(json_extract(
 /** UTC day and ISO week (its Monday) of the advice row aliased `a`. */
 const DAY = 'substr(a.recorded_at, 1, 10)';
 const WEEK = `date(substr(a.recorded_at, 1, 10), '-6 days', 'weekday 1')`;
-const feedbackExists = (outcome?: string) =>
-  `EXISTS (SELECT 1 FROM advice_card c JOIN feedback f ON f.card_uuid = c.card_uuid WHERE c.advice_id = a.id${outcome ? ` AND f.outcome = '${outcome}'` : ''})`;
+const RECORD_SQL: RecordSql = {
+  topIndicator: TOP_INDICATOR,
+  verdictOf,
+  cardFeedback: 'SELECT 1 FROM advice_card c JOIN feedback f ON f.card_uuid = c.card_uuid WHERE c.advice_id = a.id',
+};
 
 /** Records read per batch by records(). */
 const STREAM_BATCH = 500;
@@ -246,9 +249,7 @@ export class SqliteAuditStore implements AuditStore {
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
     const w = adviceFilters(new Where('sqlite'), q, 'a.');
     if (q.cursor) w.add((p) => `a.seq < ${p}`, Number(q.cursor));
-    w.maybe(q.indicator, (p) => `${TOP_INDICATOR} = ${p}`).maybe(q.responsiveness, (p) => `${verdictOf('responsiveness')} = ${p}`);
-    w.maybe(q.tolerance, (p) => `${verdictOf('tolerance')} = ${p}`);
-    if (q.feedback) w.raw(q.feedback === 'none' ? `NOT ${feedbackExists()}` : feedbackExists(q.feedback));
+    recordFilters(w, q, RECORD_SQL);
     const rows = this.db
       .prepare(`SELECT a.seq, a.record, a.prev_hash, a.hash FROM advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`)
       .all(...w.args) as AdviceRow[];

@@ -68,3 +68,26 @@ export function adviceFilters(
     .maybe(q.to, (p) => `${alias}recorded_at <= ${p}`)
     .maybe(q.outcome, (p) => `${alias}outcome = ${p}`);
 }
+
+/** How one dialect reads what an advice row's record holds (the row aliased `a`). */
+export interface RecordSql {
+  /** The most urgent indicator of the row's cards: critical, warning, info or none. */
+  topIndicator: string;
+  /** The row's responsiveness or tolerance verdict, or 'none'. */
+  verdictOf(v: 'responsiveness' | 'tolerance'): string;
+  /** `SELECT 1 FROM` the row's cards joined to their feedback (aliases `c`, `f`), `WHERE` the card is the row's. */
+  cardFeedback: string;
+}
+
+/** The console's filters on what a record says: its most urgent indicator, its verdicts, its cards' feedback. */
+export function recordFilters(
+  w: Where,
+  q: { indicator?: string | undefined; responsiveness?: string | undefined; tolerance?: string | undefined; feedback?: string | undefined },
+  sql: RecordSql,
+): Where {
+  w.maybe(q.indicator, (p) => `${sql.topIndicator} = ${p}`)
+    .maybe(q.responsiveness, (p) => `${sql.verdictOf('responsiveness')} = ${p}`)
+    .maybe(q.tolerance, (p) => `${sql.verdictOf('tolerance')} = ${p}`);
+  if (q.feedback === 'none') return w.raw(`NOT EXISTS (${sql.cardFeedback})`);
+  return w.maybe(q.feedback, (p) => `EXISTS (${sql.cardFeedback} AND f.outcome = ${p})`);
+}
