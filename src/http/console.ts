@@ -14,7 +14,6 @@ import type { AuditStore, FeedbackFilter, TopIndicator } from '../audit/types.js
 import { staticTokenMatcher } from '../auth/middleware.js';
 import type { Catalogue } from '../cards/catalogue.js';
 import type { SiteMap } from '../fhir/site-map.js';
-import { renderAdvicePage } from '../pages/index.js';
 import { dayRange } from '../console/range.js';
 import {
   consoleNotice,
@@ -29,6 +28,7 @@ import {
 } from '../console/render.js';
 import { CONSOLE_CSS } from '../console/style.js';
 import { ConsoleSessions, SignInLimiter, sameText } from './console-session.js';
+import { reasoningPageOf } from './pages.js';
 
 export interface ConsoleDeps {
   store: AuditStore;
@@ -258,13 +258,7 @@ export function mountConsole(app: Express, deps: ConsoleDeps): void {
       const id = String(req.params['id']);
       const record = ADVICE_ID.test(id) ? await deps.store.get(id) : undefined;
       if (!record) return send(res, 404, consoleNotice('No such advice', 'No advice with this id is stored here.', chrome));
-      const reasoning = await renderAdvicePage({
-        record,
-        words: deps.catalogue,
-        cautions: deps.catalogue.cautions,
-        running: { rulesVersion: deps.rulesVersion, thresholds: deps.thresholds },
-        zone: deps.timeZone,
-      });
+      const reasoning = await reasoningPageOf(record, deps);
       send(res, 200, recordPage(reasoning, await deps.store.feedbackFor(record.id), record.cardKinds, chrome));
     }),
   );

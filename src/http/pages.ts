@@ -7,7 +7,7 @@
 import { readFile } from 'node:fs/promises';
 import { fileURLToPath } from 'node:url';
 import type { Express, Response } from 'express';
-import type { AuditStore } from '../audit/types.js';
+import type { AuditStore, StoredAdvice } from '../audit/types.js';
 import type { Catalogue } from '../cards/catalogue.js';
 import { docsPage, noticePage, PAGE_CSS, renderAdvicePage, STYLESHEET_PATH } from '../pages/index.js';
 import type { LinkSigner } from './advice-link.js';
@@ -28,6 +28,20 @@ export interface PagesDeps {
 
 const DOCS_DIR = fileURLToPath(new URL('../../docs/', import.meta.url));
 const ADVICE_ID = /^[A-Za-z0-9-]{1,64}$/;
+
+/** The reasoning page of one stored advice, with the running rules beside the record's (the signed link and the console show the same page). */
+export function reasoningPageOf(
+  record: StoredAdvice,
+  deps: Pick<PagesDeps, 'catalogue' | 'thresholds' | 'rulesVersion' | 'timeZone'>,
+): ReturnType<typeof renderAdvicePage> {
+  return renderAdvicePage({
+    record,
+    words: deps.catalogue,
+    cautions: deps.catalogue.cautions,
+    running: { rulesVersion: deps.rulesVersion, thresholds: deps.thresholds },
+    zone: deps.timeZone,
+  });
+}
 
 /** CSP of the pages: only this origin, no script at all, framing by the listed origins only. */
 export function pageCsp(frameAncestors: readonly string[]): string {
@@ -81,14 +95,7 @@ export function mountPages(app: Express, deps: PagesDeps): void {
       );
     const record = await deps.store.get(id);
     if (!record) return send(res, 404, noticePage('No such advice', 'No advice with this id is stored here.'));
-    const page = await renderAdvicePage({
-      record,
-      words: deps.catalogue,
-      cautions: deps.catalogue.cautions,
-      running: { rulesVersion: deps.rulesVersion, thresholds: deps.thresholds },
-      zone: deps.timeZone,
-    });
-    send(res, 200, page);
+    send(res, 200, await reasoningPageOf(record, deps));
   });
 
   // The screenshots the docs show (docs/img/*.png).
