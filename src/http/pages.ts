@@ -29,7 +29,10 @@ export interface PagesDeps {
 const DOCS_DIR = fileURLToPath(new URL('../../docs/', import.meta.url));
 const ADVICE_ID = /^[A-Za-z0-9-]{1,64}$/;
 
-/** The reasoning page of one stored advice, with the running rules beside the record's (the signed link and the console show the same page). */
+/**
+ * The reasoning page of one stored advice, with the running rules beside the record's: the signed link and the console
+ * show the same page.
+ */
 export function reasoningPageOf(
   record: StoredAdvice,
   deps: Pick<PagesDeps, 'catalogue' | 'thresholds' | 'rulesVersion' | 'timeZone'>,
