@@ -76,11 +76,8 @@ export const catalogueSchema = z
       confidence: z.strictObject({ high: text, moderate: text, low: text }),
       need: z.strictObject({ present: text, absent: text, unknown: text }),
       phase: z.strictObject({ 'early-resuscitation': text, later: text }),
-      assumed: text,
       overloadPercent: text,
       balanceMl: text,
-      settle: text,
-      options: text,
     }),
     kinds: z
       .array(
@@ -93,7 +90,6 @@ export const catalogueSchema = z
           shortSummary: text,
           indicatorRules: z.array(z.object({ if: z.record(z.string(), z.string()), then: indicator })),
           defaultIndicator: indicator,
-          sections: z.array(z.enum(['conclusion', 'evidence', 'gaps', 'order', 'cautions'])).min(1),
           docsPage: text,
           overrideReasons: z.array(text).optional(),
         }),
@@ -130,7 +126,6 @@ export const catalogueSchema = z
     verdictWords: z.strictObject({ likely: text, unlikely: text, indeterminate: text }),
     answers: answersSchema,
     overrideReasonSystem: z.url(),
-    sectionTitles: z.record(z.string(), text),
   })
   .superRefine((c, ctx) => {
     const codes = new Set(c.overrideReasons.map((r) => r.code));
