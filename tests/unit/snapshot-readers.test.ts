@@ -7,6 +7,7 @@ import { evidenceEvents } from '../../src/assess/common/events.js';
 import { EMPTY_SITE_MAP } from '../../src/fhir/site-map.js';
 import { buildSnapshot } from '../../src/snapshot/normalize.js';
 import { readAdministration } from '../../src/snapshot/readers/administration.js';
+import { readDraftOrders } from '../../src/snapshot/readers/draft-orders.js';
 import type { ReadContext } from '../../src/snapshot/readers/context.js';
 import { readActiveRequest } from '../../src/snapshot/readers/medication-request.js';
 import { readObservation } from '../../src/snapshot/readers/observation.js';
@@ -61,6 +62,32 @@ describe('readers return what they found and what they left out', () => {
   it('the same resource read twice gives equal results (no state kept between calls)', () => {
     const o = b.numeric('lac-1', P, 'lactate', 3.1, t(30));
     expect(readObservation(o, 'Observation/lac-1', ctx)).toEqual(readObservation(o, 'Observation/lac-1', ctx));
+  });
+});
+
+describe("a draft order's duration", () => {
+  const order = (duration: number, durationUnit: string) => ({
+    resourceType: 'MedicationRequest',
+    id: 'mr-d',
+    status: 'draft',
+    intent: 'order',
+    subject: { reference: `Patient/${P}` },
+    medicationCodeableConcept: b.FLUIDS.lactatedRinger,
+    dosageInstruction: [
+      {
+        route: { text: 'IV' },
+        timing: { repeat: { duration, durationUnit } },
+        doseAndRate: [{ doseQuantity: { value: 500, unit: 'mL', system: 'http://unitsofmeasure.org', code: 'mL' } }],
+      },
+    ],
+  });
+  it('is read in minutes (2 h → 120 min)', () => {
+    expect(readDraftOrders({ draftOrders: { entry: [{ resource: order(2, 'h') }] } }).orders[0]?.durationMin).toBe(120);
+  });
+  it('longer than a week is not a plausible order and is not read (found by the fuzz test: 1e308 min broke the card times)', () => {
+    const o = readDraftOrders({ draftOrders: { entry: [{ resource: order(1e308, 'min') }, { resource: order(8, 'd') }] } }).orders;
+    expect(o.map((x) => x.durationMin)).toEqual([undefined, undefined]);
+    expect(o[0]?.volumeMl).toBe(500);
   });
 });
 

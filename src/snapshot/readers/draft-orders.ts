@@ -65,9 +65,13 @@ function readFluidService(s: ServiceRequest, base: DraftOrder): DraftOrder {
   return { ...order, volumeProblem: 'no volume in ServiceRequest.quantityQuantity (mL)' };
 }
 
+/** Longest infusion duration read from an order, minutes: one week (our own bound; a longer one is not a plausible single order). */
+const MAX_DURATION_MIN = 7 * 1440;
+
 function durationMinutes(value: number | undefined, unit: string | undefined): number | undefined {
   if (typeof value !== 'number' || !Number.isFinite(value) || value <= 0) return undefined;
   const per: Record<string, number> = { s: 1 / 60, min: 1, h: 60, d: 1440 };
   const f = unit ? per[unit] : undefined;
-  return f === undefined ? undefined : value * f;
+  if (f === undefined || value * f > MAX_DURATION_MIN) return undefined;
+  return value * f;
 }
