@@ -2,6 +2,7 @@
  * Wiring: configuration → audit store, catalogue, thresholds, logger → the express app. No listen here,
  * so tests and the demo can run the very same app on a port of their choosing.
  */
+import type { SiteMap } from './fhir/site-map.js';
 import type { Logger } from 'pino';
 import { resolveThresholds } from './assess/thresholds.js';
 import { rulesVersion } from './config/rules-version.js';
@@ -26,6 +27,8 @@ export interface Service {
   store: AuditStore;
   log: Logger;
   rulesVersion: string;
+  /** The site's ConceptMaps and unit hints, when configured (a stored record's snapshot is rebuilt with them). */
+  siteMap?: SiteMap;
   /** What the start-up line reports. */
   startup: {
     publicUrl: string;
@@ -116,6 +119,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
         frameAncestors: cfg.TIDEMARK_FRAME_ANCESTORS,
         log,
         ...(signer ? { signer } : {}),
+        ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
       });
       mountConsole(a, {
         store,
@@ -172,7 +176,7 @@ export async function buildService(cfg: AppConfig, opts: ServiceOptions = {}): P
     auditStore: store.kind,
     replayCache: sharedReplay ? ('shared' as const) : ('per-process' as const),
   };
-  return { app, store, log, rulesVersion: version, startup, close: () => store.close() };
+  return { app, store, log, rulesVersion: version, startup, ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}), close: () => store.close() };
 }
 
 /**

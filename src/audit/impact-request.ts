@@ -50,6 +50,7 @@ export async function impactPage(
       thresholds: cand.thresholds,
       catalogue: ctx.catalogue,
       rulesVersion: rulesVersion(ctx.catalogueDigest ?? 'unknown', cand.thresholds, undefined, ctx.siteMap),
+      ...(ctx.siteMap ? { siteMap: ctx.siteMap } : {}),
     },
     { maxRecords: req.limit },
   );

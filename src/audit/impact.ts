@@ -10,6 +10,8 @@ import type { Catalogue } from '../cards/catalogue.js';
 import { csvRow } from './csv.js';
 import { outcomeOf, outcomeOfRecord, type CardOutcome, type ComparableOutcome } from './outcome.js';
 import { rerun } from './replay.js';
+import { withSnapshot } from '../hooks/rebuild.js';
+import type { SiteMap } from '../fhir/site-map.js';
 import type { StoredAdvice } from './types.js';
 
 /**
@@ -34,6 +36,8 @@ export interface CandidateRules {
   thresholds: Thresholds;
   catalogue: Catalogue;
   rulesVersion: string;
+  /** The site maps the snapshot of a record stored with its inputs is rebuilt with (the candidate's normalisation). */
+  siteMap?: SiteMap;
 }
 
 /**
@@ -178,9 +182,15 @@ export class ImpactTally {
 
   constructor(private readonly rules: CandidateRules) {}
 
-  add(rec: StoredAdvice): void {
+  add(given: StoredAdvice | { failed: StoredAdvice }): void {
+    const rec = 'failed' in given ? given.failed : given;
     this.read += 1;
     this.lastSeq = rec.seq;
+    if ('failed' in given) {
+      this.failed += 1;
+      if (this.failedExamples.length < EXAMPLES) this.failedExamples.push(rec.id);
+      return;
+    }
     if (!rec.snapshot || !rec.advice) {
       this.notReplayable += 1;
       return;
@@ -316,6 +326,15 @@ export interface ImpactOptions {
 }
 
 /** Runs the tally over a stream of records (the store's records(), filtered to answered records). */
+/** The record with its snapshot rebuilt from its inputs, or `failed` when they no longer make a call. */
+async function rebuiltOrFailed(rec: StoredAdvice, siteMap: SiteMap | undefined): Promise<StoredAdvice | { failed: StoredAdvice }> {
+  try {
+    return await withSnapshot(rec, siteMap);
+  } catch {
+    return { failed: rec };
+  }
+}
+
 export async function impactOf(
   records: AsyncIterable<StoredAdvice>,
   rules: CandidateRules,
@@ -325,7 +344,7 @@ export async function impactOf(
   let n = 0;
   for await (const rec of records) {
     if (opts.maxRecords !== undefined && n >= opts.maxRecords) return tally.report(true);
-    tally.add(rec);
+    tally.add(await rebuiltOrFailed(rec, rules.siteMap));
     n += 1;
     opts.onProgress?.(n);
     // Re-running rules is synchronous work: let other callbacks (hook calls on the same service) run in between.

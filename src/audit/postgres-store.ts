@@ -14,7 +14,8 @@
 import { createHash } from 'node:crypto';
 import pg from 'pg';
 import type { PoolClient } from 'pg';
-import { chainHashOfText, GENESIS, parseRecordText, recordText, storedHashMatches } from './chain.js';
+import { GENESIS } from './chain.js';
+import { decodeRow, encodeRecord, rowHashMatches, storedAdviceOf, storedHash } from './record-format.js';
 import { PostgresReplayCache, type PostgresReplayCacheOptions } from './postgres-replay-cache.js';
 import { feedbackKey, normaliseOverview, ownerOf, summarize } from './shared.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
@@ -54,6 +55,9 @@ function lockKey(purpose: string, schema: string): string {
 interface AdviceRow {
   seq: string;
   record: string;
+  format: number | null;
+  outputs: Uint8Array | null;
+  inputs: Uint8Array | null;
   prev_hash: string;
   hash: string;
 }
@@ -165,17 +169,19 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async append(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
-    const json = recordText(rec);
+    const parts = encodeRecord(rec);
+    const blob = (b: Uint8Array | undefined) => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
     return this.tx(async (c) => {
       await c.query('SELECT pg_advisory_xact_lock($1::bigint)', [this.chainLock]);
       // A new statement, so its snapshot is taken after the lock: it sees the last committed append.
       const last = await c.query<{ hash: string }>(`SELECT hash FROM ${this.s}.advice ORDER BY seq DESC LIMIT 1`);
       const prev = last.rows[0]?.hash ?? GENESIS;
-      // The hash covers exactly the text stored (src/audit/chain.ts).
-      const hash = chainHashOfText(prev, json);
+      // The hash covers exactly the bytes stored (src/audit/record-format.ts).
+      const hash = storedHash(prev, parts);
       const ins = await c.query<{ seq: string }>(
-        `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer)
-         VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13) RETURNING seq`,
+        `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer,
+           format, outputs, inputs)
+         VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16) RETURNING seq`,
         [
           rec.id,
           rec.recordedAt,
@@ -186,10 +192,13 @@ export class PostgresAuditStore implements AuditStore {
           rec.encounterId ?? null,
           rec.outcome,
           rec.rulesVersion,
-          json,
+          parts.text,
           prev,
           hash,
           rec.client?.issuer ?? null,
+          parts.format === 1 ? null : parts.format,
+          blob(parts.outputs),
+          blob(parts.inputs),
         ],
       );
       for (const [uuid, kind] of Object.entries(rec.cardKinds)) {
@@ -205,9 +214,12 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async get(id: string): Promise<StoredAdvice | undefined> {
-    const r = await this.pool.query<AdviceRow>(`SELECT seq, record, prev_hash, hash FROM ${this.s}.advice WHERE id = $1`, [id]);
+    const r = await this.pool.query<AdviceRow>(
+      `SELECT seq, record, format, outputs, inputs, prev_hash, hash FROM ${this.s}.advice WHERE id = $1`,
+      [id],
+    );
     const row = r.rows[0];
-    return row ? { ...parseRecordText(row.record), seq: Number(row.seq), prevHash: row.prev_hash, hash: row.hash } : undefined;
+    return row ? storedAdviceOf(row) : undefined;
   }
 
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
@@ -225,10 +237,10 @@ export class PostgresAuditStore implements AuditStore {
       cardFeedback: `SELECT 1 FROM ${s}.advice_card c JOIN ${s}.feedback f ON f.card_uuid = c.card_uuid WHERE c.advice_id = a.id`,
     });
     const r = await this.pool.query<AdviceRow>(
-      `SELECT a.seq, a.record, a.prev_hash, a.hash FROM ${s}.advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`,
+      `SELECT a.seq, a.record, a.format, a.outputs, a.inputs, a.prev_hash, a.hash FROM ${s}.advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`,
       w.args,
     );
-    const page = r.rows.slice(0, q.limit).map((row) => ({ ...parseRecordText(row.record), seq: Number(row.seq) }));
+    const page = r.rows.slice(0, q.limit).map((row) => ({ ...decodeRow(row), seq: Number(row.seq) }));
     const counts = await this.feedbackCounts(page.map((p) => p.id));
     const items = page.map((p) => summarize(p, counts));
     const last = page[page.length - 1];
@@ -294,12 +306,12 @@ export class PostgresAuditStore implements AuditStore {
     for (;;) {
       w.args[0] = after;
       const r = await this.pool.query<AdviceRow>(
-        `SELECT seq, record, prev_hash, hash FROM ${this.s}.advice ${w.sql} ORDER BY seq LIMIT ${batch}`,
+        `SELECT seq, record, format, outputs, inputs, prev_hash, hash FROM ${this.s}.advice ${w.sql} ORDER BY seq LIMIT ${batch}`,
         w.args,
       );
       for (const row of r.rows) {
         after = row.seq;
-        yield { ...parseRecordText(row.record), seq: Number(row.seq), prevHash: row.prev_hash, hash: row.hash };
+        yield storedAdviceOf(row);
       }
       if (r.rows.length < batch) return;
     }
@@ -376,13 +388,12 @@ export class PostgresAuditStore implements AuditStore {
     // Pages by seq so a long chain is not held in memory at once.
     for (;;) {
       const r = await this.pool.query<AdviceRow>(
-        `SELECT seq, record, prev_hash, hash FROM ${this.s}.advice WHERE seq > $1::bigint ORDER BY seq LIMIT ${VERIFY_PAGE}`,
+        `SELECT seq, record, format, outputs, inputs, prev_hash, hash FROM ${this.s}.advice WHERE seq > $1::bigint ORDER BY seq LIMIT ${VERIFY_PAGE}`,
         [after],
       );
       for (const row of r.rows) {
         checked += 1;
-        if (row.prev_hash !== prev || !storedHashMatches(prev, row.record, row.hash))
-          return { ok: false, checked, firstBadSeq: Number(row.seq) };
+        if (row.prev_hash !== prev || !rowHashMatches(prev, row, row.hash)) return { ok: false, checked, firstBadSeq: Number(row.seq) };
         prev = row.hash;
         after = row.seq;
       }

@@ -4,7 +4,8 @@
  * becomes its stored text and hash input, and the group-commit transaction.
  */
 import Database from 'better-sqlite3';
-import { chainHashOfText, GENESIS, recordText } from './chain.js';
+import { GENESIS } from './chain.js';
+import { encodeRecord, storedHash, type StoredParts } from './record-format.js';
 import type { AdviceRecord } from './types.js';
 
 /** WAL journal and synchronous=FULL: a committed record survives a process kill or power loss. */
@@ -31,11 +32,19 @@ export type RecordMeta = Pick<
 
 export interface PreparedRecord {
   meta: RecordMeta;
-  /** The record's stored JSON text (recordText); the chain hash covers exactly this text. */
-  text: string;
+  /** The record as its stored columns (src/audit/record-format.ts); the chain hash covers exactly these bytes. */
+  parts: StoredParts;
+}
+
+/** About how many bytes a prepared record writes (for pacing checkpoints). */
+export function preparedBytes(p: PreparedRecord): number {
+  return p.parts.text.length + (p.parts.outputs?.byteLength ?? 0) + (p.parts.inputs?.byteLength ?? 0);
 }
 
 export type AppendResult = { ok: true; seq: number; hash: string } | { ok: false; error: unknown };
+
+/** A stored blob as better-sqlite3 binds it (a Buffer; a Uint8Array that crossed from another thread is wrapped, not copied). */
+const bytes = (b: Uint8Array | undefined): Buffer | null => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
 
 /** At most this many records per group commit. */
 export const MAX_BATCH = 64;
@@ -57,13 +66,13 @@ function metaOf(r: AdviceRecord): RecordMeta {
 }
 
 /**
- * A record made ready to append, on the caller's thread: its columns and its text. One JSON.stringify costs this
- * thread about what a structured clone of the record object would (docs/benchmarks.md),
- * and spares the writer thread reading that clone back and serialising it again: it hashes and binds the text as
- * it is, and a string crosses to the writer in one copy.
+ * A record made ready to append, on the caller's thread: its columns and its stored bytes (text, or compressed
+ * outputs and inputs). Serialising here costs this thread about what a structured clone of the record object would
+ * (docs/benchmarks.md) and spares the writer thread reading that clone back: it hashes and binds the bytes as they
+ * are, and a string or a buffer crosses to the writer in one copy.
  */
 export function prepareRecord(rec: AdviceRecord): PreparedRecord {
-  return { meta: metaOf(rec), text: recordText(rec) };
+  return { meta: metaOf(rec), parts: encodeRecord(rec) };
 }
 
 /**
@@ -75,12 +84,13 @@ export function prepareRecord(rec: AdviceRecord): PreparedRecord {
 export function createBatchAppender(db: Database.Database): (batch: readonly PreparedRecord[]) => AppendResult[] {
   const last = db.prepare('SELECT hash FROM advice ORDER BY seq DESC LIMIT 1');
   const insert = db.prepare(
-    `INSERT INTO advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer)
-     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+    `INSERT INTO advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer,
+       format, outputs, inputs)
+     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
   const card = db.prepare('INSERT INTO advice_card (card_uuid, advice_id, card_kind, service) VALUES (?, ?, ?, ?)');
-  const one = db.transaction(({ meta: r, text }: PreparedRecord, prev: string) => {
-    const hash = chainHashOfText(prev, text);
+  const one = db.transaction(({ meta: r, parts }: PreparedRecord, prev: string) => {
+    const hash = storedHash(prev, parts);
     const info = insert.run(
       r.id,
       r.recordedAt,
@@ -91,10 +101,13 @@ export function createBatchAppender(db: Database.Database): (batch: readonly Pre
       r.encounterId ?? null,
       r.outcome,
       r.rulesVersion,
-      text,
+      parts.text,
       prev,
       hash,
       r.issuer ?? null,
+      parts.format === 1 ? null : parts.format,
+      bytes(parts.outputs),
+      bytes(parts.inputs),
     );
     for (const [uuid, kind] of Object.entries(r.cardKinds)) card.run(uuid, r.id, kind, r.service);
     return { seq: Number(info.lastInsertRowid), hash };

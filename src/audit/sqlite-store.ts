@@ -9,7 +9,8 @@ import { mkdirSync } from 'node:fs';
 import { dirname } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import type Database from 'better-sqlite3';
-import { GENESIS, parseRecordText, storedHashMatches } from './chain.js';
+import { GENESIS } from './chain.js';
+import { decodeRow, rowHashMatches, storedAdviceOf } from './record-format.js';
 import { createBatchAppender, MAX_BATCH, openAuditDb, prepareRecord, type AppendResult, type PreparedRecord } from './sqlite-append.js';
 import type { WriterError, WriterIn, WriterOut } from './sqlite-writer.js';
 import type {
@@ -39,6 +40,9 @@ const WRITER_ENTRY = import.meta.url.endsWith('.ts') ? './sqlite-writer.mjs' : '
 interface AdviceRow {
   seq: number;
   record: string;
+  format: number | null;
+  outputs: Uint8Array | null;
+  inputs: Uint8Array | null;
   prev_hash: string;
   hash: string;
 }
@@ -242,8 +246,9 @@ export class SqliteAuditStore implements AuditStore {
   }
 
   async get(id: string): Promise<StoredAdvice | undefined> {
-    const row = this.db.prepare('SELECT seq, record, prev_hash, hash FROM advice WHERE id = ?').get(id) as AdviceRow | undefined;
-    return row ? { ...parseRecordText(row.record), seq: row.seq, prevHash: row.prev_hash, hash: row.hash } : undefined;
+    const row = this.db.prepare('SELECT seq, record, format, outputs, inputs, prev_hash, hash FROM advice WHERE id = ?').get(id) as
+      AdviceRow | undefined;
+    return row ? storedAdviceOf(row) : undefined;
   }
 
   async list(q: AdviceQuery): Promise<{ items: AdviceSummary[]; nextCursor?: string }> {
@@ -251,10 +256,12 @@ export class SqliteAuditStore implements AuditStore {
     if (q.cursor) w.add((p) => `a.seq < ${p}`, Number(q.cursor));
     recordFilters(w, q, RECORD_SQL);
     const rows = this.db
-      .prepare(`SELECT a.seq, a.record, a.prev_hash, a.hash FROM advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`)
+      .prepare(
+        `SELECT a.seq, a.record, a.format, a.outputs, a.inputs, a.prev_hash, a.hash FROM advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`,
+      )
       .all(...w.args) as AdviceRow[];
     const page = rows.slice(0, q.limit);
-    const records = page.map((r) => ({ ...parseRecordText(r.record), seq: r.seq }));
+    const records = page.map((r) => ({ ...decodeRow(r), seq: r.seq }));
     const counts = this.feedbackCounts(records.map((r) => r.id));
     const items = records.map((r) => summarize(r, counts));
     const last = page[page.length - 1];
@@ -317,14 +324,16 @@ export class SqliteAuditStore implements AuditStore {
     w.param(0); // the keyset bound, set per batch below
     adviceFilters(w.raw('seq > ?'), q);
     const batch = Math.max(1, Math.min(q.batchSize ?? STREAM_BATCH, 10_000));
-    const stmt = this.db.prepare(`SELECT seq, record, prev_hash, hash FROM advice ${w.sql} ORDER BY seq LIMIT ${batch}`);
+    const stmt = this.db.prepare(
+      `SELECT seq, record, format, outputs, inputs, prev_hash, hash FROM advice ${w.sql} ORDER BY seq LIMIT ${batch}`,
+    );
     let after = q.afterSeq ?? 0;
     for (;;) {
       w.args[0] = after;
       const rows = stmt.all(...w.args) as AdviceRow[];
       for (const row of rows) {
         after = row.seq;
-        yield { ...parseRecordText(row.record), seq: row.seq, prevHash: row.prev_hash, hash: row.hash };
+        yield storedAdviceOf(row);
       }
       if (rows.length < batch) return;
     }
@@ -393,10 +402,10 @@ export class SqliteAuditStore implements AuditStore {
     let prev = GENESIS;
     let checked = 0;
     for (const row of this.db
-      .prepare('SELECT seq, record, prev_hash, hash FROM advice ORDER BY seq')
+      .prepare('SELECT seq, record, format, outputs, inputs, prev_hash, hash FROM advice ORDER BY seq')
       .iterate() as IterableIterator<AdviceRow>) {
       checked += 1;
-      if (row.prev_hash !== prev || !storedHashMatches(prev, row.record, row.hash)) return { ok: false, checked, firstBadSeq: row.seq };
+      if (row.prev_hash !== prev || !rowHashMatches(prev, row, row.hash)) return { ok: false, checked, firstBadSeq: row.seq };
       prev = row.hash;
     }
     return { ok: true, checked };

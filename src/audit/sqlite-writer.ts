@@ -4,13 +4,13 @@
  * that answers CDS calls. A record is acknowledged only after its transaction has committed; records that
  * arrive while a commit is under way are committed together in the next one (group commit).
  *
- * Messages in:  { type: 'append', id, prepared } (the record's columns and stored text, made on the main thread) | { type: 'close' }
+ * Messages in:  { type: 'append', id, prepared } (the record's columns and stored bytes, made on the main thread) | { type: 'close' }
  * Messages out: { type: 'ready' } | { type: 'done', results: [{ id, ok, seq, hash } | { id, ok: false, error }] }
  *               | { type: 'fatal', error } | { type: 'closed' }
  * Started through sqlite-writer.mjs (which makes TypeScript loadable in a worker).
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { createBatchAppender, MAX_BATCH, openAuditDb, type PreparedRecord } from './sqlite-append.js';
+import { createBatchAppender, MAX_BATCH, openAuditDb, preparedBytes, type PreparedRecord } from './sqlite-append.js';
 
 export interface WriterError {
   message: string;
@@ -93,7 +93,7 @@ function flush(): void {
           : { id: p.id, ok: false as const, error: errorOf(r ? r.error : new Error('audit append lost')) };
       }),
     });
-    for (const p of batch) sinceCheckpoint += p.prepared.text.length; // characters: close enough to bytes for pacing checkpoints
+    for (const p of batch) sinceCheckpoint += preparedBytes(p.prepared); // text in characters: close enough to bytes for pacing checkpoints
   }
   checkpointIfDue();
 }

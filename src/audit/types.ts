@@ -6,11 +6,23 @@
  */
 import type { Advice, Finding } from '../assess/types.js';
 import type { ReplayCache } from '../auth/replay-cache.js';
-import type { GatherOutcome } from '../hooks/gather-types.js';
+import type { FhirExchange, GatherOutcome } from '../hooks/gather-types.js';
 import type { Card } from '../hooks/schemas.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
 
 export type AdviceOutcome = 'answered' | 'precondition-failed';
+
+/**
+ * What the call brought, as received (docs/decisions/0006-store-what-was-received.md): the request body's text (the
+ * bearer token replaced, src/hooks/received.ts) and every FHIR request Tidemark made with its answer's text. With
+ * `now`, the clock reading the call was assessed at, they are all the snapshot is built from, so it is rebuilt from
+ * them (src/hooks/rebuild.ts) rather than stored.
+ */
+export interface RecordInputs {
+  now: string;
+  request: { body: string; asReceived: boolean };
+  fhir: FhirExchange[];
+}
 
 /** What every record holds, whatever its outcome. */
 interface RecordBase {
@@ -32,12 +44,17 @@ interface RecordBase {
   timings: { totalMs: number; gatherMs: number; fhirWaitMs: number; assessMs: number };
   /** Who called: the verified issuer (never the token). */
   client?: { issuer?: string; tenant?: string; jti?: string };
+  /** The inputs as received; a record stored with them (format 2) keeps no snapshot. Absent in records before 0.4.0. */
+  inputs?: RecordInputs;
 }
 
-/** A call that was answered with cards (200): the snapshot the rules saw and the advice they gave. */
+/**
+ * A call that was answered with cards (200): the advice the rules gave and what they saw, as the snapshot (in a
+ * record as made, and as stored before 0.4.0) or as the inputs it is rebuilt from (a stored record of format 2).
+ */
 export interface AnsweredRecord extends RecordBase {
   outcome: 'answered';
-  snapshot: PatientSnapshot;
+  snapshot?: PatientSnapshot;
   advice: Advice;
 }
 
@@ -55,6 +72,8 @@ export type StoredAdvice = AdviceRecord & {
   seq: number;
   hash: string;
   prevHash: string;
+  /** How the row was stored: 1, the record's JSON text; 2, its outputs and inputs compressed (src/audit/record-format.ts). */
+  format: 1 | 2;
 };
 
 export interface AdviceSummary {

@@ -18,6 +18,7 @@ import { candidateThresholds, formatImpact, impactOf, type ImpactFormat } from '
 import { openAuditStore } from '../audit/open-store.js';
 import { auditInstant } from '../audit/shared.js';
 import { replay } from '../audit/replay.js';
+import { withSnapshot } from '../hooks/rebuild.js';
 import type { AdviceQuery, AuditStore, FeedbackRow, StoredAdvice } from '../audit/types.js';
 import { loadCatalogue } from '../cards/catalogue.js';
 import { loadConfig, type AppConfig } from '../config/config.js';
@@ -144,6 +145,7 @@ async function impact(store: AuditStore, cfg: AppConfig, args: string[], io: Io)
       thresholds: cand.thresholds,
       catalogue: loaded.catalogue,
       rulesVersion: rulesVersion(loaded.digest, cand.thresholds, undefined, cfg.siteMap),
+      ...(cfg.siteMap ? { siteMap: cfg.siteMap } : {}),
     },
     { onProgress: (n) => bar.tick(n) },
   );
@@ -197,7 +199,11 @@ export async function run(argv: string[], io: Io = { out: process.stdout, err: p
         return 1;
       }
       const thresholds = resolveThresholds(cfg.file.thresholds ?? {});
-      const diff = replay(rec, thresholds, rulesVersion(loadCatalogue().digest, thresholds, undefined, cfg.siteMap));
+      const diff = replay(
+        await withSnapshot(rec, cfg.siteMap),
+        thresholds,
+        rulesVersion(loadCatalogue().digest, thresholds, undefined, cfg.siteMap),
+      );
       io.out.write(`${JSON.stringify(diff ?? { note: 'no snapshot to replay (a 412 answer)' }, null, 2)}\n`);
       return 0;
     }

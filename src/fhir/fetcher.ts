@@ -23,8 +23,11 @@ export interface ByteCaps {
  */
 export const DEFAULT_BYTE_CAPS: ByteCaps = { maxResponseBytes: 16 * 1024 * 1024, maxCallBytes: 48 * 1024 * 1024 };
 
-/** Reads one absolute URL (already checked with `resolveUnderBase`) and returns its parsed JSON body. */
-export type Fetcher = (url: string, signal: AbortSignal) => Promise<unknown>;
+/**
+ * Reads one absolute URL (already checked with `resolveUnderBase`) and returns its parsed JSON body. `onBody`, when
+ * given, is told the HTTP status and the body's text exactly as read, before it is parsed (the audit record keeps it).
+ */
+export type Fetcher = (url: string, signal: AbortSignal, onBody?: (status: number, text: string) => void) => Promise<unknown>;
 
 /** A FHIR request that failed for a reason of its own; gather turns it into a GatherOutcome. */
 export class FhirFetchError extends Error {
@@ -77,7 +80,7 @@ export function fhirFetcher(baseUrl: string, accessToken?: string, caps: ByteCap
   if (accessToken) headers['authorization'] = `Bearer ${accessToken}`;
   let callBytes = 0;
 
-  return async (url, signal) => {
+  return async (url, signal, onBody) => {
     let target: URL | undefined;
     try {
       target = resolveUnderBase(new URL(url).href, baseUrl);
@@ -114,6 +117,7 @@ export function fhirFetcher(baseUrl: string, accessToken?: string, caps: ByteCap
       }
     }
     const text = Buffer.concat(chunks).toString('utf8');
+    onBody?.(res.status, text);
     if (text === '') return {};
     try {
       return JSON.parse(text) as unknown;

@@ -16,6 +16,7 @@ import { composeCards } from '../cards/compose.js';
 import { renderCard } from '../cards/render.js';
 import type { fhirFetcher } from '../fhir/fetcher.js';
 import { gather } from './gather.js';
+import { inputsOf, receivedBody } from './received.js';
 import type { GatherOptions, GatherOutcome, Gathered } from './gather-types.js';
 import type { SiteMap } from '../fhir/site-map.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
@@ -70,15 +71,18 @@ export async function evaluateHook(
   body: unknown,
   deps: EvaluateDeps,
   client?: AdviceRecord['client'],
+  /** The request body's text as it arrived, kept in the record (token replaced, src/hooks/received.ts). */
+  bodyText?: string,
 ): Promise<EvaluateResult> {
   const t0 = performance.now();
   const call = timed(deps, 'parse', parseCall, service, body, deps, client?.issuer);
+  const request = receivedBody(bodyText, body);
   const now = deps.now();
   const tG = performance.now();
   const gathered = await gatherData(call, service, deps);
   deps.observe?.('gather', performance.now() - tG);
   const adviceId = randomUUID();
-  const base = recordBase(call, service, deps, gathered, adviceId, client);
+  const base = { ...recordBase(call, service, deps, gathered, adviceId, client), inputs: inputsOf(now, request, gathered.exchanges) };
   const hookInstance = call.req.hookInstance;
 
   if (gathered.unobtainableRequired.length) {

@@ -27,12 +27,27 @@ export interface GatherOutcome {
   detail?: string;
 }
 
+/**
+ * One FHIR request Tidemark made for a call, as the audit record keeps it: the URL fetched and either the answer's
+ * status and body text as read (`body`; `reserialised` when a fetcher gave only the parsed JSON, as a test double may)
+ * or why it failed (`failure`, the same classification as the key's outcome). In the order the answers settled.
+ */
+export interface FhirExchange {
+  url: string;
+  status?: number;
+  body?: string;
+  reserialised?: true;
+  failure?: { status: GatherStatus; httpStatus?: number; detail?: string };
+}
+
 export interface Gathered {
   /** All resources, de-duplicated by type/id (the first copy wins). */
   resources: FhirResource[];
   outcomes: GatherOutcome[];
   /** Required keys that neither prefetch nor a FHIR server could supply (→ 412). */
   unobtainableRequired: string[];
+  /** Every FHIR request made for the call and what came back (none when all came by prefetch). */
+  exchanges: FhirExchange[];
   /** Wall time of the gathering step, ms; fhirWaitMs = the longest single query. */
   ms: number;
   fhirWaitMs: number;

@@ -15,7 +15,7 @@ import type { HookRequest } from './schemas.js';
 import { resolvePrefetchTemplate } from './prefetch-tokens.js';
 import type { ServiceDefinition } from './services.js';
 import { DEFAULT_BYTE_CAPS, FhirFetchError, fhirFetcher, resolveUnderBase, type ByteCaps, type Fetcher } from '../fhir/fetcher.js';
-import type { GatherOptions, GatherOutcome, GatherStatus, Gathered } from './gather-types.js';
+import type { FhirExchange, GatherOptions, GatherOutcome, GatherStatus, Gathered } from './gather-types.js';
 
 /** Settles when `p` does or when the budget runs out, whichever is first, even if the fetcher ignores the signal. */
 function withinBudget<T>(p: Promise<T>, signal: AbortSignal): Promise<T> {
@@ -37,6 +37,31 @@ function withinBudget<T>(p: Promise<T>, signal: AbortSignal): Promise<T> {
   });
 }
 
+/**
+ * The fetcher inside the call's time budget, each request written down as it settles: the body text as read (or,
+ * from a fetcher that does not report it, the parsed body serialised again, marked so) or the failure's class.
+ * A request the budget cut short is written down as a timeout; what it reads later is not.
+ */
+function recording(fetcher: Fetcher, budget: AbortSignal, exchanges: FhirExchange[]): Fetcher {
+  return async (url, signal) => {
+    let raw: { status: number; text: string } | undefined;
+    try {
+      const body = await withinBudget(
+        fetcher(url, signal, (status, text) => {
+          raw = { status, text };
+        }),
+        budget,
+      );
+      exchanges.push(raw ? { url, status: raw.status, body: raw.text } : { url, body: JSON.stringify(body), reserialised: true });
+      return body;
+    } catch (e) {
+      const failure = classify(e);
+      exchanges.push(raw ? { url, status: raw.status, body: raw.text, failure } : { url, failure });
+      throw e;
+    }
+  };
+}
+
 export async function gather(
   request: HookRequest,
   service: ServiceDefinition,
@@ -50,7 +75,9 @@ export async function gather(
     maxResponseBytes: opts.maxResponseBytes ?? DEFAULT_BYTE_CAPS.maxResponseBytes,
     maxCallBytes: opts.maxCallBytes ?? DEFAULT_BYTE_CAPS.maxCallBytes,
   };
-  const fetcher = request.fhirServer ? makeFetcher(request.fhirServer, request.fhirAuthorization?.access_token, caps) : undefined;
+  const exchanges: FhirExchange[] = [];
+  const plain = request.fhirServer ? makeFetcher(request.fhirServer, request.fhirAuthorization?.access_token, caps) : undefined;
+  const fetcher = plain ? recording(plain, deadline, exchanges) : undefined;
   const limit = semaphore(opts.concurrency);
   const context = request.context;
   const hook = service.hook;
@@ -114,7 +141,7 @@ export async function gather(
     return limit(async () => {
       const started = clock();
       try {
-        const body = await withinBudget(fetcher(target.href, deadline), deadline);
+        const body = await fetcher(target.href, deadline);
         const ans = readAnswer(body, q.resourceTypes);
         if (ans.kind === 'problem')
           return {
@@ -174,6 +201,7 @@ export async function gather(
     resources,
     outcomes,
     unobtainableRequired,
+    exchanges,
     ms: clock() - t0,
     fhirWaitMs: Math.max(0, ...outcomes.filter((o) => o.source === 'fhir-server').map((o) => o.ms ?? 0)),
   };
@@ -211,7 +239,7 @@ async function follow(
       return truncated('link[next] points outside fhirServer: not followed');
     }
     try {
-      const ans = readAnswer(await withinBudget(fetcher(target.href, deadline), deadline), types);
+      const ans = readAnswer(await fetcher(target.href, deadline), types);
       n += 1;
       if (ans.kind === 'problem') return truncated(`page ${n}: ${ans.detail}`);
       out.push(...ans.resources);

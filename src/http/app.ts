@@ -6,7 +6,9 @@ import { readFile } from 'node:fs/promises';
 import { fileURLToPath } from 'node:url';
 import express, { type NextFunction, type Request, type RequestHandler, type Response } from 'express';
 import { z } from 'zod';
-import type { AuditStore } from '../audit/types.js';
+import type { AuditStore, StoredAdvice } from '../audit/types.js';
+import type { SiteMap } from '../fhir/site-map.js';
+import { withSnapshot } from '../hooks/rebuild.js';
 import { evaluateHook, type EvaluateDeps } from '../hooks/evaluate.js';
 import { recordFeedback } from '../hooks/feedback.js';
 import { replay } from '../audit/replay.js';
@@ -38,6 +40,22 @@ export interface AppDeps extends EvaluateDeps {
   onResponse?: (route: string, service: string, status: number, seconds: number) => void;
 }
 
+/** A request whose JSON body parser kept the bytes it read. */
+type RawBodied = Request & { rawBody?: Buffer | undefined };
+
+/** A stored record with its snapshot rebuilt from its inputs; inputs that no longer make a call are a 422. */
+async function rebuilt(rec: StoredAdvice, siteMap: SiteMap | undefined): Promise<StoredAdvice> {
+  try {
+    return await withSnapshot(rec, siteMap);
+  } catch (e) {
+    throw outcomeError(
+      'not-replayable',
+      'not-supported',
+      `the record's inputs could not be read again: ${String((e as Error).message).slice(0, 200)}`,
+    );
+  }
+}
+
 const DOCS_DIR = fileURLToPath(new URL('../../docs/', import.meta.url));
 const pass: RequestHandler = (_req, _res, next) => next();
 
@@ -63,8 +81,15 @@ export function createApp(deps: AppDeps): express.Express {
   const cds = deps.cdsClientAuth ?? pass;
   const audit = deps.auditAuth ?? pass;
   // A body nested deeper than MAX_JSON_DEPTH is a 400 right after parsing, before any code can recurse over it.
+  // The body's bytes are kept as read (`verify`), for the audit record of a hook call (src/hooks/received.ts).
   const json = withDepthLimit(
-    express.json({ limit: deps.bodyLimit, type: ['application/json', 'application/fhir+json', 'application/*+json'] }),
+    express.json({
+      limit: deps.bodyLimit,
+      type: ['application/json', 'application/fhir+json', 'application/*+json'],
+      verify: (req, _res, buf) => {
+        (req as RawBodied).rawBody = buf;
+      },
+    }),
   );
 
   app.use((req, res, next) => {
@@ -126,8 +151,10 @@ export function createApp(deps: AppDeps): express.Express {
   app.post('/cds-services/:id', cds, json, async (req: Request, res: Response) => {
     const service = findService(String(req.params['id']), services);
     if (!service) throw outcomeError('not-found', 'not-found', `no CDS service with id "${String(req.params['id']).slice(0, 64)}"`);
-    const pending = evaluateHook(service, req.body, deps, res.locals['client'] as never);
+    const raw = (req as RawBodied).rawBody;
+    const pending = evaluateHook(service, req.body, deps, res.locals['client'] as never, raw?.toString('utf8'));
     req.body = undefined; // not held through the audit commit wait (docs/benchmarks.md)
+    (req as RawBodied).rawBody = undefined;
     const result = await pending;
     res.status(result.status).json(result.body);
   });
@@ -168,12 +195,18 @@ export function createApp(deps: AppDeps): express.Express {
   app.get('/audit/advice/:id', audit, async (req: Request, res: Response) => {
     const rec = await deps.store.get(String(req.params['id']));
     if (!rec) throw outcomeError('not-found', 'not-found', 'no advice record with that id');
-    res.json({ ...rec, feedback: await deps.store.feedbackFor(rec.id) });
+    // A record stored as received holds no snapshot: it is rebuilt from the inputs and marked so (docs/audit.md).
+    const shown = rec.snapshot ? rec : await withSnapshot(rec, deps.siteMap).catch(() => rec);
+    res.json({
+      ...shown,
+      ...(shown.snapshot && !rec.snapshot ? { snapshotRebuilt: true } : {}),
+      feedback: await deps.store.feedbackFor(rec.id),
+    });
   });
   app.get('/audit/advice/:id/replay', audit, async (req: Request, res: Response) => {
     const rec = await deps.store.get(String(req.params['id']));
     if (!rec) throw outcomeError('not-found', 'not-found', 'no advice record with that id');
-    const diff = replay(rec, deps.thresholds, deps.rulesVersion);
+    const diff = replay(await rebuilt(rec, deps.siteMap), deps.thresholds, deps.rulesVersion);
     if (!diff) throw outcomeError('not-replayable', 'not-supported', 'this record has no snapshot to replay (a 412 answer)');
     res.json(diff);
   });

@@ -4,6 +4,8 @@
  * Headers as strict as the API's (app.ts), except that a page may load its own stylesheet from this origin and be
  * framed by the configured EHR origins (CSP frame-ancestors; none by default).
  */
+import { withSnapshot } from '../hooks/rebuild.js';
+import type { SiteMap } from '../fhir/site-map.js';
 import { readFile } from 'node:fs/promises';
 import { fileURLToPath } from 'node:url';
 import type { Express, Response } from 'express';
@@ -23,6 +25,8 @@ export interface PagesDeps {
   timeZone: string;
   /** EHR origins that may frame the pages. */
   frameAncestors: readonly string[];
+  /** The site's ConceptMaps, to rebuild a stored record's snapshot from its inputs as the service read them. */
+  siteMap?: SiteMap;
   log: { warn(o: object, m?: string): void; error(o: object, m?: string): void };
 }
 
@@ -33,12 +37,15 @@ const ADVICE_ID = /^[A-Za-z0-9-]{1,64}$/;
  * The reasoning page of one stored advice, with the running rules beside the record's: the signed link and the console
  * show the same page.
  */
-export function reasoningPageOf(
+export async function reasoningPageOf(
   record: StoredAdvice,
-  deps: Pick<PagesDeps, 'catalogue' | 'thresholds' | 'rulesVersion' | 'timeZone'>,
+  deps: Pick<PagesDeps, 'catalogue' | 'thresholds' | 'rulesVersion' | 'timeZone' | 'siteMap'>,
 ): ReturnType<typeof renderAdvicePage> {
+  // A record stored with its inputs holds no snapshot: rebuilt for the trend plots. A record whose inputs no longer
+  // make a call is shown without them (the page says the trends are not available).
+  const withTrends = await withSnapshot(record, deps.siteMap).catch(() => record);
   return renderAdvicePage({
-    record,
+    record: withTrends,
     words: deps.catalogue,
     cautions: deps.catalogue.cautions,
     running: { rulesVersion: deps.rulesVersion, thresholds: deps.thresholds },

@@ -19,6 +19,8 @@ import { loadCatalogue } from '../../src/cards/catalogue.js';
 import { PREFETCH } from '../../src/hooks/services.js';
 import { validateFhir } from '../../src/fhir/validator.js';
 import { get, startService, type Running } from '../helpers/server.js';
+import type { AdviceRecord } from '../../src/audit/types.js';
+import { snapshotOfRecord } from '../../src/hooks/rebuild.js';
 
 /** Pinned clock: the charts are written relative to it and the service judges ages against it. */
 const NOW = new Date('2026-11-20T14:00:00Z');
@@ -34,6 +36,7 @@ const runOf = (s: Scenario, r: RouteKind) => runs.get(`${s.id}/${r}`) as Scenari
 
 let fhir: EmbeddedFhir;
 let svc: Running;
+const made = new Map<string, AdviceRecord>();
 let targets: RunTargets;
 
 beforeAll(async () => {
@@ -44,6 +47,12 @@ beforeAll(async () => {
   // tests/integration/fhir-faults.test.ts.
   svc = await startService({ TIDEMARK_AUDIT_TOKEN: AUDIT_TOKEN, TIDEMARK_FHIR_BUDGET_MS: '15000' }, { now: () => NOW });
   targets = { serviceUrl: svc.url, fhirBaseUrl: fhir.baseUrl, fhirToken: FHIR_TOKEN, auditToken: AUDIT_TOKEN };
+  // The records as made, before the store: their snapshots are what the stored inputs must rebuild exactly.
+  const append = svc.svc.store.append.bind(svc.svc.store);
+  svc.svc.store.append = (rec) => {
+    made.set(rec.id, rec);
+    return append(rec);
+  };
   // One call at a time: each run finds its own audit record as the newest of its patient and service.
   for (const s of SCENARIOS) for (const r of ROUTES) runs.set(`${s.id}/${r}`, await runScenario(targets, s, chart(s), r));
 });
@@ -341,6 +350,26 @@ describe('a FHIR server that caps its pages', () => {
       await capped.close();
     }
   });
+});
+
+describe('the audit record keeps the inputs as received (decision 0006)', () => {
+  it.each(SCENARIOS.flatMap((s) => ROUTES.map((r) => [`${s.id}/${r}`, s, r] as const)))(
+    '%s: the stored inputs rebuild the snapshot the rules saw, and the stored body holds no FHIR token',
+    async (_name, s, r) => {
+      const id = String(runOf(s, r).record?.['id'] ?? '');
+      const original = made.get(id);
+      expect(original?.snapshot).toBeDefined();
+      const stored = (await svc.svc.store.get(id))!;
+      expect(stored.format).toBe(2);
+      expect(stored.snapshot).toBeUndefined();
+      expect(stored.inputs?.request.asReceived).toBe(true);
+      expect(stored.inputs?.request.body).not.toContain(FHIR_TOKEN);
+      // The fhir-server route reads everything from the FHIR server; the prefetch route reads nothing there.
+      if (r === 'prefetch') expect(stored.inputs?.fhir).toEqual([]);
+      else expect(stored.inputs?.fhir.length).toBeGreaterThan(0);
+      expect(await snapshotOfRecord(stored)).toEqual(original?.snapshot);
+    },
+  );
 });
 
 describe('both routes see the same chart', () => {

@@ -1,6 +1,7 @@
 // The audit command line over a real SQLite audit file: verify (exit 1 once a record is tampered with),
 // export (NDJSON, every record once), replay.
 import { spawnSync } from 'node:child_process';
+import { brotliCompressSync, brotliDecompressSync } from 'node:zlib';
 import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ADVICE_CASES } from '../helpers/advice-fixtures.js';
@@ -43,7 +44,11 @@ describe('npm run audit', () => {
     expect(ok.status).toBe(0);
     expect(ok.stdout).toMatch(/intact: 5 records/);
     const db = new Database(s.dbPath);
-    db.prepare("UPDATE advice SET record = replace(record, 'smaller-aliquot', 'proceed-and-reassess') WHERE seq = 3").run();
+    // A record is stored as received (format 2): its outputs are Brotli-compressed JSON; one word changed in them.
+    const row = db.prepare('SELECT format, outputs FROM advice WHERE seq = 3').get() as { format: number; outputs: Buffer };
+    expect(row.format).toBe(2);
+    const changed = brotliDecompressSync(row.outputs).toString('utf8').replace('smaller-aliquot', 'proceed-and-reassess');
+    db.prepare('UPDATE advice SET outputs = ? WHERE seq = 3').run(brotliCompressSync(Buffer.from(changed)));
     db.close();
     const bad = run('verify');
     expect(bad.status).toBe(1);

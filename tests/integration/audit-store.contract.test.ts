@@ -5,6 +5,7 @@
  * All ids, patients and texts below are invented.
  */
 import { createHash, randomUUID } from 'node:crypto';
+import { brotliCompressSync, brotliDecompressSync } from 'node:zlib';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -100,7 +101,7 @@ function adviceRecord(o: AdviceOpts = {}): AnsweredRecord {
   return { ...rec, snapshot, advice: { rulesVersion: rec.rulesVersion, now: rec.recordedAt, findings: [], ruleErrors: [] } };
 }
 
-const sha256Hex = (s: string): string => createHash('sha256').update(s, 'utf8').digest('hex');
+const sha256Hex = (s: string | Buffer): string => createHash('sha256').update(s).digest('hex');
 
 function cardsOf(r: AdviceRecord): string[] {
   return r.cards.map((c) => c.uuid ?? '');
@@ -129,6 +130,9 @@ interface Harness {
   fresh(): Promise<AuditStore>;
   recordText(seq: number): Promise<string>;
   setRecordText(seq: number, text: string): Promise<void>;
+  /** A row's format and its stored blobs (format 2: outputs and inputs, Brotli-compressed JSON). */
+  blobs(seq: number): Promise<{ format: number | null; outputs: Buffer | null; inputs: Buffer | null }>;
+  setBlob(seq: number, column: 'outputs' | 'inputs', bytes: Buffer): Promise<void>;
   /** Overwrites a row's prev_hash and hash. */
   setChain(seq: number, prevHash: string, hash: string): Promise<void>;
   /** Deletes an advice row and its cards (and their feedback). */
@@ -171,6 +175,12 @@ function sqliteHarness(): Harness {
     },
     async setRecordText(seq, text) {
       raw((db) => db.prepare('UPDATE advice SET record = ? WHERE seq = ?').run(text, seq));
+    },
+    async blobs(seq) {
+      return raw((db) => db.prepare('SELECT format, outputs, inputs FROM advice WHERE seq = ?').get(seq) as never);
+    },
+    async setBlob(seq, column, bytes) {
+      raw((db) => db.prepare(`UPDATE advice SET ${column} = ? WHERE seq = ?`).run(bytes, seq));
     },
     async setChain(seq, prevHash, hash) {
       raw((db) => db.prepare('UPDATE advice SET prev_hash = ?, hash = ? WHERE seq = ?').run(prevHash, hash, seq));
@@ -238,6 +248,12 @@ function postgresHarness(): Harness {
     },
     async setRecordText(seq, text) {
       await q(`UPDATE "${schema}".advice SET record = $1 WHERE seq = $2`, [text, seq]);
+    },
+    async blobs(seq) {
+      return (await q(`SELECT format, outputs, inputs FROM "${schema}".advice WHERE seq = $1`, [seq])).rows[0] as never;
+    },
+    async setBlob(seq, column, bytes) {
+      await q(`UPDATE "${schema}".advice SET ${column} = $1 WHERE seq = $2`, [bytes, seq]);
     },
     async setChain(seq, prevHash, hash) {
       await q(`UPDATE "${schema}".advice SET prev_hash = $1, hash = $2 WHERE seq = $3`, [prevHash, hash, seq]);
@@ -307,9 +323,88 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     expect(t1).toBe(JSON.stringify(r1));
     expect(a1.hash).toBe(sha256Hex(GENESIS + t1));
     expect(a2.hash).toBe(sha256Hex(a1.hash + t2));
-    expect(await store.get(r1.id)).toEqual({ ...r1, seq: a1.seq, hash: a1.hash, prevHash: GENESIS });
-    expect(await store.get(r2.id)).toEqual({ ...r2, seq: a2.seq, hash: a2.hash, prevHash: a1.hash });
+    expect(await store.get(r1.id)).toEqual({ ...r1, seq: a1.seq, hash: a1.hash, prevHash: GENESIS, format: 1 });
+    expect(await store.get(r2.id)).toEqual({ ...r2, seq: a2.seq, hash: a2.hash, prevHash: a1.hash, format: 1 });
     expect(await store.get('no-such-advice')).toBeUndefined();
+  });
+
+  it('stores a record that carries its inputs as format 2: no snapshot, outputs and inputs compressed, the hash over the stored bytes', async () => {
+    await open();
+    const r1 = adviceRecord({ at: 1 });
+    const inputs = {
+      now: at(1),
+      request: { body: '{"hook":"order-select","note":"Ünïcode ✓ \\u0000"}', asReceived: true },
+      fhir: [
+        {
+          url: 'https://fhir.invented.example/r4/Observation?patient=pt-alder',
+          status: 200,
+          body: '{"resourceType":"Bundle","type":"searchset"}',
+        },
+        { url: 'https://fhir.invented.example/r4/Condition?patient=pt-alder', failure: { status: 'timeout' as const, detail: 'budget' } },
+      ],
+    };
+    const base2 = adviceRecord({ at: 2 });
+    const verdicts = {
+      responsiveness: { value: 'likely', rationale: 'invented', decidingRules: [] },
+      tolerance: { value: 'limited', rationale: 'invented', decidingRules: [] },
+    } as unknown as Pick<AnsweredRecord['advice'], 'responsiveness' | 'tolerance'>;
+    const r2: AnsweredRecord = { ...base2, advice: { ...base2.advice, ...verdicts }, inputs };
+    const a1 = await store.append(r1);
+    const a2 = await store.append(r2);
+    const row = await h.blobs(a2.seq);
+    expect(row.format).toBe(2);
+    const index = await h.recordText(a2.seq);
+    // The index holds only what SQL reads, at the paths of a format-1 record.
+    expect(JSON.parse(index)).toEqual({
+      format: 2,
+      cards: r2.cards.map((c) => ({ indicator: c.indicator })),
+      advice: { responsiveness: { value: 'likely' }, tolerance: { value: 'limited' } },
+      timings: { totalMs: r2.timings.totalMs },
+      client: { issuer: r2.client?.issuer },
+    });
+    // The blobs are RFC 7932 Brotli, read here with node:zlib alone: the inputs exactly as given, the outputs without the snapshot.
+    const outputs = Buffer.from(row.outputs ?? []);
+    const stored = Buffer.from(row.inputs ?? []);
+    expect(JSON.parse(brotliDecompressSync(stored).toString('utf8'))).toEqual(inputs);
+    const out = JSON.parse(brotliDecompressSync(outputs).toString('utf8')) as Record<string, unknown>;
+    expect(out['snapshot']).toBeUndefined();
+    expect(out['inputs']).toBeUndefined();
+    expect(out['cards']).toEqual(r2.cards);
+    // hash = sha256(previous hash ‖ index ‖ sha256(outputs) ‖ sha256(inputs)), hex digests (docs/audit.md).
+    expect(a2.hash).toBe(sha256Hex(a1.hash + index + sha256Hex(outputs) + sha256Hex(stored)));
+    const { snapshot: _s, ...withoutSnapshot } = r2;
+    expect(await store.get(r2.id)).toEqual({ ...withoutSnapshot, seq: a2.seq, hash: a2.hash, prevHash: a1.hash, format: 2 });
+    // Read back by the stream and the list as well.
+    const streamed = [];
+    for await (const r of store.records({})) streamed.push(r);
+    expect(streamed.map((r) => r.format)).toEqual([1, 2]);
+    expect(streamed[1]?.inputs).toEqual(inputs);
+    expect((await store.list({ limit: 5 })).items[0]).toMatchObject({
+      id: r2.id,
+      cardCount: r2.cards.length,
+      responsiveness: 'likely',
+      tolerance: 'limited',
+    });
+    expect((await store.list({ limit: 5, tolerance: 'limited' })).items.map((i) => i.id)).toEqual([r2.id]);
+    expect(await store.verifyChain()).toEqual({ ok: true, checked: 2 });
+  });
+
+  it('a changed byte in a format-2 record (index, outputs or inputs) breaks the chain at that record', async () => {
+    for (const part of ['index', 'outputs', 'inputs'] as const) {
+      await open();
+      const inputs = { now: at(0), request: { body: '{"hook":"order-select"}', asReceived: true }, fhir: [] };
+      const seqs = await appendAll([0, 1, 2].map((i) => ({ ...adviceRecord({ at: i }), inputs })));
+      const target = seqs[1] ?? -1;
+      expect(await store.verifyChain()).toEqual({ ok: true, checked: 3 });
+      if (part === 'index') {
+        await h.setRecordText(target, (await h.recordText(target)).replace('"format":2', '"format":2 '));
+      } else {
+        const row = await h.blobs(target);
+        const text = brotliDecompressSync(Buffer.from(row[part] ?? [])).toString('utf8');
+        await h.setBlob(target, part, brotliCompressSync(Buffer.from(text.replace('order-select', 'order-sign'))));
+      }
+      expect(await store.verifyChain(), part).toEqual({ ok: false, checked: 2, firstBadSeq: target });
+    }
   });
 
   it('refuses a duplicate advice id or a reused card uuid, keeping nothing of the refused record', async () => {
@@ -346,7 +441,7 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
     expect(a.hash).toBe(sha256Hex(GENESIS + text));
     const back = await store.get(rec.id);
     expect(back?.advice?.findings).toEqual(base.findings);
-    expect(back).toEqual({ ...rec, seq: a.seq, hash: a.hash, prevHash: GENESIS });
+    expect(back).toEqual({ ...rec, seq: a.seq, hash: a.hash, prevHash: GENESIS, format: 1 });
     // A record whose advice holds other findings than its own list is stored as given.
     const other: AdviceRecord = { ...adviceRecord(), advice: { rulesVersion: 'r', now: at(0), findings: [], ruleErrors: [] } };
     await store.append(other);
@@ -689,6 +784,7 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
   describe('the console overview and the list filters (computed in SQL)', () => {
     // An invented trail with counts known by construction. 2031-03-02 is a Sunday (ISO week of Monday 2031-02-24),
     // 2031-03-03 a Monday and 2031-03-09 the Sunday of that week, 2031-03-10 the next Monday.
+    let made = 0;
     const rec = (
       iso: string,
       o: {
@@ -703,6 +799,8 @@ describe.each([sqliteHarness(), postgresHarness()])('audit store contract: $name
       const r = adviceRecord({ service: o.service ?? 'bolus-select', kinds: o.kinds ?? ['volume-ok'], totalMs: o.ms });
       r.recordedAt = iso;
       r.cards.forEach((c, i) => (c.indicator = o.indicators?.[i] ?? c.indicator));
+      // Every other record is stored as received (format 2): the aggregates read both formats alike.
+      if ((made += 1) % 2 === 0) r.inputs = { now: iso, request: { body: '{}', asReceived: true }, fhir: [] };
       if (o.failed) {
         const { snapshot: _s, advice: _a, ...rest } = r;
         return { ...rest, outcome: 'precondition-failed' };

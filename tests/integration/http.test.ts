@@ -13,6 +13,7 @@ import {
   PID,
 } from '../helpers/hook-fixtures.js';
 import * as b from '../../examples/lib/fhir-builders.js';
+import { snapshotOfRecord, withSnapshot } from '../../src/hooks/rebuild.js';
 import { AUDIT_HEADERS, get, post, startService, type Running } from '../helpers/server.js';
 
 let s: Running;
@@ -24,13 +25,16 @@ afterAll(async () => s.stop());
 const rows = () => {
   const db = new Database(s.dbPath, { readonly: true });
   try {
-    return db.prepare('SELECT id, service, hook, hook_instance, patient_id, outcome, record FROM advice ORDER BY seq').all() as Array<{
+    return db
+      .prepare('SELECT id, service, hook, hook_instance, patient_id, outcome, record, format FROM advice ORDER BY seq')
+      .all() as Array<{
       id: string;
       service: string;
       hook: string;
       outcome: string;
       patient_id: string;
       record: string;
+      format: number | null;
     }>;
   } finally {
     db.close();
@@ -52,9 +56,10 @@ describe('discovery', () => {
 });
 
 describe('hook calls', () => {
-  it('order-select with full prefetch: 200, one valid card, one audit row with snapshot and findings', async () => {
+  it('order-select with full prefetch: 200, one valid card, one audit row with the request as received and the findings', async () => {
     const before = rows().length;
-    const r = await post(`${s.url}/cds-services/bolus-review-select`, orderSelectRequest({ prefetch: prefetchOf(basicResources()) }));
+    const sent = orderSelectRequest({ prefetch: prefetchOf(basicResources()) });
+    const r = await post(`${s.url}/cds-services/bolus-review-select`, sent);
     expect(r.status).toBe(200);
     const body = hookResponseSchema.parse(r.body);
     expect(body.cards).toHaveLength(1);
@@ -71,13 +76,19 @@ describe('hook calls', () => {
     expect(after).toHaveLength(before + 1);
     const last = after[after.length - 1]!;
     expect(last).toMatchObject({ service: 'bolus-review-select', hook: 'order-select', outcome: 'answered', patient_id: PID });
-    const rec = JSON.parse(last.record);
-    expect(rec.cards[0].uuid).toBe(card.uuid);
-    expect(rec.snapshot.measurements.length).toBeGreaterThan(0);
+    // Stored as received (decision 0006): the request body's text, no snapshot; the snapshot is rebuilt from the body.
+    expect(last.format).toBe(2);
+    const rec = (await s.svc.store.get(String(last.id)))!;
+    expect(rec.format).toBe(2);
+    expect(rec.snapshot).toBeUndefined();
+    expect(rec.inputs?.request).toEqual({ body: JSON.stringify(sent), asReceived: true });
+    expect(rec.inputs?.fhir).toEqual([]);
+    expect(rec.cards[0]?.uuid).toBe(card.uuid);
+    expect((await snapshotOfRecord(rec))?.measurements.length).toBeGreaterThan(0);
     expect(rec.findings.some((f: { ruleId: string }) => f.ruleId === 'perfusion.map')).toBe(true);
-    expect(rec.advice.need.value).toBe('present'); // MAP 61 < 65 (SSC 2021)
-    expect(rec.advice.responsiveness.value).toMatch(/^(likely|unlikely|indeterminate)$/);
-    expect(rec.advice.recommendation.action).toBeTruthy();
+    expect(rec.advice?.need?.value).toBe('present'); // MAP 61 < 65 (SSC 2021)
+    expect(rec.advice?.responsiveness?.value).toMatch(/^(likely|unlikely|indeterminate)$/);
+    expect(rec.advice?.recommendation?.action).toBeTruthy();
     expect(rec.gathering).toHaveLength(12);
     expect(rec.rulesVersion).toBe(s.svc.rulesVersion);
   });
@@ -311,8 +322,8 @@ describe('replay under other rules', () => {
     // SpO2/FiO2 153 limited tolerance under the default (< 235, Rice 2007); a site that sets the cut-off at 150 sees the change.
     const { replay } = await import('../../src/audit/replay.js');
     const { resolveThresholds } = await import('../../src/assess/thresholds.js');
-    const rec = await s.svc.store.get(id);
-    const diff = replay(rec!, resolveThresholds({ tolerance: { spo2Fio2LowRatio: 150 } }), 'site-variant');
+    const rec = await withSnapshot((await s.svc.store.get(id))!);
+    const diff = replay(rec, resolveThresholds({ tolerance: { spo2Fio2LowRatio: 150 } }), 'site-variant');
     expect(diff?.changed).toBe(true);
     expect(diff?.tolerance.then).toBe('limited');
     expect(diff?.tolerance.now).toBe('not-known');

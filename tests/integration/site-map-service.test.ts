@@ -6,6 +6,7 @@
 import type { Bundle } from 'fhir/r4.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startEmbeddedFhir, type EmbeddedFhir } from '../../src/devserver/embedded-fhir.js';
+import { snapshotOfRecord } from '../../src/hooks/rebuild.js';
 import type { Measurement } from '../../src/snapshot/types.js';
 import { post, startService, type Running } from '../helpers/server.js';
 import { IEEE, SITE_CONFIG, SITE_PATIENT, siteChart } from '../../examples/site-maps/hospital-chart.js';
@@ -48,7 +49,9 @@ describe('a site running with its maps', () => {
     expect((await call(mapped)).status).toBe(200);
     const item = (await mapped.svc.store.list({ patientId: SITE_PATIENT, limit: 5 })).items[0];
     const rec = await mapped.svc.store.get(item!.id);
-    const ms = (rec as { snapshot: { measurements: Measurement[] } }).snapshot.measurements;
+    // The record keeps the FHIR answers as received; read through the same maps, they give the snapshot the rules saw.
+    expect(rec?.inputs?.fhir.some((x) => x.body?.includes('150037'))).toBe(true);
+    const ms: Measurement[] = (await snapshotOfRecord(rec!, mapped.svc.siteMap))!.measurements;
     expect(ms.find((m) => m.ref === 'Observation/st-abp-sys-1')).toMatchObject({
       kind: 'systolicBp',
       original: { system: IEEE, code: '150037', unit: 'MDC_DIM_MMHG' },
@@ -65,8 +68,6 @@ describe('a site running with its maps', () => {
     expect((await call(plain)).status).toBe(200);
     const item = (await plain.svc.store.list({ patientId: SITE_PATIENT, limit: 5 })).items[0];
     const rec = await plain.svc.store.get(item!.id);
-    expect((rec as { snapshot: { measurements: Measurement[] } }).snapshot.measurements.map((m) => m.ref)).toEqual([
-      'Observation/st-lac-1',
-    ]);
+    expect((await snapshotOfRecord(rec!))!.measurements.map((m) => m.ref)).toEqual(['Observation/st-lac-1']);
   });
 });

@@ -52,6 +52,7 @@ function records(): StoredAdvice[] {
       timings: { totalMs: 0, gatherMs: 0, fhirWaitMs: 0, assessMs: 0 },
       seq: i + 1,
       hash: '',
+      format: 1,
       prevHash: '',
     };
     const r = rerun(base, { thresholds: T, rulesVersion: VERSION, catalogue })!;

@@ -86,6 +86,20 @@ export const MIGRATIONS: readonly Migration[] = [
     },
     postgres: (s) => [`ALTER TABLE ${s}.advice ADD COLUMN IF NOT EXISTS issuer TEXT`, replayTableDdl(s)],
   },
+  {
+    version: 3,
+    note: 'Tidemark 0.4.0: advice.format, advice.outputs, advice.inputs (a record stored as received, docs/decisions/0006-store-what-was-received.md)',
+    sqlite: (db) => {
+      if (!db.hasColumn('advice', 'format')) db.run('ALTER TABLE advice ADD COLUMN format INTEGER');
+      if (!db.hasColumn('advice', 'outputs')) db.run('ALTER TABLE advice ADD COLUMN outputs BLOB');
+      if (!db.hasColumn('advice', 'inputs')) db.run('ALTER TABLE advice ADD COLUMN inputs BLOB');
+    },
+    postgres: (s) => [
+      `ALTER TABLE ${s}.advice ADD COLUMN IF NOT EXISTS format INTEGER`,
+      `ALTER TABLE ${s}.advice ADD COLUMN IF NOT EXISTS outputs BYTEA`,
+      `ALTER TABLE ${s}.advice ADD COLUMN IF NOT EXISTS inputs BYTEA`,
+    ],
+  },
 ];
 
 export const SCHEMA_VERSION = MIGRATIONS.reduce((v, m) => Math.max(v, m.version), 0);

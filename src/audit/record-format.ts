@@ -1,0 +1,103 @@
+/**
+ * How a record becomes a stored row and back (docs/decisions/0006-store-what-was-received.md).
+ *
+ * Format 1 (Tidemark 0.1.0–0.3.x): the record's JSON text in `record`, snapshot included; hashed by chain.ts.
+ * Format 2 (0.4.0, a record that carries its inputs):
+ * - `outputs`: the record without its snapshot and inputs (cards as sent, advice and findings, gathering outcomes,
+ *   timings), JSON, Brotli-compressed;
+ * - `inputs`: the inputs as received (request body, FHIR answers, the assessment's clock), JSON, Brotli-compressed;
+ * - `record`: a small JSON index of what SQL reads (card indicators, verdicts, total latency, issuer), at the same
+ *   paths as in a format-1 record, so the console's aggregates read both formats alike.
+ * Its chain hash is sha256(previous hash ‖ index text ‖ sha256(outputs) ‖ sha256(inputs)), hex digests, over the
+ * bytes as stored: a verifier needs sha256 and nothing else, and one chain runs across both formats.
+ * Brotli at quality 1 (Node's zlib, RFC 7932): the fastest setting; measured in docs/benchmarks.md.
+ */
+import { createHash } from 'node:crypto';
+import { brotliCompressSync, brotliDecompressSync, constants } from 'node:zlib';
+import { chainHashOfText, parseRecordText, recordText, storedHashMatches } from './chain.js';
+import type { AdviceRecord, RecordInputs, StoredAdvice } from './types.js';
+
+export const FORMAT_RECEIVED = 2;
+
+/** A record as the columns it is stored in. */
+export interface StoredParts {
+  format: 1 | 2;
+  /** Format 1: the record's JSON text; format 2: the index. */
+  text: string;
+  outputs?: Uint8Array;
+  inputs?: Uint8Array;
+}
+
+/** A row as both stores read it (`format` NULL for rows written before the column). */
+export interface StoredRow {
+  record: string;
+  format?: number | null;
+  outputs?: Uint8Array | null;
+  inputs?: Uint8Array | null;
+}
+
+const BROTLI = { params: { [constants.BROTLI_PARAM_QUALITY]: 1 } };
+
+const compress = (text: string): Uint8Array => brotliCompressSync(Buffer.from(text, 'utf8'), BROTLI);
+const decompress = (bytes: Uint8Array): string => brotliDecompressSync(bytes).toString('utf8');
+
+/** The record as stored: format 2 when it carries its inputs, else format 1 (its JSON text). */
+export function encodeRecord(rec: AdviceRecord): StoredParts {
+  const inputs = rec.inputs;
+  if (!inputs) return { format: 1, text: recordText(rec) };
+  const { snapshot: _snapshot, inputs: _inputs, ...outputs } = rec;
+  return {
+    format: 2,
+    text: indexText(rec),
+    outputs: compress(recordText(outputs as AdviceRecord)),
+    inputs: compress(JSON.stringify(inputs)),
+  };
+}
+
+/** What SQL reads of a record, at the paths of a format-1 record: cards' indicators, verdicts, latency, issuer. */
+export function indexText(rec: AdviceRecord): string {
+  return JSON.stringify({
+    format: FORMAT_RECEIVED,
+    cards: rec.cards.map((c) => ({ indicator: c.indicator })),
+    ...(rec.advice ? { advice: { responsiveness: verdict(rec.advice.responsiveness), tolerance: verdict(rec.advice.tolerance) } } : {}),
+    timings: { totalMs: rec.timings.totalMs },
+    ...(rec.client?.issuer !== undefined ? { client: { issuer: rec.client.issuer } } : {}),
+  });
+}
+
+const verdict = (v: { value?: string } | undefined): { value?: string } => (v?.value !== undefined ? { value: v.value } : {});
+
+const hex = (b: Uint8Array): string => createHash('sha256').update(b).digest('hex');
+
+/** The chain hash of a stored row from the previous hash. */
+export function storedHash(prevHash: string, parts: StoredParts): string {
+  if (parts.format === 1 || !parts.outputs || !parts.inputs) return chainHashOfText(prevHash, parts.text);
+  return createHash('sha256')
+    .update(prevHash, 'utf8')
+    .update(parts.text, 'utf8')
+    .update(hex(parts.outputs))
+    .update(hex(parts.inputs))
+    .digest('hex');
+}
+
+const formatOf = (row: StoredRow): 1 | 2 => (row.format === FORMAT_RECEIVED ? 2 : 1);
+
+/** Whether a stored row's hash is the one its stored bytes give (format 1 also by 0.1.0's rule, chain.ts). */
+export function rowHashMatches(prevHash: string, row: StoredRow, hash: string): boolean {
+  if (formatOf(row) === 1) return storedHashMatches(prevHash, row.record, hash);
+  if (!row.outputs || !row.inputs) return false;
+  return storedHash(prevHash, { format: 2, text: row.record, outputs: row.outputs, inputs: row.inputs }) === hash;
+}
+
+/** A stored row read back as the record it holds (a format-2 row: its outputs with its inputs, no snapshot). */
+export function decodeRow(row: StoredRow): AdviceRecord & { format: 1 | 2 } {
+  if (formatOf(row) === 1) return { ...parseRecordText(row.record), format: 1 };
+  if (!row.outputs || !row.inputs) throw new Error('a stored record of format 2 lacks its outputs or inputs');
+  const rec = parseRecordText(decompress(row.outputs));
+  return { ...rec, inputs: JSON.parse(decompress(row.inputs)) as RecordInputs, format: 2 };
+}
+
+/** A stored row with its chain columns as a StoredAdvice. */
+export function storedAdviceOf(row: StoredRow & { seq: number | string; prev_hash: string; hash: string }): StoredAdvice {
+  return { ...decodeRow(row), seq: Number(row.seq), prevHash: row.prev_hash, hash: row.hash };
+}
