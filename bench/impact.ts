@@ -6,6 +6,8 @@
  * times spread over a year, appended through the store as the service appends. The candidate raises the PPV
  * threshold to 17 %. Every record is re-run in full (assess, compose, render) whether or not its outcome changes,
  * so the cost per record does not depend on the candidate.
+ * Records are stored as received (format 2: the snapshot is rebuilt from the inputs for each re-run); with
+ * --format=1 as before decision 0006 (the snapshot stored), to compare the two.
  * Prints seeding rate, file size, records per second of the impact run and the peak heap while it ran.
  * A development aid; it asserts only that every record was replayed.
  */
@@ -24,6 +26,8 @@ const arg = (name: string): string | undefined => process.argv.find((a) => a.sta
 const N = Number(arg('records') ?? 20_000);
 if (!Number.isInteger(N) || N < 100 || N > 1_000_000) throw new Error('--records: a whole number from 100 to 1000000');
 const keep = process.argv.includes('--keep');
+/** --format=1: store the copies as before decision 0006 (snapshot kept, no inputs), to compare replay speeds. */
+const legacy = arg('format') === '1';
 const out = (s: string) => process.stdout.write(`${s}\n`);
 
 const now = new Date();
@@ -41,8 +45,9 @@ function copy(i: number): AdviceRecord {
   const tpl = templates[i % 4 === 3 ? 1 : 0] as AdviceRecord;
   const cards = tpl.cards.map((c) => ({ ...c, uuid: randomUUID() }));
   const kinds = Object.values(tpl.cardKinds);
+  const { inputs, ...rest } = tpl;
   return {
-    ...tpl,
+    ...(legacy || !inputs ? rest : { ...rest, inputs }),
     id: randomUUID(),
     hookInstance: randomUUID(),
     recordedAt: new Date(t0 + Math.floor((i / N) * year)).toISOString(),
@@ -58,7 +63,9 @@ for (let i = 0; i < N; i += CHUNK) {
 }
 const seedS = (performance.now() - seedStart) / 1000;
 const mb = (b: number) => (b / 1024 / 1024).toFixed(0);
-out(`seeded ${N} records in ${seedS.toFixed(1)} s (${Math.round(N / seedS)} records/s), ${mb(statSync(path).size)} MB on disk (${path})`);
+out(
+  `format ${legacy ? 1 : 2}: seeded ${N} records in ${seedS.toFixed(1)} s (${Math.round(N / seedS)} records/s), ${mb(statSync(path).size)} MB on disk (${path})`,
+);
 
 const candidate = resolveThresholds({ responsiveness: { ppvThresholdPercent: 17 } });
 globalThis.gc?.();

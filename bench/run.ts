@@ -225,13 +225,18 @@ function maxSeq(dbPath: string): number {
   }
 }
 
-/** Size in bytes of the newest record's stored JSON text. */
+/** Size in bytes of the newest record as stored: its text (format 1) or its index, outputs and inputs (format 2). */
 function lastRecordBytes(dbPath: string): number {
   const db = new Database(dbPath, { readonly: true, fileMustExist: true });
   try {
     return Number(
-      (db.prepare('SELECT length(CAST(record AS BLOB)) AS n FROM advice ORDER BY seq DESC LIMIT 1').get() as { n: number } | undefined)
-        ?.n ?? 0,
+      (
+        db
+          .prepare(
+            'SELECT length(CAST(record AS BLOB)) + COALESCE(length(outputs), 0) + COALESCE(length(inputs), 0) AS n FROM advice ORDER BY seq DESC LIMIT 1',
+          )
+          .get() as { n: number } | undefined
+      )?.n ?? 0,
     );
   } finally {
     db.close();
@@ -483,7 +488,7 @@ async function main(): Promise<void> {
       printTimings('fixed rate', r.timings.rate);
     }
     out(
-      `    audit write, from the service's metrics (mean, including the wait for its group commit): ${f2(r.audit.closed)} ms closed loop, ${f2(r.audit.rate)} ms fixed rate; ${r.records} records of ${(r.recordBytes / 1024).toFixed(0)} kB each in ${mb(r.dbBytes)} (WAL not counted)`,
+      `    audit write, from the service's metrics (mean, including the wait for its group commit): ${f2(r.audit.closed)} ms closed loop, ${f2(r.audit.rate)} ms fixed rate; ${r.records} records of ${(r.recordBytes / 1024).toFixed(1)} kB each in ${mb(r.dbBytes)} (WAL not counted)`,
     );
     out(
       `    audit size: ${(r.dbBytes / Math.max(1, r.records) / 1024).toFixed(1)} kB of database per answer, ${f1(((r.dbBytes / Math.max(1, r.records)) * 1000) / 1024 / 1024)} MB per 1,000 answers; request body ${(bodies.select.length / 1024).toFixed(1)} kB`,

@@ -54,7 +54,9 @@ export async function answerTemplates(
       const service = findService(id);
       if (!service) throw new Error(`no service ${id}`);
       const client = await prefetchFromServer(fhir.baseUrl, service, benchContext(patient, hook), {});
-      const r = await evaluateHook(service, benchRequest(patient, hook, { prefetch: client.prefetch }), deps as never);
+      const request = benchRequest(patient, hook, { prefetch: client.prefetch });
+      // The body's text as a client would send it, so the record keeps it as received.
+      const r = await evaluateHook(service, request, deps as never, undefined, JSON.stringify(request));
       if (r.status !== 200 || !capture.last) throw new Error(`template ${id}: status ${r.status}`);
       templates.push(capture.last);
     }

@@ -15,7 +15,7 @@ import { createHash } from 'node:crypto';
 import pg from 'pg';
 import type { PoolClient } from 'pg';
 import { GENESIS } from './chain.js';
-import { decodeRow, encodeRecord, rowHashMatches, storedAdviceOf, storedHash } from './record-format.js';
+import { compressRecordAsync, decodeRow, rowHashMatches, serialiseRecord, storedAdviceOf, storedHash } from './record-format.js';
 import { PostgresReplayCache, type PostgresReplayCacheOptions } from './postgres-replay-cache.js';
 import { feedbackKey, normaliseOverview, ownerOf, summarize } from './shared.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
@@ -169,7 +169,8 @@ export class PostgresAuditStore implements AuditStore {
   }
 
   async append(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
-    const parts = encodeRecord(rec);
+    // Compressed on zlib's thread pool, before the transaction (and its chain lock) is taken.
+    const parts = await compressRecordAsync(serialiseRecord(rec));
     const blob = (b: Uint8Array | undefined) => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
     return this.tx(async (c) => {
       await c.query('SELECT pg_advisory_xact_lock($1::bigint)', [this.chainLock]);

@@ -1,19 +1,20 @@
 /**
  * How a record becomes a stored row and back (docs/decisions/0006-store-what-was-received.md).
  *
- * Format 1 (Tidemark 0.1.0–0.3.x): the record's JSON text in `record`, snapshot included; hashed by chain.ts.
- * Format 2 (0.4.0, a record that carries its inputs):
+ * Format 1 (Tidemark 0.1.0 to 0.3.0 before format 2): the record's JSON text in `record`, snapshot included; hashed by chain.ts.
+ * Format 2 (0.3.0, a record that carries its inputs):
  * - `outputs`: the record without its snapshot and inputs (cards as sent, advice and findings, gathering outcomes,
  *   timings), JSON, Brotli-compressed;
  * - `inputs`: the inputs as received (request body, FHIR answers, the assessment's clock), JSON, Brotli-compressed;
- * - `record`: a small JSON index of what SQL reads (card indicators, verdicts, total latency, issuer), at the same
+ * - `record`: a small JSON index of what SQL reads (card indicators, verdicts, timings, issuer), at the same
  *   paths as in a format-1 record, so the console's aggregates read both formats alike.
  * Its chain hash is sha256(previous hash ‖ index text ‖ sha256(outputs) ‖ sha256(inputs)), hex digests, over the
  * bytes as stored: a verifier needs sha256 and nothing else, and one chain runs across both formats.
  * Brotli at quality 1 (Node's zlib, RFC 7932): the fastest setting; measured in docs/benchmarks.md.
  */
 import { createHash } from 'node:crypto';
-import { brotliCompressSync, brotliDecompressSync, constants } from 'node:zlib';
+import { promisify } from 'node:util';
+import { brotliCompress, brotliCompressSync, brotliDecompressSync, constants } from 'node:zlib';
 import { chainHashOfText, parseRecordText, recordText, storedHashMatches } from './chain.js';
 import type { AdviceRecord, RecordInputs, StoredAdvice } from './types.js';
 
@@ -39,28 +40,57 @@ export interface StoredRow {
 const BROTLI = { params: { [constants.BROTLI_PARAM_QUALITY]: 1 } };
 
 const compress = (text: string): Uint8Array => brotliCompressSync(Buffer.from(text, 'utf8'), BROTLI);
+const compressAsync = promisify(brotliCompress);
 const decompress = (bytes: Uint8Array): string => brotliDecompressSync(bytes).toString('utf8');
 
-/** The record as stored: format 2 when it carries its inputs, else format 1 (its JSON text). */
-export function encodeRecord(rec: AdviceRecord): StoredParts {
+/**
+ * A record serialised but not yet compressed: the texts of its columns. Made on the service's thread (JSON.stringify
+ * of objects it holds); compressing them (about 0.3 ms for the benchmark's record, docs/benchmarks.md) is left to
+ * whoever writes the row: the SQLite writer thread, or zlib's thread pool for PostgreSQL.
+ */
+export interface SerialisedRecord {
+  format: 1 | 2;
+  text: string;
+  outputsText?: string;
+  inputsText?: string;
+}
+
+/** The record's column texts: format 2 when it carries its inputs, else format 1 (its JSON text). */
+export function serialiseRecord(rec: AdviceRecord): SerialisedRecord {
   const inputs = rec.inputs;
   if (!inputs) return { format: 1, text: recordText(rec) };
   const { snapshot: _snapshot, inputs: _inputs, ...outputs } = rec;
-  return {
-    format: 2,
-    text: indexText(rec),
-    outputs: compress(recordText(outputs as AdviceRecord)),
-    inputs: compress(JSON.stringify(inputs)),
-  };
+  return { format: 2, text: indexText(rec), outputsText: recordText(outputs as AdviceRecord), inputsText: JSON.stringify(inputs) };
 }
 
-/** What SQL reads of a record, at the paths of a format-1 record: cards' indicators, verdicts, latency, issuer. */
+/** The stored columns of a serialised record, compressed on this thread. */
+export function compressRecord(s: SerialisedRecord): StoredParts {
+  if (s.format === 1 || s.outputsText === undefined || s.inputsText === undefined) return { format: 1, text: s.text };
+  return { format: 2, text: s.text, outputs: compress(s.outputsText), inputs: compress(s.inputsText) };
+}
+
+/** The same, compressed on zlib's thread pool (the PostgreSQL store, whose appends run on the event loop). */
+export async function compressRecordAsync(s: SerialisedRecord): Promise<StoredParts> {
+  if (s.format === 1 || s.outputsText === undefined || s.inputsText === undefined) return { format: 1, text: s.text };
+  const [outputs, inputs] = await Promise.all([
+    compressAsync(Buffer.from(s.outputsText), BROTLI),
+    compressAsync(Buffer.from(s.inputsText), BROTLI),
+  ]);
+  return { format: 2, text: s.text, outputs, inputs };
+}
+
+/** The record as stored, all on this thread: format 2 when it carries its inputs, else format 1 (its JSON text). */
+export function encodeRecord(rec: AdviceRecord): StoredParts {
+  return compressRecord(serialiseRecord(rec));
+}
+
+/** What SQL reads of a record, at the paths of a format-1 record: cards' indicators, verdicts, timings, issuer. */
 export function indexText(rec: AdviceRecord): string {
   return JSON.stringify({
     format: FORMAT_RECEIVED,
     cards: rec.cards.map((c) => ({ indicator: c.indicator })),
     ...(rec.advice ? { advice: { responsiveness: verdict(rec.advice.responsiveness), tolerance: verdict(rec.advice.tolerance) } } : {}),
-    timings: { totalMs: rec.timings.totalMs },
+    timings: rec.timings,
     ...(rec.client?.issuer !== undefined ? { client: { issuer: rec.client.issuer } } : {}),
   });
 }

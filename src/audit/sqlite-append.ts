@@ -5,7 +5,7 @@
  */
 import Database from 'better-sqlite3';
 import { GENESIS } from './chain.js';
-import { encodeRecord, storedHash, type StoredParts } from './record-format.js';
+import { compressRecord, serialiseRecord, storedHash, type SerialisedRecord, type StoredParts } from './record-format.js';
 import type { AdviceRecord } from './types.js';
 
 /** WAL journal and synchronous=FULL: a committed record survives a process kill or power loss. */
@@ -32,16 +32,12 @@ export type RecordMeta = Pick<
 
 export interface PreparedRecord {
   meta: RecordMeta;
-  /** The record as its stored columns (src/audit/record-format.ts); the chain hash covers exactly these bytes. */
-  parts: StoredParts;
+  /** The record's column texts (src/audit/record-format.ts), compressed by the appender; the chain hash covers the bytes stored. */
+  serialised: SerialisedRecord;
 }
 
-/** About how many bytes a prepared record writes (for pacing checkpoints). */
-export function preparedBytes(p: PreparedRecord): number {
-  return p.parts.text.length + (p.parts.outputs?.byteLength ?? 0) + (p.parts.inputs?.byteLength ?? 0);
-}
-
-export type AppendResult = { ok: true; seq: number; hash: string } | { ok: false; error: unknown };
+/** `bytes`: about how many bytes the row holds (text in characters), for pacing checkpoints. */
+export type AppendResult = { ok: true; seq: number; hash: string; bytes: number } | { ok: false; error: unknown };
 
 /** A stored blob as better-sqlite3 binds it (a Buffer; a Uint8Array that crossed from another thread is wrapped, not copied). */
 const bytes = (b: Uint8Array | undefined): Buffer | null => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
@@ -66,20 +62,21 @@ function metaOf(r: AdviceRecord): RecordMeta {
 }
 
 /**
- * A record made ready to append, on the caller's thread: its columns and its stored bytes (text, or compressed
- * outputs and inputs). Serialising here costs this thread about what a structured clone of the record object would
- * (docs/benchmarks.md) and spares the writer thread reading that clone back: it hashes and binds the bytes as they
- * are, and a string or a buffer crosses to the writer in one copy.
+ * A record made ready to append, on the caller's thread: its columns and its column texts. Serialising here costs
+ * this thread about what a structured clone of the record object would (docs/benchmarks.md) and spares the writer
+ * thread reading that clone back; a string crosses to the writer in one copy. The writer compresses the texts (off
+ * the event loop), hashes the bytes and binds them.
  */
 export function prepareRecord(rec: AdviceRecord): PreparedRecord {
-  return { meta: metaOf(rec), parts: encodeRecord(rec) };
+  return { meta: metaOf(rec), serialised: serialiseRecord(rec) };
 }
 
 /**
  * The group commit: one IMMEDIATE transaction (one WAL fsync under synchronous=FULL) for a batch of records, each
  * chained to the one before it. Each record runs in a SAVEPOINT of its own (a transaction function called inside
  * a transaction), so one that is refused (duplicate id, reused card uuid) leaves nothing behind and does not undo
- * the others. Throws when BEGIN or COMMIT fails: then nothing of the batch is stored.
+ * the others. Throws when BEGIN or COMMIT fails: then nothing of the batch is stored. The texts are compressed
+ * before BEGIN, so the write lock is held only for the inserts and the commit.
  */
 export function createBatchAppender(db: Database.Database): (batch: readonly PreparedRecord[]) => AppendResult[] {
   const last = db.prepare('SELECT hash FROM advice ORDER BY seq DESC LIMIT 1');
@@ -89,7 +86,7 @@ export function createBatchAppender(db: Database.Database): (batch: readonly Pre
      VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
   );
   const card = db.prepare('INSERT INTO advice_card (card_uuid, advice_id, card_kind, service) VALUES (?, ?, ?, ?)');
-  const one = db.transaction(({ meta: r, parts }: PreparedRecord, prev: string) => {
+  const one = db.transaction(({ meta: r }: PreparedRecord, parts: StoredParts, prev: string) => {
     const hash = storedHash(prev, parts);
     const info = insert.run(
       r.id,
@@ -110,23 +107,33 @@ export function createBatchAppender(db: Database.Database): (batch: readonly Pre
       bytes(parts.inputs),
     );
     for (const [uuid, kind] of Object.entries(r.cardKinds)) card.run(uuid, r.id, kind, r.service);
-    return { seq: Number(info.lastInsertRowid), hash };
+    const size = parts.text.length + (parts.outputs?.byteLength ?? 0) + (parts.inputs?.byteLength ?? 0);
+    return { seq: Number(info.lastInsertRowid), hash, bytes: size };
   });
-  const batchTx = db.transaction((batch: readonly PreparedRecord[], done: AppendResult[]) => {
+  const batchTx = db.transaction((batch: readonly PreparedRecord[], parts: ReadonlyArray<StoredParts | Error>, done: AppendResult[]) => {
     let prev = (last.get() as { hash: string } | undefined)?.hash ?? GENESIS;
-    for (const p of batch) {
+    batch.forEach((p, i) => {
+      const stored = parts[i];
+      if (!stored || stored instanceof Error) return void done.push({ ok: false, error: stored ?? new Error('audit append lost') });
       try {
-        const r = one(p, prev);
+        const r = one(p, stored, prev);
         prev = r.hash;
         done.push({ ok: true, ...r });
       } catch (e) {
         done.push({ ok: false, error: e });
       }
-    }
+    });
   });
   return (batch) => {
+    const parts = batch.map((p) => {
+      try {
+        return compressRecord(p.serialised);
+      } catch (e) {
+        return e instanceof Error ? e : new Error(String(e));
+      }
+    });
     const done: AppendResult[] = [];
-    batchTx.immediate(batch, done);
+    batchTx.immediate(batch, parts, done);
     return done;
   };
 }

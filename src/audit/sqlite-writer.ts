@@ -10,7 +10,7 @@
  * Started through sqlite-writer.mjs (which makes TypeScript loadable in a worker).
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { createBatchAppender, MAX_BATCH, openAuditDb, preparedBytes, type PreparedRecord } from './sqlite-append.js';
+import { createBatchAppender, MAX_BATCH, openAuditDb, type PreparedRecord } from './sqlite-append.js';
 
 export interface WriterError {
   message: string;
@@ -93,7 +93,7 @@ function flush(): void {
           : { id: p.id, ok: false as const, error: errorOf(r ? r.error : new Error('audit append lost')) };
       }),
     });
-    for (const p of batch) sinceCheckpoint += preparedBytes(p.prepared); // text in characters: close enough to bytes for pacing checkpoints
+    for (const r of results) if (r.ok) sinceCheckpoint += r.bytes; // text in characters: close enough to bytes for pacing checkpoints
   }
   checkpointIfDue();
 }

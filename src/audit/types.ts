@@ -44,13 +44,13 @@ interface RecordBase {
   timings: { totalMs: number; gatherMs: number; fhirWaitMs: number; assessMs: number };
   /** Who called: the verified issuer (never the token). */
   client?: { issuer?: string; tenant?: string; jti?: string };
-  /** The inputs as received; a record stored with them (format 2) keeps no snapshot. Absent in records before 0.4.0. */
+  /** The inputs as received; a record stored with them (format 2) keeps no snapshot. Absent in records stored before format 2. */
   inputs?: RecordInputs;
 }
 
 /**
  * A call that was answered with cards (200): the advice the rules gave and what they saw, as the snapshot (in a
- * record as made, and as stored before 0.4.0) or as the inputs it is rebuilt from (a stored record of format 2).
+ * record as made, and as stored before format 2) or as the inputs it is rebuilt from (a stored record of format 2).
  */
 export interface AnsweredRecord extends RecordBase {
   outcome: 'answered';

@@ -88,7 +88,7 @@ export const MIGRATIONS: readonly Migration[] = [
   },
   {
     version: 3,
-    note: 'Tidemark 0.4.0: advice.format, advice.outputs, advice.inputs (a record stored as received, docs/decisions/0006-store-what-was-received.md)',
+    note: 'Tidemark 0.3.0: advice.format, advice.outputs, advice.inputs (a record stored as received, docs/decisions/0006-store-what-was-received.md)',
     sqlite: (db) => {
       if (!db.hasColumn('advice', 'format')) db.run('ALTER TABLE advice ADD COLUMN format INTEGER');
       if (!db.hasColumn('advice', 'outputs')) db.run('ALTER TABLE advice ADD COLUMN outputs BLOB');
