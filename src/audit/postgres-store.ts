@@ -15,7 +15,15 @@ import { createHash } from 'node:crypto';
 import pg from 'pg';
 import type { PoolClient } from 'pg';
 import { GENESIS } from './chain.js';
-import { compressRecordAsync, decodeRow, rowHashMatches, serialiseRecord, storedAdviceOf, storedHash } from './record-format.js';
+import {
+  compressRecordAsync,
+  decodeRow,
+  rowHashMatches,
+  serialiseRecord,
+  storedAdviceOf,
+  storedHash,
+  type StoredParts,
+} from './record-format.js';
 import { PostgresReplayCache, type PostgresReplayCacheOptions } from './postgres-replay-cache.js';
 import { feedbackKey, normaliseOverview, ownerOf, summarize } from './shared.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
@@ -168,50 +176,126 @@ export class PostgresAuditStore implements AuditStore {
     return Number(r.rows[0]?.version ?? 0);
   }
 
+  /**
+   * Group commit, as the SQLite store does it: appends that arrive while this replica's previous batch is being
+   * written go together into the next transaction, which takes the chain lock once, reads the last hash once and
+   * commits once (one WAL flush). Each record runs in a SAVEPOINT of its own, so one that is refused (duplicate id,
+   * reused card uuid) leaves nothing behind and does not undo the others. Every caller's promise settles only after
+   * the transaction holding its record has committed (decision 0002). The texts are compressed on zlib's thread
+   * pool before the record joins the queue, so no lock is held while compressing.
+   */
   async append(rec: AdviceRecord): Promise<{ seq: number; hash: string }> {
-    // Compressed on zlib's thread pool, before the transaction (and its chain lock) is taken.
+    if (this.closed) throw new Error('the audit store is closed');
     const parts = await compressRecordAsync(serialiseRecord(rec));
+    return new Promise((resolve, reject) => {
+      this.queue.push({ rec, parts, resolve, reject });
+      if (!this.flushing) void this.flush();
+    });
+  }
+
+  /** At most this many records per group commit (as the SQLite store). */
+  private static readonly MAX_BATCH = 64;
+  private readonly queue: Array<{
+    rec: AdviceRecord;
+    parts: StoredParts;
+    resolve: (v: { seq: number; hash: string }) => void;
+    reject: (e: unknown) => void;
+  }> = [];
+  private flushing: Promise<void> | undefined;
+  private commits = 0;
+  private committed = 0;
+
+  /** Group commits so far and the records they committed (this replica's; tidemark_audit_commits at /metrics). */
+  commitStats(): { commits: number; records: number } {
+    return { commits: this.commits, records: this.committed };
+  }
+
+  /** Starts writing after the current turn, so that appends made in one turn of the event loop go in one batch. */
+  private flush(): Promise<void> {
+    this.flushing = (async () => {
+      await new Promise<void>((r) => setImmediate(r));
+      while (this.queue.length) {
+        const batch = this.queue.splice(0, PostgresAuditStore.MAX_BATCH);
+        let results: Array<{ ok: true; seq: number; hash: string } | { ok: false; error: unknown }>;
+        try {
+          results = await this.tx((c) => this.appendBatch(c, batch));
+        } catch (e) {
+          // BEGIN, the lock or COMMIT failed: nothing of this batch was stored.
+          for (const b of batch) b.reject(e);
+          continue;
+        }
+        const ok = results.filter((r) => r.ok).length;
+        if (ok) {
+          this.commits += 1;
+          this.committed += ok;
+        }
+        batch.forEach((b, i) => {
+          const r = results[i];
+          if (r?.ok) b.resolve({ seq: r.seq, hash: r.hash });
+          else b.reject(r ? r.error : new Error('audit append lost'));
+        });
+      }
+    })().finally(() => {
+      this.flushing = undefined;
+    });
+    return this.flushing;
+  }
+
+  private async appendBatch(
+    c: PoolClient,
+    batch: ReadonlyArray<{ rec: AdviceRecord; parts: StoredParts }>,
+  ): Promise<Array<{ ok: true; seq: number; hash: string } | { ok: false; error: unknown }>> {
     const blob = (b: Uint8Array | undefined) => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
-    return this.tx(async (c) => {
-      await c.query('SELECT pg_advisory_xact_lock($1::bigint)', [this.chainLock]);
-      // A new statement, so its snapshot is taken after the lock: it sees the last committed append.
-      const last = await c.query<{ hash: string }>(`SELECT hash FROM ${this.s}.advice ORDER BY seq DESC LIMIT 1`);
-      const prev = last.rows[0]?.hash ?? GENESIS;
+    await c.query('SELECT pg_advisory_xact_lock($1::bigint)', [this.chainLock]);
+    // A new statement, so its snapshot is taken after the lock: it sees the last committed append.
+    const last = await c.query<{ hash: string }>(`SELECT hash FROM ${this.s}.advice ORDER BY seq DESC LIMIT 1`);
+    let prev = last.rows[0]?.hash ?? GENESIS;
+    const out: Array<{ ok: true; seq: number; hash: string } | { ok: false; error: unknown }> = [];
+    for (const { rec, parts } of batch) {
       // The hash covers exactly the bytes stored (src/audit/record-format.ts).
       const hash = storedHash(prev, parts);
-      const ins = await c.query<{ seq: string }>(
-        `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer,
-           format, outputs, inputs)
-         VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16) RETURNING seq`,
-        [
-          rec.id,
-          rec.recordedAt,
-          rec.service,
-          rec.hook,
-          rec.hookInstance,
-          rec.patientId ?? null,
-          rec.encounterId ?? null,
-          rec.outcome,
-          rec.rulesVersion,
-          parts.text,
-          prev,
-          hash,
-          rec.client?.issuer ?? null,
-          parts.format === 1 ? null : parts.format,
-          blob(parts.outputs),
-          blob(parts.inputs),
-        ],
-      );
-      for (const [uuid, kind] of Object.entries(rec.cardKinds)) {
-        await c.query(`INSERT INTO ${this.s}.advice_card (card_uuid, advice_id, card_kind, service) VALUES ($1, $2, $3, $4)`, [
-          uuid,
-          rec.id,
-          kind,
-          rec.service,
-        ]);
+      await c.query('SAVEPOINT one_record');
+      try {
+        const ins = await c.query<{ seq: string }>(
+          `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer,
+             format, outputs, inputs)
+           VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16) RETURNING seq`,
+          [
+            rec.id,
+            rec.recordedAt,
+            rec.service,
+            rec.hook,
+            rec.hookInstance,
+            rec.patientId ?? null,
+            rec.encounterId ?? null,
+            rec.outcome,
+            rec.rulesVersion,
+            parts.text,
+            prev,
+            hash,
+            rec.client?.issuer ?? null,
+            parts.format === 1 ? null : parts.format,
+            blob(parts.outputs),
+            blob(parts.inputs),
+          ],
+        );
+        for (const [uuid, kind] of Object.entries(rec.cardKinds)) {
+          await c.query(`INSERT INTO ${this.s}.advice_card (card_uuid, advice_id, card_kind, service) VALUES ($1, $2, $3, $4)`, [
+            uuid,
+            rec.id,
+            kind,
+            rec.service,
+          ]);
+        }
+        await c.query('RELEASE SAVEPOINT one_record');
+        prev = hash;
+        out.push({ ok: true, seq: Number(ins.rows[0]?.seq), hash });
+      } catch (e) {
+        await c.query('ROLLBACK TO SAVEPOINT one_record');
+        out.push({ ok: false, error: e });
       }
-      return { seq: Number(ins.rows[0]?.seq), hash };
-    });
+    }
+    return out;
   }
 
   async get(id: string): Promise<StoredAdvice | undefined> {
@@ -409,6 +493,8 @@ export class PostgresAuditStore implements AuditStore {
   async close(): Promise<void> {
     if (this.closed) return;
     this.closed = true;
+    // Appends already taken are committed (or refused) before the pool ends.
+    await this.flushing;
     await this.pool.end();
   }
 }
