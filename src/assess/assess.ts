@@ -20,7 +20,7 @@ import { assessNeed } from './need/index.js';
 import { describeOrder } from './order/index.js';
 import { reassessWithDynamicTest, runResponsiveness, type ResponsivenessRun } from './responsiveness/index.js';
 import type { Thresholds } from './thresholds.js';
-import { assessTolerance } from './tolerance/index.js';
+import { runToleranceRules, toleranceOfRun, type ToleranceRun } from './tolerance/index.js';
 import type { Advice } from './types.js';
 import { computeWhatIf } from './what-if/index.js';
 
@@ -34,7 +34,8 @@ export function assess(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersio
   const advice = assessOnce(s, now, t, rulesVersion, reuse);
   if (advice.responsiveness && opts.whatIf !== false) {
     const w = guarded('what-if', advice.ruleErrors, () => {
-      const events = evidenceEvents(s, now, t.windows.fluidEventMinMl);
+      // The events of this run when they were read (else read again, and the what-if fails as that step did).
+      const events = reuse.events ?? evidenceEvents(s, now, t.windows.fluidEventMinMl);
       return computeWhatIf({
         ctx: { snapshot: s, now, t: t.responsiveness, w: t.windows, events },
         advice,
@@ -57,8 +58,10 @@ interface Reuse {
   events?: ReturnType<typeof evidenceEvents>;
   need?: { value: ReturnType<typeof assessNeed> | undefined };
   responsiveness?: ResponsivenessRun;
+  /** The tolerance rules' run (it does not depend on the numbers counted once). */
+  toleranceRules?: ToleranceRun;
   /** Tolerance by the numbers counted once (their sorted list). */
-  tolerance: Map<string, ReturnType<typeof assessTolerance> | undefined>;
+  tolerance: Map<string, ReturnType<typeof toleranceOfRun> | undefined>;
   orderFindings?: Finding[];
 }
 
@@ -125,7 +128,7 @@ function assessOnce(s: PatientSnapshot, now: Date, t: Thresholds, rulesVersion: 
   const countedKey = [...counted].sort().join('|');
   const tv = reuse.tolerance.has(countedKey)
     ? reuse.tolerance.get(countedKey)
-    : guarded('tolerance', ruleErrors, () => assessTolerance(ctx(t.tolerance), counted));
+    : guarded('tolerance', ruleErrors, () => toleranceOfRun((reuse.toleranceRules ??= runToleranceRules(ctx(t.tolerance))), tol, counted));
   reuse.tolerance.set(countedKey, tv);
   if (tv) {
     findings.push(...tv.findings);
