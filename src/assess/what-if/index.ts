@@ -10,7 +10,7 @@ import type { DynamicTestResult, PatientSnapshot } from '../../snapshot/types.js
 import type { RuleContext } from '../responsiveness/context.js';
 import type { Advice } from '../types.js';
 import { decisiveTest, preferenceOrder } from './decisive.js';
-import { feasibility } from './feasibility.js';
+import { feasibility, sharedChecks } from './feasibility.js';
 import { hypotheticalResult } from './hypothetical.js';
 import type { WhatIf, WhatIfOutcome, WhatIfRow } from './types.js';
 
@@ -31,8 +31,9 @@ export interface WhatIfInput {
 
 export function computeWhatIf({ ctx, advice, rerun }: WhatIfInput): WhatIf {
   const current = advice.responsiveness;
+  const shared = sharedChecks(ctx);
   const rows: WhatIfRow[] = preferenceOrder(current?.nextTest).map((test) => {
-    const f = feasibility(test, ctx, advice.findings);
+    const f = feasibility(test, ctx, advice.findings, shared);
     if (f.notFeasible.length || !f.measured) return { test, feasible: false, notFeasible: f.notFeasible, outcomes: [] };
     const measured = f.measured;
     let source: string | undefined;
