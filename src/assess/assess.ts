@@ -6,7 +6,8 @@
  *   order/           the reading of each selected fluid order;
  *   advice/          the matrix that joins them, in codes;
  *   what-if/         what a positive or negative result of each feasible test would do to the verdict and advice
- *                    (the engine re-run on a copy of the snapshot; the re-runs compute no what-if of their own).
+ *                    (the engine re-run on a copy of the snapshot with the result added, re-doing only what that
+ *                    result can change; the re-runs compute no what-if of their own).
  * All on the common rule core (common/). Failures are isolated: a group that throws is recorded in
  * ruleErrors and the other findings still count.
  */
