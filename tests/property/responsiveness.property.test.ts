@@ -7,12 +7,22 @@
  *     pointing the other way: one side of a conflict) or confounded a finding (a vasoactive change during a
  *     bolus). "A piece of evidence" is all data of one marker (e.g. all CVP readings, all PLR tests); see
  *     docs/clinical-logic/responsiveness.md, "Properties".
- *     Stronger, per single item: removing an item that no finding cites never changes any finding or the verdict.
+ *     Stronger, per single item: removing an item that no finding cites never changes any finding or the verdict;
+ *  4. a dynamic test of one kind, added to the snapshot, changes the output of no rule but that kind's own
+ *     (DYNAMIC_TEST_RULES), nor the test offered; so the what-if's partial re-run (reassessWithDynamicTest) gives
+ *     exactly what a full run gives.
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { DEFAULT_WINDOWS as W } from '../../src/assess/common/windows.js';
-import { assessResponsiveness, responsivenessThresholdsSchema } from '../../src/assess/responsiveness/index.js';
+import {
+  assessResponsiveness,
+  DYNAMIC_TEST_RULES,
+  reassessWithDynamicTest,
+  RESPONSIVENESS_RULES,
+  responsivenessThresholdsSchema,
+  runResponsiveness,
+} from '../../src/assess/responsiveness/index.js';
 import { contextOf } from '../helpers/rule-context.js';
 import type { Finding, Responsiveness } from '../../src/assess/types.js';
 import {
@@ -491,5 +501,32 @@ describe('property: removing evidence never makes the verdict more certain', () 
       { numRuns: 300, seed: 42 },
     );
     expect([...seen].sort()).toEqual(['indeterminate', 'likely', 'unlikely']);
+  });
+});
+
+// ── 4. One added dynamic test ──────────────────────────────────────────────────────────────────────────────
+describe('property: a dynamic test of one kind', () => {
+  it('added to the snapshot, changes only its own rule’s output; the partial re-run equals a full run', () => {
+    let ownChanged = 0;
+    fc.assert(
+      fc.property(rawArb, testArb, (raw, extra) => {
+        const s = build(raw);
+        // The added result on its own references (tag 'x'), so that the other items keep theirs.
+        const added = build({ sex: raw.sex, measurements: [], coded: [], tests: [extra], fluids: [], vasos: [] }, 'x').dynamicTests[0]!;
+        const base = runResponsiveness(contextOf(s, NOW, T));
+        const ctx = contextOf({ ...s, dynamicTests: [added, ...s.dynamicTests] }, NOW, T);
+        const full = runResponsiveness(ctx);
+        expect(reassessWithDynamicTest(base, ctx, added.kind)).toEqual(full);
+        expect(full.nextTest).toBe(base.nextTest);
+        const own = DYNAMIC_TEST_RULES[added.kind];
+        RESPONSIVENESS_RULES.forEach((rule, i) => {
+          if (rule !== own) expect(full.byRule[i], rule.id).toEqual(base.byRule[i]);
+          else if (JSON.stringify(full.byRule[i]) !== JSON.stringify(base.byRule[i])) ownChanged += 1;
+        });
+      }),
+      { numRuns: RUNS },
+    );
+    // The added result does change its own rule's finding (else the property would compare nothing that varies).
+    expect(ownChanged).toBeGreaterThan(RUNS / 10);
   });
 });

@@ -4,8 +4,9 @@
  *  1. assess() never changes the snapshot it is given;
  *  2. every outcome agrees with an independent re-run: the test's hypothetical result, rebuilt here from the outcome's
  *     assumed change (on a baseline of our own: only the change is judged), put into a copy of the snapshot and
- *     assessed without a what-if, gives the outcome's verdict and action; so an outcome with `changes: false` really
- *     has the verdict and action of the current advice, and one with `changes: true` really differs;
+ *     assessed without a what-if, gives the outcome's verdict, confidence, action and headline; so an outcome with
+ *     `changes: false` really has the verdict and action of the current advice, and one with `changes: true` really
+ *     differs;
  *  3. the hypothetical is judged as meant: a positive result points to responsiveness, a negative one against;
  *  4. decisive is the first feasible row (in the engine's order, the offered test first) with a change, and is absent
  *     when the current verdict is of high confidence;
@@ -155,7 +156,9 @@ describe('property: what-if', () => {
             feasibleSeen += 1;
             const again = assess({ ...s, dynamicTests: [rebuilt(r.test, o, now), ...s.dynamicTests] }, now, T, 'prop', { whatIf: false });
             expect(o.responsiveness).toBe(again.responsiveness?.value);
+            expect(o.confidence).toBe(again.responsiveness?.confidence);
             expect(o.action).toBe(again.recommendation?.action);
+            expect(o.headline).toBe(again.recommendation?.headline);
             const same =
               again.responsiveness?.value === a.responsiveness.value && again.recommendation?.action === a.recommendation?.action;
             expect(o.changes).toBe(!same);

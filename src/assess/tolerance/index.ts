@@ -74,9 +74,19 @@ export interface ToleranceAssessment {
  * tolerance findings become context (a number counts once, docs/clinical-logic).
  */
 export function assessTolerance(ctx: RuleContext<ToleranceThresholds>, counted: readonly SharedNumber[] = []): ToleranceAssessment {
-  const run = runRules(TOLERANCE_RULES, ctx);
+  return toleranceOfRun(runToleranceRules(ctx), ctx.t, counted);
+}
+
+/** The tolerance rules' findings and errors, before a number is counted once (they do not depend on `counted`). */
+export type ToleranceRun = ReturnType<typeof runToleranceRules>;
+export function runToleranceRules(ctx: RuleContext<ToleranceThresholds>): { findings: ToleranceFinding[]; ruleErrors: RuleError[] } {
+  return runRules(TOLERANCE_RULES, ctx);
+}
+
+/** assessTolerance from a run of its rules: the numbers in `counted` counted once, then the verdict. */
+export function toleranceOfRun(run: ToleranceRun, t: ToleranceThresholds, counted: readonly SharedNumber[] = []): ToleranceAssessment {
   const findings = countOnce(run.findings, counted);
-  return { findings, verdict: toleranceVerdict(findings, ctx.t), coverage: toleranceCoverage(findings), ruleErrors: run.ruleErrors };
+  return { findings, verdict: toleranceVerdict(findings, t), coverage: toleranceCoverage(findings), ruleErrors: run.ruleErrors };
 }
 
 export { toleranceThresholdsSchema, DEFAULT_TOLERANCE_THRESHOLDS, type ToleranceThresholds } from './thresholds.js';

@@ -43,10 +43,33 @@ function alreadyDone(test: NextTestKind, ctx: RuleContext, findings: readonly Fi
   return findings.some((f) => f.topic === 'responsiveness' && f.ruleId === ruleId && f.status === 'assessed' && f.tier === 'dynamic');
 }
 
-export function feasibility(test: NextTestKind, ctx: RuleContext, findings: readonly Finding[]): Feasibility {
+/**
+ * The checks more than one test makes, each made once for all four on first use (so in the same order, and failing
+ * at the same point, as when each test made its own).
+ */
+export interface SharedChecks {
+  flow: () => DynamicMeasured | undefined;
+  ventilation: () => readonly NotFeasible[];
+}
+
+export function sharedChecks(ctx: RuleContext): SharedChecks {
+  let flow: { kind: DynamicMeasured | undefined } | undefined;
+  let ventilation: NotFeasible[] | undefined;
+  return {
+    flow: () => (flow ??= { kind: flowMonitorKind(ctx) }).kind,
+    ventilation: () => (ventilation ??= ventilationReasons(ctx)),
+  };
+}
+
+export function feasibility(
+  test: NextTestKind,
+  ctx: RuleContext,
+  findings: readonly Finding[],
+  shared: SharedChecks = sharedChecks(ctx),
+): Feasibility {
   const reasons: NotFeasible[] = [];
   let measured: DynamicMeasured | undefined;
-  const flow = flowMonitorKind(ctx);
+  const flow = shared.flow();
   switch (test) {
     case 'passive-leg-raise':
       if (checkIntraAbdominalPressure(ctx).state === 'failed') reasons.push('raised-abdominal-pressure');
@@ -57,11 +80,11 @@ export function feasibility(test: NextTestKind, ctx: RuleContext, findings: read
       measured = 'vti';
       break;
     case 'end-expiratory-occlusion':
-      reasons.push(...ventilationReasons(ctx));
+      reasons.push(...shared.ventilation());
       measured = flow ?? 'vti';
       break;
     case 'tidal-volume-challenge': {
-      reasons.push(...ventilationReasons(ctx));
+      reasons.push(...shared.ventilation());
       const index = currentHeartLungIndex(ctx);
       if (index === undefined) reasons.push('no-arterial-line');
       if (checkRhythm(ctx).state !== 'met') reasons.push('no-sinus-rhythm');

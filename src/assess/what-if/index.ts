@@ -6,11 +6,11 @@
  * it is passed in (`rerun`) so that this folder does not import assess.ts, and the re-run never computes a what-if
  * of its own. Pure: no I/O, no clock; the input snapshot is never changed.
  */
-import type { PatientSnapshot } from '../../snapshot/types.js';
+import type { DynamicTestResult, PatientSnapshot } from '../../snapshot/types.js';
 import type { RuleContext } from '../responsiveness/context.js';
 import type { Advice } from '../types.js';
 import { decisiveTest, preferenceOrder } from './decisive.js';
-import { feasibility } from './feasibility.js';
+import { feasibility, sharedChecks } from './feasibility.js';
 import { hypotheticalResult } from './hypothetical.js';
 import type { WhatIf, WhatIfOutcome, WhatIfRow } from './types.js';
 
@@ -22,14 +22,18 @@ export interface WhatIfInput {
   ctx: RuleContext;
   /** The current advice, without a what-if. */
   advice: Advice;
-  /** The engine without the what-if step, on another snapshot at the same `now` and thresholds. */
-  rerun: (s: PatientSnapshot) => Advice;
+  /**
+   * The engine without the what-if step, at the same `now` and thresholds, on `s`: the current snapshot with the
+   * dynamic test result `added` put in and nothing else changed.
+   */
+  rerun: (s: PatientSnapshot, added: DynamicTestResult) => Advice;
 }
 
 export function computeWhatIf({ ctx, advice, rerun }: WhatIfInput): WhatIf {
   const current = advice.responsiveness;
+  const shared = sharedChecks(ctx);
   const rows: WhatIfRow[] = preferenceOrder(current?.nextTest).map((test) => {
-    const f = feasibility(test, ctx, advice.findings);
+    const f = feasibility(test, ctx, advice.findings, shared);
     if (f.notFeasible.length || !f.measured) return { test, feasible: false, notFeasible: f.notFeasible, outcomes: [] };
     const measured = f.measured;
     let source: string | undefined;
@@ -37,7 +41,7 @@ export function computeWhatIf({ ctx, advice, rerun }: WhatIfInput): WhatIf {
       const h = hypotheticalResult(ctx, test, measured, result);
       source = h.source;
       const s: PatientSnapshot = { ...ctx.snapshot, dynamicTests: [h.result, ...ctx.snapshot.dynamicTests] };
-      const after = rerun(s);
+      const after = rerun(s, h.result);
       const r = after.responsiveness;
       if (!r) throw new Error(`the re-run with a hypothetical ${test} gave no responsiveness verdict`);
       const rec = after.recommendation;
