@@ -7,7 +7,7 @@ export type ChildMessage =
   /** Memory just after a full garbage collection of the main thread's heap (ran: false when gc is not exposed). */
   | { type: 'collected'; ran: boolean; rss: number; heapUsed: number }
   /** bench/pg-append-child.ts: appends made and the time each took, ms. */
-  | { type: 'appended'; count: number; failed: number; latenciesMs: number[]; seconds: number }
+  | { type: 'appended'; count: number; failed: number; latenciesMs: number[]; seconds: number; commits: number; committed: number }
   | { type: 'error'; message: string };
 
 export type ParentMessage =

@@ -42,8 +42,18 @@ async function run(tpl: AdviceRecord, seconds: number, concurrency: number): Pro
       }
     }
   };
+  const before = store.commitStats();
   await Promise.all(Array.from({ length: concurrency }, worker));
-  send({ type: 'appended', count: latenciesMs.length, failed, latenciesMs, seconds: (performance.now() - started) / 1000 });
+  const after = store.commitStats();
+  send({
+    type: 'appended',
+    count: latenciesMs.length,
+    failed,
+    latenciesMs,
+    seconds: (performance.now() - started) / 1000,
+    commits: after.commits - before.commits,
+    committed: after.records - before.records,
+  });
 }
 
 process.on('message', (m: ParentMessage) => {
