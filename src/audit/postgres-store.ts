@@ -204,6 +204,8 @@ export class PostgresAuditStore implements AuditStore {
   private flushing: Promise<void> | undefined;
   private commits = 0;
   private committed = 0;
+  /** Batches whose one-statement insert was refused and that were appended record by record instead. */
+  batchesRedone = 0;
 
   /** Group commits so far and the records they committed (this replica's; tidemark_audit_commits at /metrics). */
   commitStats(): { commits: number; records: number } {
@@ -241,61 +243,118 @@ export class PostgresAuditStore implements AuditStore {
     return this.flushing;
   }
 
+  /**
+   * One batch under the chain lock. First all of it in one statement per table (arrays through unnest, rows
+   * inserted in the batch's order, so `seq` order is chain order), inside a savepoint; if that is refused (a
+   * duplicate id, a reused card uuid), the savepoint is rolled back and the records go one by one, each in a savepoint
+   * of its own, so only the refused ones are left out and the chain links the rest.
+   */
   private async appendBatch(
     c: PoolClient,
     batch: ReadonlyArray<{ rec: AdviceRecord; parts: StoredParts }>,
   ): Promise<Array<{ ok: true; seq: number; hash: string } | { ok: false; error: unknown }>> {
-    const blob = (b: Uint8Array | undefined) => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
     await c.query('SELECT pg_advisory_xact_lock($1::bigint)', [this.chainLock]);
     // A new statement, so its snapshot is taken after the lock: it sees the last committed append.
     const last = await c.query<{ hash: string }>(`SELECT hash FROM ${this.s}.advice ORDER BY seq DESC LIMIT 1`);
-    let prev = last.rows[0]?.hash ?? GENESIS;
+    const first = last.rows[0]?.hash ?? GENESIS;
+    if (batch.length > 1) {
+      await c.query('SAVEPOINT whole_batch');
+      try {
+        const out = await this.insertRows(c, batch, first);
+        await c.query('RELEASE SAVEPOINT whole_batch');
+        return out;
+      } catch {
+        await c.query('ROLLBACK TO SAVEPOINT whole_batch');
+        this.batchesRedone += 1;
+      }
+    }
+    let prev = first;
     const out: Array<{ ok: true; seq: number; hash: string } | { ok: false; error: unknown }> = [];
-    for (const { rec, parts } of batch) {
-      // The hash covers exactly the bytes stored (src/audit/record-format.ts).
-      const hash = storedHash(prev, parts);
+    for (const one of batch) {
       await c.query('SAVEPOINT one_record');
       try {
-        const ins = await c.query<{ seq: string }>(
-          `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer,
-             format, outputs, inputs)
-           VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16) RETURNING seq`,
-          [
-            rec.id,
-            rec.recordedAt,
-            rec.service,
-            rec.hook,
-            rec.hookInstance,
-            rec.patientId ?? null,
-            rec.encounterId ?? null,
-            rec.outcome,
-            rec.rulesVersion,
-            parts.text,
-            prev,
-            hash,
-            rec.client?.issuer ?? null,
-            parts.format === 1 ? null : parts.format,
-            blob(parts.outputs),
-            blob(parts.inputs),
-          ],
-        );
-        for (const [uuid, kind] of Object.entries(rec.cardKinds)) {
-          await c.query(`INSERT INTO ${this.s}.advice_card (card_uuid, advice_id, card_kind, service) VALUES ($1, $2, $3, $4)`, [
-            uuid,
-            rec.id,
-            kind,
-            rec.service,
-          ]);
-        }
+        const [r] = await this.insertRows(c, [one], prev);
         await c.query('RELEASE SAVEPOINT one_record');
-        prev = hash;
-        out.push({ ok: true, seq: Number(ins.rows[0]?.seq), hash });
+        if (!r) throw new Error('audit append lost');
+        prev = r.hash;
+        out.push(r);
       } catch (e) {
         await c.query('ROLLBACK TO SAVEPOINT one_record');
         out.push({ ok: false, error: e });
       }
     }
     return out;
+  }
+
+  /** Inserts the records chained from `prev`, in order, with their cards: two statements whatever their number. */
+  private async insertRows(
+    c: PoolClient,
+    recs: ReadonlyArray<{ rec: AdviceRecord; parts: StoredParts }>,
+    prev: string,
+  ): Promise<Array<{ ok: true; seq: number; hash: string }>> {
+    const blob = (b: Uint8Array | undefined) => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
+    const cols: unknown[][] = Array.from({ length: 16 }, () => []);
+    const hashes: string[] = [];
+    let p = prev;
+    for (const { rec, parts } of recs) {
+      // The hash covers exactly the bytes stored (src/audit/record-format.ts).
+      const hash = storedHash(p, parts);
+      const row = [
+        rec.id,
+        rec.recordedAt,
+        rec.service,
+        rec.hook,
+        rec.hookInstance,
+        rec.patientId ?? null,
+        rec.encounterId ?? null,
+        rec.outcome,
+        rec.rulesVersion,
+        parts.text,
+        p,
+        hash,
+        rec.client?.issuer ?? null,
+        parts.format === 1 ? null : parts.format,
+        blob(parts.outputs),
+        blob(parts.inputs),
+      ];
+      row.forEach((v, i) => cols[i]?.push(v));
+      hashes.push(hash);
+      p = hash;
+    }
+    const types = [
+      'text',
+      'text',
+      'text',
+      'text',
+      'text',
+      'text',
+      'text',
+      'text',
+      'text',
+      'text',
+      'text',
+      'text',
+      'text',
+      'int',
+      'bytea',
+      'bytea',
+    ];
+    const ins = await c.query<{ id: string; seq: string }>(
+      `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer,
+         format, outputs, inputs)
+       SELECT c1, c2, c3, c4, c5, c6, c7, c8, c9, c10, c11, c12, c13, c14, c15, c16
+       FROM unnest(${types.map((t, i) => `$${i + 1}::${t}[]`).join(', ')}) WITH ORDINALITY AS u(c1, c2, c3, c4, c5, c6, c7, c8, c9, c10, c11, c12, c13, c14, c15, c16, n)
+       ORDER BY n RETURNING id, seq`,
+      cols,
+    );
+    const cards = recs.flatMap(({ rec }) => Object.entries(rec.cardKinds).map(([uuid, kind]) => [uuid, rec.id, kind, rec.service]));
+    if (cards.length)
+      await c.query(
+        `INSERT INTO ${this.s}.advice_card (card_uuid, advice_id, card_kind, service) SELECT * FROM unnest($1::text[], $2::text[], $3::text[], $4::text[])`,
+        [0, 1, 2, 3].map((i) => cards.map((row) => row[i])),
+      );
+    const seqOf = new Map(ins.rows.map((r) => [r.id, Number(r.seq)]));
+    return recs.map(({ rec }, i) => ({ ok: true as const, seq: seqOf.get(rec.id) ?? Number.NaN, hash: hashes[i] ?? '' }));
   }
 
   async get(id: string): Promise<StoredAdvice | undefined> {

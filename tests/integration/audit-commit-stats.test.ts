@@ -90,12 +90,14 @@ describe('the PostgreSQL store groups its appends too', () => {
     expect(store.commitStats()).toEqual({ commits: 1, records: 1 });
     await Promise.all(Array.from({ length: 20 }, (_, i) => store.append(record(i + 1))));
     expect(store.commitStats()).toEqual({ commits: 2, records: 21 });
+    expect(store.batchesRedone).toBe(0); // the twenty went in by the one-statement insert
     // Five in one turn, the fourth with the id of the second: it alone is refused, in the same one transaction.
     const five = Array.from({ length: 5 }, (_, i) => record(30 + i));
     const dup = { ...(five[3] as AnsweredRecord), id: (five[1] as AnsweredRecord).id };
     const settled = await Promise.allSettled([five[0], five[1], five[2], dup, five[4]].map((r) => store.append(r as AnsweredRecord)));
     expect(settled.map((r) => r.status)).toEqual(['fulfilled', 'fulfilled', 'fulfilled', 'rejected', 'fulfilled']);
     expect(store.commitStats()).toEqual({ commits: 3, records: 25 });
+    expect(store.batchesRedone).toBe(1); // refused as a whole, then record by record
     expect(await store.get(dup.id)).toMatchObject({ hookInstance: (five[1] as AnsweredRecord).hookInstance });
     expect(await store.verifyChain()).toEqual({ ok: true, checked: 25 });
     await store.close();
