@@ -44,15 +44,21 @@ const compressAsync = promisify(brotliCompress);
 const decompress = (bytes: Uint8Array): string => brotliDecompressSync(bytes).toString('utf8');
 
 /**
- * A record serialised but not yet compressed: the texts of its columns. Made on the service's thread (JSON.stringify
- * of objects it holds); compressing them (about 0.3 ms for the benchmark's record, docs/benchmarks.md) is left to
- * whoever writes the row: the SQLite writer thread, or zlib's thread pool for PostgreSQL.
+ * A record serialised but not yet compressed: the texts of its columns (the inputs still an object, below). Made on
+ * the service's thread (JSON.stringify of objects it holds); compressing them (about 0.3 ms for the benchmark's
+ * record, docs/benchmarks.md) is left to whoever writes the row: the SQLite writer thread, or zlib's thread pool for
+ * PostgreSQL.
  */
 export interface SerialisedRecord {
   format: 1 | 2;
   text: string;
   outputsText?: string;
-  inputsText?: string;
+  /**
+   * The inputs, as an object: they are strings (the body, the FHIR answers) in a few small objects, which cross to
+   * the SQLite writer thread as one copy each (structured clone), so they are serialised there, not here, sparing the
+   * service's thread the JSON-escaping of the whole request body a second time.
+   */
+  inputs?: RecordInputs;
 }
 
 /** The record's column texts: format 2 when it carries its inputs, else format 1 (its JSON text). */
@@ -60,21 +66,21 @@ export function serialiseRecord(rec: AdviceRecord): SerialisedRecord {
   const inputs = rec.inputs;
   if (!inputs) return { format: 1, text: recordText(rec) };
   const { snapshot: _snapshot, inputs: _inputs, ...outputs } = rec;
-  return { format: 2, text: indexText(rec), outputsText: recordText(outputs as AdviceRecord), inputsText: JSON.stringify(inputs) };
+  return { format: 2, text: indexText(rec), outputsText: recordText(outputs as AdviceRecord), inputs };
 }
 
 /** The stored columns of a serialised record, compressed on this thread. */
 export function compressRecord(s: SerialisedRecord): StoredParts {
-  if (s.format === 1 || s.outputsText === undefined || s.inputsText === undefined) return { format: 1, text: s.text };
-  return { format: 2, text: s.text, outputs: compress(s.outputsText), inputs: compress(s.inputsText) };
+  if (s.format === 1 || s.outputsText === undefined || s.inputs === undefined) return { format: 1, text: s.text };
+  return { format: 2, text: s.text, outputs: compress(s.outputsText), inputs: compress(JSON.stringify(s.inputs)) };
 }
 
 /** The same, compressed on zlib's thread pool (the PostgreSQL store, whose appends run on the event loop). */
 export async function compressRecordAsync(s: SerialisedRecord): Promise<StoredParts> {
-  if (s.format === 1 || s.outputsText === undefined || s.inputsText === undefined) return { format: 1, text: s.text };
+  if (s.format === 1 || s.outputsText === undefined || s.inputs === undefined) return { format: 1, text: s.text };
   const [outputs, inputs] = await Promise.all([
     compressAsync(Buffer.from(s.outputsText), BROTLI),
-    compressAsync(Buffer.from(s.inputsText), BROTLI),
+    compressAsync(Buffer.from(JSON.stringify(s.inputs)), BROTLI),
   ]);
   return { format: 2, text: s.text, outputs, inputs };
 }

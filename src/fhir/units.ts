@@ -104,9 +104,19 @@ export function toUcum(unit: string): string | undefined {
   const alias = ALIASES[trimmed.toLowerCase()];
   if (alias) return alias;
   if (trimmed === '' || !screenable(trimmed)) return undefined;
+  const known = validated.get(trimmed);
+  if (known !== undefined) return known ?? undefined;
   const v = quietly(() => utils.validateUnitString(trimmed, false));
-  return v.status === 'valid' ? (v.ucumCode ?? trimmed) : undefined;
+  const code = v.status === 'valid' ? (v.ucumCode ?? trimmed) : undefined;
+  // ucum-lhc's validation is the costly part of reading a quantity (docs/benchmarks.md) and its answer depends on the
+  // text alone: remembered, up to a bound, since the texts come from clients.
+  if (validated.size < MAX_VALIDATED) validated.set(trimmed, code ?? null);
+  return code;
 }
+
+/** Unit texts already validated by ucum-lhc → their UCUM code (null: not a unit); at most MAX_VALIDATED (common practice). */
+const validated = new Map<string, string | null>();
+const MAX_VALIDATED = 2048;
 
 /** A unit as quoted in a reason: at most MAX_UNIT_LENGTH characters of client text (the rest is cut, marked …). */
 function quoted(unit: string): string {
