@@ -1,16 +1,27 @@
 // Fuzzing the hook and feedback endpoints over real HTTP with fast-check: 10,600 generated bodies in all.
 // Never a crash, never a 5xx: always a clear 400-class OperationOutcome or a valid CDS Hooks response
-// (checked with our CDS Hooks 2.0 response check, tests/helpers/cds-conformance.ts). An OperationOutcome stays short
+// (checked with our CDS Hooks 2.0 response check, tests/helpers/cds-conformance.ts), whose audit record's stored
+// inputs rebuild the snapshot the rules saw (decision 0006). An OperationOutcome stays short
 // whatever was sent: client text is not echoed whole (issue 13 item 5).
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { checkCdsResponse } from '../helpers/cds-conformance.js';
 import { basicResources, NOW, orderSelectRequest, prefetchOf } from '../helpers/hook-fixtures.js';
 import { post, startService, type Running } from '../helpers/server.js';
+import type { AdviceRecord } from '../../src/audit/types.js';
+import { snapshotOfRecord } from '../../src/hooks/rebuild.js';
 
 let s: Running;
+let lastMade: AdviceRecord | undefined;
+let rebuilt = 0;
 beforeAll(async () => {
   s = await startService({ TIDEMARK_LOG_LEVEL: 'silent', TIDEMARK_BODY_LIMIT: '256kb' }, { now: () => NOW });
+  // The record as made, before the store: its snapshot is what the stored inputs must rebuild (decision 0006).
+  const append = s.svc.store.append.bind(s.svc.store);
+  s.svc.store.append = (rec) => {
+    lastMade = rec;
+    return append(rec);
+  };
 });
 afterAll(async () => s.stop());
 
@@ -22,6 +33,13 @@ async function check(path: string, body: unknown): Promise<void> {
   if (r.status === 200 && path.endsWith('/feedback')) return;
   if (r.status === 200) {
     expect(checkCdsResponse(r.body)).toEqual([]);
+    // Whatever was sent, the body as stored rebuilds the snapshot the rules saw.
+    const made = lastMade;
+    expect(made?.snapshot).toBeDefined();
+    const stored = await s.svc.store.get(made?.id ?? '');
+    expect(stored?.snapshot).toBeUndefined();
+    expect(await snapshotOfRecord(stored!)).toEqual(made?.snapshot);
+    rebuilt += 1;
   } else {
     expect(r.body?.resourceType).toBe('OperationOutcome');
     expect(typeof r.body.issue?.[0]?.details?.text).toBe('string');
@@ -100,6 +118,8 @@ describe('fuzz (10,600 bodies)', () => {
       ),
       { numRuns: 5_000 },
     );
+    // Most mutations still make a call that is answered: those all had their stored inputs rebuilt above.
+    expect(rebuilt).toBeGreaterThan(1_000);
   });
 
   it('found by this fuzz (seed 998168032): a draft order lasting 1e308 min is not read as a duration, and the card still comes', async () => {
