@@ -148,7 +148,14 @@ describe('a SQLite store written by Tidemark 0.2.0', () => {
       const uuid = Object.keys(old[0]!.rec.cardKinds)[0]!;
       expect((await store.cardOwner(uuid))?.issuer).toBe('https://ehr.heron-invented.example');
       await store.append(record(10));
-      expect(await store.verifyChain()).toEqual({ ok: true, checked: 4 });
+      // A record stored as received (format 2) joins the same chain after the upgraded rows.
+      const received = await store.append({
+        ...record(11),
+        inputs: { now: '2026-06-01T09:00:00.000Z', request: { body: '{}', asReceived: true }, fhir: [] },
+      } as AdviceRecord);
+      expect((await store.get((await store.list({ limit: 1 })).items[0]!.id))?.format).toBe(2);
+      expect(received.seq).toBeGreaterThan(0);
+      expect(await store.verifyChain()).toEqual({ ok: true, checked: 5 });
     } finally {
       await store.close();
     }
@@ -232,7 +239,14 @@ describe('a PostgreSQL schema written by Tidemark 0.2.0, and the two dialects si
       const uuid = Object.keys(old[2]!.rec.cardKinds)[0]!;
       expect((await store.cardOwner(uuid))?.issuer).toBe('https://ehr.heron-invented.example');
       await store.append(record(10));
-      expect(await store.verifyChain()).toEqual({ ok: true, checked: 4 });
+      // A record stored as received (format 2) joins the same chain after the upgraded rows.
+      const received = await store.append({
+        ...record(11),
+        inputs: { now: '2026-06-01T09:00:00.000Z', request: { body: '{}', asReceived: true }, fhir: [] },
+      } as AdviceRecord);
+      expect((await store.get((await store.list({ limit: 1 })).items[0]!.id))?.format).toBe(2);
+      expect(received.seq).toBeGreaterThan(0);
+      expect(await store.verifyChain()).toEqual({ ok: true, checked: 5 });
       expect(await store.sharedReplayCache().seen('https://ehr.heron-invented.example jti-9', Date.now() / 1000 + 60)).toBe(false);
     } finally {
       await store.close();
