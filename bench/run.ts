@@ -15,7 +15,9 @@
  *   (3) patient-view with a full prefetch;
  *   audit: case (1) against the same service with a store that stores nothing (bench/noop-store.ts);
  *   jwt: case (1) with a fresh ES384-signed client JWT on every call (real deployments verify one per call);
- *   soak: case (1) at a steady rate; RSS of the service at the start and the end.
+ *   soak: case (1) at a steady rate; RSS of the service at the start and the end;
+ *   record, pg, replay: the audit record's size before (format 1) and after (format 2, decision 0006), PostgreSQL
+ *   appends per second with 1 and 2 replicas, and replay (impact report) speed in records per second.
  *
  * Flags (or environment variables):
  *   --quick                     short runs for development (3 s each, 1 s warm-up, 20 s soak)
@@ -29,11 +31,16 @@
  *                                    server answers about 150–200 searches a second on this machine, 12 per call)
  *   --fhir-concurrency=N             TIDEMARK_FHIR_CONCURRENCY of case (2)'s service (default: the service's, 8)
  *   --soak-seconds=S BENCH_SOAK_SECONDS  (default 300)   --soak-rate=N (default 100)
- *   --only=select,fhir,view,audit,jwt,soak  run only these parts (the ceiling and the durable limit run when a case needs them)
+ *   --only=select,fhir,view,audit,jwt,soak,record,pg,replay  run only these parts (the ceiling and the durable limit run
+ *                                    when a case needs them); the last three run bench/record-size.ts (the audit record
+ *                                    in both formats, bytes per answer and MB per 1,000), bench/pg-appends.ts (1 and 2
+ *                                    replicas) and bench/impact.ts (replay speed, both formats), one after the other
  *   --cpu-prof                       profile the service children (node --cpu-prof) and print the top entries
  *   --keep                           keep the temporary folder (audit files, logs, profiles)
  */
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
 import { availableParallelism, cpus, freemem, loadavg, release, tmpdir, totalmem } from 'node:os';
 import { join } from 'node:path';
 import { randomUUID } from 'node:crypto';
@@ -77,11 +84,12 @@ const opts = {
   soakRate: num('soak-rate', undefined, 100),
   cpuProf: flag('cpu-prof') === 'true',
   keep: flag('keep') === 'true',
-  only: new Set((flag('only') ?? 'select,fhir,view,audit,jwt,soak').split(',').map((s) => s.trim())),
+  only: new Set((flag('only') ?? 'select,fhir,view,audit,jwt,soak,record,pg,replay').split(',').map((s) => s.trim())),
 };
 if (opts.rateShape !== 'paced' && opts.rateShape !== 'autocannon-burst') throw new Error('--rate-shape: paced or autocannon-burst');
 for (const part of opts.only)
-  if (!['select', 'fhir', 'view', 'audit', 'jwt', 'soak'].includes(part)) throw new Error(`--only: unknown part ${part}`);
+  if (!['select', 'fhir', 'view', 'audit', 'jwt', 'soak', 'record', 'pg', 'replay'].includes(part))
+    throw new Error(`--only: unknown part ${part}`);
 // Hard bounds, whatever the flags say: the benchmark must stop by itself.
 if (opts.duration > 120 || opts.warmup > 60 || opts.soakSeconds > 3600)
   throw new Error('durations are bounded: --duration ≤ 120, --warmup ≤ 60, --soak-seconds ≤ 3600');
@@ -100,6 +108,7 @@ const median = (xs: number[]): number => {
 // ---------------------------------------------------------------- processes
 
 const dir = mkdtempSync(join(tmpdir(), 'tidemark-bench-'));
+const BENCH_DIR = fileURLToPath(new URL('.', import.meta.url));
 const FHIR_TOKEN = 'bench-fhir-token-7f3a9c';
 const children: Child[] = [];
 let serviceCount = 0;
@@ -712,6 +721,25 @@ async function main(): Promise<void> {
       out(formatSummary(file, 20));
       out();
     });
+  }
+
+  // The audit record's own measurements, each a script of its own run here one after the other (no load runs
+  // beside them), so that one run prints every figure issue 18 asks for.
+  const script = (label: string, file: string, args: string[]) => {
+    out(label);
+    const r = spawnSync(process.execPath, ['--import', 'tsx', join(BENCH_DIR, file), ...args], { encoding: 'utf8', timeout: 600_000 });
+    for (const line of (r.stdout ?? '').trimEnd().split('\n')) if (line) out(`  ${line}`);
+    if (r.status !== 0) out(`  (${file} failed: ${(r.stderr ?? '').trim().split('\n').slice(-3).join(' ')})`);
+    out();
+  };
+  if (opts.only.has('record'))
+    script('The audit record, before (format 1) and after (format 2: stored as received)', 'record-size.ts', ['--answers=1000']);
+  if (opts.only.has('pg'))
+    script('PostgreSQL appends, 1 and 2 replicas on one chain', 'pg-appends.ts', [`--seconds=${quick ? 3 : 10}`, '--replicas=1,2']);
+  if (opts.only.has('replay')) {
+    const records = quick ? 1000 : 5000;
+    script('Replay speed (the impact report, every record re-run in full): format 2', 'impact.ts', [`--records=${records}`]);
+    script('Replay speed: format 1 (the snapshot stored), for comparison', 'impact.ts', [`--records=${records}`, '--format=1']);
   }
 
   out(
