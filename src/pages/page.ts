@@ -152,7 +152,7 @@ ${v.reasons.length ? html`<h3>Why</h3><ul>${v.reasons.map((r) => html`<li>${r}</
 ${v.alternatives.length ? html`<h3>Options to consider instead of, or before, the bolus</h3><ul>${v.alternatives.map((r) => html`<li>${r}</li>`)}</ul>` : ''}
 </section>
 ${whatIfSection(v.whatIf)}
-${trends ? html`<section id="trends" aria-labelledby="trends-h"><h2 id="trends-h">Trends, last ${trends.hours} h</h2><p class="meta">All plots share one time axis, ${clock(trends.from, zone, trends.now)} to ${clock(trends.to, zone, trends.from)} site time (${zone}); the dashed line is the moment of the advice. Values as stored with the advice.</p>${plots.map((p, i) => plotFigure(p, zone, trends, i + 1))}</section>` : ''}
+${trends ? html`<section id="trends" aria-labelledby="trends-h"><h2 id="trends-h">Trends, last ${trends.hours} h</h2><p class="meta">All plots share one time axis, ${clock(trends.from, zone, trends.now)} to ${clock(trends.to, zone, trends.from)} site time (${zone}); the dashed line is the moment of the advice. Values as Tidemark read them from the data the call brought.</p>${plots.map((p, i) => plotFigure(p, zone, trends, i + 1))}</section>` : ''}
 <section id="findings" aria-labelledby="findings-h"><h2 id="findings-h">Findings</h2>${byTopic.map(([t, fs]) => html`<h3>${TOPIC_TITLE[t] ?? t}</h3>${fs.map((f) => finding(f, zone, at))}`)}${byTopic.length ? '' : html`<p class="empty">No marker could be assessed.</p>`}${unassessed ? html`<p class="meta">${unassessed} more could not be assessed: see <a href="#gaps">Missing, stale or set aside</a>.</p>` : ''}</section>
 <section id="gaps" aria-labelledby="gaps-h"><h2 id="gaps-h">Missing, stale or set aside</h2>${
     v.gaps.length
