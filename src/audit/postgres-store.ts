@@ -321,24 +321,8 @@ export class PostgresAuditStore implements AuditStore {
       hashes.push(hash);
       p = hash;
     }
-    const types = [
-      'text',
-      'text',
-      'text',
-      'text',
-      'text',
-      'text',
-      'text',
-      'text',
-      'text',
-      'text',
-      'text',
-      'text',
-      'text',
-      'int',
-      'bytea',
-      'bytea',
-    ];
+    // Thirteen text columns, then format, outputs and inputs.
+    const types = [...Array<string>(13).fill('text'), 'int', 'bytea', 'bytea'];
     const ins = await c.query<{ id: string; seq: string }>(
       `INSERT INTO ${this.s}.advice (id, recorded_at, service, hook, hook_instance, patient_id, encounter_id, outcome, rules_version, record, prev_hash, hash, issuer,
          format, outputs, inputs)

@@ -16,7 +16,7 @@ import { chainHashOfText, GENESIS, recordText } from '../../src/audit/chain.js';
 import { PostgresAuditStore } from '../../src/audit/postgres-store.js';
 import { SCHEMA_VERSION } from '../../src/audit/sql/migrations.js';
 import { SqliteAuditStore } from '../../src/audit/sqlite-store.js';
-import type { AdviceRecord, AnsweredRecord } from '../../src/audit/types.js';
+import type { AdviceRecord, AnsweredRecord, AuditStore } from '../../src/audit/types.js';
 
 const PG_URL = process.env['TIDEMARK_TEST_PG_URL'] ?? 'postgres://postgres@127.0.0.1:5432/test';
 const RUN = `tm_migr_${process.pid}_${randomUUID().slice(0, 8)}`;
@@ -56,6 +56,15 @@ const postgres020 = (s: string): string[] => [
   )`,
   `CREATE INDEX feedback_card ON ${s}.feedback (card_uuid)`,
 ];
+
+/** After the upgraded rows: a record of format 1 and one stored as received (format 2) join the same one chain. */
+async function appendBothFormats(store: AuditStore): Promise<void> {
+  await store.append(record(10));
+  const received = { ...record(11), inputs: { now: '2026-06-01T09:00:00.000Z', request: { body: '{}', asReceived: true }, fhir: [] } };
+  await store.append(received as AdviceRecord);
+  expect((await store.get(received.id))?.format).toBe(2);
+  expect(await store.verifyChain()).toEqual({ ok: true, checked: 5 });
+}
 
 function record(i: number): AdviceRecord {
   const uuid = randomUUID();
@@ -147,15 +156,7 @@ describe('a SQLite store written by Tidemark 0.2.0', () => {
       // The issuer column is empty for the old rows: the card's issuer is read from the record's text.
       const uuid = Object.keys(old[0]!.rec.cardKinds)[0]!;
       expect((await store.cardOwner(uuid))?.issuer).toBe('https://ehr.heron-invented.example');
-      await store.append(record(10));
-      // A record stored as received (format 2) joins the same chain after the upgraded rows.
-      const received = await store.append({
-        ...record(11),
-        inputs: { now: '2026-06-01T09:00:00.000Z', request: { body: '{}', asReceived: true }, fhir: [] },
-      } as AdviceRecord);
-      expect((await store.get((await store.list({ limit: 1 })).items[0]!.id))?.format).toBe(2);
-      expect(received.seq).toBeGreaterThan(0);
-      expect(await store.verifyChain()).toEqual({ ok: true, checked: 5 });
+      await appendBothFormats(store);
     } finally {
       await store.close();
     }
@@ -238,15 +239,7 @@ describe('a PostgreSQL schema written by Tidemark 0.2.0, and the two dialects si
       expect(await store.verifyChain()).toEqual({ ok: true, checked: 3 });
       const uuid = Object.keys(old[2]!.rec.cardKinds)[0]!;
       expect((await store.cardOwner(uuid))?.issuer).toBe('https://ehr.heron-invented.example');
-      await store.append(record(10));
-      // A record stored as received (format 2) joins the same chain after the upgraded rows.
-      const received = await store.append({
-        ...record(11),
-        inputs: { now: '2026-06-01T09:00:00.000Z', request: { body: '{}', asReceived: true }, fhir: [] },
-      } as AdviceRecord);
-      expect((await store.get((await store.list({ limit: 1 })).items[0]!.id))?.format).toBe(2);
-      expect(received.seq).toBeGreaterThan(0);
-      expect(await store.verifyChain()).toEqual({ ok: true, checked: 5 });
+      await appendBothFormats(store);
       expect(await store.sharedReplayCache().seen('https://ehr.heron-invented.example jti-9', Date.now() / 1000 + 60)).toBe(false);
     } finally {
       await store.close();
