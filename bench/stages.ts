@@ -9,7 +9,7 @@
 import type { FhirResource } from 'fhir/r4.js';
 import { transaction } from '../examples/lib/fhir-builders.js';
 import { resolveThresholds } from '../src/assess/thresholds.js';
-import { recordText } from '../src/audit/chain.js';
+import { prepareRecord } from '../src/audit/sqlite-append.js';
 import type { AdviceRecord } from '../src/audit/types.js';
 import { loadCatalogue } from '../src/cards/catalogue.js';
 import { rulesVersion } from '../src/config/rules-version.js';
@@ -40,10 +40,10 @@ const thresholds = resolveThresholds({});
 const version = rulesVersion(digest, thresholds);
 const silent = { info() {}, warn() {}, error() {} };
 
-/** The no-op store, but writing each record's stored text as the SQLite store does on the caller's thread. */
+/** The no-op store, but preparing each record as the SQLite store does on the caller's thread (its column texts). */
 class TextOnlyStore extends NoopAuditStore {
   override async append(rec?: AdviceRecord): Promise<{ seq: number; hash: string }> {
-    if (!rec || recordText(rec).length === 0) throw new Error('empty record text');
+    if (!rec || prepareRecord(rec).serialised.text.length === 0) throw new Error('empty record text');
     return super.append();
   }
 }
@@ -54,7 +54,7 @@ const STAGES: ReadonlyArray<[Stage, string]> = [
   ['snapshot', 'snapshot (normalize)'],
   ['advise', 'advise (rules)'],
   ['compose', 'compose (cards)'],
-  ['record', 'record (its text; no store)'],
+  ['record', 'record (its texts; no store)'],
 ];
 const samples = new Map<string, number[]>([['body', []], ...STAGES.map(([s]) => [s, []] as [string, number[]]), ['answer', []]]);
 let recording = false;
@@ -79,7 +79,7 @@ async function once(record: boolean): Promise<void> {
   const t0 = performance.now();
   const parsed: unknown = JSON.parse(body);
   const t1 = performance.now();
-  const r = await evaluateHook(svc, parsed, deps);
+  const r = await evaluateHook(svc, parsed, deps, undefined, body); // the body text, as the route passes it
   const t2 = performance.now();
   const answer = JSON.stringify(r.body);
   const t3 = performance.now();
