@@ -9,9 +9,9 @@ import type { AdviceRecord } from '../audit/types.js';
 import { FhirFetchError, type Fetcher } from '../fhir/fetcher.js';
 import type { SiteMap } from '../fhir/site-map.js';
 import type { PatientSnapshot } from '../snapshot/types.js';
-import { parseCall, snapshotOf } from './evaluate.js';
+import { parseCall, snapshotOf, type ParsedCall } from './evaluate.js';
 import { gather } from './gather.js';
-import type { FhirExchange, GatherOptions } from './gather-types.js';
+import type { FhirExchange, GatherOptions, Gathered } from './gather-types.js';
 import { findService, servicesFor } from './services.js';
 
 /** Played back, the budget and the page limit never cut gathering short: what the call read is what it gets. */
@@ -37,17 +37,32 @@ export class RebuildError extends Error {
 export async function snapshotOfRecord(rec: AdviceRecord, siteMap?: SiteMap): Promise<PatientSnapshot | undefined> {
   if (rec.snapshot) return rec.snapshot;
   if (rec.outcome !== 'answered' || !rec.inputs) return undefined;
+  return (await rebuildCall(rec, siteMap)).snapshot;
+}
+
+/** The call a record's inputs make again: the checked request, what gathering gets from the recorded answers, the snapshot. */
+export async function rebuildCall(
+  rec: AdviceRecord,
+  siteMap?: SiteMap,
+): Promise<{ call: ParsedCall; gathered: Gathered; snapshot: PatientSnapshot }> {
+  const inputs = rec.inputs;
+  if (!inputs) throw new RebuildError('the record holds no inputs (it was stored with its snapshot)');
   const service = findService(rec.service, servicesFor(siteMap));
   if (!service) throw new RebuildError(`no service ${rec.service} to rebuild the call with`);
   let body: unknown;
   try {
-    body = JSON.parse(rec.inputs.request.body);
+    body = JSON.parse(inputs.request.body);
   } catch {
     throw new RebuildError('the stored request body is not JSON');
   }
-  const call = parseCall(service, body, { log: quiet });
-  const gathered = await gather(call.req, service, PLAYBACK, playback(rec.inputs.fhir));
-  return snapshotOf(call, gathered, new Date(rec.inputs.now), siteMap);
+  let call: ParsedCall;
+  try {
+    call = parseCall(service, body, { log: quiet });
+  } catch (e) {
+    throw new RebuildError(`the stored request is no longer a valid call: ${String((e as Error).message).slice(0, 200)}`);
+  }
+  const gathered = await gather(call.req, service, PLAYBACK, playback(inputs.fhir));
+  return { call, gathered, snapshot: snapshotOf(call, gathered, new Date(inputs.now), siteMap) };
 }
 
 /** The record with its snapshot in place (rebuilt when it holds inputs instead). */
