@@ -13,8 +13,8 @@
  *   cached per key), the signature alone (WebCrypto ECDSA P-384 over the signing input), jwtVerify through the
  *   key set (lookup + signature + claims), and the replay cache's `seen` with fresh keys.
  *
- * Then the replay cache alone in steady state (300 req/s over one retention, on a simulated clock): the mean and the
- * worst time of one `seen`, the worst being the call that forgets expired entries.
+ * Then the replay cache alone in steady state (300 req/s over one retention, on a simulated clock): the mean time of
+ * one `seen`, how many calls took over 1 ms and the 3 worst (where a purge of many entries at once would show).
  *
  * Prints the median and mean wall time per call in µs and the mean CPU time per call (process.cpuUsage, all
  * threads: WebCrypto runs its work on libuv's pool). Each pass runs twice in alternating order, the first round
@@ -177,7 +177,8 @@ for (const p of passes) {
 
 // The jti memory in steady state: 300 req/s (the benchmark's paced rate, bench/run.ts) for one retention of 360 s
 // (maxTokenAgeSeconds 300 + clockSkewSeconds 60, the defaults in src/auth/issuer-config.ts) fills it with 108,000
-// entries; then 60 s more of calls on a simulated clock, each timed, the worst one being the call that purges.
+// entries; then 60 s more of calls on a simulated clock, each timed: a call that forgets many entries at once shows
+// among the worst, beside the garbage collections.
 {
   const rate = 300;
   const retention = config.maxTokenAgeSeconds + config.clockSkewSeconds;
@@ -189,17 +190,19 @@ for (const p of passes) {
   }
   const filled = cache.size;
   const keys = Array.from({ length: rate * 60 }, () => `${iss} ${randomUUID()}`);
-  const times: number[] = [];
-  for (const k of keys) {
+  const times = new Float64Array(keys.length);
+  keys.forEach((k, i) => {
     const t0 = performance.now();
     cache.seen(k, clockMs / 1000 + retention);
-    times.push((performance.now() - t0) * 1000);
+    times[i] = (performance.now() - t0) * 1000;
     clockMs += 1000 / rate;
-  }
+  });
   const sorted = [...times].sort((a, b) => a - b);
+  const worst = sorted.slice(-3).reverse();
   console.log(
-    `replay cache holding ${filled} jti, ${keys.length} more calls over 60 s (simulated clock): mean ${mean(times).toFixed(2)} µs, ` +
-      `p99.9 ${sorted[Math.floor(sorted.length * 0.999)]!.toFixed(1)} µs, worst ${(sorted[sorted.length - 1]! / 1000).toFixed(2)} ms`,
+    `replay cache holding ${filled} jti, ${keys.length} more calls over 60 s (simulated clock): mean ${mean(sorted).toFixed(2)} µs, ` +
+      `${sorted.filter((t) => t > 1000).length} calls over 1 ms, the 3 worst ${worst.map((t) => (t / 1000).toFixed(2)).join(', ')} ms ` +
+      '(a garbage collection lands in some call too)',
   );
 }
 
