@@ -15,26 +15,31 @@ export interface ReplayCache {
 }
 
 /**
- * Single-process replay cache. Entries are dropped once expired; a sweep runs at most once per
- * `sweepEverySeconds`, so memory is bounded by the number of tokens accepted in one token lifetime.
+ * Single-process replay cache. Each call first forgets the entries that have expired, earliest first, from a
+ * binary min-heap of (expiry, jti) kept beside the map: the work is in proportion to what expires (O(log n)
+ * each), never a walk over every remembered jti, so no call pauses the event loop for a sweep. Memory is
+ * bounded by the number of tokens accepted in one token lifetime.
  */
 export class InMemoryReplayCache implements ReplayCache {
   readonly #entries = new Map<string, number>();
+  /** The heap, as two parallel arrays: expiry (seconds) and the jti recorded with it. */
+  readonly #untils: number[] = [];
+  readonly #jtis: string[] = [];
   readonly #nowMs: () => number;
-  readonly #sweepEverySeconds: number;
-  #lastSweep = Number.NEGATIVE_INFINITY;
 
-  constructor(opts: { nowMs?: () => number; sweepEverySeconds?: number } = {}) {
+  constructor(opts: { nowMs?: () => number } = {}) {
     this.#nowMs = opts.nowMs ?? Date.now;
-    this.#sweepEverySeconds = opts.sweepEverySeconds ?? 30;
   }
 
   seen(jti: string, expSeconds: number): boolean {
+    // NaN would never compare as expired and would stop the heap's purge behind it; the caller then refuses the token.
+    if (Number.isNaN(expSeconds)) throw new TypeError('replay cache: expiry is not a number');
     const now = this.#nowMs() / 1000;
-    if (now - this.#lastSweep >= this.#sweepEverySeconds) this.#sweep(now);
+    this.#forgetExpired(now);
     const until = this.#entries.get(jti);
     if (until !== undefined && until > now) return true;
     this.#entries.set(jti, expSeconds);
+    this.#push(expSeconds, jti);
     return false;
   }
 
@@ -43,8 +48,51 @@ export class InMemoryReplayCache implements ReplayCache {
     return this.#entries.size;
   }
 
-  #sweep(now: number): void {
-    this.#lastSweep = now;
-    for (const [jti, until] of this.#entries) if (until <= now) this.#entries.delete(jti);
+  #forgetExpired(now: number): void {
+    while (this.#untils.length > 0 && (this.#untils[0] as number) <= now) {
+      // Each map entry has one heap entry with the same expiry: a jti is recorded again only once its expiry has
+      // passed, and by then this loop has already taken its earlier entry out of both.
+      this.#entries.delete(this.#jtis[0] as string);
+      this.#pop();
+    }
+  }
+
+  #push(until: number, jti: string): void {
+    const u = this.#untils;
+    const j = this.#jtis;
+    let i = u.length;
+    u.push(until);
+    j.push(jti);
+    while (i > 0) {
+      const parent = (i - 1) >> 1;
+      if ((u[parent] as number) <= until) break;
+      u[i] = u[parent] as number;
+      j[i] = j[parent] as string;
+      i = parent;
+    }
+    u[i] = until;
+    j[i] = jti;
+  }
+
+  #pop(): void {
+    const u = this.#untils;
+    const j = this.#jtis;
+    const lastUntil = u.pop() as number;
+    const lastJti = j.pop() as string;
+    const n = u.length;
+    if (n === 0) return;
+    let i = 0;
+    for (;;) {
+      const left = 2 * i + 1;
+      if (left >= n) break;
+      const right = left + 1;
+      const child = right < n && (u[right] as number) < (u[left] as number) ? right : left;
+      if ((u[child] as number) >= lastUntil) break;
+      u[i] = u[child] as number;
+      j[i] = j[child] as string;
+      i = child;
+    }
+    u[i] = lastUntil;
+    j[i] = lastJti;
   }
 }

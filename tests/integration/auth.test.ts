@@ -241,13 +241,63 @@ describe('authConfigSchema', () => {
 describe('InMemoryReplayCache', () => {
   it('remembers a jti until its expiry, then forgets and prunes it', () => {
     let t = 1_000_000_000_000;
-    const cache = new InMemoryReplayCache({ nowMs: () => t, sweepEverySeconds: 1 });
+    const cache = new InMemoryReplayCache({ nowMs: () => t });
     expect(cache.seen('a', t / 1000 + 10)).toBe(false);
     expect(cache.seen('a', t / 1000 + 10)).toBe(true);
     t += 11_000;
-    expect(cache.seen('b', t / 1000 + 10)).toBe(false); // sweep drops 'a'
+    expect(cache.seen('b', t / 1000 + 10)).toBe(false); // the call forgets 'a' first
     expect(cache.size).toBe(1);
     expect(cache.seen('a', t / 1000 + 10)).toBe(false);
+  });
+
+  it('forgets entries in expiry order whatever order they came in, and only those that expired', () => {
+    let t = 1_000_000_000_000;
+    const s = () => t / 1000;
+    const cache = new InMemoryReplayCache({ nowMs: () => t });
+    // Invented jti values with expiries out of order (clients with different token lifetimes).
+    const lifetimes = [300, 20, 120, 5, 60, 240, 20, 1, 180, 90];
+    lifetimes.forEach((life, i) => expect(cache.seen(`jti-${i}`, s() + life)).toBe(false));
+    t += 61_000; // past 1, 5, 20, 20 and 60
+    expect(cache.seen('late', s() + 600)).toBe(false);
+    expect(cache.size).toBe(lifetimes.filter((life) => life > 61).length + 1);
+    lifetimes.forEach((life, i) => {
+      if (life > 61) expect(cache.seen(`jti-${i}`, s() + 600)).toBe(true);
+    });
+    t += 1_000_000;
+    expect(cache.seen('last', s() + 1)).toBe(false);
+    expect(cache.size).toBe(1);
+  });
+
+  it('answers as a plain map of jti to expiry would, over a random run (model check)', () => {
+    let state = 42; // a fixed-seed linear congruential generator: the run is the same every time
+    const rand = (n: number) => {
+      state = (state * 1_103_515_245 + 12_345) % 2 ** 31;
+      return state % n;
+    };
+    let t = 1_000_000_000_000;
+    const cache = new InMemoryReplayCache({ nowMs: () => t });
+    const model = new Map<string, number>();
+    for (let step = 0; step < 5000; step += 1) {
+      t += rand(3) * 1000;
+      const now = t / 1000;
+      const jti = `j${rand(400)}`;
+      const until = now + rand(120) - 5; // some already expired when recorded
+      const known = model.get(jti);
+      const expected = known !== undefined && known > now;
+      if (!expected) model.set(jti, until);
+      expect(cache.seen(jti, until)).toBe(expected);
+      const live = [...model.values()].filter((u) => u > now).length;
+      expect(cache.size).toBeGreaterThanOrEqual(live);
+    }
+    t += 1_000_000;
+    cache.seen('end', t / 1000 + 1);
+    expect(cache.size).toBe(1);
+  });
+
+  it('refuses to record an expiry that is not a number', () => {
+    const cache = new InMemoryReplayCache();
+    expect(() => cache.seen('a', Number.NaN)).toThrow(TypeError);
+    expect(cache.size).toBe(0);
   });
 });
 
