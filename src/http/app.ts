@@ -18,6 +18,7 @@ import { discoveryDocument, findService, servicesFor } from '../hooks/services.j
 import { withDepthLimit } from './body-shape.js';
 import { OutcomeError, outcomeError, zodIssues } from '../hooks/outcome-error.js';
 import { httpOf, operationOutcome } from './errors.js';
+import { recordFilterFields, recordFilterQuery } from './record-filters.js';
 
 export interface AppDeps extends EvaluateDeps {
   store: AuditStore;
@@ -69,6 +70,7 @@ const auditQuerySchema = z.object({
   to: z.iso.datetime({ offset: true }).or(z.iso.date()).optional(),
   limit: z.coerce.number().int().min(1).max(200).default(50),
   cursor: z.string().regex(/^\d+$/).optional(),
+  ...recordFilterFields,
 });
 
 export function createApp(deps: AppDeps): express.Express {
@@ -179,6 +181,7 @@ export function createApp(deps: AppDeps): express.Express {
     const { patient, service, from, to, limit, cursor } = q.data;
     const page = await deps.store.list({
       limit,
+      ...recordFilterQuery(q.data),
       ...(patient ? { patientId: patient } : {}),
       ...(service ? { service } : {}),
       ...(from ? { from: toInstant(from) } : {}),

@@ -10,7 +10,7 @@ import express, { type Express, type NextFunction, type Request, type RequestHan
 import { z } from 'zod';
 import { MAX_IMPACT_PAGE, impactPage as runImpactPage, impactRequestSchema } from '../audit/impact-request.js';
 import { auditInstant } from '../audit/shared.js';
-import type { AuditStore, FeedbackFilter, TopIndicator } from '../audit/types.js';
+import type { AuditStore } from '../audit/types.js';
 import { staticTokenMatcher } from '../auth/middleware.js';
 import type { Catalogue } from '../cards/catalogue.js';
 import type { SiteMap } from '../fhir/site-map.js';
@@ -29,6 +29,7 @@ import {
 import { CONSOLE_CSS } from '../console/style.js';
 import { ConsoleSessions, SignInLimiter, sameText } from './console-session.js';
 import { reasoningPageOf } from './pages.js';
+import { blankAsAbsent, recordFilterFields, recordFilterQuery } from './record-filters.js';
 
 export interface ConsoleDeps {
   store: AuditStore;
@@ -56,16 +57,13 @@ export const CONSOLE_CSP =
   "default-src 'self'; script-src 'none'; object-src 'none'; base-uri 'none'; form-action 'self'; frame-ancestors 'none'";
 
 const ADVICE_ID = /^[A-Za-z0-9-]{1,64}$/;
-const optional = <T extends z.ZodType>(t: T) => z.preprocess((v) => (v === '' ? undefined : v), t.optional());
+const optional = blankAsAbsent;
 const listQuery = z.object({
   from: z.string().optional(),
   to: z.string().optional(),
   service: optional(z.string().min(1).max(64)),
   patient: optional(z.string().regex(/^[A-Za-z0-9\-.]{1,64}$/)),
-  indicator: optional(z.enum(['critical', 'warning', 'info', 'none'])),
-  responsiveness: optional(z.enum(['likely', 'unlikely', 'indeterminate', 'none'])),
-  tolerance: optional(z.enum(['adequate', 'limited', 'poor', 'not-known', 'none'])),
-  feedback: optional(z.enum(['accepted', 'overridden', 'none'])),
+  ...recordFilterFields,
   cursor: optional(z.string().regex(/^\d{1,15}$/)),
 });
 const LIST_PAGE = 50;
@@ -217,10 +215,7 @@ export function mountConsole(app: Express, deps: ConsoleDeps): void {
         to: r.range.toInstant,
         ...(d.service ? { service: d.service } : {}),
         ...(d.patient ? { patientId: d.patient } : {}),
-        ...(d.indicator ? { indicator: d.indicator as TopIndicator } : {}),
-        ...(d.responsiveness ? { responsiveness: d.responsiveness } : {}),
-        ...(d.tolerance ? { tolerance: d.tolerance } : {}),
-        ...(d.feedback ? { feedback: d.feedback as FeedbackFilter } : {}),
+        ...recordFilterQuery(d),
         ...(d.cursor ? { cursor: d.cursor } : {}),
       });
       const filters: ListFilters = {

@@ -200,6 +200,32 @@ describe('audit API', () => {
     const none = await get(`${s.url}/audit/advice?to=2000-01-01`, AUDIT_HEADERS);
     expect(none.body.items).toEqual([]);
   });
+  it('filters by what the record says, as the console does: its most urgent indicator, its verdicts, its feedback', async () => {
+    const all = (await get(`${s.url}/audit/advice?limit=200`, AUDIT_HEADERS)).body.items as Array<{
+      id: string;
+      indicators: string[];
+      responsiveness?: string;
+      tolerance?: string;
+      feedback: { accepted: number; overridden: number };
+    }>;
+    expect(all.length).toBeGreaterThan(3);
+    const ids = async (q: string) =>
+      ((await get(`${s.url}/audit/advice?limit=200&${q}`, AUDIT_HEADERS)).body.items as Array<{ id: string }>).map((i) => i.id);
+    const rank = ['info', 'warning', 'critical'];
+    const top = (i: (typeof all)[number]) => i.indicators.reduce((t, x) => (rank.indexOf(x) > rank.indexOf(t) ? x : t), 'none');
+    for (const indicator of ['critical', 'warning', 'info', 'none'])
+      expect(await ids(`indicator=${indicator}`)).toEqual(all.filter((i) => top(i) === indicator).map((i) => i.id));
+    for (const v of ['likely', 'unlikely', 'indeterminate', 'none'])
+      expect(await ids(`responsiveness=${v}`)).toEqual(all.filter((i) => (i.responsiveness ?? 'none') === v).map((i) => i.id));
+    for (const v of ['adequate', 'limited', 'poor', 'not-known', 'none'])
+      expect(await ids(`tolerance=${v}`)).toEqual(all.filter((i) => (i.tolerance ?? 'none') === v).map((i) => i.id));
+    expect(await ids('feedback=none')).toEqual(all.filter((i) => i.feedback.accepted + i.feedback.overridden === 0).map((i) => i.id));
+    // A blank filter is no filter; a value outside the closed set is a 400 naming the parameter.
+    expect(await ids('tolerance=')).toEqual(all.map((i) => i.id));
+    const bad = await get(`${s.url}/audit/advice?responsiveness=maybe`, AUDIT_HEADERS);
+    expect(bad.status).toBe(400);
+    expect(JSON.stringify(bad.body)).toContain('responsiveness');
+  });
   it('400 for a bad query', async () => {
     const r = await get(`${s.url}/audit/advice?from=yesterday`, AUDIT_HEADERS);
     expect(r.status).toBe(400);
