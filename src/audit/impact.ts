@@ -182,15 +182,21 @@ export class ImpactTally {
 
   constructor(private readonly rules: CandidateRules) {}
 
-  add(given: StoredAdvice | { failed: StoredAdvice }): void {
-    const rec = 'failed' in given ? given.failed : given;
+  /** A record whose inputs no longer make a call: read, and failed. */
+  unreadable(rec: StoredAdvice): void {
     this.read += 1;
     this.lastSeq = rec.seq;
-    if ('failed' in given) {
-      this.failed += 1;
-      if (this.failedExamples.length < EXAMPLES) this.failedExamples.push(rec.id);
-      return;
-    }
+    this.countFailed(rec.id);
+  }
+
+  private countFailed(id: string): void {
+    this.failed += 1;
+    if (this.failedExamples.length < EXAMPLES) this.failedExamples.push(id);
+  }
+
+  add(rec: StoredAdvice): void {
+    this.read += 1;
+    this.lastSeq = rec.seq;
     if (!rec.snapshot || !rec.advice) {
       this.notReplayable += 1;
       return;
@@ -201,9 +207,7 @@ export class ImpactTally {
       if (!r) return void (this.notReplayable += 1);
       now = outcomeOf(r.advice, r.cards);
     } catch {
-      this.failed += 1;
-      if (this.failedExamples.length < EXAMPLES) this.failedExamples.push(rec.id);
-      return;
+      return this.countFailed(rec.id);
     }
     this.replayed += 1;
     this.compare(rec.id, outcomeOfRecord(rec), now);
@@ -325,16 +329,10 @@ export interface ImpactOptions {
   onProgress?: (read: number) => void;
 }
 
-/** Runs the tally over a stream of records (the store's records(), filtered to answered records). */
-/** The record with its snapshot rebuilt from its inputs, or `failed` when they no longer make a call. */
-async function rebuiltOrFailed(rec: StoredAdvice, siteMap: SiteMap | undefined): Promise<StoredAdvice | { failed: StoredAdvice }> {
-  try {
-    return await withSnapshot(rec, siteMap);
-  } catch {
-    return { failed: rec };
-  }
-}
-
+/**
+ * Runs the tally over a stream of records (the store's records(), filtered to answered records), each with its
+ * snapshot rebuilt from its inputs when it was stored as received; inputs that no longer make a call count as failed.
+ */
 export async function impactOf(
   records: AsyncIterable<StoredAdvice>,
   rules: CandidateRules,
@@ -344,7 +342,9 @@ export async function impactOf(
   let n = 0;
   for await (const rec of records) {
     if (opts.maxRecords !== undefined && n >= opts.maxRecords) return tally.report(true);
-    tally.add(await rebuiltOrFailed(rec, rules.siteMap));
+    const rebuilt = await withSnapshot(rec, rules.siteMap).catch(() => undefined);
+    if (rebuilt) tally.add(rebuilt);
+    else tally.unreadable(rec);
     n += 1;
     opts.onProgress?.(n);
     // Re-running rules is synchronous work: let other callbacks (hook calls on the same service) run in between.

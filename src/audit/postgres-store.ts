@@ -16,6 +16,7 @@ import pg from 'pg';
 import type { PoolClient } from 'pg';
 import { GENESIS } from './chain.js';
 import {
+  asBuffer,
   compressRecordAsync,
   decodeRow,
   rowHashMatches,
@@ -25,7 +26,7 @@ import {
   type StoredParts,
 } from './record-format.js';
 import { PostgresReplayCache, type PostgresReplayCacheOptions } from './postgres-replay-cache.js';
-import { feedbackKey, normaliseOverview, ownerOf, summarize } from './shared.js';
+import { feedbackKey, MAX_BATCH, normaliseOverview, ownerOf, summarize } from './shared.js';
 import { MIGRATIONS, SCHEMA_VERSION } from './sql/migrations.js';
 import { feedbackCountsOf, feedbackStatsOf, feedbackStatsSql, rowToFeedback, type KindRow, type ReasonRow } from './sql/rows.js';
 import { adviceFilters, recordFilters, Where } from './sql/where.js';
@@ -65,7 +66,8 @@ interface AdviceRow {
   record: string;
   format: number | null;
   outputs: Uint8Array | null;
-  inputs: Uint8Array | null;
+  /** Not selected by list(), which needs the outputs only. */
+  inputs?: Uint8Array | null;
   prev_hash: string;
   hash: string;
 }
@@ -193,8 +195,6 @@ export class PostgresAuditStore implements AuditStore {
     });
   }
 
-  /** At most this many records per group commit (as the SQLite store). */
-  private static readonly MAX_BATCH = 64;
   private readonly queue: Array<{
     rec: AdviceRecord;
     parts: StoredParts;
@@ -217,7 +217,7 @@ export class PostgresAuditStore implements AuditStore {
     this.flushing = (async () => {
       await new Promise<void>((r) => setImmediate(r));
       while (this.queue.length) {
-        const batch = this.queue.splice(0, PostgresAuditStore.MAX_BATCH);
+        const batch = this.queue.splice(0, MAX_BATCH);
         let results: Array<{ ok: true; seq: number; hash: string } | { ok: false; error: unknown }>;
         try {
           results = await this.tx((c) => this.appendBatch(c, batch));
@@ -292,7 +292,6 @@ export class PostgresAuditStore implements AuditStore {
     recs: ReadonlyArray<{ rec: AdviceRecord; parts: StoredParts }>,
     prev: string,
   ): Promise<Array<{ ok: true; seq: number; hash: string }>> {
-    const blob = (b: Uint8Array | undefined) => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
     const cols: unknown[][] = Array.from({ length: 16 }, () => []);
     const hashes: string[] = [];
     let p = prev;
@@ -314,8 +313,8 @@ export class PostgresAuditStore implements AuditStore {
         hash,
         rec.client?.issuer ?? null,
         parts.format === 1 ? null : parts.format,
-        blob(parts.outputs),
-        blob(parts.inputs),
+        asBuffer(parts.outputs),
+        asBuffer(parts.inputs),
       ];
       row.forEach((v, i) => cols[i]?.push(v));
       hashes.push(hash);
@@ -365,10 +364,11 @@ export class PostgresAuditStore implements AuditStore {
       cardFeedback: `SELECT 1 FROM ${s}.advice_card c JOIN ${s}.feedback f ON f.card_uuid = c.card_uuid WHERE c.advice_id = a.id`,
     });
     const r = await this.pool.query<AdviceRow>(
-      `SELECT a.seq, a.record, a.format, a.outputs, a.inputs, a.prev_hash, a.hash FROM ${s}.advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`,
+      `SELECT a.seq, a.record, a.format, a.outputs, a.prev_hash, a.hash FROM ${s}.advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`,
       w.args,
     );
-    const page = r.rows.slice(0, q.limit).map((row) => ({ ...decodeRow(row), seq: Number(row.seq) }));
+    // Summaries need the outputs only: the inputs are not read.
+    const page = r.rows.slice(0, q.limit).map((row) => ({ ...decodeRow(row, { inputs: false }), seq: Number(row.seq) }));
     const counts = await this.feedbackCounts(page.map((p) => p.id));
     const items = page.map((p) => summarize(p, counts));
     const last = page[page.length - 1];

@@ -37,6 +37,9 @@ export interface StoredRow {
   inputs?: Uint8Array | null;
 }
 
+/** A stored blob as the database drivers bind it: a Buffer over the same bytes (one that crossed threads is wrapped, not copied). */
+export const asBuffer = (b: Uint8Array | undefined): Buffer | null => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
+
 const BROTLI = { params: { [constants.BROTLI_PARAM_QUALITY]: 1 } };
 
 const compress = (text: string): Uint8Array => brotliCompressSync(Buffer.from(text, 'utf8'), BROTLI);
@@ -125,11 +128,15 @@ export function rowHashMatches(prevHash: string, row: StoredRow, hash: string): 
   return storedHash(prevHash, { format: 2, text: row.record, outputs: row.outputs, inputs: row.inputs }) === hash;
 }
 
-/** A stored row read back as the record it holds (a format-2 row: its outputs with its inputs, no snapshot). */
-export function decodeRow(row: StoredRow): AdviceRecord & { format: 1 | 2 } {
+/**
+ * A stored row read back as the record it holds (a format-2 row: its outputs with its inputs, no snapshot). A list of
+ * summaries needs only the outputs: with `inputs: false` the inputs column is neither read nor decompressed.
+ */
+export function decodeRow(row: StoredRow, opts: { inputs: boolean } = { inputs: true }): AdviceRecord & { format: 1 | 2 } {
   if (formatOf(row) === 1) return { ...parseRecordText(row.record), format: 1 };
-  if (!row.outputs || !row.inputs) throw new Error('a stored record of format 2 lacks its outputs or inputs');
+  if (!row.outputs || (opts.inputs && !row.inputs)) throw new Error('a stored record of format 2 lacks its outputs or inputs');
   const rec = parseRecordText(decompress(row.outputs));
+  if (!opts.inputs || !row.inputs) return { ...rec, format: 2 };
   return { ...rec, inputs: JSON.parse(decompress(row.inputs)) as RecordInputs, format: 2 };
 }
 

@@ -2,6 +2,9 @@
 import { createHash } from 'node:crypto';
 import type { AdviceRecord, AdviceSummary, CardOwner, FeedbackRow, OverviewAggregates } from './types.js';
 
+/** At most this many records per group commit, in both stores (common practice: a bound on one transaction's size). */
+export const MAX_BATCH = 64;
+
 export function summarize(
   r: AdviceRecord & { seq: number },
   feedback: Map<string, { accepted: number; overridden: number }>,

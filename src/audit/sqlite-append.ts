@@ -5,7 +5,7 @@
  */
 import Database from 'better-sqlite3';
 import { GENESIS } from './chain.js';
-import { compressRecord, serialiseRecord, storedHash, type SerialisedRecord, type StoredParts } from './record-format.js';
+import { asBuffer, compressRecord, serialiseRecord, storedHash, type SerialisedRecord, type StoredParts } from './record-format.js';
 import type { AdviceRecord } from './types.js';
 
 /** WAL journal and synchronous=FULL: a committed record survives a process kill or power loss. */
@@ -39,11 +39,7 @@ export interface PreparedRecord {
 /** `bytes`: about how many bytes the row holds (text in characters), for pacing checkpoints. */
 export type AppendResult = { ok: true; seq: number; hash: string; bytes: number } | { ok: false; error: unknown };
 
-/** A stored blob as better-sqlite3 binds it (a Buffer; a Uint8Array that crossed from another thread is wrapped, not copied). */
-const bytes = (b: Uint8Array | undefined): Buffer | null => (b ? Buffer.from(b.buffer, b.byteOffset, b.byteLength) : null);
-
-/** At most this many records per group commit. */
-export const MAX_BATCH = 64;
+export { MAX_BATCH } from './shared.js';
 
 function metaOf(r: AdviceRecord): RecordMeta {
   return {
@@ -103,8 +99,8 @@ export function createBatchAppender(db: Database.Database): (batch: readonly Pre
       hash,
       r.issuer ?? null,
       parts.format === 1 ? null : parts.format,
-      bytes(parts.outputs),
-      bytes(parts.inputs),
+      asBuffer(parts.outputs),
+      asBuffer(parts.inputs),
     );
     for (const [uuid, kind] of Object.entries(r.cardKinds)) card.run(uuid, r.id, kind, r.service);
     const size = parts.text.length + (parts.outputs?.byteLength ?? 0) + (parts.inputs?.byteLength ?? 0);

@@ -42,7 +42,8 @@ interface AdviceRow {
   record: string;
   format: number | null;
   outputs: Uint8Array | null;
-  inputs: Uint8Array | null;
+  /** Not selected by list(), which needs the outputs only. */
+  inputs?: Uint8Array | null;
   prev_hash: string;
   hash: string;
 }
@@ -257,11 +258,12 @@ export class SqliteAuditStore implements AuditStore {
     recordFilters(w, q, RECORD_SQL);
     const rows = this.db
       .prepare(
-        `SELECT a.seq, a.record, a.format, a.outputs, a.inputs, a.prev_hash, a.hash FROM advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`,
+        `SELECT a.seq, a.record, a.format, a.outputs, a.prev_hash, a.hash FROM advice a ${w.sql} ORDER BY a.seq DESC LIMIT ${w.param(q.limit + 1)}`,
       )
       .all(...w.args) as AdviceRow[];
     const page = rows.slice(0, q.limit);
-    const records = page.map((r) => ({ ...decodeRow(r), seq: r.seq }));
+    // Summaries need the outputs only: the inputs are not read.
+    const records = page.map((r) => ({ ...decodeRow(r, { inputs: false }), seq: r.seq }));
     const counts = this.feedbackCounts(records.map((r) => r.id));
     const items = records.map((r) => summarize(r, counts));
     const last = page[page.length - 1];

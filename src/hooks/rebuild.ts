@@ -76,7 +76,11 @@ export async function withSnapshot<T extends AdviceRecord>(rec: T, siteMap?: Sit
 function playback(exchanges: readonly FhirExchange[]): () => Fetcher {
   return () => {
     const byUrl = new Map<string, FhirExchange[]>();
-    for (const x of exchanges) byUrl.set(x.url, [...(byUrl.get(x.url) ?? []), x]);
+    for (const x of exchanges) {
+      const list = byUrl.get(x.url);
+      if (list) list.push(x);
+      else byUrl.set(x.url, [x]);
+    }
     return async (url, _signal, onBody) => {
       const x = byUrl.get(url)?.shift();
       if (!x) throw new Error('not read by the call');

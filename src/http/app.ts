@@ -199,7 +199,7 @@ export function createApp(deps: AppDeps): express.Express {
     const rec = await deps.store.get(String(req.params['id']));
     if (!rec) throw outcomeError('not-found', 'not-found', 'no advice record with that id');
     // A record stored as received holds no snapshot: it is rebuilt from the inputs and marked so (docs/audit.md).
-    const shown = rec.snapshot ? rec : await withSnapshot(rec, deps.siteMap).catch(() => rec);
+    const shown = await withSnapshot(rec, deps.siteMap).catch(() => rec);
     res.json({
       ...shown,
       ...(shown.snapshot && !rec.snapshot ? { snapshotRebuilt: true } : {}),

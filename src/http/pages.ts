@@ -4,11 +4,11 @@
  * Headers as strict as the API's (app.ts), except that a page may load its own stylesheet from this origin and be
  * framed by the configured EHR origins (CSP frame-ancestors; none by default).
  */
-import { withSnapshot } from '../hooks/rebuild.js';
-import type { SiteMap } from '../fhir/site-map.js';
 import { readFile } from 'node:fs/promises';
 import { fileURLToPath } from 'node:url';
 import type { Express, Response } from 'express';
+import type { SiteMap } from '../fhir/site-map.js';
+import { withSnapshot } from '../hooks/rebuild.js';
 import type { AuditStore, StoredAdvice } from '../audit/types.js';
 import type { Catalogue } from '../cards/catalogue.js';
 import { docsPage, noticePage, PAGE_CSS, renderAdvicePage, STYLESHEET_PATH } from '../pages/index.js';
@@ -42,7 +42,7 @@ export async function reasoningPageOf(
   deps: Pick<PagesDeps, 'catalogue' | 'thresholds' | 'rulesVersion' | 'timeZone' | 'siteMap'>,
 ): ReturnType<typeof renderAdvicePage> {
   // A record stored with its inputs holds no snapshot: rebuilt for the trend plots. A record whose inputs no longer
-  // make a call is shown without them (the page says the trends are not available).
+  // make a call is shown without the trend plots.
   const withTrends = await withSnapshot(record, deps.siteMap).catch(() => record);
   return renderAdvicePage({
     record: withTrends,

@@ -7,7 +7,8 @@ import { describe, expect, it } from 'vitest';
 import * as b from '../../examples/lib/fhir-builders.js';
 import { resolveThresholds } from '../../src/assess/thresholds.js';
 import { decodeRow, encodeRecord } from '../../src/audit/record-format.js';
-import type { AdviceRecord, AnsweredRecord, AuditStore } from '../../src/audit/types.js';
+import { impactOf } from '../../src/audit/impact.js';
+import type { AdviceRecord, AnsweredRecord, AuditStore, StoredAdvice } from '../../src/audit/types.js';
 import { loadCatalogue } from '../../src/cards/catalogue.js';
 import { FhirFetchError, type fhirFetcher } from '../../src/fhir/fetcher.js';
 import { evaluateHook } from '../../src/hooks/evaluate.js';
@@ -122,6 +123,19 @@ describe('a record stored as received rebuilds its call', () => {
     expect(await snapshotOfRecord(made)).toBe(made.snapshot);
     const { snapshot: _s, advice: _a, ...rest } = made as AdviceRecord & { advice: unknown };
     expect(await snapshotOfRecord({ ...rest, outcome: 'precondition-failed' } as AdviceRecord)).toBeUndefined();
+  });
+
+  it('in the impact report, a stored record that rebuilds is replayed and one that no longer makes a call counts as failed', async () => {
+    const made = await answered();
+    const stored = { ...withoutSnapshot(made), seq: 1, hash: 'h', prevHash: 'p', format: 2 } as StoredAdvice;
+    const broken = { ...stored, id: 'broken-1', seq: 2, inputs: { ...made.inputs!, request: { body: '{}', asReceived: true } } };
+    async function* both() {
+      yield stored;
+      yield broken;
+    }
+    const { catalogue, digest } = loadCatalogue();
+    const report = await impactOf(both(), { thresholds: resolveThresholds({}), catalogue, rulesVersion: `test.${digest}` });
+    expect(report).toMatchObject({ read: 2, replayed: 1, failed: 1, failedExamples: ['broken-1'] });
   });
 
   it('an answer the FHIR server sent for one URL is played back for that URL only, in the order read', async () => {
